@@ -1,0 +1,70 @@
+"""The ``fieldkit`` command: no arguments start the TUI; subcommands serve scripts.
+
+Each subcommand lives in ``fieldkit/commands/<name>.py`` and exposes ``register(subparsers)``,
+which adds its parser and sets ``func`` to a function ``(args) -> int``. Bad input raises
+:class:`fieldkit.commands.common.CommandError` (or ``InputError``): exit status 2, one line on
+stderr, never a traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from collections.abc import Sequence
+
+from fieldkit import __version__
+
+#: The subcommand modules, in the order ``fieldkit --help`` lists them.
+COMMAND_MODULES: tuple[str, ...] = (
+    "fieldkit.commands.convert",
+)
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str) -> None:  # type: ignore[override]
+        # argparse prints usage plus the message; keep it to one line that names the problem.
+        self.exit(2, f"{self.prog}: error: {message}\n")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(
+        prog="fieldkit",
+        description="Offline field assistant for fibre-optic crews. Without a command, starts "
+        "the terminal UI.",
+    )
+    parser.add_argument("--version", action="version", version=f"fieldkit {__version__}")
+    parser.add_argument("--data-dir", help="folder for job data (default: the platform data folder; "
+                        "or $FIELDKIT_DATA_DIR)")
+    parser.add_argument("--config-dir", help="folder for settings and user presets (default: the "
+                        "platform config folder; or $FIELDKIT_CONFIG_DIR)")
+    subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for name in COMMAND_MODULES:
+        importlib.import_module(name).register(subparsers)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    from fieldkit.calc.units import InputError
+    from fieldkit.commands.common import CommandError
+
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        from fieldkit.tui.app import make_app
+
+        make_app(data_dir=args.data_dir, config_dir=args.config_dir).run()
+        return 0
+    try:
+        return int(args.func(args) or 0)
+    except (CommandError, InputError) as exc:
+        print(f"fieldkit {args.command}: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        return 130
+    except BrokenPipeError:
+        return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

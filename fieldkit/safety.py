@@ -1,0 +1,30 @@
+"""Safety cautions shown by the help screen, the fault workspace, the CLI and the reports.
+
+One wording, kept here, so every place says the same thing.
+"""
+
+INVISIBLE_LIGHT = (
+    "Light in fibre at 850, 1300, 1310, 1490 and 1550 nm is invisible and can damage the eye. "
+    "Never look into a fibre end, a connector or an adapter, with or without a magnifier or "
+    "microscope; check for light with a power meter, and cap connectors you are not using."
+)
+FAULT_LOCATOR = (
+    "A visual fault locator is a visible red laser, usually Class 2 or 3R (IEC 60825-1): do not "
+    "look into its output or a lit fibre end, and do not point it at people."
+)
+GLASS_SHARDS = (
+    "Fibre offcuts are glass shards that pierce skin and are hard to find: wear safety glasses, "
+    "put offcuts in a marked shard container, never on the floor or the work surface, and do "
+    "not eat or drink at the splice bench."
+)
+DIGGING = (
+    "Before anyone digs or opens a closure at a located fault: follow the local utility-locate "
+    "rules (request a locate and wait for the marks), confirm the position with a second "
+    "measurement or from the other end, and keep to the site's permit and traffic rules."
+)
+DEFER = (
+    "fieldkit gives estimates to plan and check work; it does not replace local codes, site "
+    "rules, the operator's procedures or licensed practice, which always take precedence."
+)
+
+ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, GLASS_SHARDS, DIGGING, DEFER)

@@ -1,0 +1,27 @@
+"""The user's settings (theme, name on records), kept as a small JSON file in the config folder."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+from typing import Any
+
+from fieldkit.fsutil import atomic_write_bytes
+
+FILE_NAME = "settings.json"
+
+
+def load(config: Path) -> dict[str, Any]:
+    """The saved settings; an unreadable file gives the defaults (it is left in place)."""
+    try:
+        data = json.loads((config / FILE_NAME).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return {}
+    return data if isinstance(data, dict) else {}
+
+
+def save(config: Path, **changes: Any) -> None:
+    """Merge ``changes`` into the saved settings, atomically."""
+    data = load(config)
+    data.update(changes)
+    atomic_write_bytes(config / FILE_NAME, json.dumps(data, indent=2).encode("utf-8"))

@@ -1,0 +1,38 @@
+"""Themes of our own: the high-contrast one is for reading a screen in direct sunlight."""
+
+from __future__ import annotations
+
+from textual.app import App
+from textual.theme import Theme
+
+HIGH_CONTRAST = "fieldkit-sunlight"
+
+SUNLIGHT = Theme(
+    name=HIGH_CONTRAST,
+    primary="#000000",
+    secondary="#000000",
+    accent="#0000B0",
+    warning="#7A4A00",
+    error="#B00000",
+    success="#006400",
+    foreground="#000000",
+    background="#FFFFFF",
+    surface="#FFFFFF",
+    panel="#E8E8E8",
+    dark=False,
+    luminosity_spread=0.05,
+    text_alpha=1.0,
+    variables={
+        "input-selection-background": "#0000B0 40%",
+        "footer-key-foreground": "#FFFFFF",
+        "footer-key-background": "#000000",
+        "footer-description-foreground": "#000000",
+        "footer-background": "#FFFFFF",
+        "border": "#000000",
+        "border-blurred": "#555555",
+    },
+)
+
+
+def register_themes(app: App[object]) -> None:
+    app.register_theme(SUNLIGHT)

@@ -1,0 +1,40 @@
+"""The workspaces of the app: one row each. A new workspace adds its row here.
+
+The app builds its modes, its footer keys and its command-palette entries from this table, so a
+workspace is reachable by one key and from the palette as soon as it is listed.
+"""
+
+from __future__ import annotations
+
+import importlib
+from dataclasses import dataclass
+
+from textual.screen import Screen
+
+
+@dataclass(frozen=True, slots=True)
+class Workspace:
+    mode: str  # the mode name, also the command-palette id
+    key: str  # the one key that opens it (shown in the footer)
+    title: str  # the footer label and the palette title
+    help: str  # the palette help line
+    module: str  # module of the screen class
+    screen_class: str
+
+    def make_screen(self) -> Screen:
+        cls = getattr(importlib.import_module(self.module), self.screen_class)
+        screen: Screen = cls()
+        return screen
+
+
+WORKSPACES: tuple[Workspace, ...] = (
+    Workspace("convert", "f2", "Convert", "Levels, power units, attenuation, wavelength and grid",
+              "fieldkit.tui.screens.convert", "ConvertScreen"),
+)
+
+
+def by_mode(mode: str) -> Workspace:
+    for workspace in WORKSPACES:
+        if workspace.mode == mode:
+            return workspace
+    raise KeyError(mode)
