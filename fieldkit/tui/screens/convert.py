@@ -1,0 +1,166 @@
+"""The convert workspace: a typed value in every related unit, levels and losses, the WDM grids."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Vertical, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, Header, Input, Static
+
+from fieldkit.calc import power
+from fieldkit.calc.conversions import grid_report, related_values
+from fieldkit.calc.units import InputError, Kind, Value, display_unit, format_number
+from fieldkit.tui.widgets.quantity_field import QuantityField
+
+
+def _rows(rows: list[tuple[str, str]]) -> str:
+    width = max(len(label) for label, _ in rows)
+    return "\n".join(f"{label:>{width}}  {text}" for label, text in rows)
+
+
+class ConvertScreen(Screen[None]):
+    """Type once, read every unit. Everything updates on each keystroke."""
+
+    CSS_PATH = "convert.tcss"
+    AUTO_FOCUS = "#value"
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with VerticalScroll(id="convert-body"):
+            with Vertical(classes="two-col"):
+                with Vertical(classes="col"):
+                    with Vertical(id="value-panel", classes="panel") as panel:
+                        panel.border_title = "Value"
+                        yield QuantityField(
+                            "Value", expect=None, field_id="value",
+                            placeholder="-7.5 dBm, 250 µW, 0.35 dB/km, 1.2 kft",
+                            tooltip="A value with its unit: a level or power, a loss in dB, "
+                            "an attenuation per length, a length, a wavelength or a frequency",
+                        )
+                        yield Static("", id="value-out", classes="result")
+                    with Vertical(id="loss-panel", classes="panel") as panel:
+                        panel.border_title = "Level and loss"
+                        yield QuantityField("Level", expect=Kind.POWER, default_unit="dBm",
+                                            field_id="loss-level", placeholder="-3.2 dBm")
+                        yield QuantityField("Loss", expect=Kind.RATIO, default_unit="dB",
+                                            field_id="loss-db", placeholder="4.5 dB")
+                        yield Static("", id="loss-out", classes="result")
+                with Vertical(classes="col"):
+                    with Vertical(id="sum-panel", classes="panel") as panel:
+                        panel.border_title = "Two levels"
+                        yield QuantityField("Level A", expect=Kind.POWER, default_unit="dBm",
+                                            field_id="sum-a", placeholder="-3 dBm")
+                        yield QuantityField("Level B", expect=Kind.POWER, default_unit="dBm",
+                                            field_id="sum-b", placeholder="-6 dBm")
+                        yield Static("", id="sum-out", classes="result")
+                    with Vertical(id="grid-panel", classes="panel") as panel:
+                        panel.border_title = "Wavelength and grid"
+                        yield QuantityField("λ or f", expect=(Kind.LENGTH, Kind.FREQUENCY),
+                                            default_unit="nm", field_id="grid-in",
+                                            placeholder="1550.12 nm or 193.4 THz")
+                        yield Static("", id="grid-out", classes="result")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        for field in self.query(QuantityField):
+            field.show_error("")
+        self._show_value()
+        self._show_loss()
+        self._show_sum()
+        self._show_grid()
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        target = event.input.id or ""
+        if target == "value":
+            self._show_value()
+        elif target.startswith("loss-"):
+            self._show_loss()
+        elif target.startswith("sum-"):
+            self._show_sum()
+        elif target == "grid-in":
+            self._show_grid()
+
+    def _field(self, field_id: str) -> QuantityField:
+        return self.query_one(f"#{field_id}-field", QuantityField)
+
+    def _out(self, out_id: str, text: str) -> None:
+        self.query_one(f"#{out_id}", Static).update(text)
+
+    def _show_value(self) -> None:
+        value = self._field("value").value_or_none()
+        if value is None:
+            self._out("value-out", "Type a value and its unit.")
+            return
+        rows = [(format_number(number), display_unit(unit)) for unit, number in related_values(value)]
+        width = max(len(number) for number, _ in rows)
+        lines = [f"{number:>{width}} {unit}" for number, unit in rows]
+        if value.kind is Kind.RATIO:
+            lines.append(f"passes {format_number(value.to('%'))} % of the power")
+        self._out("value-out", "\n".join(lines))
+
+    def _show_loss(self) -> None:
+        level = self._field("loss-level").value_or_none()
+        loss = self._field("loss-db").value_or_none()
+        if level is None or loss is None:
+            self._out("loss-out", "A level and a loss give the level after the loss.")
+            return
+        level_dbm = level.to("dBm")
+        loss_db = loss.to("dB")
+        after = power.apply_loss(level_dbm, loss_db)
+        rows = [
+            ("after loss", f"{format_number(after)} dBm = {_linear(after)}"),
+            ("after gain", f"{format_number(power.apply_gain(level_dbm, loss_db))} dBm"),
+            ("passes", f"{format_number(power.loss_db_to_percent_transmitted(loss_db))} %"),
+        ]
+        self._out("loss-out", _rows(rows))
+
+    def _show_sum(self) -> None:
+        a = self._field("sum-a").value_or_none()
+        b = self._field("sum-b").value_or_none()
+        if a is None or b is None:
+            self._out("sum-out", "Two levels give their combined power and difference.")
+            return
+        a_dbm, b_dbm = a.to("dBm"), b.to("dBm")
+        total = power.sum_levels_dbm((a_dbm, b_dbm))
+        rows = [
+            ("A + B power", f"{format_number(total)} dBm = {_linear(total)}"),
+            ("A − B", f"{format_number(power.level_difference_db(a_dbm, b_dbm))} dB"),
+        ]
+        self._out("sum-out", _rows(rows))
+
+    def _show_grid(self) -> None:
+        field = self._field("grid-in")
+        value = field.value_or_none()
+        if value is None:
+            self._out("grid-out", "A wavelength or frequency gives the nearest ITU-T grid channels.")
+            return
+        try:
+            report = grid_report(value)
+        except InputError as exc:
+            field.show_error(str(exc))
+            self._out("grid-out", "")
+            return
+        rows = [("λ", f"{report.wavelength_nm:.3f} nm"), ("f", f"{report.frequency_thz:.4f} THz")]
+        for channel in report.dwdm:
+            rows.append((
+                f"DWDM {channel.spacing_ghz:g}",
+                f"n={channel.n:+d} {channel.frequency_thz:.3f} THz",
+            ))
+            rows.append(("", f"{channel.wavelength_nm:.3f} nm, Δf {_signed(channel.offset_ghz, 1)} GHz"))
+        if report.cwdm is not None:
+            note = "" if report.cwdm.within_band else " (outside band)"
+            rows.append(("CWDM", f"{report.cwdm.wavelength_nm:.0f} nm, Δλ "
+                                 f"{_signed(report.cwdm.offset_nm, 1)} nm{note}"))
+        self._out("grid-out", _rows(rows))
+
+
+def _linear(level_dbm: float) -> str:
+    value = Value(Kind.POWER, level_dbm, "dBm")
+    mw = value.to("mW")
+    unit = "mW" if mw >= 0.1 else "uW" if mw >= 1e-4 else "nW"
+    return f"{format_number(value.to(unit), 4)} {display_unit(unit)}"
+
+
+def _signed(number: float, decimals: int) -> str:
+    text = f"{number:+.{decimals}f}"
+    return text.replace("-", "\u2212")

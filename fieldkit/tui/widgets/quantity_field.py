@@ -1,0 +1,101 @@
+"""A labelled input for one typed quantity, with its problem shown beside it."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical
+from textual.widgets import Input, Label, Static
+
+from fieldkit.calc.units import InputError, Kind, Value, parse
+
+#: What a quantity field lets through: digits, signs, separators, letters for units, µ/μ, %, /.
+QUANTITY_CHARS = r"[0-9A-Za-z .,+\-\u2212\u00b5\u03bc/%']*"
+
+
+class QuantityField(Vertical):
+    """Label, input and an error line. ``value()`` parses what is typed or raises InputError."""
+
+    DEFAULT_CSS = """
+    QuantityField {
+        height: auto;
+    }
+    QuantityField > Horizontal {
+        height: auto;
+    }
+    QuantityField Label.qf-label {
+        width: 12;
+        padding: 0 1 0 0;
+        color: $text-muted;
+    }
+    QuantityField Input {
+        width: 1fr;
+    }
+    QuantityField .field-error {
+        padding-left: 12;
+        color: $error;
+        text-style: bold;
+    }
+    """
+
+    def __init__(
+        self,
+        label: str,
+        *,
+        expect: Kind | tuple[Kind, ...] | None,
+        placeholder: str,
+        default_unit: str | None = None,
+        value: str = "",
+        field_id: str,
+        tooltip: str | None = None,
+    ) -> None:
+        super().__init__(id=f"{field_id}-field")
+        self._label = label
+        self._expect = expect
+        self._default_unit = default_unit
+        self._input = Input(
+            value=value,
+            placeholder=placeholder,
+            type="text",
+            restrict=QUANTITY_CHARS,
+            compact=True,
+            id=field_id,
+            tooltip=tooltip,
+        )
+        self._error = Static("", classes="field-error")
+
+    def compose(self) -> ComposeResult:
+        with Horizontal():
+            yield Label(self._label, classes="qf-label")
+            yield self._input
+        yield self._error
+
+    @property
+    def input(self) -> Input:
+        return self._input
+
+    def value(self) -> Value:
+        """The typed value; raises InputError (and shows it) when it cannot be used."""
+        try:
+            parsed = parse(
+                self._input.value, self._expect, default_unit=self._default_unit,
+                what=self._label.lower(),
+            )
+        except InputError as exc:
+            self.show_error(str(exc))
+            raise
+        self.show_error("")
+        return parsed
+
+    def value_or_none(self) -> Value | None:
+        """The typed value, or None when the field is empty or wrong (the reason is shown)."""
+        if not self._input.value.strip():
+            self.show_error("")
+            return None
+        try:
+            return self.value()
+        except InputError:
+            return None
+
+    def show_error(self, message: str) -> None:
+        self._error.update(message)
+        self._error.display = bool(message)
