@@ -1,0 +1,1 @@
+"""Per-job logs: the records (models), the crash-safe JSON store, and the reports."""
