@@ -18,6 +18,7 @@ from fieldkit import __version__
 #: The subcommand modules, in the order ``fieldkit --help`` lists them.
 COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.convert",
+    "fieldkit.commands.levels",
 )
 
 
