@@ -1,0 +1,254 @@
+"""A dialog to choose where a result goes: an open job and one of its links.
+
+Pushed by the workspaces for "save onto a job's link"::
+
+    def picked(choice: tuple[str, str] | None) -> None:
+        if choice:
+            job_id, link_id = choice
+            self.app.store.update(job_id, lambda job: job.link(link_id).results.append(...))
+
+    self.app.push_screen(JobLinkPicker(), picked)
+
+Dismisses with ``(job_id, link_id)``, or None when cancelled. A new link (by label) or a new
+job (by name) can be made from the dialog; both are saved at once.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.models import Job
+    from fieldkit.jobs.store import JobStore
+
+
+class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
+    """Pick an open job, then a link of it (or type a new link label and press Enter)."""
+
+    DEFAULT_CSS = """
+    JobLinkPicker {
+        align: center middle;
+    }
+    JobLinkPicker > #jlp-dialog {
+        width: 90%;
+        max-width: 76;
+        height: auto;
+        max-height: 100%;
+        border: round $accent;
+        background: $surface;
+        padding: 0 1;
+    }
+    JobLinkPicker #jlp-title {
+        text-style: bold;
+        width: 1fr;
+    }
+    JobLinkPicker .jlp-heading {
+        color: $text-muted;
+        margin-top: 1;
+    }
+    JobLinkPicker OptionList {
+        height: auto;
+        max-height: 6;
+    }
+    JobLinkPicker Input {
+        margin: 0;
+    }
+    JobLinkPicker #jlp-message {
+        color: $warning;
+        height: auto;
+    }
+    JobLinkPicker #jlp-buttons {
+        height: auto;
+        align-horizontal: right;
+        margin-top: 1;
+    }
+    JobLinkPicker #jlp-buttons Button {
+        margin-left: 1;
+        min-width: 10;
+    }
+    """
+
+    BINDINGS = [
+        Binding("escape", "cancel", "Cancel", id="job_link_picker.cancel"),
+    ]
+
+    def __init__(self, store: JobStore | None = None, *, job_id: str | None = None,
+                 title: str = "Save onto a job's link") -> None:
+        super().__init__()
+        self._store = store
+        self._initial_job = job_id
+        self._title = title
+        self._jobs: dict[str, Job] = {}
+        self._job_id: str | None = None
+
+    @property
+    def store(self) -> JobStore:
+        if self._store is None:
+            self._store = self.app.store  # type: ignore[attr-defined]
+        return self._store
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="jlp-dialog"):
+            yield Label(self._title, id="jlp-title")
+            yield Label("Open job", classes="jlp-heading")
+            yield OptionList(id="jlp-jobs")
+            yield Input(placeholder="or a new job name, Enter", id="jlp-new-job", compact=True)
+            yield Label("Link", classes="jlp-heading", id="jlp-links-heading")
+            yield OptionList(id="jlp-links")
+            yield Input(placeholder="or a new link label, Enter", id="jlp-new-link", compact=True)
+            yield Static("", id="jlp-message")
+            with Horizontal(id="jlp-buttons"):
+                yield Button("Cancel", id="jlp-cancel")
+                yield Button("Save here", id="jlp-ok", variant="primary")
+
+    def on_mount(self) -> None:
+        self._reload_jobs(select=self._initial_job)
+
+    # -- data --------------------------------------------------------------------------
+    def _reload_jobs(self, select: str | None = None) -> None:
+        from fieldkit.jobs.store import StoreError
+
+        jobs_list = self.query_one("#jlp-jobs", OptionList)
+        jobs_list.clear_options()
+        self._jobs.clear()
+        try:
+            summaries = [s for s in self.store.list() if s.status == "open" and not s.read_only]
+        except (StoreError, OSError) as exc:
+            self._say(f"The jobs could not be listed: {exc}")
+            summaries = []
+        for summary in summaries:
+            where = f" · {summary.site}" if summary.site else ""
+            jobs_list.add_option(Option(f"{summary.name}{where}", id=summary.id))
+        if not summaries:
+            self._say("No open job yet: type a job name and press Enter.")
+            self.query_one("#jlp-new-job", Input).focus()
+            self._show_links(None)
+            return
+        ids = [s.id for s in summaries]
+        index = ids.index(select) if select in ids else 0
+        jobs_list.highlighted = index
+        jobs_list.focus()
+        self._show_links(ids[index])
+
+    def _show_links(self, job_id: str | None, select: str | None = None) -> None:
+        from fieldkit.jobs.store import StoreError
+
+        self._job_id = job_id
+        links = self.query_one("#jlp-links", OptionList)
+        links.clear_options()
+        if job_id is None:
+            return
+        try:
+            job = self.store.load(job_id)
+        except StoreError as exc:
+            self._say(str(exc))
+            return
+        self._jobs[job_id] = job
+        for link in job.links:
+            ends = f" ({link.end_a} – {link.end_b})" if link.end_a or link.end_b else ""
+            links.add_option(Option(f"{link.label}{ends}", id=link.id))
+        if job.links:
+            ids = [link.id for link in job.links]
+            links.highlighted = ids.index(select) if select in ids else 0
+            self._say("")
+        else:
+            self._say("This job has no link yet: type a label and press Enter.")
+
+    def _say(self, text: str) -> None:
+        self.query_one("#jlp-message", Static).update(text)
+
+    # -- events --------------------------------------------------------------------------
+    @on(OptionList.OptionHighlighted, "#jlp-jobs")
+    def _job_highlighted(self, event: OptionList.OptionHighlighted) -> None:
+        if event.option_id and event.option_id != self._job_id:
+            self._show_links(event.option_id)
+
+    @on(OptionList.OptionSelected, "#jlp-jobs")
+    def _job_selected(self, event: OptionList.OptionSelected) -> None:
+        if event.option_id != self._job_id:
+            self._show_links(event.option_id)
+        links = self.query_one("#jlp-links", OptionList)
+        if links.option_count:
+            links.focus()
+        else:
+            self.query_one("#jlp-new-link", Input).focus()
+
+    @on(OptionList.OptionSelected, "#jlp-links")
+    def _link_selected(self, event: OptionList.OptionSelected) -> None:
+        if self._job_id and event.option_id:
+            self.dismiss((self._job_id, event.option_id))
+
+    @on(Input.Submitted, "#jlp-new-job")
+    def _new_job(self, event: Input.Submitted) -> None:
+        from fieldkit.jobs.store import StoreError
+
+        name = event.value.strip()
+        if not name:
+            self._say("Type a name for the new job.")
+            return
+        try:
+            job = self.store.create(name)
+        except StoreError as exc:
+            self._say(str(exc))
+            return
+        event.input.value = ""
+        self._reload_jobs(select=job.id)
+        self.query_one("#jlp-new-link", Input).focus()
+
+    @on(Input.Submitted, "#jlp-new-link")
+    def _new_link(self, event: Input.Submitted) -> None:
+        choice = self._make_link(event.value)
+        if choice:
+            self.dismiss(choice)
+
+    def _make_link(self, text: str) -> tuple[str, str] | None:
+        from fieldkit.jobs.store import StoreError
+
+        label = text.strip()
+        if self._job_id is None:
+            self._say("Pick a job first (or type a new job name).")
+            return None
+        if not label:
+            self._say("Type a label for the new link (e.g. the two ends).")
+            return None
+        made: list[str] = []
+
+        def add(job: Job) -> None:
+            made.clear()
+            existing = job.link_by_label(label)
+            made.append(existing.id if existing else job.add_link(label).id)
+
+        try:
+            self.store.update(self._job_id, add)
+        except (StoreError, ValueError) as exc:
+            self._say(str(exc))
+            return None
+        return (self._job_id, made[0])
+
+    @on(Button.Pressed, "#jlp-ok")
+    def _ok(self) -> None:
+        new_label = self.query_one("#jlp-new-link", Input).value
+        if new_label.strip():
+            choice = self._make_link(new_label)
+            if choice:
+                self.dismiss(choice)
+            return
+        links = self.query_one("#jlp-links", OptionList)
+        if self._job_id is None or links.highlighted is None:
+            self._say("Pick a job and a link, or type a new link label.")
+            return
+        option = links.get_option_at_index(links.highlighted)
+        if option.id:
+            self.dismiss((self._job_id, option.id))
+
+    @on(Button.Pressed, "#jlp-cancel")
+    def action_cancel(self) -> None:
+        self.dismiss(None)
