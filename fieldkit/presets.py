@@ -1,0 +1,572 @@
+"""Shipped and user presets: fibre types, connections, splices, components, applications,
+transceivers and cable constructions, each value with the standard it comes from.
+
+Preset files are TOML. Each file holds arrays of tables named after the kind, so one file may hold
+several kinds::
+
+    [[fibres]]
+    name = "OM3"
+    family = "multimode"
+    attenuation_max_db_per_km = { 850 = 3.0, 1300 = 1.5 }
+    source = "ANSI/TIA-568.3-D (2016) Table 1 (from memory)"
+
+The shipped files live in the top-level ``presets/`` folder (in a wheel, ``fieldkit/_presets``).
+Files in ``<config>/presets/*.toml`` extend them; an entry with the name of a shipped one replaces
+it. A bad file or entry adds one message to :attr:`PresetLibrary.problems`, naming the file, the
+entry and the problem, and everything else still loads.
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+from fieldkit.calc.fibre import Fibre
+from fieldkit.calc.units import InputError, parse_number
+
+KINDS: tuple[str, ...] = (
+    "fibres", "connectors", "splices", "components", "applications", "transceivers", "cables",
+)
+
+COMPONENT_KINDS = ("splitter", "wdm", "filter", "attenuator", "other")
+SPLICE_METHODS = ("fusion", "mechanical")
+
+
+@dataclass(frozen=True)
+class FibrePreset(Fibre):
+    """A fibre type from a preset file (see :class:`fieldkit.calc.fibre.Fibre`)."""
+
+    origin: str = ""
+
+
+@dataclass(frozen=True)
+class ConnectorPreset:
+    """A mated connector pair grade: loss per mated pair in dB."""
+
+    name: str
+    loss_max_db: float
+    loss_typical_db: float | None
+    source: str
+    origin: str = ""
+
+
+@dataclass(frozen=True)
+class SplicePreset:
+    """A splice grade: loss per splice in dB, by method (fusion or mechanical)."""
+
+    name: str
+    method: str
+    loss_max_db: float
+    loss_typical_db: float | None
+    source: str
+    origin: str = ""
+
+
+@dataclass(frozen=True)
+class ComponentPreset:
+    """A passive component. Splitters hold their excess loss by output count (over 10·log10 N);
+    other kinds hold their insertion loss."""
+
+    name: str
+    kind: str
+    loss_max_db: float | None
+    loss_typical_db: float | None
+    excess_max_db: Mapping[int, float]
+    excess_typical_db: Mapping[int, float]
+    inputs: int
+    source: str
+    origin: str = ""
+
+
+@dataclass(frozen=True)
+class ApplicationFibreLimit:
+    """An application's limits on one fibre type: maximum channel insertion loss and reach."""
+
+    loss_max_db: float
+    reach_m: float
+    loss_min_db: float | None = None
+
+
+@dataclass(frozen=True)
+class ApplicationPreset:
+    """An application (Ethernet PHY, PON class) with its limits per fibre type or family."""
+
+    name: str
+    kind: str
+    wavelengths_nm: tuple[float, ...]
+    limits: Mapping[str, ApplicationFibreLimit]
+    source: str
+    origin: str = ""
+
+    def limit_for(
+        self, fibre_names: tuple[str, ...], family: str | None
+    ) -> tuple[str, ApplicationFibreLimit]:
+        """The limits for the fibre types of a link: the strictest over the types present.
+
+        Looks each fibre up by name, then by family ("singlemode", "multimode").
+
+        Raises
+        ------
+        InputError
+            When the application has no limits for a fibre of the link.
+        """
+        found: list[tuple[str, ApplicationFibreLimit]] = []
+        keys = {k.lower(): k for k in self.limits}
+        for name in fibre_names or ("",):
+            key = keys.get(name.lower()) or (keys.get(family.lower()) if family else None)
+            if key is None and len(self.limits) == 1 and not name:
+                key = next(iter(self.limits))
+            if key is None:
+                have = ", ".join(self.limits)
+                raise InputError(
+                    f"application {self.name}: no limits for fibre {name or 'of unknown type'} "
+                    f"(it has limits for {have})"
+                )
+            found.append((key, self.limits[key]))
+        key, _ = min(found, key=lambda kv: (kv[1].loss_max_db, kv[1].reach_m))
+        strictest = ApplicationFibreLimit(
+            loss_max_db=min(v.loss_max_db for _, v in found),
+            reach_m=min(v.reach_m for _, v in found),
+            loss_min_db=max((v.loss_min_db for _, v in found if v.loss_min_db is not None),
+                            default=None),
+        )
+        return "+".join(dict.fromkeys(k for k, _ in found)), strictest
+
+
+@dataclass(frozen=True)
+class TransceiverPreset:
+    """A transceiver class: transmitter launch power and receiver range, in dBm."""
+
+    name: str
+    wavelength_nm: float | None
+    tx_min_dbm: float
+    tx_max_dbm: float
+    rx_sensitivity_dbm: float
+    rx_overload_dbm: float
+    source: str
+    origin: str = ""
+
+
+@dataclass(frozen=True)
+class CablePreset:
+    """A cable construction: how much longer the fibre is than the sheath (helix / excess
+    fibre length), in percent of the sheath length, with its uncertainty."""
+
+    name: str
+    construction: str
+    helix_percent: float
+    helix_uncertainty_percent: float
+    source: str
+    origin: str = ""
+
+
+@dataclass
+class PresetLibrary:
+    """Every loaded preset, by kind and name, and the problems met while loading."""
+
+    fibres: dict[str, FibrePreset] = field(default_factory=dict)
+    connectors: dict[str, ConnectorPreset] = field(default_factory=dict)
+    splices: dict[str, SplicePreset] = field(default_factory=dict)
+    components: dict[str, ComponentPreset] = field(default_factory=dict)
+    applications: dict[str, ApplicationPreset] = field(default_factory=dict)
+    transceivers: dict[str, TransceiverPreset] = field(default_factory=dict)
+    cables: dict[str, CablePreset] = field(default_factory=dict)
+    problems: list[str] = field(default_factory=list)
+
+    def of_kind(self, kind: str) -> dict[str, Any]:
+        if kind not in KINDS:
+            raise InputError(f"unknown preset kind '{kind}' (kinds: {', '.join(KINDS)})")
+        table: dict[str, Any] = getattr(self, kind)
+        return table
+
+    def find(self, kind: str, name: str) -> Any:
+        """The preset of ``kind`` called ``name`` (case and spacing forgiven).
+
+        Raises
+        ------
+        InputError
+            Naming the unknown preset and the ones that exist.
+        """
+        table = self.of_kind(kind)
+        if name in table:
+            return table[name]
+        wanted = _fold(name)
+        for key, value in table.items():
+            if _fold(key) == wanted:
+                return value
+        singular = kind[:-1] if kind != "fibres" else "fibre"
+        have = ", ".join(table) or "none"
+        raise InputError(f"unknown {singular} '{name}' (known: {have})")
+
+
+def _fold(name: str) -> str:
+    return "".join(ch for ch in name.lower() if ch.isalnum() or ch in "+.")
+
+
+# -- locating and caching ----------------------------------------------------------------------
+
+def shipped_dir() -> Path:
+    """The folder of shipped presets: ``fieldkit/_presets`` in a wheel, else ``presets/`` beside
+    the package (editable install)."""
+    package = Path(__file__).resolve().parent
+    bundled = package / "_presets"
+    if bundled.is_dir():
+        return bundled
+    return package.parent / "presets"
+
+
+def user_dir(config_dir: Path) -> Path:
+    from fieldkit.locations import user_presets_dir
+
+    return user_presets_dir(config_dir)
+
+
+def _fingerprint(folder: Path) -> tuple[tuple[str, int, int], ...]:
+    try:
+        files = sorted(folder.glob("*.toml"))
+    except OSError:
+        return ()
+    out = []
+    for path in files:
+        try:
+            st = path.stat()
+        except OSError:
+            continue
+        out.append((path.name, st.st_mtime_ns, st.st_size))
+    return tuple(out)
+
+
+def load_presets(config_dir: Path | None = None) -> PresetLibrary:
+    """The shipped presets, extended and overridden by the user's in ``<config_dir>/presets``.
+
+    Cached per config folder; a changed, added or removed preset file is read again on the next
+    call. Never raises for a bad file: see :attr:`PresetLibrary.problems`.
+    """
+    shipped = shipped_dir()
+    user = user_dir(Path(config_dir)) if config_dir is not None else None
+    key = (
+        str(shipped), _fingerprint(shipped),
+        str(user) if user else "", _fingerprint(user) if user else (),
+    )
+    return _load_cached(key)
+
+
+@lru_cache(maxsize=16)
+def _load_cached(key: tuple[Any, ...]) -> PresetLibrary:
+    shipped, _, user, _ = key
+    library = PresetLibrary()
+    shipped_path = Path(shipped)
+    for path in sorted(shipped_path.glob("*.toml")):
+        _load_file(library, path, f"presets/{path.name}")
+    if not library.fibres and not library.problems:
+        library.problems.append(f"{shipped_path}: no shipped preset files found")
+    if user:
+        user_path = Path(user)
+        if user_path.is_dir():
+            for path in sorted(user_path.glob("*.toml")):
+                _load_file(library, path, str(path))
+    return library
+
+
+def load_file(path: Path) -> PresetLibrary:
+    """The presets of one file only (for checking a file before copying it into place)."""
+    library = PresetLibrary()
+    _load_file(library, Path(path), str(path))
+    return library
+
+
+# -- parsing and validation --------------------------------------------------------------------
+
+class _EntryError(Exception):
+    pass
+
+
+def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except OSError as exc:
+        library.problems.append(f"{label}: cannot be read ({exc.strerror or exc})")
+        return
+    except UnicodeDecodeError:
+        library.problems.append(f"{label}: is not UTF-8 text")
+        return
+    except tomllib.TOMLDecodeError as exc:
+        library.problems.append(f"{label}: is not valid TOML ({exc})")
+        return
+    for kind, entries in data.items():
+        if kind not in _PARSERS:
+            library.problems.append(
+                f"{label}: unknown section '{kind}' (sections: {', '.join(KINDS)})"
+            )
+            continue
+        if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+            library.problems.append(f"{label}: '{kind}' must be an array of tables ([[{kind}]])")
+            continue
+        parser, allowed = _PARSERS[kind]
+        table = library.of_kind(kind)
+        for index, entry in enumerate(entries, start=1):
+            name = entry.get("name")
+            entry_label = f"'{name}'" if isinstance(name, str) and name.strip() else f"#{index}"
+            try:
+                if not isinstance(name, str) or not name.strip():
+                    raise _EntryError("'name' is missing or not text")
+                unknown = sorted(set(entry) - allowed)
+                if unknown:
+                    raise _EntryError(f"unknown field(s) {', '.join(unknown)}")
+                preset = parser(entry, label)
+            except _EntryError as exc:
+                library.problems.append(f"{label}: {kind} entry {entry_label}: {exc}")
+                continue
+            table[preset.name] = preset
+
+
+def _text(entry: Mapping[str, Any], key: str, *, required: bool = True, default: str = "") -> str:
+    value = entry.get(key)
+    if value is None:
+        if required:
+            raise _EntryError(f"'{key}' is missing")
+        return default
+    if not isinstance(value, str) or (required and not value.strip()):
+        raise _EntryError(f"'{key}' must be text")
+    return value.strip()
+
+
+def _number(value: Any, key: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise _EntryError(f"'{key}' must be a number, not {value!r}")
+    number = float(value)
+    if not math.isfinite(number):
+        raise _EntryError(f"'{key}' must be a finite number, not {value!r}")
+    return number
+
+
+def _num(entry: Mapping[str, Any], key: str, *, required: bool = True, low: float | None = None,
+         high: float | None = None, positive: bool = False) -> float | None:
+    if key not in entry:
+        if required:
+            raise _EntryError(f"'{key}' is missing")
+        return None
+    number = _number(entry[key], key)
+    if positive and number <= 0:
+        raise _EntryError(f"'{key}' must be above zero, not {number:g}")
+    if low is not None and number < low:
+        raise _EntryError(f"'{key}' must be at least {low:g}, not {number:g}")
+    if high is not None and number > high:
+        raise _EntryError(f"'{key}' must be at most {high:g}, not {number:g}")
+    return number
+
+
+def _req(entry: Mapping[str, Any], key: str, **kw: Any) -> float:
+    value = _num(entry, key, required=True, **kw)
+    assert value is not None
+    return value
+
+
+def _wavelength_key(key: str, table: str) -> float:
+    try:
+        nm = parse_number(str(key), what=table)
+    except InputError as exc:
+        raise _EntryError(f"'{table}': key '{key}' is not a wavelength in nm") from exc
+    if not 200 <= nm <= 2000:
+        raise _EntryError(f"'{table}': {nm:g} nm is not an optical wavelength (200–2000 nm)")
+    return nm
+
+
+def _by_wavelength(entry: Mapping[str, Any], key: str, *, low: float, high: float,
+                   required: bool = False) -> dict[float, float]:
+    raw = entry.get(key)
+    if raw is None:
+        if required:
+            raise _EntryError(f"'{key}' is missing")
+        return {}
+    if not isinstance(raw, dict) or (required and not raw):
+        raise _EntryError(f"'{key}' must be a table of wavelength = value, e.g. {{ 1310 = 0.4 }}")
+    out: dict[float, float] = {}
+    for k, v in raw.items():
+        nm = _wavelength_key(k, key)
+        value = _number(v, f"{key}.{k}")
+        if not low <= value <= high:
+            raise _EntryError(f"'{key}' at {nm:g} nm: {value:g} is outside {low:g}–{high:g}")
+        out[nm] = value
+    return out
+
+
+def _by_ports(entry: Mapping[str, Any], key: str) -> dict[int, float]:
+    raw = entry.get(key)
+    if raw is None:
+        return {}
+    if not isinstance(raw, dict):
+        raise _EntryError(f"'{key}' must be a table of output count = dB, e.g. {{ 32 = 2.0 }}")
+    out: dict[int, float] = {}
+    for k, v in raw.items():
+        try:
+            n = int(str(k))
+        except ValueError as exc:
+            raise _EntryError(f"'{key}': key '{k}' is not an output count") from exc
+        if n < 2:
+            raise _EntryError(f"'{key}': a splitter has at least 2 outputs, not {n}")
+        value = _number(v, f"{key}.{k}")
+        if not 0 <= value <= 10:
+            raise _EntryError(f"'{key}' for {n} outputs: {value:g} dB is outside 0–10 dB")
+        out[n] = value
+    return out
+
+
+def _fibre(entry: Mapping[str, Any], origin: str) -> FibrePreset:
+    family = _text(entry, "family")
+    if family not in ("multimode", "singlemode"):
+        raise _EntryError(f"'family' must be multimode or singlemode, not '{family}'")
+    att_max = _by_wavelength(entry, "attenuation_max_db_per_km", low=0.0, high=20.0, required=True)
+    att_typ = _by_wavelength(entry, "attenuation_typical_db_per_km", low=0.0, high=20.0)
+    for nm, typ in att_typ.items():
+        if nm in att_max and typ > att_max[nm]:
+            raise _EntryError(
+                f"typical attenuation {typ:g} dB/km at {nm:g} nm is above the maximum "
+                f"{att_max[nm]:g} dB/km"
+            )
+    group = _by_wavelength(entry, "group_index", low=1.0, high=2.0)
+    mfd = _by_wavelength(entry, "mode_field_diameter_um", low=1.0, high=20.0)
+    core = _num(entry, "core_diameter_um", required=False, positive=True, high=1000.0)
+    na = _num(entry, "numerical_aperture", required=False, positive=True, high=1.0)
+    if family == "multimode" and (core is None or na is None):
+        raise _EntryError("a multimode fibre needs 'core_diameter_um' and 'numerical_aperture'")
+    raw_defaults = entry.get("default_wavelengths_nm", [])
+    if not isinstance(raw_defaults, list):
+        raise _EntryError("'default_wavelengths_nm' must be a list of wavelengths")
+    defaults = tuple(_number(x, "default_wavelengths_nm") for x in raw_defaults)
+    for nm in defaults:
+        if not any(abs(nm - have) <= 0.5 for have in att_max):
+            raise _EntryError(f"default wavelength {nm:g} nm has no maximum attenuation")
+    return FibrePreset(
+        name=_text(entry, "name"), family=family,  # type: ignore[arg-type]
+        attenuation_max=att_max, attenuation_typical=att_typ, group_indices=group,
+        core_diameter_um=core, numerical_aperture=na, mfd_um=mfd,
+        source=_text(entry, "source"), standard=_text(entry, "standard", required=False),
+        default_wavelengths_nm=defaults, origin=origin,
+    )
+
+
+def _typical_not_above(max_db: float | None, typ_db: float | None) -> None:
+    if max_db is not None and typ_db is not None and typ_db > max_db:
+        raise _EntryError(f"typical loss {typ_db:g} dB is above the maximum {max_db:g} dB")
+
+
+def _connector(entry: Mapping[str, Any], origin: str) -> ConnectorPreset:
+    loss_max = _req(entry, "loss_max_db", low=0.0, high=10.0)
+    loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=10.0)
+    _typical_not_above(loss_max, loss_typ)
+    return ConnectorPreset(_text(entry, "name"), loss_max, loss_typ, _text(entry, "source"),
+                           origin)
+
+
+def _splice(entry: Mapping[str, Any], origin: str) -> SplicePreset:
+    method = _text(entry, "method")
+    if method not in SPLICE_METHODS:
+        raise _EntryError(f"'method' must be fusion or mechanical, not '{method}'")
+    loss_max = _req(entry, "loss_max_db", low=0.0, high=5.0)
+    loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=5.0)
+    _typical_not_above(loss_max, loss_typ)
+    return SplicePreset(_text(entry, "name"), method, loss_max, loss_typ, _text(entry, "source"),
+                        origin)
+
+
+def _component(entry: Mapping[str, Any], origin: str) -> ComponentPreset:
+    kind = _text(entry, "kind")
+    if kind not in COMPONENT_KINDS:
+        raise _EntryError(f"'kind' must be one of {', '.join(COMPONENT_KINDS)}, not '{kind}'")
+    loss_max = _num(entry, "loss_max_db", required=False, low=0.0, high=60.0)
+    loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=60.0)
+    _typical_not_above(loss_max, loss_typ)
+    excess_max = _by_ports(entry, "excess_max_db")
+    excess_typ = _by_ports(entry, "excess_typical_db")
+    for n, typ in excess_typ.items():
+        if n in excess_max and typ > excess_max[n]:
+            raise _EntryError(f"typical excess {typ:g} dB for {n} outputs is above the maximum")
+    inputs = int(_num(entry, "inputs", required=False, low=1, high=2) or 1)
+    if kind == "splitter":
+        if not excess_max:
+            raise _EntryError("a splitter needs 'excess_max_db' by output count")
+    elif loss_max is None:
+        raise _EntryError("'loss_max_db' is missing")
+    return ComponentPreset(_text(entry, "name"), kind, loss_max, loss_typ, excess_max, excess_typ,
+                           inputs, _text(entry, "source"), origin)
+
+
+def _application(entry: Mapping[str, Any], origin: str) -> ApplicationPreset:
+    raw_nm = entry.get("wavelengths_nm")
+    if not isinstance(raw_nm, list) or not raw_nm:
+        raise _EntryError("'wavelengths_nm' must be a list of one or more wavelengths")
+    wavelengths = tuple(_number(x, "wavelengths_nm") for x in raw_nm)
+    raw_limits = entry.get("limits")
+    if not isinstance(raw_limits, dict) or not raw_limits:
+        raise _EntryError("'limits' must be a table of fibre type = { loss_max_db, reach_m }")
+    limits: dict[str, ApplicationFibreLimit] = {}
+    for fibre, raw in raw_limits.items():
+        if not isinstance(raw, dict):
+            raise _EntryError(f"limits for '{fibre}' must be a table {{ loss_max_db, reach_m }}")
+        unknown = sorted(set(raw) - {"loss_max_db", "reach_m", "loss_min_db"})
+        if unknown:
+            raise _EntryError(f"limits for '{fibre}': unknown field(s) {', '.join(unknown)}")
+        try:
+            loss_max = _req(raw, "loss_max_db", low=0.0, high=60.0)
+            reach = _req(raw, "reach_m", positive=True, high=1e6)
+            loss_min = _num(raw, "loss_min_db", required=False, low=0.0, high=60.0)
+        except _EntryError as exc:
+            raise _EntryError(f"limits for '{fibre}': {exc}") from None
+        if loss_min is not None and loss_min > loss_max:
+            raise _EntryError(f"limits for '{fibre}': loss_min_db is above loss_max_db")
+        limits[fibre] = ApplicationFibreLimit(loss_max, reach, loss_min)
+    return ApplicationPreset(_text(entry, "name"), _text(entry, "kind", required=False,
+                                                          default="application"),
+                             wavelengths, limits, _text(entry, "source"), origin)
+
+
+def _transceiver(entry: Mapping[str, Any], origin: str) -> TransceiverPreset:
+    tx_min = _req(entry, "tx_min_dbm", low=-60.0, high=30.0)
+    tx_max = _req(entry, "tx_max_dbm", low=-60.0, high=30.0)
+    rx_sens = _req(entry, "rx_sensitivity_dbm", low=-80.0, high=30.0)
+    rx_over = _req(entry, "rx_overload_dbm", low=-80.0, high=30.0)
+    if tx_min > tx_max:
+        raise _EntryError("'tx_min_dbm' is above 'tx_max_dbm'")
+    if rx_sens >= rx_over:
+        raise _EntryError("'rx_sensitivity_dbm' must be below 'rx_overload_dbm'")
+    wavelength = _num(entry, "wavelength_nm", required=False, low=200.0, high=2000.0)
+    return TransceiverPreset(_text(entry, "name"), wavelength, tx_min, tx_max, rx_sens, rx_over,
+                             _text(entry, "source"), origin)
+
+
+def _cable(entry: Mapping[str, Any], origin: str) -> CablePreset:
+    return CablePreset(
+        name=_text(entry, "name"), construction=_text(entry, "construction"),
+        helix_percent=_req(entry, "helix_percent", low=0.0, high=20.0),
+        helix_uncertainty_percent=_req(entry, "helix_uncertainty_percent", low=0.0, high=20.0),
+        source=_text(entry, "source"), origin=origin,
+    )
+
+
+_PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = {
+    "fibres": (_fibre, {
+        "name", "family", "standard", "source", "default_wavelengths_nm", "core_diameter_um",
+        "numerical_aperture", "attenuation_max_db_per_km", "attenuation_typical_db_per_km",
+        "group_index", "mode_field_diameter_um", "notes",
+    }),
+    "connectors": (_connector, {"name", "loss_max_db", "loss_typical_db", "source", "notes"}),
+    "splices": (_splice, {"name", "method", "loss_max_db", "loss_typical_db", "source", "notes"}),
+    "components": (_component, {
+        "name", "kind", "loss_max_db", "loss_typical_db", "excess_max_db", "excess_typical_db",
+        "inputs", "source", "notes",
+    }),
+    "applications": (_application, {"name", "kind", "wavelengths_nm", "limits", "source",
+                                    "notes"}),
+    "transceivers": (_transceiver, {
+        "name", "wavelength_nm", "tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm",
+        "rx_overload_dbm", "source", "notes",
+    }),
+    "cables": (_cable, {"name", "construction", "helix_percent", "helix_uncertainty_percent",
+                        "source", "notes"}),
+}
