@@ -19,6 +19,8 @@ from fieldkit import __version__
 COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.convert",
     "fieldkit.commands.levels",
+    "fieldkit.commands.loss",
+    "fieldkit.commands.reference",
 )
 
 

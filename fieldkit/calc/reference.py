@@ -231,7 +231,8 @@ def judge(loss_db: float, limit_db: float | None, what: str = "loss") -> Verdict
         raise InputError(f"{what}: {loss_db} is not a finite loss")
     margin_db = None if limit_db is None else limit_db - loss_db
     if loss_db < 0:
-        return Verdict(loss_db, limit_db, margin_db, Status.REFERENCE_PROBLEM, (NEGATIVE_LOSS,),
+        # No margin either: a negative loss says nothing about the fibre.
+        return Verdict(loss_db, limit_db, None, Status.REFERENCE_PROBLEM, (NEGATIVE_LOSS,),
                        (negative_loss_warning(loss_db, what),))
     if limit_db is None or margin_db is None:
         return Verdict(loss_db, None, None, Status.NO_LIMIT)
@@ -386,7 +387,7 @@ class Timestamped(Protocol):
     @property
     def id(self) -> str: ...
     @property
-    def reference_id(self) -> str: ...
+    def reference_id(self) -> str | None: ...
     @property
     def at(self) -> datetime: ...
 

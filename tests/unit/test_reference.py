@@ -152,7 +152,7 @@ def test_pass_and_fail_with_margin() -> None:
 def test_negative_loss_is_a_reference_problem_never_a_pass() -> None:
     verdict = ref.judge(-0.3, 3.0)
     assert verdict.status is Status.REFERENCE_PROBLEM
-    assert verdict.passed is None
+    assert verdict.passed is None and verdict.margin_db is None
     assert ref.NEGATIVE_LOSS in verdict.flags
     assert "reference" in verdict.warnings[0] and "Clean" in verdict.warnings[0]
     fibre = ref.judge_fibre({"A->B": 1.2, "B->A": -0.1}, 3.0)

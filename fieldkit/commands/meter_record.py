@@ -1,0 +1,139 @@
+"""Recording meter references and results into a job from the command line.
+
+Shared by ``fieldkit loss`` (``--job``/``--link``/``--fibre``: save the reference, when new,
+and the result) and ``fieldkit reference`` (set or recheck a reference). The changes
+themselves are in :mod:`fieldkit.meter_log`, which the meter workspace calls too.
+"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+from typing import Any
+
+from fieldkit.commands.common import CommandError
+
+
+def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -> None:
+    """``--job``, ``--link``, ``--by`` (and ``--fibre``, ``--source``, ``--meter``, ``--cord``)."""
+    group = parser.add_argument_group("saving into a job")
+    group.add_argument("--job", metavar="ID", help="the job to save into (its id or the start "
+                       "of it, as 'fieldkit jobs list' shows)")
+    group.add_argument("--link", metavar="LINK",
+                       help="the link's label or id (a new link by that label is added if the "
+                       "job has none)")
+    if fibre:
+        group.add_argument("--fibre", metavar="N", help="the fibre number (1..N)")
+    group.add_argument("--source", metavar="ID", default="",
+                       help="the light source's identifier (e.g. its serial number)")
+    group.add_argument("--meter", metavar="ID", default="",
+                       help="the power meter's identifier")
+    group.add_argument("--cord", action="append", default=[], metavar="TEXT",
+                       help="a reference cord used (repeat for each)")
+    group.add_argument("--by", default="", metavar="NAME", help="who took the measurement")
+
+
+def wants_record(args: argparse.Namespace) -> bool:
+    """True when any of the job options was given (then --job and --link are required)."""
+    return bool(args.job or args.link or getattr(args, "fibre", None))
+
+
+def open_store(args: argparse.Namespace) -> Any:
+    from fieldkit import locations
+    from fieldkit.jobs.store import JobStore
+
+    data = getattr(args, "data_dir", None)
+    return JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
+
+
+def resolve_job(store: Any, args: argparse.Namespace) -> str:
+    from fieldkit.jobs.store import StoreError
+
+    if not args.job or not args.link:
+        raise CommandError("saving into a job needs both --job and --link")
+    try:
+        job_id: str = store.resolve(args.job)
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
+    return job_id
+
+
+def load_job(store: Any, args: argparse.Namespace) -> Any:
+    """The job named by --job, read once (to find the link's saved budget)."""
+    from fieldkit.jobs.store import StoreError
+
+    job_id = resolve_job(store, args)
+    try:
+        return store.load(job_id)
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
+
+
+def parse_fibre(text: str | None) -> int:
+    from fieldkit.calc.units import parse_number
+
+    if text is None:
+        raise CommandError("saving a result needs --fibre N")
+    number = parse_number(text, "fibre")
+    if number != int(number) or number < 1:
+        raise CommandError(f"fibre: {text} is not a fibre number (1, 2, 3 ...)")
+    return int(number)
+
+
+def run_update(store: Any, job_id: str, change: Any) -> Any:
+    """``store.update`` with store errors and a missing link as one-line command errors."""
+    from fieldkit.jobs.store import StoreError
+
+    try:
+        return store.update(job_id, change)
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
+    except KeyError as exc:
+        raise CommandError(str(exc.args[0]) if exc.args else "no such link") from None
+
+
+def record_readings(args: argparse.Namespace, *, method: Any, wavelength_nm: float | None,
+                    references_dbm: dict[str, float], readings_dbm: dict[str, float | None],
+                    verdict: Any) -> dict[str, Any]:
+    """Save the reference(s) and the result(s) of ``fieldkit loss`` into the job."""
+    from fieldkit import meter_log
+
+    if not args.job or not args.link:
+        raise CommandError("saving into a job needs both --job and --link")
+    if wavelength_nm is None:
+        raise CommandError("saving into a job needs --wavelength")
+    fibre = parse_fibre(args.fibre)
+    store = open_store(args)
+    job_id = resolve_job(store, args)
+    limit_db = verdict.limit_db
+    out: dict[str, Any] = {}
+
+    def change(job: Any) -> None:
+        link = meter_log.find_link(job, args.link, create=True)
+        if link.fibre_count is not None and fibre > link.fibre_count:
+            raise CommandError(f"fibre: {fibre} is beyond the link's {link.fibre_count} fibres")
+        reference_ids: list[str] = []
+        result_ids: list[str] = []
+        warnings: list[str] = []
+        for direction in ("A->B", "B->A"):
+            reading_dbm = readings_dbm.get(direction)
+            if reading_dbm is None:
+                continue
+            record = meter_log.reuse_or_add_reference(
+                link, wavelength_nm=wavelength_nm, level_dbm=references_dbm[direction],
+                method=method, source_id=args.source, meter_id=args.meter, cords=args.cord,
+                launch_condition=args.launch, by=args.by)
+            if record.id not in reference_ids:
+                reference_ids.append(record.id)
+            result = meter_log.put_result(
+                link, fibre=fibre, wavelength_nm=wavelength_nm, direction=direction,
+                reading_dbm=reading_dbm, reference=record, limit_db=limit_db, by=args.by)
+            result_ids.append(result.id)
+            if "reference-in-doubt" in result.flags:
+                warnings.append(f"reference {record.id} is in doubt (its recheck drifted); set a "
+                                "new reference and retest")
+        out.update(job_id=job.id, link_id=link.id, link_label=link.label, fibre=fibre,
+                   reference_ids=reference_ids, result_ids=result_ids, warnings=warnings)
+
+    run_update(store, job_id, change)
+    return out

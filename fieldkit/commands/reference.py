@@ -1,0 +1,123 @@
+"""``fieldkit reference``: check a meter reference, save it into a job, or recheck it."""
+
+from __future__ import annotations
+
+import argparse
+from typing import Any
+
+from fieldkit.commands.common import CommandError, add_data_dir, print_json
+
+
+def register(subparsers: Any) -> None:
+    parser: argparse.ArgumentParser = subparsers.add_parser(
+        "reference",
+        help="check a power-meter reference, save it into a job, or recheck it for drift",
+        description="A reference level (dBm, or W, mW, µW, nW) taken by a named method. Warns "
+        "when it is several dB below what the source should deliver, and when a multimode "
+        "reference has no launch condition. With --job and --link it is saved onto the link; "
+        "with --recheck it is compared with the reference in use at that wavelength: a drift "
+        "beyond the tolerance puts the results taken since the last good reference in doubt.",
+    )
+    parser.add_argument("--level", required=True, metavar="LEVEL",
+                        help="the level the meter reads through the reference cords")
+    parser.add_argument("--wavelength", required=True, metavar="NM", help="e.g. 1310 or '850 nm'")
+    parser.add_argument("--method", default="one-cord",
+                        help="one-cord, two-cord or three-cord (TIA Method B, A or C)")
+    parser.add_argument("--launch", metavar="TEXT",
+                        help="the launch condition for multimode, e.g. 'encircled flux'")
+    parser.add_argument("--source-level", metavar="LEVEL",
+                        help="what the source should deliver (default -20 dBm multimode, -7 dBm "
+                        "single-mode; common practice)")
+    parser.add_argument("--recheck", action="store_true",
+                        help="this is the end-of-session recheck of the reference in use")
+    parser.add_argument("--tolerance", metavar="DB",
+                        help="drift tolerance for --recheck (default 0.1 dB single-mode, 0.2 dB "
+                        "multimode; common practice)")
+    from fieldkit.commands import meter_record
+
+    meter_record.add_record_options(parser, fibre=False)
+    parser.add_argument("--json", action="store_true", help="print one JSON object")
+    add_data_dir(parser)
+    parser.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    from fieldkit.calc import reference as ref
+    from fieldkit.calc.units import Kind, parse
+    from fieldkit.commands import meter_record
+
+    level_dbm = ref.level_dbm(args.level, "level")
+    wavelength_nm = parse(args.wavelength, Kind.LENGTH, default_unit="nm",
+                          what="wavelength").to("nm")
+    if not 600 <= wavelength_nm <= 1700:
+        raise CommandError(f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands "
+                           "(600-1700 nm)")
+    method = ref.parse_method(args.method)
+    source_dbm = ref.level_dbm(args.source_level, "source level") if args.source_level else None
+    tolerance_db = ref.loss_limit_db(args.tolerance, "tolerance") if args.tolerance else None
+    if tolerance_db is not None and not args.recheck:
+        raise CommandError("--tolerance goes with --recheck")
+    warnings = ref.reference_warnings(level_dbm, source_dbm=source_dbm,
+                                      wavelength_nm=wavelength_nm, launch_condition=args.launch)
+    out: dict[str, Any] = {
+        "level_dbm": level_dbm, "wavelength_nm": wavelength_nm, "method": method.value,
+        "tia_method": method.tia_letter, "end_connections_included": method.end_connections,
+        "source_level_dbm": source_dbm if source_dbm is not None
+        else ref.default_source_dbm(wavelength_nm),
+        "launch_condition": args.launch, "warnings": warnings, "saved": None,
+    }
+    if args.recheck and not meter_record.wants_record(args):
+        raise CommandError("--recheck needs --job and --link (the reference to recheck is there)")
+    if meter_record.wants_record(args):
+        out.update(_save(args, level_dbm, wavelength_nm, method, tolerance_db))
+    if args.json:
+        print_json(out)
+        return 0
+    print(f"reference  {level_dbm:.2f} dBm at {wavelength_nm:g} nm")
+    print(f"method     {method.label}: {method.end_connections} end connection(s) included")
+    if "drift_db" in out:
+        print(f"drift      {out['drift_db']:+.2f} dB (tolerance ±{out['tolerance_db']:.2f} dB)")
+        print(out["drift_message"])
+        if out["in_doubt_result_ids"]:
+            print(f"{len(out['in_doubt_result_ids'])} result(s) marked reference-in-doubt")
+    for warning in warnings:
+        print(f"warning: {warning}")
+    if out["saved"]:
+        saved = out["saved"]
+        print(f"saved into job {saved['job_id']}, link {saved['link_label']}: reference "
+              f"{saved['reference_id']}")
+    return 0
+
+
+def _save(args: argparse.Namespace, level_dbm: float, wavelength_nm: float, method: Any,
+          tolerance_db: float | None) -> dict[str, Any]:
+    from fieldkit import meter_log
+    from fieldkit.commands import meter_record
+
+    store = meter_record.open_store(args)
+    job_id = meter_record.resolve_job(store, args)
+    out: dict[str, Any] = {}
+
+    def change(job: Any) -> None:
+        out.clear()
+        if args.recheck:
+            link = meter_log.find_link(job, args.link)
+            outcome = meter_log.recheck_reference(link, wavelength_nm=wavelength_nm,
+                                                  level_dbm=level_dbm, tolerance_db=tolerance_db,
+                                                  by=args.by)
+            out.update(drift_db=outcome.drift.drift_db, tolerance_db=outcome.drift.tolerance_db,
+                       within_tolerance=outcome.drift.within, drift_message=outcome.drift.message,
+                       rechecked_reference_id=outcome.initial.id,
+                       in_doubt_result_ids=outcome.in_doubt_ids)
+            record = outcome.recheck
+        else:
+            link = meter_log.find_link(job, args.link, create=True)
+            record = meter_log.add_reference(
+                link, wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method,
+                source_id=args.source, meter_id=args.meter, cords=args.cord,
+                launch_condition=args.launch, by=args.by)
+        out["saved"] = {"job_id": job.id, "link_id": link.id, "link_label": link.label,
+                        "reference_id": record.id, "kind": record.kind}
+
+    meter_record.run_update(store, job_id, change)
+    return out

@@ -1,0 +1,204 @@
+"""``fieldkit loss`` and ``fieldkit reference`` run as a subprocess."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+
+def run(*args: str) -> subprocess.CompletedProcess[str]:
+    return subprocess.run([sys.executable, "-m", "fieldkit", *args], capture_output=True,
+                          text=True, timeout=60)
+
+
+def run_json(*args: str) -> dict:
+    proc = run(*args, "--json")
+    assert proc.returncode == 0, proc.stderr
+    return json.loads(proc.stdout)
+
+
+def test_loss_with_a_typed_limit() -> None:
+    # Hand computation: -7.20 − (-9.65) = 2.45 dB; limit 3.00 dB; margin 3.00 − 2.45 = 0.55 dB.
+    out = run_json("loss", "--reference", "-7.20", "--reading", "-9.65", "--limit", "3")
+    assert out["loss_db"] == pytest.approx(2.45, abs=1e-9)
+    assert out["limit_db"] == pytest.approx(3.0, abs=1e-12)
+    assert out["margin_db"] == pytest.approx(0.55, abs=1e-9)
+    assert out["pass"] is True and out["status"] == "pass"
+    assert out["average_db"] is None
+    assert out["warnings"] == []
+
+
+def test_loss_in_linear_units_and_both_directions() -> None:
+    # ITU-R V.574: 100 µW = -10 dBm, 10 µW = -20 dBm, 12.5 µW = -19.0309 dBm.
+    # A->B: -10 − (-20) = 10.00 dB; B->A: 10·log10(100/12.5) = 9.0309 dB; mean 9.51545 dB.
+    out = run_json("loss", "--reference", "100 uW", "--reading", "10 µW",
+                   "--reading-back", "12.5 uW", "--limit", "9.5")
+    assert out["loss_db"] == pytest.approx(10.0, abs=1e-9)
+    assert out["loss_back_db"] == pytest.approx(9.03090, abs=1e-5)
+    assert out["average_db"] == pytest.approx(9.51545, abs=1e-5)
+    assert out["pass"] is False and out["status"] == "fail"
+    assert out["margin_db"] == pytest.approx(9.5 - 10.0, abs=1e-9)
+
+
+def test_negative_loss_is_never_a_pass() -> None:
+    out = run_json("loss", "--reference", "-7.2", "--reading", "-6.9", "--limit", "3")
+    assert out["loss_db"] == pytest.approx(-0.3, abs=1e-9)
+    assert out["pass"] is None and out["status"] == "reference-problem"
+    assert "negative-loss" in out["flags"]
+    assert any("reference" in w for w in out["warnings"])
+    text = run("loss", "--reference", "-7.2", "--reading", "-6.9", "--limit", "3")
+    assert "REFERENCE PROBLEM" in text.stdout and "PASS\n" not in text.stdout
+
+
+@pytest.mark.parametrize(
+    ("method", "end_connections"),
+    # IEC 61280-4-1 / TIA-526-14-B (from memory): one-cord = B = 2, two-cord = A = 1,
+    # three-cord = C = 0 end connections.
+    [("one-cord", 2), ("B", 2), ("two-cord", 1), ("Method A", 1), ("three-cord", 0), ("C", 0)],
+)
+def test_method_and_end_connections(method: str, end_connections: int) -> None:
+    out = run_json("loss", "--reference", "-7", "--reading", "-8", "--method", method)
+    assert out["end_connections_included"] == end_connections
+    assert out["status"] == "no-limit" and out["pass"] is None
+
+
+def test_plausibility_warning_for_a_weak_reference() -> None:
+    # Typical single-mode source -7 dBm (common practice): -12 dBm is 5.0 dB below it.
+    out = run_json("loss", "--reference", "-12", "--reading", "-13", "--wavelength", "1310")
+    assert any("5.0 dB below" in w and "clean" in w for w in out["warnings"])
+    out = run_json("loss", "--reference", "-12", "--reading", "-13", "--wavelength", "1310",
+                   "--source-level", "-11")
+    assert out["warnings"] == []
+
+
+@pytest.mark.parametrize(
+    ("args", "problem"),
+    [
+        (["--reference", "5 km", "--reading", "-8"], "reference"),
+        (["--reference", "-7", "--reading", "0 mW"], "reading"),
+        (["--reference", "-7", "--reading", "-8", "--method", "four-cord"], "method"),
+        (["--reference", "-7", "--reading", "-8", "--limit", "-1"], "limit"),
+        (["--reference", "-7", "--reading", "-8", "--limit", "1,234"], "ambiguous"),
+        (["--reference", "-7", "--reading", "-8", "--wavelength", "5"], "wavelength"),
+        (["--reference", "-7", "--reading", "-8", "--reference-back", "-7"], "--reading-back"),
+        (["--reference", "-7", "--reading", "-8", "--fibre", "2"], "--job and --link"),
+    ],
+)
+def test_bad_input_exits_2_with_one_line(args: list[str], problem: str) -> None:
+    proc = run("loss", *args)
+    assert proc.returncode == 2
+    assert problem in proc.stderr
+    assert len(proc.stderr.strip().splitlines()) == 1
+    assert "Traceback" not in proc.stderr
+
+
+def _new_job(data: Path) -> str:
+    from fieldkit.jobs.store import JobStore
+
+    return JobStore(data / "jobs").create("Campus trunk").id
+
+
+def test_reference_and_results_recorded_into_a_job(isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    job_id = _new_job(isolated_dirs["data"])
+    saved = run_json("reference", "--job", job_id[:8], "--link", "Trunk 1", "--wavelength",
+                     "1310", "--level", "-7.20", "--method", "two-cord", "--source", "LS-1",
+                     "--meter", "PM-7", "--cord", "TC-1", "--cord", "TC-2", "--by", "Ana")
+    reference_id = saved["saved"]["reference_id"]
+    out = run_json("loss", "--job", job_id, "--link", "trunk 1", "--fibre", "3", "--wavelength",
+                   "1310", "--reference", "-7.20", "--reading", "-8.40", "--reading-back",
+                   "-8.60", "--method", "two-cord", "--limit", "1.3", "--by", "Ana")
+    assert out["saved"]["reference_ids"] == [reference_id]  # the same reference, reused
+    job = JobStore(isolated_dirs["data"] / "jobs").load(job_id)
+    (link,) = job.links
+    assert link.label == "Trunk 1"
+    (reference,) = link.references
+    assert (reference.level_dbm, reference.method, reference.source_id, reference.meter_id,
+            reference.cords, reference.by) == (-7.2, "two-cord", "LS-1", "PM-7",
+                                               ["TC-1", "TC-2"], "Ana")
+    by_direction = {r.direction: r for r in link.results}
+    # -7.20 − (-8.40) = 1.20 dB passes 1.3; -7.20 − (-8.60) = 1.40 dB fails.
+    assert by_direction["A->B"].loss_db == pytest.approx(1.20, abs=1e-9)
+    assert by_direction["A->B"].passed is True
+    assert by_direction["B->A"].loss_db == pytest.approx(1.40, abs=1e-9)
+    assert by_direction["B->A"].passed is False
+    assert {r.reference_id for r in link.results} == {reference_id}
+    assert all(r.fibre == 3 and r.wavelength_nm == 1310 and r.limit_db == 1.3
+               for r in link.results)
+
+    # A correction replaces the cell instead of adding a second result.
+    run_json("loss", "--job", job_id, "--link", "Trunk 1", "--fibre", "3", "--wavelength",
+             "1310", "--reference", "-7.20", "--reading", "-8.30", "--method", "two-cord")
+    link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
+    assert len(link.results) == 2
+    assert {r.direction: r.loss_db for r in link.results}["A->B"] == pytest.approx(1.1, abs=1e-9)
+
+
+def test_recheck_beyond_tolerance_puts_results_in_doubt(isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    job_id = _new_job(isolated_dirs["data"])
+    run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
+             "--level", "-7.00")
+    for fibre in ("1", "2"):
+        run_json("loss", "--job", job_id, "--link", "L1", "--fibre", fibre, "--wavelength",
+                 "1550", "--reference", "-7.00", "--reading", "-8.0")
+    # Within: -7.05 − (-7.00) = -0.05 dB, inside 0.1 dB (single-mode, common practice).
+    good = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
+                    "--level", "-7.05", "--recheck")
+    assert good["within_tolerance"] is True and good["in_doubt_result_ids"] == []
+    # Beyond: -7.25 − (-7.00) = -0.25 dB.
+    bad = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
+                   "--level", "-7.25", "--recheck")
+    assert bad["drift_db"] == pytest.approx(-0.25, abs=1e-9)
+    assert bad["within_tolerance"] is False
+    # The results were taken before the good recheck: only those after it would be in doubt.
+    assert bad["in_doubt_result_ids"] == []
+    # With an edited tolerance of 0.3 dB the same drift is within.
+    edited = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
+                      "--level", "-7.25", "--recheck", "--tolerance", "0.3")
+    assert edited["within_tolerance"] is True
+    job = JobStore(isolated_dirs["data"] / "jobs").load(job_id)
+    kinds = [r.kind for r in job.links[0].references]
+    assert kinds == ["initial", "recheck", "recheck", "recheck"]
+
+
+def test_recheck_marks_results_since_the_initial_reference(isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.models import result_in_doubt
+    from fieldkit.jobs.store import JobStore
+
+    job_id = _new_job(isolated_dirs["data"])
+    run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "850",
+             "--level", "-20.0", "--launch", "encircled flux")
+    run_json("loss", "--job", job_id, "--link", "L1", "--fibre", "1", "--wavelength", "850",
+             "--reference", "-20.0", "--reading", "-21.5")
+    # Multimode tolerance 0.2 dB (common practice): -20.3 − (-20.0) = -0.3 dB is beyond.
+    bad = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "850",
+                   "--level", "-20.3", "--recheck")
+    assert bad["tolerance_db"] == pytest.approx(0.2, abs=1e-12)
+    assert len(bad["in_doubt_result_ids"]) == 1
+    link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
+    (result,) = link.results
+    assert "reference-in-doubt" in result.flags and result_in_doubt(link, result)
+    assert link.references[0].in_doubt_since == link.references[0].at
+
+
+def test_recording_errors_exit_2(isolated_dirs: dict[str, Path]) -> None:
+    job_id = _new_job(isolated_dirs["data"])
+    proc = run("reference", "--job", job_id, "--link", "L9", "--wavelength", "1310",
+               "--level", "-7", "--recheck")
+    assert proc.returncode == 2 and "no link" in proc.stderr
+    proc = run("loss", "--job", "ffffff", "--link", "L1", "--fibre", "1", "--wavelength", "1310",
+               "--reference", "-7", "--reading", "-8")
+    assert proc.returncode == 2 and "no job" in proc.stderr
+    proc = run("loss", "--job", job_id, "--link", "L1", "--fibre", "0", "--wavelength", "1310",
+               "--reference", "-7", "--reading", "-8")
+    assert proc.returncode == 2 and "fibre" in proc.stderr
+    proc = run("loss", "--job", job_id, "--link", "L1", "--fibre", "1",
+               "--reference", "-7", "--reading", "-8")
+    assert proc.returncode == 2 and "--wavelength" in proc.stderr
