@@ -673,7 +673,8 @@ def locate(inp: LocateInput) -> Location:
                 "total length and that both ends saw the same event before using either.")
         if two.from_a_m > two.total_m:
             warnings.append("The reading from A is beyond the total length.")
-        warnings += _position_warnings(two.combined, "Combined estimate: ")
+        warnings += [w for w in _position_warnings(two.combined, "Combined estimate: ")
+                     if w.removeprefix("Combined estimate: ") not in warnings]
     if inp.marking is not None and position.marking is not None:
         if position.marking.value < 0:
             warnings.append("The marking counts down past zero before the fault: check the "
