@@ -21,6 +21,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.levels",
     "fieldkit.commands.loss",
     "fieldkit.commands.reference",
+    "fieldkit.commands.locate",
 )
 
 
