@@ -1,0 +1,486 @@
+"""Customer reports of a job: CSV, Markdown, self-contained HTML, and the JSON hand-off.
+
+The Markdown and HTML reports are rendered from one :class:`Report` (sections of paragraphs and
+tables), so both say the same thing: a summary per link and wavelength, failures first, the
+results, references, budgets, splices, located faults, notes, and the safety lines.
+
+Counting rule: a retest supersedes. For each link, fibre, wavelength and direction the latest
+result counts in the summary; every result is still listed in the tables and the CSV. A fibre
+fails at a wavelength when its latest result in either direction fails, passes when every
+latest result has a limit and passes, and is "no limit" otherwise.
+
+Times in reports are UTC, written ``2026-03-14 09:30 UTC``, so a report reads the same on any
+laptop.
+"""
+
+from __future__ import annotations
+
+import csv
+import html
+import io
+import json
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from typing import Any
+
+from fieldkit import safety
+from fieldkit.jobs.models import SCHEMA_VERSION, Job, Link, LossResult, result_in_doubt
+
+HANDOFF_FORMAT = "fieldkit-jobs-handoff"
+HANDOFF_VERSION = 1
+
+
+# -- numbers and times --------------------------------------------------------------------
+def fmt_time(moment: datetime | None) -> str:
+    if moment is None:
+        return ""
+    return moment.astimezone(UTC).strftime("%Y-%m-%d %H:%M UTC")
+
+
+def fmt_db(value: float | None) -> str:
+    """A level or loss to 0.01 dB (the resolution of a field power meter), or ''."""
+    if value is None:
+        return ""
+    text = f"{value:.2f}"
+    return "0.00" if text == "-0.00" else text
+
+
+def fmt_nm(value: float) -> str:
+    return f"{value:.0f}" if float(value).is_integer() else f"{value:g}"
+
+
+def fmt_m(value: float | None) -> str:
+    if value is None:
+        return ""
+    return f"{value:.1f}"
+
+
+def verdict(result: LossResult) -> str:
+    if result.passed is None:
+        return "no limit"
+    return "pass" if result.passed else "FAIL"
+
+
+# -- what the reports count -----------------------------------------------------------------
+def latest_results(link: Link) -> list[LossResult]:
+    """The latest result of each fibre, wavelength and direction (a retest supersedes)."""
+    latest: dict[tuple[int, float, str], LossResult] = {}
+    for result in link.results:
+        key = (result.fibre, round(result.wavelength_nm, 1), result.direction)
+        if key not in latest or result.at >= latest[key].at:
+            latest[key] = result
+    return sorted(latest.values(), key=lambda r: (r.wavelength_nm, r.fibre, r.direction))
+
+
+@dataclass(frozen=True, slots=True)
+class WavelengthSummary:
+    link_id: str
+    link_label: str
+    wavelength_nm: float
+    tested: int
+    passed: int
+    failed: int
+    no_limit: int
+    in_doubt: int
+
+    def as_dict(self) -> dict[str, Any]:
+        return {"link_id": self.link_id, "link": self.link_label,
+                "wavelength_nm": self.wavelength_nm, "fibres_tested": self.tested,
+                "passed": self.passed, "failed": self.failed, "no_limit": self.no_limit,
+                "in_doubt": self.in_doubt}
+
+
+def link_summary(link: Link) -> list[WavelengthSummary]:
+    """Fibres tested, passed, failed, without a limit, and in doubt, per wavelength."""
+    by_wavelength: dict[float, dict[int, list[LossResult]]] = {}
+    for result in latest_results(link):
+        by_wavelength.setdefault(result.wavelength_nm, {}).setdefault(result.fibre, []).append(
+            result)
+    rows = []
+    for wavelength_nm in sorted(by_wavelength):
+        fibres = by_wavelength[wavelength_nm]
+        failed = sum(any(r.passed is False for r in rs) for rs in fibres.values())
+        passed = sum(all(r.passed is True for r in rs) for rs in fibres.values())
+        doubt = sum(any(result_in_doubt(link, r) for r in rs) for rs in fibres.values())
+        rows.append(WavelengthSummary(link.id, link.label, wavelength_nm, len(fibres), passed,
+                                      failed, len(fibres) - passed - failed, doubt))
+    return rows
+
+
+def job_summary(job: Job) -> list[WavelengthSummary]:
+    return [row for link in job.links for row in link_summary(link)]
+
+
+def failures(job: Job) -> list[tuple[Link, LossResult]]:
+    """Latest results that fail their limit, link by link."""
+    return [(link, r) for link in job.links for r in latest_results(link) if r.passed is False]
+
+
+def in_doubt(job: Job) -> list[tuple[Link, LossResult]]:
+    """Latest results taken against a reference that is in doubt."""
+    return [(link, r) for link in job.links for r in latest_results(link)
+            if result_in_doubt(link, r)]
+
+
+def safety_lines(job: Job) -> list[str]:
+    """The cautions that belong in this job's report."""
+    lines = [safety.INVISIBLE_LIGHT]
+    if any(link.splices for link in job.links):
+        lines.append(safety.GLASS_SHARDS)
+    if any(link.faults for link in job.links):
+        lines.append(safety.DIGGING)
+    lines.append(safety.DEFER)
+    return lines
+
+
+# -- the report as data ----------------------------------------------------------------------
+@dataclass
+class Table:
+    headers: list[str]
+    rows: list[list[str]]
+    #: Per row: "fail", "doubt" or "" (the HTML marks those rows; the text says it too).
+    marks: list[str] = field(default_factory=list)
+    numeric: set[int] = field(default_factory=set)
+
+
+@dataclass
+class Section:
+    title: str
+    level: int = 2
+    paragraphs: list[str] = field(default_factory=list)
+    tables: list[Table] = field(default_factory=list)
+
+
+@dataclass
+class Report:
+    title: str
+    facts: list[tuple[str, str]]
+    sections: list[Section]
+
+
+def _result_rows(link: Link, results: Iterable[LossResult]) -> Table:
+    table = Table(["Fibre", "λ nm", "Direction", "Reading dBm", "Loss dB", "Limit dB",
+                   "Margin dB", "Result", "Flags", "Method", "Reference", "By", "When"], [],
+                  numeric={0, 1, 3, 4, 5, 6})
+    for r in results:
+        margin = None if r.limit_db is None else r.limit_db - r.loss_db
+        doubt = result_in_doubt(link, r)
+        flags = list(r.flags)
+        if doubt and "reference-in-doubt" not in flags:
+            flags.append("reference-in-doubt")
+        table.rows.append([str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
+                           fmt_db(r.reading_dbm), fmt_db(r.loss_db), fmt_db(r.limit_db),
+                           fmt_db(margin), verdict(r), ", ".join(flags), r.method,
+                           r.reference_id or "", r.by, fmt_time(r.at)])
+        table.marks.append("fail" if r.passed is False else "doubt" if doubt else "")
+    return table
+
+
+def build_report(job: Job) -> Report:
+    """The content of the Markdown and HTML reports of a job."""
+    facts = [("Job", job.name), ("Job id", job.id), ("Customer", job.customer),
+             ("Site", job.site), ("Crew", ", ".join(job.crew)), ("Status", job.status),
+             ("Created", fmt_time(job.created_at)), ("Updated", fmt_time(job.updated_at))]
+    sections: list[Section] = []
+
+    summary = Table(["Link", "λ nm", "Fibres tested", "Passed", "Failed", "No limit",
+                     "In doubt"], [], numeric={1, 2, 3, 4, 5, 6})
+    for row in job_summary(job):
+        summary.rows.append([row.link_label, fmt_nm(row.wavelength_nm), str(row.tested),
+                             str(row.passed), str(row.failed), str(row.no_limit),
+                             str(row.in_doubt)])
+        summary.marks.append("fail" if row.failed else "doubt" if row.in_doubt else "")
+    sec = Section("Summary", tables=[summary] if summary.rows else [])
+    total = sum(len(link.results) for link in job.links)
+    sec.paragraphs.append(
+        f"{len(job.links)} links, {total} results recorded. Counts are per fibre, from the "
+        "latest result in each direction (a retest supersedes an earlier result).")
+    sections.append(sec)
+
+    failed = failures(job)
+    sec = Section("Failures")
+    if failed:
+        table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Limit dB",
+                       "Margin dB", "Flags"], [], numeric={1, 2, 4, 5, 6})
+        for link, r in failed:
+            margin = None if r.limit_db is None else r.limit_db - r.loss_db
+            table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
+                               fmt_db(r.loss_db), fmt_db(r.limit_db), fmt_db(margin),
+                               ", ".join(r.flags)])
+            table.marks.append("fail")
+        sec.tables.append(table)
+    else:
+        sec.paragraphs.append("No result fails its limit.")
+    sections.append(sec)
+
+    doubt = in_doubt(job)
+    if doubt:
+        sec = Section("Results against a reference in doubt")
+        sec.paragraphs.append(
+            f"{len(doubt)} results were taken against a reference whose re-check drifted "
+            "beyond the tolerance: retest them against a fresh reference.")
+        table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Reference"], [],
+                      numeric={1, 2, 4})
+        for link, r in doubt:
+            table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
+                               fmt_db(r.loss_db), r.reference_id or ""])
+            table.marks.append("doubt")
+        sec.tables.append(table)
+        sections.append(sec)
+
+    for link in job.links:
+        sections.extend(_link_sections(link))
+
+    sec = Section("Notes")
+    if job.notes:
+        table = Table(["When", "By", "Note"], [])
+        for note in job.notes:
+            table.rows.append([fmt_time(note.at), note.by, note.text])
+        sec.tables.append(table)
+    else:
+        sec.paragraphs.append("No notes.")
+    sections.append(sec)
+
+    sections.append(Section("Safety and disclaimer", paragraphs=safety_lines(job)))
+    return Report(f"Job report: {job.name}", facts, sections)
+
+
+def _link_sections(link: Link) -> list[Section]:
+    out = [Section(f"Link {link.label}", paragraphs=[_link_line(link)])]
+    if link.budget is not None:
+        b = link.budget
+        sec = Section(f"{link.label}: loss budget", level=3)
+        sec.paragraphs.append(f"Computed {fmt_time(b.computed_at)}"
+                              + (f" by {b.by}" if b.by else "")
+                              + f"; design margin {fmt_db(b.margin_db)} dB.")
+        table = Table(["λ nm", "Maximum loss dB", "Typical loss dB", "With margin dB"], [],
+                      numeric={0, 1, 2, 3})
+        items = Table(["λ nm", "Item", "Loss dB", "Source"], [], numeric={0, 2})
+        for row in b.wavelengths:
+            table.rows.append([fmt_nm(row.wavelength_nm), fmt_db(row.loss_db),
+                               fmt_db(row.typical_loss_db), fmt_db(row.loss_db + b.margin_db)])
+            for item in row.items:
+                items.rows.append([fmt_nm(row.wavelength_nm), item.name, fmt_db(item.loss_db),
+                                   item.source])
+        sec.tables.append(table)
+        if items.rows:
+            sec.tables.append(items)
+        for what, data in (("Application", b.application), ("Transceiver", b.transceiver)):
+            if data:
+                sec.paragraphs.append(f"{what}: " + "; ".join(
+                    f"{k} {_plain(v)}" for k, v in data.items()))
+        out.append(sec)
+    if link.results:
+        sec = Section(f"{link.label}: results", level=3)
+        ordered = sorted(link.results, key=lambda r: (r.wavelength_nm, r.fibre, r.direction,
+                                                      r.at))
+        sec.tables.append(_result_rows(link, ordered))
+        out.append(sec)
+    if link.references:
+        sec = Section(f"{link.label}: references", level=3)
+        table = Table(["Id", "Kind", "λ nm", "Level dBm", "Method", "Drift dB", "Cords",
+                       "Launch", "Source", "Meter", "By", "When", "In doubt since"], [],
+                      numeric={2, 3, 5})
+        for ref in link.references:
+            table.rows.append([ref.id, ref.kind, fmt_nm(ref.wavelength_nm),
+                               fmt_db(ref.level_dbm), ref.method, fmt_db(ref.drift_db),
+                               ", ".join(ref.cords), ref.launch_condition or "", ref.source_id,
+                               ref.meter_id, ref.by, fmt_time(ref.at),
+                               fmt_time(ref.in_doubt_since)])
+            table.marks.append("doubt" if ref.in_doubt_since else "")
+        sec.tables.append(table)
+        out.append(sec)
+    if link.splices:
+        sec = Section(f"{link.label}: splices", level=3)
+        table = Table(["Fibre", "Loss dB", "Estimate", "By", "When"], [], numeric={0, 1})
+        for sp in link.splices:
+            table.rows.append([str(sp.fibre), fmt_db(sp.loss_db), sp.estimate, sp.by,
+                               fmt_time(sp.at)])
+        sec.tables.append(table)
+        out.append(sec)
+    if link.faults:
+        sec = Section(f"{link.label}: located faults", level=3)
+        table = Table(["Fibre distance m", "Sheath distance m", "Route distance m",
+                       "Search from m", "Search to m", "Nearest landmark", "Offset m",
+                       "Marking", "By", "When", "Notes"], [], numeric={0, 1, 2, 3, 4, 6})
+        for f in link.faults:
+            table.rows.append([fmt_m(f.fiber_distance_m), fmt_m(f.sheath_distance_m),
+                               fmt_m(f.route_distance_m), fmt_m(f.low_m), fmt_m(f.high_m),
+                               f.nearest_landmark or "", fmt_m(f.offset_from_landmark_m),
+                               f.marking or "", f.by, fmt_time(f.at), f.notes])
+        sec.tables.append(table)
+        out.append(sec)
+    return out
+
+
+def _link_line(link: Link) -> str:
+    parts = []
+    if link.end_a or link.end_b:
+        parts.append(f"from {link.end_a or '?'} to {link.end_b or '?'}")
+    if link.fibre_type:
+        parts.append(f"fibre {link.fibre_type}")
+    if link.length_m is not None:
+        parts.append(f"length {fmt_m(link.length_m)} m")
+    if link.fibre_count is not None:
+        parts.append(f"{link.fibre_count} fibres")
+    return ("; ".join(parts) or "no details recorded") + "."
+
+
+def _plain(value: Any) -> str:
+    if isinstance(value, float):
+        return f"{value:g}"
+    if isinstance(value, dict | list):
+        return json.dumps(value, ensure_ascii=False, sort_keys=True)
+    return str(value)
+
+
+# -- Markdown ---------------------------------------------------------------------------------
+def _md_cell(text: str) -> str:
+    text = html.escape(text, quote=False).replace("|", "\\|")
+    return " ".join(text.split()) if text else ""
+
+
+def to_markdown(job: Job) -> str:
+    report = build_report(job)
+    out = [f"# {_md_cell(report.title)}", ""]
+    for key, value in report.facts:
+        if value:
+            out.append(f"- **{key}:** {_md_cell(value)}")
+    out.append("")
+    for sec in report.sections:
+        out += [f"{'#' * sec.level} {_md_cell(sec.title)}", ""]
+        for para in sec.paragraphs:
+            out += [_md_cell(para), ""]
+        for table in sec.tables:
+            out.append("| " + " | ".join(table.headers) + " |")
+            out.append("| " + " | ".join("---:" if i in table.numeric else "---"
+                                         for i in range(len(table.headers))) + " |")
+            for row in table.rows:
+                out.append("| " + " | ".join(_md_cell(c) for c in row) + " |")
+            out.append("")
+    return "\n".join(out).rstrip() + "\n"
+
+
+# -- HTML -------------------------------------------------------------------------------------
+_CSS = """
+@page { margin: 14mm 12mm; }
+html { font-family: sans-serif; font-size: 10pt; color: #111; background: #fff; }
+body { margin: 0 auto; max-width: 60em; padding: 1em; }
+h1 { font-size: 16pt; margin: 0 0 .4em; }
+h2 { font-size: 13pt; margin: 1.2em 0 .4em; border-bottom: 1px solid #888; }
+h3 { font-size: 11pt; margin: 1em 0 .3em; }
+dl.facts { display: grid; grid-template-columns: max-content 1fr; gap: .1em 1em; }
+dl.facts dt { font-weight: bold; } dl.facts dd { margin: 0; }
+table { border-collapse: collapse; width: 100%; margin: .3em 0 .8em; font-size: 9pt; }
+th, td { border: 1px solid #999; padding: .15em .35em; text-align: left;
+         vertical-align: top; overflow-wrap: anywhere; }
+th { background: #eee; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+tr.fail td { background: #fde2e2; font-weight: bold; }
+tr.doubt td { background: #fff3cd; font-style: italic; }
+thead { display: table-header-group; }
+tr { break-inside: avoid; page-break-inside: avoid; }
+h2, h3 { break-after: avoid; page-break-after: avoid; }
+.safety p { margin: .3em 0; }
+@media print {
+  body { max-width: none; padding: 0; }
+  tr.fail td, tr.doubt td, th { -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+}
+"""
+
+
+def to_html(job: Job) -> str:
+    """A self-contained HTML report (no external files, no scripts) that prints on A4/Letter."""
+    report = build_report(job)
+    e = html.escape
+    out = ["<!DOCTYPE html>", '<html lang="en">', "<head>", '<meta charset="utf-8">',
+           '<meta name="viewport" content="width=device-width, initial-scale=1">',
+           f"<title>{e(report.title)}</title>", f"<style>{_CSS}</style>", "</head>", "<body>",
+           f"<h1>{e(report.title)}</h1>", '<dl class="facts">']
+    for key, value in report.facts:
+        if value:
+            out.append(f"<dt>{e(key)}</dt><dd>{e(value)}</dd>")
+    out.append("</dl>")
+    for sec in report.sections:
+        css = ' class="safety"' if sec.title.startswith("Safety") else ""
+        out.append(f"<section{css}>")
+        out.append(f"<h{sec.level}>{e(sec.title)}</h{sec.level}>")
+        for para in sec.paragraphs:
+            out.append(f"<p>{e(para)}</p>")
+        for table in sec.tables:
+            out.append("<table>")
+            out.append("<thead><tr>" + "".join(f"<th>{e(h)}</th>" for h in table.headers)
+                       + "</tr></thead>")
+            out.append("<tbody>")
+            for i, row in enumerate(table.rows):
+                mark = table.marks[i] if i < len(table.marks) else ""
+                cls = f' class="{mark}"' if mark else ""
+                cells = "".join(
+                    f'<td class="num">{e(c)}</td>' if j in table.numeric else f"<td>{e(c)}</td>"
+                    for j, c in enumerate(row))
+                out.append(f"<tr{cls}>{cells}</tr>")
+            out.append("</tbody></table>")
+        out.append("</section>")
+    out += ["</body>", "</html>"]
+    return "\n".join(out) + "\n"
+
+
+# -- CSV --------------------------------------------------------------------------------------
+CSV_HEADERS = ["job", "job_id", "link", "fibre", "wavelength_nm", "direction", "reading_dbm",
+               "loss_db", "limit_db", "margin_db", "result", "flags", "reference_id",
+               "reference_level_dbm", "method", "by", "at_utc"]
+
+
+def _text_cell(text: str) -> str:
+    # A cell starting with = + - @ is run as a formula by spreadsheets: keep it text.
+    if text[:1] in ("=", "+", "-", "@", "\t", "\r"):
+        return "'" + text
+    return text
+
+
+def to_csv(job: Job) -> str:
+    """One row per result; opens cleanly in a spreadsheet (RFC 4180, CRLF line ends)."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\r\n")
+    writer.writerow(CSV_HEADERS)
+    for link in job.links:
+        for r in link.results:
+            ref = link.reference(r.reference_id)
+            flags = list(r.flags)
+            if result_in_doubt(link, r) and "reference-in-doubt" not in flags:
+                flags.append("reference-in-doubt")
+            margin = None if r.limit_db is None else r.limit_db - r.loss_db
+            writer.writerow([
+                _text_cell(job.name), job.id, _text_cell(link.label), r.fibre,
+                fmt_nm(r.wavelength_nm), r.direction, fmt_db(r.reading_dbm), fmt_db(r.loss_db),
+                fmt_db(r.limit_db), fmt_db(margin), verdict(r).lower(), ";".join(flags),
+                r.reference_id or "", fmt_db(ref.level_dbm if ref else None), r.method,
+                _text_cell(r.by), r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
+            ])
+    return buffer.getvalue()
+
+
+# -- JSON hand-off -----------------------------------------------------------------------------
+def to_handoff(jobs: Iterable[Job]) -> str:
+    """A JSON file that ``fieldkit jobs import`` on another laptop merges without duplicates."""
+    data = {"format": HANDOFF_FORMAT, "handoff_version": HANDOFF_VERSION,
+            "schema_version": SCHEMA_VERSION,
+            "jobs": [job.model_dump(mode="json") for job in jobs]}
+    return json.dumps(data, ensure_ascii=False, indent=1, allow_nan=False) + "\n"
+
+
+def export(job: Job, fmt: str) -> str:
+    """The job in one of the export formats: csv, md, html or json."""
+    if fmt == "csv":
+        return to_csv(job)
+    if fmt == "md":
+        return to_markdown(job)
+    if fmt == "html":
+        return to_html(job)
+    if fmt == "json":
+        return to_handoff([job])
+    raise ValueError(f"unknown export format {fmt!r} (csv, md, html or json)")
+
+
+EXPORT_FORMATS = ("csv", "md", "html", "json")
