@@ -22,6 +22,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.loss",
     "fieldkit.commands.reference",
     "fieldkit.commands.locate",
+    "fieldkit.commands.jobs",
 )
 
 
