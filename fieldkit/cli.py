@@ -39,10 +39,15 @@ def build_parser() -> argparse.ArgumentParser:
         "the terminal UI.",
     )
     parser.add_argument("--version", action="version", version=f"fieldkit {__version__}")
-    parser.add_argument("--data-dir", help="folder for job data (default: the platform data folder; "
-                        "or $FIELDKIT_DATA_DIR)")
-    parser.add_argument("--config-dir", help="folder for settings and user presets (default: the "
-                        "platform config folder; or $FIELDKIT_CONFIG_DIR)")
+    parser.add_argument(
+        "--data-dir",
+        help="folder for job data (default: the platform data folder; or $FIELDKIT_DATA_DIR)",
+    )
+    parser.add_argument(
+        "--config-dir",
+        help="folder for settings and user presets (default: the "
+        "platform config folder; or $FIELDKIT_CONFIG_DIR)",
+    )
     subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name in COMMAND_MODULES:
         importlib.import_module(name).register(subparsers)

@@ -41,8 +41,11 @@ def related_values(value: Value) -> list[tuple[str, float]]:
     if value.kind is Kind.LENGTH and _is_optical_wavelength(value):
         rows = [("nm", convert(value, "nm")), ("THz", convert_to(value, "THz")[0])]
     elif value.kind is Kind.FREQUENCY:
-        rows = [("THz", convert(value, "THz")), ("GHz", convert(value, "GHz")),
-                ("nm", convert_to(value, "nm")[0])]
+        rows = [
+            ("THz", convert(value, "THz")),
+            ("GHz", convert(value, "GHz")),
+            ("nm", convert_to(value, "nm")[0]),
+        ]
     return rows
 
 

@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from enum import Enum
+from enum import StrEnum
 from functools import cache
 from typing import TYPE_CHECKING, Any
 
@@ -25,7 +25,7 @@ class InputError(ValueError):
     """Typed input that fieldkit will not guess about. The message says why."""
 
 
-class Kind(str, Enum):
+class Kind(StrEnum):
     """What a typed value measures."""
 
     POWER = "power"  # an optical power: a level in dBm/dBW or a linear power in W, mW, µW, nW
@@ -56,7 +56,7 @@ def ureg() -> pint.UnitRegistry:
     import pint
 
     try:
-        registry = pint.UnitRegistry(cache_folder=":auto:")
+        registry: pint.UnitRegistry = pint.UnitRegistry(cache_folder=":auto:")
     except Exception:  # a read-only or broken cache folder must not stop the tool
         registry = pint.UnitRegistry()
     return registry
@@ -93,13 +93,29 @@ _LINEAR_UNITS: dict[str, tuple[Kind, str]] = {
 
 # Words people type for the same units.
 _UNIT_WORDS: dict[str, str] = {
-    "meter": "m", "meters": "m", "metre": "m", "metres": "m",
-    "kilometer": "km", "kilometers": "km", "kilometre": "km", "kilometres": "km",
-    "foot": "ft", "feet": "ft", "'": "ft",
-    "kilofeet": "kft", "kilofoot": "kft",
-    "mile": "mi", "miles": "mi",
-    "watt": "W", "watts": "W", "milliwatt": "mW", "milliwatts": "mW",
-    "microwatt": "uW", "microwatts": "uW", "nanowatt": "nW", "nanowatts": "nW",
+    "meter": "m",
+    "meters": "m",
+    "metre": "m",
+    "metres": "m",
+    "kilometer": "km",
+    "kilometers": "km",
+    "kilometre": "km",
+    "kilometres": "km",
+    "foot": "ft",
+    "feet": "ft",
+    "'": "ft",
+    "kilofeet": "kft",
+    "kilofoot": "kft",
+    "mile": "mi",
+    "miles": "mi",
+    "watt": "W",
+    "watts": "W",
+    "milliwatt": "mW",
+    "milliwatts": "mW",
+    "microwatt": "uW",
+    "microwatts": "uW",
+    "nanowatt": "nW",
+    "nanowatts": "nW",
 }
 
 # Units for which the case of the first letter changes the meaning (milli vs mega, pico vs peta).
@@ -183,7 +199,7 @@ def _split_number(text: str, what: str) -> tuple[float, str]:
     number = float(match.group(0))
     if not math.isfinite(number):
         raise InputError(f"{what}: '{match.group(0)}' is too large to be a value")
-    return number, text[match.end():].strip()
+    return number, text[match.end() :].strip()
 
 
 _COMMA_NUMBER = re.compile(r"^([+-]?\d*),(\d+)(?![\d.,])")
@@ -208,7 +224,7 @@ def _fold_decimal_comma(text: str, what: str) -> str:
             f"{what}: '{digits}' is ambiguous: a decimal comma or a thousands separator? "
             "Type it with a decimal point"
         )
-    return f"{whole}.{frac}" + text[match.end():]
+    return f"{whole}.{frac}" + text[match.end() :]
 
 
 def canonical_unit(unit_text: str, what: str = "value") -> tuple[Kind, str]:
@@ -227,16 +243,20 @@ def canonical_unit(unit_text: str, what: str = "value") -> tuple[Kind, str]:
         raise InputError(f"{what}: no unit; type one, e.g. dBm, dB, km")
     low = unit.lower()
     if low in ("dbm", "dbw", "db"):
-        return (Kind.POWER if low != "db" else Kind.RATIO), {"dbm": "dBm", "dbw": "dBW", "db": "dB"}[
-            low
-        ]
+        return (Kind.POWER if low != "db" else Kind.RATIO), {
+            "dbm": "dBm",
+            "dbw": "dBW",
+            "db": "dB",
+        }[low]
     if low == "%":
         return Kind.RATIO, "%"
     if low.startswith("db/") or low.startswith("dbper"):
         length = unit[3:] if low.startswith("db/") else unit[5:]
         kind, length_unit = canonical_unit(length, what)
         if kind is not Kind.LENGTH:
-            raise InputError(f"{what}: an attenuation coefficient needs a length after 'dB/', not '{length}'")
+            raise InputError(
+                f"{what}: an attenuation coefficient needs a length after 'dB/', not '{length}'"
+            )
         return Kind.ATTENUATION, f"dB/{length_unit}"
     if low in _UNIT_WORDS:
         unit = _UNIT_WORDS[low]
@@ -246,7 +266,10 @@ def canonical_unit(unit_text: str, what: str = "value") -> tuple[Kind, str]:
     if len(matches) == 1:
         canonical = matches[0]
         typed_first, canon_first = unit[0], canonical[0]
-        if canon_first in _CASE_SENSITIVE_PREFIXES and typed_first == _CASE_SENSITIVE_PREFIXES[canon_first]:
+        if (
+            canon_first in _CASE_SENSITIVE_PREFIXES
+            and typed_first == _CASE_SENSITIVE_PREFIXES[canon_first]
+        ):
             raise InputError(
                 f"{what}: '{unit}' would mean {'mega' if typed_first == 'M' else 'peta'}-; "
                 f"did you mean {display_unit(canonical)}? Type it with a lower-case "
@@ -293,7 +316,9 @@ def parse(
     expected = (expect,) if isinstance(expect, Kind) else expect
     if expected is not None and kind not in expected:
         wanted = " or ".join(k.noun for k in expected)
-        raise InputError(f"{what}: '{text.strip()}' is {kind.noun.split(' (')[0]}; {wanted} is needed here")
+        raise InputError(
+            f"{what}: '{text.strip()}' is {kind.noun.split(' (')[0]}; {wanted} is needed here"
+        )
     if kind is Kind.POWER and unit not in ("dBm", "dBW") and number <= 0:
         raise InputError(
             f"{what}: a power of {format_number(number)} {display_unit(unit)} has no level in dBm "

@@ -15,10 +15,14 @@ class CommandError(Exception):
 
 def add_data_dir(parser: argparse.ArgumentParser) -> None:
     """``--data-dir`` on a subcommand too, so it may follow the command name."""
-    parser.add_argument("--data-dir", default=argparse.SUPPRESS,
-                        help="folder for job data (default: the platform data folder)")
-    parser.add_argument("--config-dir", default=argparse.SUPPRESS,
-                        help="folder for settings and user presets")
+    parser.add_argument(
+        "--data-dir",
+        default=argparse.SUPPRESS,
+        help="folder for job data (default: the platform data folder)",
+    )
+    parser.add_argument(
+        "--config-dir", default=argparse.SUPPRESS, help="folder for settings and user presets"
+    )
 
 
 def print_json(data: Any) -> None:

@@ -18,11 +18,16 @@ def register(subparsers: Any) -> None:
     )
     parser.add_argument("quantity", help="a value with its unit, e.g. '-3.5 dBm' or '250 uW'")
     parser.add_argument("--to", metavar="UNIT", help="the unit to convert to")
-    parser.add_argument("--grid", action="store_true",
-                        help="nearest WDM grid channels of a wavelength or frequency")
-    parser.add_argument("--spacing", type=float, action="append", metavar="GHZ",
-                        help="DWDM grid spacing for --grid (100, 50, 25 or 12.5; repeatable; "
-                        "default 100 and 50)")
+    parser.add_argument(
+        "--grid", action="store_true", help="nearest WDM grid channels of a wavelength or frequency"
+    )
+    parser.add_argument(
+        "--spacing",
+        type=float,
+        action="append",
+        metavar="GHZ",
+        help="DWDM grid spacing for --grid (100, 50, 25 or 12.5; repeatable; default 100 and 50)",
+    )
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     parser.set_defaults(func=run)
 
@@ -43,19 +48,34 @@ def run(args: argparse.Namespace) -> int:
     if args.to:
         number, unit = convert_to(value, args.to)
         if args.json:
-            print_json({"value": number, "unit": display_unit(unit), "input": {
-                "value": value.magnitude, "unit": display_unit(value.unit), "kind": value.kind.value}})
+            print_json(
+                {
+                    "value": number,
+                    "unit": display_unit(unit),
+                    "input": {
+                        "value": value.magnitude,
+                        "unit": display_unit(value.unit),
+                        "kind": value.kind.value,
+                    },
+                }
+            )
         else:
             print(f"{format_number(number, 8)} {display_unit(unit)}")
         return 0
     rows = related_values(value)
     if args.json:
-        print_json({
-            "input": {"value": value.magnitude, "unit": display_unit(value.unit),
-                      "kind": value.kind.value},
-            "value": rows[0][1], "unit": display_unit(rows[0][0]),
-            "values": [{"value": n, "unit": display_unit(u)} for u, n in rows],
-        })
+        print_json(
+            {
+                "input": {
+                    "value": value.magnitude,
+                    "unit": display_unit(value.unit),
+                    "kind": value.kind.value,
+                },
+                "value": rows[0][1],
+                "unit": display_unit(rows[0][0]),
+                "values": [{"value": n, "unit": display_unit(u)} for u, n in rows],
+            }
+        )
     else:
         for unit, number in rows:
             print(f"{format_number(number, 8):>16} {display_unit(unit)}")
@@ -66,21 +86,43 @@ def _print_grid(report: Any, as_json: bool) -> None:
     from fieldkit.calc.units import format_number
 
     if as_json:
-        print_json({
-            "value": report.frequency_thz, "unit": "THz",
-            "wavelength_nm": report.wavelength_nm, "frequency_thz": report.frequency_thz,
-            "dwdm": [{"spacing_ghz": c.spacing_ghz, "n": c.n, "frequency_thz": c.frequency_thz,
-                      "wavelength_nm": c.wavelength_nm, "offset_ghz": c.offset_ghz}
-                     for c in report.dwdm],
-            "cwdm": None if report.cwdm is None else {
-                "wavelength_nm": report.cwdm.wavelength_nm, "offset_nm": report.cwdm.offset_nm,
-                "within_band": report.cwdm.within_band},
-        })
+        print_json(
+            {
+                "value": report.frequency_thz,
+                "unit": "THz",
+                "wavelength_nm": report.wavelength_nm,
+                "frequency_thz": report.frequency_thz,
+                "dwdm": [
+                    {
+                        "spacing_ghz": c.spacing_ghz,
+                        "n": c.n,
+                        "frequency_thz": c.frequency_thz,
+                        "wavelength_nm": c.wavelength_nm,
+                        "offset_ghz": c.offset_ghz,
+                    }
+                    for c in report.dwdm
+                ],
+                "cwdm": None
+                if report.cwdm is None
+                else {
+                    "wavelength_nm": report.cwdm.wavelength_nm,
+                    "offset_nm": report.cwdm.offset_nm,
+                    "within_band": report.cwdm.within_band,
+                },
+            }
+        )
         return
-    print(f"{format_number(report.wavelength_nm, 8)} nm = {format_number(report.frequency_thz, 8)} THz")
+    wavelength, frequency = (
+        format_number(x, 8) for x in (report.wavelength_nm, report.frequency_thz)
+    )
+    print(f"{wavelength} nm = {frequency} THz")
     for c in report.dwdm:
-        print(f"DWDM {c.spacing_ghz:g} GHz grid (G.694.1): n = {c.n:+d}, "
-              f"{c.frequency_thz:.4f} THz / {c.wavelength_nm:.3f} nm, offset {c.offset_ghz:+.1f} GHz")
+        print(
+            f"DWDM {c.spacing_ghz:g} GHz grid (G.694.1): n = {c.n:+d}, "
+            f"{c.frequency_thz:.4f} THz / {c.wavelength_nm:.3f} nm, offset {c.offset_ghz:+.1f} GHz"
+        )
     if report.cwdm is not None:
-        print(f"CWDM grid (G.694.2): {report.cwdm.wavelength_nm:.0f} nm, offset "
-              f"{report.cwdm.offset_nm:+.1f} nm")
+        print(
+            f"CWDM grid (G.694.2): {report.cwdm.wavelength_nm:.0f} nm, offset "
+            f"{report.cwdm.offset_nm:+.1f} nm"
+        )

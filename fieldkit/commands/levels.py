@@ -41,8 +41,9 @@ def run(args: argparse.Namespace) -> int:
         if len(levels_dbm) != 1:
             raise CommandError("--loss and --gain take exactly one level")
         text = args.loss if args.loss is not None else args.gain
-        change_db = parse(text, Kind.RATIO, default_unit="dB",
-                          what="loss" if args.loss is not None else "gain").to("dB")
+        change_db = parse(
+            text, Kind.RATIO, default_unit="dB", what="loss" if args.loss is not None else "gain"
+        ).to("dB")
         if args.loss is not None:
             after = power.apply_loss(levels_dbm[0], change_db)
         else:
@@ -55,9 +56,16 @@ def run(args: argparse.Namespace) -> int:
     elif len(levels_dbm) >= 2:
         total = power.sum_levels_dbm(levels_dbm)
         difference = power.level_difference_db(levels_dbm[0], levels_dbm[1])
-        result.update(value=total, unit="dBm", sum_dbm=total, sum_mw=power.dbm_to_mw(total),
-                      difference_db=difference)
-        lines.append(f"combined: {format_number(total)} dBm ({format_number(power.dbm_to_mw(total))} mW)")
+        result.update(
+            value=total,
+            unit="dBm",
+            sum_dbm=total,
+            sum_mw=power.dbm_to_mw(total),
+            difference_db=difference,
+        )
+        lines.append(
+            f"combined: {format_number(total)} dBm ({format_number(power.dbm_to_mw(total))} mW)"
+        )
         lines.append(f"first − second: {format_number(difference)} dB")
     else:
         raise CommandError("give two or more levels, or one level with --loss or --gain")

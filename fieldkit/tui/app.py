@@ -9,6 +9,7 @@ from __future__ import annotations
 from collections.abc import Iterable
 from functools import partial
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from textual.app import App, SystemCommand
 from textual.binding import Binding
@@ -18,6 +19,9 @@ from fieldkit import __version__, locations, settings
 from fieldkit.tui.themes import HIGH_CONTRAST, register_themes
 from fieldkit.tui.workspaces import WORKSPACES
 
+if TYPE_CHECKING:
+    from fieldkit.jobs.store import JobStore
+
 
 class FieldkitApp(App[None]):
     """The terminal UI."""
@@ -26,15 +30,26 @@ class FieldkitApp(App[None]):
     SUB_TITLE = f"fibre field assistant {__version__}"
     CSS_PATH = "app.tcss"
     HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (72, "-wide")]
+    MODES = {ws.mode: ws.make_screen for ws in WORKSPACES}
     BINDINGS = [
         Binding("f1", "show_help", "Help", id="app.help", tooltip="Keys and safety cautions"),
         *[
-            Binding(ws.key, f"workspace('{ws.mode}')", ws.title, id=f"workspace.{ws.mode}",
-                    tooltip=ws.help)
+            Binding(
+                ws.key,
+                f"workspace('{ws.mode}')",
+                ws.title,
+                id=f"workspace.{ws.mode}",
+                tooltip=ws.help,
+            )
             for ws in WORKSPACES
         ],
-        Binding("ctrl+t", "toggle_sunlight", "Sunlight", id="app.sunlight",
-                tooltip="Switch to the high-contrast theme for direct sunlight, and back"),
+        Binding(
+            "ctrl+t",
+            "toggle_sunlight",
+            "Sunlight",
+            id="app.sunlight",
+            tooltip="Switch to the high-contrast theme for direct sunlight, and back",
+        ),
         Binding("ctrl+q", "quit", "Quit", id="app.quit", priority=True),
     ]
 
@@ -42,15 +57,14 @@ class FieldkitApp(App[None]):
         self.data_dir = data_dir
         self.config_dir = config_dir
         self._start_mode = start_mode or WORKSPACES[0].mode
-        self.MODES = {ws.mode: ws.make_screen for ws in WORKSPACES}
         super().__init__()
         register_themes(self)
         self._previous_theme = "textual-dark"
-        self._store = None
+        self._store: JobStore | None = None
 
     # -- services the screens use -------------------------------------------------------
     @property
-    def store(self):  # noqa: ANN201 - the jobs store is imported lazily
+    def store(self) -> JobStore:
         """The job store of this app's data folder, opened on first use."""
         if self._store is None:
             from fieldkit.jobs.store import JobStore
@@ -92,11 +106,17 @@ class FieldkitApp(App[None]):
 
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
         for ws in WORKSPACES:
-            yield SystemCommand(f"Open {ws.title}", f"{ws.help} ({ws.key.upper()})",
-                                partial(self.action_workspace, ws.mode))
-        yield SystemCommand("Help and safety", "Keys and safety cautions (F1)", self.action_show_help)
-        yield SystemCommand("Sunlight theme", "High-contrast theme on or off (Ctrl+T)",
-                            self.action_toggle_sunlight)
+            yield SystemCommand(
+                f"Open {ws.title}",
+                f"{ws.help} ({ws.key.upper()})",
+                partial(self.action_workspace, ws.mode),
+            )
+        yield SystemCommand(
+            "Help and safety", "Keys and safety cautions (F1)", self.action_show_help
+        )
+        yield SystemCommand(
+            "Sunlight theme", "High-contrast theme on or off (Ctrl+T)", self.action_toggle_sunlight
+        )
         yield from super().get_system_commands(screen)
 
 

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from textual.app import App
 from textual.theme import Theme
 
@@ -34,5 +36,5 @@ SUNLIGHT = Theme(
 )
 
 
-def register_themes(app: App[object]) -> None:
+def register_themes(app: App[Any]) -> None:
     app.register_theme(SUNLIGHT)

@@ -28,8 +28,14 @@ class Workspace:
 
 
 WORKSPACES: tuple[Workspace, ...] = (
-    Workspace("convert", "f2", "Convert", "Levels, power units, attenuation, wavelength and grid",
-              "fieldkit.tui.screens.convert", "ConvertScreen"),
+    Workspace(
+        "convert",
+        "f2",
+        "Convert",
+        "Levels, power units, attenuation, wavelength and grid",
+        "fieldkit.tui.screens.convert",
+        "ConvertScreen",
+    ),
 )
 
 

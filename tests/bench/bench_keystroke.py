@@ -53,8 +53,11 @@ async def main() -> None:
     ours, base = [], []
     with tempfile.TemporaryDirectory() as tmp:
         for _ in range(3):
-            ours.append(await per_key(make_app(data_dir=Path(tmp) / "d", config_dir=Path(tmp) / "c"),
-                                      rounds))
+            ours.append(
+                await per_key(
+                    make_app(data_dir=Path(tmp) / "d", config_dir=Path(tmp) / "c"), rounds
+                )
+            )
             base.append(await per_key(BareEcho(), rounds))
     o, b = statistics.median(ours), statistics.median(base)
     print(f"keystroke to result ({len(KEYS)} keys x {rounds} rounds x 3 runs, median):")

@@ -32,8 +32,9 @@ SCREENSHOT_DELAY_S = 1.0
 
 def timed(cmd: list[str], env: dict[str, str]) -> float:
     start = time.perf_counter()
-    subprocess.run(cmd, env=env, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
-                   timeout=60)
+    subprocess.run(
+        cmd, env=env, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, timeout=60
+    )
     return time.perf_counter() - start - SCREENSHOT_DELAY_S
 
 

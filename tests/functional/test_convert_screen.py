@@ -97,8 +97,13 @@ async def test_help_has_the_safety_cautions(tmp_path: Path) -> None:
         from fieldkit.tui.screens.help import help_markdown
 
         text = help_markdown()
-        for phrase in ("invisible", "Never look into a fibre end", "Class 2", "shard",
-                       "local codes"):
+        for phrase in (
+            "invisible",
+            "Never look into a fibre end",
+            "Class 2",
+            "shard",
+            "local codes",
+        ):
             assert phrase in text
         await pilot.press("escape")
         await pilot.pause()

@@ -22,8 +22,9 @@ def test_calc_and_jobs_import_without_textual(tmp_path: Path) -> None:
         "    pass\n"
         "print(json.dumps({'textual': 'textual' in sys.modules, 'pint': 'pint' in sys.modules}))\n"
     )
-    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                            cwd=tmp_path, timeout=60)
+    result = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, cwd=tmp_path, timeout=60
+    )
     assert result.returncode == 0, result.stderr
     loaded = json.loads(result.stdout)
     assert loaded["textual"] is False
@@ -31,12 +32,20 @@ def test_calc_and_jobs_import_without_textual(tmp_path: Path) -> None:
 
 
 def test_importing_the_app_creates_no_folders(tmp_path: Path) -> None:
-    env_dirs = {"FIELDKIT_DATA_DIR": str(tmp_path / "d"), "FIELDKIT_CONFIG_DIR": str(tmp_path / "c")}
+    env_dirs = {
+        "FIELDKIT_DATA_DIR": str(tmp_path / "d"),
+        "FIELDKIT_CONFIG_DIR": str(tmp_path / "c"),
+    }
     code = "import fieldkit.cli, fieldkit.tui.app; fieldkit.cli.build_parser()"
     import os
 
-    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                            env={**os.environ, **env_dirs}, timeout=60)
+    result = subprocess.run(
+        [sys.executable, "-c", code],
+        capture_output=True,
+        text=True,
+        env={**os.environ, **env_dirs},
+        timeout=60,
+    )
     assert result.returncode == 0, result.stderr
     assert not (tmp_path / "d").exists()
     assert not (tmp_path / "c").exists()

@@ -29,7 +29,9 @@ def test_wavelength_frequency() -> None:
 
 @given(st.floats(min_value=100.0, max_value=20000.0))
 def test_wavelength_round_trip(nm: float) -> None:
-    assert optics.thz_to_wavelength_nm(optics.wavelength_nm_to_thz(nm)) == pytest.approx(nm, rel=1e-12)
+    assert optics.thz_to_wavelength_nm(optics.wavelength_nm_to_thz(nm)) == pytest.approx(
+        nm, rel=1e-12
+    )
 
 
 # ITU-T G.694.1 (10/2020): f = 193.1 THz + n × spacing. Table A.1 values (from memory).
@@ -45,8 +47,9 @@ DWDM = [
 
 
 @pytest.mark.parametrize(("thz", "spacing", "n", "channel_thz", "channel_nm"), DWDM)
-def test_dwdm_nearest_channel(thz: float, spacing: float, n: int, channel_thz: float,
-                              channel_nm: float) -> None:
+def test_dwdm_nearest_channel(
+    thz: float, spacing: float, n: int, channel_thz: float, channel_nm: float
+) -> None:
     channel = optics.nearest_dwdm_channel(thz, spacing)
     assert channel.n == n
     assert channel.frequency_thz == pytest.approx(channel_thz, abs=1e-9)

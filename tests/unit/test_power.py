@@ -73,7 +73,8 @@ def test_sum_of_levels_in_linear_units() -> None:
     # Two equal powers double: +10·log10(2) dB. 1 mW + 1 mW + 2 mW = 4 mW = 6.0206 dBm.
     assert power.sum_levels_dbm([-3.0, -3.0]) == pytest.approx(-3.0 + 3.010299956639812, abs=1e-12)
     assert power.sum_levels_dbm([0.0, 0.0, power.mw_to_dbm(2.0)]) == pytest.approx(
-        10 * math.log10(4.0), abs=1e-12)
+        10 * math.log10(4.0), abs=1e-12
+    )
     # A tiny level next to a large one does not underflow.
     assert power.sum_levels_dbm([0.0, -400.0]) == pytest.approx(0.0, abs=1e-12)
     with pytest.raises(InputError):
@@ -95,4 +96,5 @@ def test_attenuation_coefficients() -> None:
 @given(st.floats(min_value=-100, max_value=50), st.floats(min_value=0, max_value=60))
 def test_loss_then_gain_round_trip(level_dbm: float, loss_db: float) -> None:
     assert power.apply_gain(power.apply_loss(level_dbm, loss_db), loss_db) == pytest.approx(
-        level_dbm, abs=1e-9)
+        level_dbm, abs=1e-9
+    )

@@ -146,8 +146,9 @@ CONVERSIONS = [
 
 
 @pytest.mark.parametrize(("text", "unit", "expected", "tolerance"), CONVERSIONS)
-def test_conversion_table_both_directions(text: str, unit: str, expected: float,
-                                          tolerance: float) -> None:
+def test_conversion_table_both_directions(
+    text: str, unit: str, expected: float, tolerance: float
+) -> None:
     value = parse(text)
     there = convert(value, unit)
     assert there == pytest.approx(expected, abs=tolerance)
@@ -173,7 +174,8 @@ def test_length_round_trip(metres: float) -> None:
     value = Value(Kind.LENGTH, metres, "m")
     for unit in ("km", "ft", "kft", "mi"):
         assert convert(Value(Kind.LENGTH, convert(value, unit), unit), "m") == pytest.approx(
-            metres, rel=1e-12)
+            metres, rel=1e-12
+        )
 
 
 @given(st.text(max_size=30))

@@ -32,7 +32,9 @@ class ConvertScreen(Screen[None]):
                     with Vertical(id="value-panel", classes="panel") as panel:
                         panel.border_title = "Value"
                         yield QuantityField(
-                            "Value", expect=None, field_id="value",
+                            "Value",
+                            expect=None,
+                            field_id="value",
                             placeholder="-7.5 dBm, 250 µW, 0.35 dB/km, 1.2 kft",
                             tooltip="A value with its unit: a level or power, a loss in dB, "
                             "an attenuation per length, a length, a wavelength or a frequency",
@@ -40,24 +42,48 @@ class ConvertScreen(Screen[None]):
                         yield Static("", id="value-out", classes="result")
                     with Vertical(id="loss-panel", classes="panel") as panel:
                         panel.border_title = "Level and loss"
-                        yield QuantityField("Level", expect=Kind.POWER, default_unit="dBm",
-                                            field_id="loss-level", placeholder="-3.2 dBm")
-                        yield QuantityField("Loss", expect=Kind.RATIO, default_unit="dB",
-                                            field_id="loss-db", placeholder="4.5 dB")
+                        yield QuantityField(
+                            "Level",
+                            expect=Kind.POWER,
+                            default_unit="dBm",
+                            field_id="loss-level",
+                            placeholder="-3.2 dBm",
+                        )
+                        yield QuantityField(
+                            "Loss",
+                            expect=Kind.RATIO,
+                            default_unit="dB",
+                            field_id="loss-db",
+                            placeholder="4.5 dB",
+                        )
                         yield Static("", id="loss-out", classes="result")
                 with Vertical(classes="col"):
                     with Vertical(id="sum-panel", classes="panel") as panel:
                         panel.border_title = "Two levels"
-                        yield QuantityField("Level A", expect=Kind.POWER, default_unit="dBm",
-                                            field_id="sum-a", placeholder="-3 dBm")
-                        yield QuantityField("Level B", expect=Kind.POWER, default_unit="dBm",
-                                            field_id="sum-b", placeholder="-6 dBm")
+                        yield QuantityField(
+                            "Level A",
+                            expect=Kind.POWER,
+                            default_unit="dBm",
+                            field_id="sum-a",
+                            placeholder="-3 dBm",
+                        )
+                        yield QuantityField(
+                            "Level B",
+                            expect=Kind.POWER,
+                            default_unit="dBm",
+                            field_id="sum-b",
+                            placeholder="-6 dBm",
+                        )
                         yield Static("", id="sum-out", classes="result")
                     with Vertical(id="grid-panel", classes="panel") as panel:
                         panel.border_title = "Wavelength and grid"
-                        yield QuantityField("λ or f", expect=(Kind.LENGTH, Kind.FREQUENCY),
-                                            default_unit="nm", field_id="grid-in",
-                                            placeholder="1550.12 nm or 193.4 THz")
+                        yield QuantityField(
+                            "λ or f",
+                            expect=(Kind.LENGTH, Kind.FREQUENCY),
+                            default_unit="nm",
+                            field_id="grid-in",
+                            placeholder="1550.12 nm or 193.4 THz",
+                        )
                         yield Static("", id="grid-out", classes="result")
         yield Footer()
 
@@ -91,7 +117,9 @@ class ConvertScreen(Screen[None]):
         if value is None:
             self._out("value-out", "Type a value and its unit.")
             return
-        rows = [(format_number(number), display_unit(unit)) for unit, number in related_values(value)]
+        rows = [
+            (format_number(number), display_unit(unit)) for unit, number in related_values(value)
+        ]
         width = max(len(number) for number, _ in rows)
         lines = [f"{number:>{width}} {unit}" for number, unit in rows]
         if value.kind is Kind.RATIO:
@@ -132,7 +160,9 @@ class ConvertScreen(Screen[None]):
         field = self._field("grid-in")
         value = field.value_or_none()
         if value is None:
-            self._out("grid-out", "A wavelength or frequency gives the nearest ITU-T grid channels.")
+            self._out(
+                "grid-out", "A wavelength or frequency gives the nearest ITU-T grid channels."
+            )
             return
         try:
             report = grid_report(value)
@@ -142,15 +172,24 @@ class ConvertScreen(Screen[None]):
             return
         rows = [("λ", f"{report.wavelength_nm:.3f} nm"), ("f", f"{report.frequency_thz:.4f} THz")]
         for channel in report.dwdm:
-            rows.append((
-                f"DWDM {channel.spacing_ghz:g}",
-                f"n={channel.n:+d} {channel.frequency_thz:.3f} THz",
-            ))
-            rows.append(("", f"{channel.wavelength_nm:.3f} nm, Δf {_signed(channel.offset_ghz, 1)} GHz"))
+            rows.append(
+                (
+                    f"DWDM {channel.spacing_ghz:g}",
+                    f"n={channel.n:+d} {channel.frequency_thz:.3f} THz",
+                )
+            )
+            rows.append(
+                ("", f"{channel.wavelength_nm:.3f} nm, Δf {_signed(channel.offset_ghz, 1)} GHz")
+            )
         if report.cwdm is not None:
             note = "" if report.cwdm.within_band else " (outside band)"
-            rows.append(("CWDM", f"{report.cwdm.wavelength_nm:.0f} nm, Δλ "
-                                 f"{_signed(report.cwdm.offset_nm, 1)} nm{note}"))
+            rows.append(
+                (
+                    "CWDM",
+                    f"{report.cwdm.wavelength_nm:.0f} nm, Δλ "
+                    f"{_signed(report.cwdm.offset_nm, 1)} nm{note}",
+                )
+            )
         self._out("grid-out", _rows(rows))
 
 

@@ -77,7 +77,9 @@ class QuantityField(Vertical):
         """The typed value; raises InputError (and shows it) when it cannot be used."""
         try:
             parsed = parse(
-                self._input.value, self._expect, default_unit=self._default_unit,
+                self._input.value,
+                self._expect,
+                default_unit=self._default_unit,
                 what=self._label.lower(),
             )
         except InputError as exc:
