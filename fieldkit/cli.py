@@ -23,6 +23,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.reference",
     "fieldkit.commands.locate",
     "fieldkit.commands.jobs",
+    "fieldkit.commands.demo",
 )
 
 

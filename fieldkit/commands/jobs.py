@@ -36,8 +36,19 @@ def register(subparsers: Any) -> None:
         "any unique prefix of a job id (see 'jobs list').",
     )
     add_data_dir(parser)
-    sub = parser.add_subparsers(dest="jobs_command", metavar="ACTION", required=True,
-                                parser_class=type(parser))
+    actions = parser.add_subparsers(dest="jobs_command", metavar="ACTION", required=True,
+                                    parser_class=type(parser))
+
+    class _Sub:
+        """Every action takes --data-dir too, so it may come last on the line."""
+
+        @staticmethod
+        def add_parser(name: str, **kwargs: Any) -> argparse.ArgumentParser:
+            action: argparse.ArgumentParser = actions.add_parser(name, **kwargs)
+            add_data_dir(action)
+            return action
+
+    sub = _Sub()
 
     p = sub.add_parser("new", help="create a job and print its id")
     p.add_argument("name", help="the job's name")

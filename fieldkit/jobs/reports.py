@@ -337,7 +337,8 @@ def _plain(value: Any) -> str:
 
 # -- Markdown ---------------------------------------------------------------------------------
 def _md_cell(text: str) -> str:
-    text = html.escape(text, quote=False).replace("|", "\\|")
+    # "<" would open raw HTML in a Markdown viewer; "|" would end the table cell.
+    text = text.replace("<", "&lt;").replace("|", "\\|")
     return " ".join(text.split()) if text else ""
 
 
