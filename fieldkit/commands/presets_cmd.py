@@ -1,0 +1,116 @@
+"""``fieldkit presets``: the shipped and user presets with their sources, and any problems."""
+
+from __future__ import annotations
+
+import argparse
+from dataclasses import asdict
+from typing import Any
+
+from fieldkit.commands.common import CommandError, add_data_dir, print_json
+
+
+def register(subparsers: Any) -> None:
+    from fieldkit.presets import KINDS
+
+    parser: argparse.ArgumentParser = subparsers.add_parser(
+        "presets",
+        help="list fibre, connection, component, application, transceiver and cable presets",
+        description="Lists the presets with the standard and edition each value comes from. "
+        "Your own preset files in <config>/presets/*.toml add to them or replace one by "
+        "name; a bad file or entry is reported and the rest still load. "
+        f"Kinds: {', '.join(KINDS)}.",
+    )
+    parser.add_argument("kind", nargs="?", metavar="KIND",
+                        help="one kind only (fibres, connectors, splices, components, "
+                        "applications, transceivers, cables)")
+    parser.add_argument("--json", action="store_true", help="print one JSON object")
+    add_data_dir(parser)
+    parser.set_defaults(func=run)
+
+
+def _kind(text: str) -> str:
+    from fieldkit.presets import KINDS
+
+    low = text.strip().lower()
+    aliases = {"fibers": "fibres", "fiber": "fibres", "fibre": "fibres", "cable": "cables",
+               "connections": "connectors"}
+    low = aliases.get(low, low)
+    for kind in KINDS:
+        if low in (kind, kind[:-1]):
+            return kind
+    raise CommandError(f"unknown preset kind '{text}' (kinds: {', '.join(KINDS)})")
+
+
+def _plain(value: Any) -> Any:
+    if isinstance(value, dict):
+        return {str(k if not isinstance(k, float) else format(k, "g")): _plain(v)
+                for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    return value
+
+
+def run(args: argparse.Namespace) -> int:
+    from fieldkit import locations
+    from fieldkit.presets import KINDS, load_presets
+
+    library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
+    kinds = [_kind(args.kind)] if args.kind else list(KINDS)
+    if args.json:
+        out: dict[str, Any] = {}
+        for kind in kinds:
+            out[kind] = [_plain(asdict(p)) for p in library.of_kind(kind).values()]
+        out["problems"] = list(library.problems)
+        print_json(out)
+        return 0
+    for kind in kinds:
+        print(f"{kind}:")
+        for preset in library.of_kind(kind).values():
+            print(f"  {preset.name}: {_summary(kind, preset)}")
+            print(f"      source: {preset.source}")
+            if preset.origin and not preset.origin.startswith("presets/"):
+                print(f"      from {preset.origin}")
+    for problem in library.problems:
+        print(f"problem: {problem}")
+    return 0
+
+
+def _summary(kind: str, p: Any) -> str:
+    def per_nm(table: dict[float, float], unit: str) -> str:
+        unit_text = f" {unit}" if unit else ""
+        return ", ".join(f"{v:g}{unit_text} at {k:g} nm" for k, v in sorted(table.items()))
+
+    if kind == "fibres":
+        geometry = (f"core {p.core_diameter_um:g} µm, NA {p.numerical_aperture:g}"
+                    if p.family == "multimode" else
+                    f"MFD {per_nm(p.mfd_um, 'µm')}" if p.mfd_um else "")
+        return (f"{p.family}; maximum {per_nm(p.attenuation_max, 'dB/km')}"
+                + (f"; typical {per_nm(p.attenuation_typical, 'dB/km')}"
+                   if p.attenuation_typical else "")
+                + (f"; group index {per_nm(p.group_indices, '')}" if p.group_indices else "")
+                + (f"; {geometry}" if geometry else ""))
+    if kind in ("connectors", "splices"):
+        typical = "" if p.loss_typical_db is None else f", typical {p.loss_typical_db:g} dB"
+        method = f"{p.method}, " if kind == "splices" else ""
+        return f"{method}maximum {p.loss_max_db:g} dB{typical}"
+    if kind == "components":
+        if p.kind == "splitter":
+            return f"{p.inputs}xN splitter, excess over 10·log10(N): " + ", ".join(
+                f"{p.inputs}x{n} {v:g} dB" for n, v in sorted(p.excess_max_db.items()))
+        typical = "" if p.loss_typical_db is None else f", typical {p.loss_typical_db:g} dB"
+        return f"{p.kind}, maximum {p.loss_max_db:g} dB{typical}"
+    if kind == "applications":
+        limits = "; ".join(
+            f"{fibre} {lim.loss_max_db:g} dB / {lim.reach_m:g} m"
+            + ("" if lim.loss_min_db is None else f" (min {lim.loss_min_db:g} dB)")
+            for fibre, lim in p.limits.items())
+        nm = ", ".join(f"{w:g}" for w in p.wavelengths_nm)
+        return f"{p.kind} at {nm} nm: {limits}"
+    if kind == "transceivers":
+        at = "" if p.wavelength_nm is None else f"{p.wavelength_nm:g} nm: "
+        return (f"{at}Tx {p.tx_min_dbm:g} to {p.tx_max_dbm:g} dBm, Rx sensitivity "
+                f"{p.rx_sensitivity_dbm:g} dBm, overload {p.rx_overload_dbm:g} dBm")
+    if kind == "cables":
+        return (f"helix {p.helix_percent:g} ± {p.helix_uncertainty_percent:g} %; "
+                f"{p.construction}")
+    return ""
