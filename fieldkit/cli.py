@@ -18,6 +18,8 @@ from fieldkit import __version__
 #: The subcommand modules, in the order ``fieldkit --help`` lists them.
 COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.convert",
+    "fieldkit.commands.budget",
+    "fieldkit.commands.presets_cmd",
     "fieldkit.commands.levels",
     "fieldkit.commands.loss",
     "fieldkit.commands.reference",
