@@ -1,0 +1,486 @@
+"""The jobs workspace: find a job, read its links, results and notes, add a note, finish it,
+export it; F7 opens the end-of-day view.
+
+Every change goes through ``JobStore.update`` (reload, apply, save under the job's lock), so a
+note typed here and a result saved by another program at the same moment are both kept.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Literal
+
+from rich.console import Group, RenderableType
+from rich.table import Table
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen, Screen
+from textual.widgets import Button, Footer, Header, Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+from fieldkit.jobs.models import Job, now
+from fieldkit.jobs.reports import (
+    EXPORT_FORMATS,
+    export,
+    failures,
+    fmt_db,
+    fmt_m,
+    fmt_nm,
+    fmt_time,
+    job_summary,
+    result_in_doubt,
+    verdict,
+)
+from fieldkit.jobs.store import JobSummary, StoreError, filter_summaries, local_date
+
+#: How many matching jobs the list shows at once; typing in the filter narrows the rest.
+PAGE = 200
+
+_STATUS_CYCLE = {None: "open", "open": "done", "done": None}
+
+
+def _t(text: str, style: str = "") -> Text:
+    """User text as plain text: a "[" in a job name must not be read as markup."""
+    return Text(text, style=style)
+
+
+class JobsScreen(Screen[None]):
+    """List and filter jobs; the chosen job's details beside (wide) or below (narrow)."""
+
+    CSS_PATH = "jobs.tcss"
+    AUTO_FOCUS = "#jobs-filter"
+    BINDINGS = [
+        Binding("ctrl+f", "focus_filter", "Find", id="jobs.find",
+                tooltip="Type words to find jobs by name, customer, site, crew or link"),
+        Binding("ctrl+n", "focus_note", "Note", id="jobs.note",
+                tooltip="Type a note for this job, Enter saves it"),
+        Binding("ctrl+d", "toggle_done", "Done/open", id="jobs.done",
+                tooltip="Mark the job done, or open again"),
+        Binding("ctrl+e", "export", "Export", id="jobs.export",
+                tooltip="Write the job report as CSV, Markdown, HTML or a JSON hand-off"),
+        Binding("f7", "end_of_day", "End of day", id="jobs.today",
+                tooltip="Today's jobs, result counts, failures and open items"),
+        Binding("ctrl+s", "cycle_status", "Status", id="jobs.status", show=False,
+                tooltip="Show all jobs, only open ones, or only done ones"),
+        Binding("ctrl+g", "toggle_today", "Today", id="jobs.only_today", show=False,
+                tooltip="Only jobs created or updated today, or every day"),
+        Binding("ctrl+r", "reload", "Reload", id="jobs.reload", show=False,
+                tooltip="Read the jobs again (changes made by another program)"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self._summaries: list[JobSummary] = []
+        self._status: str | None = None
+        self._today_only = False
+        self._job: Job | None = None
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with Horizontal(id="jobs-body"):
+            with Vertical(id="jobs-side"):
+                yield Input(placeholder="find: name, site, crew, link", id="jobs-filter",
+                            type="text", compact=True)
+                with Horizontal(id="jobs-filters"):
+                    yield Button("All jobs", id="jobs-status", compact=True,
+                                 tooltip="All, open or done jobs (Ctrl+S)")
+                    yield Button("Any day", id="jobs-day", compact=True,
+                                 tooltip="Only today's jobs, or every day (Ctrl+G)")
+                yield Static("", id="jobs-count", classes="field-note")
+                yield OptionList(id="jobs-list", markup=False)
+            with VerticalScroll(id="job-detail"):
+                yield Static("Pick a job on the list.", id="job-head")
+                yield Static("", id="job-summary")
+                yield Static("", id="job-failures")
+                yield Static("", id="job-links")
+                yield Static("", id="job-notes")
+                with Horizontal(id="job-note-row"):
+                    yield Input(placeholder="a note, Enter saves (Ctrl+N)", id="job-note",
+                                type="text", compact=True)
+                    yield Button("Add note", id="job-note-add", compact=True)
+                yield Static("", id="job-note-error", classes="field-error")
+                with Horizontal(id="job-actions"):
+                    yield Button("Mark done", id="job-done", compact=True)
+                    yield Button("Export", id="job-export", compact=True)
+                    yield Button("End of day", id="job-today", compact=True)
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.reload()
+
+    def on_screen_resume(self) -> None:
+        # Another workspace (or program) may have saved onto a job meanwhile.
+        self.reload()
+
+    # -- data ------------------------------------------------------------------------------
+    @property
+    def store(self):  # noqa: ANN201 - the app's JobStore
+        return self.app.store  # type: ignore[attr-defined]
+
+    def reload(self) -> None:
+        try:
+            self._summaries = self.store.list()
+        except (StoreError, OSError) as exc:
+            self._summaries = []
+            self.notify(f"The jobs could not be listed: {exc}", severity="error")
+        for problem in self.store.problems:
+            self.notify(problem, severity="warning", timeout=10)
+        self.store.problems.clear()
+        self._refilter()
+        if self._job is not None:
+            self._open(self._job.id)
+
+    def _matching(self) -> list[JobSummary]:
+        text = self.query_one("#jobs-filter", Input).value
+        day = local_date(now()) if self._today_only else None
+        return filter_summaries(self._summaries, text=text, status=self._status, on_date=day)
+
+    def _refilter(self) -> None:
+        matches = self._matching()
+        options = self.query_one("#jobs-list", OptionList)
+        keep = self._job.id if self._job else None
+        options.clear_options()
+        shown = matches[:PAGE]
+        options.add_options([Option(_prompt(s), id=s.id) for s in shown])
+        more = f", first {PAGE} shown: type to narrow" if len(matches) > PAGE else ""
+        self.query_one("#jobs-count", Static).update(
+            f"{len(matches)} of {len(self._summaries)} jobs{more}")
+        ids = [s.id for s in shown]
+        if keep in ids:
+            options.highlighted = ids.index(keep)
+        elif keep is None and ids:
+            options.highlighted = 0  # opens the newest job, so the details are never empty
+        self.query_one("#jobs-status", Button).label = {
+            None: "All jobs", "open": "Open jobs", "done": "Done jobs"}[self._status]
+        self.query_one("#jobs-day", Button).label = "Today" if self._today_only else "Any day"
+
+    def _open(self, job_id: str) -> None:
+        try:
+            job = self.store.load(job_id)
+        except StoreError as exc:
+            self._job = None
+            self.query_one("#job-head", Static).update(_t(str(exc), "bold red"))
+            for name in ("summary", "failures", "links", "notes"):
+                self.query_one(f"#job-{name}", Static).update("")
+            return
+        self._job = job
+        self._show(job)
+
+    def _show(self, job: Job) -> None:
+        self.query_one("#job-head", Static).update(_head(job))
+        self.query_one("#job-summary", Static).update(_summary_table(job))
+        self.query_one("#job-failures", Static).update(_failures(job))
+        self.query_one("#job-links", Static).update(_links(job))
+        self.query_one("#job-notes", Static).update(_notes(job))
+        self.query_one("#job-done", Button).label = (
+            "Open again" if job.status == "done" else "Mark done")
+        read_only = bool(job.read_only)
+        for wid in ("#job-note", "#job-note-add", "#job-done"):
+            self.query_one(wid).disabled = read_only
+
+    # -- events ------------------------------------------------------------------------------
+    @on(Input.Changed, "#jobs-filter")
+    def _filter_changed(self) -> None:
+        self._refilter()
+
+    @on(Input.Submitted, "#jobs-filter")
+    def _filter_submitted(self) -> None:
+        options = self.query_one("#jobs-list", OptionList)
+        if options.option_count:
+            options.focus()
+            if options.highlighted is None:
+                options.highlighted = 0
+
+    @on(OptionList.OptionHighlighted, "#jobs-list")
+    def _highlighted(self, event: OptionList.OptionHighlighted) -> None:
+        if event.option_id and (self._job is None or self._job.id != event.option_id):
+            self._open(event.option_id)
+
+    @on(OptionList.OptionSelected, "#jobs-list")
+    def _selected(self, event: OptionList.OptionSelected) -> None:
+        if event.option_id:
+            if self._job is None or self._job.id != event.option_id:
+                self._open(event.option_id)
+            self.query_one("#job-detail").focus()
+
+    @on(Input.Submitted, "#job-note")
+    @on(Button.Pressed, "#job-note-add")
+    def _add_note(self) -> None:
+        field = self.query_one("#job-note", Input)
+        error = self.query_one("#job-note-error", Static)
+        text = field.value.strip()
+        if self._job is None:
+            error.update("Pick a job first.")
+            return
+        if not text:
+            error.update("Type the note first.")
+            return
+
+        def add(job: Job) -> None:
+            job.add_note(text)
+
+        try:
+            job = self.store.update(self._job.id, add)
+        except StoreError as exc:
+            error.update(_t(f"Not saved: {exc}"))  # the typed text stays in the field
+            return
+        error.update("")
+        field.value = ""
+        self._job = job
+        self._show(job)
+        self._update_summary(job)
+
+    def _update_summary(self, job: Job) -> None:
+        fresh = JobSummary.of(job)
+        self._summaries = [fresh if s.id == job.id else s for s in self._summaries]
+        self._summaries.sort(key=lambda s: (s.updated_at, s.id), reverse=True)
+        self._refilter()
+
+    @on(Button.Pressed, "#jobs-status")
+    def action_cycle_status(self) -> None:
+        self._status = _STATUS_CYCLE[self._status]
+        self._refilter()
+
+    @on(Button.Pressed, "#jobs-day")
+    def action_toggle_today(self) -> None:
+        self._today_only = not self._today_only
+        self._refilter()
+
+    @on(Button.Pressed, "#job-done")
+    def action_toggle_done(self) -> None:
+        if self._job is None:
+            self.notify("Pick a job first.", severity="warning")
+            return
+        status: Literal["open", "done"] = "open" if self._job.status == "done" else "done"
+
+        def change(job: Job) -> None:
+            job.status = status
+
+        try:
+            job = self.store.update(self._job.id, change)
+        except StoreError as exc:
+            self.notify(str(exc), severity="error")
+            return
+        self._job = job
+        self._show(job)
+        self._update_summary(job)
+        self.notify(f"{job.name}: {job.status}")
+
+    @on(Button.Pressed, "#job-export")
+    def action_export(self) -> None:
+        if self._job is None:
+            self.notify("Pick a job first.", severity="warning")
+            return
+        self.app.push_screen(ExportDialog(self._job, self.app.data_dir))  # type: ignore[attr-defined]
+
+    @on(Button.Pressed, "#job-today")
+    def action_end_of_day(self) -> None:
+        from fieldkit.tui.screens.jobs_today import EndOfDayScreen
+
+        self.app.push_screen(EndOfDayScreen(), self._picked_from_day)
+
+    def _picked_from_day(self, job_id: str | None) -> None:
+        if job_id:
+            self._open(job_id)
+            self._refilter()
+
+    def action_focus_filter(self) -> None:
+        self.query_one("#jobs-filter", Input).focus()
+
+    def action_focus_note(self) -> None:
+        self.query_one("#job-note", Input).focus()
+
+    def action_reload(self) -> None:
+        self.reload()
+
+
+def _prompt(s: JobSummary) -> str:
+    mark = "✓" if s.status == "done" else "•"
+    failed = f", {s.failed_count} failed" if s.failed_count else ""
+    site = f"{s.site} · " if s.site else ""
+    day = local_date(s.updated_at).isoformat()
+    return f"{mark} {s.name}\n  {site}{day} · {s.result_count} results{failed}"
+
+
+def _head(job: Job) -> RenderableType:
+    text = Text()
+    text.append(job.name, style="bold")
+    text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
+    for label, value in (("Customer", job.customer), ("Site", job.site),
+                         ("Crew", ", ".join(job.crew))):
+        if value:
+            text.append(f"\n{label}: ", style="dim")
+            text.append(value)
+    text.append(f"\nId {job.id} · updated {fmt_time(job.updated_at)}", style="dim")
+    if job.read_only:
+        text.append(f"\n{job.read_only}", style="bold yellow")
+    return text
+
+
+def _summary_table(job: Job) -> RenderableType:
+    rows = job_summary(job)
+    if not rows:
+        return _t("No results yet.", "dim")
+    table = Table(title="Per link and wavelength (fibres)", title_justify="left",
+                  expand=False, box=None, padding=(0, 1), show_edge=False)
+    for name, justify in (("Link", "left"), ("nm", "right"), ("Tested", "right"),
+                          ("Pass", "right"), ("Fail", "right"), ("No lim", "right"),
+                          ("Doubt", "right")):
+        table.add_column(name, justify=justify)  # type: ignore[arg-type]
+    for r in rows:
+        style = "bold red" if r.failed else "yellow" if r.in_doubt else ""
+        table.add_row(_t(r.link_label), fmt_nm(r.wavelength_nm), str(r.tested), str(r.passed),
+                      str(r.failed), str(r.no_limit), str(r.in_doubt), style=style)
+    return table
+
+
+def _failures(job: Job) -> RenderableType:
+    failed = failures(job)
+    if not failed:
+        return _t("No failures.", "green") if job.results() else ""
+    text = Text("Failures", style="bold red")
+    for link, r in failed:
+        limit = f" (limit {fmt_db(r.limit_db)} dB)" if r.limit_db is not None else ""
+        text.append(f"\n✗ {link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
+                    f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}", style="red")
+    return text
+
+
+def _links(job: Job) -> RenderableType:
+    parts: list[RenderableType] = []
+    for link in job.links:
+        head = Text(f"\nLink {link.label}", style="bold")
+        details = [d for d in (
+            f"{link.end_a} → {link.end_b}" if link.end_a or link.end_b else "",
+            link.fibre_type, f"{fmt_m(link.length_m)} m" if link.length_m is not None else "",
+            f"{link.fibre_count} fibres" if link.fibre_count else "") if d]
+        if details:
+            head.append("\n" + " · ".join(details), style="dim")
+        parts.append(head)
+        if link.budget is not None:
+            b = link.budget
+            line = "; ".join(f"{fmt_nm(w.wavelength_nm)} nm {fmt_db(w.loss_db)} dB"
+                             for w in b.wavelengths)
+            parts.append(_t(f"Budget (max): {line}; margin {fmt_db(b.margin_db)} dB"))
+        for f in link.faults:
+            parts.append(_t(f"Fault: route {fmt_m(f.route_distance_m)} m (search "
+                            f"{fmt_m(f.low_m)}–{fmt_m(f.high_m)} m)"
+                            + (f", near {f.nearest_landmark}" if f.nearest_landmark else ""),
+                            "bold magenta"))
+        if link.splices:
+            worst = max(link.splices, key=lambda s: s.loss_db)
+            parts.append(_t(f"{len(link.splices)} splices, worst {fmt_db(worst.loss_db)} dB "
+                            f"(fibre {worst.fibre}, {worst.estimate})"))
+        if link.results:
+            table = Table(box=None, padding=(0, 1), show_edge=False, expand=False)
+            for name in ("Fib", "nm", "Dir", "Loss dB", "Limit", "Result"):
+                table.add_column(name, justify="left" if name in ("Dir", "Result") else "right")
+            ordered = sorted(link.results, key=lambda r: (r.wavelength_nm, r.fibre, r.at))
+            for r in ordered:
+                doubt = result_in_doubt(link, r)
+                flag = " ?" if doubt else ""
+                if "negative-loss" in r.flags:
+                    flag += " neg"
+                style = "bold red" if r.passed is False else "yellow" if doubt else ""
+                table.add_row(str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
+                              fmt_db(r.loss_db), fmt_db(r.limit_db), verdict(r) + flag,
+                              style=style)
+            parts.append(table)
+        elif not link.faults:
+            parts.append(_t("no results yet", "dim"))
+    if not parts:
+        return _t("\nNo links yet: the budget, meter and fault workspaces add them when "
+                  "they save onto this job.", "dim")
+    return Group(*parts)
+
+
+def _notes(job: Job) -> RenderableType:
+    text = Text("\nNotes", style="bold")
+    if not job.notes:
+        text.append("\nnone yet", style="dim")
+    for note in job.notes:
+        text.append(f"\n{fmt_time(note.at)}", style="dim")
+        if note.by:
+            text.append(f" {note.by}", style="dim")
+        text.append(f"\n  {note.text}")
+    return text
+
+
+class ExportDialog(ModalScreen[Path | None]):
+    """Choose a format and a file; the report is written there."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="jobs_export.cancel")]
+
+    def __init__(self, job: Job, data_dir: Path) -> None:
+        super().__init__()
+        self._job = job
+        self._folder = Path(data_dir) / "exports"
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="export-dialog"):
+            yield Label(f"Export {self._job.name}", id="export-title")
+            yield OptionList(*[Option(_FORMAT_NAMES[f], id=f) for f in EXPORT_FORMATS],
+                             id="export-format", markup=False)
+            yield Label("File", classes="field-note")
+            yield Input(str(self._path("html")), id="export-path", type="text", compact=True)
+            yield Static("", id="export-error", classes="field-error")
+            with Horizontal(id="export-buttons"):
+                yield Button("Cancel", id="export-cancel", compact=True)
+                yield Button("Write", id="export-write", variant="primary", compact=True)
+
+    def on_mount(self) -> None:
+        formats = self.query_one("#export-format", OptionList)
+        formats.highlighted = EXPORT_FORMATS.index("html")
+        formats.focus()
+
+    def _path(self, fmt: str) -> Path:
+        return self._folder / f"{self._job.id}.{fmt}"
+
+    @on(OptionList.OptionHighlighted, "#export-format")
+    def _format_changed(self, event: OptionList.OptionHighlighted) -> None:
+        field = self.query_one("#export-path", Input)
+        current = Path(field.value)
+        if event.option_id and current.parent == self._folder:
+            field.value = str(self._path(event.option_id))
+
+    @on(OptionList.OptionSelected, "#export-format")
+    @on(Input.Submitted, "#export-path")
+    @on(Button.Pressed, "#export-write")
+    def _write(self) -> None:
+        from fieldkit.fsutil import atomic_write_bytes
+
+        formats = self.query_one("#export-format", OptionList)
+        fmt = EXPORT_FORMATS[formats.highlighted or 0]
+        text = self.query_one("#export-path", Input).value.strip()
+        error = self.query_one("#export-error", Static)
+        if not text:
+            error.update("Type a file name.")
+            return
+        target = Path(text).expanduser()
+        if target.is_dir():
+            error.update("That is a folder: give a file name.")
+            return
+        body = export(self._job, fmt)
+        data = ("\ufeff" + body if fmt == "csv" else body).encode("utf-8")
+        try:
+            atomic_write_bytes(target, data)
+        except OSError as exc:
+            error.update(_t(f"Not written: {exc.strerror or exc}"))
+            return
+        self.app.notify(f"Wrote {target}")
+        self.dismiss(target)
+
+    @on(Button.Pressed, "#export-cancel")
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+_FORMAT_NAMES = {
+    "csv": "CSV: one row per result (spreadsheet)",
+    "md": "Markdown report",
+    "html": "HTML report (prints on A4 / Letter)",
+    "json": "JSON hand-off (jobs import on another laptop)",
+}

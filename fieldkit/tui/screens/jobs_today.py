@@ -1,0 +1,114 @@
+"""The end-of-day view: today's jobs, result counts, failures, doubts and open items.
+
+Pushed from the jobs workspace (F7). Enter on a job closes the view and opens that job;
+Ctrl+Left / Ctrl+Right step to the day before or after.
+"""
+
+from __future__ import annotations
+
+from datetime import date, timedelta
+
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+from fieldkit.jobs.models import now
+from fieldkit.jobs.store import StoreError, local_date
+from fieldkit.jobs.today import DaySummary, day_summary
+
+
+class EndOfDayScreen(ModalScreen[str | None]):
+    """Dismisses with the id of a job to open, or None."""
+
+    CSS_PATH = "jobs_today.tcss"
+    BINDINGS = [
+        Binding("escape,f7", "close", "Close", id="jobs_today.close"),
+        Binding("ctrl+left", "day(-1)", "Day before", id="jobs_today.before"),
+        Binding("ctrl+right", "day(1)", "Day after", id="jobs_today.after"),
+    ]
+
+    def __init__(self, day: date | None = None) -> None:
+        super().__init__()
+        self._day = day or local_date(now())
+        self.summary: DaySummary | None = None
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="eod-panel"):
+            with Horizontal(id="eod-top"):
+                yield Label("", id="eod-title")
+                yield Button("◀", id="eod-before", compact=True, tooltip="Day before (Ctrl+←)")
+                yield Button("▶", id="eod-after", compact=True, tooltip="Day after (Ctrl+→)")
+                yield Button("Close", id="eod-close", compact=True, tooltip="Escape")
+            yield Static("", id="eod-totals")
+            yield OptionList(id="eod-jobs", markup=False)
+            with VerticalScroll(id="eod-items"):
+                yield Static("", id="eod-detail")
+
+    def on_mount(self) -> None:
+        self.refresh_day()
+
+    def refresh_day(self) -> None:
+        store = self.app.store  # type: ignore[attr-defined]
+        try:
+            summary = day_summary(store, self._day)
+        except (StoreError, OSError) as exc:
+            self.query_one("#eod-totals", Static).update(Text(f"Not readable: {exc}", "red"))
+            return
+        self.summary = summary
+        t = summary.totals()
+        self.query_one("#eod-title", Label).update(f"End of day {self._day.isoformat()}")
+        totals = Text()
+        totals.append(f"{t['jobs']} jobs ({t['open_jobs']} open), {t['results_today']} "
+                      f"results today\n")
+        totals.append(f"{t['passed']} pass", "green")
+        totals.append(" · ")
+        totals.append(f"{t['failed']} fail", "bold red" if t["failed"] else "")
+        totals.append(f" · {t['no_limit']} no limit · ")
+        totals.append(f"{t['in_doubt']} in doubt", "yellow" if t["in_doubt"] else "")
+        totals.append(f" · {t['open_items']} open items")
+        self.query_one("#eod-totals", Static).update(totals)
+        jobs = self.query_one("#eod-jobs", OptionList)
+        jobs.clear_options()
+        for job in summary.jobs:
+            mark = "✓" if job.status == "done" else "•"
+            fail = f", {job.failed} FAIL" if job.failed else ""
+            jobs.add_option(Option(f"{mark} {job.name}: {job.results_today} results{fail}",
+                                   id=job.id))
+        detail = Text()
+        if not summary.jobs:
+            detail.append("No job was created or updated on this day.", "dim")
+        for job in summary.jobs:
+            detail.append(f"{job.name}\n", "bold")
+            for failure in job.failures:
+                detail.append(f"  ✗ {failure}\n", "red")
+            for item in job.open_items:
+                detail.append(f"  • {item}\n")
+        self.query_one("#eod-detail", Static).update(detail)
+        if summary.jobs:
+            jobs.highlighted = 0
+            jobs.focus()
+
+    @on(OptionList.OptionSelected, "#eod-jobs")
+    def _open_job(self, event: OptionList.OptionSelected) -> None:
+        self.dismiss(event.option_id)
+
+    def action_day(self, step: int) -> None:
+        self._day += timedelta(days=step)
+        self.refresh_day()
+
+    @on(Button.Pressed, "#eod-before")
+    def _before(self) -> None:
+        self.action_day(-1)
+
+    @on(Button.Pressed, "#eod-after")
+    def _after(self) -> None:
+        self.action_day(1)
+
+    @on(Button.Pressed, "#eod-close")
+    def action_close(self) -> None:
+        self.dismiss(None)
