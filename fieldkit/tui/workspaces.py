@@ -36,6 +36,8 @@ WORKSPACES: tuple[Workspace, ...] = (
         "fieldkit.tui.screens.convert",
         "ConvertScreen",
     ),
+    Workspace("fault", "f5", "Fault", "Fault location: OTDR distance to a place on the route",
+              "fieldkit.tui.screens.fault", "FaultScreen"),
 )
 
 
