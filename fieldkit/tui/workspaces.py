@@ -38,6 +38,8 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace("fault", "f5", "Fault", "Fault location: OTDR distance to a place on the route",
               "fieldkit.tui.screens.fault", "FaultScreen"),
+    Workspace("jobs", "f6", "Jobs", "Per-job logs: find, read, note, finish, export; end of day",
+              "fieldkit.tui.screens.jobs", "JobsScreen"),
 )
 
 
