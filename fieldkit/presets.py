@@ -205,7 +205,7 @@ class PresetLibrary:
 
 
 def _fold(name: str) -> str:
-    return "".join(ch for ch in name.lower() if ch.isalnum() or ch in "+.")
+    return "".join(ch for ch in name.lower() if ch.isalnum() or ch == "+")
 
 
 # -- locating and caching ----------------------------------------------------------------------
