@@ -1,0 +1,205 @@
+"""The fault workspace driven by keyboard and mouse at 80×24 and 44×22."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import pytest
+from textual.widgets import Input, OptionList, Select, Static
+
+from fieldkit import locations, safety
+from fieldkit.jobs.models import Job
+from fieldkit.jobs.store import JobStore
+from fieldkit.tui.app import FieldkitApp, make_app
+from fieldkit.tui.screens.fault import FaultScreen, PointList
+from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+from fieldkit.tui.widgets.route_diagram import RouteDiagram
+
+SIZES = [(80, 24), (44, 22)]
+
+
+def _app(tmp_path: Path) -> FieldkitApp:
+    return make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="fault")
+
+
+def _text(screen: Any, selector: str) -> str:
+    return str(screen.query_one(selector, Static).render())
+
+
+async def _show(pilot: Any, screen: Any, selector: str) -> None:
+    widget = screen.query_one(selector)
+    screen.query_one("#fault-body").scroll_to_widget(widget, animate=False)
+    await pilot.pause()
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_typing_a_distance_gives_a_range_and_the_cautions(tmp_path: Path,
+                                                                size: tuple[int, int]) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, FaultScreen)
+        assert screen.focused is screen.query_one("#fault-distance", Input)
+        await pilot.press(*"2040")
+        await pilot.pause()
+        # defaults: G.652.D at 1550 nm (1.4677, the preset's typical value), stranded loose tube
+        # 1.5 % (common practice): sheath = route = 2040 / 1.015 = 2009.8522 m
+        assert screen.location is not None
+        assert screen.location.position.route_distance_m == pytest.approx(2009.8522, abs=1e-3)
+        assert "Fault 2009.9 m ±" in _text(screen, "#fault-summary")
+        assert "route    2009.9 m" in _text(screen, "#fault-result")
+        cautions = _text(screen, "#fault-cautions")
+        assert safety.DIGGING in cautions and safety.DEFER in cautions
+        diagram = screen.query_one("#fault-diagram", RouteDiagram)
+        lines = diagram.lines()
+        assert lines[0].startswith("├") and "X" in lines[0]
+        assert all(len(line) <= size[0] for line in lines)
+        assert any("fault, look" in line for line in lines)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_bad_input_is_shown_beside_the_field_and_kept(tmp_path: Path,
+                                                            size: tuple[int, int]) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"-3 dBm")
+        await pilot.pause()
+        field = screen.query_one("#fault-distance-field")
+        error = field.query_one(".field-error", Static)
+        assert error.display and "optical power" in str(error.render())
+        assert screen.query_one("#fault-distance", Input).value == "-3 dBm"
+        assert screen.location is None
+        assert "Fix the field" in _text(screen, "#fault-summary")
+        # a group index below 1 is refused too
+        screen.query_one("#fault-distance", Input).value = "1000"
+        screen.query_one("#fault-ior", Input).value = "0.9"
+        await pilot.pause()
+        assert screen.location is None
+        assert "below 1" in _text(screen, "#fault-summary")
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_landmarks_added_edited_and_removed_by_keys(tmp_path: Path,
+                                                          size: tuple[int, int]) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"2800")
+        screen.query_one("#fault-landmarks-name", Input).focus()
+        await pilot.press(*"closure 6", "tab", *"2000", "tab", *"1950", "enter")
+        await pilot.press("shift+tab", "shift+tab")  # back to the name
+        await pilot.press(*"closure 7", "tab", *"3.4 km", "tab", *"3330", "enter")
+        await pilot.pause()
+        landmarks = screen.query_one("#fault-landmarks", PointList)
+        assert [row["name"] for row in landmarks.rows] == ["closure 6", "closure 7"]
+        # 1950 + 800 × 1380 / 1400 = 2738.5714 m (interpolation between the two)
+        p = screen.location.position
+        assert p.route_distance_m == pytest.approx(2738.5714, abs=1e-3)
+        assert "between landmarks closure 6–closure 7" in _text(screen, "#fault-result")
+        assert any("closure 7" in line for line in screen.query_one(RouteDiagram).lines())
+        # edit the second: pick it in the list, change its route distance, Enter
+        options = landmarks.query_one(OptionList)
+        options.focus()
+        await pilot.press("down", "down", "enter")
+        await pilot.pause()
+        route = screen.query_one("#fault-landmarks-route", Input)
+        assert route.value == "3330"
+        route.value = "3350"
+        route.focus()
+        await pilot.press("enter")
+        await pilot.pause()
+        # 1950 + 800 × 1400 / 1400 = 2750 m
+        assert screen.location.position.route_distance_m == pytest.approx(2750.0, abs=1e-6)
+        # remove the first with Delete on the list
+        options.focus()
+        await pilot.press("home", "delete")
+        await pilot.pause()
+        assert [row["name"] for row in landmarks.rows] == ["closure 7"]
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_slack_loop_added_with_the_mouse(tmp_path: Path, size: tuple[int, int]) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"2040")
+        screen.query_one("#fault-cable", Select).value = "__typed__"
+        screen.query_one("#fault-helix", Input).value = "2"
+        screen.query_one("#fault-slack-position", Input).value = "800"
+        screen.query_one("#fault-slack-length", Input).value = "25 m"
+        await _show(pilot, screen, "#fault-slack-add")
+        await pilot.click("#fault-slack-add")
+        await pilot.pause()
+        # 2040 / 1.02 = 2000 m sheath; the 25 m loop at 800 m: route 1975 m
+        assert screen.location.position.route_distance_m == pytest.approx(1975.0, abs=1e-9)
+        assert any("∞" in line for line in screen.query_one(RouteDiagram).lines())
+        await _show(pilot, screen, "#fault-slack-remove")
+        screen.query_one("#fault-slack", PointList).query_one(OptionList).highlighted = 0
+        await pilot.click("#fault-slack-remove")
+        await pilot.pause()
+        assert screen.location.position.route_distance_m == pytest.approx(2000.0, abs=1e-9)
+
+
+async def test_marking_two_ended_and_unit(tmp_path: Path) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#fault-distance", Input).value = "3412"
+        screen.query_one("#fault-cable", Select).value = "__typed__"
+        screen.query_one("#fault-helix", Input).value = "0"
+        screen.query_one("#fault-marking", Input).value = "10000"
+        screen.query_one("#fault-marking-direction", Select).value = "down"
+        screen.query_one("#fault-from-b", Input).value = "1590"
+        screen.query_one("#fault-total", Input).value = "5000"
+        await pilot.pause()
+        # no helix: marking 10 000 − 3412 = 6588 (counting down, metres)
+        assert "marking  6588 m" in _text(screen, "#fault-result")
+        # 3412 + 1590 − 5000 = 2 m within ± 2 m
+        assert "consistent" in _text(screen, "#fault-result")
+        screen.query_one("#fault-unit", Select).value = "ft"
+        await pilot.pause()
+        # 3412 m / 0.3048 = 11194 ft (international foot)
+        assert "route    11194 ft" in _text(screen, "#fault-result")
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_save_onto_a_job_link(tmp_path: Path, size: tuple[int, int]) -> None:
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Cut at the bridge")
+
+    def one_link(j: Job) -> None:
+        j.add_link("Span 4")
+
+    store.update(job.id, one_link)
+    app = _app(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"2040")
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert isinstance(app.screen, JobLinkPicker)
+        await pilot.press("enter", "enter")  # the job, then its link
+        await pilot.pause()
+        assert "Saved onto Cut at the bridge / Span 4" in _text(screen, "#fault-saved")
+    faults = store.load(job.id).links[0].faults
+    assert len(faults) == 1
+    assert faults[0].route_distance_m == pytest.approx(2009.8522, abs=1e-3)
+    assert faults[0].low_m < faults[0].route_distance_m < faults[0].high_m
+    assert faults[0].inputs["typed"]["distance"] == "2040"
+
+
+async def test_f5_opens_the_fault_workspace(tmp_path: Path) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("f5")
+        await pilot.pause()
+        assert isinstance(app.screen, FaultScreen)
