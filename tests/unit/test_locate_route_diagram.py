@@ -1,0 +1,54 @@
+"""The route diagram in text: what it draws and that it fits the width."""
+
+from __future__ import annotations
+
+import pytest
+
+from fieldkit.tui.widgets.route_diagram import FaultMark, RoutePoint, render_route
+
+POINTS = [
+    RoutePoint("landmark", "closure 6", 1950.0),
+    RoutePoint("slack", "20 m", 2500.0),
+    RoutePoint("landmark", "closure 7", 3330.0),
+    RoutePoint("landmark", "handhole 12 by the long bridge over the river", 4100.0),
+]
+
+
+@pytest.mark.parametrize("width", [20, 40, 44, 78])
+def test_fits_the_width(width: int) -> None:
+    lines = render_route(POINTS, FaultMark(2738.6, 2700.0, 2777.2), width)
+    assert all(len(line) <= width for line in lines)
+    assert len(lines[0]) == width
+
+
+def test_strip_to_scale_and_legend_in_route_order() -> None:
+    lines = render_route(POINTS, FaultMark(2738.6, 2700.0, 2777.2), 44)
+    strip = lines[0]
+    # the route ends 5 % past the furthest point: 4100 × 1.05 = 4305 m over 43 columns;
+    # closure 6 at 1950 m: round(1950 / 4305 × 43) = column 19; the fault at round(27.35) = 27
+    assert strip[0] == "├"
+    assert strip[19] == "1"
+    assert strip[27] == "X"
+    assert strip.index("∞") == round(2500 / 4305 * 43)
+    assert lines[1].endswith("4305.0 m")
+    legend = lines[2:]
+    assert [line.split()[2] for line in legend] == ["├", "1", "∞", "X", "2", "3"]
+    assert [line.split()[3] for line in legend] == ["start", "closure", "slack", "fault,",
+                                                     "closure", "handhole"]
+    assert "fault, look 2700.0 m–2777.2 m" in legend[3]
+    assert legend[-1].endswith("…")  # a long name is cut, never wrapped
+
+
+def test_range_brackets_when_wide_enough_and_feet() -> None:
+    lines = render_route([], FaultMark(1000.0, 900.0, 1100.0), 44, unit="ft")
+    # 1100 × 1.05 = 1155 m over 43 columns: 900 m → col 34, 1100 m → col 41
+    assert lines[0][34] == "[" and lines[0][41] == "]"
+    assert "═" in lines[0]
+    # 1000 m / 0.3048 = 3281 ft (international foot)
+    assert any(line.startswith("3281 ft X fault") for line in lines)
+
+
+def test_without_a_fault_only_the_route() -> None:
+    lines = render_route(POINTS[:1], None, 40)
+    assert "X" not in lines[0]
+    assert len(lines) == 2 + 2  # strip, scale, start, closure 6
