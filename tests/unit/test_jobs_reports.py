@@ -1,0 +1,133 @@
+"""Job reports: golden files for CSV, Markdown and HTML, and the counts they are built on.
+
+The golden files in tests/golden/ are the reviewed output for tests/golden/sample_job.json;
+after an intended change, regenerate them with FIELDKIT_UPDATE_GOLDEN=1 and read the diff.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import os
+import re
+from datetime import UTC, datetime, timedelta
+from pathlib import Path
+
+import pytest
+
+from fieldkit import safety
+from fieldkit.jobs.models import Job, Link, LossResult
+from fieldkit.jobs.reports import (
+    CSV_HEADERS,
+    export,
+    failures,
+    in_doubt,
+    job_summary,
+    latest_results,
+    to_csv,
+    to_handoff,
+)
+
+GOLDEN = Path(__file__).parent.parent / "golden"
+
+
+def sample() -> Job:
+    return Job.model_validate_json((GOLDEN / "sample_job.json").read_text(encoding="utf-8"))
+
+
+@pytest.mark.parametrize("fmt", ["csv", "md", "html"])
+def test_export_matches_golden_file(fmt: str) -> None:
+    produced = export(sample(), fmt)
+    golden = GOLDEN / f"sample_job.{fmt}"
+    if os.environ.get("FIELDKIT_UPDATE_GOLDEN"):
+        golden.write_bytes(produced.encode("utf-8"))
+    assert produced == golden.read_bytes().decode("utf-8")
+
+
+def test_summary_counts_by_hand() -> None:
+    rows = {(r.link_label, r.wavelength_nm): r for r in job_summary(sample())}
+    backbone_1550 = rows[("LIB-TH-01", 1550.0)]
+    # Limit = 1.84 km × 0.3 dB/km + 2 × 0.75 + 4 × 0.3 = 0.552 + 1.5 + 1.2 = 3.252 -> 3.25 dB
+    # (TIA-568.3-D connector and splice maxima; 0.3 dB/km cabled G.652 at 1550 nm, from
+    # memory). Fibre 7 reads 3.91 dB: the one failure of 12.
+    assert (backbone_1550.tested, backbone_1550.passed, backbone_1550.failed) == (12, 11, 1)
+    # The 1550 nm reference is in doubt from 10:00; fibre f was read at 09:15 + f × 6 min, so
+    # fibres 8..12 (09:63 = 10:03 onwards) are in doubt: 5.
+    assert backbone_1550.in_doubt == 5
+    feed = rows[("RES-N-FEED", 1550.0)]
+    # 2.41, 2.52, 2.38, 2.47 <= 4.26 pass; 4.63 fails; -0.12 (negative loss) has no verdict.
+    assert (feed.tested, feed.passed, feed.failed, feed.no_limit) == (6, 4, 1, 1)
+    assert [(link.label, r.fibre) for link, r in failures(sample())] == [
+        ("LIB-TH-01", 7), ("RES-N-FEED", 5)]
+    assert len(in_doubt(sample())) == 5
+
+
+def test_a_retest_supersedes_the_earlier_result() -> None:
+    t0 = datetime(2026, 3, 14, 9, tzinfo=UTC)
+    link = Link(label="L", results=[
+        LossResult(fibre=1, wavelength_nm=1310.0, loss_db=3.0, limit_db=2.0, passed=False, at=t0),
+        LossResult(fibre=1, wavelength_nm=1310.0, loss_db=1.5, limit_db=2.0, passed=True,
+                   at=t0 + timedelta(hours=1)),
+        LossResult(fibre=1, wavelength_nm=1310.0, direction="B->A", loss_db=1.6, limit_db=2.0,
+                   passed=True, at=t0),
+    ])
+    job = Job(name="Retest", links=[link])
+    assert [r.loss_db for r in latest_results(link)] == [1.5, 1.6]
+    [row] = job_summary(job)
+    assert (row.tested, row.passed, row.failed) == (1, 1, 0)
+    assert failures(job) == []
+    assert len(to_csv(job).splitlines()) == 1 + 3  # every result is still listed
+
+
+def test_csv_has_one_row_per_result_and_parses() -> None:
+    job = sample()
+    rows = list(csv.reader(io.StringIO(to_csv(job))))
+    assert rows[0] == CSV_HEADERS
+    assert len(rows) - 1 == sum(len(link.results) for link in job.links) == 30
+    fibre7 = next(r for r in rows[1:] if r[2] == "LIB-TH-01" and r[3] == "7" and r[4] == "1550")
+    record = dict(zip(CSV_HEADERS, fibre7, strict=True))
+    # reading = reference − loss = −7.10 − 3.91 = −11.01 dBm; margin = 3.25 − 3.91 = −0.66 dB
+    assert (record["reading_dbm"], record["margin_db"], record["result"]) == (
+        "-11.01", "-0.66", "fail")
+    assert record["reference_level_dbm"] == "-7.10"
+    assert "reference-in-doubt" in next(r for r in rows[1:] if r[3] == "12" and r[4] == "1550")[11]
+
+
+def test_csv_keeps_formula_looking_text_as_text() -> None:
+    job = Job(name="=HYPERLINK(1)", links=[Link(label="+L", results=[
+        LossResult(fibre=1, wavelength_nm=1310.0, loss_db=-0.5, by="@me")])])
+    row = list(csv.reader(io.StringIO(to_csv(job))))[1]
+    assert (row[0], row[2], row[15]) == ("'=HYPERLINK(1)", "'+L", "'@me")
+    assert row[7] == "-0.50"  # numbers stay numbers
+
+
+def test_html_is_self_contained_and_escapes_user_text() -> None:
+    page = export(sample(), "html")
+    assert not re.search(r"https?://|src=|<script|<link|@import|url\(", page)
+    assert "&lt;basement&gt;" in page and "<basement>" not in page
+    assert "@page" in page  # print rules for paper (A4 and Letter both fit these margins)
+    for line in (safety.INVISIBLE_LIGHT, safety.DIGGING, safety.GLASS_SHARDS, safety.DEFER):
+        assert line.replace("'", "&#x27;") in page
+
+
+def test_markdown_failures_come_before_results_and_tables_stay_intact() -> None:
+    text = export(sample(), "md")
+    assert text.index("## Failures") < text.index("### LIB-TH-01: results")
+    assert "&lt;basement> \\| " in text
+    columns = None
+    for line in text.splitlines():
+        if not line.startswith("| "):
+            columns = None
+            continue
+        count = len(re.findall(r"(?<!\\)\|", line))
+        if columns is None:
+            columns = count  # the header row of a table
+        assert count == columns, line  # an escaped "|" in user text never adds a column
+    assert safety.DEFER in text
+
+
+def test_handoff_holds_every_job_as_valid_json() -> None:
+    data = json.loads(to_handoff([sample()]))
+    assert data["format"] == "fieldkit-jobs-handoff"
+    assert Job.model_validate(data["jobs"][0]) == sample()
