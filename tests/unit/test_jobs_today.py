@@ -1,0 +1,38 @@
+"""The end-of-day summary over the demo day: counts checked by hand against the scenario."""
+
+from __future__ import annotations
+
+from datetime import timedelta
+from pathlib import Path
+
+from fieldkit.jobs.demo import build, local_day_start
+from fieldkit.jobs.models import now
+from fieldkit.jobs.store import JobStore, local_date
+from fieldkit.jobs.today import day_summary
+
+
+def test_demo_day_counts(tmp_path: Path) -> None:
+    store = JobStore(tmp_path / "jobs")
+    for job in build(local_day_start(now())):
+        store.save(job)
+    summary = day_summary(store, local_date(now()))
+    totals = summary.totals()
+    # Backbone 12 fibres × 2 wavelengths, fit-out 24 × 2, feed 6 × 1: 24 + 48 + 6 = 78.
+    assert totals["results_today"] == totals["tested"] == 78
+    # Fails: backbone fibre 7 at 1550 nm, feed fibre 5; no limit: the feed's negative loss.
+    assert (totals["failed"], totals["no_limit"], totals["passed"]) == (2, 1, 78 - 3)
+    # In doubt: backbone 1550 nm fibres 8..12 (read after the reference went into doubt).
+    assert totals["in_doubt"] == 5
+    assert (totals["jobs"], totals["open_jobs"]) == (4, 3)
+    survey = next(j for j in summary.jobs if j.name == "Station Road duct survey")
+    assert "SR-SPUR: no results yet" in survey.open_items
+    feed = next(j for j in summary.jobs if j.name == "North Reservoir feed repair")
+    assert any("fault located at 2889.2 m" in item for item in feed.open_items)
+    done = next(j for j in summary.jobs if j.status == "done")
+    assert done.open_items == [] and done.failures == []
+
+
+def test_another_day_has_no_jobs(tmp_path: Path) -> None:
+    store = JobStore(tmp_path / "jobs")
+    store.create("Only today")
+    assert day_summary(store, local_date(now()) - timedelta(days=3)).jobs == []
