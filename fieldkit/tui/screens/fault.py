@@ -111,7 +111,7 @@ class PointList(Vertical):
 
     DEFAULT_CSS = """
     PointList { height: auto; }
-    PointList OptionList { height: auto; max-height: 6; }
+    PointList OptionList { height: auto; max-height: 6; border: none; padding: 0; }
     PointList > Horizontal { height: auto; }
     PointList Label.pl-label { width: 12; padding: 0 1 0 0; color: $text-muted; }
     PointList Input { width: 1fr; }
@@ -155,6 +155,7 @@ class PointList(Vertical):
 
     def on_mount(self) -> None:
         self._refresh()
+        self._say("")
 
     # -- values ----------------------------------------------------------------------------
     def parse_row(self, row: dict[str, str]) -> dict[str, Any]:
@@ -289,6 +290,22 @@ _SHORT_TERMS = {"instrument offset": "offset", "scale error": "scale",
                 "helix": "helix"}
 
 
+def _short_term(name: str) -> str:
+    if name in _SHORT_TERMS:
+        return _SHORT_TERMS[name]
+    for long, short in (("sample spacing (", "sampling "), ("route distance (", "route "),
+                        ("instrument offset (", "offset ")):
+        if name.startswith(long):
+            return short + name[len(long):].rstrip(")")
+    return name
+
+
+def _has_landmark(p: Any) -> bool:
+    """A nearest landmark worth naming: not the start when no landmark was given."""
+    return (p.nearest_landmark is not None and p.offset_from_landmark_m is not None
+            and not (p.nearest_landmark == "start" and p.basis == "model"))
+
+
 def _position_rows(p: Any, unit: str) -> list[str]:
     def f(x: float) -> str:
         return format_distance(x, unit)
@@ -297,7 +314,7 @@ def _position_rows(p: Any, unit: str) -> list[str]:
         f"route    {f(p.route_distance_m)} ± {f(p.uncertainty_m)}",
         f"look     {f(p.low_m)} to {f(p.high_m)}",
     ]
-    if p.nearest_landmark is not None and p.offset_from_landmark_m is not None:
+    if _has_landmark(p):
         where = describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)
         rows.append(f"nearest  {where}")
     if p.marking is not None:
@@ -321,7 +338,7 @@ def result_lines(location: Location, unit: str) -> list[str]:
     terms = sorted((c for c in p.contributions if c.route_m >= 0.05), key=lambda c: -c.route_m)
     worst = format_distance(p.worst_case_m, unit)
     lines.append(f"± is the root-sum-square of (worst case ± {worst}):")
-    lines.append(", ".join(f"{_SHORT_TERMS.get(c.name, c.name)} {format_distance(c.route_m, unit)}"
+    lines.append(", ".join(f"{_short_term(c.name)} {format_distance(c.route_m, unit)}"
                            for c in terms) or "no term above 0.05 m")
     two = location.two_ended
     if two is not None:
@@ -378,18 +395,26 @@ class FaultScreen(Screen[None]):
                                       "was set to the fibre's")
                 with Vertical(classes="panel", id="fault-fibre-panel") as panel:
                     panel.border_title = "Fibre and cable"
-                    yield Select([("index typed", TYPED)] + [(f.name, f.name) for f in fibres],
-                                 value=fibre_name, id="fault-fibre", compact=True,
-                                 allow_blank=False, tooltip="Fibre type: fills the group index")
-                    yield Select([("—", 0.0)], value=0.0, id="fault-wavelength", compact=True,
-                                 allow_blank=False, tooltip="OTDR wavelength")
+                    with Horizontal(classes="fault-row"):
+                        yield Label("Fibre", classes="fault-label")
+                        yield Select([("index typed", TYPED)]
+                                     + [(f.name, f.name) for f in fibres],
+                                     value=fibre_name, id="fault-fibre", compact=True,
+                                     allow_blank=False, tooltip="Fibre type: fills the group index")
+                    with Horizontal(classes="fault-row"):
+                        yield Label("Wavelength", classes="fault-label")
+                        yield Select([("—", 0.0)], value=0.0, id="fault-wavelength",
+                                     compact=True, allow_blank=False, tooltip="OTDR wavelength")
                     yield NumberField("Group index", field_id="fault-ior", placeholder="1.4677",
                                       tooltip="The fibre's group index (filled from the preset; "
                                       "type the cable's own if you have it)")
-                    yield Select([("helix typed", TYPED)] + [(c.name, c.name) for c in cables],
-                                 value=cable_name, id="fault-cable", compact=True,
-                                 allow_blank=False,
-                                 tooltip="Cable construction: fills a typical helix")
+                    with Horizontal(classes="fault-row"):
+                        yield Label("Cable", classes="fault-label")
+                        yield Select([("helix typed", TYPED)]
+                                     + [(c.name, c.name) for c in cables],
+                                     value=cable_name, id="fault-cable", compact=True,
+                                     allow_blank=False,
+                                     tooltip="Cable construction: fills a typical helix")
                     yield NumberField("Helix %", field_id="fault-helix", placeholder="1.5",
                                       tooltip="Helix / excess fibre length: how much longer the "
                                       "fibre is than the sheath")
@@ -409,6 +434,7 @@ class FaultScreen(Screen[None]):
                     yield NumberField("At start", field_id="fault-marking",
                                       placeholder="12345 (optional)")
                     with Horizontal(classes="fault-row"):
+                        yield Label("Marked", classes="fault-label")
                         yield Select([("metres", "m"), ("feet", "ft")], value="m",
                                      allow_blank=False, compact=True, id="fault-marking-unit")
                         yield Select([("count up", "up"), ("count down", "down")], value="up",
@@ -667,7 +693,7 @@ class FaultScreen(Screen[None]):
         warnings.update("\n".join(f"⚠ {w}" for w in self.location.warnings))
         warnings.display = bool(self.location.warnings)
         where = ""
-        if p.nearest_landmark is not None and p.offset_from_landmark_m is not None:
+        if _has_landmark(p) and p.nearest_landmark and p.offset_from_landmark_m is not None:
             where = f" · {describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)}"
         summary.update(f"Fault {format_distance(p.route_distance_m, unit)} ± "
                        f"{format_distance(p.uncertainty_m, unit)}{where}")
