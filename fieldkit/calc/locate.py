@@ -37,7 +37,9 @@ Each independent error source is given as a half-width (a typical ± figure, edi
 - sample spacing ``s`` (an event is located to within one sample; independent per reading),
 - group-index uncertainty ``δn``,
 - helix uncertainty ``δh`` (percentage points),
-- the route-distance uncertainty of each landmark (as-built records).
+- the route-distance uncertainty of each landmark (as-built records),
+- beyond the landmarks, the helix uncertainty once more, applied to the extrapolated stretch
+  (the cable there may not have the ratio measured between the landmarks).
 
 Each term is propagated by evaluating the whole chain with that one input moved by its half-width
 either way and taking the larger change ``u_i`` (the chain is piecewise linear, so this is the
@@ -459,6 +461,9 @@ class _Chain:
     b_shown_m: float | None = None
     total_shown_m: float | None = None
     weight_a: float = 1.0  # 1: the reading from A alone; less: the two-ended combination
+    # Beyond the landmarks the measured ratio is assumed to hold; this moves it by a helix change
+    # (percentage points) to say how far it may not.
+    extrapolation_helix_delta: float = 0.0
 
     def fiber(self, shown_m: float, offset_m: float) -> float:
         return (shown_m * self.scale + offset_m) * self.index_set / self.group_index
@@ -507,6 +512,8 @@ class _Chain:
             lo, hi = anchors[0], anchors[-1]
             basis = "extrapolated"
         fiber_per_sheath = (hi[1] - lo[1]) / (hi[2] - lo[2])
+        if basis == "extrapolated":
+            fiber_per_sheath *= 1.0 + self.extrapolation_helix_delta / 100.0
         if basis == "extrapolated" and fiber_m > anchors[-1][1]:
             sheath_m = anchors[-1][2] + (fiber_m - anchors[-1][1]) / fiber_per_sheath
             between = (anchors[-1][0], anchors[-1][0])
@@ -533,6 +540,9 @@ def _terms(chain: _Chain, inp: LocateInput, two_ended: bool) -> list[tuple[str, 
         ("helix", lambda k: replace(chain, helix_percent=max(
             0.0, chain.helix_percent + k * err.helix_uncertainty_percent))),
     ]
+    if chain.landmark_names and err.helix_uncertainty_percent > 0:
+        terms.append(("helix beyond the landmarks", lambda k: replace(
+            chain, extrapolation_helix_delta=k * err.helix_uncertainty_percent)))
     for i, name in enumerate(chain.landmark_names):
         def moved_reading(k: float, i: int = i) -> _Chain:
             shown = list(chain.landmark_shown_m)

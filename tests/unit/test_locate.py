@@ -298,3 +298,20 @@ def test_route_and_sheath_round_trip(route: float, loops: list[tuple[float, floa
     slack = tuple(SlackLoop(p, length) for p, length in loops)
     back, _ = route_from_cable(cable_at_route(route, slack), slack)
     assert back == pytest.approx(route, abs=1e-6)
+
+
+def test_extrapolation_carries_a_helix_term_for_the_unmeasured_stretch() -> None:
+    # one landmark HH 3 (1500 m OTDR, 1460 m route); fault 2040 m: ratio 1500/1460 = 1.027397,
+    # 540 m of fibre past HH 3 = 525.600 m of sheath. With the helix ± 0.5 points the stretch may
+    # be 525.600 / 0.995 = 528.241 (+2.641) or 525.600 / 1.005 = 522.985 (−2.615) m: term 2.641
+    p = locate(LocateInput(otdr_distance_m=2040, group_index=1.468, helix_percent=2.0,
+                           landmarks=(Landmark("HH 3", 1500, 1460),),
+                           errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    assert p.route_distance_m == pytest.approx(1460 + 525.600, abs=1e-3)
+    terms = {c.name: c.route_m for c in p.contributions}
+    assert terms["helix beyond the landmarks"] == pytest.approx(2.641, abs=1e-3)
+    # between landmarks the same term is zero: nothing is extrapolated
+    inside = locate(LocateInput(otdr_distance_m=1000, group_index=1.468, helix_percent=2.0,
+                                landmarks=(Landmark("HH 3", 1500, 1460),),
+                                errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    assert "helix beyond the landmarks" not in {c.name for c in inside.contributions}
