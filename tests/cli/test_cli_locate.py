@@ -140,3 +140,21 @@ def test_saving_onto_a_job_link(tmp_path: Path) -> None:
     assert fault.by == "ana"
     assert fault.low_m < 2000.0 < fault.high_m
     assert fault.inputs["typed"]["distance"] == "2040"
+
+
+def test_a_saved_fault_shows_in_the_job_export(tmp_path: Path) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    data_dir = tmp_path / "d"
+    job = JobStore(data_dir / "jobs").create("Reservoir feed")
+    saved = run("--distance", "2040", "--ior", "1.468", "--helix", "2", "--job", job.id,
+                "--link", "Feed 1", "--data-dir", str(data_dir))
+    assert saved.returncode == 0, saved.stderr
+    assert "Saved onto job" in saved.stdout
+    export = subprocess.run([sys.executable, "-m", "fieldkit", "jobs", "export", job.id,
+                             "--format", "md", "--data-dir", str(data_dir)],
+                            capture_output=True, text=True, timeout=60)
+    assert export.returncode == 0, export.stderr
+    assert "Feed 1: located faults" in export.stdout
+    # 2040 / 1.02 = 2000 m of route
+    assert "| 2000.0 |" in export.stdout
