@@ -1,0 +1,674 @@
+"""The budget workspace: build a link item by item and read its loss at each wavelength.
+
+The link is a list of items (fibre segments in order from end A, mated connector pairs, splices,
+splitters and other components). Pick one in the list to edit it below; the totals, the
+breakdown and the application and transceiver checks update on every keystroke. The same
+written description goes through :mod:`fieldkit.linkspec` as ``fieldkit budget`` uses, so the
+screen and the CLI always agree.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Any
+
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Button, Footer, Header, Input, Label, OptionList, Select, Static
+
+from fieldkit import safety
+from fieldkit.calc.units import InputError
+from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
+
+TYPED = "__typed__"
+_PAD = "\u00a0\u00a0"  # leading spaces that survive the text layout
+#: The second item field also takes ``1310=0.35 dB/km; 1550=0.22 dB/km`` and names.
+EXTRA_CHARS = QUANTITY_CHARS[:-2] + "=;:()]*"
+
+#: Item kinds: what the list shows and what each field of the editor means for it.
+KINDS: dict[str, dict[str, str]] = {
+    "fibre": {"title": "Fibre", "preset": "Fibre", "value": "Length", "extra": "dB/km",
+              "value_hint": "1.2 km, 3900 ft", "extra_hint": "0.35 dB/km or 1310=0.35 dB/km; "
+              "1550=0.22 dB/km"},
+    "connectors": {"title": "Connectors", "preset": "Grade", "value": "Pairs", "extra": "Each",
+                   "value_hint": "mated pairs incl. both ends", "extra_hint": "0.5 dB"},
+    "splices": {"title": "Splices", "preset": "Grade", "value": "Count", "extra": "Each",
+                "value_hint": "6", "extra_hint": "0.1 dB"},
+    "splitter": {"title": "Splitter", "preset": "Preset", "value": "Split", "extra": "Excess",
+                 "value_hint": "1x32", "extra_hint": "2.0 dB"},
+    "component": {"title": "Component", "preset": "Preset", "value": "Count", "extra": "",
+                  "value_hint": "1", "extra_hint": ""},
+    "attenuator": {"title": "Attenuator", "preset": "", "value": "Loss", "extra": "",
+                   "value_hint": "5 dB", "extra_hint": ""},
+    "other": {"title": "Other loss", "preset": "", "value": "Loss", "extra": "Name",
+              "value_hint": "0.5 dB", "extra_hint": "patch cord, closure ..."},
+}
+ADD_KINDS = ("fibre", "splices", "splitter", "component", "attenuator", "other", "connectors")
+
+_PAIR = re.compile(r"^\s*(\d+(?:[.,]\d+)?\s*(?:nm)?)\s*[=:@]\s*(.+?)\s*$")
+
+
+def _minus(text: str) -> str:
+    """Negative numbers with the typographic minus, leaving names like 10GBASE-LR alone."""
+    return re.sub(r"(?<![\w.])-(?=\d)", "\u2212", text)
+
+
+def attenuation_entry(text: str) -> Any:
+    """A typed attenuation as the link description takes it: one coefficient, or
+    ``1310=0.35 dB/km; 1550=0.22 dB/km`` (``;`` between wavelengths)."""
+    parts = [p for p in re.split(r";", text) if p.strip()]
+    pairs = [_PAIR.match(p) for p in parts]
+    if parts and all(pairs):
+        return {m.group(1): m.group(2) for m in pairs if m}
+    if len(parts) > 1 or any(pairs):
+        raise InputError("attenuation: give one coefficient, or NM=COEF for each wavelength "
+                         "separated by ';'")
+    return text
+
+
+def item_entry(item: dict[str, str]) -> tuple[str, Any]:
+    """Where an item goes in the link description, and its entry there."""
+    kind, preset, value, extra = item["kind"], item.get("preset") or "", item.get("value", ""), \
+        item.get("extra", "")
+    if kind == "fibre":
+        seg: dict[str, Any] = {"length": value}
+        if preset == TYPED:
+            seg["attenuation"] = attenuation_entry(extra)
+        else:
+            seg["fibre"] = preset
+        return "segments", seg
+    if kind in ("connectors", "splices"):
+        entry: dict[str, Any] = {"count": value or ("2" if kind == "connectors" else "0")}
+        if preset == TYPED:
+            entry["loss"] = extra
+            if kind == "splices":
+                entry["method"] = "fusion"
+        else:
+            entry["grade"] = preset
+        return kind, entry
+    if kind == "splitter":
+        split: dict[str, Any] = {"splitter": value}
+        if preset == TYPED:
+            split["excess"] = extra
+        elif preset:
+            split["preset"] = preset
+        return "components", split
+    if kind == "component":
+        return "components", {"preset": preset, "count": value or "1"}
+    if kind == "attenuator":
+        return "components", {"kind": "attenuator", "loss": value}
+    return "components", {"kind": "other", "name": extra.strip() or "other loss", "loss": value}
+
+
+def item_text(index: int, item: dict[str, str]) -> str:
+    """One line of the item list."""
+    kind = item["kind"]
+    preset = item.get("preset") or ""
+    value = item.get("value", "").strip() or "?"
+    extra = item.get("extra", "").strip()
+    if kind == "fibre":
+        what = f"typed {extra or '? dB/km'}" if preset == TYPED else preset
+        return f"{index}. Fibre {what}, {value}"
+    if kind == "connectors":
+        each = extra if preset == TYPED else preset
+        return f"{index}. {value} mated pairs, {each}"
+    if kind == "splices":
+        each = extra if preset == TYPED else preset
+        return f"{index}. {value} splices, {each}"
+    if kind == "splitter":
+        return f"{index}. Splitter {value}" + (f", excess {extra}" if preset == TYPED else "")
+    if kind == "component":
+        return f"{index}. {value} × {preset}"
+    if kind == "attenuator":
+        return f"{index}. Attenuator {value}"
+    return f"{index}. {extra or 'Other loss'} {value}"
+
+
+def spec_from_items(items: list[dict[str, str]], settings: dict[str, Any]) -> dict[str, Any]:
+    """The written link description of the workspace's items and settings."""
+    spec: dict[str, Any] = {"segments": [], "splices": [], "components": []}
+    connectors = 0
+    for item in items:
+        where, entry = item_entry(item)
+        if where == "connectors":
+            connectors += 1
+            spec["connectors"] = entry
+        else:
+            spec[where].append(entry)
+    if connectors == 0:
+        spec["connectors"] = {"count": 0, "loss": "0 dB"}
+    spec.update({k: v for k, v in settings.items() if v not in (None, "", [])})
+    return spec
+
+
+class BudgetScreen(Screen[None]):
+    """Build a link, read its budget per wavelength, check an application or a transceiver."""
+
+    CSS_PATH = "budget.tcss"
+    AUTO_FOCUS = "#item-value"
+    BINDINGS = [
+        Binding("ctrl+n", "add_item", "Add", id="budget.add",
+                tooltip="Add an item of the kind chosen beside the Add button"),
+        Binding("ctrl+r", "remove_item", "Remove", id="budget.remove",
+                tooltip="Remove the item picked in the list"),
+        Binding("ctrl+up,f7", "move_item(-1)", "Up", id="budget.up", show=False,
+                tooltip="Move the picked item towards end A"),
+        Binding("ctrl+down,f8", "move_item(1)", "Down", id="budget.down", show=False,
+                tooltip="Move the picked item towards end B"),
+        Binding("ctrl+s", "save", "Save to job", id="budget.save",
+                tooltip="Save this budget onto a job's link"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.items: list[dict[str, str]] = [
+            {"kind": "fibre", "preset": "OS2", "value": "", "extra": ""},
+            {"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""},
+        ]
+        self.current = 0
+        self.report: Any = None
+        self.resolved: Any = None
+        self.problem: str | None = None
+
+    # -- presets -------------------------------------------------------------------------
+    @property
+    def library(self) -> Any:
+        from fieldkit.presets import load_presets
+
+        return load_presets(self.app.config_dir)  # type: ignore[attr-defined]
+
+    def _preset_options(self, kind: str) -> list[tuple[str, str]]:
+        lib = self.library
+        if kind == "fibre":
+            return [(n, n) for n in lib.fibres] + [("typed attenuation", TYPED)]
+        if kind == "connectors":
+            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.connectors.items()] + \
+                [("typed loss", TYPED)]
+        if kind == "splices":
+            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.splices.items()] + \
+                [("typed loss", TYPED)]
+        if kind == "splitter":
+            return [(n, n) for n, p in lib.components.items() if p.kind == "splitter"] + \
+                [("typed excess", TYPED)]
+        if kind == "component":
+            return [(n, n) for n, p in lib.components.items() if p.kind != "splitter"]
+        return []
+
+    # -- layout --------------------------------------------------------------------------
+    @staticmethod
+    def _field(label: str, field_id: str, placeholder: str, *, label_id: str | None = None,
+               tooltip: str | None = None) -> ComposeResult:
+        with Vertical(id=f"{field_id}-field", classes="bf-field"):
+            with Horizontal(classes="bf-row"):
+                yield Label(label, classes="bf-label", id=label_id)
+                yield Input(placeholder=placeholder, type="text",
+                            restrict=EXTRA_CHARS if field_id == "item-extra" else QUANTITY_CHARS,
+                            compact=True, id=field_id, tooltip=tooltip)
+            yield Static("", classes="field-error", id=f"{field_id}-error")
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with VerticalScroll(id="budget-body"):
+            with Vertical(classes="two-col"):
+                with Vertical(classes="col"):
+                    with Vertical(id="link-panel", classes="panel") as panel:
+                        panel.border_title = "Link, end A to end B"
+                        yield OptionList(id="items")
+                        with Horizontal(id="item-buttons"):
+                            yield Select([(KINDS[k]["title"], k) for k in ADD_KINDS],
+                                         value="fibre", allow_blank=False, compact=True,
+                                         id="add-kind", tooltip="Kind of item to add")
+                            yield Button("Add", id="add", compact=True,
+                                         tooltip="Add an item (Ctrl+N)")
+                            yield Button("Del", id="remove", compact=True,
+                                         tooltip="Remove the picked item (Ctrl+R)")
+                            yield Button("↑", id="up", compact=True,
+                                         tooltip="Move up (Ctrl+Up or F7)")
+                            yield Button("↓", id="down", compact=True,
+                                         tooltip="Move down (Ctrl+Down or F8)")
+                    with Vertical(id="item-panel", classes="panel") as panel:
+                        panel.border_title = "Item"
+                        with Horizontal(id="item-preset-row", classes="bf-row"):
+                            yield Label("Fibre", classes="bf-label", id="item-preset-label")
+                            yield Select([], allow_blank=True, compact=True, id="item-preset",
+                                         prompt="choose")
+                        yield from self._field("Length", "item-value", "1.2 km",
+                                               label_id="item-value-label")
+                        yield from self._field("dB/km", "item-extra", "0.35 dB/km",
+                                               label_id="item-extra-label")
+                    yield Static("", id="budget-summary", markup=False)
+                    with Vertical(id="settings-panel", classes="panel") as panel:
+                        panel.border_title = "Wavelengths and checks"
+                        yield from self._field("λ nm", "wavelengths", "default by fibre family",
+                                               tooltip="e.g. 1310, 1550 (blank: 850/1300 "
+                                               "multimode, 1310/1550 single-mode)")
+                        yield from self._field("Margin", "margin", "design margin, e.g. 3 dB",
+                                               tooltip="repairs and ageing; shown beside the "
+                                               "link loss, not in it")
+                        with Horizontal(classes="bf-row"):
+                            yield Label("Applic.", classes="bf-label")
+                            yield Select([], allow_blank=True, compact=True, id="application",
+                                         prompt="no application check")
+                        with Horizontal(classes="bf-row"):
+                            yield Label("Transc.", classes="bf-label")
+                            yield Select([], allow_blank=True, compact=True, id="transceiver",
+                                         prompt="no transceiver check")
+                        with Vertical(id="tx-levels"):
+                            yield from self._field("Tx min", "tx-min", "-8.2 dBm")
+                            yield from self._field("Tx max", "tx-max", "0.5 dBm")
+                            yield from self._field("Rx sens", "rx-sens", "-14.4 dBm")
+                            yield from self._field("Rx over", "rx-over", "0.5 dBm")
+                with Vertical(classes="col"):
+                    with Vertical(id="result-panel", classes="panel") as panel:
+                        panel.border_title = "Budget"
+                        yield Static("", id="budget-problem", classes="field-error")
+                        yield Static("", id="budget-out", classes="result", markup=False)
+                    with Vertical(id="application-panel", classes="panel") as panel:
+                        panel.border_title = "Application"
+                        yield Static("", id="application-out", classes="result", markup=False)
+                    with Vertical(id="transceiver-panel", classes="panel") as panel:
+                        panel.border_title = "Transceiver"
+                        yield Static("", id="transceiver-out", classes="result", markup=False)
+                    yield Static("", id="budget-saved", classes="field-note", markup=False)
+                    yield Button("Save to job (Ctrl+S)", id="save", compact=True)
+                    yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        lib = self.library
+        self.query_one("#application", Select).set_options([(n, n) for n in lib.applications])
+        self.query_one("#transceiver", Select).set_options(
+            [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)])
+        self.query_one("#tx-levels").display = False
+        for error in self.query(".field-error"):
+            error.display = False
+        if lib.problems:
+            self.notify("Preset problems: " + "; ".join(lib.problems), severity="warning",
+                        timeout=10)
+        self._refresh_list()
+        self._load_item()
+        self.recompute()
+
+    # -- the item list -------------------------------------------------------------------
+    def _refresh_list(self) -> None:
+        items = self.query_one("#items", OptionList)
+        items.set_options([item_text(i + 1, it) for i, it in enumerate(self.items)])
+        if self.items:
+            items.highlighted = min(self.current, len(self.items) - 1)
+
+    def _update_list_line(self) -> None:
+        items = self.query_one("#items", OptionList)
+        if 0 <= self.current < len(self.items):
+            items.replace_option_prompt_at_index(self.current,
+                                                 item_text(self.current + 1,
+                                                           self.items[self.current]))
+
+    def _load_item(self) -> None:
+        """Show the picked item in the editor."""
+        panel = self.query_one("#item-panel")
+        if not self.items:
+            panel.display = False
+            return
+        panel.display = True
+        item = self.items[self.current]
+        kind = KINDS[item["kind"]]
+        panel.border_title = f"Item {self.current + 1}: {kind['title']}"
+        preset_row = self.query_one("#item-preset-row")
+        preset = self.query_one("#item-preset", Select)
+        if kind["preset"]:
+            preset_row.display = True
+            self.query_one("#item-preset-label", Label).update(kind["preset"])
+            options = self._preset_options(item["kind"])
+            preset.set_options(options)
+            values = [v for _, v in options]
+            if item.get("preset") in values:
+                preset.value = item["preset"]
+        else:
+            preset_row.display = False
+        self.query_one("#item-value-label", Label).update(kind["value"])
+        value = self.query_one("#item-value", Input)
+        value.placeholder = kind["value_hint"]
+        value.value = item.get("value", "")
+        self._show_extra()
+        extra = self.query_one("#item-extra", Input)
+        extra.placeholder = kind["extra_hint"]
+        extra.value = item.get("extra", "")
+
+    def _show_extra(self) -> None:
+        item = self.items[self.current]
+        kind = KINDS[item["kind"]]
+        typed = item.get("preset") == TYPED
+        wanted = bool(kind["extra"]) and (item["kind"] == "other" or typed)
+        self.query_one("#item-extra-field").display = wanted
+        self.query_one("#item-extra-label", Label).update(kind["extra"])
+
+    @on(OptionList.OptionHighlighted, "#items")
+    def _picked(self, event: OptionList.OptionHighlighted) -> None:
+        index = event.option_index
+        if index != self.current and 0 <= index < len(self.items):
+            self.current = index
+            self._load_item()
+            self._check_item_fields()
+
+    @on(Select.Changed, "#item-preset")
+    def _preset_changed(self, event: Select.Changed) -> None:
+        if not self.items or event.value is Select.NULL:
+            return
+        item = self.items[self.current]
+        if event.value not in [v for _, v in self._preset_options(item["kind"])]:
+            return
+        if item.get("preset") != event.value:
+            item["preset"] = str(event.value)
+            self._show_extra()
+            self._update_list_line()
+            self.recompute()
+
+    @on(Input.Changed, "#item-value, #item-extra")
+    def _item_typed(self, event: Input.Changed) -> None:
+        if not self.items:
+            return
+        key = "value" if event.input.id == "item-value" else "extra"
+        item = self.items[self.current]
+        if item.get(key, "") != event.value:
+            item[key] = event.value
+            self._update_list_line()
+        self._check_item_fields()
+        self.recompute()
+
+    def _check_item_fields(self) -> None:
+        """Show the problem of the picked item's own fields beside them."""
+        from fieldkit import linkspec
+
+        if not self.items:
+            return
+        item = self.items[self.current]
+        value, extra = item.get("value", ""), item.get("extra", "")
+        value_error = extra_error = ""
+        try:
+            kind = item["kind"]
+            if kind == "fibre":
+                if value.strip():
+                    linkspec.length_m(value, "length")
+            elif kind in ("connectors", "splices", "component"):
+                if value.strip():
+                    linkspec.count(value, KINDS[kind]["value"].lower())
+            elif kind == "splitter":
+                if value.strip():
+                    linkspec.parse_splitter(value)
+            elif value.strip():
+                linkspec.loss_db(value, "loss")
+        except InputError as exc:
+            value_error = str(exc)
+        try:
+            if item.get("preset") == TYPED and extra.strip():
+                if item["kind"] == "fibre":
+                    entry = attenuation_entry(extra)
+                    linkspec.custom_fibre(entry)
+                else:
+                    linkspec.loss_db(extra, KINDS[item["kind"]]["extra"].lower())
+        except InputError as exc:
+            extra_error = str(exc)
+        self._error("item-value", value_error)
+        self._error("item-extra", extra_error)
+
+    def _error(self, field_id: str, message: str) -> None:
+        error = self.query_one(f"#{field_id}-error", Static)
+        error.update(message)
+        error.display = bool(message)
+
+    # -- item actions --------------------------------------------------------------------
+    def action_add_item(self) -> None:
+        kind = str(self.query_one("#add-kind", Select).value)
+        if kind == "connectors" and any(i["kind"] == "connectors" for i in self.items):
+            self.notify("The link has one connectors line: edit its number of mated pairs.",
+                        severity="warning")
+            self.current = next(i for i, it in enumerate(self.items)
+                                if it["kind"] == "connectors")
+            self._refresh_list()
+            self._load_item()
+            return
+        options = self._preset_options(kind)
+        preset = ""
+        if kind == "splices":
+            preset = "fusion" if "fusion" in self.library.splices else options[0][1]
+        elif kind == "connectors":
+            preset = "TIA-568.3-D" if "TIA-568.3-D" in self.library.connectors else options[0][1]
+        elif kind == "fibre" and self.items:
+            fibres = [i.get("preset", "") for i in self.items if i["kind"] == "fibre"]
+            preset = fibres[-1] if fibres else options[0][1]
+        elif options:
+            preset = options[0][1]
+        defaults = {"splitter": "1x32", "component": "1", "connectors": "2"}
+        item = {"kind": kind, "preset": preset, "value": defaults.get(kind, ""), "extra": ""}
+        at = self.current + 1 if self.items else 0
+        self.items.insert(at, item)
+        self.current = at
+        self._refresh_list()
+        self._load_item()
+        self.query_one("#item-value", Input).focus()
+        self.recompute()
+
+    def action_remove_item(self) -> None:
+        if not self.items:
+            return
+        if sum(1 for i in self.items if i["kind"] == "fibre") == 1 and \
+                self.items[self.current]["kind"] == "fibre":
+            self.notify("A link needs at least one fibre segment.", severity="warning")
+            return
+        del self.items[self.current]
+        self.current = max(0, min(self.current, len(self.items) - 1))
+        self._refresh_list()
+        self._load_item()
+        self.recompute()
+
+    def action_move_item(self, step: int) -> None:
+        target = self.current + step
+        if not self.items or not 0 <= target < len(self.items):
+            return
+        self.items[self.current], self.items[target] = self.items[target], self.items[self.current]
+        self.current = target
+        self._refresh_list()
+        self.recompute()
+
+    @on(Button.Pressed)
+    def _button(self, event: Button.Pressed) -> None:
+        actions = {"add": self.action_add_item, "remove": self.action_remove_item,
+                   "up": lambda: self.action_move_item(-1),
+                   "down": lambda: self.action_move_item(1), "save": self.action_save}
+        action = actions.get(event.button.id or "")
+        if action is not None:
+            action()
+
+    # -- settings ------------------------------------------------------------------------
+    @on(Input.Changed, "#wavelengths, #margin, #tx-min, #tx-max, #rx-sens, #rx-over")
+    def _setting_typed(self, event: Input.Changed) -> None:
+        self.recompute()
+
+    @on(Select.Changed, "#application, #transceiver")
+    def _check_changed(self, event: Select.Changed) -> None:
+        self.query_one("#tx-levels").display = (
+            self.query_one("#transceiver", Select).value == TYPED)
+        self.recompute()
+
+    def _settings(self) -> dict[str, Any]:
+        """The typed settings, each checked beside its field; problems raise InputError."""
+        from fieldkit import linkspec
+
+        out: dict[str, Any] = {}
+        problems: list[str] = []
+        text = self.query_one("#wavelengths", Input).value
+        try:
+            parts = [p for p in re.split(r"[\s;/]+|,\s+", text.strip()) if p]
+            out["wavelengths"] = [linkspec.wavelength_nm(p) for p in parts]
+            self._error("wavelengths", "")
+        except InputError as exc:
+            self._error("wavelengths", str(exc))
+            problems.append(str(exc))
+        margin = self.query_one("#margin", Input).value
+        try:
+            out["margin"] = f"{linkspec.loss_db(margin, 'design margin')} dB" if margin.strip() \
+                else ""
+            self._error("margin", "")
+        except InputError as exc:
+            self._error("margin", str(exc))
+            problems.append(str(exc))
+        application = self.query_one("#application", Select).value
+        if application is not Select.NULL:
+            out["application"] = application
+        transceiver = self.query_one("#transceiver", Select).value
+        if transceiver == TYPED:
+            levels: dict[str, Any] = {}
+            for field_id, key, what in (("tx-min", "tx_min_dbm", "Tx minimum"),
+                                        ("tx-max", "tx_max_dbm", "Tx maximum"),
+                                        ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
+                                        ("rx-over", "rx_overload_dbm", "Rx overload")):
+                typed = self.query_one(f"#{field_id}", Input).value
+                try:
+                    levels[key] = linkspec.level_dbm(typed, what)
+                    self._error(field_id, "")
+                except InputError as exc:
+                    self._error(field_id, str(exc) if typed.strip() else "")
+                    problems.append(str(exc))
+            out["transceiver"] = levels
+        elif transceiver is not Select.NULL:
+            out["transceiver"] = transceiver
+        if problems:
+            raise InputError(problems[0])
+        return out
+
+    # -- the result ----------------------------------------------------------------------
+    def recompute(self) -> None:
+        from fieldkit import linkspec
+
+        problem = self.query_one("#budget-problem", Static)
+        try:
+            settings = self._settings()
+            spec = spec_from_items(self.items, settings)
+            resolved = linkspec.resolve(spec, self.library)
+            report = resolved.evaluate()
+        except InputError as exc:
+            self.report = self.resolved = None
+            self.problem = str(exc)
+            problem.update(self._explain(str(exc)))
+            problem.display = True
+            self.query_one("#budget-out", Static).update("")
+            self.query_one("#budget-summary", Static).update(self._explain(str(exc)))
+            self.query_one("#application-out", Static).update("")
+            self.query_one("#transceiver-out", Static).update("")
+            return
+        self.report, self.resolved, self.problem = report, resolved, None
+        problem.display = False
+        self._show(report)
+
+    def _explain(self, message: str) -> str:
+        # The description numbers segments; tell the user which list item that is.
+        match = re.match(r"segment (\d+): (.*)", message)
+        if match:
+            n = int(match.group(1))
+            fibres = [i for i, it in enumerate(self.items) if it["kind"] == "fibre"]
+            if 0 < n <= len(fibres):
+                return f"item {fibres[n - 1] + 1}: {match.group(2)}"
+        return message
+
+    def _show(self, report: Any) -> None:
+        r = report.result
+        lines: list[str] = []
+        if report.result.notes:
+            lines.extend(f"Note: {n}" for n in report.result.notes)
+        for w in r.wavelengths:
+            typical = "—" if w.typical_loss_db is None else f"{w.typical_loss_db:.2f}"
+            lines.append(f"{w.wavelength_nm:g} nm  max {w.loss_db:.2f} dB  typ {typical} dB")
+            if r.margin_db:
+                lines.append(f"{_PAD}with {r.margin_db:.2f} dB margin: "
+                             f"{w.loss_with_margin_db:.2f} dB")
+            for item in w.items:
+                number = f"{item.loss_db:6.2f}".replace(" ", "\u00a0")
+                lines.append(f"{_PAD}{number}  {item.name}")
+        lines.append(f"Fibre length {r.length_m:g} m")
+        self.query_one("#budget-out", Static).update(Text("\n".join(lines)))
+        self.query_one("#budget-summary", Static).update(
+            "Budget: " + ", ".join(f"{w.wavelength_nm:g} nm {w.loss_db:.2f} dB"
+                                   for w in r.wavelengths)
+            + (f" (+{r.margin_db:.2f} dB margin)" if r.margin_db else ""))
+        app = report.application
+        if app is None:
+            self.query_one("#application-out", Static).update("Pick an application to check.")
+        else:
+            verdict = "PASS" if app.passed else "FAIL"
+            text = [f"{app.name} on {app.fibre}: {verdict}",
+                    f"loss {app.loss_db:.2f} of {app.loss_max_db:.2f} dB at "
+                    f"{app.wavelength_nm:g} nm: headroom {app.loss_headroom_db:+.2f} dB "
+                    f"{'ok' if app.loss_pass else 'OVER'}",
+                    f"after margin {app.margin_headroom_db:+.2f} dB",
+                    f"length {app.length_m:g} of {app.reach_m:g} m: headroom "
+                    f"{app.length_headroom_m:+g} m {'ok' if app.length_pass else 'OVER'}"]
+            if app.loss_min_db is not None:
+                text.append(f"lowest plausible {app.link_loss_min_db:.2f} dB, class minimum "
+                            f"{app.loss_min_db:.2f} dB {'ok' if app.min_pass else 'UNDER'}")
+            self.query_one("#application-out", Static).update(_minus("\n".join(text)))
+        tx = report.transceiver
+        if tx is None:
+            self.query_one("#transceiver-out", Static).update("Pick a transceiver to check.")
+        else:
+            verdict = "PASS" if tx.passed else "FAIL"
+            where = "" if tx.wavelength_nm is None else f" at {tx.wavelength_nm:g} nm"
+            text = [f"{tx.name}{where}: {verdict}",
+                    f"power budget {tx.power_budget_db:.2f} dB",
+                    f"margin {tx.margin_db:+.2f} dB (needs {tx.required_margin_db:.2f}) "
+                    f"{'ok' if tx.margin_pass else 'SHORT'}",
+                    f"received {tx.received_min_dbm:+.2f} to {tx.received_max_dbm:+.2f} dBm"]
+            if not tx.overload:
+                text.append("no attenuator needed")
+            elif tx.attenuator_fits and tx.attenuator_db is not None:
+                text.append(f"overload: add {tx.attenuator_db:g} dB attenuator (fits "
+                            f"{tx.attenuator_min_db:.2f}–{tx.attenuator_max_db:.2f} dB)")
+            else:
+                text.append(f"overload: needs ≥ {tx.attenuator_min_db:.2f} dB but the margin "
+                            f"allows {tx.attenuator_max_db:.2f} dB: no attenuator fits")
+            self.query_one("#transceiver-out", Static).update(_minus("\n".join(text)))
+
+    # -- saving --------------------------------------------------------------------------
+    def action_save(self) -> None:
+        from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+        if self.report is None:
+            self.notify(self.problem or "No budget to save yet.", severity="warning")
+            return
+        resolved, report = self.resolved, self.report
+        self.app.push_screen(JobLinkPicker(),
+                             lambda choice: self._save_to(choice, resolved, report))
+
+    def _save_to(self, choice: tuple[str, str] | None, resolved: Any, report: Any) -> None:
+        from fieldkit import linkspec, settings
+        from fieldkit.jobs.store import StoreError
+
+        if choice is None:
+            return
+        job_id, link_id = choice
+        by = settings.load(self.app.config_dir).get("name", "")  # type: ignore[attr-defined]
+        record = linkspec.budget_record(resolved, report, by=by if isinstance(by, str) else "")
+        names: dict[str, str] = {}
+
+        def change(job: Any) -> None:
+            link = job.link(link_id)
+            link.budget = record
+            if link.length_m is None:
+                link.length_m = resolved.link.length_m
+            if not link.fibre_type:
+                link.fibre_type = ", ".join(resolved.link.fibre_names)
+            names.update(job=job.name, link=link.label)
+
+        try:
+            self.app.store.update(job_id, change)  # type: ignore[attr-defined]
+        except (StoreError, KeyError) as exc:
+            message = str(exc.args[0]) if isinstance(exc, KeyError) and exc.args else str(exc)
+            self.notify(f"Not saved: {message}", severity="error")
+            self.query_one("#budget-saved", Static).update(f"Not saved: {message}")
+            return
+        text = f"Budget saved onto job {names['job']}, link {names['link']}."
+        self.query_one("#budget-saved", Static).update(text)
+        self.notify(text)

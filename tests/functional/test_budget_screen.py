@@ -1,0 +1,248 @@
+"""The budget workspace driven by keys and mouse at 80x24 and 44x22."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import Input, OptionList, Select, Static
+
+from fieldkit import locations
+from fieldkit.jobs.models import Job
+from fieldkit.jobs.store import JobStore
+from fieldkit.tui.app import make_app
+from fieldkit.tui.screens.budget import BudgetScreen
+from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+SIZES = [(80, 24), (44, 22)]
+
+
+def text_of(app, selector: str) -> str:
+    return str(app.screen.query_one(selector, Static).render())
+
+
+def make(tmp_path: Path):
+    return make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="budget")
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_typing_a_length_shows_the_budget(tmp_path: Path, size):
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, BudgetScreen)
+        assert screen.has_class("-wide" if size[0] >= 72 else "-narrow")
+        assert screen.focused is screen.query_one("#item-value", Input)
+        await pilot.press(*"12 km")
+        await pilot.pause()
+        # OS2 (ISO/IEC 11801-1, 0.4 dB/km, from memory): 12 × 0.4 = 4.80 dB, plus the two end
+        # connections at the TIA-568.3-D 0.75 dB: 1.50 dB -> 6.30 dB at 1310 and 1550 nm
+        out = text_of(app, "#budget-out")
+        assert "1310 nm  max 6.30 dB" in out and "1550 nm  max 6.30 dB" in out
+        assert "OS2 12 km × 0.4 dB/km" in out
+        assert "1310 nm 6.30 dB" in text_of(app, "#budget-summary")
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_bad_length_is_explained_beside_the_field_and_kept(tmp_path: Path, size):
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        await pilot.press(*"12 parsec")
+        await pilot.pause()
+        error = app.screen.query_one("#item-value-error", Static)
+        assert error.display and "unknown unit 'parsec'" in str(error.render())
+        assert app.screen.query_one("#item-value", Input).value == "12 parsec"
+        assert app.screen.report is None
+        assert "item 1: length" in text_of(app, "#budget-problem")
+        for _ in range(6):
+            await pilot.press("backspace")
+        await pilot.press("k", "m")
+        await pilot.pause()
+        assert not error.display
+        assert app.screen.report is not None
+
+
+async def test_add_splitter_and_splices_by_keys(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press(*"12 km")
+        app.screen.query_one("#add-kind", Select).value = "splitter"
+        await pilot.pause()
+        await pilot.press("ctrl+n")  # a 1x32 splitter after the fibre
+        await pilot.pause()
+        items = app.screen.query_one("#items", OptionList)
+        assert items.option_count == 3
+        assert app.screen.items[1]["kind"] == "splitter"
+        # 1x32 ideal 10·log10(32) = 15.0515 dB + 2.1 dB preset excess = 17.1515 dB;
+        # 4.80 + 17.15 + 1.50 = 23.45 dB
+        assert app.screen.report.result.at(1310).loss_db == pytest.approx(23.4515, abs=1e-4)
+        app.screen.query_one("#add-kind", Select).value = "splices"
+        await pilot.pause()
+        await pilot.press("ctrl+n")
+        await pilot.pause()
+        assert app.screen.focused is app.screen.query_one("#item-value", Input)
+        await pilot.press("6")
+        await pilot.pause()
+        # 6 fusion splices at the TIA-568.3-D 0.3 dB maximum = 1.80 dB -> 25.25 dB
+        assert app.screen.report.result.at(1310).loss_db == pytest.approx(25.2515, abs=1e-4)
+        assert "6 splices, fusion" in str(items.get_option_at_index(2).prompt)
+
+
+async def test_remove_and_reorder(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press(*"1 km")
+        screen = app.screen
+        screen.query_one("#add-kind", Select).value = "attenuator"
+        await pilot.pause()
+        await pilot.press("ctrl+n", *"5 dB")
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "attenuator", "connectors"]
+        await pilot.press("ctrl+down")
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "connectors", "attenuator"]
+        await pilot.press("f7")  # the same move up, for terminals without ctrl+arrows
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "attenuator", "connectors"]
+        # 0.4 + 5 + 1.5 = 6.9 dB
+        assert screen.report.result.at(1310).loss_db == pytest.approx(6.9, abs=1e-9)
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "connectors"]
+        assert screen.report.result.at(1310).loss_db == pytest.approx(1.9, abs=1e-9)
+        screen.current = 0
+        await pilot.press("ctrl+r")  # the only fibre segment stays
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "connectors"]
+
+
+async def test_mouse_add_and_second_fibre_mismatch(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#item-preset", Select).value = "G.652.D"
+        await pilot.press(*"4 km")
+        await pilot.pause()
+        await pilot.click("#add")  # adds another fibre segment (the default kind)
+        await pilot.pause()
+        screen.query_one("#item-preset", Select).value = "G.657.A2"
+        await pilot.pause()
+        screen.query_one("#item-value", Input).value = "100 m"
+        await pilot.pause()
+        row = screen.report.result.at(1310)
+        # MFD 9.2 / 8.6 µm (typical, presets): Gaussian overlap 0.019738 dB, its own line
+        joint = [i for i in row.items if i.kind == "mismatch"]
+        assert joint and joint[0].loss_db == pytest.approx(0.019738, abs=2e-6)
+        # 4 × 0.4 + 0.1 × 0.4 + 0.019738 + 1.5 = 3.159738 dB
+        assert row.loss_db == pytest.approx(3.159738, abs=1e-6)
+
+
+async def test_typed_attenuation_per_wavelength(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#item-preset", Select).value = "__typed__"
+        await pilot.pause()
+        assert screen.query_one("#item-extra-field").display
+        await pilot.press(*"10 km")
+        screen.query_one("#item-extra", Input).value = "1310=0.33 dB/km; 1550=0.19 dB/km"
+        await pilot.pause()
+        # 10 × 0.33 + 1.5 = 4.80 dB; 10 × 0.19 + 1.5 = 3.40 dB
+        result = screen.report.result
+        assert result.at(1310).loss_db == pytest.approx(4.8, abs=1e-9)
+        assert result.at(1550).loss_db == pytest.approx(3.4, abs=1e-9)
+        screen.query_one("#item-extra", Input).value = "0.33"
+        await pilot.pause()
+        error = screen.query_one("#item-extra-error", Static)
+        assert error.display and "no length unit" in str(error.render())
+
+
+async def test_application_and_transceiver_panels(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"8 km")
+        screen.query_one("#application", Select).value = "10GBASE-LR"
+        await pilot.pause()
+        # IEEE 802.3 Clause 52 (from memory): 6.2 dB; 3.2 + 1.5 = 4.7 dB, headroom +1.50 dB
+        out = text_of(app, "#application-out")
+        assert "10GBASE-LR on singlemode: PASS" in out and "+1.50 dB" in out
+        screen.query_one("#transceiver", Select).value = "__typed__"
+        await pilot.pause()
+        assert screen.query_one("#tx-levels").display
+        for field_id, value in (("tx-min", "-8.2"), ("tx-max", "0.5"), ("rx-sens", "-14.4"),
+                                ("rx-over", "0.5")):
+            screen.query_one(f"#{field_id}", Input).value = value
+        await pilot.pause()
+        # margin −8.2 − 4.7 + 14.4 = 1.5 dB
+        assert screen.report.transceiver.margin_db == pytest.approx(1.5, abs=1e-9)
+        assert "no attenuator needed" in text_of(app, "#transceiver-out")
+        screen.query_one("#tx-max", Input).value = "NaN"
+        await pilot.pause()
+        assert "not a number" in str(screen.query_one("#tx-max-error", Static).render())
+        assert screen.report is None
+
+
+async def test_margin_and_wavelengths_fields(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"2 km")
+        screen.query_one("#wavelengths", Input).value = "1310, 1625"
+        screen.query_one("#margin", Input).value = "3"
+        await pilot.pause()
+        result = screen.report.result
+        assert [w.wavelength_nm for w in result.wavelengths] == [1310.0, 1625.0]
+        # OS2 at 1625 nm (G.652.D range maximum, 0.4 dB/km): 0.8 + 1.5 = 2.3; + 3 dB margin
+        assert result.at(1625).loss_with_margin_db == pytest.approx(5.3, abs=1e-9)
+        screen.query_one("#wavelengths", Input).value = "1490, 2500"
+        await pilot.pause()
+        assert "not an optical wavelength" in str(
+            screen.query_one("#wavelengths-error", Static).render())
+
+
+async def test_save_onto_a_job_link(tmp_path: Path):
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Harbour Road duct")
+
+    def one_link(j: Job) -> None:
+        j.add_link("HR-01")
+
+    store.update(job.id, one_link)
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press(*"10 km")
+        await pilot.pause()
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert isinstance(app.screen, JobLinkPicker)
+        await pilot.press("enter")  # the job
+        await pilot.press("enter")  # its first link
+        await pilot.pause()
+        assert isinstance(app.screen, BudgetScreen)
+        assert "saved onto job Harbour Road duct, link HR-01" in text_of(app, "#budget-saved")
+    saved = store.load(job.id).links[0]
+    assert saved.budget is not None
+    # 10 × 0.4 + 1.5 = 5.5 dB at 1310 nm
+    assert saved.budget.at_wavelength(1310).loss_db == pytest.approx(5.5, abs=1e-9)
+    assert saved.budget.description["connector_loss_db"] == 0.75
+    assert saved.length_m == pytest.approx(10_000.0)
+
+
+async def test_save_without_a_budget_warns(tmp_path: Path):
+    app = make(tmp_path)
+    async with app.run_test(size=(44, 22), notifications=True) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert isinstance(app.screen, BudgetScreen)
+        assert any("length" in n.message for n in app._notifications)
