@@ -703,7 +703,7 @@ def _position_warnings(p: Position, prefix: str) -> list[str]:
             out.append(f"{prefix}Beyond the last landmark ({p.between[0]}): extrapolated with the "
                        "fibre-to-sheath ratio measured between the landmarks; confirm on site.")
         else:
-            out.append(f"{prefix}Before the first landmark ({p.between[1]}): extrapolated.")
+            out.append(f"{prefix}Before the first landmark ({p.between[0]}): extrapolated.")
     if p.in_slack is not None:
         out.append(f"{prefix}The fault falls inside a slack loop, {p.in_slack.describe()}: look "
                    "in the loop as well as along the run.")

@@ -24,7 +24,9 @@ def register(subparsers: Any) -> None:
         "distance, the nearest landmark and the sheath marking to look for, with an uncertainty "
         "range. Lengths take a unit (m, km, ft, kft, mi; a bare number is metres). Landmarks "
         "(OTDR distance with the same set-up, and route distance) are interpolated, which "
-        "cancels most index and helix error.",
+        "cancels most index and helix error. The range is the root-sum-square of independent "
+        "terms (instrument offset, scale error × distance, sample spacing, group index, helix); "
+        "the worst case, their sum, is shown beside it.",
     )
     reading = parser.add_argument_group("the reading (one of)")
     reading.add_argument("--distance", metavar="D", help="the event's distance as the OTDR shows "

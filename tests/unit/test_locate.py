@@ -315,3 +315,14 @@ def test_extrapolation_carries_a_helix_term_for_the_unmeasured_stretch() -> None
                                 landmarks=(Landmark("HH 3", 1500, 1460),),
                                 errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
     assert "helix beyond the landmarks" not in {c.name for c in inside.contributions}
+
+
+def test_before_the_first_landmark_is_extrapolated_and_named() -> None:
+    # a launch cord left on: the panel at 150 m OTDR is route 0, closure 1 at 1150 m / 1000 m;
+    # a reading of 100 m lies on the cord, before the panel
+    marks = (Landmark("panel", 150, 0), Landmark("closure 1", 1150, 1000))
+    result = locate(LocateInput(otdr_distance_m=100, group_index=1.4677, landmarks=marks,
+                                errors=NO_ERRORS))
+    assert result.position.basis == "extrapolated"
+    assert result.position.route_distance_m == 0.0
+    assert any("Before the first landmark (panel)" in w for w in result.warnings)

@@ -625,7 +625,8 @@ class FaultScreen(Screen[None]):
             sample_spacing_m=given(self._q("fault-sampling"), defaults.sample_spacing_m),
             group_index_uncertainty=given(self._n("fault-ior-u"),
                                           defaults.group_index_uncertainty),
-            helix_uncertainty_percent=given(self._n("fault-helix-u"), 0.0) if helix else 0.0,
+            helix_uncertainty_percent=(given(self._n("fault-helix-u"), 0.0)
+                                       if helix is not None else 0.0),
             landmark_route_uncertainty_m=given(self._q("fault-landmark-u"), 0.0),
         )
         field_problem = self._field_errors()
