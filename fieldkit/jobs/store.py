@@ -308,7 +308,14 @@ class JobStore:
             except NewerSchemaError as exc:
                 summary = exc.summary
             except StoreError:
-                continue
+                # Quarantined; if its backup was restored in its place, list that version.
+                try:
+                    job = self._read_job(Path(entry.path))
+                    st = os.stat(entry.path)
+                except (StoreError, OSError):
+                    continue
+                key = [st.st_ino, st.st_mtime_ns, st.st_size]
+                summary = JobSummary.of(job)
             else:
                 summary = JobSummary.of(job)
             summaries.append(summary)
