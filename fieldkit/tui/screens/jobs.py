@@ -1,6 +1,9 @@
 """The jobs workspace: find a job, read its links, results and notes, add a note, finish it,
 export it; F7 opens the end-of-day view.
 
+Keys work while a field has focus: Ctrl+F find, Ctrl+N note, Ctrl+O done or open, F8 export,
+F7 end of day (Ctrl+D and Ctrl+E belong to the text fields).
+
 Every change goes through ``JobStore.update`` (reload, apply, save under the job's lock), so a
 note typed here and a result saved by another program at the same moment are both kept.
 """
@@ -57,9 +60,9 @@ class JobsScreen(Screen[None]):
                 tooltip="Type words to find jobs by name, customer, site, crew or link"),
         Binding("ctrl+n", "focus_note", "Note", id="jobs.note",
                 tooltip="Type a note for this job, Enter saves it"),
-        Binding("ctrl+d", "toggle_done", "Done/open", id="jobs.done",
+        Binding("ctrl+o", "toggle_done", "Done/open", id="jobs.done",
                 tooltip="Mark the job done, or open again"),
-        Binding("ctrl+e", "export", "Export", id="jobs.export",
+        Binding("f8", "export", "Export", id="jobs.export",
                 tooltip="Write the job report as CSV, Markdown, HTML or a JSON hand-off"),
         Binding("f7", "end_of_day", "End of day", id="jobs.today",
                 tooltip="Today's jobs, result counts, failures and open items"),

@@ -1,0 +1,141 @@
+"""The jobs workspace and the end-of-day view, driven by keys and mouse at 80x24 and 44x22."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import Input, OptionList, Static
+
+from fieldkit import locations
+from fieldkit.jobs.demo import build, local_day_start
+from fieldkit.jobs.models import now
+from fieldkit.jobs.store import JobStore
+from fieldkit.tui.app import make_app
+from fieldkit.tui.screens.jobs import ExportDialog, JobsScreen
+from fieldkit.tui.screens.jobs_today import EndOfDayScreen
+
+SIZES = [(80, 24), (44, 22)]
+
+
+def _demo(data: Path) -> JobStore:
+    store = JobStore(locations.jobs_dir(data))
+    for job in build(local_day_start(now())):
+        store.save(job)
+    return store
+
+
+def _text(screen: object, selector: str) -> str:
+    return str(screen.query_one(selector, Static).render())  # type: ignore[attr-defined]
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_filter_open_note_and_done_by_keyboard(tmp_path: Path,
+                                                     size: tuple[int, int]) -> None:
+    store = _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, JobsScreen)
+        assert screen.query_one("#jobs-list", OptionList).option_count == 4
+        await pilot.press(*"reservoir")
+        await pilot.pause()
+        assert screen.query_one("#jobs-list", OptionList).option_count == 1
+        assert "1 of 4 jobs" in _text(screen, "#jobs-count")
+        await pilot.press("enter", "enter")  # to the list, open the job
+        await pilot.pause()
+        assert "North Reservoir feed repair" in _text(screen, "#job-head")
+        assert "RES-N-FEED fibre 5 1550 nm A->B: 4.63 dB" in _text(screen, "#job-failures")
+        await pilot.press("ctrl+n", *"Marks confirmed", "enter")  # a note in two keystrokes
+        await pilot.pause()
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+    saved = store.load("de30000000000003")
+    assert saved.notes[-1].text == "Marks confirmed"
+    assert saved.status == "done"
+
+
+async def test_note_keeps_an_entry_saved_meanwhile_by_another_program(tmp_path: Path) -> None:
+    store = _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        shown = app.screen._job  # type: ignore[attr-defined]
+        assert shown is not None
+        # Another program (say the CLI) appends while this screen shows the job.
+        JobStore(locations.jobs_dir(tmp_path / "d")).update(
+            shown.id, lambda j: j.add_note("from the CLI") and None)
+        await pilot.press("ctrl+n", *"from the screen", "enter")
+        await pilot.pause()
+    texts = [n.text for n in store.load(shown.id).notes]
+    assert texts[-2:] == ["from the CLI", "from the screen"]
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_mouse_picks_a_job_and_adds_a_note(tmp_path: Path, size: tuple[int, int]) -> None:
+    store = _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#jobs-filter", Input).value = "mill"
+        await pilot.pause()
+        assert await pilot.click("#jobs-list", offset=(4, 0))
+        await pilot.pause()
+        assert "Old Mill business park" in _text(screen, "#job-head")
+        screen.query_one("#job-note", Input).value = "Clicked"
+        screen.query_one("#job-note-add").scroll_visible(animate=False)
+        await pilot.pause()
+        assert await pilot.click("#job-note-add")
+        await pilot.pause()
+    assert store.load("de30000000000002").notes[-1].text == "Clicked"
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_end_of_day_view_counts_and_opens_a_job(tmp_path: Path,
+                                                      size: tuple[int, int]) -> None:
+    _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        await pilot.press("f7")
+        await pilot.pause()
+        day = app.screen
+        assert isinstance(day, EndOfDayScreen)
+        totals = _text(day, "#eod-totals")
+        # The demo day: 78 results, 2 failures, 5 in doubt (see tests/unit/test_jobs_today.py).
+        assert "78 results today" in totals and "2 fail" in totals and "5 in doubt" in totals
+        assert "SR-SPUR: no results yet" in _text(day, "#eod-detail")
+        wanted = day.query_one("#eod-jobs", OptionList).get_option_at_index(1).id
+        await pilot.press("down", "enter")
+        await pilot.pause()
+        assert isinstance(app.screen, JobsScreen)
+        assert app.screen._job is not None and app.screen._job.id == wanted
+
+
+async def test_export_dialog_writes_the_report(tmp_path: Path) -> None:
+    _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        job_id = app.screen._job.id  # type: ignore[attr-defined]
+        await pilot.press("f8")
+        await pilot.pause()
+        assert isinstance(app.screen, ExportDialog)
+        await pilot.press("up", "enter")  # from HTML up to Markdown
+        await pilot.pause()
+        assert isinstance(app.screen, JobsScreen)
+    report = tmp_path / "d" / "exports" / f"{job_id}.md"
+    assert "## Safety and disclaimer" in report.read_text(encoding="utf-8")
+
+
+async def test_empty_store_says_so(tmp_path: Path) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert "0 of 0 jobs" in _text(app.screen, "#jobs-count")
+        await pilot.press("ctrl+n", *"nowhere", "enter")
+        await pilot.pause()
+        assert "Pick a job first" in _text(app.screen, "#job-note-error")
+        assert app.screen.query_one("#job-note", Input).value == "nowhere"
