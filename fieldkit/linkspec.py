@@ -134,6 +134,8 @@ def length_m(value: Any, what: str = "length") -> float:
     metres = parse(_text_or_number(value, what), Kind.LENGTH, what=what).to("m")
     if metres < 0:
         raise InputError(f"{what}: {format_number(metres)} m is negative")
+    if not math.isfinite(metres) or metres > b.MAX_LENGTH_M:
+        raise InputError(f"{what}: {value} is longer than any fibre link; check the unit")
     return metres
 
 
@@ -142,6 +144,9 @@ def loss_db(value: Any, what: str = "loss") -> float:
     db = parse(_text_or_number(value, what), Kind.RATIO, default_unit="dB", what=what).to("dB")
     if db < 0:
         raise InputError(f"{what}: {format_number(db)} dB is negative; a loss is 0 or more")
+    if db > b.MAX_LOSS_DB:
+        raise InputError(f"{what}: {format_number(db)} dB is more than fieldkit accepts "
+                         f"({format_number(b.MAX_LOSS_DB)} dB); check the unit")
     return db
 
 
@@ -159,6 +164,9 @@ def attenuation_db_per_km(value: Any, what: str = "attenuation") -> float:
         raise exc
     if coef < 0:
         raise InputError(f"{what}: {format_number(coef)} dB/km is negative")
+    if coef > 1000:
+        raise InputError(f"{what}: {format_number(coef)} dB/km is more than any fibre; check "
+                         "the unit")
     return coef
 
 
@@ -169,6 +177,21 @@ def wavelength_nm(value: Any, what: str = "wavelength") -> float:
         raise InputError(f"{what}: {format_number(nm)} nm is not an optical wavelength "
                          "(200–2000 nm)")
     return nm
+
+
+def wavelength_list(value: Any, what: str = "wavelength") -> list[float]:
+    """Wavelengths typed as one value or a list ("1310, 1550", "1310 1550 nm").
+
+    Commas separate wavelengths here: "1310,1550" is two wavelengths, never 1310.155 nm.
+    """
+    if isinstance(value, (list, tuple)):
+        return [nm for v in value for nm in wavelength_list(v, what)]
+    if isinstance(value, str):
+        parts = [p for p in re.split(r"[,;\s]+(?!nm\b)", value.strip()) if p]
+        if not parts:
+            raise InputError(f"{what}: empty; type a wavelength in nm, e.g. 1310")
+        return [wavelength_nm(p, what) for p in parts]
+    return [wavelength_nm(value, what)]
 
 
 def count(value: Any, what: str) -> int:
@@ -246,7 +269,7 @@ def resolve(spec: Mapping[str, Any], library: PresetLibrary) -> ResolvedBudget:
     raw_nm = spec.get("wavelengths", spec.get("wavelengths_nm", []))
     if not isinstance(raw_nm, list):
         raw_nm = [raw_nm]
-    wavelengths = tuple(dict.fromkeys(wavelength_nm(v) for v in raw_nm))
+    wavelengths = tuple(dict.fromkeys(wavelength_list(raw_nm)))
     label = spec.get("label", "")
     if not isinstance(label, str):
         raise InputError("link: 'label' must be text")

@@ -41,17 +41,30 @@ WINDOW_MATCH_NM = 20.0
 STOCK_ATTENUATORS_DB: tuple[float, ...] = (1.0, 2.0, 3.0, 5.0, 7.0, 10.0, 15.0, 20.0)
 
 
-def _finite(x: float, what: str, *, low: float | None = None) -> float:
+#: Upper bounds that keep every sum finite and catch a slipped unit: no passive link is longer
+#: than 100 000 km, no single loss is above 1000 dB.
+MAX_LENGTH_M = 1e8
+MAX_LOSS_DB = 1000.0
+MAX_COUNT = 100_000
+
+
+def _finite(x: float, what: str, *, low: float | None = None,
+            high: float | None = None, unit: str = "") -> float:
     if isinstance(x, bool) or not isinstance(x, (int, float)) or not math.isfinite(x):
         raise InputError(f"{what}: {x!r} is not a finite number")
     if low is not None and x < low:
         raise InputError(f"{what}: {format_number(x)} must not be below {format_number(low)}")
+    if high is not None and x > high:
+        raise InputError(f"{what}: {format_number(x)}{unit} is more than fieldkit accepts "
+                         f"({format_number(high)}{unit}); check the unit")
     return float(x)
 
 
 def _count(n: int, what: str) -> int:
     if isinstance(n, bool) or not isinstance(n, int) or n < 0:
         raise InputError(f"{what}: {n!r} must be a whole number, 0 or more")
+    if n > MAX_COUNT:
+        raise InputError(f"{what}: {n} is more than fieldkit will count ({MAX_COUNT})")
     return n
 
 
@@ -75,7 +88,8 @@ class Segment:
     label: str = ""
 
     def __post_init__(self) -> None:
-        _finite(self.length_m, f"segment {self.label or self.fibre.name}: length", low=0.0)
+        _finite(self.length_m, f"segment {self.label or self.fibre.name}: length", low=0.0,
+                high=MAX_LENGTH_M, unit=" m")
 
 
 @dataclass(frozen=True)
@@ -90,9 +104,10 @@ class Connections:
 
     def __post_init__(self) -> None:
         _count(self.count, "mated connector pairs")
-        _finite(self.loss_max_db, "connector loss", low=0.0)
+        _finite(self.loss_max_db, "connector loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         if self.loss_typical_db is not None:
-            _finite(self.loss_typical_db, "typical connector loss", low=0.0)
+            _finite(self.loss_typical_db, "typical connector loss", low=0.0, high=MAX_LOSS_DB,
+                    unit=" dB")
 
 
 @dataclass(frozen=True)
@@ -108,9 +123,10 @@ class Splices:
 
     def __post_init__(self) -> None:
         _count(self.count, f"{self.method} splices")
-        _finite(self.loss_max_db, "splice loss", low=0.0)
+        _finite(self.loss_max_db, "splice loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         if self.loss_typical_db is not None:
-            _finite(self.loss_typical_db, "typical splice loss", low=0.0)
+            _finite(self.loss_typical_db, "typical splice loss", low=0.0, high=MAX_LOSS_DB,
+                    unit=" dB")
 
 
 @dataclass(frozen=True)
@@ -130,10 +146,11 @@ class Component:
 
     def __post_init__(self) -> None:
         _count(self.count, f"{self.name}: count")
-        _finite(self.loss_max_db, f"{self.name}: loss", low=0.0)
-        _finite(self.loss_min_db, f"{self.name}: minimum loss", low=0.0)
+        _finite(self.loss_max_db, f"{self.name}: loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
+        _finite(self.loss_min_db, f"{self.name}: minimum loss", low=0.0, high=MAX_LOSS_DB)
         if self.loss_typical_db is not None:
-            _finite(self.loss_typical_db, f"{self.name}: typical loss", low=0.0)
+            _finite(self.loss_typical_db, f"{self.name}: typical loss", low=0.0,
+                    high=MAX_LOSS_DB, unit=" dB")
 
 
 def splitter(outputs: int, *, inputs: int = 1, excess_max_db: float = 0.0,
@@ -182,7 +199,7 @@ class LinkDescription:
     def __post_init__(self) -> None:
         if not self.segments:
             raise InputError("link: give at least one fibre segment with a length")
-        _finite(self.margin_db, "design margin", low=0.0)
+        _finite(self.margin_db, "design margin", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         for nm in self.wavelengths_nm:
             _finite(nm, "wavelength", low=0.0)
             if not 200.0 <= nm <= 2000.0:

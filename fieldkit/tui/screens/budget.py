@@ -502,8 +502,7 @@ class BudgetScreen(Screen[None]):
         problems: list[str] = []
         text = self.query_one("#wavelengths", Input).value
         try:
-            parts = [p for p in re.split(r"[\s;/]+|,\s+", text.strip()) if p]
-            out["wavelengths"] = [linkspec.wavelength_nm(p) for p in parts]
+            out["wavelengths"] = linkspec.wavelength_list(text) if text.strip() else []
             self._error("wavelengths", "")
         except InputError as exc:
             self._error("wavelengths", str(exc))
@@ -550,7 +549,8 @@ class BudgetScreen(Screen[None]):
             spec = spec_from_items(self.items, settings)
             resolved = linkspec.resolve(spec, self.library)
             report = resolved.evaluate()
-        except InputError as exc:
+        except (InputError, ValueError, ArithmeticError) as exc:
+            # A problem in what was typed: say so and keep every field as it is.
             self.report = self.resolved = None
             self.problem = str(exc)
             problem.update(self._explain(str(exc)))
