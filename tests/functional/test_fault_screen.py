@@ -203,3 +203,43 @@ async def test_f5_opens_the_fault_workspace(tmp_path: Path) -> None:
         await pilot.press("f5")
         await pilot.pause()
         assert isinstance(app.screen, FaultScreen)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_clicking_a_landmark_row_opens_it_for_editing(tmp_path: Path,
+                                                           size: tuple[int, int]) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#fault-distance", Input).value = "2800"
+        landmarks = screen.query_one("#fault-landmarks", PointList)
+        landmarks.set_rows([{"name": "closure 6", "otdr": "2000", "route": "1950"},
+                            {"name": "closure 7", "otdr": "3400", "route": "3330"}])
+        await pilot.pause()
+        await _show(pilot, screen, "#fault-landmarks-rows")
+        await pilot.click("#fault-landmarks-rows", offset=(4, 1))  # the second row
+        await pilot.pause()
+        assert screen.query_one("#fault-landmarks-name", Input).value == "closure 7"
+        assert str(screen.query_one("#fault-landmarks-add").label) == "Update"
+
+
+async def test_round_trip_time_in_the_workspace(tmp_path: Path) -> None:
+    app = _app(tmp_path)
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#fault-cable", Select).value = "__typed__"
+        screen.query_one("#fault-helix", Input).value = "0"
+        screen.query_one("#fault-ior", Input).value = "1.5"
+        screen.query_one("#fault-time", Input).value = "10 µs"
+        await pilot.pause()
+        # c·t/2n = 299 792 458 × 10e-6 / 3 = 999.3082 m (c exact, BIPM SI)
+        assert screen.location is not None
+        assert screen.location.position.fiber_distance_m == pytest.approx(999.3082, abs=1e-4)
+        # a distance as well is refused, and both texts are kept
+        screen.query_one("#fault-distance", Input).value = "1000"
+        await pilot.pause()
+        assert screen.location is None
+        assert "not both" in _text(screen, "#fault-summary")
+        assert screen.query_one("#fault-time", Input).value == "10 µs"

@@ -112,6 +112,8 @@ class PointList(Vertical):
     DEFAULT_CSS = """
     PointList { height: auto; }
     PointList OptionList { height: auto; max-height: 6; border: none; padding: 0; }
+    /* no border on focus either: rows must not move under the mouse as the list takes focus */
+    PointList OptionList:focus { border: none; background-tint: $foreground 5%; }
     PointList > Horizontal { height: auto; }
     PointList Label.pl-label { width: 12; padding: 0 1 0 0; color: $text-muted; }
     PointList Input { width: 1fr; }
