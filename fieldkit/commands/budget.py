@@ -13,14 +13,20 @@ from typing import Any
 
 from fieldkit.commands.common import CommandError, add_data_dir, print_json
 
-_LINK_DESTS = ("fibre", "attenuation", "length", "link_file")
+_LINK_DESTS = ("fibre_type", "attenuation", "length", "link_file")
 
 
-def add_link_options(parser: argparse.ArgumentParser) -> None:
+def add_link_options(parser: argparse.ArgumentParser, *, fibre_alias: bool = False) -> None:
     """The options that describe a link (fibre, length, connections, splices, components,
-    margin). Wavelengths are left to the command (``--wavelength``)."""
+    margin). Wavelengths are left to the command (``--wavelength``).
+
+    The fibre type is ``--fiber`` or ``--fibre-type`` (``dest="fibre_type"``), so a command
+    with its own ``--fibre N`` (a fibre number) can take these options too; ``fibre_alias``
+    also accepts ``--fibre TYPE`` where no such clash exists.
+    """
     group = parser.add_argument_group("the link")
-    group.add_argument("--fiber", "--fibre", dest="fibre", metavar="TYPE",
+    names = ("--fiber", "--fibre-type", "--fibre") if fibre_alias else ("--fiber", "--fibre-type")
+    group.add_argument(*names, dest="fibre_type", metavar="TYPE",
                        help="fibre type from the presets, e.g. OS2, OM4, G.652.D "
                        "('fieldkit presets fibres' lists them)")
     group.add_argument("--attenuation", action="append", metavar="COEF",
@@ -69,8 +75,8 @@ def spec_from_args(args: argparse.Namespace) -> dict[str, Any]:
     file_name = getattr(args, "link_file", None) or getattr(args, "file", None)
     wavelengths = _wavelengths(args)
     if file_name:
-        used = [f"--{d.replace('_', '-')}" for d in ("fibre", "attenuation", "length")
-                if getattr(args, d, None)]
+        used = [flag for flag, d in (("--fiber", "fibre_type"), ("--attenuation", "attenuation"),
+                                     ("--length", "length")) if getattr(args, d, None)]
         if used:
             raise CommandError(f"give a link file or {', '.join(used)}, not both")
         from_file = load_spec_file(Path(file_name))
@@ -79,7 +85,7 @@ def spec_from_args(args: argparse.Namespace) -> dict[str, Any]:
         return _overlay_checks(from_file, args)
     if not getattr(args, "length", None):
         raise CommandError("give --length (e.g. --length 12.4km) or a link file")
-    fibre = getattr(args, "fibre", None)
+    fibre = getattr(args, "fibre_type", None)
     attenuation: list[str] = getattr(args, "attenuation", None) or []
     if fibre and attenuation:
         raise CommandError("give --fiber or --attenuation, not both")
@@ -212,7 +218,7 @@ def register(subparsers: Any) -> None:
     )
     parser.add_argument("file", nargs="?", metavar="FILE",
                         help="a link description file (TOML or JSON)")
-    add_link_options(parser)
+    add_link_options(parser, fibre_alias=True)
     parser.add_argument("--wavelength", action="append", metavar="NM",
                         help="wavelength in nm (repeatable; default 850 and 1300 nm multimode, "
                         "1310 and 1550 nm single-mode)")

@@ -140,3 +140,24 @@ def test_arbitrary_segments_resolve_or_say_why(segment):
         assert str(exc)
     else:
         assert all(math.isfinite(w.loss_db) for w in report.result.wavelengths)
+
+
+def test_link_options_fit_beside_a_meter_command(isolated_dirs):
+    import argparse
+
+    from fieldkit.commands.budget import add_link_options, link_from_args, link_given
+
+    parser = argparse.ArgumentParser()
+    for flag in ("--fibre", "--link", "--job", "--wavelength", "--by", "--limit", "--method"):
+        parser.add_argument(flag)  # what fieldkit loss has of its own
+    add_link_options(parser)
+    args = parser.parse_args(["--fibre", "3", "--link", "span 1", "--wavelength", "1310",
+                              "--fiber", "OS2", "--length", "10 km", "--connectors", "4"])
+    assert link_given(args)
+    link = link_from_args(args)
+    assert link.wavelengths_nm == (1310.0,)
+    # 10 km × 0.4 dB/km + 4 × 0.75 dB = 7.0 dB; a two-cord limit keeps 3 pairs: 6.25 dB
+    from fieldkit.calc.budget import method_limit
+
+    assert method_limit(link, 1).at(1310).loss_db == pytest.approx(6.25, abs=1e-9)
+    assert not link_given(parser.parse_args(["--fibre", "3"]))

@@ -354,6 +354,11 @@ class BudgetScreen(Screen[None]):
             self._load_item()
             self._check_item_fields()
 
+    @on(OptionList.OptionSelected, "#items")
+    def _item_chosen(self, event: OptionList.OptionSelected) -> None:
+        # Enter (or a click) on an item: edit it.
+        self.query_one("#item-value", Input).focus()
+
     @on(Select.Changed, "#item-preset")
     def _preset_changed(self, event: Select.Changed) -> None:
         if not self.items or event.value is Select.NULL:
