@@ -180,3 +180,15 @@ def test_cache_rereads_a_changed_file(isolated_dirs):
 
 def test_shipped_dir_is_the_source_tree_in_an_editable_install():
     assert (shipped_dir() / "fibres.toml").is_file()
+
+
+def test_budget_modules_import_without_the_ui_and_build_nothing():
+    import subprocess
+    import sys
+
+    code = ("import sys, fieldkit.presets, fieldkit.linkspec, fieldkit.calc.budget, "
+            "fieldkit.calc.coupling, fieldkit.commands.budget, fieldkit.commands.presets_cmd; "
+            "print('textual' in sys.modules, 'pint' in sys.modules)")
+    run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert run.returncode == 0, run.stderr
+    assert run.stdout.split() == ["False", "False"]

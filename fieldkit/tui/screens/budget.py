@@ -173,6 +173,7 @@ class BudgetScreen(Screen[None]):
         self.report: Any = None
         self.resolved: Any = None
         self.problem: str | None = None
+        self._tx_problem: str | None = None
 
     # -- presets -------------------------------------------------------------------------
     @property
@@ -505,6 +506,7 @@ class BudgetScreen(Screen[None]):
 
         out: dict[str, Any] = {}
         problems: list[str] = []
+        self._tx_problem = None
         text = self.query_one("#wavelengths", Input).value
         try:
             out["wavelengths"] = linkspec.wavelength_list(text) if text.strip() else []
@@ -526,6 +528,7 @@ class BudgetScreen(Screen[None]):
         transceiver = self.query_one("#transceiver", Select).value
         if transceiver == TYPED:
             levels: dict[str, Any] = {}
+            level_problems: list[str] = []
             for field_id, key, what in (("tx-min", "tx_min_dbm", "Tx minimum"),
                                         ("tx-max", "tx_max_dbm", "Tx maximum"),
                                         ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
@@ -536,8 +539,13 @@ class BudgetScreen(Screen[None]):
                     self._error(field_id, "")
                 except InputError as exc:
                     self._error(field_id, str(exc) if typed.strip() else "")
-                    problems.append(str(exc))
-            out["transceiver"] = levels
+                    level_problems.append(str(exc))
+            if level_problems:
+                # The budget still shows; only the transceiver check waits for its levels.
+                self._tx_problem = level_problems[0]
+            else:
+                levels["name"] = "typed levels"
+                out["transceiver"] = levels
         elif transceiver is not Select.NULL:
             out["transceiver"] = transceiver
         if problems:
@@ -616,7 +624,10 @@ class BudgetScreen(Screen[None]):
                             f"{app.loss_min_db:.2f} dB {'ok' if app.min_pass else 'UNDER'}")
             self.query_one("#application-out", Static).update(_minus("\n".join(text)))
         tx = report.transceiver
-        if tx is None:
+        if tx is None and self._tx_problem:
+            self.query_one("#transceiver-out", Static).update(
+                f"Type the four levels to check: {self._tx_problem}")
+        elif tx is None:
             self.query_one("#transceiver-out", Static).update("Pick a transceiver to check.")
         else:
             verdict = "PASS" if tx.passed else "FAIL"
