@@ -603,10 +603,18 @@ class BudgetScreen(Screen[None]):
                 lines.append(f"{_PAD}{number}  {item.name}")
         lines.append(f"Fibre length {r.length_m:g} m")
         self.query_one("#budget-out", Static).update(Text("\n".join(lines)))
-        self.query_one("#budget-summary", Static).update(
-            "Budget: " + ", ".join(f"{w.wavelength_nm:g} nm {w.loss_db:.2f} dB"
-                                   for w in r.wavelengths)
-            + (f" (+{r.margin_db:.2f} dB margin)" if r.margin_db else ""))
+        summary = ("Budget: " + ", ".join(f"{w.wavelength_nm:g} nm {w.loss_db:.2f} dB"
+                                          for w in r.wavelengths)
+                   + (f" (+{r.margin_db:.2f} dB margin)" if r.margin_db else ""))
+        if report.application is not None:
+            summary += f"\n{report.application.name}: " + (
+                "PASS" if report.application.passed else "FAIL")
+        if report.transceiver is not None:
+            summary += f"\n{report.transceiver.name}: " + (
+                "PASS" if report.transceiver.passed else "FAIL")
+            if report.transceiver.overload and report.transceiver.attenuator_db is not None:
+                summary += f", add {report.transceiver.attenuator_db:g} dB attenuator"
+        self.query_one("#budget-summary", Static).update(summary)
         app = report.application
         if app is None:
             self.query_one("#application-out", Static).update("Pick an application to check.")
