@@ -18,6 +18,10 @@ def atomic_write_bytes(path: Path, data: bytes, *, keep_backup: bool = False) ->
     fd, tmp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     tmp = Path(tmp_name)
     try:
+        # mkstemp creates the file 0600; give it the mode a plain open() would (umask applied).
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
             handle.flush()
