@@ -424,13 +424,14 @@ class FaultScreen(Screen[None]):
                 with Vertical(classes="panel", id="fault-landmarks-panel") as panel:
                     panel.border_title = "Landmarks"
                     yield PointList(LANDMARK_COLUMNS, list_id="fault-landmarks",
-                                    empty="None: add closures, handholes, building entries with "
-                                    "their OTDR and route distances.")
+                                    empty="None yet: closures, handholes, building entries "
+                                    "with OTDR and route distance. Enter adds; pick a row to "
+                                    "edit; Delete removes.")
                 with Vertical(classes="panel", id="fault-slack-panel") as panel:
                     panel.border_title = "Slack loops and coils"
                     yield PointList(SLACK_COLUMNS, list_id="fault-slack",
-                                    empty="None: add each loop's route position and cable "
-                                    "length.")
+                                    empty="None yet: each loop's route position and cable "
+                                    "length. Enter adds.")
                 with Vertical(classes="panel", id="fault-marking-panel") as panel:
                     panel.border_title = "Sheath markings"
                     yield NumberField("At start", field_id="fault-marking",
