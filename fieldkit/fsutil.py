@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import contextlib
+import functools
 import os
 import tempfile
 from pathlib import Path
@@ -19,9 +20,7 @@ def atomic_write_bytes(path: Path, data: bytes, *, keep_backup: bool = False) ->
     tmp = Path(tmp_name)
     try:
         # mkstemp creates the file 0600; give it the mode a plain open() would (umask applied).
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)
+        os.chmod(tmp, 0o666 & ~_umask())
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
             handle.flush()
@@ -44,6 +43,14 @@ def atomic_write_bytes(path: Path, data: bytes, *, keep_backup: bool = False) ->
             tmp.unlink()
         raise
     fsync_dir(path.parent)
+
+
+@functools.cache
+def _umask() -> int:
+    # Reading the umask means setting it; do it once, not on every save.
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
 
 
 def fsync_dir(folder: Path) -> None:
