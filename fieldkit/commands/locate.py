@@ -430,7 +430,8 @@ def fault_record(location: Location, inputs: dict[str, Any], *, by: str = "",
             extra.append("Two-ended check failed; the reading from A is recorded.")
     extra += [f"Warning: {w}" for w in location.warnings]
     where = None
-    if p.nearest_landmark is not None and p.offset_from_landmark_m is not None:
+    if (p.nearest_landmark is not None and p.offset_from_landmark_m is not None
+            and p.basis != "model"):  # with no landmark, "past start" only repeats the route
         where = describe_offset(p.offset_from_landmark_m, p.nearest_landmark)
     text = "\n".join(part for part in [notes.strip(), *extra, where and f"Look {where}."] if part)
     return FaultRecord(
