@@ -70,12 +70,18 @@ def add_reference(link: Link, *, wavelength_nm: float, level_dbm: float, method:
 
 def reuse_or_add_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
                            method: ref.Method, **fields: object) -> ReferenceRecord:
-    """The current reference at ``wavelength_nm`` when it has this level and method and is not
-    in doubt; else a new one."""
-    current = current_reference(link, wavelength_nm)
-    if (current is not None and abs(current.level_dbm - level_dbm) < 1e-9
-            and current.method == method.value and current.in_doubt_since is None):
-        return current
+    """The latest initial reference at ``wavelength_nm`` with this level and method that is not
+    in doubt; else a new one.
+
+    Matching on the level (not just the latest at the wavelength) keeps the two directions of a
+    bidirectional test, each with its own reference, from replacing each other.
+    """
+    matching = [r for r in link.references
+                if r.kind == "initial" and abs(r.wavelength_nm - wavelength_nm) <= 0.5
+                and abs(r.level_dbm - level_dbm) < 1e-9 and r.method == method.value
+                and r.in_doubt_since is None]
+    if matching:
+        return max(matching, key=lambda r: r.at)
     return add_reference(link, wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method,
                          **fields)  # type: ignore[arg-type]
 
@@ -131,8 +137,10 @@ class RecheckOutcome:
 
 def recheck_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
                       tolerance_db: float | None = None, by: str = "",
-                      at: datetime | None = None) -> RecheckOutcome:
-    """Record an end-of-session recheck of the reference in use at ``wavelength_nm``.
+                      at: datetime | None = None, reference_id: str | None = None,
+                      ) -> RecheckOutcome:
+    """Record an end-of-session recheck of a reference: ``reference_id``, or else the latest
+    initial reference at ``wavelength_nm``.
 
     The drift is recheck − initial. Beyond the tolerance (default: the common-practice figure
     of :data:`fieldkit.calc.reference.DRIFT_TOLERANCE_DB`), the initial reference is marked
@@ -145,18 +153,26 @@ def recheck_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
         When the link has no reference at that wavelength.
     """
     stamp = at or now()
-    initial = current_reference(link, wavelength_nm, stamp)
-    if initial is None:
-        raise KeyError(f"link {link.label!r} has no reference at {wavelength_nm:g} nm to recheck")
+    initial = (link.reference(reference_id) if reference_id
+               else current_reference(link, wavelength_nm, stamp))
+    if initial is None or initial.kind != "initial":
+        what = f"reference {reference_id}" if reference_id else f"reference at {wavelength_nm:g} nm"
+        raise KeyError(f"link {link.label!r} has no {what} to recheck")
+    wavelength_nm = initial.wavelength_nm
     tolerance = (ref.default_drift_tolerance_db(wavelength_nm) if tolerance_db is None
                  else tolerance_db)
     drift = ref.reference_drift(initial.level_dbm, level_dbm, tolerance)
+    # A recheck record does not name its reference; it belongs to the initial one with the same
+    # wavelength, source, meter and method set before it.
     good_checks = [r.at for r in link.references
                    if r.kind == "recheck" and abs(r.wavelength_nm - wavelength_nm) <= 0.5
+                   and (r.source_id, r.meter_id, r.method)
+                   == (initial.source_id, initial.meter_id, initial.method)
                    and initial.at <= r.at <= stamp and r.in_doubt_since is None]
     last_good_at = max([initial.at, *good_checks])
     recheck = ReferenceRecord(
-        source_id=initial.source_id, meter_id=initial.meter_id, wavelength_nm=initial.wavelength_nm,
+        source_id=initial.source_id, meter_id=initial.meter_id,
+        wavelength_nm=initial.wavelength_nm,
         level_dbm=level_dbm, method=initial.method, cords=list(initial.cords),
         launch_condition=initial.launch_condition, by=by, at=stamp, kind="recheck",
         drift_db=drift.drift_db, in_doubt_since=None if drift.within else last_good_at)
