@@ -618,7 +618,9 @@ def report_lines(report: b.BudgetReport) -> list[str]:
     label = report.extra.get("label")
     if label:
         lines.append(str(label))
-    lines.append(f"Fibre length {format_number(r.length_m)} m; design margin {_db(r.margin_db)}")
+    length = (f"{format_number(r.length_m / 1000.0)} km" if r.length_m >= 1000
+              else f"{format_number(r.length_m)} m")
+    lines.append(f"Fibre length {length}; design margin {_db(r.margin_db)}")
     for w in r.wavelengths:
         lines.append("")
         lines.append(f"At {format_number(w.wavelength_nm)} nm: maximum {_db(w.loss_db)}, "

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 from dataclasses import asdict
+from pathlib import Path
 from typing import Any
 
 from fieldkit.commands.common import CommandError, add_data_dir, print_json
@@ -23,6 +24,9 @@ def register(subparsers: Any) -> None:
     parser.add_argument("kind", nargs="?", metavar="KIND",
                         help="one kind only (fibres, connectors, splices, components, "
                         "applications, transceivers, cables)")
+    parser.add_argument("--check", metavar="FILE",
+                        help="check one preset file before putting it in <config>/presets: "
+                        "lists its entries, or its problems (exit status 2)")
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(parser)
     parser.set_defaults(func=run)
@@ -54,8 +58,10 @@ def run(args: argparse.Namespace) -> int:
     from fieldkit import locations
     from fieldkit.presets import KINDS, load_presets
 
-    library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
     kinds = [_kind(args.kind)] if args.kind else list(KINDS)
+    if args.check:
+        return _check(Path(args.check), kinds, args.json)
+    library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
     if args.json:
         out: dict[str, Any] = {}
         for kind in kinds:
@@ -114,3 +120,23 @@ def _summary(kind: str, p: Any) -> str:
         return (f"helix {p.helix_percent:g} ± {p.helix_uncertainty_percent:g} %; "
                 f"{p.construction}")
     return ""
+
+
+def _check(path: Path, kinds: list[str], as_json: bool) -> int:
+    from fieldkit.presets import load_file
+
+    if not path.is_file():
+        raise CommandError(f"{path}: no such file")
+    library = load_file(path)
+    entries = {kind: list(library.of_kind(kind)) for kind in kinds if library.of_kind(kind)}
+    if as_json:
+        print_json({"file": str(path), "entries": entries, "problems": library.problems})
+    else:
+        for kind, names in entries.items():
+            print(f"{kind}: {', '.join(names)}")
+        for problem in library.problems:
+            print(f"problem: {problem}")
+    if library.problems:
+        raise CommandError(f"{path}: {len(library.problems)} problem(s), listed above; "
+                           "fix them before using the file")
+    return 0

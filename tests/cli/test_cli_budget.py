@@ -203,3 +203,19 @@ def test_presets_reports_a_bad_user_file(tmp_path: Path):
 def test_presets_unknown_kind():
     result = run("presets", "gizmos")
     assert result.returncode == 2 and "unknown preset kind" in result.stderr
+
+
+def test_presets_check_a_file_before_use(tmp_path: Path):
+    good = tmp_path / "good.toml"
+    good.write_text('[[connectors]]\nname = "site rule"\nloss_max_db = 0.4\nsource = "ours"\n',
+                    encoding="utf-8")
+    result = run("presets", "--check", str(good))
+    assert result.returncode == 0, result.stderr
+    assert "connectors: site rule" in result.stdout
+    bad = tmp_path / "bad.toml"
+    bad.write_text('[[splices]]\nname = "x"\nmethod = "laser"\nloss_max_db = 0.1\n'
+                   'source = "ours"\n', encoding="utf-8")
+    result = run("presets", "--check", str(bad))
+    assert result.returncode == 2
+    assert "'method' must be fusion or mechanical, not 'laser'" in result.stdout
+    assert len(result.stderr.strip().splitlines()) == 1
