@@ -205,16 +205,39 @@ def link_from_args(args: argparse.Namespace) -> Any:
     return resolved_from_args(args).link
 
 
+_FILE_EXAMPLE = """\
+a link description FILE (TOML; the same keys in JSON):
+
+  label = "hut 3 to cabinet 12"
+  margin = "3 dB"                    # optional; wavelengths = [1310, 1550] too
+  application = "GPON Class B+"      # optional; transceiver = "GPON B+ downstream"
+  [[segments]]                       # in order from end A; repeat per fibre type
+  fibre = "G.652.D"                  # or attenuation = "0.35 dB/km"
+  length = "12.4 km"
+  [connectors]
+  count = 4                          # every mated pair, both end connections too
+  grade = "TIA-568.3-D"              # or loss = "0.5 dB"
+  [[splices]]
+  count = 6
+  grade = "fusion"                   # or method = "mechanical" with loss = "0.2 dB"
+  [[components]]
+  splitter = "1x32"                  # or preset = "CWDM mux or demux", or
+                                     # kind = "attenuator" / "other" with loss = "5 dB"
+"""
+
+
 def register(subparsers: Any) -> None:
     parser: argparse.ArgumentParser = subparsers.add_parser(
         "budget",
         help="loss budget of a link per wavelength, with application and transceiver checks",
-        description="The maximum (acceptance) and typical loss of a link at each wavelength, "
-        "with a line-item breakdown that adds up, and the total with the design margin. "
-        "Describe the link with the options, or give a TOML/JSON link description FILE with "
-        "several segments and components. --application checks an Ethernet PHY or PON class "
-        "(loss and length separately); --transceiver or the four --tx/--rx levels check a "
-        "transceiver pair and size an attenuator.",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        description="The maximum (acceptance) and typical loss of a link at each wavelength,\n"
+        "with a line-item breakdown that adds up, and the total with the design margin.\n"
+        "Describe the link with the options, or give a TOML/JSON link description FILE\n"
+        "with several segments and components. --application checks an Ethernet PHY or\n"
+        "PON class (loss and length separately); --transceiver or the four --tx/--rx\n"
+        "levels check a transceiver pair and size an attenuator.",
+        epilog=_FILE_EXAMPLE,
     )
     parser.add_argument("file", nargs="?", metavar="FILE",
                         help="a link description file (TOML or JSON)")

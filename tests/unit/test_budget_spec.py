@@ -161,3 +161,28 @@ def test_link_options_fit_beside_a_meter_command(isolated_dirs):
 
     assert method_limit(link, 1).at(1310).loss_db == pytest.approx(6.25, abs=1e-9)
     assert not link_given(parser.parse_args(["--fibre", "3"]))
+
+
+def test_mixed_fibre_types_take_the_strictest_application_limits(lib):
+    # 10GBASE-SR (IEEE 802.3 Clause 52, from memory): OM3 300 m / 2.6 dB, OM4 400 m / 2.9 dB.
+    # A link of OM3 and OM4 is held to OM3's 300 m and 2.6 dB.
+    resolved = linkspec.resolve({"segments": [{"fibre": "OM4", "length": "100 m"},
+                                              {"fibre": "OM3", "length": "50 m"}],
+                                 "application": "10GBASE-SR"}, lib)
+    assert resolved.application.fibre == "OM4+OM3"
+    assert resolved.application.loss_max_db == 2.6
+    assert resolved.application.reach_m == 300.0
+
+
+def test_the_help_example_is_a_valid_link_file(lib):
+    import textwrap
+    import tomllib
+
+    from fieldkit.commands.budget import _FILE_EXAMPLE
+
+    body = textwrap.dedent(_FILE_EXAMPLE.split("\n", 1)[1])
+    report = linkspec.resolve(tomllib.loads(body), lib).evaluate()
+    # 1310 nm: 12.4 × 0.4 = 4.96; 4 × 0.75 = 3.0; 6 × 0.3 = 1.8; 1x32 15.0515 + 2.1 = 17.1515
+    # total 26.9115 dB, within the GPON Class B+ 28 dB (ITU-T G.984.2 Amd 1, from memory)
+    assert report.result.at(1310).loss_db == pytest.approx(26.9115, abs=1e-4)
+    assert report.application is not None and report.application.loss_pass
