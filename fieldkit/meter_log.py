@@ -194,34 +194,53 @@ def budget_limit_db(link: Link, wavelength_nm: float,
 
     The saved budget counts every mated pair including the two end connections; the method
     keeps :attr:`~fieldkit.calc.reference.Method.end_connections` of them. The loss of one end
-    connection comes from the budget's description (``connector_loss_db``), or from its
-    connectors line divided by the number of connectors. None without a budget at that
-    wavelength or without a connector loss to work from.
+    connection comes from the budget's description (``connector_loss_db``, as the budget
+    command writes it), or from its connectors line divided by the number of connectors. None
+    without a budget at that wavelength or without a connector loss to work from.
+
+    Raises
+    ------
+    InputError
+        When the budget counts fewer end connections than the method includes.
     """
     if link.budget is None:
         return None
     row = link.budget.at_wavelength(wavelength_nm)
     if row is None:
         return None
-    per_connection_db = end_connection_loss_db(link.budget.description, [
+    description = link.budget.description
+    per_connection_db = end_connection_loss_db(description, [
         (item.name, item.loss_db) for item in row.items])
     if per_connection_db is None:
         return None
-    limit_db = ref.method_limit_db(row.loss_db, per_connection_db, method)
+    count = _connector_count(description)
+    in_budget = 2 if count is None else min(2, count)
+    limit_db = ref.method_limit_db(row.loss_db, per_connection_db, method, in_budget)
     return limit_db, (f"budget {row.loss_db:.2f} dB, {method.end_connections} of 2 end "
                       f"connections at {per_connection_db:.2f} dB ({method.value})")
+
+
+def _connector_count(description: dict[str, object]) -> int | None:
+    for key in ("connector_count", "connectors"):
+        value = description.get(key)
+        if isinstance(value, int) and not isinstance(value, bool):
+            return value
+        if isinstance(value, dict):
+            inner = value.get("count")
+            if isinstance(inner, int) and not isinstance(inner, bool):
+                return inner
+    return None
 
 
 def end_connection_loss_db(description: dict[str, object],
                            items: list[tuple[str, float]]) -> float | None:
     """The loss of one mated pair in a budget: from its description or its connectors line."""
-    for key in ("connector_loss_db", "connector_db", "loss_per_connector_db"):
-        value = description.get(key)
-        if isinstance(value, int | float) and not isinstance(value, bool):
-            return float(value)
-    count = description.get("connectors")
-    if isinstance(count, int) and not isinstance(count, bool) and count > 0:
+    value = description.get("connector_loss_db")
+    if isinstance(value, int | float) and not isinstance(value, bool):
+        return float(value)
+    count = _connector_count(description)
+    if count is not None and count > 0:
         for name, loss_db in items:
-            if name.lower().startswith("connector"):
+            if "connector" in name.lower():
                 return loss_db / count
     return None

@@ -46,6 +46,9 @@ def register(subparsers: Any) -> None:
     from fieldkit.commands import meter_record
 
     meter_record.add_record_options(parser)
+    from fieldkit.commands import budget
+
+    budget.add_link_options(parser)
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(parser)
     parser.set_defaults(func=run)
@@ -126,13 +129,19 @@ def run(args: argparse.Namespace) -> int:
 
 def _limit(args: argparse.Namespace, method: Any, wavelength_nm: float | None,
            ) -> tuple[float | None, str | None]:
-    """The limit: typed with --limit, else from the budget saved on the job's link, if any."""
+    """The limit: typed (--limit), from the link options (the budget's), or from the budget
+    saved on the job's link; None when there is none of these."""
     from fieldkit import meter_log
     from fieldkit.calc import reference as ref
-    from fieldkit.commands import meter_record
+    from fieldkit.commands import budget, meter_record
 
+    described = budget.link_given(args)
+    if args.limit and described:
+        raise CommandError("give either --limit or the link options, not both")
     if args.limit:
         return ref.loss_limit_db(args.limit), "typed"
+    if described:
+        return _limit_from_link_options(args, method, wavelength_nm)
     if not (args.job and args.link) or wavelength_nm is None:
         return None, None
     store = meter_record.open_store(args)
@@ -145,6 +154,28 @@ def _limit(args: argparse.Namespace, method: Any, wavelength_nm: float | None,
     if found is None:
         return None, None
     return found
+
+
+def _limit_from_link_options(args: argparse.Namespace, method: Any,
+                             wavelength_nm: float | None) -> tuple[float, str]:
+    """The budget of the described link with only the end connections the method includes.
+
+    ``--connectors`` counts every mated pair including the two end connections; the method
+    keeps 2 (one-cord), 1 (two-cord) or 0 (three-cord) of those two.
+    """
+    from fieldkit.calc import budget as calc_budget
+    from fieldkit.commands import budget
+
+    if wavelength_nm is None:
+        raise CommandError("a limit from the link options needs --wavelength")
+    link = budget.link_from_args(args)
+    full = calc_budget.compute_budget(link).at(wavelength_nm)
+    kept = calc_budget.method_limit(link, method.end_connections).at(wavelength_nm)
+    count = link.connector_count
+    return kept.loss_db, (
+        f"link budget {full.loss_db:.2f} dB with {count} mated pairs; {method.value} keeps "
+        f"{method.end_connections} of the 2 end connections: {count - 2 + method.end_connections}"
+        " pairs counted")
 
 
 def _print_text(verdict: Any, method: Any, limit_db: float | None, limit_from: str | None,

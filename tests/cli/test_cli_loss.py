@@ -202,3 +202,48 @@ def test_recording_errors_exit_2(isolated_dirs: dict[str, Path]) -> None:
     proc = run("loss", "--job", job_id, "--link", "L1", "--fibre", "1",
                "--reference", "-7", "--reading", "-8")
     assert proc.returncode == 2 and "--wavelength" in proc.stderr
+
+
+# Hand computation for the link options: 10 km × 0.35 dB/km = 3.50 dB of fibre; 4 mated pairs
+# (counting both end connections) × 0.50 dB = 2.00 dB; budget 5.50 dB. One-cord keeps both end
+# connections: 5.50 dB; two-cord keeps one (3 pairs): 5.00 dB; three-cord none (2 pairs): 4.50 dB
+# (IEC 61280-4-1 / -4-2 end connections per method, from memory).
+LINK = ["--attenuation", "0.35 dB/km", "--length", "10 km", "--connectors", "4",
+        "--connector-loss", "0.5", "--wavelength", "1310"]
+
+
+@pytest.mark.parametrize(
+    ("method", "limit_db"), [("one-cord", 5.50), ("two-cord", 5.00), ("three-cord", 4.50)])
+def test_limit_from_the_link_options_counts_the_methods_end_connections(
+        method: str, limit_db: float) -> None:
+    # Reading: -7.20 − (-12.00) = 4.80 dB: passes 5.50 and 5.00, fails 4.50.
+    out = run_json("loss", "--reference", "-7.20", "--reading", "-12.00", "--method", method,
+                   *LINK)
+    assert out["limit_db"] == pytest.approx(limit_db, abs=1e-9)
+    assert out["margin_db"] == pytest.approx(limit_db - 4.80, abs=1e-9)
+    assert out["pass"] is (limit_db >= 4.80)
+
+
+def test_limit_from_the_link_options_refuses_a_typed_limit_too() -> None:
+    proc = run("loss", "--reference", "-7", "--reading", "-8", "--limit", "3", *LINK)
+    assert proc.returncode == 2 and "not both" in proc.stderr
+    proc = run("loss", "--reference", "-7", "--reading", "-8", "--attenuation", "0.35 dB/km",
+               "--length", "10 km", "--connectors", "1", "--wavelength", "1310")
+    assert proc.returncode == 2 and "at least 2" in proc.stderr
+
+
+def test_limit_from_the_budget_saved_on_the_jobs_link(isolated_dirs: dict[str, Path]) -> None:
+    job_id = _new_job(isolated_dirs["data"])
+    saved = run("budget", "--job", job_id, "--link", "L1", *LINK)
+    assert saved.returncode == 0, saved.stderr
+    # Same budget as above, saved on the link; a three-cord result keeps 2 pairs: 4.50 dB.
+    out = run_json("loss", "--job", job_id, "--link", "L1", "--fibre", "1", "--wavelength",
+                   "1310", "--reference", "-7.20", "--reading", "-12.00", "--method",
+                   "three-cord")
+    assert out["limit_db"] == pytest.approx(4.50, abs=1e-9)
+    assert out["pass"] is False
+    from fieldkit.jobs.store import JobStore
+
+    (result,) = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0].results
+    assert result.limit_db == pytest.approx(4.50, abs=1e-9) and result.passed is False
+    assert result.method == "three-cord"
