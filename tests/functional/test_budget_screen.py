@@ -42,6 +42,8 @@ async def test_typing_a_length_shows_the_budget(tmp_path: Path, size):
         assert "1310 nm  max 6.30 dB" in out and "1550 nm  max 6.30 dB" in out
         assert "OS2 12 km × 0.4 dB/km" in out
         assert "1310 nm 6.30 dB" in text_of(app, "#budget-summary")
+        sources = text_of(app, "#sources-out")
+        assert "ISO/IEC 11801-1" in sources and "ANSI/TIA-568.3-D" in sources
 
 
 @pytest.mark.parametrize("size", SIZES)

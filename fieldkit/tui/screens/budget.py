@@ -274,6 +274,9 @@ class BudgetScreen(Screen[None]):
                     with Vertical(id="transceiver-panel", classes="panel") as panel:
                         panel.border_title = "Transceiver"
                         yield Static("", id="transceiver-out", classes="result", markup=False)
+                    with Vertical(id="sources-panel", classes="panel") as panel:
+                        panel.border_title = "Values used"
+                        yield Static("", id="sources-out", classes="result", markup=False)
                     yield Static("", id="budget-saved", classes="field-note", markup=False)
                     yield Button("Save to job (Ctrl+S)", id="save", compact=True)
                     yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
@@ -569,6 +572,7 @@ class BudgetScreen(Screen[None]):
             problem.update(self._explain(str(exc)))
             problem.display = True
             self.query_one("#budget-out", Static).update("")
+            self.query_one("#sources-out", Static).update("")
             self.query_one("#budget-summary", Static).update(self._explain(str(exc)))
             self.query_one("#application-out", Static).update("")
             self.query_one("#transceiver-out", Static).update("")
@@ -615,6 +619,11 @@ class BudgetScreen(Screen[None]):
             if report.transceiver.overload and report.transceiver.attenuator_db is not None:
                 summary += f", add {report.transceiver.attenuator_db:g} dB attenuator"
         self.query_one("#budget-summary", Static).update(summary)
+        sources: dict[str, None] = {}
+        for w in r.wavelengths:
+            for item in w.items:
+                sources.setdefault(f"{item.name.split(' × ')[0]}: {item.source}", None)
+        self.query_one("#sources-out", Static).update("\n".join(f"• {s}" for s in sources))
         app = report.application
         if app is None:
             self.query_one("#application-out", Static).update("Pick an application to check.")
