@@ -4,7 +4,7 @@ Layout of the jobs folder::
 
     <id>.json        a job (ids are generated hex, never user text)
     <id>.json.bak    the version before the last save
-    .index.json      summaries for fast listing; a cache, rebuilt entry by entry when stale
+    .index/          summaries for fast listing; a cache, rebuilt entry by entry when stale
     .locks/<id>.lock lock files (``flock``) held around read-check-write
     quarantine/      files that did not parse or validate, each with a ``.reason.txt``
 
@@ -18,13 +18,14 @@ lock, which is how two running copies append results and notes without losing an
 from __future__ import annotations
 
 import contextlib
+import gc
 import json
 import os
 import re
 import time
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass, field
-from datetime import date, datetime
+from datetime import UTC, date, datetime
 from pathlib import Path
 from typing import Any
 
@@ -38,8 +39,11 @@ from fieldkit.jobs.models import JOB_ID_RE, SCHEMA_VERSION, Job, now
 MAX_FILE_BYTES = 20 * 1024 * 1024
 #: How long a save waits for another program holding the job's lock.
 LOCK_TIMEOUT_S = 10.0
-INDEX_NAME = ".index.json"
-INDEX_VERSION = 1
+INDEX_DIR = ".index"
+INDEX_NAME = "summaries.json"
+#: How long the jobs folder must have been unchanged before a scan trusts its mtime alone.
+SETTLE_NS = 2_000_000_000
+INDEX_VERSION = 3
 QUARANTINE = "quarantine"
 
 _HEAD_RE = re.compile(
@@ -74,59 +78,85 @@ def explain(exc: ValidationError) -> str:
     return f"{where}: {first.get('msg', 'invalid')}{more}"
 
 
-@dataclass(frozen=True, slots=True)
+def _iso(moment: datetime) -> str:
+    """A time as fixed-width UTC ISO text, so that sorting the text sorts the times."""
+    return moment.astimezone(UTC).isoformat(timespec="microseconds")
+
+
+@dataclass(slots=True)
 class JobSummary:
-    """What the jobs list shows, kept in the index so listing does not parse every job."""
+    """What the jobs list shows, kept in the index so listing does not parse every job.
+
+    Times are kept as fixed-width UTC ISO text (``created_iso``, ``updated_iso``), which sorts
+    like the times and costs nothing to load; ``created_at`` / ``updated_at`` parse them.
+    The fields are in the order of an index row, so a row loads as ``JobSummary(*row)``.
+    """
 
     id: str
     name: str
     customer: str
     site: str
-    crew: tuple[str, ...]
+    crew: list[str]
     status: str
-    created_at: datetime
-    updated_at: datetime
+    created_iso: str
+    updated_iso: str
     revision: int
     link_count: int
     result_count: int
     failed_count: int
     note_count: int
     read_only: str | None = None
-    search_text: str = field(default="", compare=False)
+    link_labels: list[str] = field(default_factory=list)
+    _search: str | None = field(default=None, init=False, repr=False, compare=False)
+
+    @property
+    def search_text(self) -> str:
+        """Id, name, customer, site, crew and link labels, case-folded (made on first use)."""
+        if self._search is None:
+            self._search = _haystack(self.id, self.name, self.customer, self.site, self.crew,
+                                     self.link_labels)
+        return self._search
+
+    @property
+    def created_at(self) -> datetime:
+        return datetime.fromisoformat(self.created_iso)
+
+    @property
+    def updated_at(self) -> datetime:
+        return datetime.fromisoformat(self.updated_iso)
 
     @classmethod
     def of(cls, job: Job) -> JobSummary:
         results = [r for link in job.links for r in link.results]
         return cls(
             id=job.id, name=job.name, customer=job.customer, site=job.site,
-            crew=tuple(job.crew), status=job.status, created_at=job.created_at,
-            updated_at=job.updated_at, revision=job.revision, link_count=len(job.links),
+            crew=list(job.crew), status=job.status, created_iso=_iso(job.created_at),
+            updated_iso=_iso(job.updated_at), revision=job.revision, link_count=len(job.links),
             result_count=len(results), failed_count=sum(r.passed is False for r in results),
             note_count=len(job.notes), read_only=job.read_only,
-            search_text=_haystack(job.id, job.name, job.customer, job.site, job.crew,
-                                  [link.label for link in job.links]),
+            link_labels=[link.label for link in job.links],
         )
 
     def to_json(self) -> list[Any]:
         return [self.id, self.name, self.customer, self.site, list(self.crew), self.status,
-                self.created_at.isoformat(), self.updated_at.isoformat(), self.revision,
-                self.link_count, self.result_count, self.failed_count, self.note_count,
-                self.read_only, self.search_text]
+                self.created_iso, self.updated_iso, self.revision, self.link_count,
+                self.result_count, self.failed_count, self.note_count, self.read_only,
+                self.link_labels]
 
     @classmethod
     def from_json(cls, row: list[Any]) -> JobSummary:
-        return cls(row[0], row[1], row[2], row[3], tuple(row[4]), row[5],
-                   datetime.fromisoformat(row[6]), datetime.fromisoformat(row[7]), *row[8:15])
+        if len(row) != 15:
+            raise ValueError("index row of the wrong length")
+        return cls(*row)
 
     def as_dict(self) -> dict[str, Any]:
         """The summary as JSON-ready values (for ``jobs list --json``)."""
         return {"id": self.id, "name": self.name, "customer": self.customer, "site": self.site,
                 "crew": list(self.crew), "status": self.status,
-                "created_at": self.created_at.isoformat(),
-                "updated_at": self.updated_at.isoformat(), "revision": self.revision,
-                "links": self.link_count, "results": self.result_count,
-                "failed": self.failed_count, "notes": self.note_count,
-                "read_only": self.read_only}
+                "created_at": self.created_iso, "updated_at": self.updated_iso,
+                "revision": self.revision, "links": self.link_count,
+                "results": self.result_count, "failed": self.failed_count,
+                "notes": self.note_count, "read_only": self.read_only}
 
 
 def _haystack(*parts: Any) -> str:
@@ -275,15 +305,45 @@ class JobStore:
             raise StoreError(f"{wanted!r} matches {len(matches)} jobs ({shown}); type more of it")
         return matches[0]
 
-    def list(self) -> list[JobSummary]:
+    def list(self, *, rescan: bool = False) -> list[JobSummary]:
         """Summaries of every readable job, most recently updated first.
 
         Uses the index for files unchanged since it was written (same inode, size and mtime),
         parses the others, quarantines broken ones, and rewrites the index when it changed.
+        When the jobs folder itself has not changed since a scan that found it settled, the
+        index is used without looking at each file: every save renames a file into the folder,
+        which changes the folder's mtime. ``rescan`` checks every file anyway (for files edited
+        in place by hand).
         """
-        index = self._read_index()
+        if not self.jobs_dir.is_dir():
+            return []
+        # Made before the folder's mtime is taken: making it later would change that mtime.
+        with contextlib.suppress(OSError):
+            self.index_path.parent.mkdir(exist_ok=True)
+        try:
+            folder_mtime_ns = os.stat(self.jobs_dir).st_mtime_ns
+        except FileNotFoundError:
+            return []
+        scan_started_ns = time.time_ns()
+        # Loading the index makes ~100,000 small objects and no cycles: pausing the cyclic
+        # garbage collector meanwhile keeps it from walking every live object several times.
+        collecting = gc.isenabled()
+        gc.disable()
+        try:
+            index, settled_mtime_ns = self._read_index()
+            if not rescan and settled_mtime_ns == folder_mtime_ns:
+                try:
+                    summaries = [JobSummary(*row[3]) for row in index.values()]
+                except TypeError:
+                    pass
+                else:
+                    summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
+                    return summaries
+        finally:
+            if collecting:
+                gc.enable()
         fresh: dict[str, list[Any]] = {}
-        summaries: list[JobSummary] = []
+        summaries = []
         changed = False
         for entry in self._ids_on_disk():
             job_id = entry.name[:-5]
@@ -320,31 +380,45 @@ class JobStore:
                 summary = JobSummary.of(job)
             summaries.append(summary)
             fresh[job_id] = [*key, summary.to_json()]
-        if changed or len(fresh) != len(index):
-            self._write_index(fresh)
-        summaries.sort(key=lambda s: (s.updated_at, s.id), reverse=True)
+        # The folder counts as settled when nothing was renamed into it for a while before
+        # this scan began, so no change can hide inside one tick of the file-system clock.
+        settled = None
+        if (scan_started_ns - folder_mtime_ns > SETTLE_NS
+                and os.stat(self.jobs_dir).st_mtime_ns == folder_mtime_ns):
+            settled = folder_mtime_ns
+        if changed or len(fresh) != len(index) or settled != settled_mtime_ns:
+            self._write_index(fresh, settled)
+        summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
         return summaries
 
-    def _read_index(self) -> _IndexEntries:
+    @property
+    def index_path(self) -> Path:
+        return self.jobs_dir / INDEX_DIR / INDEX_NAME
+
+    def _read_index(self) -> tuple[_IndexEntries, int | None]:
         try:
-            data = json.loads((self.jobs_dir / INDEX_NAME).read_bytes())
+            data = json.loads(self.index_path.read_bytes())
         except (OSError, ValueError):
-            return {}
+            return {}, None
         if (not isinstance(data, dict) or data.get("index_version") != INDEX_VERSION
                 or data.get("schema_version") != SCHEMA_VERSION
                 or not isinstance(data.get("entries"), dict)):
-            return {}
+            return {}, None
         entries: _IndexEntries = data["entries"]
-        return entries
+        settled = data.get("settled_folder_mtime_ns")
+        return entries, settled if isinstance(settled, int) else None
 
-    def _write_index(self, entries: _IndexEntries) -> None:
+    def _write_index(self, entries: _IndexEntries, settled: int | None) -> None:
         if not entries and not self.jobs_dir.exists():
             return
         data = json.dumps({"index_version": INDEX_VERSION, "schema_version": SCHEMA_VERSION,
-                           "entries": entries}, ensure_ascii=False, separators=(",", ":"))
-        # The index is a cache: a failed write costs a slower next listing, nothing else.
+                           "settled_folder_mtime_ns": settled, "entries": entries},
+                          ensure_ascii=False, separators=(",", ":"))
+        # The index is a cache: a failed write costs a slower next listing, nothing else. It
+        # lives in a sub-folder so that writing it does not change the jobs folder's mtime.
         with contextlib.suppress(OSError):
-            atomic_write_bytes(self.jobs_dir / INDEX_NAME, data.encode())
+            self.index_path.parent.mkdir(exist_ok=True)
+            atomic_write_bytes(self.index_path, data.encode())
 
     # -- quarantine ------------------------------------------------------------------------
     def _quarantine(self, path: Path, reason: str) -> StoreError:
@@ -585,12 +659,11 @@ def _lenient_summary(data: dict[str, Any], version: int) -> JobSummary:
     job_id = text("id")
     return JobSummary(
         id=job_id, name=text("name") or "(newer file)", customer=text("customer"),
-        site=text("site"), crew=(), status=text("status") or "open",
-        created_at=moment("created_at"), updated_at=moment("updated_at"),
+        site=text("site"), crew=[], status=text("status") or "open",
+        created_iso=_iso(moment("created_at")), updated_iso=_iso(moment("updated_at")),
         revision=revision if isinstance(revision := data.get("revision"), int) else 0,
         link_count=0, result_count=0, failed_count=0, note_count=0,
         read_only=f"written by a newer fieldkit (schema {version}); update fieldkit to open it",
-        search_text=_haystack(job_id, text("name"), text("customer"), text("site")),
     )
 
 

@@ -13,7 +13,6 @@ import pytest
 from fieldkit.jobs.migrations import migrate
 from fieldkit.jobs.models import SCHEMA_VERSION, Job, LossResult
 from fieldkit.jobs.store import (
-    INDEX_NAME,
     ConflictError,
     JobStore,
     ReadOnlyError,
@@ -220,11 +219,11 @@ def test_migrate_refuses_a_file_without_version() -> None:
 def test_index_is_used_and_refreshed_when_a_file_changes(store: JobStore) -> None:
     job = store.create("Indexed")
     store.list()
-    index = json.loads((store.jobs_dir / INDEX_NAME).read_text())
+    index = json.loads(store.index_path.read_text())
     assert job.id in index["entries"]
     # The index alone answers when nothing changed: a forged name in it shows up.
     index["entries"][job.id][3][1] = "from the index"
-    (store.jobs_dir / INDEX_NAME).write_text(json.dumps(index))
+    store.index_path.write_text(json.dumps(index))
     assert store.list()[0].name == "from the index"
     # A saved change makes the entry stale: the file is read again.
     store.update(job.id, lambda j: setattr(j, "name", "Renamed") or None)
@@ -234,7 +233,7 @@ def test_index_is_used_and_refreshed_when_a_file_changes(store: JobStore) -> Non
 def test_corrupt_index_is_ignored(store: JobStore) -> None:
     job = store.create("Index broken")
     store.list()
-    (store.jobs_dir / INDEX_NAME).write_text("{not json")
+    store.index_path.write_text("{not json")
     assert [s.id for s in store.list()] == [job.id]
 
 
@@ -256,3 +255,19 @@ def test_stale_temp_files_are_removed_at_the_next_save(store: JobStore) -> None:
     stale.write_text("half")
     store.update(job.id, lambda j: j.add_note("n") and None)
     assert not stale.exists()
+
+
+def test_settled_folder_is_listed_from_the_index_alone(store: JobStore) -> None:
+    job = store.create("Settled")
+    store.list()  # makes the index folder (that changes the jobs folder's mtime once)
+    past = store.jobs_dir.stat().st_mtime - 10
+    os.utime(store.jobs_dir, (past, past))  # nothing renamed into the folder for 10 s
+    store.list()
+    index = json.loads(store.index_path.read_text())
+    assert index["settled_folder_mtime_ns"] == store.jobs_dir.stat().st_mtime_ns
+    index["entries"][job.id][3][1] = "only in the index"
+    store.index_path.write_text(json.dumps(index))
+    assert store.list()[0].name == "only in the index"  # no file was looked at
+    assert store.list(rescan=True)[0].name == "only in the index"  # same file key: kept
+    store.update(job.id, lambda j: setattr(j, "name", "Saved again") or None)
+    assert store.list()[0].name == "Saved again"  # the save changed the folder: rescanned

@@ -123,9 +123,9 @@ class JobsScreen(Screen[None]):
     def store(self):  # noqa: ANN201 - the app's JobStore
         return self.app.store  # type: ignore[attr-defined]
 
-    def reload(self) -> None:
+    def reload(self, rescan: bool = False) -> None:
         try:
-            self._summaries = self.store.list()
+            self._summaries = self.store.list(rescan=rescan)
         except (StoreError, OSError) as exc:
             self._summaries = []
             self.notify(f"The jobs could not be listed: {exc}", severity="error")
@@ -239,7 +239,7 @@ class JobsScreen(Screen[None]):
     def _update_summary(self, job: Job) -> None:
         fresh = JobSummary.of(job)
         self._summaries = [fresh if s.id == job.id else s for s in self._summaries]
-        self._summaries.sort(key=lambda s: (s.updated_at, s.id), reverse=True)
+        self._summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
         self._refilter()
 
     @on(Button.Pressed, "#jobs-status")
@@ -297,7 +297,7 @@ class JobsScreen(Screen[None]):
         self.query_one("#job-note", Input).focus()
 
     def action_reload(self) -> None:
-        self.reload()
+        self.reload(rescan=True)
 
 
 def _prompt(s: JobSummary) -> str:
