@@ -326,3 +326,25 @@ def test_before_the_first_landmark_is_extrapolated_and_named() -> None:
     assert result.position.basis == "extrapolated"
     assert result.position.route_distance_m == 0.0
     assert any("Before the first landmark (panel)" in w for w in result.warnings)
+
+
+@given(st.floats(0, 2e5), st.floats(1.0, 2.0), st.floats(0, 5),
+       st.lists(st.tuples(st.floats(1, 1e5), st.floats(0.9, 1.1)), max_size=4))
+def test_range_is_between_the_largest_term_and_the_worst_case(
+        shown: float, index: float, helix: float, marks: list[tuple[float, float]]) -> None:
+    # landmarks made consistent: route increasing, OTDR = route × a ratio near 1
+    routes = sorted({round(r, 3) for r, _ in marks})
+    landmarks = tuple(Landmark(f"L{i}", r * ratio_of(i, marks), r) for i, r in enumerate(routes))
+    try:
+        p = locate(LocateInput(otdr_distance_m=shown, group_index=index, helix_percent=helix,
+                               landmarks=landmarks,
+                               errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    except InputError:
+        return  # e.g. two landmarks whose OTDR distances do not increase: refused with a message
+    largest = max((c.route_m for c in p.contributions), default=0.0)
+    assert largest - 1e-9 <= p.uncertainty_m <= p.worst_case_m + 1e-9
+    assert p.low_m <= p.route_distance_m <= p.high_m
+
+
+def ratio_of(i: int, marks: list[tuple[float, float]]) -> float:
+    return marks[i][1] if i < len(marks) else 1.0
