@@ -304,8 +304,7 @@ def _prompt(s: JobSummary) -> str:
     mark = "✓" if s.status == "done" else "•"
     failed = f", {s.failed_count} failed" if s.failed_count else ""
     site = f"{s.site} · " if s.site else ""
-    day = local_date(s.updated_at).isoformat()
-    return f"{mark} {s.name}\n  {site}{day} · {s.result_count} results{failed}"
+    return f"{mark} {s.name}\n  {site}{s.result_count} results{failed}"
 
 
 def _head(job: Job) -> RenderableType:
@@ -324,20 +323,20 @@ def _head(job: Job) -> RenderableType:
 
 
 def _summary_table(job: Job) -> RenderableType:
+    """Per link and wavelength, in lines that wrap at 44 columns instead of a wide table."""
     rows = job_summary(job)
     if not rows:
         return _t("No results yet.", "dim")
-    table = Table(title="Per link and wavelength (fibres)", title_justify="left",
-                  expand=False, box=None, padding=(0, 1), show_edge=False)
-    for name, justify in (("Link", "left"), ("nm", "right"), ("Tested", "right"),
-                          ("Pass", "right"), ("Fail", "right"), ("No lim", "right"),
-                          ("Doubt", "right")):
-        table.add_column(name, justify=justify)  # type: ignore[arg-type]
+    text = Text("Fibres per link and wavelength", style="bold")
     for r in rows:
-        style = "bold red" if r.failed else "yellow" if r.in_doubt else ""
-        table.add_row(_t(r.link_label), fmt_nm(r.wavelength_nm), str(r.tested), str(r.passed),
-                      str(r.failed), str(r.no_limit), str(r.in_doubt), style=style)
-    return table
+        text.append(f"\n{r.link_label} {fmt_nm(r.wavelength_nm)} nm: ")
+        text.append(f"{r.tested} tested, {r.passed} pass")
+        text.append(f", {r.failed} fail", style="bold red" if r.failed else "")
+        if r.no_limit:
+            text.append(f", {r.no_limit} no limit")
+        if r.in_doubt:
+            text.append(f", {r.in_doubt} in doubt", style="yellow")
+    return text
 
 
 def _failures(job: Job) -> RenderableType:
