@@ -251,3 +251,73 @@ async def test_save_without_a_budget_warns(tmp_path: Path):
         await pilot.pause()
         assert isinstance(app.screen, BudgetScreen)
         assert any("length" in n.message for n in app._notifications)
+
+
+async def test_open_a_budget_saved_from_the_cli(tmp_path: Path):
+    # A budget saved by `fieldkit budget ... --job --link` opens in the workspace, items and all.
+    import argparse
+
+    from fieldkit.commands import budget as budget_cmd
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Station Road")
+    parser = argparse.ArgumentParser()
+    budget_cmd.add_link_options(parser, fibre_alias=True)
+    for flag in ("--application", "--transceiver", "--wavelength"):
+        parser.add_argument(flag)
+    args = parser.parse_args(["--fiber", "G.652.D", "--length", "12 km", "--splices", "4",
+                              "--splitter", "1x16", "--margin", "2", "--application",
+                              "GPON Class B+"])
+    args.config_dir = str(tmp_path / "c")
+    from fieldkit import linkspec
+
+    resolved = budget_cmd.resolved_from_args(args)
+    record = linkspec.budget_record(resolved, resolved.evaluate())
+
+    def put(j: Job) -> None:
+        j.add_link("SR-3").budget = record
+
+    store.update(job.id, put)
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        assert isinstance(app.screen, JobLinkPicker)
+        await pilot.press("enter", "enter")
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, BudgetScreen)
+        assert [i["kind"] for i in screen.items] == ["fibre", "splitter", "splices",
+                                                     "connectors"]
+        assert screen.query_one("#margin", Input).value == "2"
+        assert screen.query_one("#application", Select).value == "GPON Class B+"
+        # the same numbers as when it was saved
+        saved = record.at_wavelength(1310).loss_db
+        assert screen.report.result.at(1310).loss_db == pytest.approx(saved, abs=1e-9)
+        assert "Opened the budget saved on link SR-3" in text_of(app, "#budget-saved")
+
+
+def test_workspace_items_round_trip_through_the_saved_description():
+    from fieldkit import linkspec
+    from fieldkit.presets import load_presets
+    from fieldkit.tui.screens.budget import TYPED, items_from_spec, spec_from_items
+
+    items = [
+        {"kind": "fibre", "preset": TYPED, "value": "3 km",
+         "extra": "1310=0.33 dB/km; 1550=0.19 dB/km"},
+        {"kind": "attenuator", "preset": "", "value": "5 dB", "extra": ""},
+        {"kind": "other", "preset": "", "value": "0.4 dB", "extra": "closure"},
+        {"kind": "component", "preset": "CWDM mux or demux", "value": "2", "extra": ""},
+        {"kind": "splitter", "preset": TYPED, "value": "2x8", "extra": "1.2 dB"},
+        {"kind": "splices", "preset": TYPED, "value": "3", "extra": "0.08 dB"},
+        {"kind": "connectors", "preset": TYPED, "value": "4", "extra": "0.5 dB"},
+    ]
+    spec = spec_from_items(items, {"margin": "1 dB"})
+    again, fields = items_from_spec(spec)
+    assert again == items
+    assert fields["margin"] == "1 dB"
+    # 1310 nm: 3 × 0.33 = 0.99; 5; 0.4; 2 × 2.5 (CWDM preset, common practice) = 5;
+    # 2x8: 9.0309 + 1.2 = 10.2309; 3 × 0.08 = 0.24; 4 × 0.5 = 2 -> 23.8609 dB
+    report = linkspec.resolve(spec, load_presets()).evaluate()
+    assert report.result.at(1310).loss_db == pytest.approx(23.8609, abs=1e-4)

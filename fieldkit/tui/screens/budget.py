@@ -145,6 +145,84 @@ def spec_from_items(items: list[dict[str, str]], settings: dict[str, Any]) -> di
     return spec
 
 
+def _text(value: Any, unit: str = "") -> str:
+    if isinstance(value, bool) or value is None:
+        return ""
+    if isinstance(value, (int, float)):
+        return f"{value:g}{' ' + unit if unit else ''}"
+    return str(value)
+
+
+def items_from_spec(spec: dict[str, Any]) -> tuple[list[dict[str, str]], dict[str, str]]:
+    """The workspace's items and settings fields of a written link description (the reverse
+    of :func:`spec_from_items`, for a budget saved on a job)."""
+    items: list[dict[str, str]] = []
+    for seg in spec.get("segments") or []:
+        if not isinstance(seg, dict):
+            continue
+        length = _text(seg.get("length")) or _text(seg.get("length_m"), "m")
+        att = seg.get("attenuation")
+        if att is not None:
+            extra = ("; ".join(f"{k}={v}" for k, v in att.items()) if isinstance(att, dict)
+                     else _text(att))
+            items.append({"kind": "fibre", "preset": TYPED, "value": length, "extra": extra})
+        else:
+            items.append({"kind": "fibre", "preset": _text(seg.get("fibre") or seg.get("fiber")),
+                          "value": length, "extra": ""})
+    for kind in ("components",):
+        for comp in spec.get(kind) or []:
+            if not isinstance(comp, dict):
+                continue
+            count = _text(comp.get("count")) or "1"
+            loss = _text(comp.get("loss")) or _text(comp.get("loss_db"), "dB")
+            if "splitter" in comp:
+                excess = _text(comp.get("excess"))
+                items.append({"kind": "splitter", "preset": TYPED if excess else
+                              _text(comp.get("preset")) or f"{str(comp['splitter'])[:1]}xN "
+                              "splitter", "value": _text(comp["splitter"]), "extra": excess})
+            elif comp.get("preset") and not loss:
+                items.append({"kind": "component", "preset": _text(comp["preset"]),
+                              "value": count, "extra": ""})
+            elif comp.get("kind") == "attenuator":
+                items.append({"kind": "attenuator", "preset": "", "value": loss, "extra": ""})
+            else:
+                items.append({"kind": "other", "preset": "", "value": loss,
+                              "extra": _text(comp.get("name"))})
+    splices = spec.get("splices") or []
+    for sp in [splices] if isinstance(splices, dict) else splices:
+        if not isinstance(sp, dict):
+            continue
+        loss = _text(sp.get("loss")) or _text(sp.get("loss_db"), "dB")
+        items.append({"kind": "splices", "preset": TYPED if loss else
+                      _text(sp.get("grade") or sp.get("method") or "fusion"),
+                      "value": _text(sp.get("count")) or "0", "extra": loss})
+    conn = spec.get("connectors")
+    if isinstance(conn, dict):
+        loss = _text(conn.get("loss")) or _text(conn.get("loss_db"), "dB")
+        count = _text(conn.get("count")) or "2"
+        if not (count == "0" and loss in ("0 dB", "0")):
+            items.append({"kind": "connectors", "preset": TYPED if loss else
+                          _text(conn.get("grade") or "TIA-568.3-D"), "value": count,
+                          "extra": loss})
+    else:
+        items.append({"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""})
+    raw_nm = spec.get("wavelengths", spec.get("wavelengths_nm", []))
+    wavelengths = ", ".join(_text(v) for v in (raw_nm if isinstance(raw_nm, list) else [raw_nm]))
+    margin = _text(spec.get("margin")) or _text(spec.get("margin_db"), "dB")
+    settings = {"wavelengths": wavelengths, "margin": "" if margin in ("0 dB", "0") else margin,
+                "application": _text(spec.get("application"))}
+    tx = spec.get("transceiver")
+    if isinstance(tx, str):
+        settings["transceiver"] = tx
+    elif isinstance(tx, dict):
+        settings["transceiver"] = TYPED
+        for field_id, key in (("tx-min", "tx_min_dbm"), ("tx-max", "tx_max_dbm"),
+                              ("rx-sens", "rx_sensitivity_dbm"),
+                              ("rx-over", "rx_overload_dbm")):
+            settings[field_id] = _text(tx.get(key), "dBm")
+    return items, settings
+
+
 class BudgetScreen(Screen[None]):
     """Build a link, read its budget per wavelength, check an application or a transceiver."""
 
@@ -161,6 +239,8 @@ class BudgetScreen(Screen[None]):
                 tooltip="Move the picked item towards end B"),
         Binding("ctrl+s", "save", "Save to job", id="budget.save",
                 tooltip="Save this budget onto a job's link"),
+        Binding("ctrl+o", "open_saved", "Open saved", id="budget.open",
+                tooltip="Open the budget saved on a job's link, to check or change it"),
     ]
 
     def __init__(self) -> None:
@@ -174,6 +254,8 @@ class BudgetScreen(Screen[None]):
         self.resolved: Any = None
         self.problem: str | None = None
         self._tx_problem: str | None = None
+        self._job_id: str | None = None  # the job last opened or saved to, picked first next time
+        self._check_options: dict[str, list[str]] = {"application": [], "transceiver": []}
 
     # -- presets -------------------------------------------------------------------------
     @property
@@ -284,6 +366,8 @@ class BudgetScreen(Screen[None]):
 
     def on_mount(self) -> None:
         lib = self.library
+        self._check_options = {"application": list(lib.applications),
+                               "transceiver": [*lib.transceivers, TYPED]}
         self.query_one("#application", Select).set_options([(n, n) for n in lib.applications])
         self.query_one("#transceiver", Select).set_options(
             [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)])
@@ -664,6 +748,58 @@ class BudgetScreen(Screen[None]):
                             f"allows {tx.attenuator_max_db:.2f} dB: no attenuator fits")
             self.query_one("#transceiver-out", Static).update(_minus("\n".join(text)))
 
+    # -- opening a saved budget ---------------------------------------------------------
+    def action_open_saved(self) -> None:
+        from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+        self.app.push_screen(JobLinkPicker(job_id=self._job_id,
+                                           title="Open the budget saved on a link"),
+                             self._open_from)
+
+    def _open_from(self, choice: tuple[str, str] | None) -> None:
+        from fieldkit.jobs.store import StoreError
+
+        if choice is None:
+            return
+        job_id, link_id = choice
+        try:
+            link = self.app.store.load(job_id).link(link_id)  # type: ignore[attr-defined]
+        except (StoreError, KeyError) as exc:
+            message = str(exc.args[0]) if isinstance(exc, KeyError) and exc.args else str(exc)
+            self.notify(f"Not opened: {message}", severity="error")
+            return
+        if link.budget is None or not link.budget.description.get("segments"):
+            self.notify(f"Link {link.label} has no saved budget to open.", severity="warning")
+            return
+        items, fields = items_from_spec(link.budget.description)
+        if not any(i["kind"] == "fibre" for i in items):
+            self.notify(f"The budget on {link.label} has no fibre segment.", severity="warning")
+            return
+        self.load(items, fields)
+        self._job_id = job_id
+        self.query_one("#budget-saved", Static).update(
+            f"Opened the budget saved on link {link.label}.")
+
+    def load(self, items: list[dict[str, str]], fields: dict[str, str]) -> None:
+        """Replace the link and the settings (typed text is kept as typed)."""
+        self.items = items
+        self.current = 0
+        for field_id in ("wavelengths", "margin", "tx-min", "tx-max", "rx-sens", "rx-over"):
+            self.query_one(f"#{field_id}", Input).value = fields.get(field_id, "")
+        for select_id in ("application", "transceiver"):
+            select = self.query_one(f"#{select_id}", Select)
+            wanted = fields.get(select_id) or ""
+            if wanted and wanted in self._check_options[select_id]:
+                select.value = wanted
+            else:
+                select.clear()
+                if wanted:
+                    self.notify(f"{select_id}: '{wanted}' is not among the presets now",
+                                severity="warning")
+        self._refresh_list()
+        self._load_item()
+        self.recompute()
+
     # -- saving --------------------------------------------------------------------------
     def action_save(self) -> None:
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
@@ -672,7 +808,7 @@ class BudgetScreen(Screen[None]):
             self.notify(self.problem or "No budget to save yet.", severity="warning")
             return
         resolved, report = self.resolved, self.report
-        self.app.push_screen(JobLinkPicker(),
+        self.app.push_screen(JobLinkPicker(job_id=self._job_id),
                              lambda choice: self._save_to(choice, resolved, report))
 
     def _save_to(self, choice: tuple[str, str] | None, resolved: Any, report: Any) -> None:
@@ -702,6 +838,7 @@ class BudgetScreen(Screen[None]):
             self.notify(f"Not saved: {message}", severity="error")
             self.query_one("#budget-saved", Static).update(f"Not saved: {message}")
             return
+        self._job_id = job_id
         text = f"Budget saved onto job {names['job']}, link {names['link']}."
         self.query_one("#budget-saved", Static).update(text)
         self.notify(text)
