@@ -9,6 +9,8 @@ import shutil
 from pathlib import Path
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from fieldkit.jobs.migrations import migrate
 from fieldkit.jobs.models import SCHEMA_VERSION, Job, LossResult
@@ -18,6 +20,7 @@ from fieldkit.jobs.store import (
     ReadOnlyError,
     StoreError,
     filter_summaries,
+    parse_job,
 )
 
 GOLDEN = Path(__file__).parent.parent / "golden"
@@ -271,3 +274,33 @@ def test_settled_folder_is_listed_from_the_index_alone(store: JobStore) -> None:
     assert store.list(rescan=True)[0].name == "only in the index"  # same file key: kept
     store.update(job.id, lambda j: setattr(j, "name", "Saved again") or None)
     assert store.list()[0].name == "Saved again"  # the save changed the folder: rescanned
+
+
+def test_a_date_word_in_the_filter_filters_by_day(store: JobStore) -> None:
+    job = store.create("Dated")
+    rows = store.list()
+    day = rows[0].updated_at.astimezone().date()
+    assert [s.id for s in filter_summaries(rows, f"dated {day.isoformat()}")] == [job.id]
+    assert filter_summaries(rows, "2001-01-01") == []
+    assert filter_summaries(rows, "2026-13-45") == []  # not a date: an ordinary word
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.binary(max_size=300) | st.text(max_size=300).map(str.encode))
+def test_parse_job_refuses_any_garbage_with_a_store_error(raw: bytes) -> None:
+    try:
+        parse_job(raw)
+    except StoreError as exc:
+        assert str(exc)
+
+
+@settings(max_examples=100, deadline=None)
+@given(st.dictionaries(st.sampled_from(["schema_version", "id", "name", "links", "notes",
+                                        "crew", "status", "revision"]),
+                       st.none() | st.integers() | st.text(max_size=5) | st.lists(
+                           st.integers(), max_size=2), max_size=8))
+def test_parse_job_refuses_wrong_shapes_with_a_store_error(data: dict) -> None:
+    try:
+        parse_job(json.dumps(data).encode())
+    except StoreError as exc:
+        assert str(exc)

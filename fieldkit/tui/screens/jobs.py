@@ -80,12 +80,14 @@ class JobsScreen(Screen[None]):
         self._status: str | None = None
         self._today_only = False
         self._job: Job | None = None
+        self._quarantined = 0
 
     def compose(self) -> ComposeResult:
         yield Header()
         with Horizontal(id="jobs-body"):
             with Vertical(id="jobs-side"):
-                yield Input(placeholder="find: name, site, crew, link", id="jobs-filter",
+                yield Input(placeholder="find: name, site, crew, link, 2026-03-14",
+                            id="jobs-filter",
                             type="text", compact=True)
                 with Horizontal(id="jobs-filters"):
                     yield Button("All jobs", id="jobs-status", compact=True,
@@ -129,6 +131,10 @@ class JobsScreen(Screen[None]):
         except (StoreError, OSError) as exc:
             self._summaries = []
             self.notify(f"The jobs could not be listed: {exc}", severity="error")
+        try:
+            self._quarantined = len(self.store.quarantined())
+        except OSError:
+            self._quarantined = 0
         for problem in self.store.problems:
             self.notify(problem, severity="warning", timeout=10)
         self.store.problems.clear()
@@ -149,8 +155,10 @@ class JobsScreen(Screen[None]):
         shown = matches[:PAGE]
         options.add_options([Option(_prompt(s), id=s.id) for s in shown])
         more = f", first {PAGE} shown: type to narrow" if len(matches) > PAGE else ""
+        held = f", {self._quarantined} set aside (fieldkit jobs quarantine)" if (
+            self._quarantined) else ""
         self.query_one("#jobs-count", Static).update(
-            f"{len(matches)} of {len(self._summaries)} jobs{more}")
+            f"{len(matches)} of {len(self._summaries)} jobs{more}{held}")
         ids = [s.id for s in shown]
         if keep in ids:
             options.highlighted = ids.index(keep)
