@@ -231,15 +231,15 @@ class BudgetScreen(Screen[None]):
     BINDINGS = [
         Binding("ctrl+n", "add_item", "Add", id="budget.add",
                 tooltip="Add an item of the kind chosen beside the Add button"),
-        Binding("ctrl+r", "remove_item", "Remove", id="budget.remove",
+        Binding("ctrl+r", "remove_item", "Del", id="budget.remove", show=False,
                 tooltip="Remove the item picked in the list"),
         Binding("ctrl+up,f7", "move_item(-1)", "Up", id="budget.up", show=False,
                 tooltip="Move the picked item towards end A"),
         Binding("ctrl+down,f8", "move_item(1)", "Down", id="budget.down", show=False,
                 tooltip="Move the picked item towards end B"),
-        Binding("ctrl+s", "save", "Save to job", id="budget.save",
+        Binding("ctrl+s", "save", "Save", id="budget.save",
                 tooltip="Save this budget onto a job's link"),
-        Binding("ctrl+o", "open_saved", "Open saved", id="budget.open",
+        Binding("ctrl+o", "open_saved", "Open", id="budget.open", show=False,
                 tooltip="Open the budget saved on a job's link, to check or change it"),
     ]
 
@@ -360,9 +360,13 @@ class BudgetScreen(Screen[None]):
                         panel.border_title = "Values used"
                         yield Static("", id="sources-out", classes="result", markup=False)
                     yield Static("", id="budget-saved", classes="field-note", markup=False)
-                    yield Button("Save to job (Ctrl+S)", id="save", compact=True)
+                    with Horizontal(id="job-buttons"):
+                        yield Button("Save to job ^S", id="save", compact=True,
+                                     tooltip="Save this budget onto a job's link (Ctrl+S)")
+                        yield Button("Open saved ^O", id="open", compact=True,
+                                     tooltip="Open the budget saved on a job's link (Ctrl+O)")
                     yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
-        yield Footer()
+        yield Footer(compact=True)
 
     def on_mount(self) -> None:
         lib = self.library
@@ -571,7 +575,8 @@ class BudgetScreen(Screen[None]):
     def _button(self, event: Button.Pressed) -> None:
         actions = {"add": self.action_add_item, "remove": self.action_remove_item,
                    "up": lambda: self.action_move_item(-1),
-                   "down": lambda: self.action_move_item(1), "save": self.action_save}
+                   "down": lambda: self.action_move_item(1), "save": self.action_save,
+                   "open": self.action_open_saved}
         action = actions.get(event.button.id or "")
         if action is not None:
             action()
