@@ -321,3 +321,28 @@ def test_workspace_items_round_trip_through_the_saved_description():
     # 2x8: 9.0309 + 1.2 = 10.2309; 3 × 0.08 = 0.24; 4 × 0.5 = 2 -> 23.8609 dB
     report = linkspec.resolve(spec, load_presets()).evaluate()
     assert report.result.at(1310).loss_db == pytest.approx(23.8609, abs=1e-4)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_mouse_picks_an_item_and_removes_it(tmp_path: Path, size):
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"5 km")
+        screen.query_one("#add-kind", Select).value = "other"
+        await pilot.pause()
+        await pilot.click("#add")
+        await pilot.pause()
+        screen.query_one("#item-value", Input).value = "0.5 dB"
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "other", "connectors"]
+        await pilot.click("#items", offset=(3, 2))  # the third line: the connectors
+        await pilot.pause()
+        assert screen.current == 2
+        assert screen.query_one("#item-value", Input).value == "2"
+        await pilot.click("#remove")
+        await pilot.pause()
+        assert [i["kind"] for i in screen.items] == ["fibre", "other"]
+        # 5 × 0.4 + 0.5 = 2.5 dB, no connections left
+        assert screen.report.result.at(1310).loss_db == pytest.approx(2.5, abs=1e-9)
