@@ -142,6 +142,8 @@ class Table:
     #: Per row: "fail", "doubt" or "" (the HTML marks those rows; the text says it too).
     marks: list[str] = field(default_factory=list)
     numeric: set[int] = field(default_factory=set)
+    #: Columns kept on one line (directions such as "A->B").
+    nowrap: set[int] = field(default_factory=set)
 
 
 @dataclass
@@ -160,9 +162,9 @@ class Report:
 
 
 def _result_rows(link: Link, results: Iterable[LossResult]) -> Table:
-    table = Table(["Fibre", "λ nm", "Direction", "Reading dBm", "Loss dB", "Limit dB",
-                   "Margin dB", "Result", "Flags", "Method", "Reference", "By", "When"], [],
-                  numeric={0, 1, 3, 4, 5, 6})
+    table = Table(["Fibre", "λ nm", "Dir", "Reading dBm", "Loss dB", "Limit dB",
+                   "Margin dB", "Result", "Flags", "Method", "Ref", "By", "When"], [],
+                  numeric={0, 1, 3, 4, 5, 6}, nowrap={2})
     for r in results:
         margin = None if r.limit_db is None else r.limit_db - r.loss_db
         doubt = result_in_doubt(link, r)
@@ -202,7 +204,7 @@ def build_report(job: Job) -> Report:
     sec = Section("Failures")
     if failed:
         table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Limit dB",
-                       "Margin dB", "Flags"], [], numeric={1, 2, 4, 5, 6})
+                       "Margin dB", "Flags"], [], numeric={1, 2, 4, 5, 6}, nowrap={3})
         for link, r in failed:
             margin = None if r.limit_db is None else r.limit_db - r.loss_db
             table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
@@ -221,7 +223,7 @@ def build_report(job: Job) -> Report:
             f"{len(doubt)} results were taken against a reference whose re-check drifted "
             "beyond the tolerance: retest them against a fresh reference.")
         table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Reference"], [],
-                      numeric={1, 2, 4})
+                      numeric={1, 2, 4}, nowrap={3})
         for link, r in doubt:
             table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
                                fmt_db(r.loss_db), r.reference_id or ""])
@@ -279,7 +281,7 @@ def _link_sections(link: Link) -> list[Section]:
         out.append(sec)
     if link.references:
         sec = Section(f"{link.label}: references", level=3)
-        table = Table(["Id", "Kind", "λ nm", "Level dBm", "Method", "Drift dB", "Cords",
+        table = Table(["Ref", "Kind", "λ nm", "Level dBm", "Method", "Drift dB", "Cords",
                        "Launch", "Source", "Meter", "By", "When", "In doubt since"], [],
                       numeric={2, 3, 5})
         for ref in link.references:
@@ -373,11 +375,12 @@ h2 { font-size: 13pt; margin: 1.2em 0 .4em; border-bottom: 1px solid #888; }
 h3 { font-size: 11pt; margin: 1em 0 .3em; }
 dl.facts { display: grid; grid-template-columns: max-content 1fr; gap: .1em 1em; }
 dl.facts dt { font-weight: bold; } dl.facts dd { margin: 0; }
-table { border-collapse: collapse; width: 100%; margin: .3em 0 .8em; font-size: 9pt; }
-th, td { border: 1px solid #999; padding: .15em .35em; text-align: left;
-         vertical-align: top; overflow-wrap: anywhere; }
+table { border-collapse: collapse; width: 100%; margin: .3em 0 .8em; font-size: 8.5pt; }
+th, td { border: 1px solid #999; padding: .15em .3em; text-align: left;
+         vertical-align: top; overflow-wrap: break-word; }
 th { background: #eee; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+td.nowrap { white-space: nowrap; }
 tr.fail td { background: #fde2e2; font-weight: bold; }
 tr.doubt td { background: #fff3cd; font-style: italic; }
 thead { display: table-header-group; }
@@ -418,7 +421,9 @@ def to_html(job: Job) -> str:
                 mark = table.marks[i] if i < len(table.marks) else ""
                 cls = f' class="{mark}"' if mark else ""
                 cells = "".join(
-                    f'<td class="num">{e(c)}</td>' if j in table.numeric else f"<td>{e(c)}</td>"
+                    f'<td class="num">{e(c)}</td>' if j in table.numeric
+                    else f'<td class="nowrap">{e(c)}</td>' if j in table.nowrap
+                    else f"<td>{e(c)}</td>"
                     for j, c in enumerate(row))
                 out.append(f"<tr{cls}>{cells}</tr>")
             out.append("</tbody></table>")
