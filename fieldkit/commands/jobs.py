@@ -123,6 +123,8 @@ def _guard(func: Callable[[argparse.Namespace], int]) -> Callable[[argparse.Name
             return func(args)
         except StoreError as exc:
             raise CommandError(str(exc)) from None
+        except BrokenPipeError:
+            raise  # the reader went away (e.g. `| head`): cli.main ends quietly
         except OSError as exc:
             raise CommandError(f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": "))\
                 from None
