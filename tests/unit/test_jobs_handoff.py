@@ -7,8 +7,10 @@ import json
 from pathlib import Path
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
-from fieldkit.jobs.handoff import import_jobs, read_handoff
+from fieldkit.jobs.handoff import import_jobs, merge_job, read_handoff
 from fieldkit.jobs.models import Job, LossResult
 from fieldkit.jobs.reports import to_handoff
 from fieldkit.jobs.store import JobStore, StoreError
@@ -136,3 +138,20 @@ def test_files_that_are_not_handoffs(tmp_path: Path, text: str, message: str) ->
 def test_duplicate_job_in_one_file_is_refused(tmp_path: Path) -> None:
     with pytest.raises(StoreError, match="appears twice"):
         read_handoff(_write(tmp_path, [sample(), sample()]))
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.data())
+def test_merge_gives_the_union_of_records_without_duplicates(data: st.DataObject) -> None:
+    full = sample()
+    ids = [r.id for r in full.links[0].results]
+    mine_ids = set(data.draw(st.lists(st.sampled_from(ids), unique=True)))
+    theirs_ids = set(data.draw(st.lists(st.sampled_from(ids), unique=True)))
+    mine, theirs = sample(), sample()
+    mine.links[0].results = [r for r in mine.links[0].results if r.id in mine_ids]
+    theirs.links[0].results = [r for r in theirs.links[0].results if r.id in theirs_ids]
+    added, conflicts = merge_job(mine, theirs)
+    merged = [r.id for r in mine.links[0].results]
+    assert sorted(merged) == sorted(mine_ids | theirs_ids)  # each once
+    assert added == len(theirs_ids - mine_ids) and conflicts == []
+    assert merge_job(mine, theirs) == (0, [])  # merging again changes nothing
