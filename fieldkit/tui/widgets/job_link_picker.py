@@ -57,6 +57,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
     JobLinkPicker OptionList {
         height: auto;
         max-height: 6;
+        background: $boost;
     }
     JobLinkPicker Input {
         margin: 0;
@@ -66,9 +67,9 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         height: auto;
     }
     JobLinkPicker #jlp-buttons {
-        height: auto;
+        height: 1;
         align-horizontal: right;
-        margin-top: 1;
+        margin: 1 0 0 0;
     }
     JobLinkPicker #jlp-buttons Button {
         margin-left: 1;
@@ -99,15 +100,15 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         with Vertical(id="jlp-dialog"):
             yield Label(self._title, id="jlp-title")
             yield Label("Open job", classes="jlp-heading")
-            yield OptionList(id="jlp-jobs")
+            yield OptionList(id="jlp-jobs", compact=True, markup=False)
             yield Input(placeholder="or a new job name, Enter", id="jlp-new-job", compact=True)
             yield Label("Link", classes="jlp-heading", id="jlp-links-heading")
-            yield OptionList(id="jlp-links")
+            yield OptionList(id="jlp-links", compact=True, markup=False)
             yield Input(placeholder="or a new link label, Enter", id="jlp-new-link", compact=True)
             yield Static("", id="jlp-message")
             with Horizontal(id="jlp-buttons"):
-                yield Button("Cancel", id="jlp-cancel")
-                yield Button("Save here", id="jlp-ok", variant="primary")
+                yield Button("Cancel", id="jlp-cancel", compact=True)
+                yield Button("Save here", id="jlp-ok", variant="primary", compact=True)
 
     def on_mount(self) -> None:
         self._reload_jobs(select=self._initial_job)
