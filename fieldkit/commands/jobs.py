@@ -1,7 +1,8 @@
 """``fieldkit jobs``: per-job logs from the command line.
 
     fieldkit jobs new NAME [--site S] [--customer C] [--crew NAME]... [--json]
-    fieldkit jobs list [--status open|done] [--search TEXT] [--date YYYY-MM-DD|--today] [--json]
+    fieldkit jobs list [--status open|done] [--search TEXT] [--date YYYY-MM-DD|--today]
+                       [--rescan] [--json]
     fieldkit jobs show ID [--json]
     fieldkit jobs note ID TEXT [--by NAME]
     fieldkit jobs done ID          /  fieldkit jobs reopen ID
@@ -67,6 +68,8 @@ def register(subparsers: Any) -> None:
     when = p.add_mutually_exclusive_group()
     when.add_argument("--date", metavar="YYYY-MM-DD", help="created or updated on that day")
     when.add_argument("--today", action="store_true", help="created or updated today")
+    p.add_argument("--rescan", action="store_true",
+                   help="check every file against the index (after editing files by hand)")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_list))
 
@@ -170,7 +173,8 @@ def run_list(args: argparse.Namespace) -> int:
 
     store = store_of(args)
     on_date = _day(None) if args.today else _day(args.date) if args.date else None
-    rows = filter_summaries(store.list(), text=args.search, status=args.status, on_date=on_date)
+    rows = filter_summaries(store.list(rescan=args.rescan), text=args.search,
+                            status=args.status, on_date=on_date)
     _warn_problems(store)
     if args.json:
         print_json({"jobs": [s.as_dict() for s in rows], "count": len(rows)})
