@@ -32,7 +32,9 @@ class FieldkitApp(App[None]):
     HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (72, "-wide")]
     MODES = {ws.mode: ws.make_screen for ws in WORKSPACES}
     BINDINGS = [
-        Binding("f1", "show_help", "Help", id="app.help", tooltip="Keys and safety cautions"),
+        Binding(
+            "f1", "show_help", "Help", id="app.help", tooltip="Keys and safety cautions", show=False
+        ),
         *[
             Binding(
                 ws.key,
@@ -40,6 +42,8 @@ class FieldkitApp(App[None]):
                 ws.title,
                 id=f"workspace.{ws.mode}",
                 tooltip=ws.help,
+                # The workspace bar at the top shows these keys, and takes clicks.
+                show=False,
             )
             for ws in WORKSPACES
         ],
@@ -50,7 +54,8 @@ class FieldkitApp(App[None]):
             id="app.sunlight",
             tooltip="Switch to the high-contrast theme for direct sunlight, and back",
         ),
-        Binding("ctrl+q", "quit", "Quit", id="app.quit", priority=True),
+        # Quit is in the help page and the palette; the footer's room goes to the workspaces.
+        Binding("ctrl+q", "quit", "Quit", id="app.quit", priority=True, show=False),
     ]
 
     def __init__(self, data_dir: Path, config_dir: Path, start_mode: str | None = None) -> None:

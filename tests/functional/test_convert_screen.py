@@ -139,3 +139,20 @@ async def test_workspaces_are_in_the_command_palette(tmp_path: Path) -> None:
             assert f"Open {workspace.title}" in titles
         keys = {binding.key for binding in app.BINDINGS if hasattr(binding, "key")}
         assert {workspace.key for workspace in WORKSPACES} <= keys
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_workspace_bar_shows_keys_and_takes_clicks(tmp_path: Path, size) -> None:
+    from fieldkit.tui.widgets.workspace_bar import WorkspaceTab
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        tabs = {tab.mode: tab for tab in app.screen.query(WorkspaceTab)}
+        assert "F2 Convert" in str(tabs["convert"].render())
+        assert tabs["convert"].has_class("-current")
+        for tab in tabs.values():
+            assert tab.key_label in str(tab.render())  # every key visible, even at 44 columns
+        await pilot.click("#tab-help")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)

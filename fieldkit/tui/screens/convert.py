@@ -5,12 +5,13 @@ from __future__ import annotations
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Header, Input, Static
+from textual.widgets import Footer, Input, Static
 
 from fieldkit.calc import power
 from fieldkit.calc.conversions import grid_report, related_values
 from fieldkit.calc.units import InputError, Kind, Value, display_unit, format_number
 from fieldkit.tui.widgets.quantity_field import QuantityField
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 
 def _rows(rows: list[tuple[str, str]]) -> str:
@@ -25,7 +26,7 @@ class ConvertScreen(Screen[None]):
     AUTO_FOCUS = "#value"
 
     def compose(self) -> ComposeResult:
-        yield Header()
+        yield WorkspaceBar()
         with VerticalScroll(id="convert-body"):
             with Vertical(classes="two-col"):
                 with Vertical(classes="col"):
@@ -85,7 +86,7 @@ class ConvertScreen(Screen[None]):
                             placeholder="1550.12 nm or 193.4 THz",
                         )
                         yield Static("", id="grid-out", classes="result")
-        yield Footer()
+        yield Footer(compact=True)
 
     def on_mount(self) -> None:
         for field in self.query(QuantityField):

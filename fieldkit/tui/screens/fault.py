@@ -484,7 +484,7 @@ class FaultScreen(Screen[None]):
                     yield Button("Save onto a job's link (Ctrl+S)", id="fault-save",
                                  compact=True, variant="primary")
                     yield Static("", id="fault-saved", classes="field-note")
-        yield Footer()
+        yield Footer(compact=True)
 
     def on_mount(self) -> None:
         for field in self.query(QuantityField):
