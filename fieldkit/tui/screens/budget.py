@@ -18,11 +18,12 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Button, Footer, Header, Input, Label, OptionList, Select, Static
+from textual.widgets import Button, Footer, Input, Label, OptionList, Select, Static
 
 from fieldkit import safety
 from fieldkit.calc.units import InputError
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 TYPED = "__typed__"
 _PAD = "\u00a0\u00a0"  # leading spaces that survive the text layout
@@ -294,7 +295,7 @@ class BudgetScreen(Screen[None]):
             yield Static("", classes="field-error", id=f"{field_id}-error")
 
     def compose(self) -> ComposeResult:
-        yield Header()
+        yield WorkspaceBar()
         with VerticalScroll(id="budget-body"):
             with Vertical(classes="two-col"):
                 with Vertical(classes="col"):

@@ -17,7 +17,7 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.screen import Screen
-from textual.widgets import Button, Footer, Header, Input, Label, OptionList, Select, Static
+from textual.widgets import Button, Footer, Input, Label, OptionList, Select, Static
 from textual.widgets.option_list import Option
 
 from fieldkit import safety
@@ -41,6 +41,7 @@ from fieldkit.calc.locate import (
 from fieldkit.calc.units import InputError, Kind, normalise_text, parse, parse_number
 from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.route_diagram import FaultMark, RouteDiagram, RoutePoint
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 #: Characters a plain-number field lets through (a decimal comma is handled by the parser).
 NUMBER_CHARS = r"[0-9 .,+\-\u2212%eE]*"
@@ -379,7 +380,7 @@ class FaultScreen(Screen[None]):
         cables = list(library.cables.values())
         cable_name = next((c.name for c in cables if c.name == "stranded loose tube"),
                           cables[0].name if cables else TYPED)
-        yield Header()
+        yield WorkspaceBar()
         yield Static("", id="fault-summary")
         with VerticalScroll(id="fault-body"), Vertical(classes="two-col"):
             with Vertical(classes="col", id="fault-inputs"):

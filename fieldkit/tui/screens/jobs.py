@@ -21,7 +21,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen, Screen
-from textual.widgets import Button, Footer, Header, Input, Label, OptionList, Static
+from textual.widgets import Button, Footer, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from fieldkit.jobs.models import Job, now
@@ -38,6 +38,7 @@ from fieldkit.jobs.reports import (
     verdict,
 )
 from fieldkit.jobs.store import JobSummary, StoreError, filter_summaries, local_date
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 #: How many matching jobs the list shows at once; typing in the filter narrows the rest.
 PAGE = 200
@@ -56,22 +57,65 @@ class JobsScreen(Screen[None]):
     CSS_PATH = "jobs.tcss"
     AUTO_FOCUS = "#jobs-filter"
     BINDINGS = [
-        Binding("ctrl+f", "focus_filter", "Find", id="jobs.find",
-                tooltip="Type words to find jobs by name, customer, site, crew or link"),
-        Binding("ctrl+n", "focus_note", "Note", id="jobs.note",
-                tooltip="Type a note for this job, Enter saves it"),
-        Binding("ctrl+o", "toggle_done", "Done/open", id="jobs.done",
-                tooltip="Mark the job done, or open again"),
-        Binding("f8", "export", "Export", id="jobs.export",
-                tooltip="Write the job report as CSV, Markdown, HTML or a JSON hand-off"),
-        Binding("f7", "end_of_day", "End of day", id="jobs.today",
-                tooltip="Today's jobs, result counts, failures and open items"),
-        Binding("ctrl+s", "cycle_status", "Status", id="jobs.status", show=False,
-                tooltip="Show all jobs, only open ones, or only done ones"),
-        Binding("ctrl+g", "toggle_today", "Today", id="jobs.only_today", show=False,
-                tooltip="Only jobs created or updated today, or every day"),
-        Binding("ctrl+r", "reload", "Reload", id="jobs.reload", show=False,
-                tooltip="Read the jobs again (changes made by another program)"),
+        Binding(
+            "ctrl+f",
+            "focus_filter",
+            "Find",
+            id="jobs.find",
+            tooltip="Type words to find jobs by name, customer, site, crew or link",
+        ),
+        Binding(
+            "ctrl+n",
+            "focus_note",
+            "Note",
+            id="jobs.note",
+            tooltip="Type a note for this job, Enter saves it",
+        ),
+        Binding(
+            "ctrl+o",
+            "toggle_done",
+            "Done/open",
+            id="jobs.done",
+            tooltip="Mark the job done, or open again",
+        ),
+        Binding(
+            "f8",
+            "export",
+            "Export",
+            id="jobs.export",
+            tooltip="Write the job report as CSV, Markdown, HTML or a JSON hand-off",
+        ),
+        Binding(
+            "f7",
+            "end_of_day",
+            "End of day",
+            id="jobs.today",
+            tooltip="Today's jobs, result counts, failures and open items",
+        ),
+        Binding(
+            "ctrl+s",
+            "cycle_status",
+            "Status",
+            id="jobs.status",
+            show=False,
+            tooltip="Show all jobs, only open ones, or only done ones",
+        ),
+        Binding(
+            "ctrl+g",
+            "toggle_today",
+            "Today",
+            id="jobs.only_today",
+            show=False,
+            tooltip="Only jobs created or updated today, or every day",
+        ),
+        Binding(
+            "ctrl+r",
+            "reload",
+            "Reload",
+            id="jobs.reload",
+            show=False,
+            tooltip="Read the jobs again (changes made by another program)",
+        ),
     ]
 
     def __init__(self) -> None:
@@ -83,17 +127,28 @@ class JobsScreen(Screen[None]):
         self._quarantined = 0
 
     def compose(self) -> ComposeResult:
-        yield Header()
+        yield WorkspaceBar()
         with Horizontal(id="jobs-body"):
             with Vertical(id="jobs-side"):
-                yield Input(placeholder="find: name, site, crew, link, 2026-03-14",
-                            id="jobs-filter",
-                            type="text", compact=True)
+                yield Input(
+                    placeholder="find: name, site, crew, link, 2026-03-14",
+                    id="jobs-filter",
+                    type="text",
+                    compact=True,
+                )
                 with Horizontal(id="jobs-filters"):
-                    yield Button("All jobs", id="jobs-status", compact=True,
-                                 tooltip="All, open or done jobs (Ctrl+S)")
-                    yield Button("Any day", id="jobs-day", compact=True,
-                                 tooltip="Only today's jobs, or every day (Ctrl+G)")
+                    yield Button(
+                        "All jobs",
+                        id="jobs-status",
+                        compact=True,
+                        tooltip="All, open or done jobs (Ctrl+S)",
+                    )
+                    yield Button(
+                        "Any day",
+                        id="jobs-day",
+                        compact=True,
+                        tooltip="Only today's jobs, or every day (Ctrl+G)",
+                    )
                 yield Static("", id="jobs-count", classes="field-note")
                 yield OptionList(id="jobs-list", markup=False)
             with VerticalScroll(id="job-detail"):
@@ -103,15 +158,19 @@ class JobsScreen(Screen[None]):
                 yield Static("", id="job-links")
                 yield Static("", id="job-notes")
                 with Horizontal(id="job-note-row"):
-                    yield Input(placeholder="a note, Enter saves (Ctrl+N)", id="job-note",
-                                type="text", compact=True)
+                    yield Input(
+                        placeholder="a note, Enter saves (Ctrl+N)",
+                        id="job-note",
+                        type="text",
+                        compact=True,
+                    )
                     yield Button("Add note", id="job-note-add", compact=True)
                 yield Static("", id="job-note-error", classes="field-error")
                 with Horizontal(id="job-actions"):
                     yield Button("Mark done", id="job-done", compact=True)
                     yield Button("Export", id="job-export", compact=True)
                     yield Button("End of day", id="job-today", compact=True)
-        yield Footer()
+        yield Footer(compact=True)
 
     def on_mount(self) -> None:
         self.reload()
@@ -155,17 +214,24 @@ class JobsScreen(Screen[None]):
         shown = matches[:PAGE]
         options.add_options([Option(_prompt(s), id=s.id) for s in shown])
         more = f", first {PAGE} shown: type to narrow" if len(matches) > PAGE else ""
-        held = f", {self._quarantined} set aside (fieldkit jobs quarantine)" if (
-            self._quarantined) else ""
+        held = (
+            f", {self._quarantined} set aside (fieldkit jobs quarantine)"
+            if (self._quarantined)
+            else ""
+        )
         self.query_one("#jobs-count", Static).update(
-            f"{len(matches)} of {len(self._summaries)} jobs{more}{held}")
+            f"{len(matches)} of {len(self._summaries)} jobs{more}{held}"
+        )
         ids = [s.id for s in shown]
         if keep in ids:
             options.highlighted = ids.index(keep)
         elif keep is None and ids:
             options.highlighted = 0  # opens the newest job, so the details are never empty
         self.query_one("#jobs-status", Button).label = {
-            None: "All jobs", "open": "Open jobs", "done": "Done jobs"}[self._status]
+            None: "All jobs",
+            "open": "Open jobs",
+            "done": "Done jobs",
+        }[self._status]
         self.query_one("#jobs-day", Button).label = "Today" if self._today_only else "Any day"
 
     def _open(self, job_id: str) -> None:
@@ -187,7 +253,8 @@ class JobsScreen(Screen[None]):
         self.query_one("#job-links", Static).update(_links(job))
         self.query_one("#job-notes", Static).update(_notes(job))
         self.query_one("#job-done", Button).label = (
-            "Open again" if job.status == "done" else "Mark done")
+            "Open again" if job.status == "done" else "Mark done"
+        )
         read_only = bool(job.read_only)
         for wid in ("#job-note", "#job-note-add", "#job-done"):
             self.query_one(wid).disabled = read_only
@@ -319,8 +386,11 @@ def _head(job: Job) -> RenderableType:
     text = Text()
     text.append(job.name, style="bold")
     text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
-    for label, value in (("Customer", job.customer), ("Site", job.site),
-                         ("Crew", ", ".join(job.crew))):
+    for label, value in (
+        ("Customer", job.customer),
+        ("Site", job.site),
+        ("Crew", ", ".join(job.crew)),
+    ):
         if value:
             text.append(f"\n{label}: ", style="dim")
             text.append(value)
@@ -354,8 +424,11 @@ def _failures(job: Job) -> RenderableType:
     text = Text("Failures", style="bold red")
     for link, r in failed:
         limit = f" (limit {fmt_db(r.limit_db)} dB)" if r.limit_db is not None else ""
-        text.append(f"\n✗ {link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
-                    f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}", style="red")
+        text.append(
+            f"\n✗ {link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
+            f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}",
+            style="red",
+        )
     return text
 
 
@@ -363,27 +436,42 @@ def _links(job: Job) -> RenderableType:
     parts: list[RenderableType] = []
     for link in job.links:
         head = Text(f"\nLink {link.label}", style="bold")
-        details = [d for d in (
-            f"{link.end_a} → {link.end_b}" if link.end_a or link.end_b else "",
-            link.fibre_type, f"{fmt_m(link.length_m)} m" if link.length_m is not None else "",
-            f"{link.fibre_count} fibres" if link.fibre_count else "") if d]
+        details = [
+            d
+            for d in (
+                f"{link.end_a} → {link.end_b}" if link.end_a or link.end_b else "",
+                link.fibre_type,
+                f"{fmt_m(link.length_m)} m" if link.length_m is not None else "",
+                f"{link.fibre_count} fibres" if link.fibre_count else "",
+            )
+            if d
+        ]
         if details:
             head.append("\n" + " · ".join(details), style="dim")
         parts.append(head)
         if link.budget is not None:
             b = link.budget
-            line = "; ".join(f"{fmt_nm(w.wavelength_nm)} nm {fmt_db(w.loss_db)} dB"
-                             for w in b.wavelengths)
+            line = "; ".join(
+                f"{fmt_nm(w.wavelength_nm)} nm {fmt_db(w.loss_db)} dB" for w in b.wavelengths
+            )
             parts.append(_t(f"Budget (max): {line}; margin {fmt_db(b.margin_db)} dB"))
         for f in link.faults:
-            parts.append(_t(f"Fault: route {fmt_m(f.route_distance_m)} m (search "
-                            f"{fmt_m(f.low_m)}–{fmt_m(f.high_m)} m)"
-                            + (f", near {f.nearest_landmark}" if f.nearest_landmark else ""),
-                            "bold magenta"))
+            parts.append(
+                _t(
+                    f"Fault: route {fmt_m(f.route_distance_m)} m (search "
+                    f"{fmt_m(f.low_m)}–{fmt_m(f.high_m)} m)"
+                    + (f", near {f.nearest_landmark}" if f.nearest_landmark else ""),
+                    "bold magenta",
+                )
+            )
         if link.splices:
             worst = max(link.splices, key=lambda s: s.loss_db)
-            parts.append(_t(f"{len(link.splices)} splices, worst {fmt_db(worst.loss_db)} dB "
-                            f"(fibre {worst.fibre}, {worst.estimate})"))
+            parts.append(
+                _t(
+                    f"{len(link.splices)} splices, worst {fmt_db(worst.loss_db)} dB "
+                    f"(fibre {worst.fibre}, {worst.estimate})"
+                )
+            )
         if link.results:
             table = Table(box=None, padding=(0, 1), show_edge=False, expand=False)
             for name in ("Fib", "nm", "Dir", "Loss dB", "Limit", "Result"):
@@ -395,15 +483,24 @@ def _links(job: Job) -> RenderableType:
                 if "negative-loss" in r.flags:
                     flag += " neg"
                 style = "bold red" if r.passed is False else "yellow" if doubt else ""
-                table.add_row(str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
-                              fmt_db(r.loss_db), fmt_db(r.limit_db), verdict(r) + flag,
-                              style=style)
+                table.add_row(
+                    str(r.fibre),
+                    fmt_nm(r.wavelength_nm),
+                    r.direction,
+                    fmt_db(r.loss_db),
+                    fmt_db(r.limit_db),
+                    verdict(r) + flag,
+                    style=style,
+                )
             parts.append(table)
         elif not link.faults:
             parts.append(_t("no results yet", "dim"))
     if not parts:
-        return _t("\nNo links yet: the budget, meter and fault workspaces add them when "
-                  "they save onto this job.", "dim")
+        return _t(
+            "\nNo links yet: the budget, meter and fault workspaces add them when "
+            "they save onto this job.",
+            "dim",
+        )
     return Group(*parts)
 
 
@@ -432,8 +529,11 @@ class ExportDialog(ModalScreen[Path | None]):
     def compose(self) -> ComposeResult:
         with Vertical(id="export-dialog"):
             yield Label(f"Export {self._job.name}", id="export-title")
-            yield OptionList(*[Option(_FORMAT_NAMES[f], id=f) for f in EXPORT_FORMATS],
-                             id="export-format", markup=False)
+            yield OptionList(
+                *[Option(_FORMAT_NAMES[f], id=f) for f in EXPORT_FORMATS],
+                id="export-format",
+                markup=False,
+            )
             yield Label("File", classes="field-note")
             yield Input(str(self._path("html")), id="export-path", type="text", compact=True)
             yield Static("", id="export-error", classes="field-error")
