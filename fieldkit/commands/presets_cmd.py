@@ -11,15 +11,15 @@ from fieldkit.commands.common import CommandError, add_data_dir, print_json
 
 
 def register(subparsers: Any) -> None:
-    from fieldkit.presets import KINDS
-
+    # The kinds are spelled out here rather than imported: registering a command must not load
+    # the presets module at start-up (a test checks the two lists agree).
     parser: argparse.ArgumentParser = subparsers.add_parser(
         "presets",
         help="list fibre, connection, component, application, transceiver and cable presets",
         description="Lists the presets with the standard and edition each value comes from. "
         "Your own preset files in <config>/presets/*.toml add to them or replace one by "
         "name; a bad file or entry is reported and the rest still load. "
-        f"Kinds: {', '.join(KINDS)}.",
+        "Kinds: fibres, connectors, splices, components, applications, transceivers, cables.",
     )
     parser.add_argument("kind", nargs="?", metavar="KIND",
                         help="one kind only (fibres, connectors, splices, components, "

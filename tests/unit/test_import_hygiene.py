@@ -49,3 +49,24 @@ def test_importing_the_app_creates_no_folders(tmp_path: Path) -> None:
     assert result.returncode == 0, result.stderr
     assert not (tmp_path / "d").exists()
     assert not (tmp_path / "c").exists()
+
+
+def test_presets_help_lists_every_kind() -> None:
+    from fieldkit.cli import build_parser
+    from fieldkit.presets import KINDS
+
+    parser = build_parser()
+    action = next(a for a in parser._subparsers._actions if a.dest == "command")  # type: ignore[union-attr]
+    description = action.choices["presets"].description
+    assert all(kind in description for kind in KINDS)
+
+
+def test_cli_start_does_not_load_presets_or_jobs() -> None:
+    code = (
+        "import sys, fieldkit.cli; fieldkit.cli.build_parser(); "
+        "print(sorted(m for m in ('fieldkit.presets', 'fieldkit.jobs.store', 'pydantic', 'pint') "
+        "if m in sys.modules))"
+    )
+    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert result.returncode == 0, result.stderr
+    assert result.stdout.strip() == "[]"
