@@ -67,6 +67,8 @@ def test_cli_start_does_not_load_presets_or_jobs() -> None:
         "print(sorted(m for m in ('fieldkit.presets', 'fieldkit.jobs.store', 'pydantic', 'pint') "
         "if m in sys.modules))"
     )
-    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    result = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, timeout=60
+    )
     assert result.returncode == 0, result.stderr
     assert result.stdout.strip() == "[]"
