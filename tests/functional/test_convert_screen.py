@@ -156,3 +156,16 @@ async def test_workspace_bar_shows_keys_and_takes_clicks(tmp_path: Path, size) -
         await pilot.click("#tab-help")
         await pilot.pause()
         assert isinstance(app.screen, HelpScreen)
+
+
+async def test_enter_moves_to_the_next_field(tmp_path: Path) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("-", "3", "enter")
+        await pilot.pause()
+        assert app.focused is not None and app.focused.id == "loss-level"
+        await pilot.press("-", "3", "enter", "4", "enter")
+        await pilot.pause()
+        assert app.focused.id == "sum-a"
+        assert "−7 dBm" in text_of(app, "#loss-out")

@@ -107,6 +107,11 @@ class ConvertScreen(Screen[None]):
         elif target == "grid-in":
             self._show_grid()
 
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        # Enter moves on, as on a meter's keypad: no reach for Tab with gloves on.
+        event.stop()
+        self.focus_next()
+
     def _field(self, field_id: str) -> QuantityField:
         return self.query_one(f"#{field_id}-field", QuantityField)
 
