@@ -7,10 +7,8 @@ splices; a multimode fit-out finished and passing; a reservoir feed with a locat
 repair splices and a retest with one fibre failing and one negative-loss reading; and a survey
 with a link not yet tested.
 
-Numbers are built from the published figures they name, so the demo reads like real work:
-TIA-568.3-D maxima (0.75 dB per mated connector pair, 0.3 dB per splice, single-mode outside
-plant 0.5 dB/km — we use 0.4 dB/km at 1310 and 0.3 at 1550 from ITU-T G.652 cabled fibre,
-multimode 3.5 dB/km at 850 and 1.5 at 1300).
+Budgets are computed by fieldkit's own budget calculation from the shipped presets, so the
+demo reads like real work and agrees with the budget workspace; the readings are invented.
 
 The jobs have fixed ids, so regenerating the demo replaces its own files and nothing else.
 """
@@ -23,9 +21,7 @@ from datetime import datetime, time, timedelta
 from fieldkit.jobs.models import (
     FLAG_NEGATIVE_LOSS,
     FLAG_REFERENCE_IN_DOUBT,
-    BudgetItem,
     BudgetRecord,
-    BudgetWavelength,
     FaultRecord,
     Job,
     Link,
@@ -41,30 +37,24 @@ _At = Callable[[float], datetime]
 DEMO_IDS = ("de30000000000001", "de30000000000002", "de30000000000003", "de30000000000004")
 
 
-def _budget(at: datetime, by: str, length_m: float, coefs: dict[float, float],
-            connectors: int, splices: int, margin_db: float, fibre: str) -> BudgetRecord:
-    rows = []
-    for wavelength_nm, coef_db_per_km in coefs.items():
-        items = [
-            BudgetItem(name=f"fibre {fibre} {length_m / 1000:g} km × {coef_db_per_km} dB/km",
-                       loss_db=length_m / 1000 * coef_db_per_km,
-                       source="ITU-T G.652 cabled fibre" if fibre == "OS2"
-                       else "TIA-568.3-D multimode"),
-            BudgetItem(name=f"{connectors} mated connector pairs × 0.75 dB",
-                       loss_db=connectors * 0.75, source="TIA-568.3-D"),
-        ]
-        if splices:
-            items.append(BudgetItem(name=f"{splices} fusion splices × 0.3 dB",
-                                    loss_db=splices * 0.3, source="TIA-568.3-D"))
-        total = sum(item.loss_db for item in items)
-        typical = length_m / 1000 * (coef_db_per_km * 0.85) + connectors * 0.3 + splices * 0.05
-        rows.append(BudgetWavelength(wavelength_nm=wavelength_nm, loss_db=total,
-                                     typical_loss_db=typical, items=items))
-    return BudgetRecord(
-        computed_at=at, by=by,
-        description={"fibre": fibre, "length_m": length_m, "connectors": connectors,
-                     "splices": splices, "wavelengths_nm": list(coefs)},
-        wavelengths=rows, margin_db=margin_db)
+def _budget(at: datetime, by: str, length_m: float, connectors: int, splices: int,
+            margin_db: float, fibre: str) -> BudgetRecord:
+    """A budget computed the way the budget workspace computes it, from the shipped presets,
+    so a demo budget opened in the workspace shows the same numbers."""
+    from fieldkit.linkspec import budget_record, resolve
+    from fieldkit.presets import load_presets
+
+    spec: dict[str, object] = {
+        "segments": [{"fibre": fibre, "length_m": length_m}],
+        "connectors": {"count": connectors},
+        "margin_db": margin_db,
+    }
+    if splices:
+        spec["splices"] = [{"count": splices}]
+    resolved = resolve(spec, load_presets(None))
+    record = budget_record(resolved, resolved.evaluate(), by=by)
+    record.computed_at = at
+    return record
 
 
 def build(day_start: datetime) -> list[Job]:
@@ -83,7 +73,7 @@ def _backbone(at: _At) -> Job:
     ana, tomas = "Ana Ruiz", "Tomas Hale"
     link = Link(label="LIB-TH-01", end_a="Library comms room", end_b="Town Hall basement",
                 fibre_type="OS2", length_m=1840.0, fibre_count=12)
-    link.budget = _budget(at(7.5), ana, 1840.0, {1310.0: 0.4, 1550.0: 0.3}, 2, 4, 0.5, "OS2")
+    link.budget = _budget(at(7.5), ana, 1840.0, 2, 4, 0.5, "OS2")
     ref1310 = ReferenceRecord(source_id="SRC-2", meter_id="PM-4", wavelength_nm=1310.0,
                               level_dbm=-7.02, method="one-cord", cords=["TRC-11"],
                               by=tomas, at=at(8.0))
@@ -133,7 +123,7 @@ def _fit_out(at: _At) -> Job:
     priya = "Priya Nair"
     link = Link(label="MILL-U3", end_a="Old Mill MDF", end_b="Unit 3 rack", fibre_type="OM3",
                 length_m=120.0, fibre_count=24)
-    link.budget = _budget(at(8.0), priya, 120.0, {850.0: 3.5, 1300.0: 1.5}, 2, 0, 0.0, "OM3")
+    link.budget = _budget(at(8.0), priya, 120.0, 2, 0, 0.0, "OM3")
     refs = {nm: ReferenceRecord(source_id="SRC-MM1", meter_id="PM-7", wavelength_nm=nm,
                                 level_dbm=level, method="two-cord", cords=["TRC-3", "TRC-4"],
                                 launch_condition="encircled flux (IEC 61280-4-1)", by=priya,
