@@ -42,7 +42,7 @@ def _send(app: object, *keys: str) -> None:
 async def _settle(pilot: object, screen: MeterScreen) -> None:
     for _ in range(400):
         await pilot.pause(0.02)  # type: ignore[attr-defined]
-        if not screen.unsaved:
+        if not screen.unsaved and not screen.summary_pending:
             return
     raise AssertionError("the readings were not saved")
 

@@ -20,6 +20,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Grid, Horizontal, Vertical
 from textual.screen import Screen
+from textual.timer import Timer
 from textual.widgets import Collapsible, DataTable, Footer, Header, Input, Label, Static
 
 from fieldkit import safety
@@ -107,6 +108,7 @@ class MeterScreen(Screen[None]):
         self._fibre = 1
         self._column_index = 0
         self._synced_column: GridColumn | None = None
+        self._summary_timer: Timer | None = None
         self._job_id: str | None = None
         self._link_id: str | None = None
         self._link_label = ""
@@ -543,7 +545,7 @@ class MeterScreen(Screen[None]):
                      current.level_dbm, self._method, self._limit_db(column.wavelength_nm),
                      stamp, {**self._details(), "at": current.set_at}))
         self.action_move(1)
-        self._show_summary()
+        self._summary_soon()
 
     @staticmethod
     def _verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict) -> str:
@@ -620,7 +622,22 @@ class MeterScreen(Screen[None]):
         self.query_one("#reading", Input).focus()
 
     # -- summary ------------------------------------------------------------------------
+    SUMMARY_DELAY_S = 0.15
+
+    def _summary_soon(self) -> None:
+        """Refresh the summary shortly: typing a reading a second never waits on it, and a
+        burst of readings costs one refresh."""
+        if self._summary_timer is None:
+            self._summary_timer = self.set_timer(self.SUMMARY_DELAY_S, self._show_summary)
+
+    @property
+    def summary_pending(self) -> bool:
+        return self._summary_timer is not None
+
     def _show_summary(self) -> None:
+        if self._summary_timer is not None:
+            self._summary_timer.stop()
+            self._summary_timer = None
         readings = [(fibre, w, d, cell.loss_db) for (fibre, w, d), cell in self._cells.items()
                     if fibre <= self._fibres and w in self._wavelengths and d in self._directions]
         limits = {w: self._limit_db(w) for w in self._wavelengths}
