@@ -346,3 +346,53 @@ async def test_mouse_picks_an_item_and_removes_it(tmp_path: Path, size):
         assert [i["kind"] for i in screen.items] == ["fibre", "other"]
         # 5 × 0.4 + 0.5 = 2.5 dB, no connections left
         assert screen.report.result.at(1310).loss_db == pytest.approx(2.5, abs=1e-9)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_empty_start_asks_calmly_for_the_length(tmp_path: Path, size):
+    # Nothing typed yet is not an error: the workspace asks for the first missing value in a
+    # muted note, not in the red error style, and the list names what is missing.
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        problem = screen.query_one("#budget-problem", Static)
+        waiting = screen.query_one("#budget-waiting", Static)
+        assert not problem.display
+        assert waiting.display and not waiting.has_class("field-error")
+        assert "Type the length of item 1 (Fibre)" in str(waiting.render())
+        summary = screen.query_one("#budget-summary", Static)
+        assert summary.has_class("-waiting") and not summary.has_class("-problem")
+        assert not screen.query_one("#item-value-error", Static).display
+        items = screen.query_one("#items", OptionList)
+        assert str(items.get_option_at_index(0).prompt) == "1. Fibre OS2, length not typed"
+        assert summary.styles.color != problem.styles.color
+        # Wrong text is still an error, in the error style.
+        await pilot.press(*"12 parsec")
+        await pilot.pause()
+        assert problem.display and not waiting.display
+        assert summary.has_class("-problem")
+        # A typed attenuation with no coefficient yet is also only a prompt.
+        for _ in range(6):
+            await pilot.press("backspace")
+        await pilot.press("k", "m")
+        screen.query_one("#item-preset", Select).value = "__typed__"
+        await pilot.pause()
+        assert waiting.display and "Type the attenuation of item 1 (Fibre)" in str(
+            waiting.render())
+        await pilot.press("ctrl+s")  # nothing to save yet: a warning, not a picker
+        await pilot.pause()
+        assert isinstance(app.screen, BudgetScreen)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_check_labels_are_whole_words(tmp_path: Path, size):
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        labels = [str(lbl.render()) for lbl in app.screen.query("#settings-panel Label")]
+        assert "Application" in labels and "Transceiver" in labels
+        assert not any(lbl.endswith(".") for lbl in labels)
+        for lbl in app.screen.query("#settings-panel Label"):
+            if lbl.region.height:  # the ones on screen now are not cut off
+                assert lbl.size.width >= len(str(lbl.render()))

@@ -105,14 +105,37 @@ def item_entry(item: dict[str, str]) -> tuple[str, Any]:
     return "components", {"kind": "other", "name": extra.strip() or "other loss", "loss": value}
 
 
+#: What a count means when it is left empty (the link description's own defaults).
+_EMPTY_COUNT = {"connectors": "2", "splices": "0", "component": "1"}
+#: What each item's second field is called in a prompt.
+_EXTRA_WORD = {"fibre": "attenuation", "connectors": "loss each", "splices": "loss each",
+               "splitter": "excess loss"}
+
+
+def missing_entry(items: list[dict[str, str]]) -> str | None:
+    """A calm prompt for the first item still waiting for a value, or None when every item has
+    what the budget needs. Nothing typed yet is not an error: wrong text is."""
+    for index, item in enumerate(items, start=1):
+        kind = item["kind"]
+        title = KINDS[kind]["title"]
+        if not item.get("value", "").strip() and kind not in _EMPTY_COUNT:
+            return f"Type the {KINDS[kind]['value'].lower()} of item {index} ({title}) to see " \
+                "the budget."
+        if item.get("preset") == TYPED and kind in _EXTRA_WORD and \
+                not item.get("extra", "").strip():
+            return f"Type the {_EXTRA_WORD[kind]} of item {index} ({title}) to see the budget."
+    return None
+
+
 def item_text(index: int, item: dict[str, str]) -> str:
     """One line of the item list."""
     kind = item["kind"]
     preset = item.get("preset") or ""
-    value = item.get("value", "").strip() or "?"
+    value = item.get("value", "").strip() or _EMPTY_COUNT.get(kind, "") or \
+        f"{KINDS[kind]['value'].lower()} not typed"
     extra = item.get("extra", "").strip()
     if kind == "fibre":
-        what = f"typed {extra or '? dB/km'}" if preset == TYPED else preset
+        what = f"typed {extra or 'dB/km not typed'}" if preset == TYPED else preset
         return f"{index}. Fibre {what}, {value}"
     if kind == "connectors":
         each = extra if preset == TYPED else preset
@@ -126,7 +149,8 @@ def item_text(index: int, item: dict[str, str]) -> str:
         return f"{index}. {value} × {preset}"
     if kind == "attenuator":
         return f"{index}. Attenuator {value}"
-    return f"{index}. {extra or 'Other loss'} {value}"
+    return f"{index}. {extra or 'Other loss'}{',' if not item.get('value', '').strip() else ''} " \
+        f"{value}"
 
 
 def spec_from_items(items: list[dict[str, str]], settings: dict[str, Any]) -> dict[str, Any]:
@@ -327,29 +351,31 @@ class BudgetScreen(Screen[None]):
                     yield Static("", id="budget-summary", markup=False)
                     with Vertical(id="settings-panel", classes="panel") as panel:
                         panel.border_title = "Wavelengths and checks"
-                        yield from self._field("λ nm", "wavelengths", "default by fibre family",
+                        yield from self._field("Wavelengths", "wavelengths",
+                                               "default by fibre family",
                                                tooltip="e.g. 1310, 1550 (blank: 850/1300 "
                                                "multimode, 1310/1550 single-mode)")
                         yield from self._field("Margin", "margin", "design margin, e.g. 3 dB",
                                                tooltip="repairs and ageing; shown beside the "
                                                "link loss, not in it")
                         with Horizontal(classes="bf-row"):
-                            yield Label("Applic.", classes="bf-label")
+                            yield Label("Application", classes="bf-label")
                             yield Select([], allow_blank=True, compact=True, id="application",
                                          prompt="no application check")
                         with Horizontal(classes="bf-row"):
-                            yield Label("Transc.", classes="bf-label")
+                            yield Label("Transceiver", classes="bf-label")
                             yield Select([], allow_blank=True, compact=True, id="transceiver",
                                          prompt="no transceiver check")
                         with Vertical(id="tx-levels"):
                             yield from self._field("Tx min", "tx-min", "-8.2 dBm")
                             yield from self._field("Tx max", "tx-max", "0.5 dBm")
                             yield from self._field("Rx sens", "rx-sens", "-14.4 dBm")
-                            yield from self._field("Rx over", "rx-over", "0.5 dBm")
+                            yield from self._field("Rx overload", "rx-over", "0.5 dBm")
                 with Vertical(classes="col"):
                     with Vertical(id="result-panel", classes="panel") as panel:
                         panel.border_title = "Budget"
                         yield Static("", id="budget-problem", classes="field-error")
+                        yield Static("", id="budget-waiting", classes="field-note")
                         yield Static("", id="budget-out", classes="result", markup=False)
                     with Vertical(id="application-panel", classes="panel") as panel:
                         panel.border_title = "Application"
@@ -650,8 +676,25 @@ class BudgetScreen(Screen[None]):
         from fieldkit import linkspec
 
         problem = self.query_one("#budget-problem", Static)
+        waiting = self.query_one("#budget-waiting", Static)
+        waiting.display = False
         try:
             settings = self._settings()
+            prompt = missing_entry(self.items)
+            if prompt is not None:
+                # Not an error yet: say what to type, calmly, and show no result.
+                self.report = self.resolved = None
+                self.problem = prompt
+                problem.display = False
+                waiting.update(prompt)
+                waiting.display = True
+                for out_id in ("#budget-out", "#sources-out", "#application-out",
+                               "#transceiver-out"):
+                    self.query_one(out_id, Static).update("")
+                summary = self.query_one("#budget-summary", Static)
+                summary.update(prompt)
+                summary.set_class(True, "-waiting").set_class(False, "-problem")
+                return
             spec = spec_from_items(self.items, settings)
             resolved = linkspec.resolve(spec, self.library)
             report = resolved.evaluate()
@@ -663,7 +706,9 @@ class BudgetScreen(Screen[None]):
             problem.display = True
             self.query_one("#budget-out", Static).update("")
             self.query_one("#sources-out", Static).update("")
-            self.query_one("#budget-summary", Static).update(self._explain(str(exc)))
+            summary = self.query_one("#budget-summary", Static)
+            summary.update(self._explain(str(exc)))
+            summary.set_class(False, "-waiting").set_class(True, "-problem")
             self.query_one("#application-out", Static).update("")
             self.query_one("#transceiver-out", Static).update("")
             return
@@ -708,7 +753,9 @@ class BudgetScreen(Screen[None]):
                 "PASS" if report.transceiver.passed else "FAIL")
             if report.transceiver.overload and report.transceiver.attenuator_db is not None:
                 summary += f", add {report.transceiver.attenuator_db:g} dB attenuator"
-        self.query_one("#budget-summary", Static).update(summary)
+        summary_out = self.query_one("#budget-summary", Static)
+        summary_out.update(summary)
+        summary_out.set_class(False, "-waiting").set_class(False, "-problem")
         sources: dict[str, None] = {}
         for w in r.wavelengths:
             for item in w.items:
