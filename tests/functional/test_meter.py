@@ -100,8 +100,8 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
         assert keystrokes_beyond_digits == 288  # one Enter per reading, nothing else
 
         summary = str(screen.query_one("#meter-summary", Static).render())
-        assert "1310 nm (≤2.00 dB): 144/144 fibres, 143 pass, 0 fail, 1 ref?" in summary
-        assert "1550 nm (≤2.00 dB): 144/144 fibres, 143 pass, 1 fail" in summary
+        assert "1310 nm ≤2.00: 144/144, 143 pass, 0 fail, 1 ref?" in summary
+        assert "1550 nm ≤2.00: 144/144, 143 pass, 1 fail" in summary
         assert "worst F100 3.50" in summary
 
     job = store.load(job_id)
@@ -260,3 +260,59 @@ async def test_everything_fits_the_screen(isolated_dirs: dict[str, Path],
             assert region.right <= width and region.bottom <= height - 1, selector
         assert screen.query_one("#readings").region.height >= 4
         assert screen.has_class("-wide" if width >= 72 else "-narrow")
+
+
+async def test_budget_limit_by_method_and_both_directions(isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.models import BudgetItem, BudgetRecord, BudgetWavelength
+
+    store, job_id, link_id = _job_with_link(isolated_dirs["data"], fibres=6)
+
+    def budget(job: object) -> None:
+        # A saved budget: 4.60 dB at 1310 nm counting 4 mated pairs at 0.75 dB (as the budget
+        # command records them).
+        job.link(link_id).budget = BudgetRecord(  # type: ignore[attr-defined]
+            description={"connector_count": 4, "connector_loss_db": 0.75},
+            wavelengths=[BudgetWavelength(wavelength_nm=1310, loss_db=4.60, items=[
+                BudgetItem(name="fibre", loss_db=1.60),
+                BudgetItem(name="4 mated connector pairs", loss_db=3.00)])])
+
+    store.update(job_id, budget)
+    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
+                   start_mode="meter")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, MeterScreen)
+        screen.attach(job_id, link_id)
+        screen.query_one("#wavelengths", Input).value = "1310"
+        screen.query_one("#directions", Input).value = "2"
+        screen.query_one("#method", Input).value = "Method A"  # TIA letter for two-cord
+        await pilot.pause()
+        # Two-cord keeps 1 of the 2 end connections: 4.60 − 0.75 = 3.85 dB.
+        assert screen.query_one("#limit", Input).placeholder == "3.85 budget"
+        screen.query_one("#reference", Input).value = "-7.20"
+        await pilot.pause()
+        screen.query_one("#reading", Input).focus()
+        await pilot.press(*"-8.40", "enter", *"-11.30", "enter")  # A->B: 1.20, 4.10 dB
+        await pilot.press("f8")
+        screen.query_one("#reference", Input).value = "-6.90"
+        await pilot.pause()
+        screen.query_one("#reading", Input).focus()
+        await pilot.press("pageup")  # back to fibre 1 of the B->A column
+        await pilot.press(*"-8.20", "enter", *"-10.40", "enter")  # B->A: 1.30, 3.50 dB
+        await _settle(pilot, screen)
+        grid = screen.query_one(ReadingsGrid)
+        assert [c.heading for c in grid.columns_shown] == ["1310 A→B", "1310 B→A", "1310 avg"]
+        # Averages: (1.20 + 1.30) / 2 = 1.25 dB; (4.10 + 3.50) / 2 = 3.80 dB. Fibre 2's A->B
+        # 4.10 dB is over 3.85 dB, so the fibre fails although its average is within.
+        assert grid.get_cell_at((0, 3)).plain.strip() == "1.25"
+        assert grid.get_cell_at((1, 1)).plain.strip() == "4.10✗"
+        assert grid.get_cell_at((1, 3)).plain.strip() == "3.80✗"
+        summary = str(screen.query_one("#meter-summary").render())
+        assert "1310 nm ≤3.85: 2/6, 1 pass, 1 fail" in summary
+    link = store.load(job_id).link(link_id)
+    assert {r.method for r in link.results} == {"two-cord"}
+    assert all(r.limit_db == pytest.approx(3.85, abs=1e-9) for r in link.results)
+    assert sorted(r.level_dbm for r in link.references) == [-7.2, -6.9]
+    assert sorted((r.fibre, r.direction, r.passed) for r in link.results) == [
+        (1, "A->B", True), (1, "B->A", True), (2, "A->B", False), (2, "B->A", True)]

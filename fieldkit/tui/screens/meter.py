@@ -471,9 +471,13 @@ class MeterScreen(Screen[None]):
             launch_condition=self.query_one("#launch", Input).value)
         method = self._method
         budget = self._budget_limits.get(column.wavelength_nm)
-        lines = [f"{method.label}: {method.end_connections} end connection(s) in each result"
-                 + (f"; limit from {budget[1]}" if budget and
-                    column.wavelength_nm not in self._typed_limits else "")]
+        line = f"{method.label}: {method.end_connections} of 2 end connections counted"
+        if budget and column.wavelength_nm not in self._typed_limits:
+            left_out = 2 - method.end_connections
+            line += f"; limit {budget[0]:.2f} dB from the budget"
+            if left_out:
+                line += f" less {left_out} end connection(s)"
+        lines = [line]
         if current.in_doubt:
             lines.append("This reference drifted at its recheck: set a new one and retest.")
         lines += [f"⚠ {w}" for w in warnings]
@@ -646,14 +650,14 @@ class MeterScreen(Screen[None]):
         for w in self._wavelengths:
             s = summaries.get(w)
             limit = limits[w]
-            limit_words = f"≤{limit:.2f} dB" if limit is not None else "no limit"
+            limit_words = f"≤{limit:.2f}" if limit is not None else "(no limit)"
             if s is None:
-                lines.append(f"{w:g} nm ({limit_words}): no readings")
+                lines.append(f"{w:g} nm {limit_words}: no readings")
                 continue
             counts = f"{s.passed} pass, {s.failed} fail"
             if s.reference_problems:
                 counts += f", {s.reference_problems} ref?"
-            lines.append(f"{w:g} nm ({limit_words}): {s.fibres}/{self._fibres} fibres, {counts}")
+            lines.append(f"{w:g} nm {limit_words}: {s.fibres}/{self._fibres}, {counts}")
             lines.append("  worst " + ", ".join(f"F{f} {loss:.2f}" for f, loss in s.worst))
         now = _now()
         refs = []
