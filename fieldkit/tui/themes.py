@@ -32,6 +32,13 @@ SUNLIGHT = Theme(
         "footer-background": "#FFFFFF",
         "border": "#000000",
         "border-blurred": "#555555",
+        # Labels and hints stay readable in sunlight: "auto" keeps them contrasting with
+        # whatever is behind them (black on white, white on the black current tab); at 80 %
+        # and 65 % they are #333333 and #595959 on white, 12.6:1 and 7.0:1 (WCAG 2.1 contrast
+        # formula), where the defaults (60 %, 38 %) are 5.7:1 and 2.6:1. Placeholders stay
+        # lighter than typed text so a hint is not mistaken for a value.
+        "text-muted": "auto 80%",
+        "text-disabled": "auto 65%",
     },
 )
 

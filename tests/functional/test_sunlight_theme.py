@@ -1,0 +1,79 @@
+"""The high-contrast theme: every label, hint and the current workspace stay readable."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import Input, Label
+
+from fieldkit.tui.app import make_app
+from fieldkit.tui.themes import HIGH_CONTRAST
+from fieldkit.tui.widgets.workspace_bar import WorkspaceTab
+
+SIZES = [(80, 24), (44, 22)]
+MODES = ["convert", "budget", "fault", "jobs"]
+
+
+def _luminance(rgb: tuple[int, int, int]) -> float:
+    # WCAG 2.1, relative luminance: sRGB channels linearised, weights 0.2126, 0.7152, 0.0722
+    def lin(c: int) -> float:
+        s = c / 255
+        return s / 12.92 if s <= 0.04045 else ((s + 0.055) / 1.055) ** 2.4
+
+    r, g, b = (lin(c) for c in rgb)
+    return 0.2126 * r + 0.7152 * g + 0.0722 * b
+
+
+def contrast(a: tuple[int, int, int], b: tuple[int, int, int]) -> float:
+    # WCAG 2.1 contrast ratio (L1 + 0.05) / (L2 + 0.05)
+    hi, lo = sorted((_luminance(a), _luminance(b)), reverse=True)
+    return (hi + 0.05) / (lo + 0.05)
+
+
+def test_contrast_formula_matches_wcag_examples() -> None:
+    # WCAG 2.1: black on white is 21:1; #767676 on white is the 4.5:1 AA threshold (from memory)
+    assert contrast((0, 0, 0), (255, 255, 255)) == pytest.approx(21.0, abs=0.01)
+    assert contrast((0x76, 0x76, 0x76), (255, 255, 255)) == pytest.approx(4.54, abs=0.02)
+
+
+def _colours(widget) -> tuple[tuple[int, int, int], tuple[int, int, int]]:
+    style = widget.rich_style
+    return tuple(style.color.triplet), tuple(style.bgcolor.triplet)
+
+
+@pytest.mark.parametrize("size", SIZES)
+@pytest.mark.parametrize("mode", MODES)
+async def test_sunlight_keeps_the_current_workspace_and_labels_readable(tmp_path: Path, size,
+                                                                        mode) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode=mode)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        assert app.theme == HIGH_CONTRAST
+        current = app.screen.query_one(f"#tab-{mode}", WorkspaceTab)
+        assert current.has_class("-current")
+        # WCAG 2.1 SC 1.4.3 (AA): at least 4.5:1 for text; the current tab was black on black
+        assert contrast(*_colours(current)) >= 4.5
+        for tab in app.screen.query(WorkspaceTab):
+            assert contrast(*_colours(tab)) >= 4.5, tab.id
+        labels = [w for w in app.screen.query(Label) if w.region.height]
+        assert labels or mode == "jobs"  # the jobs workspace has no field labels
+        for label in labels:
+            assert contrast(*_colours(label)) >= 4.5, str(label.render())
+
+
+async def test_sunlight_placeholder_is_readable_and_lighter_than_typed_text(tmp_path: Path):
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        field = app.screen.query(Input).first()
+        hint = field.get_component_rich_style("input--placeholder")
+        bg = tuple(field.rich_style.bgcolor.triplet)
+        hint_rgb = tuple(hint.color.triplet)
+        typed_rgb = tuple(field.rich_style.color.triplet)
+        assert contrast(hint_rgb, bg) >= 4.5  # WCAG 2.1 SC 1.4.3 (AA)
+        assert contrast(typed_rgb, bg) > contrast(hint_rgb, bg)
