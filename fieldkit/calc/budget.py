@@ -382,12 +382,12 @@ def compute_budget(link: LinkDescription) -> BudgetResult:
     results = []
     for nm in wavelengths:
         items: list[BudgetItem] = []
+        joints = _joint_items(link.segments, nm, notes)
         for index, seg in enumerate(link.segments):
             items.append(_fibre_item(seg, nm, notes))
-            if index + 1 < len(link.segments):
-                joint = _mismatch_item(seg.fibre, link.segments[index + 1].fibre, nm, notes)
-                if joint is not None:
-                    items.append(joint)
+            joint = joints.get(index)
+            if joint is not None:
+                items.append(joint)
         if link.connectors is not None and link.connectors.count:
             c = link.connectors
             items.append(BudgetItem(
@@ -440,7 +440,39 @@ def _same_fibre(a: Fibre, b: Fibre) -> bool:
     return a.name == b.name and a.family == b.family
 
 
-def _mismatch_item(a: Fibre, b: Fibre, nm: float, notes: list[str]) -> BudgetItem | None:
+def _joint_items(segments: tuple[Segment, ...], nm: float,
+                 notes: list[str]) -> dict[int, BudgetItem]:
+    """The mismatch line of each joint, keyed by the index of the segment before it.
+
+    Multimode mismatch loss depends on the direction of the light (only larger into smaller
+    costs loss), and light crosses every joint in the same direction. So the joints are
+    judged together: the maximum is the joints' losses in the worse direction of the whole
+    link, the lowest plausible their losses in the better direction. OM1 | OM3 | OM1 costs
+    4.70 dB either way (one joint goes larger into smaller), never 2 × 4.70 dB.
+    """
+    pairs: dict[int, tuple[float, float, BudgetItem]] = {}
+    for index in range(len(segments) - 1):
+        joint = _mismatch_item(segments[index].fibre, segments[index + 1].fibre, nm, notes)
+        if joint is not None:
+            pairs[index] = joint
+    a_to_b = math.fsum(ab for ab, _, _ in pairs.values())
+    b_to_a = math.fsum(ba for _, ba, _ in pairs.values())
+    forward = a_to_b >= b_to_a
+    out: dict[int, BudgetItem] = {}
+    for index, (ab, ba, item) in pairs.items():
+        worse, better = (ab, ba) if forward else (ba, ab)
+        if item.kind == "mismatch" and ab != ba:
+            direction = "end A → end B" if forward else "end B → end A"
+            item = replace(item, loss_db=worse, typical_loss_db=worse, loss_min_db=better,
+                           source=f"{item.source}; light {direction}, the link's worse "
+                           "direction")
+        out[index] = item
+    return out
+
+
+def _mismatch_item(a: Fibre, b: Fibre, nm: float,
+                   notes: list[str]) -> tuple[float, float, BudgetItem] | None:
+    """The joint of ``a`` (towards end A) and ``b``: (loss A→B, loss B→A, its line)."""
     if _same_fibre(a, b):
         return None
     if a.family is None or b.family is None:
@@ -459,17 +491,17 @@ def _mismatch_item(a: Fibre, b: Fibre, nm: float, notes: list[str]) -> BudgetIte
         ba = coupling.multimode_mismatch_loss_db(b.core_diameter_um, b.numerical_aperture,
                                                  a.core_diameter_um, a.numerical_aperture)
         worse = f"{a.name} → {b.name}" if ab >= ba else f"{b.name} → {a.name}"
-        return BudgetItem(
+        return ab, ba, BudgetItem(
             name=f"core/NA mismatch {a.name} | {b.name}", kind="mismatch",
             loss_db=max(ab, ba), typical_loss_db=max(ab, ba), loss_min_db=min(ab, ba),
             source=f"multimode core-diameter and NA mismatch, −10·log10((d_rx/d_tx)²) "
-            f"− 10·log10((NA_rx/NA_tx)²), worse direction {worse} "
+            f"− 10·log10((NA_rx/NA_tx)²), lossy direction {worse} "
             f"({a.core_diameter_um:g} µm NA {a.numerical_aperture:g} / "
             f"{b.core_diameter_um:g} µm NA {b.numerical_aperture:g})")
     w1 = a.mode_field_diameter_um(nm)
     w2 = b.mode_field_diameter_um(nm)
     loss = coupling.mfd_mismatch_loss_db(w1, w2)
-    return BudgetItem(
+    return loss, loss, BudgetItem(
         name=f"MFD mismatch {a.name} | {b.name}", kind="mismatch", loss_db=loss,
         typical_loss_db=loss, loss_min_db=loss,
         source=f"single-mode mode-field mismatch, Gaussian overlap −10·log10((2w1w2/(w1²+w2²))²), "

@@ -123,6 +123,25 @@ def test_mixed_multimode_segments_add_a_mismatch_line(lib):
     assert "OM1 → OM3" in joints[0].source
 
 
+def test_mismatch_counts_each_joint_in_the_direction_the_light_travels(lib):
+    # OM1 patch cord | OM3 trunk | OM1 patch cord. Light from end A crosses OM1 -> OM3 (larger
+    # into smaller: 1.93820 + 2.76605 = 4.70425 dB) and then OM3 -> OM1 (smaller into larger:
+    # 0 dB); from end B the same two joints the other way round: 0 + 4.70425 dB. Either way the
+    # link loses 4.70425 dB to mismatch, never both joints' worse directions (9.4085 dB).
+    # Formulas: Keiser, "Optical Fiber Communications", 4th ed., §5.4 (from memory).
+    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OM1"], 2.0),
+                                       b.Segment(lib.fibres["OM3"], 300.0),
+                                       b.Segment(lib.fibres["OM1"], 2.0)))
+    row = b.compute_budget(spec).at(850)
+    joints = [i for i in row.items if i.kind == "mismatch"]
+    assert len(joints) == 2
+    assert math.fsum(j.loss_db for j in joints) == pytest.approx(4.70425, abs=1e-5)
+    assert math.fsum(j.loss_min_db for j in joints) == pytest.approx(4.70425, abs=1e-5)
+    # 850 nm total (no connectors given): fibre 0.004 km × 3.5 dB/km (OM1) + 0.300 km × 3.0
+    # dB/km (OM3) = 0.914 dB, plus 4.70425 dB mismatch = 5.61825 dB
+    assert row.loss_db == pytest.approx(0.914 + 4.70425, abs=1e-5)
+
+
 def test_mixed_singlemode_segments_use_mfd_per_wavelength(lib):
     # presets: G.652.D MFD 9.2 µm at 1310 nm, 10.4 at 1550; G.657.A2 8.6 and 9.6 µm (typical).
     # 1310: 0.019738 dB (as above). 1550: 2·10.4·9.6 = 199.68; 108.16 + 92.16 = 200.32;
