@@ -396,3 +396,22 @@ async def test_check_labels_are_whole_words(tmp_path: Path, size):
         for lbl in app.screen.query("#settings-panel Label"):
             if lbl.region.height:  # the ones on screen now are not cut off
                 assert lbl.size.width >= len(str(lbl.render()))
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_item_kind_names_and_buttons_fit(tmp_path: Path, size):
+    # Every kind of item to add reads in full beside the buttons, at both sizes.
+    from fieldkit.tui.screens.budget import ADD_KINDS, KINDS
+
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        kind = screen.query_one("#add-kind", Select)
+        longest = max(len(KINDS[k]["title"]) for k in ADD_KINDS)
+        assert kind.content_region.width >= longest + 3  # the name, a space and the arrow
+        labels = {b.id: str(b.label) for b in screen.query("#item-buttons Button")}
+        assert labels["remove"] == "Remove"
+        row = screen.query_one("#item-buttons").region
+        for button in screen.query("#item-buttons Button"):
+            assert row.contains_region(button.region), button.id

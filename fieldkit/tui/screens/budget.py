@@ -332,7 +332,7 @@ class BudgetScreen(Screen[None]):
                                          id="add-kind", tooltip="Kind of item to add")
                             yield Button("Add", id="add", compact=True,
                                          tooltip="Add an item (Ctrl+N)")
-                            yield Button("Del", id="remove", compact=True,
+                            yield Button("Remove", id="remove", compact=True,
                                          tooltip="Remove the picked item (Ctrl+R)")
                             yield Button("↑", id="up", compact=True,
                                          tooltip="Move up (Ctrl+Up or F7)")
@@ -355,7 +355,7 @@ class BudgetScreen(Screen[None]):
                                                "default by fibre family",
                                                tooltip="e.g. 1310, 1550 (blank: 850/1300 "
                                                "multimode, 1310/1550 single-mode)")
-                        yield from self._field("Margin", "margin", "design margin, e.g. 3 dB",
+                        yield from self._field("Margin", "margin", "design margin, 3 dB",
                                                tooltip="repairs and ageing; shown beside the "
                                                "link loss, not in it")
                         with Horizontal(classes="bf-row"):
