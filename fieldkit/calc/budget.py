@@ -687,17 +687,30 @@ def check_transceiver(result: BudgetResult, tx: Transceiver,
     The pair fits when M ≥ the design margin. It needs an attenuator when
     P_tx,max − L_min > P_rx,overload; an attenuator A fits when
     P_tx,max − L_min − A ≤ P_rx,overload and P_tx,min − L_max − A ≥ S_rx + margin.
-    Uses the transceiver's wavelength when the budget has it (within the window), else the
-    worst wavelength for each side (highest maximum loss, lowest minimum loss).
+    Uses the budget at the transceiver's wavelength (within the window). A transceiver with no
+    wavelength is judged at the worst budget wavelength for each side (highest maximum loss,
+    lowest minimum loss).
+
+    Raises
+    ------
+    InputError
+        When the transceiver has a wavelength the budget has no result near: the loss at
+        another wavelength would misjudge it (a 1550 nm receiver on a link budgeted at 1310 nm
+        only would have its overload judged on the higher 1310 nm fibre loss).
     """
-    if tx.wavelength_nm is not None and result.in_window(tx.wavelength_nm) is not None:
+    nm: float | None = None
+    if tx.wavelength_nm is not None:
         chosen = result.in_window(tx.wavelength_nm)
-        assert chosen is not None
+        if chosen is None:
+            have = ", ".join(_nm(w.wavelength_nm) for w in result.wavelengths)
+            raise InputError(
+                f"transceiver {tx.name}: works at {_nm(tx.wavelength_nm)}, but the budget has "
+                f"{have}; add the wavelength {format_number(tx.wavelength_nm)} nm"
+            )
         rows = [chosen]
-        nm: float | None = chosen.wavelength_nm
+        nm = chosen.wavelength_nm
     else:
         rows = list(result.wavelengths)
-        nm = None
     loss_max = max(w.loss_db for w in rows)
     loss_min = min(w.loss_min_db for w in rows)
     budget = tx.tx_min_dbm - tx.rx_sensitivity_dbm

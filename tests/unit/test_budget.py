@@ -272,6 +272,22 @@ def test_transceiver_no_attenuator_fits():
     assert check.passed is False
 
 
+def test_transceiver_wavelength_missing_from_the_budget_is_refused(lib):
+    # A 1550 nm pair judged on a 1310 nm-only budget would take its lowest loss from the 1310 nm
+    # fibre (typical OS2 0.35 dB/km, common practice) instead of 1550 nm (0.22 dB/km): 1.3 dB
+    # too much over 10 km, enough to hide a receiver overload. Ask for the wavelength instead.
+    result = b.compute_budget(link(lib, "OS2", 10_000.0, wavelengths_nm=(1310.0,)))
+    tx = b.Transceiver(0.0, 5.0, -24.0, -7.0, name="1550 pair", wavelength_nm=1550.0)
+    with pytest.raises(InputError, match="1550 pair: works at 1550 nm, but the budget has "
+                                         "1310 nm; add the wavelength 1550"):
+        b.check_transceiver(result, tx)
+    # Without a wavelength the pair is judged at the budget's wavelengths, as before:
+    # margin 0 − (4.0 + 1.5) + 24 = 18.5 dB
+    check = b.check_transceiver(result, b.Transceiver(0.0, 5.0, -24.0, -7.0))
+    assert check.wavelength_nm is None
+    assert check.margin_db == pytest.approx(18.5, abs=1e-9)
+
+
 def test_transceiver_levels_validated():
     with pytest.raises(InputError, match="above the Tx maximum"):
         b.Transceiver(0.0, -1.0, -20.0, -3.0)
