@@ -10,8 +10,10 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import re
 import sys
 from collections.abc import Sequence
+from typing import Any
 
 from fieldkit import __version__
 
@@ -30,6 +32,14 @@ COMMAND_MODULES: tuple[str, ...] = (
 
 
 class _Parser(argparse.ArgumentParser):
+    def __init__(self, *args: Any, **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        # argparse reads only -5 and -5.5 as negative numbers; anything else starting with '-'
+        # is taken for an option, so `--reference -7,5` or `--length -5km` failed with "expected
+        # one argument". A '-' before a digit (or .digit / ,digit) is a value: no fieldkit
+        # option starts with a digit.
+        self._negative_number_matcher = re.compile(r"^-[.,]?\d")
+
     def error(self, message: str) -> None:  # type: ignore[override]
         # argparse prints usage plus the message; keep it to one line that names the problem.
         self.exit(2, f"{self.prog}: error: {message}\n")
@@ -77,6 +87,13 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return 0
+    except OSError as exc:
+        # A file or folder the command could not read or write (read-only data folder, full
+        # disk, a folder where a file was expected): name it in one line, never a traceback.
+        where = f" {exc.filename}" if exc.filename else ""
+        print(f"fieldkit {args.command}: cannot use{where}: {exc.strerror or exc}",
+              file=sys.stderr)
+        return 2
 
 
 if __name__ == "__main__":
