@@ -26,12 +26,27 @@ def _finite(x: float, what: str) -> float:
     return x
 
 
+def _exp10(db: float, what: str, unit: str) -> float:
+    """10^(db/10), refusing a value whose power does not fit in a float (above about 3080 dB)."""
+    try:
+        return 10.0 ** (_finite(db, what) / 10.0)
+    except OverflowError:
+        raise InputError(
+            f"{what}: {db:g} {unit} is too large to express as a linear power or ratio"
+        ) from None
+
+
 def dbm_to_mw(level_dbm: float) -> float:
     """Power in mW of a level in dBm.
 
     .. math:: P_{mW} = 10^{L_{dBm}/10}
+
+    Raises
+    ------
+    InputError
+        For a level too large for its power to be a float (above about +3080 dBm).
     """
-    return 10.0 ** (_finite(level_dbm, "level") / 10.0)
+    return _exp10(level_dbm, "level", "dBm")
 
 
 def mw_to_dbm(power_mw: float) -> float:
@@ -95,7 +110,7 @@ def ratio_to_db(ratio: float) -> float:
 
 def db_to_ratio(gain_db: float) -> float:
     """The power ratio of a gain in dB: 10^(dB/10). For a loss, pass the loss negated."""
-    return 10.0 ** (_finite(gain_db, "gain") / 10.0)
+    return _exp10(gain_db, "gain", "dB")
 
 
 def loss_db_to_percent_transmitted(loss_db: float) -> float:

@@ -347,6 +347,16 @@ def convert(value: Value, unit: str) -> float:
         )
     if value.unit == target:
         return value.magnitude
+    try:
+        return _convert(value, kind, target)
+    except OverflowError:
+        raise InputError(
+            f"cannot convert {value} to {display_unit(target)}: the result is too large for a "
+            "number"
+        ) from None
+
+
+def _convert(value: Value, kind: Kind, target: str) -> float:
     if kind is Kind.POWER:
         mw = _power_mw(value)
         if target == "dBm":
