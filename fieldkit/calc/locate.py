@@ -79,6 +79,11 @@ DEFAULT_SCALE_ERROR_PERCENT = 0.01
 DEFAULT_SAMPLE_SPACING_M = 1.0
 DEFAULT_GROUP_INDEX_UNCERTAINTY = 0.001
 
+#: The longest distance accepted anywhere in a location (10 000 km): longer than any fibre span
+#: an OTDR measures (a few hundred km), so only a wrong unit or a typing slip is refused. It also
+#: keeps the error arithmetic (squares of the terms) inside floating-point range.
+MAX_DISTANCE_M = 1.0e7
+
 #: Units a result may be shown in.
 OUTPUT_UNITS = ("m", "km", "ft", "mi")
 
@@ -340,11 +345,18 @@ def _finite(x: float, what: str) -> float:
 def _check_distance(x: float, what: str) -> None:
     if _finite(x, what) < 0:
         raise InputError(f"{what}: {format_number(x)} m is negative; a distance is 0 or more")
+    if x > MAX_DISTANCE_M:
+        raise InputError(f"{what}: {format_number(x)} m is longer than any fibre span "
+                         f"({format_number(MAX_DISTANCE_M / 1000)} km at most); check the unit")
 
 
 def _check_time(x: float) -> None:
     if _finite(x, "round-trip time") <= 0:
         raise InputError(f"round-trip time: {format_number(x)} s must be more than zero")
+    # Light in glass (group index above 1) covers less than c·t/2 in a round trip of t.
+    if SPEED_OF_LIGHT_M_PER_S * x / 2.0 > MAX_DISTANCE_M:
+        raise InputError(f"round-trip time: {format_number(x)} s is longer than any fibre span "
+                         "gives; check the unit")
 
 
 def _check_index(n: float, what: str) -> None:
@@ -434,6 +446,12 @@ def validate(inp: LocateInput) -> None:
                         (err.landmark_route_uncertainty_m, "landmark route uncertainty")):
         if _finite(value, what) < 0:
             raise InputError(f"{what}: {format_number(value)} is negative; give a ± half-width")
+    for value, what in ((err.offset_m, "instrument offset"),
+                        (err.sample_spacing_m, "sample spacing"),
+                        (err.landmark_route_uncertainty_m, "landmark route uncertainty")):
+        if value > MAX_DISTANCE_M:
+            raise InputError(f"{what}: {format_number(value)} m is longer than any fibre span; "
+                             "check the unit")
     if err.scale_error_percent > 5:
         raise InputError(f"scale error: {format_number(err.scale_error_percent)} % is not an "
                          "instrument's scale error (typically 0.001–0.01 %)")
