@@ -87,7 +87,7 @@ def load_spec_file(path: Path) -> dict[str, Any]:
     """
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        text = path.read_text(encoding="utf-8-sig")  # an editor's byte-order mark is fine
     except FileNotFoundError:
         raise InputError(f"link file {path}: not found") from None
     except (OSError, UnicodeDecodeError) as exc:
@@ -99,11 +99,15 @@ def load_spec_file(path: Path) -> dict[str, Any]:
             data = json.loads(text, parse_constant=_refuse_constant)
         except ValueError as exc:
             raise InputError(f"link file {path}: not valid JSON ({exc})") from None
+        except RecursionError:
+            raise InputError(f"link file {path}: not valid JSON (nested too deeply)") from None
     else:
         try:
             data = tomllib.loads(text)
         except tomllib.TOMLDecodeError as exc:
             raise InputError(f"link file {path}: not valid TOML ({exc})") from None
+        except RecursionError:
+            raise InputError(f"link file {path}: not valid TOML (nested too deeply)") from None
     if not isinstance(data, dict):
         raise InputError(f"link file {path}: must hold one table (object) describing the link")
     return data
@@ -130,6 +134,7 @@ def _text_or_number(value: Any, what: str) -> str:
 def length_m(value: Any, what: str = "length") -> float:
     """A length typed with its unit ("12.4 km", "3900 ft"), in m; negative refused."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
+        _text_or_number(value, what)  # NaN and infinity are refused as such
         raise InputError(f"{what}: {format_number(float(value))} needs a unit (m, km, ft, kft, mi)")
     metres = parse(_text_or_number(value, what), Kind.LENGTH, what=what).to("m")
     if metres < 0:
@@ -206,7 +211,8 @@ def count(value: Any, what: str) -> int:
     if number < 0:
         raise InputError(f"{what}: {number} is negative")
     if number > 10_000:
-        raise InputError(f"{what}: {number} is more than fieldkit will count (10000)")
+        shown = str(number) if number < 10**12 else f"a {len(str(number))}-digit number"
+        raise InputError(f"{what}: {shown} is more than fieldkit will count (10000)")
     return int(number)
 
 

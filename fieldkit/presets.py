@@ -298,6 +298,9 @@ def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
     except tomllib.TOMLDecodeError as exc:
         library.problems.append(f"{label}: is not valid TOML ({exc})")
         return
+    except RecursionError:
+        library.problems.append(f"{label}: is not valid TOML (nested too deeply)")
+        return
     for kind, entries in data.items():
         if kind not in _PARSERS:
             library.problems.append(
