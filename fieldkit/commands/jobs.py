@@ -284,12 +284,15 @@ def run_export(args: argparse.Namespace) -> int:
     from fieldkit.fsutil import atomic_write_bytes
     from fieldkit.jobs.reports import export
 
-    _store, job = _job(args)
+    store, job = _job(args)
     text = export(job, args.format)
     if args.output:
         target = Path(args.output).expanduser()
         if target.is_dir():
             raise CommandError(f"{target} is a folder; give a file name")
+        # The report must never replace a job file, the index or a backup in the jobs folder.
+        if target.resolve().parent.is_relative_to(store.jobs_dir.resolve()):
+            raise CommandError(f"{target} is inside the jobs folder; write the report elsewhere")
         # A byte-order mark lets spreadsheets open the UTF-8 CSV with its accents intact.
         data = ("\ufeff" + text if args.format == "csv" else text).encode("utf-8")
         atomic_write_bytes(target, data)

@@ -69,6 +69,9 @@ def read_handoff(path: Path) -> list[Job]:
         raise StoreError(f"{path.name} is not UTF-8 text; nothing imported") from None
     except ValueError as exc:
         raise StoreError(f"{path.name} is not valid JSON ({exc}); nothing imported") from None
+    except RecursionError:
+        raise StoreError(f"{path.name} is not valid JSON (nested too deeply); nothing imported"
+                         ) from None
     if isinstance(data, dict) and data.get("format") == HANDOFF_FORMAT:
         items = data.get("jobs")
         if not isinstance(items, list):

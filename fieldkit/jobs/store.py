@@ -632,6 +632,8 @@ def parse_job(raw: bytes, *, expected_id: str | None = None) -> Job:
         raise StoreError("the file is not UTF-8 text") from None
     except ValueError as exc:
         raise StoreError(f"the file is not valid JSON ({exc})") from None
+    except RecursionError:
+        raise StoreError("the file is not valid JSON (nested too deeply)") from None
     if not isinstance(data, dict):
         raise StoreError("the file does not hold a job (not a JSON object)")
     job = job_from_dict(data)
