@@ -359,7 +359,7 @@ class FaultScreen(Screen[None]):
     CSS_PATH = "fault.tcss"
     AUTO_FOCUS = "#fault-distance"
     BINDINGS = [
-        Binding("ctrl+s", "save", "Save to job", id="fault.save",
+        Binding("ctrl+s", "save", "Save", id="fault.save",
                 tooltip="Save this located fault onto a job's link"),
         Binding("ctrl+r", "focus_result", "Result", id="fault.result",
                 tooltip="Scroll to the result and the route diagram"),

@@ -131,7 +131,9 @@ class JobsScreen(Screen[None]):
         with Horizontal(id="jobs-body"):
             with Vertical(id="jobs-side"):
                 yield Input(
-                    placeholder="find: name, site, crew, link, 2026-03-14",
+                    placeholder="find: name, site, crew, date",
+                    tooltip="Words from the name, customer, site, crew or a link; a day "
+                    "as YYYY-MM-DD (Ctrl+F)",
                     id="jobs-filter",
                     type="text",
                     compact=True,
