@@ -291,3 +291,21 @@ def test_a_deeply_nested_job_file_is_quarantined_and_the_rest_list(
     assert "nested too deeply" in result.stderr
     assert not bad.exists()
     assert list((jobs_dir / "quarantine").glob(bad.name + ".*"))
+
+
+@pytest.mark.parametrize(
+    "args",
+    [
+        ("budget", "--fiber", "OS2", "--length", "5km", "--job", "1a", "--link", "L"),
+        ("locate", "--distance", "1km", "--ior", "1.468", "--job", "1a", "--link", "L"),
+        ("reference", "--level", "-7", "--wavelength", "1310", "--job", "1a", "--link", "L"),
+        ("jobs", "new", "x"),
+    ],
+)
+def test_a_data_folder_that_is_a_file_is_named_in_one_line(tmp_path: Path,
+                                                          args: tuple[str, ...]) -> None:
+    not_a_folder = tmp_path / "data-file"
+    not_a_folder.write_text("x", encoding="utf-8")
+    result = run("--data-dir", str(not_a_folder), *args)
+    assert_refused(result, "not a directory")
+    assert not_a_folder.read_text(encoding="utf-8") == "x"
