@@ -165,6 +165,11 @@ async def test_bad_reading_and_missing_reference_keep_the_text(
         await pilot.press(*"50 uW", "enter")  # ITU-R V.574: 50 µW = -13.0103 dBm
         assert "5.81 dB" in str(message.render())  # -7.2 − (-13.0103) = 5.8103 dB
         assert reading.value == ""
+        # Typical single-mode source -7 dBm (common practice): -13 dBm is 6.0 dB below it.
+        screen.query_one("#reference", Input).value = "-13"
+        await pilot.pause()
+        note = str(screen.query_one("#reference-note", Static).render())
+        assert "6.0 dB below" in note and "clean" in note
         # The method field refuses nonsense beside itself.
         screen.query_one("#method", Input).value = "four-cord"
         await pilot.pause()
@@ -316,3 +321,24 @@ async def test_budget_limit_by_method_and_both_directions(isolated_dirs: dict[st
     assert sorted(r.level_dbm for r in link.references) == [-7.2, -6.9]
     assert sorted((r.fibre, r.direction, r.passed) for r in link.results) == [
         (1, "A->B", True), (1, "B->A", True), (2, "A->B", False), (2, "B->A", True)]
+
+
+async def test_readings_typed_just_before_quitting_are_saved(
+        isolated_dirs: dict[str, Path]) -> None:
+    store, job_id, link_id = _job_with_link(isolated_dirs["data"], fibres=24)
+    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
+                   start_mode="meter")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, MeterScreen)
+        screen.attach(job_id, link_id)
+        screen.query_one("#reference", Input).value = "-7.0"
+        await pilot.pause()
+        screen.query_one("#reading", Input).focus()
+        await pilot.pause()
+        for fibre in range(1, 21):
+            _send(app, *f"-8.{fibre % 10}", "enter")
+        await pilot.pause()
+        await pilot.press("ctrl+q")  # straight away, saves still running or queued
+    assert len(store.load(job_id).link(link_id).results) == 20

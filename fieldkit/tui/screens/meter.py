@@ -864,6 +864,42 @@ class MeterScreen(Screen[None]):
                             severity="warning", timeout=10)
         self._show_summary()
 
+    def flush_saves(self, timeout_s: float = 5.0) -> bool:
+        """Wait for a running save, then save what is still queued, here and now.
+
+        Called when the workspace closes (the app quits), so a reading typed just before is
+        not left in memory. True when nothing is left unsaved.
+        """
+        import time
+
+        from fieldkit.jobs.store import StoreError
+
+        deadline = time.monotonic() + timeout_s
+        while True:
+            with self._lock:
+                if not self._saving:
+                    if not self._pending or self._job_id is None:
+                        return True
+                    self._saving = True
+                    ops = list(self._pending)
+                    break
+            if time.monotonic() > deadline:
+                return False
+            time.sleep(0.01)
+        try:
+            self._save(ops)
+        except (StoreError, KeyError, ValueError, OSError):
+            return False
+        finally:
+            with self._lock:
+                self._saving = False
+        with self._lock:
+            del self._pending[:len(ops)]
+            return not self._pending
+
+    def on_unmount(self) -> None:
+        self.flush_saves()
+
     def _save_failed(self, message: str) -> None:
         self._save_error = message
         self.notify(f"Readings not saved (kept here; saving again with the next entry): "
