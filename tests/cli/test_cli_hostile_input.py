@@ -9,8 +9,10 @@ from __future__ import annotations
 
 import json
 import os
+import shutil
 import subprocess
 import sys
+from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
@@ -309,3 +311,60 @@ def test_a_data_folder_that_is_a_file_is_named_in_one_line(tmp_path: Path,
     result = run("--data-dir", str(not_a_folder), *args)
     assert_refused(result, "not a directory")
     assert not_a_folder.read_text(encoding="utf-8") == "x"
+
+
+@pytest.fixture
+def read_only_jobs(isolated_dirs: dict[str, Path]) -> Iterator[tuple[str, Path]]:
+    """A job whose jobs folder cannot be written: chmod, or ``chattr +i`` when run as root."""
+    job_id = _new_job("read only")
+    jobs_dir = isolated_dirs["data"] / "jobs"
+    folders = [jobs_dir, *[p for p in jobs_dir.iterdir() if p.is_dir()]]
+    immutable = False
+    for folder in folders:
+        folder.chmod(0o555)
+    probe = jobs_dir / ".probe"
+    try:
+        probe.touch()
+    except OSError:
+        pass
+    else:  # root ignores modes: make the folders immutable instead, if the tool is there
+        probe.unlink()
+        if shutil.which("chattr") is None or subprocess.run(
+            ["chattr", "+i", *map(str, folders)], capture_output=True
+        ).returncode != 0:
+            for folder in folders:
+                folder.chmod(0o755)
+            pytest.skip("cannot make a folder read-only here")
+        immutable = True
+    try:
+        yield job_id, jobs_dir
+    finally:
+        if immutable:
+            subprocess.run(["chattr", "-i", *map(str, folders)], check=True)
+        for folder in folders:
+            folder.chmod(0o755)
+
+
+@pytest.mark.parametrize(
+    "args",
+    [
+        ("jobs", "note", "{id}", "hello"),
+        ("jobs", "done", "{id}"),
+        ("jobs", "new", "another"),
+        ("budget", "--fiber", "OS2", "--length", "5km", "--job", "{id}", "--link", "L"),
+        ("reference", "--level", "-7", "--wavelength", "1310", "--job", "{id}", "--link", "L"),
+        ("locate", "--distance", "1km", "--ior", "1.468", "--job", "{id}", "--link", "L"),
+    ],
+)
+def test_a_read_only_jobs_folder_refuses_in_one_line_and_keeps_the_job(
+    read_only_jobs: tuple[str, Path], args: tuple[str, ...],
+) -> None:
+    job_id, jobs_dir = read_only_jobs
+    job_file = jobs_dir / f"{job_id}.json"
+    before = job_file.read_bytes()
+    result = run(*(a.replace("{id}", job_id) for a in args))
+    assert_refused(result)
+    assert job_file.read_bytes() == before
+    assert sorted(p.name for p in jobs_dir.glob("*.json")) == [job_file.name]
+    # reading still works
+    assert run("jobs", "show", job_id).returncode == 0
