@@ -11,9 +11,20 @@ from textual.widgets import Button, Markdown
 from fieldkit import safety
 from fieldkit.tui.workspaces import WORKSPACES
 
+#: The app-wide keys after the workspaces: (key, what it does).
+GENERAL_KEYS: tuple[tuple[str, str], ...] = (
+    ("F1", "Help: this page (Esc closes it)"),
+    ("Ctrl+P", "Commands: search every command and workspace"),
+    ("Ctrl+T", "Sunlight: high-contrast theme on or off (the choice is remembered)"),
+    ("Tab / Shift+Tab", "next / previous field"),
+    ("Ctrl+Q", "quit"),
+)
+
 
 def help_markdown() -> str:
-    keys = "\n".join(f"| {ws.key.upper()} | {ws.title} | {ws.help} |" for ws in WORKSPACES)
+    # A list rather than a table: a table's key column is cut to "Ctrl…" on a phone terminal.
+    keys = "\n".join(f"- **{ws.key.upper()} {ws.title}**: {ws.help}" for ws in WORKSPACES)
+    general = "\n".join(f"- **{key}**: {what}" for key, what in GENERAL_KEYS)
     cautions = "\n".join(f"- {line}" for line in safety.ALL)
     return f"""\
 # Safety first
@@ -22,14 +33,8 @@ def help_markdown() -> str:
 
 # Keys
 
-| key | opens | for |
-|---|---|---|
 {keys}
-| F1 | Help | this page |
-| Ctrl+P | Commands | search every command and workspace |
-| Ctrl+T | Sunlight | high-contrast theme on or off (the choice is remembered) |
-| Tab / Shift+Tab | | next / previous field |
-| Ctrl+Q | | quit |
+{general}
 
 Results update as you type. A field with a problem says why beside it; nothing you typed is
 thrown away. Numbers accept a decimal point, or a decimal comma where it cannot be a thousands
@@ -38,6 +43,21 @@ separator (`-7,5 dBm`).
 
 
 class HelpScreen(ModalScreen[None]):
+    # On a phone terminal the page takes the whole screen and drops the Markdown indents, so
+    # a line holds about 40 characters instead of 26.
+    CSS = """
+    HelpScreen.-narrow #help-body {
+        width: 100%;
+        height: 100%;
+        padding: 0;
+    }
+    HelpScreen.-narrow #help-body Markdown {
+        padding: 0 1 0 0;
+    }
+    HelpScreen #help-body MarkdownH1 {
+        margin: 1 0 1 0;
+    }
+    """
     BINDINGS = [
         Binding("escape", "dismiss", "Close"),
         Binding("f1", "dismiss", "Close", show=False),
