@@ -23,7 +23,9 @@ The chain, for a reading taken from the start of the route (end A):
    landmark, the ratio measured from the first to the last landmark is extrapolated, and the
    result says so.
 5. **Sheath markings**: the marking to look for is the marking at the start plus (counting up) or
-   minus (counting down) the sheath length from the start, in the marking's unit (m or ft).
+   minus (counting down) the sheath length from the start, in the marking's unit (m or ft). The
+   printed markings are themselves only so exact (``MARKING_TOLERANCE_PERCENT`` of the length
+   counted), which widens the marking range beyond the sheath-length range.
 6. **Two-ended check**: with the fault's distance from end B and the end-to-end length (both as
    shown with the same set-up), ``d_A + d_B`` must equal the total within the uncertainty; the
    combined estimate from A is the weighted mean of ``d_A`` and ``total − d_B``.
@@ -84,6 +86,11 @@ DEFAULT_GROUP_INDEX_UNCERTAINTY = 0.001
 #: keeps the error arithmetic (squares of the terms) inside floating-point range.
 MAX_DISTANCE_M = 1.0e7
 
+#: How far printed sheath length markings may stray from the true sheath length, in percent of
+#: the length counted (common practice: cable specifications commonly hold length markings to
+#: within 1 %, from memory). Editable per reading (:attr:`Marking.tolerance_percent`).
+MARKING_TOLERANCE_PERCENT = 1.0
+
 #: Units a result may be shown in.
 OUTPUT_UNITS = ("m", "km", "ft", "mi")
 
@@ -117,11 +124,16 @@ class SlackLoop:
 
 @dataclass(frozen=True, slots=True)
 class Marking:
-    """The sheath marking at the start, its unit, and whether markings count up or down."""
+    """The sheath marking at the start, its unit, and whether markings count up or down.
+
+    ``tolerance_percent`` is how far the printed markings may stray from the true length, in
+    percent of the length counted (a ± half-width).
+    """
 
     start: float
     unit: MarkingUnit = "m"
     direction: MarkingDirection = "up"
+    tolerance_percent: float = MARKING_TOLERANCE_PERCENT
 
 
 @dataclass(frozen=True, slots=True)
@@ -430,6 +442,10 @@ def validate(inp: LocateInput) -> None:
             raise InputError(f"marking unit: '{inp.marking.unit}' must be m or ft")
         if inp.marking.direction not in ("up", "down"):
             raise InputError(f"marking direction: '{inp.marking.direction}' must be up or down")
+        tolerance = _finite(inp.marking.tolerance_percent, "marking tolerance")
+        if not 0 <= tolerance <= 10:
+            raise InputError(f"marking tolerance: {format_number(tolerance)} % is outside 0–10 % "
+                             "(printed markings are typically within 1 %)")
     if inp.two_ended is not None:
         _check_distance(inp.two_ended.from_b_otdr_m, "distance from end B")
         _check_distance(inp.two_ended.total_otdr_m, "total length")
@@ -613,7 +629,10 @@ def _position(chain: _Chain, inp: LocateInput, two_ended: bool) -> Position:
     nearest, offset = _nearest(chain, route_m)
     marking = None
     if inp.marking is not None:
-        sheath_u = math.sqrt(sum(x * x for x in sheath_parts))
+        # The sheath-length range, and the markings' own print tolerance on the length counted,
+        # root-sum-square: u = √(u_sheath² + (tol · L_sheath)²).
+        print_u = abs(sheath_m) * inp.marking.tolerance_percent / 100.0
+        sheath_u = math.sqrt(sum(x * x for x in sheath_parts) + print_u ** 2)
         marking = MarkingResult(
             value=sheath_marking(inp.marking, sheath_m),
             low=sheath_marking(inp.marking, max(0.0, sheath_m - sheath_u)),

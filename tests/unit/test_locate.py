@@ -182,6 +182,40 @@ def test_marking_through_locate_has_a_range() -> None:
     assert any("past zero" in w for w in down)
 
 
+def test_marking_range_includes_the_print_tolerance_of_the_markings() -> None:
+    # No instrument errors: 1020 m shown at 2 % helix is exactly 1000 m of sheath. Printed
+    # markings within 1 % of the length counted (common practice, from memory): ±10 m, so
+    # marking 5000 counting up gives 6000 (5990 to 6010).
+    result = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
+                                marking=Marking(5000, "m", "up"), errors=NO_ERRORS))
+    marking = result.position.marking
+    assert marking is not None
+    assert (marking.low, marking.value, marking.high) == (
+        pytest.approx(5990.0, abs=1e-9), pytest.approx(6000.0, abs=1e-9),
+        pytest.approx(6010.0, abs=1e-9))
+    # 0.5 % counting down in feet: ±5 m = ±16.4042 ft (5 / 0.3048) around
+    # 20 000 − 1000 / 0.3048 = 16 719.1601 ft
+    feet = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
+                              marking=Marking(20000, "ft", "down", tolerance_percent=0.5),
+                              errors=NO_ERRORS)).position.marking
+    assert feet is not None
+    assert feet.high == pytest.approx(16719.1601 - 16.4042, abs=1e-3)
+    assert feet.low == pytest.approx(16719.1601 + 16.4042, abs=1e-3)
+    # with the sheath-length range too, root-sum-square: helix ±0.5 % on 1020 m of fibre moves
+    # the sheath to 1020 / 1.015 = 1004.926 (+4.926 m) or 1020 / 1.025 = 995.122 (−4.878 m);
+    # √(4.926² + 10²) = 11.147 m
+    both = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
+                              marking=Marking(5000, "m", "up"),
+                              errors=ErrorTerms(offset_m=0, scale_error_percent=0,
+                                                sample_spacing_m=0, group_index_uncertainty=0,
+                                                helix_uncertainty_percent=0.5))).position.marking
+    assert both is not None
+    assert both.high - both.value == pytest.approx(11.147, abs=1e-3)
+    with pytest.raises(InputError, match="marking tolerance"):
+        locate(LocateInput(otdr_distance_m=1020, group_index=1.468,
+                           marking=Marking(5000, "m", "up", tolerance_percent=-1)))
+
+
 def test_two_ended_consistent_and_combined() -> None:
     # from A 3412 m, from B 1590 m, total 5000 m: 3412 + 1590 − 5000 = 2 m.
     # Tolerance with defaults (offset 1 m, sample 1 m): A's offset is common to from-A and the
