@@ -498,8 +498,15 @@ def _mismatch_item(a: Fibre, b: Fibre, nm: float,
             f"− 10·log10((NA_rx/NA_tx)²), lossy direction {worse} "
             f"({a.core_diameter_um:g} µm NA {a.numerical_aperture:g} / "
             f"{b.core_diameter_um:g} µm NA {b.numerical_aperture:g})")
-    w1 = a.mode_field_diameter_um(nm)
-    w2 = b.mode_field_diameter_um(nm)
+    try:
+        w1 = a.mode_field_diameter_um(nm)
+        w2 = b.mode_field_diameter_um(nm)
+    except InputError as exc:
+        # Like an unknown core or NA: say so and count none, rather than refuse the whole
+        # budget (between single-mode fibres of one family it is a few hundredths of a dB).
+        notes.append(f"joint {a.name} / {b.name}: {exc}; no mode-field mismatch counted at "
+                     f"{_nm(nm)}")
+        return None
     loss = coupling.mfd_mismatch_loss_db(w1, w2)
     return loss, loss, BudgetItem(
         name=f"MFD mismatch {a.name} | {b.name}", kind="mismatch", loss_db=loss,

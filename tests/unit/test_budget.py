@@ -155,6 +155,33 @@ def test_mixed_singlemode_segments_use_mfd_per_wavelength(lib):
     assert at[1550.0] == pytest.approx(0.027795, abs=2e-6)
 
 
+def test_gpon_feeder_and_bend_insensitive_drop_at_1490_nm(lib):
+    # OS2 feeder (G.652.D fibre, typical MFD 10.0 µm at 1490 nm) into a G.657.A2 drop (typical
+    # 9.3 µm), presets (from memory). Gaussian overlap (Marcuse 1977, from memory):
+    # 2·10·9.3 = 186; 10² + 9.3² = 186.49; 186/186.49 = 0.9973725; squared 0.9947519;
+    # −10·log10(0.9947519) = 0.022852 dB
+    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OS2"], 8000.0),
+                                       b.Segment(lib.fibres["G.657.A2"], 150.0)),
+                             wavelengths_nm=(1490.0,))
+    row = b.compute_budget(spec).at(1490)
+    joints = [i for i in row.items if i.kind == "mismatch"]
+    assert len(joints) == 1
+    assert joints[0].loss_db == pytest.approx(0.022852, abs=2e-6)
+
+
+def test_a_joint_without_mode_field_values_is_noted_not_refused(lib):
+    # Neither G.652.D nor G.657.A2 has a mode-field diameter at 1383 nm in the presets: the
+    # budget still comes out (fibre only: 1 km × 0.4 + 0.05 km × 0.4 = 0.42 dB, ITU-T G.652
+    # (11/2016) 1383 nm cable maximum, from memory) and a note says no mismatch was counted.
+    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["G.652.D"], 1000.0),
+                                       b.Segment(lib.fibres["G.657.A2"], 50.0)),
+                             wavelengths_nm=(1383.0,))
+    result = b.compute_budget(spec)
+    assert result.at(1383).loss_db == pytest.approx(0.42, abs=1e-9)
+    assert not [i for i in result.at(1383).items if i.kind == "mismatch"]
+    assert any("no mode-field mismatch counted at 1383 nm" in n for n in result.notes)
+
+
 def test_multimode_and_singlemode_cannot_be_joined(lib):
     with pytest.raises(InputError, match="multimode and single-mode"):
         b.LinkDescription(segments=(b.Segment(lib.fibres["OM4"], 10.0),
