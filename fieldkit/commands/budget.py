@@ -11,7 +11,7 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, print_json
+from fieldkit.commands.common import CommandError, add_data_dir, print_json, warn_preset_problems
 
 _LINK_DESTS = ("fibre_type", "attenuation", "length", "link_file")
 
@@ -191,7 +191,9 @@ def resolved_from_args(args: argparse.Namespace) -> Any:
     from fieldkit.linkspec import resolve
     from fieldkit.presets import load_presets
 
-    return resolve(spec_from_args(args), load_presets(_config_dir(args)))
+    library = load_presets(_config_dir(args))
+    warn_preset_problems(args, library.problems)
+    return resolve(spec_from_args(args), library)
 
 
 def link_from_args(args: argparse.Namespace) -> Any:

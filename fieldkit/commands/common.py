@@ -25,6 +25,17 @@ def add_data_dir(parser: argparse.ArgumentParser) -> None:
     )
 
 
+def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:
+    """One line on stderr when a preset file or entry was skipped, so that a user's own preset
+    that did not load is never replaced by the shipped one without a word."""
+    if not problems:
+        return
+    more = f" (and {len(problems) - 1} more)" if len(problems) > 1 else ""
+    first = " ".join(problems[0].split())
+    print(f"fieldkit {getattr(args, 'command', '')}: warning: preset skipped: {first}{more}; "
+          "'fieldkit presets' lists the problems", file=sys.stderr)
+
+
 def print_json(data: Any) -> None:
     """Print ``data`` as one JSON object; refuses NaN/inf so scripts never see invalid JSON."""
     json.dump(_clean(data), sys.stdout, indent=2, ensure_ascii=False, allow_nan=False)

@@ -10,7 +10,7 @@ import argparse
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, print_json
+from fieldkit.commands.common import CommandError, add_data_dir, print_json, warn_preset_problems
 
 if TYPE_CHECKING:  # imported lazily at run time: `fieldkit --help` must stay fast
     from fieldkit.calc.locate import LocateInput, Location
@@ -254,7 +254,9 @@ def _presets(args: argparse.Namespace) -> Any:
     from fieldkit.presets import load_presets
 
     config = getattr(args, "config_dir", None)
-    return load_presets(locations.config_dir(Path(config) if config else None))
+    library = load_presets(locations.config_dir(Path(config) if config else None))
+    warn_preset_problems(args, library.problems)
+    return library
 
 
 def _list_cables(args: argparse.Namespace) -> int:

@@ -368,3 +368,31 @@ def test_a_read_only_jobs_folder_refuses_in_one_line_and_keeps_the_job(
     assert sorted(p.name for p in jobs_dir.glob("*.json")) == [job_file.name]
     # reading still works
     assert run("jobs", "show", job_id).returncode == 0
+
+
+def test_a_broken_user_override_is_named_when_the_shipped_preset_is_used(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    presets = isolated_dirs["config"] / "presets"
+    presets.mkdir(parents=True)
+    (presets / "my-fibres.toml").write_text(
+        '[[fibres]]\nname = "OS2"\nfamily = "singlemode"\nstandard = "site cable"\n'
+        "default_wavelengths_nm = [1310]\nattenuation_max_db_per_km = { 1310 = nan }\n"
+        'source = "datasheet"\n', encoding="utf-8")
+    result = run("budget", "--fiber", "OS2", "--length", "5km", "--wavelength", "1310", "--json")
+    assert result.returncode == 0, result.stderr
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1, result.stderr
+    assert "warning" in lines[0] and "my-fibres.toml" in lines[0] and "'OS2'" in lines[0]
+    # the shipped OS2 was used: 0.4 dB/km max at 1310 nm (presets/fibres.toml) × 5 km = 2.0 dB
+    items = json.loads(result.stdout)["wavelengths"][0]["items"]
+    assert items[0]["loss_db"] == pytest.approx(2.0, abs=1e-9)
+    located = run("locate", "--distance", "1 km", "--fiber", "OS2", "--wavelength", "1310")
+    assert located.returncode == 0, located.stderr
+    assert "my-fibres.toml" in located.stderr
+
+
+def test_good_presets_give_no_warning() -> None:
+    result = run("budget", "--fiber", "OS2", "--length", "5km")
+    assert result.returncode == 0
+    assert result.stderr == ""
