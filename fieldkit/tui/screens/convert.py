@@ -143,8 +143,10 @@ class ConvertScreen(Screen[None]):
         after = power.apply_loss(level_dbm, loss_db)
         rows = [
             ("after loss", f"{format_number(after)} dBm = {_linear(after)}"),
-            ("after gain", f"{format_number(power.apply_gain(level_dbm, loss_db))} dBm"),
-            ("passes", f"{format_number(power.loss_db_to_percent_transmitted(loss_db))} %"),
+            # The typed level taken as received: what went in before the loss.
+            ("before loss", f"{format_number(power.apply_gain(level_dbm, loss_db))} dBm"),
+            ("passes", f"{format_number(power.loss_db_to_percent_transmitted(loss_db), 4)} % "
+                       "of the power"),
         ]
         self._out("loss-out", _rows(rows))
 
@@ -157,7 +159,7 @@ class ConvertScreen(Screen[None]):
         a_dbm, b_dbm = a.to("dBm"), b.to("dBm")
         total = power.sum_levels_dbm((a_dbm, b_dbm))
         rows = [
-            ("A + B power", f"{format_number(total)} dBm = {_linear(total)}"),
+            ("A + B", f"{format_number(total)} dBm = {_linear(total)}"),
             ("A − B", f"{format_number(power.level_difference_db(a_dbm, b_dbm))} dB"),
         ]
         self._out("sum-out", _rows(rows))
@@ -180,7 +182,8 @@ class ConvertScreen(Screen[None]):
         for channel in report.dwdm:
             rows.append(
                 (
-                    f"DWDM {channel.spacing_ghz:g}",
+                    # the grid by its spacing, not "DWDM 100" (read as 100G optics)
+                    f"{channel.spacing_ghz:g} GHz",
                     f"n={channel.n:+d} {channel.frequency_thz:.3f} THz",
                 )
             )
