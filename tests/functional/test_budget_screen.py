@@ -415,3 +415,21 @@ async def test_item_kind_names_and_buttons_fit(tmp_path: Path, size):
         row = screen.query_one("#item-buttons").region
         for button in screen.query("#item-buttons Button"):
             assert row.contains_region(button.region), button.id
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_enter_moves_to_the_next_field(tmp_path: Path, size):
+    # Enter after the length goes on to the wavelengths and the margin, as in Convert and Fault.
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"12 km", "enter")
+        await pilot.pause()
+        assert screen.query_one("#item-value", Input).value == "12 km"
+        assert screen.focused is screen.query_one("#wavelengths", Input)
+        await pilot.press(*"1310", "enter", "3")
+        await pilot.pause()
+        assert screen.focused is screen.query_one("#margin", Input)
+        # 12 km × 0.4 dB/km + 2 × 0.75 dB = 6.30 dB at 1310 nm only (as in the first test)
+        assert "1310 nm 6.30 dB (+3.00 dB margin)" in text_of(app, "#budget-summary")

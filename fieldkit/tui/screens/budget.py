@@ -608,6 +608,12 @@ class BudgetScreen(Screen[None]):
         if action is not None:
             action()
 
+    @on(Input.Submitted)
+    def _next_field(self, event: Input.Submitted) -> None:
+        # Enter moves on, as in the other workspaces: no reach for Tab with gloves on.
+        event.stop()
+        self.focus_next()
+
     # -- settings ------------------------------------------------------------------------
     @on(Input.Changed, "#wavelengths, #margin, #tx-min, #tx-max, #rx-sens, #rx-over")
     def _setting_typed(self, event: Input.Changed) -> None:
