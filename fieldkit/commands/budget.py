@@ -11,7 +11,13 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, print_json, warn_preset_problems
+from fieldkit.commands.common import (
+    CommandError,
+    add_data_dir,
+    plain_text,
+    print_json,
+    warn_preset_problems,
+)
 
 _LINK_DESTS = ("fibre_type", "attenuation", "length", "link_file")
 
@@ -292,6 +298,8 @@ def _save(args: argparse.Namespace, resolved: Any, report: Any) -> dict[str, str
     from fieldkit.jobs.store import JobStore, StoreError
     from fieldkit.linkspec import budget_record
 
+    plain_text(args.link, "link")
+    plain_text(args.by or "", "by")
     data = getattr(args, "data_dir", None)
     store = JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
     record = budget_record(resolved, report, by=args.by)

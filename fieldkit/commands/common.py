@@ -6,6 +6,7 @@ import argparse
 import json
 import math
 import sys
+import unicodedata
 from typing import Any
 
 
@@ -34,6 +35,27 @@ def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:
     first = " ".join(problems[0].split())
     print(f"fieldkit {getattr(args, 'command', '')}: warning: preset skipped: {first}{more}; "
           "'fieldkit presets' lists the problems", file=sys.stderr)
+
+
+def plain_text(text: str, what: str, *, multiline: bool = False) -> str:
+    """``text`` as typed, refusing what would corrupt a record or the terminal showing it.
+
+    Refuses bytes that are not UTF-8 (they reach Python as lone surrogates and cannot be saved)
+    and control characters (an escape sequence would recolour or move the terminal's cursor; a
+    line break would split a one-line field in lists and reports). ``multiline`` text (a note)
+    may hold line breaks and tabs.
+    """
+    for ch in text:
+        if multiline and ch in "\n\t":
+            continue
+        category = unicodedata.category(ch)
+        if category == "Cs":
+            raise CommandError(f"{what}: holds bytes that are not UTF-8 text; retype it")
+        if category == "Cc" or ch in "\u2028\u2029":
+            where = "" if multiline else " on one line"
+            raise CommandError(f"{what}: holds a control character (U+{ord(ch):04X}); type "
+                               f"plain text{where}")
+    return text
 
 
 def print_json(data: Any) -> None:

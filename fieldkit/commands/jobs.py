@@ -23,7 +23,7 @@ from datetime import date
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, print_json
+from fieldkit.commands.common import CommandError, add_data_dir, plain_text, print_json
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job
@@ -157,6 +157,9 @@ def _warn_problems(store: JobStore) -> None:
 
 
 def run_new(args: argparse.Namespace) -> int:
+    for value, what in ((args.name, "name"), (args.site, "site"), (args.customer, "customer"),
+                        (args.by, "by"), *((c, "crew") for c in args.crew or ())):
+        plain_text(value or "", what)
     store = store_of(args)
     job = store.create(args.name, site=args.site, customer=args.customer, crew=args.crew,
                        by=args.by)
@@ -247,9 +250,10 @@ def run_show(args: argparse.Namespace) -> int:
 
 
 def run_note(args: argparse.Namespace) -> int:
-    text = args.text.strip()
+    text = plain_text(args.text, "note", multiline=True).strip()
     if not text:
         raise CommandError("the note is empty")
+    plain_text(args.by or "", "by")
     store = store_of(args)
     job_id = store.resolve(args.id)
     added: list[str] = []

@@ -10,7 +10,13 @@ import argparse
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, print_json, warn_preset_problems
+from fieldkit.commands.common import (
+    CommandError,
+    add_data_dir,
+    plain_text,
+    print_json,
+    warn_preset_problems,
+)
 
 if TYPE_CHECKING:  # imported lazily at run time: `fieldkit --help` must stay fast
     from fieldkit.calc.locate import LocateInput, Location
@@ -149,7 +155,7 @@ def parse_landmark(text: str) -> Any:
     parts = text.rsplit(":", 2)
     if len(parts) != 3 or not parts[0].strip():
         raise CommandError(f"landmark: '{text}' is not NAME:OTDR_DISTANCE:ROUTE_DISTANCE")
-    name = parts[0].strip()
+    name = plain_text(parts[0].strip(), "landmark name")
     return Landmark(name, _length_m(parts[1], f"landmark '{name}' OTDR distance"),
                     _length_m(parts[2], f"landmark '{name}' route distance"))
 
@@ -460,6 +466,9 @@ def _save(args: argparse.Namespace, location: Location, inputs: dict[str, Any]) 
 
     if not (args.job and args.link):
         raise CommandError("saving onto a job needs both --job and --link")
+    plain_text(args.link, "link")
+    plain_text(args.by or "", "by")
+    plain_text(args.notes or "", "notes", multiline=True)
     data = getattr(args, "data_dir", None)
     store = JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
     record = fault_record(location, inputs, by=args.by, notes=args.notes)

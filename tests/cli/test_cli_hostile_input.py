@@ -396,3 +396,47 @@ def test_good_presets_give_no_warning() -> None:
     result = run("budget", "--fiber", "OS2", "--length", "5km")
     assert result.returncode == 0
     assert result.stderr == ""
+
+
+# -- free text: escape sequences, line breaks and bytes that are not UTF-8 -------------------
+
+# os.fsdecode turns the byte 0xff into the lone surrogate U+DCFF, as Python does for argv
+_NOT_UTF8 = os.fsdecode(b"\xff")
+
+
+@pytest.mark.parametrize(
+    ("args", "words"),
+    [
+        (("jobs", "new", "a\nb"), ("name", "U+000A")),
+        (("jobs", "new", "\x1b[31mred\x1b[0m"), ("name", "U+001B")),
+        (("jobs", "new", _NOT_UTF8), ("name", "not UTF-8")),
+        (("jobs", "new", "ok", "--crew", _NOT_UTF8), ("crew", "not UTF-8")),
+        (("jobs", "new", "ok", "--site", "x\ty"), ("site", "U+0009")),
+        (("jobs", "new", "ok", "--by", "\x1b[2J"), ("by", "U+001B")),
+        (("budget", "--fiber", "OS2", "--length", "1km", "--job", "{id}", "--link", "a\nb"),
+         ("link", "U+000A")),
+        (("locate", "--distance", "1km", "--ior", "1.468", "--landmark", "\x1b[1m:1 km:1 km"),
+         ("landmark name", "U+001B")),
+        (("locate", "--distance", "1km", "--ior", "1.468", "--job", "{id}", "--link", "L",
+          "--by", _NOT_UTF8), ("by", "not UTF-8")),
+    ],
+)
+def test_control_characters_and_broken_text_are_refused_before_any_write(
+    isolated_dirs: dict[str, Path], args: tuple[str, ...], words: tuple[str, ...],
+) -> None:
+    job_id = _new_job("target")
+    jobs_dir = isolated_dirs["data"] / "jobs"
+    before = (jobs_dir / f"{job_id}.json").read_bytes()
+    assert_refused(run(*(a.replace("{id}", job_id) for a in args)), *words)
+    assert sorted(p.name for p in jobs_dir.glob("*.json")) == [f"{job_id}.json"]
+    assert (jobs_dir / f"{job_id}.json").read_bytes() == before
+
+
+def test_a_note_keeps_its_line_breaks_and_accents() -> None:
+    job_id = _new_job("Café à Zürich – Ω")
+    result = run("jobs", "note", job_id, "splice tray 3\nrecheck\tfibre 12", "--by", "Zoë")
+    assert result.returncode == 0, result.stderr
+    job = json.loads(run("jobs", "show", job_id, "--json").stdout)["job"]
+    assert job["name"] == "Café à Zürich – Ω"
+    assert job["notes"][-1]["text"] == "splice tray 3\nrecheck\tfibre 12"
+    assert_refused(run("jobs", "note", job_id, "\x1b[2J"), "note", "U+001B")
