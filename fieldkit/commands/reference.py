@@ -30,6 +30,9 @@ def register(subparsers: Any) -> None:
                         "single-mode; common practice)")
     parser.add_argument("--recheck", action="store_true",
                         help="this is the end-of-session recheck of the reference in use")
+    parser.add_argument("--of", metavar="REFERENCE_ID", dest="of_reference",
+                        help="for --recheck: the reference to recheck (default: the latest one "
+                        "set at this wavelength; give it when both directions have their own)")
     parser.add_argument("--tolerance", metavar="DB",
                         help="drift tolerance for --recheck (default 0.1 dB single-mode, 0.2 dB "
                         "multimode; common practice)")
@@ -57,6 +60,8 @@ def run(args: argparse.Namespace) -> int:
     tolerance_db = ref.loss_limit_db(args.tolerance, "tolerance") if args.tolerance else None
     if tolerance_db is not None and not args.recheck:
         raise CommandError("--tolerance goes with --recheck")
+    if args.of_reference and not args.recheck:
+        raise CommandError("--of goes with --recheck")
     warnings = ref.reference_warnings(level_dbm, source_dbm=source_dbm,
                                       wavelength_nm=wavelength_nm, launch_condition=args.launch)
     out: dict[str, Any] = {
@@ -104,7 +109,7 @@ def _save(args: argparse.Namespace, level_dbm: float, wavelength_nm: float, meth
             link = meter_log.find_link(job, args.link)
             outcome = meter_log.recheck_reference(link, wavelength_nm=wavelength_nm,
                                                   level_dbm=level_dbm, tolerance_db=tolerance_db,
-                                                  by=args.by)
+                                                  by=args.by, reference_id=args.of_reference)
             out.update(drift_db=outcome.drift.drift_db, tolerance_db=outcome.drift.tolerance_db,
                        within_tolerance=outcome.drift.within, drift_message=outcome.drift.message,
                        rechecked_reference_id=outcome.initial.id,

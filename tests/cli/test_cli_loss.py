@@ -247,3 +247,24 @@ def test_limit_from_the_budget_saved_on_the_jobs_link(isolated_dirs: dict[str, P
     (result,) = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0].results
     assert result.limit_db == pytest.approx(4.50, abs=1e-9) and result.passed is False
     assert result.method == "three-cord"
+
+
+def test_recheck_of_one_directions_reference(isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    job_id = _new_job(isolated_dirs["data"])
+    out = run_json("loss", "--job", job_id, "--link", "L1", "--fibre", "1", "--wavelength",
+                   "1310", "--reference", "-7.20", "--reading", "-8.0", "--reference-back",
+                   "-6.90", "--reading-back", "-7.9")
+    forward_id, backward_id = out["saved"]["reference_ids"]
+    # -7.40 − (-7.20) = -0.20 dB: beyond 0.1 dB; only the A->B result used that reference.
+    bad = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1310",
+                   "--level", "-7.40", "--recheck", "--of", forward_id)
+    assert bad["rechecked_reference_id"] == forward_id and len(bad["in_doubt_result_ids"]) == 1
+    link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
+    flagged = {r.direction: "reference-in-doubt" in r.flags for r in link.results}
+    assert flagged == {"A->B": True, "B->A": False}
+    assert link.reference(backward_id).in_doubt_since is None  # type: ignore[union-attr]
+    proc = run("reference", "--job", job_id, "--link", "L1", "--wavelength", "1310",
+               "--level", "-7.40", "--recheck", "--of", "nosuchid")
+    assert proc.returncode == 2 and "nosuchid" in proc.stderr

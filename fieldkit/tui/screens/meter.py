@@ -423,7 +423,7 @@ class MeterScreen(Screen[None]):
         self._show_summary()
         self._show_limit_placeholder()
         for w in [wavelength_nm] if wavelength_nm is not None else self._wavelengths:
-            self._queue(("limit", w, self._limit_db(w)))
+            self._queue(("limit", w, self._limit_db(w), self._method))
 
     def _show_limit_placeholder(self) -> None:
         budget = self._budget_limits.get(self.active_column.wavelength_nm)
@@ -828,9 +828,11 @@ class MeterScreen(Screen[None]):
                     _, fibre, w, d = op
                     meter_log.remove_result(link, fibre=fibre, wavelength_nm=w, direction=d)
                 elif kind == "limit":
-                    _, w, limit_db = op
+                    # A stored result keeps the limit of its own method: only results taken
+                    # with the method in use get the new limit.
+                    _, w, limit_db, method = op
                     for result in link.results:
-                        if abs(result.wavelength_nm - w) <= 0.5:
+                        if abs(result.wavelength_nm - w) <= 0.5 and result.method == method.value:
                             result.limit_db = limit_db
                             result.passed = ref.judge(result.loss_db, limit_db).passed
                 elif kind == "recheck":
