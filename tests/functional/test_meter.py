@@ -200,15 +200,16 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
         link = store.load(job_id).link(link_id)
         assert sorted((r.fibre, round(r.loss_db, 6)) for r in link.results) == [(1, 1.0),
                                                                                   (3, 1.2)]
-        # A click on a cell moves the entry there.
-        grid = screen.query_one(ReadingsGrid)
-        grid.focus()
-        await pilot.pause()
-        grid.move_cursor(row=8, column=1)
-        await pilot.press("enter")
+        # A click on a cell moves the entry there, ready to type. The grid's header is its
+        # first line and the fibre column 7 cells wide, so (10, 9) is fibre 9 at 1310 nm.
+        await pilot.click("#readings", offset=(10, 9))
         await pilot.pause()
         assert "F9 1310" in str(screen.query_one("#entry-where").render())
         assert screen.focused is screen.query_one("#reading")
+        await pilot.press(*"-8.5", "enter")
+        await _settle(pilot, screen)
+        link = store.load(job_id).link(link_id)
+        assert {r.fibre for r in link.results} == {1, 3, 9}
 
 
 async def test_recheck_beyond_tolerance_marks_results_in_doubt(

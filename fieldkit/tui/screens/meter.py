@@ -611,16 +611,26 @@ class MeterScreen(Screen[None]):
         self._show_entry_where()
         self._show_summary()
 
+    @on(DataTable.CellHighlighted)
+    def _cell_pointed(self, event: DataTable.CellHighlighted) -> None:
+        # The grid has focus only when the user clicked it (or tabbed to it and moved): go to
+        # that cell and back to typing. Moves made by the entry field itself are ignored.
+        if self.query_one(ReadingsGrid).has_focus:
+            self._go_to_cell(event.coordinate.row, event.coordinate.column)
+
     @on(DataTable.CellSelected)
     def _cell_clicked(self, event: DataTable.CellSelected) -> None:
+        self._go_to_cell(event.coordinate.row, event.coordinate.column)
+
+    def _go_to_cell(self, row: int, grid_column: int) -> None:
         grid = self.query_one(ReadingsGrid)
-        column_index = event.coordinate.column - 1
+        column_index = grid_column - 1
         if 0 <= column_index < len(grid.columns_shown):
             column = grid.columns_shown[column_index]
             if column.direction is not None and column in self.measured_columns:
                 self._column_index = self.measured_columns.index(column)
                 self._sync_column_fields()
-            self._fibre = event.coordinate.row + 1
+            self._fibre = row + 1
             grid.point_at(self._fibre, self.active_column)
             self._show_entry_where()
         self.query_one("#reading", Input).focus()
