@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from rich.terminal_theme import TerminalTheme
 from textual.app import App
 from textual.theme import Theme
 
@@ -43,5 +44,37 @@ SUNLIGHT = Theme(
 )
 
 
+#: How plain colour names in the jobs and end-of-day text ("red" for a failure, "yellow" for
+#: an open job or a result in doubt, "green" for a pass) show on a light background. The stock
+#: light mapping's yellow (203, 144, 0) is 2.6:1 on white and its green 4.2:1; these are all
+#: at least 7:1 (WCAG 2.1 contrast formula), and red stays apart from amber.
+SUNLIGHT_ANSI = TerminalTheme(
+    (255, 255, 255),
+    (0, 0, 0),
+    [
+        (0, 0, 0),  # black
+        (176, 0, 0),  # red: failures, the theme's error colour
+        (0, 100, 0),  # green: passes
+        (122, 74, 0),  # yellow: open, in doubt, cautions (dark amber, the warning colour)
+        (0, 0, 176),  # blue
+        (106, 27, 122),  # magenta
+        (0, 90, 102),  # cyan
+        (77, 77, 77),  # white: a grey that still reads on white
+    ],
+    [
+        (77, 77, 77),
+        (139, 0, 0),
+        (0, 80, 0),
+        (107, 64, 0),
+        (0, 0, 139),
+        (90, 19, 112),
+        (0, 79, 90),
+        (51, 51, 51),
+    ],
+)
+
+
 def register_themes(app: App[Any]) -> None:
     app.register_theme(SUNLIGHT)
+    # Used whenever a light theme is on; the default dark theme keeps its own mapping.
+    app.ansi_theme_light = SUNLIGHT_ANSI

@@ -77,3 +77,30 @@ async def test_sunlight_placeholder_is_readable_and_lighter_than_typed_text(tmp_
         typed_rgb = tuple(field.rich_style.color.triplet)
         assert contrast(hint_rgb, bg) >= 4.5  # WCAG 2.1 SC 1.4.3 (AA)
         assert contrast(typed_rgb, bg) > contrast(hint_rgb, bg)
+
+
+async def test_sunlight_colour_names_in_job_text_stay_readable(tmp_path: Path) -> None:
+    # The jobs and end-of-day views mark failures "red", open jobs and doubtful results
+    # "yellow", passes "green"; under the sunlight theme those render at least 4.5:1 on the
+    # white background (WCAG 2.1 SC 1.4.3), and a failure does not look like a doubt.
+    from rich.color import Color as RichColor
+    from rich.style import Style
+    from textual.filter import ANSIToTruecolor
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        assert app.theme == HIGH_CONTRAST
+        filters = [f for f in app._filters if isinstance(f, ANSIToTruecolor)]
+        assert filters
+        white = RichColor.from_rgb(255, 255, 255)
+        shown = {}
+        for name in ("red", "green", "yellow", "bright_red", "bright_yellow"):
+            style = filters[0].truecolor_style(Style(color=name), white)
+            shown[name] = tuple(style.color.triplet)
+            assert contrast(shown[name], (255, 255, 255)) >= 4.5, name
+        # red and amber differ by more than a shade: at least 50 apart in the red or green channel
+        red, amber = shown["red"], shown["yellow"]
+        assert max(abs(red[0] - amber[0]), abs(red[1] - amber[1])) >= 50
