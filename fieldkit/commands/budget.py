@@ -168,6 +168,12 @@ def _attenuation_spec(values: list[str]) -> Any:
 
 def _overlay_checks(spec: dict[str, Any], args: argparse.Namespace) -> dict[str, Any]:
     application = getattr(args, "application", None)
+    # An empty name (an unset shell variable) is refused by name, never dropped silently.
+    for option, value in (("--application", application),
+                          ("--transceiver", getattr(args, "transceiver", None))):
+        if value is not None and not value.strip():
+            raise CommandError(f"{option}: empty; give a preset name ('fieldkit presets' "
+                               "lists them)")
     if application:
         spec["application"] = application
     levels = [getattr(args, k, None) for k in ("tx_min", "tx_max", "rx_sensitivity",

@@ -38,14 +38,14 @@ def run(args: argparse.Namespace) -> int:
 
     value = parse(args.quantity, what="quantity")
     if args.grid:
-        if args.to:
+        if args.to is not None:
             raise CommandError("give either --to or --grid, not both")
         report = grid_report(value, tuple(args.spacing or (100.0, 50.0)))
         _print_grid(report, args.json)
         return 0
     if args.spacing:
         raise CommandError("--spacing goes with --grid")
-    if args.to:
+    if args.to is not None:  # an empty --to is refused by the parser, not read as "all units"
         number, unit = convert_to(value, args.to)
         if args.json:
             print_json(

@@ -79,6 +79,12 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (("locate", "--distance", "1e30 km", "--ior", "1.468"), ("longer",)),
         (("locate", "--time", "1e308 s", "--ior", "1.468", "--json"), ("round-trip",)),
         (("jobs", "list", "--date", "2026-02-30"), ("date",)),
+        # an empty option (an unset shell variable) used to be dropped: all units, no check
+        (("convert", "5 dBm", "--to", ""), ("no unit",)),
+        (("budget", "--fiber", "OS2", "--length", "1km", "--application", ""),
+         ("--application", "empty")),
+        (("budget", "--fiber", "OS2", "--length", "1km", "--transceiver", " "),
+         ("--transceiver", "empty")),
     ],
 )
 def test_bad_values_are_refused_in_one_line(args: tuple[str, ...], words: tuple[str, ...]) -> None:
