@@ -9,7 +9,16 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from fieldkit.calc import optics
-from fieldkit.calc.units import InputError, Kind, Value, canonical_unit, convert, linear, units_of
+from fieldkit.calc.units import (
+    InputError,
+    Kind,
+    Value,
+    canonical_unit,
+    convert,
+    format_number,
+    linear,
+    units_of,
+)
 
 
 def convert_to(value: Value, unit: str) -> tuple[float, str]:
@@ -89,7 +98,8 @@ def grid_report(value: Value, spacings_ghz: tuple[float, ...] = (100.0, 50.0)) -
         pass
     if not dwdm and cwdm is None:
         raise InputError(
-            f"grid: {wavelength_nm:.1f} nm ({frequency_thz:.3f} THz) is on neither the DWDM nor "
+            f"grid: {format_number(wavelength_nm)} nm ({format_number(frequency_thz)} THz) is on "
+            "neither the DWDM nor "
             "the CWDM grid"
         )
     return GridReport(wavelength_nm, frequency_thz, dwdm, cwdm)

@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from fieldkit.calc.units import InputError
+from fieldkit.calc.units import InputError, format_number
 
 #: Speed of light in vacuum, m/s: exact by the SI definition of the metre (BIPM).
 SPEED_OF_LIGHT_M_PER_S = 299_792_458.0
@@ -31,7 +31,7 @@ CWDM_WAVELENGTHS_NM: tuple[float, ...] = tuple(float(1271 + 20 * k) for k in ran
 
 def _positive(x: float, what: str) -> float:
     if not math.isfinite(x) or x <= 0:
-        raise InputError(f"{what}: {x} must be a positive, finite number")
+        raise InputError(f"{what}: {format_number(x)} must be a positive, finite number")
     return x
 
 
