@@ -175,7 +175,7 @@ def run_list(args: argparse.Namespace) -> int:
     from fieldkit.jobs.store import filter_summaries, local_date
 
     store = store_of(args)
-    on_date = _day(None) if args.today else _day(args.date) if args.date else None
+    on_date = _day(None) if args.today else _day(args.date) if args.date is not None else None
     rows = filter_summaries(store.list(rescan=args.rescan), text=args.search,
                             status=args.status, on_date=on_date)
     _warn_problems(store)

@@ -79,6 +79,7 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (("locate", "--distance", "1e30 km", "--ior", "1.468"), ("longer",)),
         (("locate", "--time", "1e308 s", "--ior", "1.468", "--json"), ("round-trip",)),
         (("jobs", "list", "--date", "2026-02-30"), ("date",)),
+        (("jobs", "list", "--date", ""), ("not a date",)),
         # the message used to print all 309 digits of 1e308
         (("convert", "1e308 nm", "--grid"), ("1.00000e+308 nm", "neither")),
         (("convert", "0 nm", "--to", "THz"), ("positive",)),
