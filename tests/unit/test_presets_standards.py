@@ -34,7 +34,9 @@ def lib():
     ("1000BASE-LX", "OM2", 2.35, 550),
     ("1000BASE-LX", "singlemode", 4.57, 5000),
     # Clause 52 10GBASE-S (from memory): 200 MHz·km 33 m / 1.6 dB; 500 MHz·km 82 m / 1.8 dB;
-    # 2000 MHz·km (OM3) 300 m / 2.6 dB; 4700 MHz·km (OM4) 400 m / 2.9 dB
+    # 2000 MHz·km (OM3) 300 m / 2.6 dB. OM4 (4700 MHz·km) 400 m / 2.9 dB: the figure the
+    # ISO/IEC 11801-1 application tables give (from memory; whether Clause 52 itself lists
+    # OM4 is not settled)
     ("10GBASE-SR", "OM1", 1.6, 33),
     ("10GBASE-SR", "OM2", 1.8, 82),
     ("10GBASE-SR", "OM3", 2.6, 300),
