@@ -129,7 +129,9 @@ _BASE_UNIT = {
 }
 
 _NUMBER = re.compile(r"^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
-_MINUS_SIGNS = "\u2212\u2012\u2013\u2014\ufe63\uff0d"
+# U+2212 minus, U+2010 hyphen and U+2011 non-breaking hyphen (what word processors and phone
+# keyboards put in place of "-"), figure dash, en and em dash, small and full-width hyphen-minus.
+_MINUS_SIGNS = "\u2212\u2010\u2011\u2012\u2013\u2014\ufe63\uff0d"
 _MICRO_SIGNS = "\u00b5\u03bc"
 _SPACES = "\u00a0\u2009\u202f\u2007"
 

@@ -25,6 +25,8 @@ ACCEPTED = [
     ("-7.5dBm", Kind.POWER, -7.5, "dBm"),
     ("\u22127.5 dBm", Kind.POWER, -7.5, "dBm"),  # Unicode minus sign
     ("\u20137.5 dBm", Kind.POWER, -7.5, "dBm"),  # en dash typed as a minus
+    ("\u20107.5 dBm", Kind.POWER, -7.5, "dBm"),  # HYPHEN (U+2010), as text editors paste it
+    ("\u20117.5 dBm", Kind.POWER, -7.5, "dBm"),  # NON-BREAKING HYPHEN (U+2011)
     ("-7,5 dBm", Kind.POWER, -7.5, "dBm"),  # decimal comma, unambiguous
     ("-7.5 dbm", Kind.POWER, -7.5, "dBm"),
     ("-7.5 DBM", Kind.POWER, -7.5, "dBm"),
