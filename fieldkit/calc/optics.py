@@ -88,7 +88,8 @@ def nearest_dwdm_channel(frequency_thz: float, spacing_ghz: float = 100.0) -> Dw
             f"frequency: {frequency_thz:.4f} THz is outside the DWDM bands (about 150–250 THz)"
         )
     step_thz = spacing_ghz / 1000.0
-    # Work in integer multiples of 12.5 GHz to avoid drift in the float arithmetic.
+    # One step from the anchor (n × spacing, never an accumulated sum), so the channel frequency
+    # carries a single rounding; a frequency exactly half-way between two channels is a tie.
     n = round((frequency_thz - DWDM_ANCHOR_THZ) / step_thz)
     channel_thz = DWDM_ANCHOR_THZ + n * step_thz
     return DwdmChannel(
