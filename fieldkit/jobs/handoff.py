@@ -101,9 +101,30 @@ def read_handoff(path: Path) -> list[Job]:
             raise StoreError(f"{path.name}: {job.read_only}; nothing imported")
         if job.id in seen:
             raise StoreError(f"{path.name}: job {job.id} appears twice; nothing imported")
+        twice = _repeated_record_id(job)
+        if twice:
+            raise StoreError(f"{path.name}: job {job.id} holds {twice} twice; nothing imported")
         seen.add(job.id)
         jobs.append(job)
     return jobs
+
+
+def _repeated_record_id(job: Job) -> str | None:
+    """The first record id that a job holds twice in one list, e.g. "note 1a23...", or None.
+
+    Merging matches records by id, so a repeated id would make one of the two silently win.
+    """
+    groups: list[tuple[str, list[Any]]] = [("note", list(job.notes)), ("link", list(job.links))]
+    for link in job.links:
+        groups += [("result", list(link.results)), ("reference", list(link.references)),
+                   ("splice", list(link.splices)), ("fault", list(link.faults))]
+    for kind, records in groups:
+        ids: set[str] = set()
+        for record in records:
+            if record.id in ids:
+                return f"{kind} {record.id}"
+            ids.add(record.id)
+    return None
 
 
 def _same(a: BaseModel | None, b: BaseModel | None) -> bool:

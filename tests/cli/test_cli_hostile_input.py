@@ -450,3 +450,21 @@ def test_a_note_keeps_its_line_breaks_and_accents() -> None:
     assert job["name"] == "Café à Zürich – Ω"
     assert job["notes"][-1]["text"] == "splice tray 3\nrecheck\tfibre 12"
     assert_refused(run("jobs", "note", job_id, "\x1b[2J"), "note", "U+001B")
+
+
+def test_a_handoff_whose_job_repeats_a_record_id_imports_nothing(
+    tmp_path: Path, isolated_dirs: dict[str, Path],
+) -> None:
+    job_id = _new_job("source")
+    assert run("jobs", "note", job_id, "first").returncode == 0
+    handoff = tmp_path / "handoff.json"
+    assert run("jobs", "export", job_id, "--format", "json", "-o", str(handoff)).returncode == 0
+    data = json.loads(handoff.read_text(encoding="utf-8"))
+    notes = data["jobs"][0]["notes"]
+    notes.append(dict(notes[0], text="same id, other text"))
+    handoff.write_text(json.dumps(data), encoding="utf-8")
+    jobs_dir = isolated_dirs["data"] / "jobs"
+    (jobs_dir / f"{job_id}.json").unlink()  # import into a store without the job
+    result = run("jobs", "import", str(handoff))
+    assert_refused(result, "twice", "nothing imported", notes[0]["id"])
+    assert not list(jobs_dir.glob("*.json"))
