@@ -433,3 +433,27 @@ async def test_enter_moves_to_the_next_field(tmp_path: Path, size):
         assert screen.focused is screen.query_one("#margin", Input)
         # 12 km × 0.4 dB/km + 2 × 0.75 dB = 6.30 dB at 1310 nm only (as in the first test)
         assert "1310 nm 6.30 dB (+3.00 dB margin)" in text_of(app, "#budget-summary")
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_typed_transceiver_levels_are_asked_for_not_refused(tmp_path: Path, size):
+    # Choosing "typed levels" leaves four empty fields: the panel asks for the ones missing,
+    # no field shows an error, and the budget itself stays.
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"8 km")
+        screen.query_one("#transceiver", Select).value = "__typed__"
+        await pilot.pause()
+        out = text_of(app, "#transceiver-out")
+        assert out == ("Type Tx minimum, Tx maximum, Rx sensitivity, Rx overload to check the "
+                       "transceiver.")
+        for field_id in ("tx-min", "tx-max", "rx-sens", "rx-over"):
+            assert not screen.query_one(f"#{field_id}-error", Static).display
+        assert screen.report is not None
+        screen.query_one("#tx-min", Input).value = "-8.2"
+        screen.query_one("#tx-max", Input).value = "0.5"
+        await pilot.pause()
+        assert text_of(app, "#transceiver-out") == (
+            "Type Rx sensitivity, Rx overload to check the transceiver.")

@@ -654,20 +654,28 @@ class BudgetScreen(Screen[None]):
         if transceiver == TYPED:
             levels: dict[str, Any] = {}
             level_problems: list[str] = []
+            untyped: list[str] = []
             for field_id, key, what in (("tx-min", "tx_min_dbm", "Tx minimum"),
                                         ("tx-max", "tx_max_dbm", "Tx maximum"),
                                         ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
                                         ("rx-over", "rx_overload_dbm", "Rx overload")):
                 typed = self.query_one(f"#{field_id}", Input).value
+                if not typed.strip():
+                    untyped.append(what)
+                    self._error(field_id, "")
+                    continue
                 try:
                     levels[key] = linkspec.level_dbm(typed, what)
                     self._error(field_id, "")
                 except InputError as exc:
-                    self._error(field_id, str(exc) if typed.strip() else "")
+                    self._error(field_id, str(exc))
                     level_problems.append(str(exc))
-            if level_problems:
-                # The budget still shows; only the transceiver check waits for its levels.
-                self._tx_problem = level_problems[0]
+            if level_problems or untyped:
+                # The budget still shows; only the transceiver check waits for its levels:
+                # wrong text is named, levels not typed yet are asked for.
+                self._tx_problem = (
+                    f"Type the four levels to check: {level_problems[0]}" if level_problems
+                    else "Type " + ", ".join(untyped) + " to check the transceiver.")
             else:
                 levels["name"] = "typed levels"
                 out["transceiver"] = levels
@@ -785,8 +793,7 @@ class BudgetScreen(Screen[None]):
             self.query_one("#application-out", Static).update(_minus("\n".join(text)))
         tx = report.transceiver
         if tx is None and self._tx_problem:
-            self.query_one("#transceiver-out", Static).update(
-                f"Type the four levels to check: {self._tx_problem}")
+            self.query_one("#transceiver-out", Static).update(self._tx_problem)
         elif tx is None:
             self.query_one("#transceiver-out", Static).update("Pick a transceiver to check.")
         else:
