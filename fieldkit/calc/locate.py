@@ -38,7 +38,8 @@ Each independent error source is given as a half-width (a typical ± figure, edi
 - scale error ``e`` (a fraction of the distance; the time base),
 - sample spacing ``s`` (an event is located to within one sample; independent per reading),
 - group-index uncertainty ``δn``,
-- helix uncertainty ``δh`` (percentage points),
+- helix uncertainty ``δh`` (percentage points); with no helix given (and no landmarks), the
+  helix is taken as 0 and the term is the change from 0 to ``UNKNOWN_HELIX_MAX_PERCENT``,
 - the route-distance uncertainty of each landmark (as-built records),
 - beyond the landmarks, the helix uncertainty once more, applied to the extrapolated stretch
   (the cable there may not have the ratio measured between the landmarks).
@@ -90,6 +91,11 @@ MAX_DISTANCE_M = 1.0e7
 #: the length counted (common practice: cable specifications commonly hold length markings to
 #: within 1 %, from memory). Editable per reading (:attr:`Marking.tolerance_percent`).
 MARKING_TOLERANCE_PERCENT = 1.0
+
+#: The largest helix a cable of unknown construction is taken to have, in percent (common
+#: practice: cables are typically 0–3 % shorter than their fibre). With no helix given the
+#: sheath is taken as long as the fibre and the range allows for this much helix.
+UNKNOWN_HELIX_MAX_PERCENT = 3.0
 
 #: Units a result may be shown in.
 OUTPUT_UNITS = ("m", "km", "ft", "mi")
@@ -564,6 +570,17 @@ _Move = Callable[[float], "_Chain"]
 def _terms(chain: _Chain, inp: LocateInput, two_ended: bool) -> list[tuple[str, _Move]]:
     """Each independent error term as a function moving the chain by ±1 half-width."""
     err = inp.errors
+    helix_term: tuple[str, _Move]
+    if inp.helix_percent is None and not chain.landmark_names:
+        # Not given: taken as 0 (the sheath as long as the fibre), but it may be up to the
+        # largest typical helix, which only ever makes the sheath shorter.
+        helix_term = (f"helix (not given: 0–{format_number(UNKNOWN_HELIX_MAX_PERCENT)} %)",
+                      lambda k: replace(chain, helix_percent=max(
+                          UNKNOWN_HELIX_MAX_PERCENT if k > 0 else 0.0,
+                          chain.helix_percent + k * err.helix_uncertainty_percent)))
+    else:
+        helix_term = ("helix", lambda k: replace(chain, helix_percent=max(
+            0.0, chain.helix_percent + k * err.helix_uncertainty_percent)))
     terms: list[tuple[str, _Move]] = [
         ("instrument offset", lambda k: replace(chain, offset_m=k * err.offset_m)),
         ("scale error", lambda k: replace(chain, scale=1.0 + k * err.scale_error_percent / 100)),
@@ -571,8 +588,7 @@ def _terms(chain: _Chain, inp: LocateInput, two_ended: bool) -> list[tuple[str, 
          lambda k: replace(chain, fault_shown_m=chain.fault_shown_m + k * err.sample_spacing_m)),
         ("group index", lambda k: replace(
             chain, group_index=max(1.0, chain.group_index + k * err.group_index_uncertainty))),
-        ("helix", lambda k: replace(chain, helix_percent=max(
-            0.0, chain.helix_percent + k * err.helix_uncertainty_percent))),
+        helix_term,
     ]
     if chain.landmark_names and err.helix_uncertainty_percent > 0:
         terms.append(("helix beyond the landmarks", lambda k: replace(
@@ -694,8 +710,11 @@ def locate(inp: LocateInput) -> Location:
         fault_shown_m = fiber_distance_from_time(inp.round_trip_time_s, index_set)
     helix = inp.helix_percent if inp.helix_percent is not None else 0.0
     if inp.helix_percent is None and not inp.landmarks:
-        warnings.append("No helix given: the sheath is taken as long as the fibre; cables are "
-                        "typically 0–3 % shorter than their fibre.")
+        warnings.append("No helix given: the sheath is taken as long as the fibre, and the range "
+                        "allows for a helix of up to "
+                        f"{format_number(UNKNOWN_HELIX_MAX_PERCENT)} % (cables are typically "
+                        "0–3 % shorter than their fibre); give the cable's helix or a landmark "
+                        "to narrow it.")
     slack = tuple(sorted(inp.slack, key=lambda s: s.route_position_m))
     marks = tuple(inp.landmarks)
     chain = _Chain(

@@ -278,6 +278,23 @@ def test_helix_uncertainty_dominates_a_long_bare_reading() -> None:
     assert p.uncertainty_m > 24.387
 
 
+def test_a_helix_not_given_widens_the_range_to_the_typical_helix() -> None:
+    # No helix given, no landmarks: the sheath is taken as the fibre's 5000 m, but a cable is
+    # typically up to 3 % shorter than its fibre (common practice), so the sheath may be as
+    # short as 5000 / 1.03 = 4854.369 m: the helix term is 5000 − 4854.369 = 145.631 m.
+    result = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, errors=NO_ERRORS))
+    p = result.position
+    assert p.route_distance_m == pytest.approx(5000.0, abs=1e-9)
+    terms = {c.name: c.route_m for c in p.contributions}
+    assert terms == {"helix (not given: 0–3 %)": pytest.approx(145.631, abs=1e-3)}
+    assert p.uncertainty_m == pytest.approx(145.631, abs=1e-3)
+    assert any("allows for a helix of up to 3 %" in w for w in result.warnings)
+    # a helix given (even 0 %) is taken at its word: no such term
+    given_zero = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0,
+                                    errors=NO_ERRORS)).position
+    assert given_zero.uncertainty_m == pytest.approx(0.0, abs=1e-9)
+
+
 @pytest.mark.parametrize(("metres", "unit", "expected"), [
     (1609.344, "mi", 1.0),  # international mile = 1609.344 m exactly (NIST SP 811)
     (0.3048, "ft", 1.0),  # international foot = 0.3048 m exactly (NIST SP 811)
