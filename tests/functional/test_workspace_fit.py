@@ -41,3 +41,25 @@ async def test_jobs_find_hint_fits(tmp_path: Path, size) -> None:
         assert find.placeholder.startswith("find:") and "date" in find.placeholder
         assert len(find.placeholder) <= find.content_region.width - 1  # the cursor cell
         assert "YYYY-MM-DD" in str(find.tooltip)
+
+
+@pytest.mark.parametrize(
+    ("mode", "field_id", "named"),
+    [("convert", "sum-a", "level A"), ("fault", "fault-distance", "OTDR dist"),
+     ("convert", "value", "value")],
+)
+async def test_problem_names_the_field_as_labelled(tmp_path: Path, mode, field_id, named):
+    # "level a" and "otdr dist" read as typing errors of our own; the label's case is kept.
+    from textual.widgets import Static
+
+    from fieldkit.tui.widgets.quantity_field import field_name
+
+    assert field_name("Level B") == "level B" and field_name("OTDR dist") == "OTDR dist"
+    assert field_name("Group index") == "group index" and field_name("λ or f") == "λ or f"
+    app = _app(tmp_path, mode)
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        app.screen.query_one(f"#{field_id}", Input).value = "3 parsec"
+        await pilot.pause()
+        error = app.screen.query_one(f"#{field_id}-field .field-error", Static)
+        assert str(error.render()).startswith(f"{named}: unknown unit 'parsec'")

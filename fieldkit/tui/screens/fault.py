@@ -39,7 +39,7 @@ from fieldkit.calc.locate import (
     locate,
 )
 from fieldkit.calc.units import InputError, Kind, normalise_text, parse, parse_number
-from fieldkit.tui.widgets.quantity_field import QuantityField
+from fieldkit.tui.widgets.quantity_field import QuantityField, field_name
 from fieldkit.tui.widgets.route_diagram import FaultMark, RouteDiagram, RoutePoint
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -86,7 +86,7 @@ class NumberField(Vertical):
             self.show_error("")
             return None
         try:
-            number = parse_number(text, self._label.lower())
+            number = parse_number(text, field_name(self._label))
         except InputError as exc:
             self.show_error(str(exc))
             return None
@@ -168,7 +168,7 @@ class PointList(Vertical):
             text = row.get(column.key, "")
             if column.kind == "length":
                 out[column.key] = parse(text, Kind.LENGTH, default_unit="m",
-                                        what=column.label.lower()).to("m")
+                                        what=field_name(column.label)).to("m")
             else:
                 out[column.key] = text.strip()
         return out
@@ -201,7 +201,7 @@ class PointList(Vertical):
             return False
         first = self.columns[0]
         if first.kind == "text" and not row[first.key].strip():
-            self._say(f"{first.label.lower()}: type one")
+            self._say(f"{field_name(first.label)}: type one")
             return False
         if self._editing is not None and self._editing < len(self.rows):
             self.rows[self._editing] = row

@@ -12,6 +12,15 @@ from fieldkit.calc.units import InputError, Kind, Value, parse
 QUANTITY_CHARS = r"[0-9A-Za-z .,+\-\u2212\u00b5\u03bc/%']*"
 
 
+def field_name(label: str) -> str:
+    """A field's label as a problem message names it: the first word in lower case unless it
+    is an abbreviation, so "Level A" reads "level A" and "OTDR dist" stays "OTDR dist"."""
+    first, _, rest = label.partition(" ")
+    if not (len(first) > 1 and first.isupper()):
+        first = first[:1].lower() + first[1:]
+    return f"{first} {rest}" if rest else first
+
+
 class QuantityField(Vertical):
     """Label, input and an error line. ``value()`` parses what is typed or raises InputError."""
 
@@ -80,7 +89,7 @@ class QuantityField(Vertical):
                 self._input.value,
                 self._expect,
                 default_unit=self._default_unit,
-                what=self._label.lower(),
+                what=field_name(self._label),
             )
         except InputError as exc:
             self.show_error(str(exc))
