@@ -165,6 +165,12 @@ async def test_bad_reading_and_missing_reference_keep_the_text(
         await pilot.press(*"50 uW", "enter")  # ITU-R V.574: 50 µW = -13.0103 dBm
         assert "5.81 dB" in str(message.render())  # -7.2 − (-13.0103) = 5.8103 dB
         assert reading.value == ""
+        # A reference the field cannot read is not used for readings.
+        screen.query_one("#reference", Input).value = "-7.2 dbx"
+        await pilot.pause()
+        reading.focus()
+        await pilot.press(*"-8", "enter")
+        assert "Set the reference" in str(message.render()) and reading.value == "-8"
         # Typical single-mode source -7 dBm (common practice): -13 dBm is 6.0 dB below it.
         screen.query_one("#reference", Input).value = "-13"
         await pilot.pause()

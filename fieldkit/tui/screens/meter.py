@@ -388,7 +388,11 @@ class MeterScreen(Screen[None]):
         try:
             level = ref.level_dbm(text, "reference")
         except InputError as exc:
+            # No reading is taken against a reference the field no longer shows.
             self._show_error("reference", str(exc))
+            self._refs.pop(key, None)
+            self._show_reference_note()
+            self._show_summary()
             return
         self._show_error("reference", "")
         current = self._refs.get(key)
