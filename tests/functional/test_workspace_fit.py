@@ -63,3 +63,15 @@ async def test_problem_names_the_field_as_labelled(tmp_path: Path, mode, field_i
         await pilot.pause()
         error = app.screen.query_one(f"#{field_id}-field .field-error", Static)
         assert str(error.render()).startswith(f"{named}: unknown unit 'parsec'")
+
+
+@pytest.mark.parametrize("size", SIZES)
+@pytest.mark.parametrize("mode", ["convert", "budget", "fault", "jobs"])
+async def test_every_visible_hint_fits_its_field(tmp_path: Path, size, mode) -> None:
+    app = _app(tmp_path, mode)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        shown = [i for i in app.screen.query(Input) if i.content_region.width and i.placeholder]
+        assert shown
+        for field in shown:
+            assert len(field.placeholder) <= field.content_region.width, field.id

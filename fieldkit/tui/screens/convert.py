@@ -36,7 +36,7 @@ class ConvertScreen(Screen[None]):
                             "Value",
                             expect=None,
                             field_id="value",
-                            placeholder="-7.5 dBm, 250 µW, 0.35 dB/km, 1.2 kft",
+                            placeholder="-7.5 dBm, 250 µW, 1 kft",
                             tooltip="A value with its unit: a level or power, a loss in dB, "
                             "an attenuation per length, a length, a wavelength or a frequency",
                         )
@@ -121,7 +121,8 @@ class ConvertScreen(Screen[None]):
     def _show_value(self) -> None:
         value = self._field("value").value_or_none()
         if value is None:
-            self._out("value-out", "Type a value and its unit.")
+            self._out("value-out", "Type a value and its unit: dBm, mW, µW, dB, dB/km, km, ft, "
+                      "nm or THz.")
             return
         rows = [
             (format_number(number), display_unit(unit)) for unit, number in related_values(value)
