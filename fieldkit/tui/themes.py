@@ -20,7 +20,9 @@ SUNLIGHT = Theme(
     success="#006400",
     foreground="#000000",
     background="#FFFFFF",
-    surface="#FFFFFF",
+    # Buttons, inputs and lists sit on a light grey block (16:1 for black text), so a
+    # compact button still looks pressable on the white background.
+    surface="#E4E4E4",
     panel="#E8E8E8",
     dark=False,
     luminosity_spread=0.05,

@@ -104,3 +104,23 @@ async def test_sunlight_colour_names_in_job_text_stay_readable(tmp_path: Path) -
         # red and amber differ by more than a shade: at least 50 apart in the red or green channel
         red, amber = shown["red"], shown["yellow"]
         assert max(abs(red[0] - amber[0]), abs(red[1] - amber[1])) >= 50
+
+
+@pytest.mark.parametrize("size", SIZES)
+@pytest.mark.parametrize(("mode", "button_id"), [("budget", "remove"), ("jobs", "jobs-status")])
+async def test_sunlight_buttons_look_like_buttons(tmp_path: Path, size, mode, button_id) -> None:
+    # Compact buttons sat on the white background with no block of their own, so "Remove" or
+    # "All jobs" read as plain bold words; now they keep a grey block and readable text.
+    from textual.widgets import Button
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode=mode)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+t")
+        await pilot.pause()
+        button = app.screen.query_one(f"#{button_id}", Button)
+        fg, bg = _colours(button)
+        screen_bg = tuple(app.screen.rich_style.bgcolor.triplet)
+        assert bg != screen_bg
+        assert contrast(bg, screen_bg) >= 1.2  # a visible block, not a line drawing
+        assert contrast(fg, bg) >= 4.5  # WCAG 2.1 SC 1.4.3 (AA)
