@@ -102,7 +102,7 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
         summary = str(screen.query_one("#meter-summary", Static).render())
         assert "1310 nm ≤2.00: 144/144, 143 pass, 0 fail, 1 ref?" in summary
         assert "1550 nm ≤2.00: 144/144, 143 pass, 1 fail" in summary
-        assert "worst F100 3.50" in summary
+        assert "worst fibre 100 3.50" in summary
 
     job = store.load(job_id)
     link = job.link(link_id)
@@ -210,7 +210,7 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
         # first line and the fibre column 7 cells wide, so (10, 9) is fibre 9 at 1310 nm.
         await pilot.click("#readings", offset=(10, 9))
         await pilot.pause()
-        assert "F9 1310" in str(screen.query_one("#entry-where").render())
+        assert "fibre 9 1310" in str(screen.query_one("#entry-where").render())
         assert screen.focused is screen.query_one("#reading")
         await pilot.press(*"-8.5", "enter")
         await _settle(pilot, screen)

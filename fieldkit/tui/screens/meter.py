@@ -21,13 +21,14 @@ from textual.binding import Binding
 from textual.containers import Grid, Horizontal, Vertical
 from textual.screen import Screen
 from textual.timer import Timer
-from textual.widgets import Collapsible, DataTable, Footer, Header, Input, Label, Static
+from textual.widgets import Collapsible, DataTable, Footer, Input, Label, Static
 
 from fieldkit import safety
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError, Kind, parse, parse_number
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.readings_grid import EntryInput, GridColumn, ReadingsGrid
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 KEYS_HINT = "Enter: next fibre · ↑↓ PgUp PgDn: fibres · F7/F8: columns · F9: clear · click a cell"
 MAX_FIBRES = 6912  # the largest ribbon cables made; anything above is a typing mistake
@@ -121,7 +122,7 @@ class MeterScreen(Screen[None]):
 
     # -- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
-        yield Header()
+        yield WorkspaceBar()
         with Vertical(id="meter-body"):
             with Grid(id="meter-setup"):
                 yield from self._field("Method", "method", "one-cord",
@@ -163,7 +164,7 @@ class MeterScreen(Screen[None]):
             with Horizontal(id="meter-main"):
                 yield ReadingsGrid(id="readings")
                 yield Static("", id="meter-summary")
-        yield Footer()
+        yield Footer(compact=True)
 
     def _field(self, label: str, field_id: str, value: str, tooltip: str) -> ComposeResult:
         with Vertical(classes="meter-field", id=f"{field_id}-box"):
@@ -557,7 +558,7 @@ class MeterScreen(Screen[None]):
 
     @staticmethod
     def _verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict) -> str:
-        head = f"F{fibre} {column.heading}: {verdict.loss_db:.2f} dB"
+        head = f"fibre {fibre} {column.heading}: {verdict.loss_db:.2f} dB"
         if verdict.status is ref.Status.REFERENCE_PROBLEM:
             return f"{head} — negative: a reference problem, not a good fibre. Clean, re-reference."
         if verdict.margin_db is None:
@@ -576,7 +577,7 @@ class MeterScreen(Screen[None]):
     def _show_entry_where(self) -> None:
         column = self.active_column
         cell = self._cells.get((self._fibre, column.wavelength_nm, column.direction or "A->B"))
-        self.query_one("#entry-where", Label).update(f"F{self._fibre} {column.heading}",
+        self.query_one("#entry-where", Label).update(f"fibre {self._fibre} {column.heading}",
                                                     layout=False)
         reading = self.query_one("#reading", Input)
         reading.placeholder = (f"now {cell.reading_dbm:.2f} dBm; type to replace" if cell
@@ -611,7 +612,7 @@ class MeterScreen(Screen[None]):
             return
         self._refresh_cell(self._fibre, column.wavelength_nm, direction)
         self._queue(("remove", self._fibre, column.wavelength_nm, direction))
-        self._say(f"F{self._fibre} {column.heading}: reading removed")
+        self._say(f"fibre {self._fibre} {column.heading}: reading removed")
         self._show_entry_where()
         self._show_summary()
 
@@ -672,7 +673,7 @@ class MeterScreen(Screen[None]):
             if s.reference_problems:
                 counts += f", {s.reference_problems} ref?"
             lines.append(f"{w:g} nm {limit_words}: {s.fibres}/{self._fibres}, {counts}")
-            lines.append("  worst " + ", ".join(f"F{f} {loss:.2f}" for f, loss in s.worst))
+            lines.append("  worst " + ", ".join(f"fibre {f} {loss:.2f}" for f, loss in s.worst))
         now = _now()
         refs = []
         for (w, d), current in sorted(self._refs.items()):
