@@ -12,6 +12,7 @@ nominal central wavelengths from 1271 nm to 1611 nm every 20 nm.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from fieldkit.calc.units import InputError, format_number
@@ -40,12 +41,26 @@ def wavelength_nm_to_thz(wavelength_nm: float) -> float:
 
     .. math:: f = c / \\lambda
     """
-    return SPEED_OF_LIGHT_M_PER_S / (_positive(wavelength_nm, "wavelength") * 1e-9) / 1e12
+    nm = _positive(wavelength_nm, "wavelength")
+    return _in_range(lambda: SPEED_OF_LIGHT_M_PER_S / (nm * 1e-9) / 1e12, nm, "wavelength", "nm")
 
 
 def thz_to_wavelength_nm(frequency_thz: float) -> float:
     """Vacuum wavelength in nm of an optical frequency in THz: λ = c / f."""
-    return SPEED_OF_LIGHT_M_PER_S / (_positive(frequency_thz, "frequency") * 1e12) * 1e9
+    thz = _positive(frequency_thz, "frequency")
+    return _in_range(lambda: SPEED_OF_LIGHT_M_PER_S / (thz * 1e12) * 1e9, thz, "frequency", "THz")
+
+
+def _in_range(compute: Callable[[], float], x: float, what: str, unit: str) -> float:
+    """The result of ``compute``, refusing one that leaves floating-point range (a wavelength of
+    1e-320 nm has no frequency a float can hold)."""
+    try:
+        result = compute()
+    except ZeroDivisionError:
+        result = math.inf
+    if not math.isfinite(result) or result <= 0:
+        raise InputError(f"{what}: {format_number(x)} {unit} is too far out of range to convert")
+    return result
 
 
 @dataclass(frozen=True, slots=True)

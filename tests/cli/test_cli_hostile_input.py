@@ -83,6 +83,10 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         # the message used to print all 309 digits of 1e308
         (("convert", "1e308 nm", "--grid"), ("1.00000e+308 nm", "neither")),
         (("convert", "0 nm", "--to", "THz"), ("positive",)),
+        # c / (1e-320 nm) divided by zero once the nm became metres
+        (("convert", "1e-320 nm", "--grid"), ("out of range",)),
+        (("convert", "1e-320 nm", "--to", "THz"), ("out of range",)),
+        (("convert", "1e308 THz", "--to", "nm"), ("out of range",)),
         # an empty option (an unset shell variable) used to be dropped: all units, no check
         (("convert", "5 dBm", "--to", ""), ("no unit",)),
         (("budget", "--fiber", "OS2", "--length", "1km", "--application", ""),

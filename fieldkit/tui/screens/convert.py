@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
 from textual.screen import Screen
@@ -91,21 +93,29 @@ class ConvertScreen(Screen[None]):
     def on_mount(self) -> None:
         for field in self.query(QuantityField):
             field.show_error("")
-        self._show_value()
-        self._show_loss()
-        self._show_sum()
+        self._guarded(self._show_value, "value")
+        self._guarded(self._show_loss, "loss-db")
+        self._guarded(self._show_sum, "sum-b")
         self._show_grid()
 
     def on_input_changed(self, event: Input.Changed) -> None:
         target = event.input.id or ""
         if target == "value":
-            self._show_value()
+            self._guarded(self._show_value, "value")
         elif target.startswith("loss-"):
-            self._show_loss()
+            self._guarded(self._show_loss, "loss-db")
         elif target.startswith("sum-"):
-            self._show_sum()
+            self._guarded(self._show_sum, "sum-b")
         elif target == "grid-in":
             self._show_grid()
+
+    def _guarded(self, show: Callable[[], None], field_id: str) -> None:
+        """Run ``show``; a value that parses but cannot be converted (a level of 1e308 dBm has no
+        power in mW that fits a number) is explained beside the field instead of crashing."""
+        try:
+            show()
+        except InputError as exc:
+            self._field(field_id).show_error(str(exc))
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         # Enter moves on, as on a meter's keypad: no reach for Tab with gloves on.

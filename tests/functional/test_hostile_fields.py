@@ -1,0 +1,77 @@
+"""Hostile values typed into the workspaces' fields: the app keeps running and says why.
+
+Each value is set as a user could type or paste it (a field's ``restrict`` pattern is honoured,
+so only what the keyboard can put there is tried).
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+from textual.widgets import Input, Static
+
+from fieldkit.tui.app import make_app
+
+SIZES = [(80, 24), (44, 22)]
+
+HOSTILE = [
+    "nan", "-inf", "1e400", "1e308 dBm", "-1e308 dB", "1e-320 nm", "-7,5", "1,234", "5 MW",
+    "0 mW", "9" * 400, "[bold]x[/",
+]
+
+
+def _typeable(field: Input, text: str) -> str | None:
+    if field.restrict and not re.fullmatch(field.restrict, text):
+        return None
+    return text[: field.max_length] if field.max_length else text
+
+
+@pytest.mark.parametrize("mode", ["convert", "budget", "fault", "jobs"])
+async def test_no_typed_value_stops_the_workspace(tmp_path: Path, mode: str) -> None:
+    # one size: the fields and their parsing do not change with the layout
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode=mode)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        fields = list(screen.query(Input))
+        assert fields, f"{mode} has no fields"
+        for field in fields:
+            for text in HOSTILE:
+                typed = _typeable(field, text)
+                if typed is None:
+                    continue
+                field.value = typed
+                await pilot.pause()
+                assert app.is_running and app.screen is screen, (field.id, text)
+                assert field.value == typed  # nothing typed is lost
+            field.value = ""
+            await pilot.pause()
+
+
+@pytest.mark.parametrize("size", SIZES)
+@pytest.mark.parametrize(
+    ("input_id", "text", "words"),
+    [
+        # 10^(1e308/10) mW does not fit in a float: refused beside the field, not a crash
+        ("value", "1e308 dBm", "too large"),
+        ("value", "4000 dBm", "too large"),
+        # c / 1e-320 nm has no frequency a float can hold
+        ("grid-in", "1e-320 nm", "out of range"),
+    ],
+)
+async def test_convert_explains_values_it_cannot_convert(tmp_path: Path, size: tuple[int, int],
+                                                         input_id: str, text: str,
+                                                         words: str) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        field = app.screen.query_one(f"#{input_id}", Input)
+        field.value = text
+        await pilot.pause()
+        container = app.screen.query_one(f"#{input_id}-field")
+        shown = " ".join(str(s.render()) for s in container.query(".field-error").results(Static))
+        shown += " ".join(str(s.render()) for s in app.screen.query(".result").results(Static))
+        assert words in shown, shown
+        assert field.value == text
