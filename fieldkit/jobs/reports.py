@@ -25,7 +25,14 @@ from datetime import UTC, datetime
 from typing import Any
 
 from fieldkit import safety
-from fieldkit.jobs.models import SCHEMA_VERSION, Job, Link, LossResult, result_in_doubt
+from fieldkit.jobs.models import (
+    FLAG_NEGATIVE_LOSS,
+    SCHEMA_VERSION,
+    Job,
+    Link,
+    LossResult,
+    result_in_doubt,
+)
 
 HANDOFF_FORMAT = "fieldkit-jobs-handoff"
 HANDOFF_VERSION = 1
@@ -56,7 +63,18 @@ def fmt_m(value: float | None) -> str:
     return f"{value:.1f}"
 
 
+def margin_db(result: LossResult) -> float | None:
+    """Limit minus loss; none for a result without a limit or with a negative loss (a bad
+    reference says nothing about the fibre's margin)."""
+    if result.limit_db is None or FLAG_NEGATIVE_LOSS in result.flags:
+        return None
+    return result.limit_db - result.loss_db
+
+
 def verdict(result: LossResult) -> str:
+    # A negative loss is a reference problem, never a good fibre (and never "no limit").
+    if FLAG_NEGATIVE_LOSS in result.flags:
+        return "reference problem"
     if result.passed is None:
         return "no limit"
     return "pass" if result.passed else "FAIL"
@@ -166,7 +184,7 @@ def _result_rows(link: Link, results: Iterable[LossResult]) -> Table:
                    "Margin dB", "Result", "Flags", "Method", "Ref", "By", "When"], [],
                   numeric={0, 1, 3, 4, 5, 6}, nowrap={2})
     for r in results:
-        margin = None if r.limit_db is None else r.limit_db - r.loss_db
+        margin = margin_db(r)
         doubt = result_in_doubt(link, r)
         flags = list(r.flags)
         if doubt and "reference-in-doubt" not in flags:
@@ -206,7 +224,7 @@ def build_report(job: Job) -> Report:
         table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Limit dB",
                        "Margin dB", "Flags"], [], numeric={1, 2, 4, 5, 6}, nowrap={3})
         for link, r in failed:
-            margin = None if r.limit_db is None else r.limit_db - r.loss_db
+            margin = margin_db(r)
             table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
                                fmt_db(r.loss_db), fmt_db(r.limit_db), fmt_db(margin),
                                ", ".join(r.flags)])
@@ -456,7 +474,7 @@ def to_csv(job: Job) -> str:
             flags = list(r.flags)
             if result_in_doubt(link, r) and "reference-in-doubt" not in flags:
                 flags.append("reference-in-doubt")
-            margin = None if r.limit_db is None else r.limit_db - r.loss_db
+            margin = margin_db(r)
             writer.writerow([
                 _text_cell(job.name), job.id, _text_cell(link.label), r.fibre,
                 fmt_nm(r.wavelength_nm), r.direction, fmt_db(r.reading_dbm), fmt_db(r.loss_db),

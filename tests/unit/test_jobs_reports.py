@@ -131,3 +131,18 @@ def test_handoff_holds_every_job_as_valid_json() -> None:
     data = json.loads(to_handoff([sample()]))
     assert data["format"] == "fieldkit-jobs-handoff"
     assert Job.model_validate(data["jobs"][0]) == sample()
+
+
+def test_a_negative_loss_is_reported_as_a_reference_problem_without_margin() -> None:
+    from fieldkit.jobs.models import FLAG_NEGATIVE_LOSS, LossResult
+    from fieldkit.jobs.reports import margin_db, verdict
+
+    # DESIGN §4: a negative loss means a bad reference, not a good fibre.
+    bad = LossResult(fibre=6, wavelength_nm=1550.0, direction="A->B", reading_dbm=-6.83,
+                     loss_db=-0.12, method="one-cord", limit_db=4.26, passed=None,
+                     flags=[FLAG_NEGATIVE_LOSS])
+    assert verdict(bad) == "reference problem"
+    assert margin_db(bad) is None
+    good = bad.model_copy(update={"loss_db": 2.41, "passed": True, "flags": []})
+    assert verdict(good) == "pass"
+    assert margin_db(good) == pytest.approx(4.26 - 2.41, abs=1e-12)
