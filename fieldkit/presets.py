@@ -288,7 +288,7 @@ class _EntryError(Exception):
 
 def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
     try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
+        data = tomllib.loads(path.read_text(encoding="utf-8-sig"))  # an editor's BOM is fine
     except OSError as exc:
         library.problems.append(f"{label}: cannot be read ({exc.strerror or exc})")
         return

@@ -58,8 +58,11 @@ def run(args: argparse.Namespace) -> int:
     from fieldkit import locations
     from fieldkit.presets import KINDS, load_presets
 
-    kinds = [_kind(args.kind)] if args.kind else list(KINDS)
-    if args.check:
+    # an empty KIND or --check (an unset shell variable) is refused, not read as "everything"
+    kinds = [_kind(args.kind)] if args.kind is not None else list(KINDS)
+    if args.check is not None:
+        if not args.check.strip():
+            raise CommandError("--check: empty; give a preset file (.toml)")
         return _check(Path(args.check), kinds, args.json)
     library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
     if args.json:
@@ -125,6 +128,8 @@ def _summary(kind: str, p: Any) -> str:
 def _check(path: Path, kinds: list[str], as_json: bool) -> int:
     from fieldkit.presets import load_file
 
+    if path.is_dir():
+        raise CommandError(f"{path}: is a folder; give one preset file (.toml)")
     if not path.is_file():
         raise CommandError(f"{path}: no such file")
     library = load_file(path)

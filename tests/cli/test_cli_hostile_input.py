@@ -80,6 +80,9 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (("locate", "--time", "1e308 s", "--ior", "1.468", "--json"), ("round-trip",)),
         (("jobs", "list", "--date", "2026-02-30"), ("date",)),
         (("jobs", "list", "--date", ""), ("not a date",)),
+        (("presets", ""), ("unknown preset kind",)),
+        (("presets", "--check", ""), ("--check", "empty")),
+        (("presets", "--check", "/"), ("is a folder",)),
         # the message used to print all 309 digits of 1e308
         (("convert", "1e308 nm", "--grid"), ("1.00000e+308 nm", "neither")),
         (("convert", "0 nm", "--to", "THz"), ("positive",)),
@@ -213,6 +216,15 @@ def test_a_deeply_nested_user_preset_file_is_a_problem_not_a_crash(
     assert result.returncode == 0, result.stderr
     check = run("presets", "--check", str(presets / "deep.toml"))
     assert_refused(check, "1 problem")
+
+
+def test_a_user_preset_file_with_a_byte_order_mark_loads(tmp_path: Path) -> None:
+    path = tmp_path / "mine.toml"
+    path.write_bytes(b"\xef\xbb\xbf" + b'[[connectors]]\nname = "site grade"\nloss_max_db = 0.5\n'
+                     b'source = "site specification"\n')
+    result = run("presets", "--check", str(path))
+    assert result.returncode == 0, result.stdout + result.stderr
+    assert "connectors: site grade" in result.stdout
 
 
 # -- jobs: ids, prefixes, hand-off files, exports --------------------------------------------
