@@ -54,6 +54,14 @@ class DaySummary:
                 "jobs": [j.as_dict() for j in self.jobs]}
 
 
+def counted(count: int, one: str, many: str | None = None) -> str:
+    """``count`` with the noun in the form that agrees: "1 failed result", "2 failed results".
+
+    ``many`` is the plural when it is not ``one`` + "s".
+    """
+    return f"{count} {one if count == 1 else (many or one + 's')}"
+
+
 def job_day(job: Job, day: date) -> JobDay:
     """Counts over the latest result of each fibre, wavelength and direction (see reports)."""
     latest = [(link, r) for link in job.links for r in latest_results(link)]
@@ -75,12 +83,12 @@ def job_day(job: Job, day: date) -> JobDay:
             entry.open_items.append(f"{link.label}: no results yet")
         n_failed = sum(1 for lk, _ in failed if lk is link)
         if n_failed:
-            entry.open_items.append(f"{link.label}: {n_failed} failed results to repair "
-                                    "and retest")
+            entry.open_items.append(f"{link.label}: {counted(n_failed, 'failed result')} to "
+                                    "repair and retest")
         n_doubt = sum(1 for lk, _ in doubt if lk is link)
         if n_doubt:
-            entry.open_items.append(f"{link.label}: {n_doubt} results against a reference "
-                                    "in doubt; retest")
+            entry.open_items.append(f"{link.label}: {counted(n_doubt, 'result')} against a "
+                                    "reference in doubt; retest")
         for fault in link.faults:
             entry.open_items.append(
                 f"{link.label}: fault located at {fmt_m(fault.route_distance_m)} m along the "

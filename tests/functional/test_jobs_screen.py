@@ -139,3 +139,45 @@ async def test_empty_store_says_so(tmp_path: Path) -> None:
         await pilot.pause()
         assert "Pick a job first" in _text(app.screen, "#job-note-error")
         assert app.screen.query_one("#job-note", Input).value == "nowhere"
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_footer_fits_and_job_actions_are_buttons(tmp_path: Path,
+                                                       size: tuple[int, int]) -> None:
+    from textual.widgets import Button, Footer
+    from textual.widgets._footer import FooterKey
+
+    store = _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        width, height = size
+        keys = {k.description: k.region for k in screen.query_one(Footer).query(FooterKey)}
+        # Find, Note and the app's own keys; each whole, inside the screen's width.
+        assert {"Find", "Note"} <= set(keys)
+        assert not {"Done/open", "Export", "End of day"} & set(keys)
+        for name, region in keys.items():
+            assert region.width > 0 and region.right <= width, name
+        await pilot.press(*"reservoir", "enter", "enter")
+        await pilot.pause()
+        # The job's actions sit right under its name, with their keys, whole and on screen.
+        for selector, label in (("#job-done", "Done ^O"), ("#job-export", "Export F8"),
+                                ("#job-today", "End of day F7")):
+            button = screen.query_one(selector, Button)
+            assert str(button.label) == label
+            region = button.region
+            assert region.width >= len(label) and region.right <= width, selector
+            assert 0 < region.y < height - 1, selector
+        await pilot.click("#job-done")
+        await pilot.pause()
+        assert str(screen.query_one("#job-done", Button).label) == "Reopen ^O"
+        await pilot.press("f8")  # the keys still work with the footer not showing them
+        await pilot.pause()
+        assert isinstance(app.screen, ExportDialog)
+        await pilot.press("escape")
+        await pilot.pause()
+        await pilot.click("#job-today")
+        await pilot.pause()
+        assert isinstance(app.screen, EndOfDayScreen)
+    assert store.load("de30000000000003").status == "done"

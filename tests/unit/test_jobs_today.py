@@ -36,3 +36,21 @@ def test_another_day_has_no_jobs(tmp_path: Path) -> None:
     store = JobStore(tmp_path / "jobs")
     store.create("Only today")
     assert day_summary(store, local_date(now()) - timedelta(days=3)).jobs == []
+
+
+def test_open_items_count_in_words_that_agree(tmp_path: Path) -> None:
+    from fieldkit.jobs.today import counted
+
+    assert counted(1, "failed result") == "1 failed result"
+    assert counted(2, "failed result") == "2 failed results"
+    assert counted(0, "open item") == "0 open items"
+    store = JobStore(tmp_path / "jobs")
+    for job in build(local_day_start(now())):
+        store.save(job)
+    summary = day_summary(store, local_date(now()))
+    # The demo feed repair has one failed fibre (fibre 5 at 1550 nm): one result, singular.
+    feed = next(j for j in summary.jobs if j.name == "North Reservoir feed repair")
+    assert "RES-N-FEED: 1 failed result to repair and retest" in feed.open_items
+    # The backbone has five results against the reference that drifted: plural.
+    items = [item for j in summary.jobs for item in j.open_items]
+    assert any(": 5 results against a reference in doubt; retest" in item for item in items)

@@ -38,6 +38,7 @@ from fieldkit.jobs.reports import (
     verdict,
 )
 from fieldkit.jobs.store import JobSummary, StoreError, filter_summaries, local_date
+from fieldkit.jobs.today import counted
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 #: How many matching jobs the list shows at once; typing in the filter narrows the rest.
@@ -76,6 +77,7 @@ class JobsScreen(Screen[None]):
             "toggle_done",
             "Done/open",
             id="jobs.done",
+            show=False,  # a button in the job detail carries it (the footer fits 44 columns)
             tooltip="Mark the job done, or open again",
         ),
         Binding(
@@ -83,6 +85,7 @@ class JobsScreen(Screen[None]):
             "export",
             "Export",
             id="jobs.export",
+            show=False,  # a button in the job detail carries it (the footer fits 44 columns)
             tooltip="Write the job report as CSV, Markdown, HTML or a JSON hand-off",
         ),
         Binding(
@@ -90,6 +93,7 @@ class JobsScreen(Screen[None]):
             "end_of_day",
             "End of day",
             id="jobs.today",
+            show=False,  # a button in the job detail carries it (the footer fits 44 columns)
             tooltip="Today's jobs, result counts, failures and open items",
         ),
         Binding(
@@ -155,6 +159,14 @@ class JobsScreen(Screen[None]):
                 yield OptionList(id="jobs-list", markup=False)
             with VerticalScroll(id="job-detail"):
                 yield Static("Pick a job on the list.", id="job-head")
+                # At hand without scrolling: on a phone terminal the footer has no room for them.
+                with Horizontal(id="job-actions"):
+                    yield Button("Done ^O", id="job-done", compact=True,
+                                 tooltip="Mark the job done, or open it again (Ctrl+O)")
+                    yield Button("Export F8", id="job-export", compact=True,
+                                 tooltip="Write the job report: CSV, Markdown, HTML, JSON")
+                    yield Button("End of day F7", id="job-today", compact=True,
+                                 tooltip="Today's jobs, counts, failures and open items")
                 yield Static("", id="job-summary")
                 yield Static("", id="job-failures")
                 yield Static("", id="job-links")
@@ -168,10 +180,6 @@ class JobsScreen(Screen[None]):
                     )
                     yield Button("Add note", id="job-note-add", compact=True)
                 yield Static("", id="job-note-error", classes="field-error")
-                with Horizontal(id="job-actions"):
-                    yield Button("Mark done", id="job-done", compact=True)
-                    yield Button("Export", id="job-export", compact=True)
-                    yield Button("End of day", id="job-today", compact=True)
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
@@ -255,7 +263,7 @@ class JobsScreen(Screen[None]):
         self.query_one("#job-links", Static).update(_links(job))
         self.query_one("#job-notes", Static).update(_notes(job))
         self.query_one("#job-done", Button).label = (
-            "Open again" if job.status == "done" else "Mark done"
+            "Reopen ^O" if job.status == "done" else "Done ^O"
         )
         read_only = bool(job.read_only)
         for wid in ("#job-note", "#job-note-add", "#job-done"):
@@ -381,7 +389,7 @@ def _prompt(s: JobSummary) -> str:
     mark = "✓" if s.status == "done" else "•"
     failed = f", {s.failed_count} failed" if s.failed_count else ""
     site = f"{s.site} · " if s.site else ""
-    return f"{mark} {s.name}\n  {site}{s.result_count} results{failed}"
+    return f"{mark} {s.name}\n  {site}{counted(s.result_count, 'result')}{failed}"
 
 
 def _head(job: Job) -> RenderableType:

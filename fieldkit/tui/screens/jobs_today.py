@@ -19,7 +19,7 @@ from textual.widgets.option_list import Option
 
 from fieldkit.jobs.models import now
 from fieldkit.jobs.store import StoreError, local_date
-from fieldkit.jobs.today import DaySummary, day_summary
+from fieldkit.jobs.today import DaySummary, counted, day_summary
 
 
 class EndOfDayScreen(ModalScreen[str | None]):
@@ -63,22 +63,22 @@ class EndOfDayScreen(ModalScreen[str | None]):
         t = summary.totals()
         self.query_one("#eod-title", Label).update(f"End of day {self._day.isoformat()}")
         totals = Text()
-        totals.append(f"{t['jobs']} jobs ({t['open_jobs']} open), {t['results_today']} "
-                      f"results today\n")
+        totals.append(f"{counted(t['jobs'], 'job')} ({t['open_jobs']} open), "
+                      f"{counted(t['results_today'], 'result')} today\n")
         totals.append(f"{t['passed']} pass", "green")
         totals.append(" · ")
         totals.append(f"{t['failed']} fail", "bold red" if t["failed"] else "")
         totals.append(f" · {t['no_limit']} no limit · ")
         totals.append(f"{t['in_doubt']} in doubt", "yellow" if t["in_doubt"] else "")
-        totals.append(f" · {t['open_items']} open items")
+        totals.append(f" · {counted(t['open_items'], 'open item')}")
         self.query_one("#eod-totals", Static).update(totals)
         jobs = self.query_one("#eod-jobs", OptionList)
         jobs.clear_options()
         for job in summary.jobs:
             mark = "✓" if job.status == "done" else "•"
             fail = f", {job.failed} FAIL" if job.failed else ""
-            jobs.add_option(Option(f"{mark} {job.name}: {job.results_today} results{fail}",
-                                   id=job.id))
+            results = counted(job.results_today, "result")
+            jobs.add_option(Option(f"{mark} {job.name}: {results}{fail}", id=job.id))
         detail = Text()
         if not summary.jobs:
             detail.append("No job was created or updated on this day.", "dim")
