@@ -8,6 +8,8 @@ INVISIBLE_LIGHT = (
     "Never look into a fibre end, a connector or an adapter, with or without a magnifier or "
     "microscope; check for light with a power meter, and cap connectors you are not using."
 )
+# The same caution in one line of a phone terminal (42 columns), where the full one has no room.
+INVISIBLE_LIGHT_SHORT = "Invisible light: never look into a fibre"
 FAULT_LOCATOR = (
     "A visual fault locator is a visible red laser, usually Class 2 or 3R (IEC 60825-1): do not "
     "look into its output or a lit fibre end, and do not point it at people."

@@ -100,8 +100,12 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
         assert keystrokes_beyond_digits == 288  # one Enter per reading, nothing else
 
         summary = str(screen.query_one("#meter-summary", Static).render())
-        assert "1310 nm ≤2.00: 144/144, 143 pass, 0 fail, 1 ref?" in summary
-        assert "1550 nm ≤2.00: 144/144, 143 pass, 1 fail" in summary
+        if size[0] >= 72:
+            assert "1310 nm ≤2.00: 144/144, 143 pass, 0 fail, 1 ref?" in summary
+            assert "1550 nm ≤2.00: 144/144, 143 pass, 1 fail" in summary
+        else:  # the same counts in 42 columns, so the lines do not wrap
+            assert "1310 ≤2.00 144/144: 143 pass 0 fail 1 ref?" in summary
+            assert "1550 nm ≤2.00: 144/144, 143 pass, 1 fail" in summary
         assert "worst fibre 100 3.50" in summary
 
     job = store.load(job_id)

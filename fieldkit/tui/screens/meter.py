@@ -31,6 +31,9 @@ from fieldkit.tui.widgets.readings_grid import EntryInput, GridColumn, ReadingsG
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 KEYS_HINT = "Enter: next fibre · ↑↓ PgUp PgDn: fibres · F7/F8: columns · F9: clear · click a cell"
+#: The same keys in one line of a phone terminal, where rows go to the grid.
+KEYS_HINT_NARROW = "Enter/↑↓ fibre · F7/F8 column · F9 clear"
+DIRECTION_WORDS = {"1": "A→B", "2": "both"}
 MAX_FIBRES = 6912  # the largest ribbon cables made; anything above is a typing mistake
 
 
@@ -38,6 +41,12 @@ def _now() -> datetime:
     from fieldkit.jobs.models import now
 
     return now()
+
+
+def counted(count: int, one: str) -> str:
+    from fieldkit.jobs.today import counted
+
+    return counted(count, one)
 
 
 @dataclass(slots=True)
@@ -70,6 +79,11 @@ class SaveOutcome:
     reference_ids: dict[tuple[float, str, float], str] = field(default_factory=dict)
     rechecks: list[tuple[str, ref.Drift, int]] = field(default_factory=list)
     saved: int = 0
+
+
+def _fit(width: int, *choices: str) -> str:
+    """The first of ``choices`` no wider than ``width`` (0: no limit); else the last."""
+    return next((c for c in choices if not width or len(c) <= width), choices[-1])
 
 
 class MeterScreen(Screen[None]):
@@ -119,6 +133,7 @@ class MeterScreen(Screen[None]):
         self._saving = False
         self._save_error: str | None = None
         self._saved_at: datetime | None = None
+        self._hint_shown = False
 
     # -- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -127,13 +142,15 @@ class MeterScreen(Screen[None]):
             with Grid(id="meter-setup"):
                 yield from self._field("Method", "method", "one-cord",
                                        "one-cord, two-cord or three-cord (TIA Method B, A or C)")
-                yield from self._field("λ nm", "wavelengths", "1310 1550",
+                yield from self._field("Wavelength", "wavelengths", "1310 1550",
                                        "Test wavelengths, e.g. 1310 1550 or 850 1300")
                 yield from self._field("Fibres", "fibres", "12", "Number of fibres in the cable")
-                yield from self._field("Dirs", "directions", "1",
-                                       "1: A->B only; 2: both directions (each its own reference)")
+                yield from self._field("Directions", "directions", "1",
+                                       "1: A->B only; 2: both directions (each its own reference)",
+                                       meaning=DIRECTION_WORDS["1"])
                 yield from self._field("Ref", "reference", "",
-                                       "Reference level of this column: dBm, or µW, nW, mW")
+                                       "Reference level of this column: dBm, or µW, nW, mW",
+                                       placeholder="dBm")
                 yield from self._field("Limit", "limit", "",
                                        "Largest loss allowed at this wavelength, dB; empty: "
                                        "from the link's budget, counting the method's end "
@@ -160,18 +177,22 @@ class MeterScreen(Screen[None]):
                                  check=self._reading_acceptable,
                                  tooltip="Type the reading and press Enter; Up/Down move "
                                  "between fibres, F7/F8 between columns")
-            yield Static(KEYS_HINT, id="entry-message", classes="field-note")
+            yield Static("", id="entry-message", classes="field-note")
             with Horizontal(id="meter-main"):
                 yield ReadingsGrid(id="readings")
                 yield Static("", id="meter-summary")
         yield Footer(compact=True)
 
-    def _field(self, label: str, field_id: str, value: str, tooltip: str) -> ComposeResult:
+    def _field(self, label: str, field_id: str, value: str, tooltip: str, *,
+               meaning: str | None = None, placeholder: str = "") -> ComposeResult:
         with Vertical(classes="meter-field", id=f"{field_id}-box"):
             with Horizontal():
                 yield Label(label, classes="meter-label")
                 yield Input(value=value, type="text", restrict=QUANTITY_CHARS, compact=True,
-                            id=field_id, tooltip=tooltip)
+                            id=field_id, tooltip=tooltip, placeholder=placeholder)
+                if meaning is not None:
+                    # What the number means, beside it: "1 A→B", "2 both".
+                    yield Label(meaning, classes="meter-meaning", id=f"{field_id}-meaning")
             yield Static("", classes="field-error", id=f"{field_id}-error")
 
     def on_mount(self) -> None:
@@ -181,7 +202,21 @@ class MeterScreen(Screen[None]):
         self._sync_column_fields()
         self._show_entry_where()
         self._show_summary()
+        self._show_hint()
         self.set_interval(30.0, self._show_summary)
+
+    @property
+    def narrow(self) -> bool:
+        return self.has_class("-narrow") or self.size.width < 72
+
+    def on_resize(self) -> None:
+        if self._hint_shown:
+            self._show_hint()
+
+    def _show_hint(self) -> None:
+        """The keys, in the entry line's message (until a reading or an error takes it)."""
+        self._say(KEYS_HINT_NARROW if self.narrow else KEYS_HINT)
+        self._hint_shown = True
 
     # -- the columns ------------------------------------------------------------------------
     @property
@@ -360,9 +395,11 @@ class MeterScreen(Screen[None]):
     def _directions_changed(self, text: str) -> None:
         value = text.strip()
         if value not in ("1", "2"):
-            self._show_error("directions", "dirs: 1 (A->B only) or 2 (both directions)")
+            self._show_error("directions", "directions: 1 (A->B only) or 2 (both directions)")
+            self.query_one("#directions-meaning", Label).update("?")
             return
         self._show_error("directions", "")
+        self.query_one("#directions-meaning", Label).update(DIRECTION_WORDS[value])
         directions = ["A->B"] if value == "1" else ["A->B", "B->A"]
         if directions != self._directions:
             active = self.active_column
@@ -461,7 +498,12 @@ class MeterScreen(Screen[None]):
         current = self._refs.get((column.wavelength_nm, column.direction or "A->B"))
         note = self.query_one("#reference-note", Static)
         if current is None:
-            note.update(f"Set the reference for {column.heading} (Ref), then type readings.")
+            # Setting a reference means handling live cords: the caution goes with the prompt.
+            note.update(f"Set the reference for {column.heading} (Ref), then type readings.\n"
+                        f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)"
+                        if not self.narrow else
+                        f"Set Ref {column.heading}, then type readings.\n"
+                        f"⚠ {safety.INVISIBLE_LIGHT_SHORT}")
             return
         source_dbm = None
         source_text = self.query_one("#source-level", Input).value
@@ -476,12 +518,14 @@ class MeterScreen(Screen[None]):
             launch_condition=self.query_one("#launch", Input).value)
         method = self._method
         budget = self._budget_limits.get(column.wavelength_nm)
-        line = f"{method.label}: {method.end_connections} of 2 end connections counted"
+        # The method's TIA letter is in the Method field's tooltip; a phone has one line here.
+        name = method.value if self.narrow else method.label
+        line = f"{name}: {method.end_connections} of 2 end connections counted"
         if budget and column.wavelength_nm not in self._typed_limits:
             left_out = 2 - method.end_connections
             line += f"; limit {budget[0]:.2f} dB from the budget"
             if left_out:
-                line += f" less {left_out} end connection(s)"
+                line += f" less {counted(left_out, 'end connection')}"
         lines = [line]
         if current.in_doubt:
             lines.append("This reference drifted at its recheck: set a new one and retest.")
@@ -492,6 +536,8 @@ class MeterScreen(Screen[None]):
     def _say(self, text: str | None, *, error: bool = False) -> None:
         """The entry line's message (fixed height: no layout pass per reading)."""
         message = self.query_one("#entry-message", Static)
+        if text is not None:
+            self._hint_shown = False
         if message.has_class("field-error") != error:
             message.set_class(error, "field-error")
         if text is not None:
@@ -548,7 +594,7 @@ class MeterScreen(Screen[None]):
         self._cells[(self._fibre, column.wavelength_nm, direction)] = cell
         self._refresh_cell(self._fibre, column.wavelength_nm, direction)
         verdict = ref.judge(cell.loss_db, self._limit_db(column.wavelength_nm))
-        self._say(self._verdict_words(self._fibre, column, verdict),
+        self._say(self._verdict_words(self._fibre, column, verdict, short=self.narrow),
                   error=verdict.status is ref.Status.REFERENCE_PROBLEM)
         self._queue(("put", self._fibre, column.wavelength_nm, direction, reading_dbm,
                      current.level_dbm, self._method, self._limit_db(column.wavelength_nm),
@@ -557,13 +603,19 @@ class MeterScreen(Screen[None]):
         self._summary_soon()
 
     @staticmethod
-    def _verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict) -> str:
+    def _verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict, *,
+                       short: bool = False) -> str:
+        """What the reading came to; ``short``: in one line of 42 columns (a phone terminal)."""
         head = f"fibre {fibre} {column.heading}: {verdict.loss_db:.2f} dB"
         if verdict.status is ref.Status.REFERENCE_PROBLEM:
+            if short:
+                return f"{head} negative: bad reference? Clean, re-reference."
             return f"{head} — negative: a reference problem, not a good fibre. Clean, re-reference."
         if verdict.margin_db is None:
             return f"{head} (no limit)"
         word = "pass" if verdict.status is ref.Status.PASS else "FAIL"
+        if short:
+            return f"{head} {word} {verdict.margin_db:+.2f}"
         return f"{head} {word}, margin {verdict.margin_db:+.2f} dB"
 
     def _details(self) -> dict[str, Any]:
@@ -661,6 +713,9 @@ class MeterScreen(Screen[None]):
                     if fibre <= self._fibres and w in self._wavelengths and d in self._directions]
         limits = {w: self._limit_db(w) for w in self._wavelengths}
         lines: list[str] = []
+        # On a phone terminal the summary has five rows: each line fits the width (shorter
+        # words, fewer worst fibres) rather than wrapping, so both wavelengths' worst show.
+        width = 42 if self.narrow else 0
         summaries = {s.wavelength_nm: s for s in ref.summarise(readings, limits, worst_count=3)}
         for w in self._wavelengths:
             s = summaries.get(w)
@@ -672,8 +727,18 @@ class MeterScreen(Screen[None]):
             counts = f"{s.passed} pass, {s.failed} fail"
             if s.reference_problems:
                 counts += f", {s.reference_problems} ref?"
-            lines.append(f"{w:g} nm {limit_words}: {s.fibres}/{self._fibres}, {counts}")
-            lines.append("  worst " + ", ".join(f"fibre {f} {loss:.2f}" for f, loss in s.worst))
+            tally = f"{s.fibres}/{self._fibres}, {counts}"
+            lines.append(_fit(width, f"{w:g} nm {limit_words}: {tally}",
+                              f"{w:g} {limit_words}: {tally}",
+                              f"{w:g} {limit_words} {s.fibres}/{self._fibres}: "
+                              + counts.replace(",", ""),
+                              f"{w:g}: {tally}"))
+            worst = [f"{f} {loss:.2f}" for f, loss in s.worst]
+            while len(worst) > 1 and width and len("  worst fibre " + ", ".join(worst)) > width:
+                worst.pop()
+            lines.append("  worst fibre " + ", ".join(worst))
+        # Whether the readings are safe in a job matters more than the reference list.
+        lines.append(self._save_words())
         now = _now()
         refs = []
         for (w, d), current in sorted(self._refs.items()):
@@ -685,12 +750,11 @@ class MeterScreen(Screen[None]):
             refs.append(f"  {w:g}{arrow} {current.level_dbm:.2f} dBm, {minutes} min{doubt}")
         lines.append("References:" if refs else "References: none set")
         lines += refs
-        lines.append(self._save_words())
         self.query_one("#meter-summary", Static).update("\n".join(lines), layout=False)
 
     def _save_words(self) -> str:
         if self._job_id is None:
-            return "Not saved: Ctrl+O picks a job"
+            return "Ctrl+O: choose a job to save into"
         pending = len(self._pending)
         if self._save_error:
             return f"NOT SAVED ({pending} waiting): {self._save_error}"
@@ -877,7 +941,8 @@ class MeterScreen(Screen[None]):
                 current.reference_id = reference_id
         for column, drift, doubted in outcome.rechecks:
             if not drift.within:
-                self.notify(f"{column}: {drift.message} ({doubted} result(s) marked in doubt)",
+                self.notify(f"{column}: {drift.message} "
+                            f"({counted(doubted, 'result')} marked in doubt)",
                             severity="warning", timeout=10)
         self._show_summary()
 

@@ -1,0 +1,182 @@
+"""The meter workspace used as a test technician uses it: a 24-fibre cable at two wavelengths,
+both directions, at 80x24 and on a phone terminal at 44x22."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import Input, Label, Static
+
+from fieldkit import safety
+from fieldkit.tui.app import make_app
+from fieldkit.tui.screens.meter import KEYS_HINT, KEYS_HINT_NARROW, MeterScreen
+from fieldkit.tui.widgets.readings_grid import GridColumn, ReadingsGrid
+
+SIZES = [(80, 24), (44, 22)]
+
+
+def _text(screen: MeterScreen, selector: str) -> str:
+    return str(screen.query_one(selector).render())
+
+
+def _app(dirs: dict[str, Path]):  # noqa: ANN202 - the app factory's app
+    return make_app(data_dir=dirs["data"], config_dir=dirs["config"], start_mode="meter")
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_setup_labels_say_what_they_mean(isolated_dirs: dict[str, Path],
+                                               size: tuple[int, int]) -> None:
+    async with _app(isolated_dirs).run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        labels = [str(label.render()) for label in screen.query(".meter-label").results(Label)]
+        assert labels[:6] == ["Method", "Wavelength", "Fibres", "Directions", "Ref 1310",
+                              "Limit"]
+        # The directions number says what it means beside it, whole.
+        meaning = screen.query_one("#directions-meaning", Label)
+        assert str(meaning.render()) == "A→B"
+        assert meaning.region.width >= len("both") and meaning.region.right <= size[0]
+        screen.query_one("#directions", Input).value = "2"
+        await pilot.pause()
+        assert str(meaning.render()) == "both"
+        assert [c.heading for c in screen.query_one(ReadingsGrid).columns_shown][:3] == [
+            "1310 A→B", "1310 B→A", "1310 avg"]
+        screen.query_one("#directions", Input).value = "3"
+        await pilot.pause()
+        assert str(meaning.render()) == "?"
+        error = screen.query_one("#directions-error", Static)
+        assert error.display and "1 (A->B only) or 2 (both directions)" in str(error.render())
+        # No job chosen yet is the normal start, not an error.
+        summary = _text(screen, "#meter-summary")
+        assert "Ctrl+O: choose a job to save into" in summary and "Not saved" not in summary
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_invisible_light_caution_beside_the_reference_prompt(
+        isolated_dirs: dict[str, Path], size: tuple[int, int]) -> None:
+    async with _app(isolated_dirs).run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        note = screen.query_one("#reference-note", Static)
+        lines = str(note.render()).splitlines()
+        # Shown (not folded away under Reference details) while no reference is set, and whole
+        # on its own line: the note's region is wide enough for it.
+        caution = next(line for line in lines if safety.INVISIBLE_LIGHT_SHORT in line)
+        assert len(caution) <= note.content_region.width
+        assert note.region.height >= 2 and note.region.bottom <= size[1] - 1
+        screen.query_one("#reference", Input).value = "-7.1"
+        await pilot.pause()
+        assert safety.INVISIBLE_LIGHT_SHORT not in str(note.render())
+
+
+async def test_phone_terminal_grid_has_the_rows(isolated_dirs: dict[str, Path]) -> None:
+    async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        grid = screen.query_one(ReadingsGrid)
+        message = screen.query_one("#entry-message", Static)
+        # The key hint is one line that fits: 44 columns less the padding.
+        assert str(message.render()) == KEYS_HINT_NARROW
+        assert message.region.height == 1 and len(KEYS_HINT_NARROW) <= message.region.width - 2
+        # Header + 6 fibres before a reference is set (it was header + 5), and one more row
+        # once the reference prompt gives way to a one-line method note.
+        assert grid.region.height >= 7
+        screen.query_one("#reference", Input).value = "-7.1"
+        await pilot.pause()
+        assert "one-cord: 2 of 2 end connections counted" in _text(screen, "#reference-note")
+        assert grid.region.height >= 8
+        # A verdict fits the one line: "fibre 1 1310 A→B: 0.40 dB (no limit)".
+        screen.query_one("#limit", Input).value = "1.5"
+        screen.query_one("#reading", Input).focus()
+        await pilot.press(*"-7.5", "enter")
+        await pilot.pause()
+        verdict = str(message.render())
+        assert verdict == "fibre 1 1310 A→B: 0.40 dB pass +1.10"  # 1.5 − (−7.1 − −7.5)
+        assert len(verdict) <= message.region.width - 2
+        # A negative loss is an error: two rows, so the advice is read whole.
+        await pilot.press(*"-6.9", "enter")
+        await pilot.pause()
+        assert message.has_class("field-error") and message.region.height == 2
+        assert "bad reference" in str(message.render())
+
+
+async def test_wide_hint_unchanged(isolated_dirs: dict[str, Path]) -> None:
+    async with _app(isolated_dirs).run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert _text(pilot.app.screen, "#entry-message") == KEYS_HINT
+
+
+async def test_every_hint_key_and_a_click_at_44_columns(isolated_dirs: dict[str, Path]) -> None:
+    async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        screen.query_one("#fibres", Input).value = "24"
+        screen.query_one("#directions", Input).value = "2"
+        await pilot.pause()
+        screen.query_one("#reference", Input).value = "-7.0"
+        await pilot.pause()
+        screen.query_one("#reading", Input).focus()
+        where = screen.query_one("#entry-where", Label)
+        await pilot.press(*"-7.3", "enter")  # Enter: next fibre
+        assert "fibre 2 1310 A→B" in str(where.render())
+        await pilot.press("pagedown")
+        assert "fibre 14 1310 A→B" in str(where.render())
+        await pilot.press("pageup", "down", "down", "up")
+        assert "fibre 3 1310 A→B" in str(where.render())
+        await pilot.press("up", "up")  # correct fibre 1: the new reading replaces the old
+        await pilot.press(*"-7.6", "enter")
+        cell = screen._cells[(1, 1310.0, "A->B")]
+        assert cell.loss_db == pytest.approx(0.6, abs=1e-9)  # -7.0 − (-7.6)
+        await pilot.press("up", "f9")  # F9 clears fibre 1
+        assert (1, 1310.0, "A->B") not in screen._cells
+        assert "reading removed" in _text(screen, "#entry-message")
+        await pilot.press("f8")  # next column: 1310 B→A, its own reference
+        assert "fibre 1 1310 B→A" in str(where.render())
+        assert str(screen.query_one("#reference-box Label", Label).render()) == "Ref 1310 ←"
+        assert screen.query_one("#reference", Input).value == ""
+        await pilot.press("f7")
+        assert "fibre 1 1310 A→B" in str(where.render())
+        # A click on a cell goes there: row 3 below the header is fibre 3; the fibre column is
+        # 7 cells wide and 1310 A→B the next 11, so x=20 is in 1310 B→A.
+        await pilot.click("#readings", offset=(20, 3))
+        await pilot.pause()
+        assert "fibre 3 1310 B→A" in str(where.render())
+        assert screen.focused is screen.query_one("#reading")
+        grid = screen.query_one(ReadingsGrid)
+        assert grid.cursor_coordinate.row == 2
+        assert grid.columns_shown[grid.cursor_coordinate.column - 1] == GridColumn(1310.0,
+                                                                                   "B->A")
+
+
+async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
+        isolated_dirs: dict[str, Path]) -> None:
+    async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        screen.query_one("#fibres", Input).value = "24"
+        await pilot.pause()
+        for wavelength_nm in (1310, 1550):
+            screen.query_one("#reference", Input).value = "-7.0"
+            await pilot.pause()
+            screen.query_one("#reading", Input).focus()
+            for fibre in range(1, 25):
+                # Losses 0.10 .. 2.40 dB; a negative one (fibre 24 at 1550) to count as ref?.
+                loss = -0.2 if (wavelength_nm, fibre) == (1550, 24) else fibre / 10
+                await pilot.press(*f"{-7.0 - loss:.2f}", "enter")
+            await pilot.pause(0.3)
+            assert wavelength_nm == 1550 or "fibre 1 1550 A→B" in _text(screen, "#entry-where")
+        summary = screen.query_one("#meter-summary", Static)
+        await pilot.pause(0.3)
+        lines = str(summary.render()).splitlines()
+        visible = lines[:summary.region.height]
+        # Every line fits 42 columns, so the five rows show both wavelengths' worst fibres.
+        assert all(len(line) <= 42 for line in visible), visible
+        assert visible[0].startswith("1310") and "24/24" in visible[0]
+        assert visible[1] == "  worst fibre 24 2.40, 23 2.30, 22 2.20"
+        assert visible[2].startswith("1550") and "1 ref?" in visible[2]
+        assert visible[3].startswith("  worst fibre 23 2.30")
+        assert "choose a job" in visible[4]
