@@ -40,7 +40,8 @@ def _send(app: object, *keys: str) -> None:
 
 
 async def _settle(pilot: object, screen: MeterScreen) -> None:
-    for _ in range(400):
+    # Up to a minute: a loaded CI machine saves slowly; a quiet one returns in well under 1 s.
+    for _ in range(3000):
         await pilot.pause(0.02)  # type: ignore[attr-defined]
         if not screen.unsaved and not screen.summary_pending:
             return
