@@ -111,9 +111,22 @@ def level_dbm(text: str, what: str = "level") -> float:
     Raises
     ------
     InputError
-        For text that is not a power (see :func:`fieldkit.calc.units.parse`).
+        For text that is not a power (see :func:`fieldkit.calc.units.parse`), or a level outside
+        what an optical power meter reads (:data:`METER_RANGE_DBM`): a wrong unit or a typo.
     """
-    return parse(text, Kind.POWER, default_unit="dBm", what=what).to("dBm")
+    level = parse(text, Kind.POWER, default_unit="dBm", what=what).to("dBm")
+    low, high = METER_RANGE_DBM
+    if not low <= level <= high:
+        raise InputError(
+            f"{what}: {level:.4g} dBm is outside what a power meter reads ({low:g} to "
+            f"+{high:g} dBm); check the unit"
+        )
+    return level
+
+
+#: Levels an optical power meter can read, widest case, in dBm (common practice: field meters
+#: span about −70 to +27 dBm; the bounds leave room for any meter and refuse only typos).
+METER_RANGE_DBM = (-100.0, 40.0)
 
 
 def loss_limit_db(text: str, what: str = "limit") -> float:

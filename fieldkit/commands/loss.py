@@ -57,7 +57,9 @@ def register(subparsers: Any) -> None:
 def run(args: argparse.Namespace) -> int:
     from fieldkit.calc import reference as ref
     from fieldkit.calc.units import Kind, parse
+    from fieldkit.commands.meter_record import check_text
 
+    check_text(args)
     method = ref.parse_method(args.method)
     reference_dbm = ref.level_dbm(args.reference, "reference")
     reference_back_dbm = (ref.level_dbm(args.reference_back, "reference back")

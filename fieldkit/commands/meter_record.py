@@ -77,7 +77,26 @@ def parse_fibre(text: str | None) -> int:
     number = parse_number(text, "fibre")
     if number != int(number) or number < 1:
         raise CommandError(f"fibre: {text} is not a fibre number (1, 2, 3 ...)")
+    if number > MAX_FIBRE_NUMBER:
+        raise CommandError(f"fibre: {text} is more fibres than any cable holds "
+                           f"(at most {MAX_FIBRE_NUMBER})")
     return int(number)
+
+
+#: The highest fibre number accepted: the largest cables made hold 6912 fibres (common practice).
+MAX_FIBRE_NUMBER = 6912
+
+
+def check_text(args: argparse.Namespace) -> None:
+    """Refuse control characters and non-UTF-8 bytes in the free-text options before any write."""
+    from fieldkit.commands.common import plain_text
+
+    for option in ("link", "by", "source", "meter", "launch"):
+        value = getattr(args, option, None)
+        if value:
+            plain_text(value, f"--{option}")
+    for cord in getattr(args, "cord", None) or ():
+        plain_text(cord, "--cord")
 
 
 def run_update(store: Any, job_id: str, change: Any) -> Any:

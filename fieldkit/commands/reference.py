@@ -48,7 +48,9 @@ def run(args: argparse.Namespace) -> int:
     from fieldkit.calc import reference as ref
     from fieldkit.calc.units import Kind, parse
     from fieldkit.commands import meter_record
+    from fieldkit.commands.meter_record import check_text
 
+    check_text(args)
     level_dbm = ref.level_dbm(args.level, "level")
     wavelength_nm = parse(args.wavelength, Kind.LENGTH, default_unit="nm",
                           what="wavelength").to("nm")
