@@ -180,3 +180,54 @@ async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
         assert visible[2].startswith("1550") and "1 ref?" in visible[2]
         assert visible[3].startswith("  worst fibre 23 2.30")
         assert "choose a job" in visible[4]
+
+
+async def test_job_budget_limit_and_replace_hint_fit_44_columns(
+        isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.models import BudgetItem, BudgetRecord, BudgetWavelength
+    from fieldkit.jobs.store import JobStore
+
+    store = JobStore(isolated_dirs["data"] / "jobs")
+    job = store.create("Fit-out", site="Unit 3")
+    link_id = "L1"
+
+    def add_link(j: object) -> None:
+        link = j.add_link("B1 to B2", fibre_count=12)  # type: ignore[attr-defined]
+        nonlocal link_id
+        link_id = link.id
+        # A saved budget: 4.60 dB at 1310 nm counting 4 mated pairs at 0.75 dB.
+        link.budget = BudgetRecord(
+            description={"connector_count": 4, "connector_loss_db": 0.75},
+            wavelengths=[BudgetWavelength(wavelength_nm=1310, loss_db=4.60, items=[
+                BudgetItem(name="fibre", loss_db=1.60),
+                BudgetItem(name="4 mated connector pairs", loss_db=3.00)])])
+
+    store.update(job.id, add_link)
+    async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        screen.attach(job.id, link_id)
+        await pilot.pause()
+        summary = _text(screen, "#meter-summary")
+        assert "Saving into B1 to B2" in summary and "saved -" not in summary
+        screen.query_one("#method", Input).value = "two-cord"
+        await pilot.pause()
+        # Two-cord keeps 1 of the 2 end connections: 4.60 − 0.75 = 3.85 dB.
+        limit = screen.query_one("#limit", Input)
+        assert limit.placeholder == "3.85 dB"
+        assert len(limit.placeholder) < limit.content_region.width
+        screen.query_one("#reference", Input).value = "-7.20"
+        await pilot.pause()
+        note = screen.query_one("#reference-note", Static)
+        lines = str(note.render()).splitlines()
+        assert lines == ["two-cord: 1 of 2 end connections counted",
+                         "limit 3.85 dB: budget less 1 connection"]
+        assert note.region.height == 2
+        assert all(len(line) <= note.content_region.width for line in lines)
+        reading = screen.query_one("#reading", Input)
+        reading.focus()
+        await pilot.press(*"-8.40", "enter", "up")
+        await pilot.pause()
+        assert reading.placeholder == "now -8.40 dBm"  # typing replaces it
+        assert len(reading.placeholder) < reading.content_region.width

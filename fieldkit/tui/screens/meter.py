@@ -212,6 +212,8 @@ class MeterScreen(Screen[None]):
     def on_resize(self) -> None:
         if self._hint_shown:
             self._show_hint()
+        self._show_limit_placeholder()
+        self._show_entry_where()
 
     def _show_hint(self) -> None:
         """The keys, in the entry line's message (until a reading or an error takes it)."""
@@ -469,8 +471,10 @@ class MeterScreen(Screen[None]):
 
     def _show_limit_placeholder(self) -> None:
         budget = self._budget_limits.get(self.active_column.wavelength_nm)
+        # The note above says the limit is the budget's; 44 columns leave 10 for the field.
         self.query_one("#limit", Input).placeholder = (
-            f"{budget[0]:.2f} budget" if budget else "dB")
+            "dB" if not budget else f"{budget[0]:.2f} dB" if self.narrow
+            else f"{budget[0]:.2f} budget")
 
     def _sync_column_fields(self, force: bool = False) -> None:
         """Show the active column's reference and its wavelength's limit in the fields.
@@ -523,13 +527,22 @@ class MeterScreen(Screen[None]):
         line = f"{name}: {method.end_connections} of 2 end connections counted"
         if budget and column.wavelength_nm not in self._typed_limits:
             left_out = 2 - method.end_connections
-            line += f"; limit {budget[0]:.2f} dB from the budget"
+            # On a phone terminal the limit goes on its own line (each fits 42 columns).
+            line += "\n" if self.narrow else "; "
+            line += f"limit {budget[0]:.2f} dB"
             if left_out:
-                line += f" less {counted(left_out, 'end connection')}"
-        lines = [line]
+                # "end" on a phone: the line above says which connections.
+                what = "connection" if self.narrow else "end connection"
+                line += f": budget less {counted(left_out, what)}"
+            else:
+                line += " from the budget"
+        # The note has two or three rows: a drifted reference and the warnings about this one
+        # come first, so they are never the part cut off.
+        lines = []
         if current.in_doubt:
             lines.append("This reference drifted at its recheck: set a new one and retest.")
         lines += [f"⚠ {w}" for w in warnings]
+        lines.append(line)
         note.update("\n".join(lines))
 
     # -- entering readings --------------------------------------------------------------
@@ -632,7 +645,8 @@ class MeterScreen(Screen[None]):
         self.query_one("#entry-where", Label).update(f"fibre {self._fibre} {column.heading}",
                                                     layout=False)
         reading = self.query_one("#reading", Input)
-        reading.placeholder = (f"now {cell.reading_dbm:.2f} dBm; type to replace" if cell
+        replace = "" if self.narrow else "; type to replace"  # 21 columns at 44
+        reading.placeholder = (f"now {cell.reading_dbm:.2f} dBm{replace}" if cell
                                else "reading, dBm")
 
     def action_move(self, step: int) -> None:
@@ -761,8 +775,9 @@ class MeterScreen(Screen[None]):
         where = f"Saving into {self._link_label}"
         if pending:
             return f"{where}: {pending} waiting"
-        stamp = self._saved_at.strftime("%H:%M:%S") if self._saved_at else "-"
-        return f"{where}: saved {stamp}"
+        if self._saved_at is None:
+            return where  # nothing new typed yet
+        return f"{where}: saved {self._saved_at.strftime('%H:%M:%S')}"
 
     # -- the job ------------------------------------------------------------------------
     def action_pick_job(self) -> None:
