@@ -231,3 +231,24 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
         await pilot.pause()
         assert reading.placeholder == "now -8.40 dBm"  # typing replaces it
         assert len(reading.placeholder) < reading.content_region.width
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_recheck_dialog_carries_the_caution(isolated_dirs: dict[str, Path],
+                                                  size: tuple[int, int]) -> None:
+    from fieldkit.tui.widgets.recheck_dialog import RecheckDialog
+
+    async with _app(isolated_dirs).run_test(size=size) as pilot:
+        await pilot.pause()
+        pilot.app.screen.query_one("#reference", Input).value = "-7.1"
+        await pilot.pause()
+        await pilot.press("ctrl+r")
+        await pilot.pause()
+        dialog = pilot.app.screen
+        assert isinstance(dialog, RecheckDialog)
+        caution = dialog.query_one("#rc-caution", Static)
+        assert safety.INVISIBLE_LIGHT_SHORT in str(caution.render())
+        region = caution.region
+        assert region.height >= 1 and region.right <= size[0] and region.bottom < size[1]
+        for button in ("#rc-ok", "#rc-cancel"):
+            assert dialog.query_one(button).region.bottom <= size[1], button

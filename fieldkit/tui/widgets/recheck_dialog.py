@@ -9,6 +9,7 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Static
 
+from fieldkit import safety
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
@@ -44,6 +45,10 @@ class RecheckDialog(ModalScreen[tuple[float, float] | None]):
         height: auto;
         margin: 1 0 0 0;
     }
+    RecheckDialog #rc-caution {
+        height: auto;
+        color: $warning;
+    }
     RecheckDialog #rc-buttons {
         height: auto;
         align-horizontal: right;
@@ -62,6 +67,8 @@ class RecheckDialog(ModalScreen[tuple[float, float] | None]):
         with Vertical(id="rc-dialog"):
             yield Label(f"Recheck the reference of {self._column} "
                         f"(set at {self._initial_dbm:.2f} dBm)")
+            # The reference cord goes back on the meter with the source on.
+            yield Static(f"⚠ {safety.INVISIBLE_LIGHT_SHORT}", id="rc-caution")
             with Horizontal():
                 yield Label("Level now", classes="rc-label")
                 yield Input(placeholder="dBm, or µW, nW", type="text", restrict=QUANTITY_CHARS,
