@@ -169,3 +169,15 @@ async def test_enter_moves_to_the_next_field(tmp_path: Path) -> None:
         await pilot.pause()
         assert app.focused.id == "sum-a"
         assert "−7 dBm" in text_of(app, "#loss-out")
+
+
+async def test_an_error_quoting_markup_characters_is_shown_as_text(tmp_path: Path) -> None:
+    from fieldkit.tui.widgets.quantity_field import QuantityField
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        field = app.screen.query_one("#value-field", QuantityField)
+        field.show_error("value: '[/b]' is not a unit [red]")
+        await pilot.pause()
+        assert "[/b]" in str(app.screen.query_one("#value-field .field-error", Static).render())

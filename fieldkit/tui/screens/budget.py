@@ -316,7 +316,7 @@ class BudgetScreen(Screen[None]):
                 yield Input(placeholder=placeholder, type="text",
                             restrict=EXTRA_CHARS if field_id == "item-extra" else QUANTITY_CHARS,
                             compact=True, id=field_id, tooltip=tooltip)
-            yield Static("", classes="field-error", id=f"{field_id}-error")
+            yield Static("", classes="field-error", id=f"{field_id}-error", markup=False)
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
@@ -374,7 +374,7 @@ class BudgetScreen(Screen[None]):
                 with Vertical(classes="col"):
                     with Vertical(id="result-panel", classes="panel") as panel:
                         panel.border_title = "Budget"
-                        yield Static("", id="budget-problem", classes="field-error")
+                        yield Static("", id="budget-problem", classes="field-error", markup=False)
                         yield Static("", id="budget-waiting", classes="field-note")
                         yield Static("", id="budget-out", classes="result", markup=False)
                     with Vertical(id="application-panel", classes="panel") as panel:

@@ -65,7 +65,7 @@ class NumberField(Vertical):
         self._label = label
         self._input = Input(value=value, placeholder=placeholder, type="text",
                             restrict=NUMBER_CHARS, compact=True, id=field_id, tooltip=tooltip)
-        self._error = Static("", classes="field-error")
+        self._error = Static("", classes="field-error", markup=False)
 
     def compose(self) -> ComposeResult:
         with Horizontal():
@@ -150,7 +150,7 @@ class PointList(Vertical):
                 yield Label(column.label, classes="pl-label")
                 yield Input(placeholder=column.placeholder, type="text", compact=True,
                             id=f"{self.id}-{column.key}")
-        yield Static("", classes="field-error")
+        yield Static("", classes="field-error", markup=False)
         with Horizontal(classes="pl-buttons"):
             yield Button("Add", id=f"{self.id}-add", compact=True, variant="primary")
             yield Button("Remove", id=f"{self.id}-remove", compact=True)

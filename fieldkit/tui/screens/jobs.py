@@ -179,7 +179,7 @@ class JobsScreen(Screen[None]):
                         compact=True,
                     )
                     yield Button("Add note", id="job-note-add", compact=True)
-                yield Static("", id="job-note-error", classes="field-error")
+                yield Static("", id="job-note-error", classes="field-error", markup=False)
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
@@ -546,7 +546,7 @@ class ExportDialog(ModalScreen[Path | None]):
             )
             yield Label("File", classes="field-note")
             yield Input(str(self._path("html")), id="export-path", type="text", compact=True)
-            yield Static("", id="export-error", classes="field-error")
+            yield Static("", id="export-error", classes="field-error", markup=False)
             with Horizontal(id="export-buttons"):
                 yield Button("Cancel", id="export-cancel", compact=True)
                 yield Button("Write", id="export-write", variant="primary", compact=True)

@@ -70,7 +70,7 @@ class QuantityField(Vertical):
             id=field_id,
             tooltip=tooltip,
         )
-        self._error = Static("", classes="field-error")
+        self._error = Static("", classes="field-error", markup=False)
 
     def compose(self) -> ComposeResult:
         with Horizontal():
