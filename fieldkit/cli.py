@@ -91,8 +91,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         # A file or folder the command could not read or write (read-only data folder, full
         # disk, a folder where a file was expected): name it in one line, never a traceback.
         where = f" {exc.filename}" if exc.filename else ""
-        print(f"fieldkit {args.command}: cannot use{where}: {exc.strerror or exc}",
-              file=sys.stderr)
+        print(f"fieldkit {args.command}: cannot use{where}: {exc.strerror or exc}", file=sys.stderr)
         return 2
 
 

@@ -50,10 +50,24 @@ DEFAULT_SPLICE_GRADE = "fusion"
 #: Without a count, a link has its two end connections (at the patch panels or outlets).
 DEFAULT_CONNECTORS = 2
 
-_TOP_KEYS = {"label", "segments", "connectors", "splices", "components", "margin", "margin_db",
-             "wavelengths", "wavelengths_nm", "application", "transceiver", "notes",
-             # written by record_description for the meter workspace; ignored on reading
-             "connector_count", "connector_loss_db", "length_m"}
+_TOP_KEYS = {
+    "label",
+    "segments",
+    "connectors",
+    "splices",
+    "components",
+    "margin",
+    "margin_db",
+    "wavelengths",
+    "wavelengths_nm",
+    "application",
+    "transceiver",
+    "notes",
+    # written by record_description for the meter workspace; ignored on reading
+    "connector_count",
+    "connector_loss_db",
+    "length_m",
+}
 _SPLITTER = re.compile(r"^\s*([12])\s*[x×X:]\s*(\d+)\s*$")
 
 
@@ -71,11 +85,13 @@ class ResolvedBudget:
         result = b.compute_budget(self.link)
         app = None if self.application is None else b.check_application(result, self.application)
         tx = None if self.transceiver is None else b.check_transceiver(result, self.transceiver)
-        return b.BudgetReport(result=result, application=app, transceiver=tx,
-                              extra={"label": self.link.label})
+        return b.BudgetReport(
+            result=result, application=app, transceiver=tx, extra={"label": self.link.label}
+        )
 
 
 # -- reading a file ----------------------------------------------------------------------------
+
 
 def load_spec_file(path: Path) -> dict[str, Any]:
     """The link description in a TOML or JSON file (by suffix; other names try both).
@@ -119,6 +135,7 @@ def _refuse_constant(name: str) -> Any:
 
 # -- value helpers -----------------------------------------------------------------------------
 
+
 def _text_or_number(value: Any, what: str) -> str:
     if isinstance(value, bool) or value is None:
         raise InputError(f"{what}: {value!r} is not a value")
@@ -150,8 +167,10 @@ def loss_db(value: Any, what: str = "loss") -> float:
     if db < 0:
         raise InputError(f"{what}: {format_number(db)} dB is negative; a loss is 0 or more")
     if db > b.MAX_LOSS_DB:
-        raise InputError(f"{what}: {format_number(db)} dB is more than fieldkit accepts "
-                         f"({format_number(b.MAX_LOSS_DB)} dB); check the unit")
+        raise InputError(
+            f"{what}: {format_number(db)} dB is more than fieldkit accepts "
+            f"({format_number(b.MAX_LOSS_DB)} dB); check the unit"
+        )
     return db
 
 
@@ -170,8 +189,9 @@ def attenuation_db_per_km(value: Any, what: str = "attenuation") -> float:
     if coef < 0:
         raise InputError(f"{what}: {format_number(coef)} dB/km is negative")
     if coef > 1000:
-        raise InputError(f"{what}: {format_number(coef)} dB/km is more than any fibre; check "
-                         "the unit")
+        raise InputError(
+            f"{what}: {format_number(coef)} dB/km is more than any fibre; check the unit"
+        )
     return coef
 
 
@@ -179,8 +199,9 @@ def wavelength_nm(value: Any, what: str = "wavelength") -> float:
     """A wavelength in nm (a bare number is nm)."""
     nm = parse(_text_or_number(value, what), Kind.LENGTH, default_unit="nm", what=what).to("nm")
     if not 200.0 <= nm <= 2000.0:
-        raise InputError(f"{what}: {format_number(nm)} nm is not an optical wavelength "
-                         "(200–2000 nm)")
+        raise InputError(
+            f"{what}: {format_number(nm)} nm is not an optical wavelength (200–2000 nm)"
+        )
     return nm
 
 
@@ -225,8 +246,9 @@ def _table(value: Any, what: str) -> Mapping[str, Any]:
 def _only(table: Mapping[str, Any], allowed: set[str], what: str) -> None:
     unknown = sorted(set(table) - allowed)
     if unknown:
-        raise InputError(f"{what}: unknown field(s) {', '.join(unknown)} "
-                         f"(known: {', '.join(sorted(allowed))})")
+        raise InputError(
+            f"{what}: unknown field(s) {', '.join(unknown)} (known: {', '.join(sorted(allowed))})"
+        )
 
 
 def _pick(table: Mapping[str, Any], text_key: str, number_key: str) -> tuple[str, Any] | None:
@@ -250,6 +272,7 @@ def _loss_field(table: Mapping[str, Any], what: str) -> float | None:
 
 
 # -- resolution --------------------------------------------------------------------------------
+
 
 def resolve(spec: Mapping[str, Any], library: PresetLibrary) -> ResolvedBudget:
     """The resolved link of a written description.
@@ -279,9 +302,15 @@ def resolve(spec: Mapping[str, Any], library: PresetLibrary) -> ResolvedBudget:
     label = spec.get("label", "")
     if not isinstance(label, str):
         raise InputError("link: 'label' must be text")
-    link = b.LinkDescription(segments=segments, connectors=connectors, splices=splices,
-                             components=components, margin_db=margin,
-                             wavelengths_nm=wavelengths, label=label.strip())
+    link = b.LinkDescription(
+        segments=segments,
+        connectors=connectors,
+        splices=splices,
+        components=components,
+        margin_db=margin,
+        wavelengths_nm=wavelengths,
+        label=label.strip(),
+    )
     application = None
     if spec.get("application"):
         application = application_limits(library, spec["application"], link)
@@ -299,7 +328,7 @@ def _segment(raw: Any, library: PresetLibrary, index: int) -> b.Segment:
     _only(table, {"fibre", "fiber", "attenuation", "length", "length_m", "label"}, what)
     picked = _pick(table, "length", "length_m")
     if picked is None:
-        raise InputError(f"{what}: no length; give length = \"500 m\" or \"12.4 km\"")
+        raise InputError(f'{what}: no length; give length = "500 m" or "12.4 km"')
     key, value = picked
     if key == "length_m":
         if isinstance(value, bool) or not isinstance(value, (int, float)):
@@ -327,18 +356,31 @@ def custom_fibre(att: Any, what: str = "attenuation") -> Fibre:
     """A fibre of typed attenuation: one coefficient for every wavelength asked (a wavelength of
     0 stands for "any"), or a table of wavelength = coefficient."""
     if isinstance(att, Mapping):
-        table = {wavelength_nm(k, f"{what} wavelength"): attenuation_db_per_km(v, what)
-                 for k, v in att.items()}
+        table = {
+            wavelength_nm(k, f"{what} wavelength"): attenuation_db_per_km(v, what)
+            for k, v in att.items()
+        }
         if not table:
             raise InputError(f"{what}: the table is empty")
-        text = ", ".join(f"{format_number(v)} dB/km at {format_number(k)} nm"
-                         for k, v in sorted(table.items()))
-        return Fibre(name="typed fibre", family=None, attenuation_max=table,
-                     attenuation_typical=table, source=f"typed attenuation: {text}")
+        text = ", ".join(
+            f"{format_number(v)} dB/km at {format_number(k)} nm" for k, v in sorted(table.items())
+        )
+        return Fibre(
+            name="typed fibre",
+            family=None,
+            attenuation_max=table,
+            attenuation_typical=table,
+            source=f"typed attenuation: {text}",
+        )
     coef = attenuation_db_per_km(att, what)
     return _AnyWavelengthFibre(
-        name="typed fibre", family=None, attenuation_max={}, attenuation_typical={},
-        coefficient_db_per_km=coef, source=f"typed attenuation {format_number(coef)} dB/km")
+        name="typed fibre",
+        family=None,
+        attenuation_max={},
+        attenuation_typical={},
+        coefficient_db_per_km=coef,
+        source=f"typed attenuation {format_number(coef)} dB/km",
+    )
 
 
 @dataclass(frozen=True)
@@ -360,8 +402,13 @@ class _AnyWavelengthFibre(Fibre):
 def _connectors(raw: Any, library: PresetLibrary) -> b.Connections | None:
     if raw is None:
         preset = library.find("connectors", DEFAULT_CONNECTOR_GRADE)
-        return b.Connections(DEFAULT_CONNECTORS, preset.loss_max_db, preset.loss_typical_db,
-                             preset.name, f"{preset.name}: {preset.source}")
+        return b.Connections(
+            DEFAULT_CONNECTORS,
+            preset.loss_max_db,
+            preset.loss_typical_db,
+            preset.name,
+            f"{preset.name}: {preset.source}",
+        )
     what = "connectors"
     table = _table(raw, what)
     _only(table, {"count", "grade", "loss", "loss_db"}, what)
@@ -375,8 +422,13 @@ def _connectors(raw: Any, library: PresetLibrary) -> b.Connections | None:
     if not isinstance(grade, str):
         raise InputError("connectors: grade must be a preset name")
     preset = library.find("connectors", grade)
-    return b.Connections(n, preset.loss_max_db, preset.loss_typical_db, preset.name,
-                         f"{preset.name}: {preset.source}")
+    return b.Connections(
+        n,
+        preset.loss_max_db,
+        preset.loss_typical_db,
+        preset.name,
+        f"{preset.name}: {preset.source}",
+    )
 
 
 def _splices(raw: Any, library: PresetLibrary) -> tuple[b.Splices, ...]:
@@ -397,15 +449,26 @@ def _splices(raw: Any, library: PresetLibrary) -> tuple[b.Splices, ...]:
             method = table.get("method", "fusion")
             if method not in ("fusion", "mechanical"):
                 raise InputError(f"{what}: method must be fusion or mechanical, not {method!r}")
-            out.append(b.Splices(n, typed, typed, method, "typed",
-                                 f"typed {format_number(typed)} dB per splice"))
+            out.append(
+                b.Splices(
+                    n, typed, typed, method, "typed", f"typed {format_number(typed)} dB per splice"
+                )
+            )
             continue
         grade = table.get("grade", table.get("method", DEFAULT_SPLICE_GRADE))
         if not isinstance(grade, str):
             raise InputError(f"{what}: grade must be a preset name")
         preset = library.find("splices", grade)
-        out.append(b.Splices(n, preset.loss_max_db, preset.loss_typical_db, preset.method,
-                             preset.name, f"{preset.name}: {preset.source}"))
+        out.append(
+            b.Splices(
+                n,
+                preset.loss_max_db,
+                preset.loss_typical_db,
+                preset.method,
+                preset.name,
+                f"{preset.name}: {preset.source}",
+            )
+        )
     return tuple(out)
 
 
@@ -424,14 +487,27 @@ def parse_splitter(text: Any, what: str = "splitter") -> tuple[int, int]:
     return inputs, outputs
 
 
-def splitter_component(library: PresetLibrary, split: str, *, preset_name: str | None = None,
-                       excess: Any = None, n: int = 1, what: str = "splitter") -> b.Component:
+def splitter_component(
+    library: PresetLibrary,
+    split: str,
+    *,
+    preset_name: str | None = None,
+    excess: Any = None,
+    n: int = 1,
+    what: str = "splitter",
+) -> b.Component:
     """A splitter from its split ("1x32"), with excess loss from the preset or typed."""
     inputs, outputs = parse_splitter(split, what)
     if excess is not None:
         ex = loss_db(excess, f"{what}: excess loss")
-        return b.splitter(outputs, inputs=inputs, excess_max_db=ex, excess_typical_db=ex,
-                          source="typed excess loss", count=n)
+        return b.splitter(
+            outputs,
+            inputs=inputs,
+            excess_max_db=ex,
+            excess_typical_db=ex,
+            source="typed excess loss",
+            count=n,
+        )
     name = preset_name or f"{inputs}xN splitter"
     preset: ComponentPreset = library.find("components", name)
     if preset.kind != "splitter":
@@ -440,11 +516,18 @@ def splitter_component(library: PresetLibrary, split: str, *, preset_name: str |
         raise InputError(f"{what}: preset '{preset.name}' is a {preset.inputs}xN splitter")
     if outputs not in preset.excess_max_db:
         have = ", ".join(f"{inputs}x{k}" for k in sorted(preset.excess_max_db))
-        raise InputError(f"{what}: preset '{preset.name}' has no excess loss for "
-                         f"{inputs}x{outputs} (it has {have}); give the excess loss")
-    return b.splitter(outputs, inputs=inputs, excess_max_db=preset.excess_max_db[outputs],
-                      excess_typical_db=preset.excess_typical_db.get(outputs),
-                      source=f"{preset.name}: {preset.source}", count=n)
+        raise InputError(
+            f"{what}: preset '{preset.name}' has no excess loss for "
+            f"{inputs}x{outputs} (it has {have}); give the excess loss"
+        )
+    return b.splitter(
+        outputs,
+        inputs=inputs,
+        excess_max_db=preset.excess_max_db[outputs],
+        excess_typical_db=preset.excess_typical_db.get(outputs),
+        source=f"{preset.name}: {preset.source}",
+        count=n,
+    )
 
 
 def _components(raw: Any, library: PresetLibrary) -> tuple[b.Component, ...]:
@@ -456,53 +539,88 @@ def _components(raw: Any, library: PresetLibrary) -> tuple[b.Component, ...]:
     for index, item in enumerate(raw, start=1):
         what = f"component {index}"
         table = _table(item, what)
-        _only(table, {"splitter", "preset", "kind", "name", "loss", "loss_db", "excess", "count"},
-              what)
+        _only(
+            table,
+            {"splitter", "preset", "kind", "name", "loss", "loss_db", "excess", "count"},
+            what,
+        )
         n = count(table.get("count", 1), f"{what}: count")
         if "splitter" in table:
-            out.append(splitter_component(library, table["splitter"],
-                                          preset_name=table.get("preset"),
-                                          excess=table.get("excess"), n=n, what=what))
+            out.append(
+                splitter_component(
+                    library,
+                    table["splitter"],
+                    preset_name=table.get("preset"),
+                    excess=table.get("excess"),
+                    n=n,
+                    what=what,
+                )
+            )
             continue
         typed = _loss_field(table, what)
         if "preset" in table and typed is None:
             preset: ComponentPreset = library.find("components", str(table["preset"]))
             if preset.kind == "splitter":
-                raise InputError(f"{what}: preset '{preset.name}' is a splitter; give "
-                                 "splitter = \"1xN\"")
+                raise InputError(
+                    f"{what}: preset '{preset.name}' is a splitter; give splitter = \"1xN\""
+                )
             assert preset.loss_max_db is not None
-            out.append(b.Component(name=preset.name, kind=preset.kind,
-                                   loss_max_db=preset.loss_max_db,
-                                   loss_typical_db=preset.loss_typical_db, loss_min_db=0.0,
-                                   count=n, source=f"{preset.name}: {preset.source}"))
+            out.append(
+                b.Component(
+                    name=preset.name,
+                    kind=preset.kind,
+                    loss_max_db=preset.loss_max_db,
+                    loss_typical_db=preset.loss_typical_db,
+                    loss_min_db=0.0,
+                    count=n,
+                    source=f"{preset.name}: {preset.source}",
+                )
+            )
             continue
         kind = table.get("kind", "other")
         if kind not in ("attenuator", "wdm", "filter", "other"):
-            raise InputError(f"{what}: kind must be attenuator, wdm, filter or other "
-                             f"(or give splitter = \"1xN\"), not {kind!r}")
+            raise InputError(
+                f"{what}: kind must be attenuator, wdm, filter or other "
+                f'(or give splitter = "1xN"), not {kind!r}'
+            )
         if typed is None:
-            raise InputError(f"{what}: give its loss (e.g. loss = \"0.5 dB\") or a preset")
+            raise InputError(f'{what}: give its loss (e.g. loss = "0.5 dB") or a preset')
         if kind == "attenuator":
             out.append(b.attenuator(typed, count=n))
             continue
         name = str(table.get("name") or table.get("preset") or kind)
-        out.append(b.Component(name=name, kind=kind, loss_max_db=typed, loss_typical_db=typed,
-                               loss_min_db=0.0, count=n,
-                               source=f"typed {format_number(typed)} dB"))
+        out.append(
+            b.Component(
+                name=name,
+                kind=kind,
+                loss_max_db=typed,
+                loss_typical_db=typed,
+                loss_min_db=0.0,
+                count=n,
+                source=f"typed {format_number(typed)} dB",
+            )
+        )
     return tuple(out)
 
 
-def application_limits(library: PresetLibrary, name: Any,
-                       link: b.LinkDescription) -> b.ApplicationLimits:
+def application_limits(
+    library: PresetLibrary, name: Any, link: b.LinkDescription
+) -> b.ApplicationLimits:
     """The limits of application ``name`` on the link's fibre types."""
     if not isinstance(name, str):
         raise InputError("application: must be a preset name")
     preset = library.find("applications", name)
     fibre_names = tuple(s.fibre.name for s in link.segments if s.fibre.family is not None)
     key, limit = preset.limit_for(fibre_names, link.family)
-    return b.ApplicationLimits(name=preset.name, fibre=key, loss_max_db=limit.loss_max_db,
-                               reach_m=limit.reach_m, wavelengths_nm=preset.wavelengths_nm,
-                               loss_min_db=limit.loss_min_db, source=preset.source)
+    return b.ApplicationLimits(
+        name=preset.name,
+        fibre=key,
+        loss_max_db=limit.loss_max_db,
+        reach_m=limit.reach_m,
+        wavelengths_nm=preset.wavelengths_nm,
+        loss_min_db=limit.loss_min_db,
+        source=preset.source,
+    )
 
 
 _TX_FIELDS = ("tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm", "rx_overload_dbm")
@@ -513,22 +631,37 @@ def level_dbm(value: Any, what: str) -> float:
     return parse(_text_or_number(value, what), Kind.POWER, default_unit="dBm", what=what).to("dBm")
 
 
-def transceiver_from_levels(tx_min: Any, tx_max: Any, rx_sensitivity: Any, rx_overload: Any,
-                            name: str = "typed transceiver",
-                            wavelength: Any = None) -> b.Transceiver:
+def transceiver_from_levels(
+    tx_min: Any,
+    tx_max: Any,
+    rx_sensitivity: Any,
+    rx_overload: Any,
+    name: str = "typed transceiver",
+    wavelength: Any = None,
+) -> b.Transceiver:
     """A transceiver from four typed levels (dBm)."""
     return b.Transceiver(
-        tx_min_dbm=level_dbm(tx_min, "Tx minimum"), tx_max_dbm=level_dbm(tx_max, "Tx maximum"),
+        tx_min_dbm=level_dbm(tx_min, "Tx minimum"),
+        tx_max_dbm=level_dbm(tx_max, "Tx maximum"),
         rx_sensitivity_dbm=level_dbm(rx_sensitivity, "Rx sensitivity"),
-        rx_overload_dbm=level_dbm(rx_overload, "Rx overload"), name=name,
+        rx_overload_dbm=level_dbm(rx_overload, "Rx overload"),
+        name=name,
         wavelength_nm=None if wavelength is None else wavelength_nm(wavelength),
-        source="typed levels")
+        source="typed levels",
+    )
 
 
 def transceiver_preset(library: PresetLibrary, name: str) -> b.Transceiver:
     p = library.find("transceivers", name)
-    return b.Transceiver(p.tx_min_dbm, p.tx_max_dbm, p.rx_sensitivity_dbm, p.rx_overload_dbm,
-                         name=p.name, wavelength_nm=p.wavelength_nm, source=p.source)
+    return b.Transceiver(
+        p.tx_min_dbm,
+        p.tx_max_dbm,
+        p.rx_sensitivity_dbm,
+        p.rx_overload_dbm,
+        name=p.name,
+        wavelength_nm=p.wavelength_nm,
+        source=p.source,
+    )
 
 
 def _transceiver(raw: Any, library: PresetLibrary) -> b.Transceiver:
@@ -540,13 +673,19 @@ def _transceiver(raw: Any, library: PresetLibrary) -> b.Transceiver:
     if missing:
         raise InputError(f"transceiver: missing {', '.join(missing)}")
     tx_min, tx_max, rx_sens, rx_over = (table[k] for k in _TX_FIELDS)
-    return transceiver_from_levels(tx_min, tx_max, rx_sens, rx_over,
-                                   name=str(table.get("name", "typed transceiver")),
-                                   wavelength=table.get("wavelength"))
+    return transceiver_from_levels(
+        tx_min,
+        tx_max,
+        rx_sens,
+        rx_over,
+        name=str(table.get("name", "typed transceiver")),
+        wavelength=table.get("wavelength"),
+    )
 
 
-def _add_check_wavelengths(link: b.LinkDescription, app: b.ApplicationLimits | None,
-                           tx: b.Transceiver | None) -> b.LinkDescription:
+def _add_check_wavelengths(
+    link: b.LinkDescription, app: b.ApplicationLimits | None, tx: b.Transceiver | None
+) -> b.LinkDescription:
     """Default wavelengths plus those the checks need, snapped to the fibre's own table."""
     wanted: list[float] = list(link.budget_wavelengths_nm())
     needs: list[float] = list(app.wavelengths_nm) if app else []
@@ -573,12 +712,15 @@ def spec_summary(spec: Mapping[str, Any]) -> str:
     parts: list[str] = []
     for seg in spec.get("segments", []) if isinstance(spec.get("segments"), Sequence) else []:
         if isinstance(seg, Mapping):
-            parts.append(f"{seg.get('fibre') or seg.get('fiber') or seg.get('attenuation')} "
-                         f"{seg.get('length') or seg.get('length_m')}")
+            parts.append(
+                f"{seg.get('fibre') or seg.get('fiber') or seg.get('attenuation')} "
+                f"{seg.get('length') or seg.get('length_m')}"
+            )
     return ", ".join(parts)
 
 
 # -- what a job keeps, and the text the CLI prints ---------------------------------------------
+
 
 def record_description(resolved: ResolvedBudget) -> dict[str, Any]:
     """The description a job keeps: the link as written, plus the resolved connector figures
@@ -598,15 +740,21 @@ def budget_record(resolved: ResolvedBudget, report: b.BudgetReport, by: str = ""
 
     rows = [
         BudgetWavelength(
-            wavelength_nm=w.wavelength_nm, loss_db=w.loss_db, typical_loss_db=w.typical_loss_db,
-            items=[BudgetItem(name=i.name, loss_db=i.loss_db, source=i.source) for i in w.items])
+            wavelength_nm=w.wavelength_nm,
+            loss_db=w.loss_db,
+            typical_loss_db=w.typical_loss_db,
+            items=[BudgetItem(name=i.name, loss_db=i.loss_db, source=i.source) for i in w.items],
+        )
         for w in report.result.wavelengths
     ]
     return BudgetRecord(
-        by=by, description=record_description(resolved), wavelengths=rows,
+        by=by,
+        description=record_description(resolved),
+        wavelengths=rows,
         margin_db=report.result.margin_db,
         application=None if report.application is None else report.application.as_dict(),
-        transceiver=None if report.transceiver is None else report.transceiver.as_dict())
+        transceiver=None if report.transceiver is None else report.transceiver.as_dict(),
+    )
 
 
 def _db(x: float | None) -> str:
@@ -624,13 +772,18 @@ def report_lines(report: b.BudgetReport) -> list[str]:
     label = report.extra.get("label")
     if label:
         lines.append(str(label))
-    length = (f"{format_number(r.length_m / 1000.0)} km" if r.length_m >= 1000
-              else f"{format_number(r.length_m)} m")
+    length = (
+        f"{format_number(r.length_m / 1000.0)} km"
+        if r.length_m >= 1000
+        else f"{format_number(r.length_m)} m"
+    )
     lines.append(f"Fibre length {length}; design margin {_db(r.margin_db)}")
     for w in r.wavelengths:
         lines.append("")
-        lines.append(f"At {format_number(w.wavelength_nm)} nm: maximum {_db(w.loss_db)}, "
-                     f"typical {_db(w.typical_loss_db)}, with margin {_db(w.loss_with_margin_db)}")
+        lines.append(
+            f"At {format_number(w.wavelength_nm)} nm: maximum {_db(w.loss_db)}, "
+            f"typical {_db(w.typical_loss_db)}, with margin {_db(w.loss_with_margin_db)}"
+        )
         for item in w.items:
             typ = "" if item.typical_loss_db is None else f" (typical {_db(item.typical_loss_db)})"
             lines.append(f"  {item.loss_db:7.2f} dB  {item.name}{typ}")
@@ -641,33 +794,45 @@ def report_lines(report: b.BudgetReport) -> list[str]:
     if app is not None:
         lines.append("")
         lines.append(f"Application {app.name} on {app.fibre}: {_pass(app.passed)}")
-        lines.append(f"  loss {_db(app.loss_db)} at {format_number(app.wavelength_nm)} nm, "
-                     f"limit {_db(app.loss_max_db)}, headroom {_db(app.loss_headroom_db)}: "
-                     f"{_pass(app.loss_pass)}")
+        lines.append(
+            f"  loss {_db(app.loss_db)} at {format_number(app.wavelength_nm)} nm, "
+            f"limit {_db(app.loss_max_db)}, headroom {_db(app.loss_headroom_db)}: "
+            f"{_pass(app.loss_pass)}"
+        )
         lines.append(f"  after the design margin headroom {_db(app.margin_headroom_db)}")
-        lines.append(f"  length {format_number(app.length_m)} m, reach "
-                     f"{format_number(app.reach_m)} m, headroom "
-                     f"{format_number(app.length_headroom_m)} m: {_pass(app.length_pass)}")
+        lines.append(
+            f"  length {format_number(app.length_m)} m, reach "
+            f"{format_number(app.reach_m)} m, headroom "
+            f"{format_number(app.length_headroom_m)} m: {_pass(app.length_pass)}"
+        )
         if app.loss_min_db is not None:
-            lines.append(f"  lowest plausible loss {_db(app.link_loss_min_db)}, class minimum "
-                         f"{_db(app.loss_min_db)}: {_pass(app.min_pass)}")
+            lines.append(
+                f"  lowest plausible loss {_db(app.link_loss_min_db)}, class minimum "
+                f"{_db(app.loss_min_db)}: {_pass(app.min_pass)}"
+            )
     tx = report.transceiver
     if tx is not None:
         lines.append("")
         where = "" if tx.wavelength_nm is None else f" at {format_number(tx.wavelength_nm)} nm"
         lines.append(f"Transceiver {tx.name}{where}: {_pass(tx.passed)}")
-        lines.append(f"  power budget {_db(tx.power_budget_db)}; margin after the maximum loss "
-                     f"{_db(tx.margin_db)} (needs {_db(tx.required_margin_db)}): "
-                     f"{_pass(tx.margin_pass)}")
+        lines.append(
+            f"  power budget {_db(tx.power_budget_db)}; margin after the maximum loss "
+            f"{_db(tx.margin_db)} (needs {_db(tx.required_margin_db)}): "
+            f"{_pass(tx.margin_pass)}"
+        )
         if tx.overload:
             if tx.attenuator_fits and tx.attenuator_db is not None:
-                lines.append(f"  receiver overload: add an attenuator of "
-                             f"{_db(tx.attenuator_db)} (fits from {_db(tx.attenuator_min_db)} "
-                             f"to {_db(tx.attenuator_max_db)})")
+                lines.append(
+                    f"  receiver overload: add an attenuator of "
+                    f"{_db(tx.attenuator_db)} (fits from {_db(tx.attenuator_min_db)} "
+                    f"to {_db(tx.attenuator_max_db)})"
+                )
             else:
-                lines.append(f"  receiver overload: needs at least {_db(tx.attenuator_min_db)}, "
-                             f"but more than {_db(tx.attenuator_max_db)} loses the margin; "
-                             "no attenuator fits")
+                lines.append(
+                    f"  receiver overload: needs at least {_db(tx.attenuator_min_db)}, "
+                    f"but more than {_db(tx.attenuator_max_db)} loses the margin; "
+                    "no attenuator fits"
+                )
         else:
             lines.append("  no attenuator needed")
     return lines

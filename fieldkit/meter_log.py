@@ -46,49 +46,89 @@ def find_link(job: Job, link: str, *, create: bool = False) -> Link:
     raise KeyError(f"job {job.name!r} has no link {link!r} (its links: {labels})")
 
 
-def current_reference(link: Link, wavelength_nm: float, at: datetime | None = None,
-                      ) -> ReferenceRecord | None:
+def current_reference(
+    link: Link,
+    wavelength_nm: float,
+    at: datetime | None = None,
+) -> ReferenceRecord | None:
     """The initial reference in use at ``wavelength_nm``: the latest one set at or before ``at``."""
-    candidates = [r for r in link.references
-                  if r.kind == "initial" and abs(r.wavelength_nm - wavelength_nm) <= 0.5
-                  and (at is None or r.at <= at)]
+    candidates = [
+        r
+        for r in link.references
+        if r.kind == "initial"
+        and abs(r.wavelength_nm - wavelength_nm) <= 0.5
+        and (at is None or r.at <= at)
+    ]
     return max(candidates, key=lambda r: r.at) if candidates else None
 
 
-def add_reference(link: Link, *, wavelength_nm: float, level_dbm: float, method: ref.Method,
-                  source_id: str = "", meter_id: str = "", cords: list[str] | None = None,
-                  launch_condition: str | None = None, by: str = "",
-                  at: datetime | None = None) -> ReferenceRecord:
+def add_reference(
+    link: Link,
+    *,
+    wavelength_nm: float,
+    level_dbm: float,
+    method: ref.Method,
+    source_id: str = "",
+    meter_id: str = "",
+    cords: list[str] | None = None,
+    launch_condition: str | None = None,
+    by: str = "",
+    at: datetime | None = None,
+) -> ReferenceRecord:
     """Append a new initial reference to ``link`` and return it."""
     record = ReferenceRecord(
-        wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method.value,
-        source_id=source_id, meter_id=meter_id, cords=list(cords or []),
-        launch_condition=(launch_condition or None), by=by, at=at or now(), kind="initial")
+        wavelength_nm=wavelength_nm,
+        level_dbm=level_dbm,
+        method=method.value,
+        source_id=source_id,
+        meter_id=meter_id,
+        cords=list(cords or []),
+        launch_condition=(launch_condition or None),
+        by=by,
+        at=at or now(),
+        kind="initial",
+    )
     link.references.append(record)
     return record
 
 
-def reuse_or_add_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
-                           method: ref.Method, **fields: object) -> ReferenceRecord:
+def reuse_or_add_reference(
+    link: Link, *, wavelength_nm: float, level_dbm: float, method: ref.Method, **fields: object
+) -> ReferenceRecord:
     """The latest initial reference at ``wavelength_nm`` with this level and method that is not
     in doubt; else a new one.
 
     Matching on the level (not just the latest at the wavelength) keeps the two directions of a
     bidirectional test, each with its own reference, from replacing each other.
     """
-    matching = [r for r in link.references
-                if r.kind == "initial" and abs(r.wavelength_nm - wavelength_nm) <= 0.5
-                and abs(r.level_dbm - level_dbm) < 1e-9 and r.method == method.value
-                and r.in_doubt_since is None]
+    matching = [
+        r
+        for r in link.references
+        if r.kind == "initial"
+        and abs(r.wavelength_nm - wavelength_nm) <= 0.5
+        and abs(r.level_dbm - level_dbm) < 1e-9
+        and r.method == method.value
+        and r.in_doubt_since is None
+    ]
     if matching:
         return max(matching, key=lambda r: r.at)
-    return add_reference(link, wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method,
-                         **fields)  # type: ignore[arg-type]
+    return add_reference(
+        link, wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method, **fields
+    )  # type: ignore[arg-type]
 
 
-def put_result(link: Link, *, fibre: int, wavelength_nm: float, direction: str,
-               reading_dbm: float, reference: ReferenceRecord, limit_db: float | None,
-               by: str = "", at: datetime | None = None) -> LossResult:
+def put_result(
+    link: Link,
+    *,
+    fibre: int,
+    wavelength_nm: float,
+    direction: str,
+    reading_dbm: float,
+    reference: ReferenceRecord,
+    limit_db: float | None,
+    by: str = "",
+    at: datetime | None = None,
+) -> LossResult:
     """Record (or correct) the result of one fibre, wavelength and direction against ``reference``.
 
     Loss = reference − reading; a negative loss is flagged and never passes; a result taken
@@ -103,13 +143,25 @@ def put_result(link: Link, *, fibre: int, wavelength_nm: float, direction: str,
     if reference.in_doubt_since is not None and stamp >= reference.in_doubt_since:
         flags.append(FLAG_REFERENCE_IN_DOUBT)
     result = LossResult(
-        fibre=fibre, wavelength_nm=wavelength_nm, direction=direction,  # type: ignore[arg-type]
-        reading_dbm=reading_dbm, loss_db=loss_db, reference_id=reference.id,
-        method=reference.method, limit_db=limit_db, passed=verdict.passed, flags=flags, by=by,
-        at=stamp)
+        fibre=fibre,
+        wavelength_nm=wavelength_nm,
+        direction=direction,  # type: ignore[arg-type]
+        reading_dbm=reading_dbm,
+        loss_db=loss_db,
+        reference_id=reference.id,
+        method=reference.method,
+        limit_db=limit_db,
+        passed=verdict.passed,
+        flags=flags,
+        by=by,
+        at=stamp,
+    )
     for index, old in enumerate(link.results):
-        if (old.fibre == fibre and old.direction == direction
-                and abs(old.wavelength_nm - wavelength_nm) <= 0.5):
+        if (
+            old.fibre == fibre
+            and old.direction == direction
+            and abs(old.wavelength_nm - wavelength_nm) <= 0.5
+        ):
             link.results[index] = result.model_copy(update={"id": old.id})
             return link.results[index]
     link.results.append(result)
@@ -119,9 +171,15 @@ def put_result(link: Link, *, fibre: int, wavelength_nm: float, direction: str,
 def remove_result(link: Link, *, fibre: int, wavelength_nm: float, direction: str) -> bool:
     """Remove the result of one cell (a reading cleared by the user); True if there was one."""
     before = len(link.results)
-    link.results[:] = [r for r in link.results
-                       if not (r.fibre == fibre and r.direction == direction
-                               and abs(r.wavelength_nm - wavelength_nm) <= 0.5)]
+    link.results[:] = [
+        r
+        for r in link.results
+        if not (
+            r.fibre == fibre
+            and r.direction == direction
+            and abs(r.wavelength_nm - wavelength_nm) <= 0.5
+        )
+    ]
     return len(link.results) != before
 
 
@@ -135,10 +193,16 @@ class RecheckOutcome:
     in_doubt_ids: list[str]
 
 
-def recheck_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
-                      tolerance_db: float | None = None, by: str = "",
-                      at: datetime | None = None, reference_id: str | None = None,
-                      ) -> RecheckOutcome:
+def recheck_reference(
+    link: Link,
+    *,
+    wavelength_nm: float,
+    level_dbm: float,
+    tolerance_db: float | None = None,
+    by: str = "",
+    at: datetime | None = None,
+    reference_id: str | None = None,
+) -> RecheckOutcome:
     """Record an end-of-session recheck of a reference: ``reference_id``, or else the latest
     initial reference at ``wavelength_nm``.
 
@@ -153,29 +217,46 @@ def recheck_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
         When the link has no reference at that wavelength.
     """
     stamp = at or now()
-    initial = (link.reference(reference_id) if reference_id
-               else current_reference(link, wavelength_nm, stamp))
+    initial = (
+        link.reference(reference_id)
+        if reference_id
+        else current_reference(link, wavelength_nm, stamp)
+    )
     if initial is None or initial.kind != "initial":
         what = f"reference {reference_id}" if reference_id else f"reference at {wavelength_nm:g} nm"
         raise KeyError(f"link {link.label!r} has no {what} to recheck")
     wavelength_nm = initial.wavelength_nm
-    tolerance = (ref.default_drift_tolerance_db(wavelength_nm) if tolerance_db is None
-                 else tolerance_db)
+    tolerance = (
+        ref.default_drift_tolerance_db(wavelength_nm) if tolerance_db is None else tolerance_db
+    )
     drift = ref.reference_drift(initial.level_dbm, level_dbm, tolerance)
     # A recheck record does not name its reference; it belongs to the initial one with the same
     # wavelength, source, meter and method set before it.
-    good_checks = [r.at for r in link.references
-                   if r.kind == "recheck" and abs(r.wavelength_nm - wavelength_nm) <= 0.5
-                   and (r.source_id, r.meter_id, r.method)
-                   == (initial.source_id, initial.meter_id, initial.method)
-                   and initial.at <= r.at <= stamp and r.in_doubt_since is None]
+    good_checks = [
+        r.at
+        for r in link.references
+        if r.kind == "recheck"
+        and abs(r.wavelength_nm - wavelength_nm) <= 0.5
+        and (r.source_id, r.meter_id, r.method)
+        == (initial.source_id, initial.meter_id, initial.method)
+        and initial.at <= r.at <= stamp
+        and r.in_doubt_since is None
+    ]
     last_good_at = max([initial.at, *good_checks])
     recheck = ReferenceRecord(
-        source_id=initial.source_id, meter_id=initial.meter_id,
+        source_id=initial.source_id,
+        meter_id=initial.meter_id,
         wavelength_nm=initial.wavelength_nm,
-        level_dbm=level_dbm, method=initial.method, cords=list(initial.cords),
-        launch_condition=initial.launch_condition, by=by, at=stamp, kind="recheck",
-        drift_db=drift.drift_db, in_doubt_since=None if drift.within else last_good_at)
+        level_dbm=level_dbm,
+        method=initial.method,
+        cords=list(initial.cords),
+        launch_condition=initial.launch_condition,
+        by=by,
+        at=stamp,
+        kind="recheck",
+        drift_db=drift.drift_db,
+        in_doubt_since=None if drift.within else last_good_at,
+    )
     link.references.append(recheck)
     doubted: list[str] = []
     if not drift.within:
@@ -188,8 +269,9 @@ def recheck_reference(link: Link, *, wavelength_nm: float, level_dbm: float,
     return RecheckOutcome(recheck, initial, drift, doubted)
 
 
-def budget_limit_db(link: Link, wavelength_nm: float,
-                    method: ref.Method) -> tuple[float, str] | None:
+def budget_limit_db(
+    link: Link, wavelength_nm: float, method: ref.Method
+) -> tuple[float, str] | None:
     """The limit for a ``method`` result from the budget saved on ``link``, with a description.
 
     The saved budget counts every mated pair including the two end connections; the method
@@ -209,15 +291,18 @@ def budget_limit_db(link: Link, wavelength_nm: float,
     if row is None:
         return None
     description = link.budget.description
-    per_connection_db = end_connection_loss_db(description, [
-        (item.name, item.loss_db) for item in row.items])
+    per_connection_db = end_connection_loss_db(
+        description, [(item.name, item.loss_db) for item in row.items]
+    )
     if per_connection_db is None:
         return None
     count = _connector_count(description)
     in_budget = 2 if count is None else min(2, count)
     limit_db = ref.method_limit_db(row.loss_db, per_connection_db, method, in_budget)
-    return limit_db, (f"budget {row.loss_db:.2f} dB, {method.end_connections} of 2 end "
-                      f"connections at {per_connection_db:.2f} dB ({method.value})")
+    return limit_db, (
+        f"budget {row.loss_db:.2f} dB, {method.end_connections} of 2 end "
+        f"connections at {per_connection_db:.2f} dB ({method.value})"
+    )
 
 
 def _connector_count(description: dict[str, object]) -> int | None:
@@ -232,8 +317,9 @@ def _connector_count(description: dict[str, object]) -> int | None:
     return None
 
 
-def end_connection_loss_db(description: dict[str, object],
-                           items: list[tuple[str, float]]) -> float | None:
+def end_connection_loss_db(
+    description: dict[str, object], items: list[tuple[str, float]]
+) -> float | None:
     """The loss of one mated pair in a budget: from its description or its connectors line."""
     value = description.get("connector_loss_db")
     if isinstance(value, int | float) and not isinstance(value, bool):

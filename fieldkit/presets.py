@@ -30,7 +30,13 @@ from fieldkit.calc.fibre import Fibre
 from fieldkit.calc.units import InputError, parse_number
 
 KINDS: tuple[str, ...] = (
-    "fibres", "connectors", "splices", "components", "applications", "transceivers", "cables",
+    "fibres",
+    "connectors",
+    "splices",
+    "components",
+    "applications",
+    "transceivers",
+    "cables",
 )
 
 COMPONENT_KINDS = ("splitter", "wdm", "filter", "attenuator", "other")
@@ -132,8 +138,9 @@ class ApplicationPreset:
         strictest = ApplicationFibreLimit(
             loss_max_db=min(v.loss_max_db for _, v in found),
             reach_m=min(v.reach_m for _, v in found),
-            loss_min_db=max((v.loss_min_db for _, v in found if v.loss_min_db is not None),
-                            default=None),
+            loss_min_db=max(
+                (v.loss_min_db for _, v in found if v.loss_min_db is not None), default=None
+            ),
         )
         return "+".join(dict.fromkeys(k for k, _ in found)), strictest
 
@@ -210,6 +217,7 @@ def _fold(name: str) -> str:
 
 # -- locating and caching ----------------------------------------------------------------------
 
+
 def shipped_dir() -> Path:
     """The folder of shipped presets: ``fieldkit/_presets`` in a wheel, else ``presets/`` beside
     the package (editable install)."""
@@ -250,8 +258,10 @@ def load_presets(config_dir: Path | None = None) -> PresetLibrary:
     shipped = shipped_dir()
     user = user_dir(Path(config_dir)) if config_dir is not None else None
     key = (
-        str(shipped), _fingerprint(shipped),
-        str(user) if user else "", _fingerprint(user) if user else (),
+        str(shipped),
+        _fingerprint(shipped),
+        str(user) if user else "",
+        _fingerprint(user) if user else (),
     )
     return _load_cached(key)
 
@@ -281,6 +291,7 @@ def load_file(path: Path) -> PresetLibrary:
 
 
 # -- parsing and validation --------------------------------------------------------------------
+
 
 class _EntryError(Exception):
     pass
@@ -348,8 +359,15 @@ def _number(value: Any, key: str) -> float:
     return number
 
 
-def _num(entry: Mapping[str, Any], key: str, *, required: bool = True, low: float | None = None,
-         high: float | None = None, positive: bool = False) -> float | None:
+def _num(
+    entry: Mapping[str, Any],
+    key: str,
+    *,
+    required: bool = True,
+    low: float | None = None,
+    high: float | None = None,
+    positive: bool = False,
+) -> float | None:
     if key not in entry:
         if required:
             raise _EntryError(f"'{key}' is missing")
@@ -380,8 +398,9 @@ def _wavelength_key(key: str, table: str) -> float:
     return nm
 
 
-def _by_wavelength(entry: Mapping[str, Any], key: str, *, low: float, high: float,
-                   required: bool = False) -> dict[float, float]:
+def _by_wavelength(
+    entry: Mapping[str, Any], key: str, *, low: float, high: float, required: bool = False
+) -> dict[float, float]:
     raw = entry.get(key)
     if raw is None:
         if required:
@@ -446,11 +465,18 @@ def _fibre(entry: Mapping[str, Any], origin: str) -> FibrePreset:
         if not any(abs(nm - have) <= 0.5 for have in att_max):
             raise _EntryError(f"default wavelength {nm:g} nm has no maximum attenuation")
     return FibrePreset(
-        name=_text(entry, "name"), family=family,  # type: ignore[arg-type]
-        attenuation_max=att_max, attenuation_typical=att_typ, group_indices=group,
-        core_diameter_um=core, numerical_aperture=na, mfd_um=mfd,
-        source=_text(entry, "source"), standard=_text(entry, "standard", required=False),
-        default_wavelengths_nm=defaults, origin=origin,
+        name=_text(entry, "name"),
+        family=family,  # type: ignore[arg-type]
+        attenuation_max=att_max,
+        attenuation_typical=att_typ,
+        group_indices=group,
+        core_diameter_um=core,
+        numerical_aperture=na,
+        mfd_um=mfd,
+        source=_text(entry, "source"),
+        standard=_text(entry, "standard", required=False),
+        default_wavelengths_nm=defaults,
+        origin=origin,
     )
 
 
@@ -463,8 +489,7 @@ def _connector(entry: Mapping[str, Any], origin: str) -> ConnectorPreset:
     loss_max = _req(entry, "loss_max_db", low=0.0, high=10.0)
     loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=10.0)
     _typical_not_above(loss_max, loss_typ)
-    return ConnectorPreset(_text(entry, "name"), loss_max, loss_typ, _text(entry, "source"),
-                           origin)
+    return ConnectorPreset(_text(entry, "name"), loss_max, loss_typ, _text(entry, "source"), origin)
 
 
 def _splice(entry: Mapping[str, Any], origin: str) -> SplicePreset:
@@ -474,8 +499,9 @@ def _splice(entry: Mapping[str, Any], origin: str) -> SplicePreset:
     loss_max = _req(entry, "loss_max_db", low=0.0, high=5.0)
     loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=5.0)
     _typical_not_above(loss_max, loss_typ)
-    return SplicePreset(_text(entry, "name"), method, loss_max, loss_typ, _text(entry, "source"),
-                        origin)
+    return SplicePreset(
+        _text(entry, "name"), method, loss_max, loss_typ, _text(entry, "source"), origin
+    )
 
 
 def _component(entry: Mapping[str, Any], origin: str) -> ComponentPreset:
@@ -496,8 +522,17 @@ def _component(entry: Mapping[str, Any], origin: str) -> ComponentPreset:
             raise _EntryError("a splitter needs 'excess_max_db' by output count")
     elif loss_max is None:
         raise _EntryError("'loss_max_db' is missing")
-    return ComponentPreset(_text(entry, "name"), kind, loss_max, loss_typ, excess_max, excess_typ,
-                           inputs, _text(entry, "source"), origin)
+    return ComponentPreset(
+        _text(entry, "name"),
+        kind,
+        loss_max,
+        loss_typ,
+        excess_max,
+        excess_typ,
+        inputs,
+        _text(entry, "source"),
+        origin,
+    )
 
 
 def _application(entry: Mapping[str, Any], origin: str) -> ApplicationPreset:
@@ -524,9 +559,14 @@ def _application(entry: Mapping[str, Any], origin: str) -> ApplicationPreset:
         if loss_min is not None and loss_min > loss_max:
             raise _EntryError(f"limits for '{fibre}': loss_min_db is above loss_max_db")
         limits[fibre] = ApplicationFibreLimit(loss_max, reach, loss_min)
-    return ApplicationPreset(_text(entry, "name"), _text(entry, "kind", required=False,
-                                                          default="application"),
-                             wavelengths, limits, _text(entry, "source"), origin)
+    return ApplicationPreset(
+        _text(entry, "name"),
+        _text(entry, "kind", required=False, default="application"),
+        wavelengths,
+        limits,
+        _text(entry, "source"),
+        origin,
+    )
 
 
 def _transceiver(entry: Mapping[str, Any], origin: str) -> TransceiverPreset:
@@ -539,37 +579,79 @@ def _transceiver(entry: Mapping[str, Any], origin: str) -> TransceiverPreset:
     if rx_sens >= rx_over:
         raise _EntryError("'rx_sensitivity_dbm' must be below 'rx_overload_dbm'")
     wavelength = _num(entry, "wavelength_nm", required=False, low=200.0, high=2000.0)
-    return TransceiverPreset(_text(entry, "name"), wavelength, tx_min, tx_max, rx_sens, rx_over,
-                             _text(entry, "source"), origin)
+    return TransceiverPreset(
+        _text(entry, "name"),
+        wavelength,
+        tx_min,
+        tx_max,
+        rx_sens,
+        rx_over,
+        _text(entry, "source"),
+        origin,
+    )
 
 
 def _cable(entry: Mapping[str, Any], origin: str) -> CablePreset:
     return CablePreset(
-        name=_text(entry, "name"), construction=_text(entry, "construction"),
+        name=_text(entry, "name"),
+        construction=_text(entry, "construction"),
         helix_percent=_req(entry, "helix_percent", low=0.0, high=20.0),
         helix_uncertainty_percent=_req(entry, "helix_uncertainty_percent", low=0.0, high=20.0),
-        source=_text(entry, "source"), origin=origin,
+        source=_text(entry, "source"),
+        origin=origin,
     )
 
 
 _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = {
-    "fibres": (_fibre, {
-        "name", "family", "standard", "source", "default_wavelengths_nm", "core_diameter_um",
-        "numerical_aperture", "attenuation_max_db_per_km", "attenuation_typical_db_per_km",
-        "group_index", "mode_field_diameter_um", "notes",
-    }),
+    "fibres": (
+        _fibre,
+        {
+            "name",
+            "family",
+            "standard",
+            "source",
+            "default_wavelengths_nm",
+            "core_diameter_um",
+            "numerical_aperture",
+            "attenuation_max_db_per_km",
+            "attenuation_typical_db_per_km",
+            "group_index",
+            "mode_field_diameter_um",
+            "notes",
+        },
+    ),
     "connectors": (_connector, {"name", "loss_max_db", "loss_typical_db", "source", "notes"}),
     "splices": (_splice, {"name", "method", "loss_max_db", "loss_typical_db", "source", "notes"}),
-    "components": (_component, {
-        "name", "kind", "loss_max_db", "loss_typical_db", "excess_max_db", "excess_typical_db",
-        "inputs", "source", "notes",
-    }),
-    "applications": (_application, {"name", "kind", "wavelengths_nm", "limits", "source",
-                                    "notes"}),
-    "transceivers": (_transceiver, {
-        "name", "wavelength_nm", "tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm",
-        "rx_overload_dbm", "source", "notes",
-    }),
-    "cables": (_cable, {"name", "construction", "helix_percent", "helix_uncertainty_percent",
-                        "source", "notes"}),
+    "components": (
+        _component,
+        {
+            "name",
+            "kind",
+            "loss_max_db",
+            "loss_typical_db",
+            "excess_max_db",
+            "excess_typical_db",
+            "inputs",
+            "source",
+            "notes",
+        },
+    ),
+    "applications": (_application, {"name", "kind", "wavelengths_nm", "limits", "source", "notes"}),
+    "transceivers": (
+        _transceiver,
+        {
+            "name",
+            "wavelength_nm",
+            "tx_min_dbm",
+            "tx_max_dbm",
+            "rx_sensitivity_dbm",
+            "rx_overload_dbm",
+            "source",
+            "notes",
+        },
+    ),
+    "cables": (
+        _cable,
+        {"name", "construction", "helix_percent", "helix_uncertainty_percent", "source", "notes"},
+    ),
 }

@@ -48,15 +48,18 @@ MAX_LOSS_DB = 1000.0
 MAX_COUNT = 100_000
 
 
-def _finite(x: float, what: str, *, low: float | None = None,
-            high: float | None = None, unit: str = "") -> float:
+def _finite(
+    x: float, what: str, *, low: float | None = None, high: float | None = None, unit: str = ""
+) -> float:
     if isinstance(x, bool) or not isinstance(x, (int, float)) or not math.isfinite(x):
         raise InputError(f"{what}: {x!r} is not a finite number")
     if low is not None and x < low:
         raise InputError(f"{what}: {format_number(x)} must not be below {format_number(low)}")
     if high is not None and x > high:
-        raise InputError(f"{what}: {format_number(x)}{unit} is more than fieldkit accepts "
-                         f"({format_number(high)}{unit}); check the unit")
+        raise InputError(
+            f"{what}: {format_number(x)}{unit} is more than fieldkit accepts "
+            f"({format_number(high)}{unit}); check the unit"
+        )
     return float(x)
 
 
@@ -73,11 +76,15 @@ def _nm(wavelength_nm: float) -> str:
 
 
 def _length_text(length_m: float) -> str:
-    return f"{format_number(length_m / 1000.0)} km" if length_m >= 1000 else \
-        f"{format_number(length_m)} m"
+    return (
+        f"{format_number(length_m / 1000.0)} km"
+        if length_m >= 1000
+        else f"{format_number(length_m)} m"
+    )
 
 
 # -- the link description ----------------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class Segment:
@@ -88,8 +95,13 @@ class Segment:
     label: str = ""
 
     def __post_init__(self) -> None:
-        _finite(self.length_m, f"segment {self.label or self.fibre.name}: length", low=0.0,
-                high=MAX_LENGTH_M, unit=" m")
+        _finite(
+            self.length_m,
+            f"segment {self.label or self.fibre.name}: length",
+            low=0.0,
+            high=MAX_LENGTH_M,
+            unit=" m",
+        )
 
 
 @dataclass(frozen=True)
@@ -106,8 +118,13 @@ class Connections:
         _count(self.count, "mated connector pairs")
         _finite(self.loss_max_db, "connector loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         if self.loss_typical_db is not None:
-            _finite(self.loss_typical_db, "typical connector loss", low=0.0, high=MAX_LOSS_DB,
-                    unit=" dB")
+            _finite(
+                self.loss_typical_db,
+                "typical connector loss",
+                low=0.0,
+                high=MAX_LOSS_DB,
+                unit=" dB",
+            )
 
 
 @dataclass(frozen=True)
@@ -125,8 +142,9 @@ class Splices:
         _count(self.count, f"{self.method} splices")
         _finite(self.loss_max_db, "splice loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         if self.loss_typical_db is not None:
-            _finite(self.loss_typical_db, "typical splice loss", low=0.0, high=MAX_LOSS_DB,
-                    unit=" dB")
+            _finite(
+                self.loss_typical_db, "typical splice loss", low=0.0, high=MAX_LOSS_DB, unit=" dB"
+            )
 
 
 @dataclass(frozen=True)
@@ -149,12 +167,24 @@ class Component:
         _finite(self.loss_max_db, f"{self.name}: loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         _finite(self.loss_min_db, f"{self.name}: minimum loss", low=0.0, high=MAX_LOSS_DB)
         if self.loss_typical_db is not None:
-            _finite(self.loss_typical_db, f"{self.name}: typical loss", low=0.0,
-                    high=MAX_LOSS_DB, unit=" dB")
+            _finite(
+                self.loss_typical_db,
+                f"{self.name}: typical loss",
+                low=0.0,
+                high=MAX_LOSS_DB,
+                unit=" dB",
+            )
 
 
-def splitter(outputs: int, *, inputs: int = 1, excess_max_db: float = 0.0,
-             excess_typical_db: float | None = None, source: str = "", count: int = 1) -> Component:
+def splitter(
+    outputs: int,
+    *,
+    inputs: int = 1,
+    excess_max_db: float = 0.0,
+    excess_typical_db: float | None = None,
+    source: str = "",
+    count: int = 1,
+) -> Component:
     """A 1xN or 2xN splitter: the ideal split 10·log10(N) plus the excess loss.
 
     .. math:: L = 10 \\log_{10} N + L_{excess}
@@ -163,21 +193,37 @@ def splitter(outputs: int, *, inputs: int = 1, excess_max_db: float = 0.0,
         raise InputError(f"splitter: {inputs} inputs; fieldkit handles 1xN and 2xN splitters")
     ideal = coupling.splitter_ideal_loss_db(outputs)
     _finite(excess_max_db, "splitter excess loss", low=0.0)
-    typical = None if excess_typical_db is None else ideal + _finite(
-        excess_typical_db, "splitter typical excess loss", low=0.0)
-    text = (f"ideal 10·log10({outputs}) = {ideal:.2f} dB + excess {excess_max_db:.2f} dB"
-            + (f"; {source}" if source else ""))
-    return Component(name=f"{inputs}x{outputs} splitter", kind="splitter",
-                     loss_max_db=ideal + excess_max_db, loss_typical_db=typical,
-                     loss_min_db=ideal, count=count, source=text)
+    typical = (
+        None
+        if excess_typical_db is None
+        else ideal + _finite(excess_typical_db, "splitter typical excess loss", low=0.0)
+    )
+    text = f"ideal 10·log10({outputs}) = {ideal:.2f} dB + excess {excess_max_db:.2f} dB" + (
+        f"; {source}" if source else ""
+    )
+    return Component(
+        name=f"{inputs}x{outputs} splitter",
+        kind="splitter",
+        loss_max_db=ideal + excess_max_db,
+        loss_typical_db=typical,
+        loss_min_db=ideal,
+        count=count,
+        source=text,
+    )
 
 
 def attenuator(loss_db: float, count: int = 1) -> Component:
     """A fixed attenuator of ``loss_db`` (its value is its minimum, typical and maximum loss)."""
     value = _finite(loss_db, "attenuator", low=0.0)
-    return Component(name=f"{format_number(value)} dB attenuator", kind="attenuator",
-                     loss_max_db=value, loss_typical_db=value, loss_min_db=value, count=count,
-                     source="value of the fixed attenuator")
+    return Component(
+        name=f"{format_number(value)} dB attenuator",
+        kind="attenuator",
+        loss_max_db=value,
+        loss_typical_db=value,
+        loss_min_db=value,
+        count=count,
+        source="value of the fixed attenuator",
+    )
 
 
 @dataclass(frozen=True)
@@ -287,6 +333,7 @@ def max_loss_db(link: LinkDescription, wavelength_nm: float) -> float:
 
 # -- the result --------------------------------------------------------------------------------
 
+
 @dataclass(frozen=True)
 class BudgetItem:
     """One line of the breakdown: maximum loss, typical loss when known, lowest plausible."""
@@ -299,9 +346,14 @@ class BudgetItem:
     source: str
 
     def as_dict(self) -> dict[str, Any]:
-        return {"name": self.name, "kind": self.kind, "loss_db": self.loss_db,
-                "typical_loss_db": self.typical_loss_db, "loss_min_db": self.loss_min_db,
-                "source": self.source}
+        return {
+            "name": self.name,
+            "kind": self.kind,
+            "loss_db": self.loss_db,
+            "typical_loss_db": self.typical_loss_db,
+            "loss_min_db": self.loss_min_db,
+            "source": self.source,
+        }
 
 
 @dataclass(frozen=True)
@@ -333,9 +385,12 @@ class WavelengthBudget:
     def as_dict(self) -> dict[str, Any]:
         typical = self.typical_loss_db
         return {
-            "wavelength_nm": self.wavelength_nm, "loss_db": self.loss_db,
-            "typical_loss_db": typical, "loss_min_db": self.loss_min_db,
-            "margin_db": self.margin_db, "loss_with_margin_db": self.loss_with_margin_db,
+            "wavelength_nm": self.wavelength_nm,
+            "loss_db": self.loss_db,
+            "typical_loss_db": typical,
+            "loss_min_db": self.loss_min_db,
+            "margin_db": self.margin_db,
+            "loss_with_margin_db": self.loss_with_margin_db,
             "typical_with_margin_db": None if typical is None else typical + self.margin_db,
             "items": [i.as_dict() for i in self.items],
         }
@@ -357,14 +412,18 @@ class BudgetResult:
 
     def in_window(self, wavelength_nm: float) -> WavelengthBudget | None:
         """The result nearest ``wavelength_nm`` within ``WINDOW_MATCH_NM``, else None."""
-        near = [w for w in self.wavelengths
-                if abs(w.wavelength_nm - wavelength_nm) <= WINDOW_MATCH_NM]
+        near = [
+            w for w in self.wavelengths if abs(w.wavelength_nm - wavelength_nm) <= WINDOW_MATCH_NM
+        ]
         return min(near, key=lambda w: abs(w.wavelength_nm - wavelength_nm)) if near else None
 
     def as_dict(self) -> dict[str, Any]:
-        return {"length_m": self.length_m, "margin_db": self.margin_db,
-                "wavelengths": [w.as_dict() for w in self.wavelengths],
-                "notes": list(self.notes)}
+        return {
+            "length_m": self.length_m,
+            "margin_db": self.margin_db,
+            "wavelengths": [w.as_dict() for w in self.wavelengths],
+            "notes": list(self.notes),
+        }
 
 
 def compute_budget(link: LinkDescription) -> BudgetResult:
@@ -390,34 +449,51 @@ def compute_budget(link: LinkDescription) -> BudgetResult:
                 items.append(joint)
         if link.connectors is not None and link.connectors.count:
             c = link.connectors
-            items.append(BudgetItem(
-                name=f"{c.count} mated connector pair{'s' if c.count != 1 else ''} × "
-                f"{c.loss_max_db:.2f} dB",
-                kind="connectors", loss_db=c.count * c.loss_max_db,
-                typical_loss_db=None if c.loss_typical_db is None else c.count * c.loss_typical_db,
-                loss_min_db=0.0, source=c.source or (c.name or "typed value")))
+            items.append(
+                BudgetItem(
+                    name=f"{c.count} mated connector pair{'s' if c.count != 1 else ''} × "
+                    f"{c.loss_max_db:.2f} dB",
+                    kind="connectors",
+                    loss_db=c.count * c.loss_max_db,
+                    typical_loss_db=None
+                    if c.loss_typical_db is None
+                    else c.count * c.loss_typical_db,
+                    loss_min_db=0.0,
+                    source=c.source or (c.name or "typed value"),
+                )
+            )
         for sp in link.splices:
             if sp.count:
-                items.append(BudgetItem(
-                    name=f"{sp.count} {sp.method} splice{'s' if sp.count != 1 else ''} × "
-                    f"{sp.loss_max_db:.2f} dB",
-                    kind="splices", loss_db=sp.count * sp.loss_max_db,
-                    typical_loss_db=None if sp.loss_typical_db is None
-                    else sp.count * sp.loss_typical_db,
-                    loss_min_db=0.0, source=sp.source or (sp.name or "typed value")))
+                items.append(
+                    BudgetItem(
+                        name=f"{sp.count} {sp.method} splice{'s' if sp.count != 1 else ''} × "
+                        f"{sp.loss_max_db:.2f} dB",
+                        kind="splices",
+                        loss_db=sp.count * sp.loss_max_db,
+                        typical_loss_db=None
+                        if sp.loss_typical_db is None
+                        else sp.count * sp.loss_typical_db,
+                        loss_min_db=0.0,
+                        source=sp.source or (sp.name or "typed value"),
+                    )
+                )
         for comp in link.components:
             if comp.count:
                 prefix = f"{comp.count} × " if comp.count != 1 else ""
-                items.append(BudgetItem(
-                    name=f"{prefix}{comp.name}", kind="component",
-                    loss_db=comp.count * comp.loss_max_db,
-                    typical_loss_db=None if comp.loss_typical_db is None
-                    else comp.count * comp.loss_typical_db,
-                    loss_min_db=comp.count * comp.loss_min_db,
-                    source=comp.source or "typed value"))
+                items.append(
+                    BudgetItem(
+                        name=f"{prefix}{comp.name}",
+                        kind="component",
+                        loss_db=comp.count * comp.loss_max_db,
+                        typical_loss_db=None
+                        if comp.loss_typical_db is None
+                        else comp.count * comp.loss_typical_db,
+                        loss_min_db=comp.count * comp.loss_min_db,
+                        source=comp.source or "typed value",
+                    )
+                )
         results.append(WavelengthBudget(nm, tuple(items), link.margin_db))
-    return BudgetResult(tuple(results), link.margin_db, link.length_m,
-                        tuple(dict.fromkeys(notes)))
+    return BudgetResult(tuple(results), link.margin_db, link.length_m, tuple(dict.fromkeys(notes)))
 
 
 def _fibre_item(seg: Segment, nm: float, notes: list[str]) -> BudgetItem:
@@ -426,22 +502,28 @@ def _fibre_item(seg: Segment, nm: float, notes: list[str]) -> BudgetItem:
     km = seg.length_m / 1000.0
     typical = fibre.attenuation_db_per_km(nm, "typical") * km if fibre.has_typical(nm) else None
     if typical is None:
-        notes.append(f"{fibre.name} has no typical attenuation at {_nm(nm)}; its lowest "
-                     "plausible loss uses the maximum")
+        notes.append(
+            f"{fibre.name} has no typical attenuation at {_nm(nm)}; its lowest "
+            "plausible loss uses the maximum"
+        )
     label = f"{seg.label}: " if seg.label else ""
     return BudgetItem(
         name=f"{label}{fibre.name} {_length_text(seg.length_m)} × {alpha:g} dB/km",
-        kind="fibre", loss_db=alpha * km, typical_loss_db=typical,
+        kind="fibre",
+        loss_db=alpha * km,
+        typical_loss_db=typical,
         loss_min_db=typical if typical is not None else alpha * km,
-        source=fibre.source or "typed value")
+        source=fibre.source or "typed value",
+    )
 
 
 def _same_fibre(a: Fibre, b: Fibre) -> bool:
     return a.name == b.name and a.family == b.family
 
 
-def _joint_items(segments: tuple[Segment, ...], nm: float,
-                 notes: list[str]) -> dict[int, BudgetItem]:
+def _joint_items(
+    segments: tuple[Segment, ...], nm: float, notes: list[str]
+) -> dict[int, BudgetItem]:
     """The mismatch line of each joint, keyed by the index of the segment before it.
 
     Multimode mismatch loss depends on the direction of the light (only larger into smaller
@@ -463,59 +545,90 @@ def _joint_items(segments: tuple[Segment, ...], nm: float,
         worse, better = (ab, ba) if forward else (ba, ab)
         if item.kind == "mismatch" and ab != ba:
             direction = "end A → end B" if forward else "end B → end A"
-            item = replace(item, loss_db=worse, typical_loss_db=worse, loss_min_db=better,
-                           source=f"{item.source}; light {direction}, the link's worse "
-                           "direction")
+            item = replace(
+                item,
+                loss_db=worse,
+                typical_loss_db=worse,
+                loss_min_db=better,
+                source=f"{item.source}; light {direction}, the link's worse direction",
+            )
         out[index] = item
     return out
 
 
-def _mismatch_item(a: Fibre, b: Fibre, nm: float,
-                   notes: list[str]) -> tuple[float, float, BudgetItem] | None:
+def _mismatch_item(
+    a: Fibre, b: Fibre, nm: float, notes: list[str]
+) -> tuple[float, float, BudgetItem] | None:
     """The joint of ``a`` (towards end A) and ``b``: (loss A→B, loss B→A, its line)."""
     if _same_fibre(a, b):
         return None
     if a.family is None or b.family is None:
-        notes.append(f"joint {a.name} / {b.name}: a typed fibre has no geometry, so no "
-                     "mismatch loss is counted")
+        notes.append(
+            f"joint {a.name} / {b.name}: a typed fibre has no geometry, so no "
+            "mismatch loss is counted"
+        )
         return None
     if a.family == "multimode":
-        if None in (a.core_diameter_um, a.numerical_aperture, b.core_diameter_um,
-                    b.numerical_aperture):
+        if None in (
+            a.core_diameter_um,
+            a.numerical_aperture,
+            b.core_diameter_um,
+            b.numerical_aperture,
+        ):
             notes.append(f"joint {a.name} / {b.name}: core or NA unknown; no mismatch counted")
             return None
         assert a.core_diameter_um and a.numerical_aperture
         assert b.core_diameter_um and b.numerical_aperture
-        ab = coupling.multimode_mismatch_loss_db(a.core_diameter_um, a.numerical_aperture,
-                                                 b.core_diameter_um, b.numerical_aperture)
-        ba = coupling.multimode_mismatch_loss_db(b.core_diameter_um, b.numerical_aperture,
-                                                 a.core_diameter_um, a.numerical_aperture)
+        ab = coupling.multimode_mismatch_loss_db(
+            a.core_diameter_um, a.numerical_aperture, b.core_diameter_um, b.numerical_aperture
+        )
+        ba = coupling.multimode_mismatch_loss_db(
+            b.core_diameter_um, b.numerical_aperture, a.core_diameter_um, a.numerical_aperture
+        )
         worse = f"{a.name} → {b.name}" if ab >= ba else f"{b.name} → {a.name}"
-        return ab, ba, BudgetItem(
-            name=f"core/NA mismatch {a.name} | {b.name}", kind="mismatch",
-            loss_db=max(ab, ba), typical_loss_db=max(ab, ba), loss_min_db=min(ab, ba),
-            source=f"multimode core-diameter and NA mismatch, −10·log10((d_rx/d_tx)²) "
-            f"− 10·log10((NA_rx/NA_tx)²), lossy direction {worse} "
-            f"({a.core_diameter_um:g} µm NA {a.numerical_aperture:g} / "
-            f"{b.core_diameter_um:g} µm NA {b.numerical_aperture:g})")
+        return (
+            ab,
+            ba,
+            BudgetItem(
+                name=f"core/NA mismatch {a.name} | {b.name}",
+                kind="mismatch",
+                loss_db=max(ab, ba),
+                typical_loss_db=max(ab, ba),
+                loss_min_db=min(ab, ba),
+                source=f"multimode core-diameter and NA mismatch, −10·log10((d_rx/d_tx)²) "
+                f"− 10·log10((NA_rx/NA_tx)²), lossy direction {worse} "
+                f"({a.core_diameter_um:g} µm NA {a.numerical_aperture:g} / "
+                f"{b.core_diameter_um:g} µm NA {b.numerical_aperture:g})",
+            ),
+        )
     try:
         w1 = a.mode_field_diameter_um(nm)
         w2 = b.mode_field_diameter_um(nm)
     except InputError as exc:
         # Like an unknown core or NA: say so and count none, rather than refuse the whole
         # budget (between single-mode fibres of one family it is a few hundredths of a dB).
-        notes.append(f"joint {a.name} / {b.name}: {exc}; no mode-field mismatch counted at "
-                     f"{_nm(nm)}")
+        notes.append(
+            f"joint {a.name} / {b.name}: {exc}; no mode-field mismatch counted at {_nm(nm)}"
+        )
         return None
     loss = coupling.mfd_mismatch_loss_db(w1, w2)
-    return loss, loss, BudgetItem(
-        name=f"MFD mismatch {a.name} | {b.name}", kind="mismatch", loss_db=loss,
-        typical_loss_db=loss, loss_min_db=loss,
-        source=f"single-mode mode-field mismatch, Gaussian overlap −10·log10((2w1w2/(w1²+w2²))²), "
-        f"MFD {w1:g} / {w2:g} µm at {_nm(nm)}")
+    return (
+        loss,
+        loss,
+        BudgetItem(
+            name=f"MFD mismatch {a.name} | {b.name}",
+            kind="mismatch",
+            loss_db=loss,
+            typical_loss_db=loss,
+            loss_min_db=loss,
+            source=f"single-mode mode-field mismatch, Gaussian overlap −10·log10((2w1w2/(w1²+w2²))²), "
+            f"MFD {w1:g} / {w2:g} µm at {_nm(nm)}",
+        ),
+    )
 
 
 # -- application check -------------------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class ApplicationLimits:
@@ -558,18 +671,28 @@ class ApplicationCheck:
 
     def as_dict(self) -> dict[str, Any]:
         return {
-            "name": self.name, "fibre": self.fibre, "pass": self.passed,
+            "name": self.name,
+            "fibre": self.fibre,
+            "pass": self.passed,
             "wavelength_nm": self.wavelength_nm,
-            "loss_db": self.loss_db, "loss_max_db": self.loss_max_db,
-            "loss_headroom_db": self.loss_headroom_db, "loss_pass": self.loss_pass,
-            "margin_db": self.margin_db, "margin_headroom_db": self.margin_headroom_db,
+            "loss_db": self.loss_db,
+            "loss_max_db": self.loss_max_db,
+            "loss_headroom_db": self.loss_headroom_db,
+            "loss_pass": self.loss_pass,
+            "margin_db": self.margin_db,
+            "margin_headroom_db": self.margin_headroom_db,
             "margin_pass": self.margin_pass,
-            "length_m": self.length_m, "reach_m": self.reach_m,
-            "length_headroom_m": self.length_headroom_m, "length_pass": self.length_pass,
-            "loss_min_db": self.loss_min_db, "link_loss_min_db": self.link_loss_min_db,
+            "length_m": self.length_m,
+            "reach_m": self.reach_m,
+            "length_headroom_m": self.length_headroom_m,
+            "length_pass": self.length_pass,
+            "loss_min_db": self.loss_min_db,
+            "link_loss_min_db": self.link_loss_min_db,
             "min_pass": self.min_pass,
-            "per_wavelength": [{"wavelength_nm": nm, "loss_db": loss, "headroom_db": room}
-                               for nm, loss, room in self.per_wavelength],
+            "per_wavelength": [
+                {"wavelength_nm": nm, "loss_db": loss, "headroom_db": room}
+                for nm, loss, room in self.per_wavelength
+            ],
             "source": self.source,
         }
 
@@ -599,25 +722,37 @@ def check_application(result: BudgetResult, limits: ApplicationLimits) -> Applic
             )
         rows.append(wb)
     worst = max(rows, key=lambda w: w.loss_db)
-    per = tuple(dict.fromkeys(
-        (w.wavelength_nm, w.loss_db, limits.loss_max_db - w.loss_db) for w in rows))
+    per = tuple(
+        dict.fromkeys((w.wavelength_nm, w.loss_db, limits.loss_max_db - w.loss_db) for w in rows)
+    )
     link_min = min(w.loss_min_db for w in rows)
     min_pass = None if limits.loss_min_db is None else link_min >= limits.loss_min_db
     headroom = limits.loss_max_db - worst.loss_db
     return ApplicationCheck(
-        name=limits.name, fibre=limits.fibre, wavelength_nm=worst.wavelength_nm,
-        loss_db=worst.loss_db, loss_max_db=limits.loss_max_db, loss_headroom_db=headroom,
-        loss_pass=headroom >= 0, margin_db=result.margin_db,
+        name=limits.name,
+        fibre=limits.fibre,
+        wavelength_nm=worst.wavelength_nm,
+        loss_db=worst.loss_db,
+        loss_max_db=limits.loss_max_db,
+        loss_headroom_db=headroom,
+        loss_pass=headroom >= 0,
+        margin_db=result.margin_db,
         margin_headroom_db=headroom - result.margin_db,
         margin_pass=headroom - result.margin_db >= 0,
-        length_m=result.length_m, reach_m=limits.reach_m,
+        length_m=result.length_m,
+        reach_m=limits.reach_m,
         length_headroom_m=limits.reach_m - result.length_m,
         length_pass=result.length_m <= limits.reach_m,
-        loss_min_db=limits.loss_min_db, link_loss_min_db=link_min, min_pass=min_pass,
-        per_wavelength=per, source=limits.source)
+        loss_min_db=limits.loss_min_db,
+        link_loss_min_db=link_min,
+        min_pass=min_pass,
+        per_wavelength=per,
+        source=limits.source,
+    )
 
 
 # -- transceiver check -------------------------------------------------------------------------
+
 
 @dataclass(frozen=True)
 class Transceiver:
@@ -632,9 +767,12 @@ class Transceiver:
     source: str = ""
 
     def __post_init__(self) -> None:
-        for what, value in (("Tx minimum", self.tx_min_dbm), ("Tx maximum", self.tx_max_dbm),
-                            ("Rx sensitivity", self.rx_sensitivity_dbm),
-                            ("Rx overload", self.rx_overload_dbm)):
+        for what, value in (
+            ("Tx minimum", self.tx_min_dbm),
+            ("Tx maximum", self.tx_max_dbm),
+            ("Rx sensitivity", self.rx_sensitivity_dbm),
+            ("Rx overload", self.rx_overload_dbm),
+        ):
             _finite(value, what)
         if self.tx_min_dbm > self.tx_max_dbm:
             raise InputError(
@@ -673,19 +811,29 @@ class TransceiverCheck:
 
     def as_dict(self) -> dict[str, Any]:
         return {
-            "name": self.name, "pass": self.passed, "wavelength_nm": self.wavelength_nm,
-            "power_budget_db": self.power_budget_db, "loss_max_db": self.loss_max_db,
-            "loss_min_db": self.loss_min_db, "margin_db": self.margin_db,
-            "required_margin_db": self.required_margin_db, "margin_pass": self.margin_pass,
-            "received_min_dbm": self.received_min_dbm, "received_max_dbm": self.received_max_dbm,
-            "attenuator_needed": self.overload, "attenuator_min_db": self.attenuator_min_db,
-            "attenuator_max_db": self.attenuator_max_db, "attenuator_db": self.attenuator_db,
-            "attenuator_fits": self.attenuator_fits, "source": self.source,
+            "name": self.name,
+            "pass": self.passed,
+            "wavelength_nm": self.wavelength_nm,
+            "power_budget_db": self.power_budget_db,
+            "loss_max_db": self.loss_max_db,
+            "loss_min_db": self.loss_min_db,
+            "margin_db": self.margin_db,
+            "required_margin_db": self.required_margin_db,
+            "margin_pass": self.margin_pass,
+            "received_min_dbm": self.received_min_dbm,
+            "received_max_dbm": self.received_max_dbm,
+            "attenuator_needed": self.overload,
+            "attenuator_min_db": self.attenuator_min_db,
+            "attenuator_max_db": self.attenuator_max_db,
+            "attenuator_db": self.attenuator_db,
+            "attenuator_fits": self.attenuator_fits,
+            "source": self.source,
         }
 
 
-def check_transceiver(result: BudgetResult, tx: Transceiver,
-                      stock_db: Iterable[float] = STOCK_ATTENUATORS_DB) -> TransceiverCheck:
+def check_transceiver(
+    result: BudgetResult, tx: Transceiver, stock_db: Iterable[float] = STOCK_ATTENUATORS_DB
+) -> TransceiverCheck:
     """Does the transceiver pair run on the link, and does it need an attenuator?
 
     .. math::
@@ -741,12 +889,23 @@ def check_transceiver(result: BudgetResult, tx: Transceiver,
             if attenuator_db > att_max:
                 attenuator_db = att_min
     return TransceiverCheck(
-        name=tx.name, wavelength_nm=nm, power_budget_db=budget, loss_max_db=loss_max,
-        loss_min_db=loss_min, margin_db=margin, required_margin_db=result.margin_db,
-        margin_pass=margin >= result.margin_db, received_min_dbm=received_min,
-        received_max_dbm=received_max, overload=overload, attenuator_min_db=att_min,
-        attenuator_max_db=att_max, attenuator_db=attenuator_db, attenuator_fits=fits,
-        source=tx.source)
+        name=tx.name,
+        wavelength_nm=nm,
+        power_budget_db=budget,
+        loss_max_db=loss_max,
+        loss_min_db=loss_min,
+        margin_db=margin,
+        required_margin_db=result.margin_db,
+        margin_pass=margin >= result.margin_db,
+        received_min_dbm=received_min,
+        received_max_dbm=received_max,
+        overload=overload,
+        attenuator_min_db=att_min,
+        attenuator_max_db=att_max,
+        attenuator_db=attenuator_db,
+        attenuator_fits=fits,
+        source=tx.source,
+    )
 
 
 @dataclass(frozen=True)

@@ -55,11 +55,13 @@ def na_mismatch_loss_db(na_tx: float, na_rx: float) -> float:
     return -10.0 * math.log10((rx / tx) ** 2)
 
 
-def multimode_mismatch_loss_db(core_tx_um: float, na_tx: float, core_rx_um: float,
-                               na_rx: float) -> float:
+def multimode_mismatch_loss_db(
+    core_tx_um: float, na_tx: float, core_rx_um: float, na_rx: float
+) -> float:
     """Core-diameter plus NA mismatch loss from the emitting to the receiving multimode fibre."""
-    return (core_diameter_mismatch_loss_db(core_tx_um, core_rx_um)
-            + na_mismatch_loss_db(na_tx, na_rx))
+    return core_diameter_mismatch_loss_db(core_tx_um, core_rx_um) + na_mismatch_loss_db(
+        na_tx, na_rx
+    )
 
 
 def mfd_mismatch_loss_db(mfd_1_um: float, mfd_2_um: float) -> float:

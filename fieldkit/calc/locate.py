@@ -124,8 +124,10 @@ class SlackLoop:
 
     def describe(self) -> str:
         name = self.label or "slack"
-        return (f"{name} ({format_number(self.cable_length_m)} m at "
-                f"{format_number(self.route_position_m)} m)")
+        return (
+            f"{name} ({format_number(self.cable_length_m)} m at "
+            f"{format_number(self.route_position_m)} m)"
+        )
 
 
 @dataclass(frozen=True, slots=True)
@@ -206,8 +208,10 @@ class MarkingResult:
 
     def describe(self) -> str:
         lo, hi = sorted((self.low, self.high))
-        return (f"{self.value:.0f} {self.unit} (between {lo:.0f} and {hi:.0f}; markings count "
-                f"{self.direction})")
+        return (
+            f"{self.value:.0f} {self.unit} (between {lo:.0f} and {hi:.0f}; markings count "
+            f"{self.direction})"
+        )
 
 
 @dataclass(frozen=True, slots=True)
@@ -364,8 +368,10 @@ def _check_distance(x: float, what: str) -> None:
     if _finite(x, what) < 0:
         raise InputError(f"{what}: {format_number(x)} m is negative; a distance is 0 or more")
     if x > MAX_DISTANCE_M:
-        raise InputError(f"{what}: {format_number(x)} m is longer than any fibre span "
-                         f"({format_number(MAX_DISTANCE_M / 1000)} km at most); check the unit")
+        raise InputError(
+            f"{what}: {format_number(x)} m is longer than any fibre span "
+            f"({format_number(MAX_DISTANCE_M / 1000)} km at most); check the unit"
+        )
 
 
 def _check_time(x: float) -> None:
@@ -373,23 +379,29 @@ def _check_time(x: float) -> None:
         raise InputError(f"round-trip time: {format_number(x)} s must be more than zero")
     # Light in glass (group index above 1) covers less than c·t/2 in a round trip of t.
     if SPEED_OF_LIGHT_M_PER_S * x / 2.0 > MAX_DISTANCE_M:
-        raise InputError(f"round-trip time: {format_number(x)} s is longer than any fibre span "
-                         "gives; check the unit")
+        raise InputError(
+            f"round-trip time: {format_number(x)} s is longer than any fibre span "
+            "gives; check the unit"
+        )
 
 
 def _check_index(n: float, what: str) -> None:
     if _finite(n, what) < 1.0:
-        raise InputError(f"{what}: {format_number(n)} is below 1; a group index of glass fibre "
-                         "is about 1.46–1.48")
+        raise InputError(
+            f"{what}: {format_number(n)} is below 1; a group index of glass fibre "
+            "is about 1.46–1.48"
+        )
     if n > 3.0:
-        raise InputError(f"{what}: {format_number(n)} is not a group index of fibre "
-                         "(about 1.46–1.48)")
+        raise InputError(
+            f"{what}: {format_number(n)} is not a group index of fibre (about 1.46–1.48)"
+        )
 
 
 def _check_helix(h: float) -> None:
     if _finite(h, "helix") < 0 or h >= 20:
-        raise InputError(f"helix: {format_number(h)} % is outside 0–20 % (cables are typically "
-                         "0–3 %)")
+        raise InputError(
+            f"helix: {format_number(h)} % is outside 0–20 % (cables are typically 0–3 %)"
+        )
 
 
 def validate(inp: LocateInput) -> None:
@@ -407,8 +419,10 @@ def validate(inp: LocateInput) -> None:
     if inp.otdr_distance_m is not None:
         _check_distance(inp.otdr_distance_m, "OTDR distance")
         if inp.group_index is None and inp.index_set is None:
-            raise InputError("group index: give the fibre's group index (or a fibre type and "
-                             "wavelength), or the index the OTDR was set to")
+            raise InputError(
+                "group index: give the fibre's group index (or a fibre type and "
+                "wavelength), or the index the OTDR was set to"
+            )
     if inp.round_trip_time_s is not None:
         _check_time(inp.round_trip_time_s)
         if inp.group_index is None:
@@ -438,10 +452,13 @@ def validate(inp: LocateInput) -> None:
         if b.otdr_distance_m <= a.otdr_distance_m:
             raise InputError(
                 f"landmark '{b.name}' is further along the route than '{a.name}' but not further "
-                "on the OTDR trace; check their distances")
+                "on the OTDR trace; check their distances"
+            )
     if ordered and ordered[0].route_distance_m > 0 and ordered[0].otdr_distance_m == 0:
-        raise InputError(f"landmark '{ordered[0].name}': OTDR distance 0 is the start; give its "
-                         "route distance as 0 too, or its real OTDR distance")
+        raise InputError(
+            f"landmark '{ordered[0].name}': OTDR distance 0 is the start; give its "
+            "route distance as 0 too, or its real OTDR distance"
+        )
     if inp.marking is not None:
         _finite(inp.marking.start, "marking at the start")
         if inp.marking.unit not in ("m", "ft"):
@@ -450,8 +467,10 @@ def validate(inp: LocateInput) -> None:
             raise InputError(f"marking direction: '{inp.marking.direction}' must be up or down")
         tolerance = _finite(inp.marking.tolerance_percent, "marking tolerance")
         if not 0 <= tolerance <= 10:
-            raise InputError(f"marking tolerance: {format_number(tolerance)} % is outside 0–10 % "
-                             "(printed markings are typically within 1 %)")
+            raise InputError(
+                f"marking tolerance: {format_number(tolerance)} % is outside 0–10 % "
+                "(printed markings are typically within 1 %)"
+            )
     if inp.two_ended is not None:
         _check_distance(inp.two_ended.from_b_otdr_m, "distance from end B")
         _check_distance(inp.two_ended.total_otdr_m, "total length")
@@ -460,26 +479,35 @@ def validate(inp: LocateInput) -> None:
         if inp.two_ended.from_b_otdr_m > inp.two_ended.total_otdr_m:
             raise InputError("distance from end B: longer than the total length")
     err = inp.errors
-    for value, what in ((err.offset_m, "instrument offset"),
-                        (err.scale_error_percent, "scale error"),
-                        (err.sample_spacing_m, "sample spacing"),
-                        (err.group_index_uncertainty, "group index uncertainty"),
-                        (err.helix_uncertainty_percent, "helix uncertainty"),
-                        (err.landmark_route_uncertainty_m, "landmark route uncertainty")):
+    for value, what in (
+        (err.offset_m, "instrument offset"),
+        (err.scale_error_percent, "scale error"),
+        (err.sample_spacing_m, "sample spacing"),
+        (err.group_index_uncertainty, "group index uncertainty"),
+        (err.helix_uncertainty_percent, "helix uncertainty"),
+        (err.landmark_route_uncertainty_m, "landmark route uncertainty"),
+    ):
         if _finite(value, what) < 0:
             raise InputError(f"{what}: {format_number(value)} is negative; give a ± half-width")
-    for value, what in ((err.offset_m, "instrument offset"),
-                        (err.sample_spacing_m, "sample spacing"),
-                        (err.landmark_route_uncertainty_m, "landmark route uncertainty")):
+    for value, what in (
+        (err.offset_m, "instrument offset"),
+        (err.sample_spacing_m, "sample spacing"),
+        (err.landmark_route_uncertainty_m, "landmark route uncertainty"),
+    ):
         if value > MAX_DISTANCE_M:
-            raise InputError(f"{what}: {format_number(value)} m is longer than any fibre span; "
-                             "check the unit")
+            raise InputError(
+                f"{what}: {format_number(value)} m is longer than any fibre span; check the unit"
+            )
     if err.scale_error_percent > 5:
-        raise InputError(f"scale error: {format_number(err.scale_error_percent)} % is not an "
-                         "instrument's scale error (typically 0.001–0.01 %)")
+        raise InputError(
+            f"scale error: {format_number(err.scale_error_percent)} % is not an "
+            "instrument's scale error (typically 0.001–0.01 %)"
+        )
     if err.group_index_uncertainty > 0.1:
-        raise InputError("group index uncertainty: above 0.1 is not an uncertainty of a fibre's "
-                         "index (typically 0.0002–0.001)")
+        raise InputError(
+            "group index uncertainty: above 0.1 is not an uncertainty of a fibre's "
+            "index (typically 0.0002–0.001)"
+        )
 
 
 # -- the chain, as a function of every perturbable input -------------------------------------
@@ -518,14 +546,18 @@ class _Chain:
 
     def discrepancy(self) -> float:
         assert self.b_shown_m is not None and self.total_shown_m is not None
-        return (self.fiber(self.fault_shown_m, self.offset_m)
-                + self.fiber(self.b_shown_m, self.offset_b_m)
-                - self.fiber(self.total_shown_m, self.offset_m))
+        return (
+            self.fiber(self.fault_shown_m, self.offset_m)
+            + self.fiber(self.b_shown_m, self.offset_b_m)
+            - self.fiber(self.total_shown_m, self.offset_m)
+        )
 
     def anchors(self) -> list[tuple[str, float, float]]:
         """(name, fibre distance, sheath length from the start) of each landmark, in order."""
-        marks = sorted(zip(self.landmark_names, self.landmark_shown_m, self.landmark_route_m,
-                           strict=True), key=lambda m: m[2])
+        marks = sorted(
+            zip(self.landmark_names, self.landmark_shown_m, self.landmark_route_m, strict=True),
+            key=lambda m: m[2],
+        )
         out: list[tuple[str, float, float]] = []
         if not marks or marks[0][2] > 0:
             out.append(("start", 0.0, 0.0))  # not a reading: no offset, no sampling error
@@ -574,26 +606,50 @@ def _terms(chain: _Chain, inp: LocateInput, two_ended: bool) -> list[tuple[str, 
     if inp.helix_percent is None and not chain.landmark_names:
         # Not given: taken as 0 (the sheath as long as the fibre), but it may be up to the
         # largest typical helix, which only ever makes the sheath shorter.
-        helix_term = (f"helix (not given: 0–{format_number(UNKNOWN_HELIX_MAX_PERCENT)} %)",
-                      lambda k: replace(chain, helix_percent=max(
-                          UNKNOWN_HELIX_MAX_PERCENT if k > 0 else 0.0,
-                          chain.helix_percent + k * err.helix_uncertainty_percent)))
+        helix_term = (
+            f"helix (not given: 0–{format_number(UNKNOWN_HELIX_MAX_PERCENT)} %)",
+            lambda k: replace(
+                chain,
+                helix_percent=max(
+                    UNKNOWN_HELIX_MAX_PERCENT if k > 0 else 0.0,
+                    chain.helix_percent + k * err.helix_uncertainty_percent,
+                ),
+            ),
+        )
     else:
-        helix_term = ("helix", lambda k: replace(chain, helix_percent=max(
-            0.0, chain.helix_percent + k * err.helix_uncertainty_percent)))
+        helix_term = (
+            "helix",
+            lambda k: replace(
+                chain,
+                helix_percent=max(0.0, chain.helix_percent + k * err.helix_uncertainty_percent),
+            ),
+        )
     terms: list[tuple[str, _Move]] = [
         ("instrument offset", lambda k: replace(chain, offset_m=k * err.offset_m)),
         ("scale error", lambda k: replace(chain, scale=1.0 + k * err.scale_error_percent / 100)),
-        ("sample spacing (fault reading)",
-         lambda k: replace(chain, fault_shown_m=chain.fault_shown_m + k * err.sample_spacing_m)),
-        ("group index", lambda k: replace(
-            chain, group_index=max(1.0, chain.group_index + k * err.group_index_uncertainty))),
+        (
+            "sample spacing (fault reading)",
+            lambda k: replace(chain, fault_shown_m=chain.fault_shown_m + k * err.sample_spacing_m),
+        ),
+        (
+            "group index",
+            lambda k: replace(
+                chain, group_index=max(1.0, chain.group_index + k * err.group_index_uncertainty)
+            ),
+        ),
         helix_term,
     ]
     if chain.landmark_names and err.helix_uncertainty_percent > 0:
-        terms.append(("helix beyond the landmarks", lambda k: replace(
-            chain, extrapolation_helix_delta=k * err.helix_uncertainty_percent)))
+        terms.append(
+            (
+                "helix beyond the landmarks",
+                lambda k: replace(
+                    chain, extrapolation_helix_delta=k * err.helix_uncertainty_percent
+                ),
+            )
+        )
     for i, name in enumerate(chain.landmark_names):
+
         def moved_reading(k: float, i: int = i) -> _Chain:
             shown = list(chain.landmark_shown_m)
             shown[i] = max(0.0, shown[i] + k * err.sample_spacing_m)
@@ -611,10 +667,14 @@ def _terms(chain: _Chain, inp: LocateInput, two_ended: bool) -> list[tuple[str, 
         b_shown, total_shown = chain.b_shown_m, chain.total_shown_m
         terms += [
             ("instrument offset (end B)", lambda k: replace(chain, offset_b_m=k * err.offset_m)),
-            ("sample spacing (reading from B)",
-             lambda k: replace(chain, b_shown_m=b_shown + k * err.sample_spacing_m)),
-            ("sample spacing (total length)",
-             lambda k: replace(chain, total_shown_m=total_shown + k * err.sample_spacing_m)),
+            (
+                "sample spacing (reading from B)",
+                lambda k: replace(chain, b_shown_m=b_shown + k * err.sample_spacing_m),
+            ),
+            (
+                "sample spacing (total length)",
+                lambda k: replace(chain, total_shown_m=total_shown + k * err.sample_spacing_m),
+            ),
         ]
     return terms
 
@@ -641,28 +701,37 @@ def _position(chain: _Chain, inp: LocateInput, two_ended: bool) -> Position:
         if d_route > 0 or d_fiber > 0:
             contributions.append(Contribution(name, d_route, d_fiber))
         sheath_parts.append(d_sheath)
-    uncertainty_m = math.sqrt(sum(c.route_m ** 2 for c in contributions))
+    uncertainty_m = math.sqrt(sum(c.route_m**2 for c in contributions))
     nearest, offset = _nearest(chain, route_m)
     marking = None
     if inp.marking is not None:
         # The sheath-length range, and the markings' own print tolerance on the length counted,
         # root-sum-square: u = √(u_sheath² + (tol · L_sheath)²).
         print_u = abs(sheath_m) * inp.marking.tolerance_percent / 100.0
-        sheath_u = math.sqrt(sum(x * x for x in sheath_parts) + print_u ** 2)
+        sheath_u = math.sqrt(sum(x * x for x in sheath_parts) + print_u**2)
         marking = MarkingResult(
             value=sheath_marking(inp.marking, sheath_m),
             low=sheath_marking(inp.marking, max(0.0, sheath_m - sheath_u)),
             high=sheath_marking(inp.marking, sheath_m + sheath_u),
-            unit=inp.marking.unit, direction=inp.marking.direction)
+            unit=inp.marking.unit,
+            direction=inp.marking.direction,
+        )
     return Position(
-        fiber_distance_m=fiber_m, sheath_distance_m=sheath_m, route_distance_m=route_m,
+        fiber_distance_m=fiber_m,
+        sheath_distance_m=sheath_m,
+        route_distance_m=route_m,
         uncertainty_m=uncertainty_m,
         worst_case_m=sum(c.route_m for c in contributions),
-        fiber_uncertainty_m=math.sqrt(sum(c.fiber_m ** 2 for c in contributions)),
+        fiber_uncertainty_m=math.sqrt(sum(c.fiber_m**2 for c in contributions)),
         sheath_uncertainty_m=math.sqrt(sum(x * x for x in sheath_parts)),
         basis=basis,  # type: ignore[arg-type]
-        between=between, nearest_landmark=nearest, offset_from_landmark_m=offset,
-        in_slack=loop, marking=marking, contributions=tuple(contributions))
+        between=between,
+        nearest_landmark=nearest,
+        offset_from_landmark_m=offset,
+        in_slack=loop,
+        marking=marking,
+        contributions=tuple(contributions),
+    )
 
 
 def _nearest(chain: _Chain, route_m: float) -> tuple[str | None, float | None]:
@@ -701,8 +770,9 @@ def locate(inp: LocateInput) -> Location:
     assert group_index is not None
     index_set = inp.index_set if inp.index_set is not None else group_index
     if inp.group_index is None:
-        warnings.append("No fibre group index given: the index set on the OTDR is taken as the "
-                        "fibre's.")
+        warnings.append(
+            "No fibre group index given: the index set on the OTDR is taken as the fibre's."
+        )
     if inp.otdr_distance_m is not None:
         fault_shown_m = inp.otdr_distance_m
     else:
@@ -710,11 +780,13 @@ def locate(inp: LocateInput) -> Location:
         fault_shown_m = fiber_distance_from_time(inp.round_trip_time_s, index_set)
     helix = inp.helix_percent if inp.helix_percent is not None else 0.0
     if inp.helix_percent is None and not inp.landmarks:
-        warnings.append("No helix given: the sheath is taken as long as the fibre, and the range "
-                        "allows for a helix of up to "
-                        f"{format_number(UNKNOWN_HELIX_MAX_PERCENT)} % (cables are typically "
-                        "0–3 % shorter than their fibre); give the cable's helix or a landmark "
-                        "to narrow it.")
+        warnings.append(
+            "No helix given: the sheath is taken as long as the fibre, and the range "
+            "allows for a helix of up to "
+            f"{format_number(UNKNOWN_HELIX_MAX_PERCENT)} % (cables are typically "
+            "0–3 % shorter than their fibre); give the cable's helix or a landmark "
+            "to narrow it."
+        )
     slack = tuple(sorted(inp.slack, key=lambda s: s.route_position_m))
     marks = tuple(inp.landmarks)
     chain = _Chain(
@@ -722,7 +794,10 @@ def locate(inp: LocateInput) -> Location:
         landmark_shown_m=tuple(m.otdr_distance_m for m in marks),
         landmark_route_m=tuple(m.route_distance_m for m in marks),
         landmark_names=tuple(m.name for m in marks),
-        index_set=index_set, group_index=group_index, helix_percent=helix, slack=slack,
+        index_set=index_set,
+        group_index=group_index,
+        helix_percent=helix,
+        slack=slack,
         b_shown_m=inp.two_ended.from_b_otdr_m if inp.two_ended else None,
         total_shown_m=inp.two_ended.total_otdr_m if inp.two_ended else None,
     )
@@ -736,33 +811,51 @@ def locate(inp: LocateInput) -> Location:
                 f"Two-ended check fails: from A + from B − total = "
                 f"{format_number(two.discrepancy_m, 4)} m, more than the ±"
                 f"{format_number(two.tolerance_m, 3)} m the readings allow. Check the index, the "
-                "total length and that both ends saw the same event before using either.")
+                "total length and that both ends saw the same event before using either."
+            )
         if two.from_a_m > two.total_m:
             warnings.append("The reading from A is beyond the total length.")
-        warnings += [w for w in _position_warnings(two.combined, "Combined estimate: ")
-                     if w.removeprefix("Combined estimate: ") not in warnings]
+        warnings += [
+            w
+            for w in _position_warnings(two.combined, "Combined estimate: ")
+            if w.removeprefix("Combined estimate: ") not in warnings
+        ]
     if inp.marking is not None and position.marking is not None:
         if position.marking.value < 0:
-            warnings.append("The marking counts down past zero before the fault: check the "
-                            "marking at the start and the direction.")
+            warnings.append(
+                "The marking counts down past zero before the fault: check the "
+                "marking at the start and the direction."
+            )
         if marks:
-            warnings.append("Sheath markings hold only along one piece of cable: if the cable is "
-                            "jointed at a closure before the fault, read the marking there.")
-    return Location(position=position, two_ended=two, group_index=group_index,
-                    index_set=index_set, helix_percent=helix, warnings=tuple(warnings))
+            warnings.append(
+                "Sheath markings hold only along one piece of cable: if the cable is "
+                "jointed at a closure before the fault, read the marking there."
+            )
+    return Location(
+        position=position,
+        two_ended=two,
+        group_index=group_index,
+        index_set=index_set,
+        helix_percent=helix,
+        warnings=tuple(warnings),
+    )
 
 
 def _position_warnings(p: Position, prefix: str) -> list[str]:
     out = []
     if p.basis == "extrapolated" and p.between is not None:
         if p.between[0] == p.between[1]:
-            out.append(f"{prefix}Beyond the last landmark ({p.between[0]}): extrapolated with the "
-                       "fibre-to-sheath ratio measured between the landmarks; confirm on site.")
+            out.append(
+                f"{prefix}Beyond the last landmark ({p.between[0]}): extrapolated with the "
+                "fibre-to-sheath ratio measured between the landmarks; confirm on site."
+            )
         else:
             out.append(f"{prefix}Before the first landmark ({p.between[0]}): extrapolated.")
     if p.in_slack is not None:
-        out.append(f"{prefix}The fault falls inside a slack loop, {p.in_slack.describe()}: look "
-                   "in the loop as well as along the run.")
+        out.append(
+            f"{prefix}The fault falls inside a slack loop, {p.in_slack.describe()}: look "
+            "in the loop as well as along the run."
+        )
     return out
 
 
@@ -777,8 +870,11 @@ def _two_ended(chain: _Chain, inp: LocateInput) -> TwoEndedResult:
 
     def var(*distances: float, readings: int) -> float:
         # Nominal variance of a sum of readings, used only to weigh the two estimates.
-        return readings * (err.offset_m ** 2 + err.sample_spacing_m ** 2) + sum(
-            (scale * d * ratio) ** 2 for d in distances) + 1e-12
+        return (
+            readings * (err.offset_m**2 + err.sample_spacing_m**2)
+            + sum((scale * d * ratio) ** 2 for d in distances)
+            + 1e-12
+        )
 
     var_a = var(from_a, readings=1)
     var_b = var(from_b, total, readings=2)
@@ -793,6 +889,12 @@ def _two_ended(chain: _Chain, inp: LocateInput) -> TwoEndedResult:
         parts.append(max(abs(move(k).discrepancy() - discrepancy) for k in (1.0, -1.0)))
     tolerance = math.sqrt(sum(p * p for p in parts))
     return TwoEndedResult(
-        from_a_m=from_a, from_b_m=from_b, total_m=total, discrepancy_m=discrepancy,
-        tolerance_m=tolerance, consistent=abs(discrepancy) <= tolerance, combined=combined,
-        weight_a=weight_a)
+        from_a_m=from_a,
+        from_b_m=from_b,
+        total_m=total,
+        discrepancy_m=discrepancy,
+        tolerance_m=tolerance,
+        consistent=abs(discrepancy) <= tolerance,
+        combined=combined,
+        weight_a=weight_a,
+    )

@@ -103,6 +103,7 @@ def parse_method(text: str) -> Method:
 
 # -- levels and losses -------------------------------------------------------------------------
 
+
 def level_dbm(text: str, what: str = "level") -> float:
     """A typed optical level or power as a level in dBm; a bare number is read as dBm.
 
@@ -139,8 +140,10 @@ def loss_limit_db(text: str, what: str = "limit") -> float:
     """
     limit_db = parse(text, Kind.RATIO, default_unit="dB", what=what).to("dB")
     if limit_db < 0:
-        raise InputError(f"{what}: a loss limit of {limit_db:g} dB is negative; type the "
-                         "largest loss allowed, e.g. 3.5")
+        raise InputError(
+            f"{what}: a loss limit of {limit_db:g} dB is negative; type the "
+            "largest loss allowed, e.g. 3.5"
+        )
     return limit_db
 
 
@@ -184,7 +187,8 @@ def method_limit_db(
     """
     if not 0 <= end_connections_in_budget <= 2:
         raise InputError(
-            f"end connections in the budget: {end_connections_in_budget} is not 0, 1 or 2")
+            f"end connections in the budget: {end_connections_in_budget} is not 0, 1 or 2"
+        )
     if end_connections_in_budget < method.end_connections:
         raise InputError(
             f"the budget counts {end_connections_in_budget} end connection(s) but a {method.value} "
@@ -196,8 +200,10 @@ def method_limit_db(
     left_out = end_connections_in_budget - method.end_connections
     limit_db = budget_loss_db - left_out * end_connection_loss_db
     if limit_db < 0:
-        raise InputError(f"the limit for a {method.value} result comes out negative "
-                         f"({limit_db:.2f} dB); check the budget")
+        raise InputError(
+            f"the limit for a {method.value} result comes out negative "
+            f"({limit_db:.2f} dB); check the budget"
+        )
     return limit_db
 
 
@@ -245,8 +251,14 @@ def judge(loss_db: float, limit_db: float | None, what: str = "loss") -> Verdict
     margin_db = None if limit_db is None else limit_db - loss_db
     if loss_db < 0:
         # No margin either: a negative loss says nothing about the fibre.
-        return Verdict(loss_db, limit_db, None, Status.REFERENCE_PROBLEM, (NEGATIVE_LOSS,),
-                       (negative_loss_warning(loss_db, what),))
+        return Verdict(
+            loss_db,
+            limit_db,
+            None,
+            Status.REFERENCE_PROBLEM,
+            (NEGATIVE_LOSS,),
+            (negative_loss_warning(loss_db, what),),
+        )
     if limit_db is None or margin_db is None:
         return Verdict(loss_db, None, None, Status.NO_LIMIT)
     status = Status.PASS if margin_db >= 0 else Status.FAIL
@@ -304,8 +316,11 @@ def judge_fibre(losses_db: dict[str, float], limit_db: float | None) -> FibreVer
         if direction not in DIRECTIONS:
             raise InputError(f"direction: '{direction}' is not A->B or B->A")
         verdicts[direction] = judge(loss_db, limit_db, f"loss {direction}")
-    average_db = (bidirectional_average_db(losses_db["A->B"], losses_db["B->A"])
-                  if len(losses_db) == 2 else None)
+    average_db = (
+        bidirectional_average_db(losses_db["A->B"], losses_db["B->A"])
+        if len(losses_db) == 2
+        else None
+    )
     statuses = {v.status for v in verdicts.values()}
     if Status.REFERENCE_PROBLEM in statuses:
         status = Status.REFERENCE_PROBLEM
@@ -322,8 +337,9 @@ def judge_fibre(losses_db: dict[str, float], limit_db: float | None) -> FibreVer
             f"the two directions differ by {abs(losses_db['A->B'] - losses_db['B->A']):.2f} dB: "
             "check that both references were set with the same cords, and clean the end faces",
         )
-    return FibreVerdict(verdicts, average_db, limit_db, status, min(margins) if margins else None,
-                        warnings)
+    return FibreVerdict(
+        verdicts, average_db, limit_db, status, min(margins) if margins else None, warnings
+    )
 
 
 #: Difference between the two directions beyond which a warning is shown (common practice).
@@ -364,11 +380,15 @@ class Drift:
     @property
     def message(self) -> str:
         if self.within:
-            return (f"reference drift {self.drift_db:+.2f} dB is within "
-                    f"±{self.tolerance_db:.2f} dB; the results stand")
-        return (f"reference drift {self.drift_db:+.2f} dB is beyond ±{self.tolerance_db:.2f} dB: "
-                "the results taken since the last good reference are in doubt; set a new "
-                "reference and retest them")
+            return (
+                f"reference drift {self.drift_db:+.2f} dB is within "
+                f"±{self.tolerance_db:.2f} dB; the results stand"
+            )
+        return (
+            f"reference drift {self.drift_db:+.2f} dB is beyond ±{self.tolerance_db:.2f} dB: "
+            "the results taken since the last good reference are in doubt; set a new "
+            "reference and retest them"
+        )
 
 
 def reference_drift(initial_dbm: float, recheck_dbm: float, tolerance_db: float) -> Drift:
@@ -457,8 +477,11 @@ def reference_warnings(
             f"{source_dbm:.1f} dBm the source should deliver: clean and inspect the test cord ends "
             "and the meter port, reseat both connectors, and replace the cord if it stays low"
         )
-    if (wavelength_nm is not None and fibre_family(wavelength_nm) == "multimode"
-            and not (launch_condition or "").strip()):
+    if (
+        wavelength_nm is not None
+        and fibre_family(wavelength_nm) == "multimode"
+        and not (launch_condition or "").strip()
+    ):
         warnings.append(
             "multimode reference without a recorded launch condition: IEC 61280-4-1 asks for an "
             "encircled-flux compliant launch; record it (e.g. 'encircled flux')"
@@ -467,6 +490,7 @@ def reference_warnings(
 
 
 # -- summary -----------------------------------------------------------------------------------
+
 
 @dataclass(frozen=True, slots=True)
 class WavelengthSummary:
@@ -506,10 +530,17 @@ def summarise(
             counts[verdict.status] += 1
             worst.append((fibre, verdict.worst_loss_db))
         worst.sort(key=lambda item: (-item[1], item[0]))
-        out.append(WavelengthSummary(
-            wavelength_nm, len(fibres), counts[Status.PASS], counts[Status.FAIL],
-            counts[Status.REFERENCE_PROBLEM], counts[Status.NO_LIMIT],
-            worst[0][0] if worst else None, worst[0][1] if worst else None,
-            tuple(worst[:worst_count]),
-        ))
+        out.append(
+            WavelengthSummary(
+                wavelength_nm,
+                len(fibres),
+                counts[Status.PASS],
+                counts[Status.FAIL],
+                counts[Status.REFERENCE_PROBLEM],
+                counts[Status.NO_LIMIT],
+                worst[0][0] if worst else None,
+                worst[0][1] if worst else None,
+                tuple(worst[:worst_count]),
+            )
+        )
     return out

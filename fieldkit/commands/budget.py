@@ -32,41 +32,84 @@ def add_link_options(parser: argparse.ArgumentParser, *, fibre_alias: bool = Fal
     """
     group = parser.add_argument_group("the link")
     names = ("--fiber", "--fibre-type", "--fibre") if fibre_alias else ("--fiber", "--fibre-type")
-    group.add_argument(*names, dest="fibre_type", metavar="TYPE",
-                       help="fibre type from the presets, e.g. OS2, OM4, G.652.D "
-                       "('fieldkit presets fibres' lists them)")
-    group.add_argument("--attenuation", action="append", metavar="COEF",
-                       help="instead of --fiber: attenuation with its length unit, e.g. "
-                       "'0.35 dB/km' (every wavelength) or '1310=0.35 dB/km' (repeat per "
-                       "wavelength)")
-    group.add_argument("--length", metavar="L", help="fibre length with its unit, e.g. 12.4km, "
-                       "'3900 ft'")
-    group.add_argument("--connectors", metavar="N",
-                       help="mated connector pairs, counting the two end connections "
-                       "(default 2); a reference method decides how many of the two ends a "
-                       "measured limit keeps")
-    group.add_argument("--connector-loss", metavar="DB",
-                       help="loss per mated pair in dB (default: the --connector-grade maximum)")
-    group.add_argument("--connector-grade", metavar="NAME",
-                       help="connector preset (default TIA-568.3-D, 0.75 dB maximum)")
+    group.add_argument(
+        *names,
+        dest="fibre_type",
+        metavar="TYPE",
+        help="fibre type from the presets, e.g. OS2, OM4, G.652.D "
+        "('fieldkit presets fibres' lists them)",
+    )
+    group.add_argument(
+        "--attenuation",
+        action="append",
+        metavar="COEF",
+        help="instead of --fiber: attenuation with its length unit, e.g. "
+        "'0.35 dB/km' (every wavelength) or '1310=0.35 dB/km' (repeat per "
+        "wavelength)",
+    )
+    group.add_argument(
+        "--length", metavar="L", help="fibre length with its unit, e.g. 12.4km, '3900 ft'"
+    )
+    group.add_argument(
+        "--connectors",
+        metavar="N",
+        help="mated connector pairs, counting the two end connections "
+        "(default 2); a reference method decides how many of the two ends a "
+        "measured limit keeps",
+    )
+    group.add_argument(
+        "--connector-loss",
+        metavar="DB",
+        help="loss per mated pair in dB (default: the --connector-grade maximum)",
+    )
+    group.add_argument(
+        "--connector-grade",
+        metavar="NAME",
+        help="connector preset (default TIA-568.3-D, 0.75 dB maximum)",
+    )
     group.add_argument("--splices", metavar="N", help="number of splices (default 0)")
-    group.add_argument("--splice-loss", metavar="DB",
-                       help="loss per splice in dB (default: the --splice-type maximum)")
-    group.add_argument("--splice-type", metavar="NAME",
-                       help="splice preset: fusion (default), mechanical, ...")
-    group.add_argument("--splitter", action="append", metavar="1xN",
-                       help="a 1xN or 2xN splitter: ideal 10·log10(N) plus the preset's excess "
-                       "(repeatable)")
-    group.add_argument("--component", action="append", metavar="NAME",
-                       help="a component preset, e.g. 'CWDM mux or demux' (repeatable)")
-    group.add_argument("--attenuator", action="append", metavar="DB",
-                       help="a fixed attenuator of this value (repeatable)")
-    group.add_argument("--other-loss", action="append", metavar="DB",
-                       help="any other loss in the path, in dB (repeatable)")
-    group.add_argument("--margin", metavar="DB",
-                       help="design margin for repairs and ageing, shown beside the link loss")
-    group.add_argument("--link-file", metavar="FILE",
-                       help="a link description file (TOML or JSON) instead of the options above")
+    group.add_argument(
+        "--splice-loss",
+        metavar="DB",
+        help="loss per splice in dB (default: the --splice-type maximum)",
+    )
+    group.add_argument(
+        "--splice-type", metavar="NAME", help="splice preset: fusion (default), mechanical, ..."
+    )
+    group.add_argument(
+        "--splitter",
+        action="append",
+        metavar="1xN",
+        help="a 1xN or 2xN splitter: ideal 10·log10(N) plus the preset's excess (repeatable)",
+    )
+    group.add_argument(
+        "--component",
+        action="append",
+        metavar="NAME",
+        help="a component preset, e.g. 'CWDM mux or demux' (repeatable)",
+    )
+    group.add_argument(
+        "--attenuator",
+        action="append",
+        metavar="DB",
+        help="a fixed attenuator of this value (repeatable)",
+    )
+    group.add_argument(
+        "--other-loss",
+        action="append",
+        metavar="DB",
+        help="any other loss in the path, in dB (repeatable)",
+    )
+    group.add_argument(
+        "--margin",
+        metavar="DB",
+        help="design margin for repairs and ageing, shown beside the link loss",
+    )
+    group.add_argument(
+        "--link-file",
+        metavar="FILE",
+        help="a link description file (TOML or JSON) instead of the options above",
+    )
 
 
 def link_given(args: argparse.Namespace) -> bool:
@@ -81,8 +124,15 @@ def spec_from_args(args: argparse.Namespace) -> dict[str, Any]:
     file_name = getattr(args, "link_file", None) or getattr(args, "file", None)
     wavelengths = _wavelengths(args)
     if file_name:
-        used = [flag for flag, d in (("--fiber", "fibre_type"), ("--attenuation", "attenuation"),
-                                     ("--length", "length")) if getattr(args, d, None)]
+        used = [
+            flag
+            for flag, d in (
+                ("--fiber", "fibre_type"),
+                ("--attenuation", "attenuation"),
+                ("--length", "length"),
+            )
+            if getattr(args, d, None)
+        ]
         if used:
             raise CommandError(f"give a link file or {', '.join(used)}, not both")
         from_file = load_spec_file(Path(file_name))
@@ -169,24 +219,33 @@ def _attenuation_spec(values: list[str]) -> Any:
 def _overlay_checks(spec: dict[str, Any], args: argparse.Namespace) -> dict[str, Any]:
     application = getattr(args, "application", None)
     # An empty name (an unset shell variable) is refused by name, never dropped silently.
-    for option, value in (("--application", application),
-                          ("--transceiver", getattr(args, "transceiver", None))):
+    for option, value in (
+        ("--application", application),
+        ("--transceiver", getattr(args, "transceiver", None)),
+    ):
         if value is not None and not value.strip():
-            raise CommandError(f"{option}: empty; give a preset name ('fieldkit presets' "
-                               "lists them)")
+            raise CommandError(
+                f"{option}: empty; give a preset name ('fieldkit presets' lists them)"
+            )
     if application:
         spec["application"] = application
-    levels = [getattr(args, k, None) for k in ("tx_min", "tx_max", "rx_sensitivity",
-                                               "rx_overload")]
+    levels = [getattr(args, k, None) for k in ("tx_min", "tx_max", "rx_sensitivity", "rx_overload")]
     named = getattr(args, "transceiver", None)
     if any(v is not None for v in levels):
         if named:
             raise CommandError("give --transceiver or the four levels, not both")
         if not all(v is not None for v in levels):
-            raise CommandError("the transceiver check needs all four of --tx-min, --tx-max, "
-                               "--rx-sensitivity and --rx-overload")
-        spec["transceiver"] = dict(zip(("tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm",
-                                        "rx_overload_dbm"), levels, strict=True))
+            raise CommandError(
+                "the transceiver check needs all four of --tx-min, --tx-max, "
+                "--rx-sensitivity and --rx-overload"
+            )
+        spec["transceiver"] = dict(
+            zip(
+                ("tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm", "rx_overload_dbm"),
+                levels,
+                strict=True,
+            )
+        )
     elif named:
         spec["transceiver"] = named
     return spec
@@ -253,16 +312,24 @@ def register(subparsers: Any) -> None:
         "levels check a transceiver pair and size an attenuator.",
         epilog=_FILE_EXAMPLE,
     )
-    parser.add_argument("file", nargs="?", metavar="FILE",
-                        help="a link description file (TOML or JSON)")
+    parser.add_argument(
+        "file", nargs="?", metavar="FILE", help="a link description file (TOML or JSON)"
+    )
     add_link_options(parser, fibre_alias=True)
-    parser.add_argument("--wavelength", action="append", metavar="NM",
-                        help="wavelength in nm (repeatable; default 850 and 1300 nm multimode, "
-                        "1310 and 1550 nm single-mode)")
+    parser.add_argument(
+        "--wavelength",
+        action="append",
+        metavar="NM",
+        help="wavelength in nm (repeatable; default 850 and 1300 nm multimode, "
+        "1310 and 1550 nm single-mode)",
+    )
     checks = parser.add_argument_group("checks")
-    checks.add_argument("--application", metavar="NAME",
-                        help="application preset, e.g. 10GBASE-SR, 'GPON Class B+' "
-                        "('fieldkit presets applications' lists them)")
+    checks.add_argument(
+        "--application",
+        metavar="NAME",
+        help="application preset, e.g. 10GBASE-SR, 'GPON Class B+' "
+        "('fieldkit presets applications' lists them)",
+    )
     checks.add_argument("--transceiver", metavar="NAME", help="transceiver preset")
     checks.add_argument("--tx-min", metavar="DBM", help="transmitter minimum launch power")
     checks.add_argument("--tx-max", metavar="DBM", help="transmitter maximum launch power")
@@ -270,8 +337,11 @@ def register(subparsers: Any) -> None:
     checks.add_argument("--rx-overload", metavar="DBM", help="receiver overload level")
     save = parser.add_argument_group("saving onto a job")
     save.add_argument("--job", metavar="ID", help="save the budget onto this job (id or prefix)")
-    save.add_argument("--link", metavar="LINK",
-                      help="the job's link (label or id; a new link by that label is added)")
+    save.add_argument(
+        "--link",
+        metavar="LINK",
+        help="the job's link (label or id; a new link by that label is added)",
+    )
     save.add_argument("--by", default="", metavar="NAME", help="who computed the budget")
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(parser)
@@ -316,9 +386,15 @@ def _save(args: argparse.Namespace, resolved: Any, report: Any) -> dict[str, str
         for item in job.links:
             if item.id == args.link:
                 target = item
-        target = target or job.link_by_label(args.link) or job.add_link(
-            args.link, length_m=resolved.link.length_m,
-            fibre_type=", ".join(resolved.link.fibre_names))
+        target = (
+            target
+            or job.link_by_label(args.link)
+            or job.add_link(
+                args.link,
+                length_m=resolved.link.length_m,
+                fibre_type=", ".join(resolved.link.fibre_names),
+            )
+        )
         target.budget = record
         found.update(job_id=job.id, job=job.name, link_id=target.id, link=target.label)
 

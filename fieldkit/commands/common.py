@@ -33,8 +33,11 @@ def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:
         return
     more = f" (and {len(problems) - 1} more)" if len(problems) > 1 else ""
     first = " ".join(problems[0].split())
-    print(f"fieldkit {getattr(args, 'command', '')}: warning: preset skipped: {first}{more}; "
-          "'fieldkit presets' lists the problems", file=sys.stderr)
+    print(
+        f"fieldkit {getattr(args, 'command', '')}: warning: preset skipped: {first}{more}; "
+        "'fieldkit presets' lists the problems",
+        file=sys.stderr,
+    )
 
 
 def plain_text(text: str, what: str, *, multiline: bool = False) -> str:
@@ -53,8 +56,9 @@ def plain_text(text: str, what: str, *, multiline: bool = False) -> str:
             raise CommandError(f"{what}: holds bytes that are not UTF-8 text; retype it")
         if category == "Cc" or ch in "\u2028\u2029":
             where = "" if multiline else " on one line"
-            raise CommandError(f"{what}: holds a control character (U+{ord(ch):04X}); type "
-                               f"plain text{where}")
+            raise CommandError(
+                f"{what}: holds a control character (U+{ord(ch):04X}); type plain text{where}"
+            )
     return text
 
 

@@ -23,15 +23,17 @@ MARKER_TEXT = (
 
 def register(subparsers: Any) -> None:
     parser: argparse.ArgumentParser = subparsers.add_parser(
-        "demo", help="open the app on an invented day of fibre work (demo data)",
+        "demo",
+        help="open the app on an invented day of fibre work (demo data)",
         description="Write an invented scenario (fictional town, sites, crews; jobs with "
         "links, budgets, references, results, notes, splices and a located fault) into a demo "
         "folder and start the terminal UI on it, in the jobs workspace. The demo folder is "
         "<data folder>/demo, or --data-dir; your own jobs are never touched.",
     )
     add_data_dir(parser)
-    parser.add_argument("--no-ui", action="store_true",
-                        help="only write the demo data and print its folder")
+    parser.add_argument(
+        "--no-ui", action="store_true", help="only write the demo data and print its folder"
+    )
     parser.set_defaults(func=run)
 
 
@@ -57,8 +59,10 @@ def write_demo(folder: Path) -> list[str]:
     if not marker.exists():
         existing = [s.id for s in store.list() if s.id not in DEMO_IDS]
         if existing:
-            raise CommandError(f"{folder} already holds {len(existing)} jobs that are not demo "
-                               "data; give the demo an empty folder with --data-dir")
+            raise CommandError(
+                f"{folder} already holds {len(existing)} jobs that are not demo "
+                "data; give the demo an empty folder with --data-dir"
+            )
     folder.mkdir(parents=True, exist_ok=True)
     atomic_write_bytes(marker, MARKER_TEXT.encode())
     ids = []
@@ -77,13 +81,13 @@ def run(args: argparse.Namespace) -> int:
     try:
         write_demo(folder)
     except OSError as exc:
-        raise CommandError(f"the demo could not be written to {folder}: "
-                           f"{exc.strerror or exc}") from None
+        raise CommandError(
+            f"the demo could not be written to {folder}: {exc.strerror or exc}"
+        ) from None
     if args.no_ui:
         print(folder)
         return 0
     from fieldkit.tui.app import make_app
 
-    make_app(data_dir=folder, config_dir=getattr(args, "config_dir", None),
-             start_mode="jobs").run()
+    make_app(data_dir=folder, config_dir=getattr(args, "config_dir", None), start_mode="jobs").run()
     return 0

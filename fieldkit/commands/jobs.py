@@ -32,13 +32,15 @@ if TYPE_CHECKING:
 
 def register(subparsers: Any) -> None:
     parser: argparse.ArgumentParser = subparsers.add_parser(
-        "jobs", help="per-job logs: create, list, show, note, finish, export, import, today",
+        "jobs",
+        help="per-job logs: create, list, show, note, finish, export, import, today",
         description="Per-job logs kept as one JSON file per job in the data folder. ID may be "
         "any unique prefix of a job id (see 'jobs list').",
     )
     add_data_dir(parser)
-    actions = parser.add_subparsers(dest="jobs_command", metavar="ACTION", required=True,
-                                    parser_class=type(parser))
+    actions = parser.add_subparsers(
+        dest="jobs_command", metavar="ACTION", required=True, parser_class=type(parser)
+    )
 
     class _Sub:
         """Every action takes --data-dir too, so it may come last on the line."""
@@ -55,21 +57,29 @@ def register(subparsers: Any) -> None:
     p.add_argument("name", help="the job's name")
     p.add_argument("--site", default="", help="where the work is")
     p.add_argument("--customer", default="", help="who it is for")
-    p.add_argument("--crew", action="append", default=[], metavar="NAME",
-                   help="a crew member (repeatable)")
+    p.add_argument(
+        "--crew", action="append", default=[], metavar="NAME", help="a crew member (repeatable)"
+    )
     p.add_argument("--by", default="", help="who creates the job (noted in its log)")
-    p.add_argument("--json", action="store_true", help="print one JSON object with \"id\"")
+    p.add_argument("--json", action="store_true", help='print one JSON object with "id"')
     p.set_defaults(func=_guard(run_new))
 
     p = sub.add_parser("list", help="list jobs, most recently updated first")
     p.add_argument("--status", choices=("open", "done"), help="only open or only done jobs")
-    p.add_argument("--search", default="", metavar="TEXT",
-                   help="words to find in the name, customer, site, crew or link labels")
+    p.add_argument(
+        "--search",
+        default="",
+        metavar="TEXT",
+        help="words to find in the name, customer, site, crew or link labels",
+    )
     when = p.add_mutually_exclusive_group()
     when.add_argument("--date", metavar="YYYY-MM-DD", help="created or updated on that day")
     when.add_argument("--today", action="store_true", help="created or updated today")
-    p.add_argument("--rescan", action="store_true",
-                   help="check every file against the index (after editing files by hand)")
+    p.add_argument(
+        "--rescan",
+        action="store_true",
+        help="check every file against the index (after editing files by hand)",
+    )
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_list))
 
@@ -85,8 +95,10 @@ def register(subparsers: Any) -> None:
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_note))
 
-    for name, status, text in (("done", "done", "mark a job done"),
-                               ("reopen", "open", "mark a done job open again")):
+    for name, status, text in (
+        ("done", "done", "mark a job done"),
+        ("reopen", "open", "mark a done job open again"),
+    ):
         p = sub.add_parser(name, help=text)
         p.add_argument("id", help="job id or a unique prefix")
         p.add_argument("--json", action="store_true", help="print one JSON object")
@@ -94,9 +106,13 @@ def register(subparsers: Any) -> None:
 
     p = sub.add_parser("export", help="a report of a job as CSV, Markdown, HTML or JSON")
     p.add_argument("id", help="job id or a unique prefix")
-    p.add_argument("--format", required=True, choices=("csv", "md", "html", "json"),
-                   help="csv: one row per result; md/html: the customer report; json: a "
-                   "hand-off file for 'jobs import' on another laptop")
+    p.add_argument(
+        "--format",
+        required=True,
+        choices=("csv", "md", "html", "json"),
+        help="csv: one row per result; md/html: the customer report; json: a "
+        "hand-off file for 'jobs import' on another laptop",
+    )
     p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of stdout")
     p.set_defaults(func=_guard(run_export))
 
@@ -105,8 +121,11 @@ def register(subparsers: Any) -> None:
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_import))
 
-    p = sub.add_parser("today", help="the end-of-day summary: today's jobs, results, "
-                       "failures, references in doubt and open items")
+    p = sub.add_parser(
+        "today",
+        help="the end-of-day summary: today's jobs, results, "
+        "failures, references in doubt and open items",
+    )
     p.add_argument("--date", metavar="YYYY-MM-DD", help="another day (default: today)")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_today))
@@ -129,8 +148,9 @@ def _guard(func: Callable[[argparse.Namespace], int]) -> Callable[[argparse.Name
         except BrokenPipeError:
             raise  # the reader went away (e.g. `| head`): cli.main ends quietly
         except OSError as exc:
-            raise CommandError(f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": "))\
-                from None
+            raise CommandError(
+                f"{exc.strerror or exc}: {exc.filename or ''}".rstrip(": ")
+            ) from None
 
     return run
 
@@ -157,15 +177,28 @@ def _warn_problems(store: JobStore) -> None:
 
 
 def run_new(args: argparse.Namespace) -> int:
-    for value, what in ((args.name, "name"), (args.site, "site"), (args.customer, "customer"),
-                        (args.by, "by"), *((c, "crew") for c in args.crew or ())):
+    for value, what in (
+        (args.name, "name"),
+        (args.site, "site"),
+        (args.customer, "customer"),
+        (args.by, "by"),
+        *((c, "crew") for c in args.crew or ()),
+    ):
         plain_text(value or "", what)
     store = store_of(args)
-    job = store.create(args.name, site=args.site, customer=args.customer, crew=args.crew,
-                       by=args.by)
+    job = store.create(
+        args.name, site=args.site, customer=args.customer, crew=args.crew, by=args.by
+    )
     if args.json:
-        print_json({"id": job.id, "name": job.name, "site": job.site,
-                    "customer": job.customer, "crew": job.crew})
+        print_json(
+            {
+                "id": job.id,
+                "name": job.name,
+                "site": job.site,
+                "customer": job.customer,
+                "crew": job.crew,
+            }
+        )
     else:
         print(job.id)
     return 0
@@ -176,8 +209,9 @@ def run_list(args: argparse.Namespace) -> int:
 
     store = store_of(args)
     on_date = _day(None) if args.today else _day(args.date) if args.date is not None else None
-    rows = filter_summaries(store.list(rescan=args.rescan), text=args.search,
-                            status=args.status, on_date=on_date)
+    rows = filter_summaries(
+        store.list(rescan=args.rescan), text=args.search, status=args.status, on_date=on_date
+    )
     _warn_problems(store)
     if args.json:
         print_json({"jobs": [s.as_dict() for s in rows], "count": len(rows)})
@@ -189,9 +223,11 @@ def run_list(args: argparse.Namespace) -> int:
         failed = f" {s.failed_count} failed" if s.failed_count else ""
         where = f" · {s.site}" if s.site else ""
         flag = " (read-only)" if s.read_only else ""
-        print(f"{s.id}  {s.status:<4}  {local_date(s.updated_at).isoformat()}  "
-              f"{s.name}{where}  [{s.link_count} links, {s.result_count} results{failed}]"
-              f"{flag}")
+        print(
+            f"{s.id}  {s.status:<4}  {local_date(s.updated_at).isoformat()}  "
+            f"{s.name}{where}  [{s.link_count} links, {s.result_count} results{failed}]"
+            f"{flag}"
+        )
     return 0
 
 
@@ -206,16 +242,23 @@ def run_show(args: argparse.Namespace) -> int:
     _store, job = _job(args)
     summary = job_summary(job)
     if args.json:
-        print_json({"job": job.model_dump(mode="json"),
-                    "summary": [row.as_dict() for row in summary],
-                    "read_only": job.read_only})
+        print_json(
+            {
+                "job": job.model_dump(mode="json"),
+                "summary": [row.as_dict() for row in summary],
+                "read_only": job.read_only,
+            }
+        )
         return 0
     if job.read_only:
         print(f"note: {job.read_only}")
     print(f"{job.name}  ({job.status})")
     print(f"  id        {job.id}")
-    for label, value in (("customer", job.customer), ("site", job.site),
-                         ("crew", ", ".join(job.crew))):
+    for label, value in (
+        ("customer", job.customer),
+        ("site", job.site),
+        ("crew", ", ".join(job.crew)),
+    ):
         if value:
             print(f"  {label:<9} {value}")
     print(f"  created   {fmt_time(job.created_at)}")
@@ -227,9 +270,11 @@ def run_show(args: argparse.Namespace) -> int:
         print(f"link {link.label}{ends}")
         rows = [r for r in summary if r.link_id == link.id]
         for r in rows:
-            print(f"  {r.wavelength_nm:g} nm: {r.tested} fibres tested, {r.passed} passed, "
-                  f"{r.failed} failed, {r.no_limit} without limit"
-                  + (f", {r.in_doubt} in doubt" if r.in_doubt else ""))
+            print(
+                f"  {r.wavelength_nm:g} nm: {r.tested} fibres tested, {r.passed} passed, "
+                f"{r.failed} failed, {r.no_limit} without limit"
+                + (f", {r.in_doubt} in doubt" if r.in_doubt else "")
+            )
         extras = []
         if link.budget is not None:
             extras.append("budget")
@@ -315,8 +360,10 @@ def run_import(args: argparse.Namespace) -> int:
     if args.json:
         print_json(report.as_dict())
     else:
-        print(f"{len(report.added_jobs)} jobs added, {len(report.merged_jobs)} merged "
-              f"({report.added_records} new entries), {len(report.unchanged_jobs)} unchanged")
+        print(
+            f"{len(report.added_jobs)} jobs added, {len(report.merged_jobs)} merged "
+            f"({report.added_records} new entries), {len(report.unchanged_jobs)} unchanged"
+        )
         for conflict in report.conflicts:
             print(f"conflict: {conflict}")
     return 0
@@ -332,9 +379,11 @@ def run_today(args: argparse.Namespace) -> int:
         print_json(summary.as_dict())
         return 0
     t = summary.totals()
-    print(f"{summary.day.isoformat()}: {t['jobs']} jobs ({t['open_jobs']} open), "
-          f"{t['results_today']} results today; latest per fibre: {t['passed']} passed, "
-          f"{t['failed']} failed, {t['no_limit']} without limit, {t['in_doubt']} in doubt")
+    print(
+        f"{summary.day.isoformat()}: {t['jobs']} jobs ({t['open_jobs']} open), "
+        f"{t['results_today']} results today; latest per fibre: {t['passed']} passed, "
+        f"{t['failed']} failed, {t['no_limit']} without limit, {t['in_doubt']} in doubt"
+    )
     for job in summary.jobs:
         print(f"\n{job.name} ({job.status}) {job.id}")
         for failure in job.failures:

@@ -35,55 +35,97 @@ def register(subparsers: Any) -> None:
         "the worst case, their sum, is shown beside it.",
     )
     reading = parser.add_argument_group("the reading (one of)")
-    reading.add_argument("--distance", metavar="D", help="the event's distance as the OTDR shows "
-                         "it, e.g. '3.412 km'")
+    reading.add_argument(
+        "--distance", metavar="D", help="the event's distance as the OTDR shows it, e.g. '3.412 km'"
+    )
     reading.add_argument("--time", metavar="T", help="the round-trip time, e.g. '34.1 us'")
     index = parser.add_argument_group("group index")
-    index.add_argument("--ior-set", metavar="N", help="the group index the OTDR was set to "
-                       "(default: the fibre's)")
+    index.add_argument(
+        "--ior-set", metavar="N", help="the group index the OTDR was set to (default: the fibre's)"
+    )
     index.add_argument("--ior", metavar="N", help="the fibre's group index, typed")
-    index.add_argument("--fiber", "--fibre", dest="fiber", metavar="TYPE",
-                       help="a fibre preset (e.g. G.652.D, OS2, OM3) giving the group index")
-    index.add_argument("--wavelength", metavar="NM", help="the OTDR wavelength for --fiber, e.g. "
-                       "1550")
+    index.add_argument(
+        "--fiber",
+        "--fibre",
+        dest="fiber",
+        metavar="TYPE",
+        help="a fibre preset (e.g. G.652.D, OS2, OM3) giving the group index",
+    )
+    index.add_argument(
+        "--wavelength", metavar="NM", help="the OTDR wavelength for --fiber, e.g. 1550"
+    )
     route = parser.add_argument_group("cable and route")
     route.add_argument("--helix", metavar="PCT", help="helix / excess fibre length, percent")
-    route.add_argument("--cable", metavar="NAME", help="a cable construction preset giving the "
-                       "helix and its uncertainty (see --list-cables)")
-    route.add_argument("--slack", action="append", default=[], metavar="POS:LEN",
-                       help="a slack loop or storage coil: route position and cable length "
-                       "(repeatable), e.g. '1200:20' or '1.2 km:20 m'")
-    route.add_argument("--landmark", action="append", default=[],
-                       metavar="NAME:OTDR_DISTANCE:ROUTE_DISTANCE",
-                       help="a landmark (repeatable), e.g. 'closure 7:3.400 km:3330'")
+    route.add_argument(
+        "--cable",
+        metavar="NAME",
+        help="a cable construction preset giving the helix and its uncertainty (see --list-cables)",
+    )
+    route.add_argument(
+        "--slack",
+        action="append",
+        default=[],
+        metavar="POS:LEN",
+        help="a slack loop or storage coil: route position and cable length "
+        "(repeatable), e.g. '1200:20' or '1.2 km:20 m'",
+    )
+    route.add_argument(
+        "--landmark",
+        action="append",
+        default=[],
+        metavar="NAME:OTDR_DISTANCE:ROUTE_DISTANCE",
+        help="a landmark (repeatable), e.g. 'closure 7:3.400 km:3330'",
+    )
     marking = parser.add_argument_group("sheath markings")
     marking.add_argument("--marking-start", metavar="M", help="the sheath marking at the start")
-    marking.add_argument("--marking-unit", choices=("m", "ft"), default="m",
-                         help="the unit the sheath is marked in (default m)")
-    marking.add_argument("--marking-direction", choices=("up", "down"), default="up",
-                         help="whether markings count up or down away from the start "
-                         "(default up)")
+    marking.add_argument(
+        "--marking-unit",
+        choices=("m", "ft"),
+        default="m",
+        help="the unit the sheath is marked in (default m)",
+    )
+    marking.add_argument(
+        "--marking-direction",
+        choices=("up", "down"),
+        default="up",
+        help="whether markings count up or down away from the start (default up)",
+    )
     two = parser.add_argument_group("two-ended check")
-    two.add_argument("--from-b", metavar="D", help="the same event's distance from the far end "
-                     "(same set-up)")
+    two.add_argument(
+        "--from-b", metavar="D", help="the same event's distance from the far end (same set-up)"
+    )
     two.add_argument("--total", metavar="D", help="the end-to-end length as the OTDR shows it")
     err = parser.add_argument_group("uncertainty (± half-widths; typical defaults)")
     err.add_argument("--offset", metavar="D", help="instrument offset (default 1 m)")
-    err.add_argument("--scale-error", metavar="PCT", help="scale error, percent of distance "
-                     "(default 0.01)")
+    err.add_argument(
+        "--scale-error", metavar="PCT", help="scale error, percent of distance (default 0.01)"
+    )
     err.add_argument("--sample-spacing", metavar="D", help="sample spacing (default 1 m)")
-    err.add_argument("--ior-uncertainty", metavar="N", help="group index uncertainty "
-                     "(default 0.001)")
-    err.add_argument("--helix-uncertainty", metavar="PCT", help="helix uncertainty, percentage "
-                     "points (default: the cable preset's, or 0.5 with --helix)")
-    err.add_argument("--landmark-uncertainty", metavar="D", help="route distance uncertainty of "
-                     "each landmark (default 0)")
+    err.add_argument(
+        "--ior-uncertainty", metavar="N", help="group index uncertainty (default 0.001)"
+    )
+    err.add_argument(
+        "--helix-uncertainty",
+        metavar="PCT",
+        help="helix uncertainty, percentage "
+        "points (default: the cable preset's, or 0.5 with --helix)",
+    )
+    err.add_argument(
+        "--landmark-uncertainty",
+        metavar="D",
+        help="route distance uncertainty of each landmark (default 0)",
+    )
     out = parser.add_argument_group("output")
-    out.add_argument("--unit", choices=("m", "km", "ft", "mi"), default="m",
-                     help="unit of the text output (default m; --json is always in metres)")
+    out.add_argument(
+        "--unit",
+        choices=("m", "km", "ft", "mi"),
+        default="m",
+        help="unit of the text output (default m; --json is always in metres)",
+    )
     out.add_argument("--json", action="store_true", help="print one JSON object")
-    out.add_argument("--list-cables", action="store_true",
-                     help="list the cable construction presets and exit")
+    out.add_argument(
+        "--list-cables", action="store_true", help="list the cable construction presets and exit"
+    )
     save = parser.add_argument_group("saving onto a job's link")
     save.add_argument("--job", metavar="ID", help="the job (its id or the start of it)")
     save.add_argument("--link", metavar="LINK", help="the link's id or label (created if new)")
@@ -117,8 +159,10 @@ def run(args: argparse.Namespace) -> int:
     for line in report_lines(location, unit=args.unit, notes=notes):
         print(line)
     if saved:
-        print(f"Saved onto job {saved['job_id']}, link {saved['link_label']} "
-              f"(fault {saved['fault_id']}).")
+        print(
+            f"Saved onto job {saved['job_id']}, link {saved['link_label']} "
+            f"(fault {saved['fault_id']})."
+        )
     print()
     print(safety.DIGGING)
     print(safety.DEFER)
@@ -156,8 +200,11 @@ def parse_landmark(text: str) -> Any:
     if len(parts) != 3 or not parts[0].strip():
         raise CommandError(f"landmark: '{text}' is not NAME:OTDR_DISTANCE:ROUTE_DISTANCE")
     name = plain_text(parts[0].strip(), "landmark name")
-    return Landmark(name, _length_m(parts[1], f"landmark '{name}' OTDR distance"),
-                    _length_m(parts[2], f"landmark '{name}' route distance"))
+    return Landmark(
+        name,
+        _length_m(parts[1], f"landmark '{name}' OTDR distance"),
+        _length_m(parts[2], f"landmark '{name}' route distance"),
+    )
 
 
 def parse_slack(text: str) -> Any:
@@ -168,8 +215,11 @@ def parse_slack(text: str) -> Any:
     if len(parts) < 2:
         raise CommandError(f"slack: '{text}' is not POS:LEN (route position : cable length)")
     label = parts[2].strip() if len(parts) == 3 else ""
-    return SlackLoop(_length_m(parts[0], "slack route position"),
-                     _length_m(parts[1], "slack cable length"), label)
+    return SlackLoop(
+        _length_m(parts[0], "slack route position"),
+        _length_m(parts[1], "slack cable length"),
+        label,
+    )
 
 
 def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], list[str]]:
@@ -182,7 +232,7 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
     if bool(args.distance) == bool(args.time):
         raise CommandError("give either --distance or --time")
     distance_m = _length_m(args.distance, "distance") if args.distance else None
-    time_s = (parse(args.time, Kind.TIME, what="time").to("s") if args.time else None)
+    time_s = parse(args.time, Kind.TIME, what="time").to("s") if args.time else None
     if args.ior and args.fiber:
         raise CommandError("give either --ior or --fiber, not both")
     group_index: float | None = None
@@ -194,11 +244,14 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
             raise CommandError("--fiber needs --wavelength (the OTDR's wavelength in nm)")
         library = _presets(args)
         fibre = library.find("fibres", args.fiber)
-        wavelength_nm = parse(args.wavelength, Kind.LENGTH, default_unit="nm",
-                              what="wavelength").to("nm")
+        wavelength_nm = parse(
+            args.wavelength, Kind.LENGTH, default_unit="nm", what="wavelength"
+        ).to("nm")
         group_index = fibre.group_index(wavelength_nm)
-        notes.append(f"Group index {group_index:.4f}: {fibre.name} at {wavelength_nm:g} nm, "
-                     "typical (fibre preset).")
+        notes.append(
+            f"Group index {group_index:.4f}: {fibre.name} at {wavelength_nm:g} nm, "
+            "typical (fibre preset)."
+        )
     elif args.wavelength:
         raise CommandError("--wavelength goes with --fiber")
     index_set = _number(args.ior_set, "ior-set") if args.ior_set else None
@@ -219,37 +272,65 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
     defaults = ErrorTerms()
     errors = ErrorTerms(
         offset_m=_length_m(args.offset, "offset") if args.offset else defaults.offset_m,
-        scale_error_percent=(_percent(args.scale_error, "scale error") if args.scale_error
-                             else defaults.scale_error_percent),
-        sample_spacing_m=(_length_m(args.sample_spacing, "sample spacing")
-                          if args.sample_spacing else defaults.sample_spacing_m),
-        group_index_uncertainty=(_number(args.ior_uncertainty, "ior uncertainty")
-                                 if args.ior_uncertainty else defaults.group_index_uncertainty),
+        scale_error_percent=(
+            _percent(args.scale_error, "scale error")
+            if args.scale_error
+            else defaults.scale_error_percent
+        ),
+        sample_spacing_m=(
+            _length_m(args.sample_spacing, "sample spacing")
+            if args.sample_spacing
+            else defaults.sample_spacing_m
+        ),
+        group_index_uncertainty=(
+            _number(args.ior_uncertainty, "ior uncertainty")
+            if args.ior_uncertainty
+            else defaults.group_index_uncertainty
+        ),
         helix_uncertainty_percent=helix_u,
-        landmark_route_uncertainty_m=(_length_m(args.landmark_uncertainty, "landmark uncertainty")
-                                      if args.landmark_uncertainty else 0.0),
+        landmark_route_uncertainty_m=(
+            _length_m(args.landmark_uncertainty, "landmark uncertainty")
+            if args.landmark_uncertainty
+            else 0.0
+        ),
     )
     marking = None
     if args.marking_start:
-        marking = Marking(_number(args.marking_start, "marking start"), args.marking_unit,
-                          args.marking_direction)
+        marking = Marking(
+            _number(args.marking_start, "marking start"), args.marking_unit, args.marking_direction
+        )
     two_ended = None
     if args.from_b or args.total:
         if not (args.from_b and args.total):
             raise CommandError("the two-ended check needs both --from-b and --total")
         two_ended = TwoEnded(_length_m(args.from_b, "from-b"), _length_m(args.total, "total"))
     inp = LocateInput(
-        otdr_distance_m=distance_m, round_trip_time_s=time_s, index_set=index_set,
-        group_index=group_index, helix_percent=helix,
+        otdr_distance_m=distance_m,
+        round_trip_time_s=time_s,
+        index_set=index_set,
+        group_index=group_index,
+        helix_percent=helix,
         slack=tuple(parse_slack(s) for s in args.slack),
         landmarks=tuple(parse_landmark(s) for s in args.landmark),
-        marking=marking, two_ended=two_ended, errors=errors)
+        marking=marking,
+        two_ended=two_ended,
+        errors=errors,
+    )
     inputs = {
-        "distance": args.distance, "time": args.time, "ior_set": args.ior_set, "ior": args.ior,
-        "fiber": args.fiber, "wavelength": args.wavelength, "helix": args.helix,
-        "cable": args.cable, "slack": list(args.slack), "landmarks": list(args.landmark),
-        "marking_start": args.marking_start, "marking_unit": args.marking_unit,
-        "marking_direction": args.marking_direction, "from_b": args.from_b,
+        "distance": args.distance,
+        "time": args.time,
+        "ior_set": args.ior_set,
+        "ior": args.ior,
+        "fiber": args.fiber,
+        "wavelength": args.wavelength,
+        "helix": args.helix,
+        "cable": args.cable,
+        "slack": list(args.slack),
+        "landmarks": list(args.landmark),
+        "marking_start": args.marking_start,
+        "marking_unit": args.marking_unit,
+        "marking_direction": args.marking_direction,
+        "from_b": args.from_b,
         "total": args.total,
     }
     return inp, input_record(inp, {k: v for k, v in inputs.items() if v not in (None, [])}), notes
@@ -269,14 +350,26 @@ def _list_cables(args: argparse.Namespace) -> int:
     library = _presets(args)
     cables = list(library.cables.values())
     if args.json:
-        print_json({"cables": [{"name": c.name, "construction": c.construction,
-                                "helix_percent": c.helix_percent,
-                                "helix_uncertainty_percent": c.helix_uncertainty_percent,
-                                "source": c.source} for c in cables]})
+        print_json(
+            {
+                "cables": [
+                    {
+                        "name": c.name,
+                        "construction": c.construction,
+                        "helix_percent": c.helix_percent,
+                        "helix_uncertainty_percent": c.helix_uncertainty_percent,
+                        "source": c.source,
+                    }
+                    for c in cables
+                ]
+            }
+        )
         return 0
     for c in cables:
-        print(f"{c.name}: {c.helix_percent:g} ± {c.helix_uncertainty_percent:g} % (typical) — "
-              f"{c.construction}")
+        print(
+            f"{c.name}: {c.helix_percent:g} ± {c.helix_uncertainty_percent:g} % (typical) — "
+            f"{c.construction}"
+        )
     return 0
 
 
@@ -285,19 +378,40 @@ def input_record(inp: LocateInput, typed: dict[str, Any]) -> dict[str, Any]:
     """What was given, as plain JSON, for the job record: the text typed and the numbers used."""
     return {
         "typed": typed,
-        "otdr_distance_m": inp.otdr_distance_m, "round_trip_time_s": inp.round_trip_time_s,
-        "index_set": inp.index_set, "group_index": inp.group_index,
+        "otdr_distance_m": inp.otdr_distance_m,
+        "round_trip_time_s": inp.round_trip_time_s,
+        "index_set": inp.index_set,
+        "group_index": inp.group_index,
         "helix_percent": inp.helix_percent,
-        "slack": [{"route_position_m": s.route_position_m, "cable_length_m": s.cable_length_m,
-                   "label": s.label} for s in inp.slack],
-        "landmarks": [{"name": m.name, "otdr_distance_m": m.otdr_distance_m,
-                       "route_distance_m": m.route_distance_m} for m in inp.landmarks],
-        "marking": None if inp.marking is None else {
-            "start": inp.marking.start, "unit": inp.marking.unit,
-            "direction": inp.marking.direction},
-        "two_ended": None if inp.two_ended is None else {
+        "slack": [
+            {
+                "route_position_m": s.route_position_m,
+                "cable_length_m": s.cable_length_m,
+                "label": s.label,
+            }
+            for s in inp.slack
+        ],
+        "landmarks": [
+            {
+                "name": m.name,
+                "otdr_distance_m": m.otdr_distance_m,
+                "route_distance_m": m.route_distance_m,
+            }
+            for m in inp.landmarks
+        ],
+        "marking": None
+        if inp.marking is None
+        else {
+            "start": inp.marking.start,
+            "unit": inp.marking.unit,
+            "direction": inp.marking.direction,
+        },
+        "two_ended": None
+        if inp.two_ended is None
+        else {
             "from_b_otdr_m": inp.two_ended.from_b_otdr_m,
-            "total_otdr_m": inp.two_ended.total_otdr_m},
+            "total_otdr_m": inp.two_ended.total_otdr_m,
+        },
         "errors": {
             "offset_m": inp.errors.offset_m,
             "scale_error_percent": inp.errors.scale_error_percent,
@@ -317,7 +431,8 @@ def _position_json(p: Any, unit: str) -> dict[str, Any]:
         "sheath_distance_m": p.sheath_distance_m,
         "route_distance_m": p.route_distance_m,
         "uncertainty_m": p.uncertainty_m,
-        "low_m": p.low_m, "high_m": p.high_m,
+        "low_m": p.low_m,
+        "high_m": p.high_m,
         "worst_case_m": p.worst_case_m,
         "fiber_uncertainty_m": p.fiber_uncertainty_m,
         "sheath_uncertainty_m": p.sheath_uncertainty_m,
@@ -325,21 +440,38 @@ def _position_json(p: Any, unit: str) -> dict[str, Any]:
         "between": list(p.between) if p.between else None,
         "nearest_landmark": p.nearest_landmark,
         "offset_from_landmark_m": p.offset_from_landmark_m,
-        "from_landmark": (describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)
-                          if p.nearest_landmark is not None
-                          and p.offset_from_landmark_m is not None else None),
-        "in_slack": None if p.in_slack is None else {
+        "from_landmark": (
+            describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)
+            if p.nearest_landmark is not None and p.offset_from_landmark_m is not None
+            else None
+        ),
+        "in_slack": None
+        if p.in_slack is None
+        else {
             "route_position_m": p.in_slack.route_position_m,
-            "cable_length_m": p.in_slack.cable_length_m, "label": p.in_slack.label},
-        "marking": None if p.marking is None else {
-            "value": p.marking.value, "low": p.marking.low, "high": p.marking.high,
-            "unit": p.marking.unit, "direction": p.marking.direction,
-            "text": p.marking.describe()},
-        "terms": [{"name": c.name, "route_m": c.route_m, "fiber_m": c.fiber_m}
-                  for c in p.contributions],
-        "in_unit": {"unit": unit, "route_distance": in_unit(p.route_distance_m, unit),
-                    "low": in_unit(p.low_m, unit), "high": in_unit(p.high_m, unit),
-                    "uncertainty": in_unit(p.uncertainty_m, unit)},
+            "cable_length_m": p.in_slack.cable_length_m,
+            "label": p.in_slack.label,
+        },
+        "marking": None
+        if p.marking is None
+        else {
+            "value": p.marking.value,
+            "low": p.marking.low,
+            "high": p.marking.high,
+            "unit": p.marking.unit,
+            "direction": p.marking.direction,
+            "text": p.marking.describe(),
+        },
+        "terms": [
+            {"name": c.name, "route_m": c.route_m, "fiber_m": c.fiber_m} for c in p.contributions
+        ],
+        "in_unit": {
+            "unit": unit,
+            "route_distance": in_unit(p.route_distance_m, unit),
+            "low": in_unit(p.low_m, unit),
+            "high": in_unit(p.high_m, unit),
+            "uncertainty": in_unit(p.uncertainty_m, unit),
+        },
     }
 
 
@@ -348,19 +480,28 @@ def result_json(location: Location, inputs: dict[str, Any], unit: str = "m") -> 
     from fieldkit import safety
 
     data = _position_json(location.position, unit)
-    data.update({
-        "group_index": location.group_index, "index_set": location.index_set,
-        "helix_percent": location.helix_percent,
-        "uncertainty_method": "root-sum-square of independent terms; worst case = linear sum",
-        "two_ended": None, "warnings": list(location.warnings),
-        "cautions": [safety.DIGGING, safety.DEFER], "inputs": inputs,
-    })
+    data.update(
+        {
+            "group_index": location.group_index,
+            "index_set": location.index_set,
+            "helix_percent": location.helix_percent,
+            "uncertainty_method": "root-sum-square of independent terms; worst case = linear sum",
+            "two_ended": None,
+            "warnings": list(location.warnings),
+            "cautions": [safety.DIGGING, safety.DEFER],
+            "inputs": inputs,
+        }
+    )
     two = location.two_ended
     if two is not None:
         data["two_ended"] = {
-            "from_a_m": two.from_a_m, "from_b_m": two.from_b_m, "total_m": two.total_m,
-            "discrepancy_m": two.discrepancy_m, "tolerance_m": two.tolerance_m,
-            "consistent": two.consistent, "weight_a": two.weight_a,
+            "from_a_m": two.from_a_m,
+            "from_b_m": two.from_b_m,
+            "total_m": two.total_m,
+            "discrepancy_m": two.discrepancy_m,
+            "tolerance_m": two.tolerance_m,
+            "consistent": two.consistent,
+            "weight_a": two.weight_a,
             "combined": _position_json(two.combined, unit),
         }
     return data
@@ -379,13 +520,17 @@ def _position_lines(p: Any, unit: str) -> list[str]:
         f"  look between    {f(p.low_m)} and {f(p.high_m)} from the start",
     ]
     if p.nearest_landmark is not None and p.offset_from_landmark_m is not None:
-        lines.append(f"  nearest         "
-                     f"{describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)}")
+        lines.append(
+            f"  nearest         "
+            f"{describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)}"
+        )
     if p.marking is not None:
         lines.append(f"  sheath marking  {p.marking.describe()}")
-    basis = {"model": "index and helix (no landmark)",
-             "interpolated": "interpolated between landmarks",
-             "extrapolated": "extrapolated from the landmarks"}[p.basis]
+    basis = {
+        "model": "index and helix (no landmark)",
+        "interpolated": "interpolated between landmarks",
+        "extrapolated": "extrapolated from the landmarks",
+    }[p.basis]
     if p.between and p.basis == "interpolated":
         basis += f" {p.between[0]} and {p.between[1]}"
     lines.append(f"  basis           {basis}")
@@ -398,8 +543,10 @@ def report_lines(location: Location, unit: str = "m", notes: list[str] | None = 
 
     p = location.position
     lines = ["Fault from the start (end A):", *_position_lines(p, unit)]
-    lines.append(f"Uncertainty: root-sum-square of the terms below (worst case, all adding: "
-                 f"± {format_distance(p.worst_case_m, unit)}):")
+    lines.append(
+        f"Uncertainty: root-sum-square of the terms below (worst case, all adding: "
+        f"± {format_distance(p.worst_case_m, unit)}):"
+    )
     for c in sorted(p.contributions, key=lambda c: -c.route_m):
         if c.route_m >= 0.05:
             lines.append(f"  {c.name:<32} ± {format_distance(c.route_m, unit)}")
@@ -410,7 +557,8 @@ def report_lines(location: Location, unit: str = "m", notes: list[str] | None = 
             f"Two-ended check: from A {format_distance(two.from_a_m, unit)} + from B "
             f"{format_distance(two.from_b_m, unit)} − total {format_distance(two.total_m, unit)}"
             f" = {format_distance(two.discrepancy_m, unit)} (allowed ± "
-            f"{format_distance(two.tolerance_m, unit)}): {verdict}")
+            f"{format_distance(two.tolerance_m, unit)}): {verdict}"
+        )
         lines.append("Combined estimate from both ends:")
         lines += _position_lines(two.combined, unit)
     for note in notes or []:
@@ -420,8 +568,9 @@ def report_lines(location: Location, unit: str = "m", notes: list[str] | None = 
     return lines
 
 
-def fault_record(location: Location, inputs: dict[str, Any], *, by: str = "",
-                 notes: str = "") -> Any:
+def fault_record(
+    location: Location, inputs: dict[str, Any], *, by: str = "", notes: str = ""
+) -> Any:
     """The job record of a located fault (the reading from A, or the combined estimate when a
     consistent two-ended check was made)."""
     from fieldkit.calc.locate import describe_offset
@@ -438,16 +587,26 @@ def fault_record(location: Location, inputs: dict[str, Any], *, by: str = "",
             extra.append("Two-ended check failed; the reading from A is recorded.")
     extra += [f"Warning: {w}" for w in location.warnings]
     where = None
-    if (p.nearest_landmark is not None and p.offset_from_landmark_m is not None
-            and p.basis != "model"):  # with no landmark, "past start" only repeats the route
+    if (
+        p.nearest_landmark is not None
+        and p.offset_from_landmark_m is not None
+        and p.basis != "model"
+    ):  # with no landmark, "past start" only repeats the route
         where = describe_offset(p.offset_from_landmark_m, p.nearest_landmark)
     text = "\n".join(part for part in [notes.strip(), *extra, where and f"Look {where}."] if part)
     return FaultRecord(
-        by=by, inputs=inputs, fiber_distance_m=p.fiber_distance_m,
-        sheath_distance_m=p.sheath_distance_m, route_distance_m=p.route_distance_m,
-        low_m=p.low_m, high_m=p.high_m, nearest_landmark=p.nearest_landmark,
+        by=by,
+        inputs=inputs,
+        fiber_distance_m=p.fiber_distance_m,
+        sheath_distance_m=p.sheath_distance_m,
+        route_distance_m=p.route_distance_m,
+        low_m=p.low_m,
+        high_m=p.high_m,
+        nearest_landmark=p.nearest_landmark,
         offset_from_landmark_m=p.offset_from_landmark_m,
-        marking=p.marking.describe() if p.marking is not None else None, notes=text)
+        marking=p.marking.describe() if p.marking is not None else None,
+        notes=text,
+    )
 
 
 def save_fault(store: Any, job_id: str, link_id: str, record: Any) -> Any:
@@ -486,5 +645,9 @@ def _save(args: argparse.Namespace, location: Location, inputs: dict[str, Any]) 
         job = store.update(job_id, change)
     except StoreError as exc:
         raise CommandError(str(exc)) from None
-    return {"job_id": job.id, "link_id": found["link_id"], "link_label": found["link_label"],
-            "fault_id": record.id}
+    return {
+        "job_id": job.id,
+        "link_id": found["link_id"],
+        "link_label": found["link_label"],
+        "fault_id": record.id,
+    }

@@ -22,27 +22,50 @@ def register(subparsers: Any) -> None:
         "from a link budget. A negative loss is a reference problem, never a pass. With "
         "--job, --link and --fibre the reference and the result are saved into the job.",
     )
-    parser.add_argument("--reference", required=True, metavar="LEVEL",
-                        help="the reference level, e.g. -7.2 or '-7.2 dBm' or '190 uW'")
-    parser.add_argument("--reading", required=True, metavar="LEVEL",
-                        help="the level read through the link (A->B)")
-    parser.add_argument("--reading-back", metavar="LEVEL",
-                        help="the level read in the other direction (B->A); gives the average")
-    parser.add_argument("--reference-back", metavar="LEVEL",
-                        help="the reference for the B->A direction (default: --reference)")
-    parser.add_argument("--method", default="one-cord",
-                        help="one-cord, two-cord or three-cord (TIA Method B, A or C); "
-                        "default one-cord")
-    parser.add_argument("--wavelength", metavar="NM",
-                        help="test wavelength, e.g. 1310 or '850 nm' (for the plausibility check, "
-                        "the budget row and the job record)")
-    parser.add_argument("--limit", metavar="DB",
-                        help="the largest loss allowed, in dB, for a result taken with this method")
-    parser.add_argument("--source-level", metavar="LEVEL",
-                        help="what the source should deliver through a good cord (default: "
-                        "-20 dBm multimode, -7 dBm single-mode; common practice)")
-    parser.add_argument("--launch", metavar="TEXT",
-                        help="the launch condition for multimode, e.g. 'encircled flux'")
+    parser.add_argument(
+        "--reference",
+        required=True,
+        metavar="LEVEL",
+        help="the reference level, e.g. -7.2 or '-7.2 dBm' or '190 uW'",
+    )
+    parser.add_argument(
+        "--reading", required=True, metavar="LEVEL", help="the level read through the link (A->B)"
+    )
+    parser.add_argument(
+        "--reading-back",
+        metavar="LEVEL",
+        help="the level read in the other direction (B->A); gives the average",
+    )
+    parser.add_argument(
+        "--reference-back",
+        metavar="LEVEL",
+        help="the reference for the B->A direction (default: --reference)",
+    )
+    parser.add_argument(
+        "--method",
+        default="one-cord",
+        help="one-cord, two-cord or three-cord (TIA Method B, A or C); default one-cord",
+    )
+    parser.add_argument(
+        "--wavelength",
+        metavar="NM",
+        help="test wavelength, e.g. 1310 or '850 nm' (for the plausibility check, "
+        "the budget row and the job record)",
+    )
+    parser.add_argument(
+        "--limit",
+        metavar="DB",
+        help="the largest loss allowed, in dB, for a result taken with this method",
+    )
+    parser.add_argument(
+        "--source-level",
+        metavar="LEVEL",
+        help="what the source should deliver through a good cord (default: "
+        "-20 dBm multimode, -7 dBm single-mode; common practice)",
+    )
+    parser.add_argument(
+        "--launch", metavar="TEXT", help="the launch condition for multimode, e.g. 'encircled flux'"
+    )
     from fieldkit.commands import meter_record
 
     meter_record.add_record_options(parser)
@@ -62,18 +85,26 @@ def run(args: argparse.Namespace) -> int:
     check_text(args)
     method = ref.parse_method(args.method)
     reference_dbm = ref.level_dbm(args.reference, "reference")
-    reference_back_dbm = (ref.level_dbm(args.reference_back, "reference back")
-                          if args.reference_back else reference_dbm)
+    reference_back_dbm = (
+        ref.level_dbm(args.reference_back, "reference back")
+        if args.reference_back
+        else reference_dbm
+    )
     reading_dbm = ref.level_dbm(args.reading, "reading")
-    reading_back_dbm = (ref.level_dbm(args.reading_back, "reading back")
-                        if args.reading_back else None)
+    reading_back_dbm = (
+        ref.level_dbm(args.reading_back, "reading back") if args.reading_back else None
+    )
     if args.reference_back and reading_back_dbm is None:
         raise CommandError("--reference-back goes with --reading-back")
-    wavelength_nm = (parse(args.wavelength, Kind.LENGTH, default_unit="nm",
-                           what="wavelength").to("nm") if args.wavelength else None)
+    wavelength_nm = (
+        parse(args.wavelength, Kind.LENGTH, default_unit="nm", what="wavelength").to("nm")
+        if args.wavelength
+        else None
+    )
     if wavelength_nm is not None and not 600 <= wavelength_nm <= 1700:
-        raise CommandError(f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands "
-                           "(600-1700 nm)")
+        raise CommandError(
+            f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands (600-1700 nm)"
+        )
     source_dbm = ref.level_dbm(args.source_level, "source level") if args.source_level else None
 
     limit_db, limit_from = _limit(args, method, wavelength_nm)
@@ -83,12 +114,23 @@ def run(args: argparse.Namespace) -> int:
         losses["B->A"] = ref.insertion_loss_db(reference_back_dbm, reading_back_dbm)
     verdict = ref.judge_fibre(losses, limit_db)
 
-    warnings = ref.reference_warnings(reference_dbm, source_dbm=source_dbm,
-                                      wavelength_nm=wavelength_nm, launch_condition=args.launch)
+    warnings = ref.reference_warnings(
+        reference_dbm,
+        source_dbm=source_dbm,
+        wavelength_nm=wavelength_nm,
+        launch_condition=args.launch,
+    )
     if reading_back_dbm is not None and args.reference_back:
-        warnings += [f"B->A {w}" for w in ref.reference_warnings(
-            reference_back_dbm, source_dbm=source_dbm, wavelength_nm=wavelength_nm,
-            launch_condition=args.launch) if "launch condition" not in w]
+        warnings += [
+            f"B->A {w}"
+            for w in ref.reference_warnings(
+                reference_back_dbm,
+                source_dbm=source_dbm,
+                wavelength_nm=wavelength_nm,
+                launch_condition=args.launch,
+            )
+            if "launch condition" not in w
+        ]
     warnings += list(verdict.warnings)
     flags = sorted({f for v in verdict.directions.values() for f in v.flags})
 
@@ -97,40 +139,48 @@ def run(args: argparse.Namespace) -> int:
 
     if meter_record.wants_record(args):
         saved = meter_record.record_readings(
-            args, method=method, wavelength_nm=wavelength_nm,
+            args,
+            method=method,
+            wavelength_nm=wavelength_nm,
             references_dbm={"A->B": reference_dbm, "B->A": reference_back_dbm},
             readings_dbm={"A->B": reading_dbm, "B->A": reading_back_dbm},
-            verdict=verdict)
+            verdict=verdict,
+        )
         warnings += saved.get("warnings", [])
 
     if args.json:
-        print_json({
-            "loss_db": verdict.directions["A->B"].loss_db,
-            "loss_back_db": verdict.directions["B->A"].loss_db if "B->A" in losses else None,
-            "average_db": verdict.average_db,
-            "limit_db": limit_db,
-            "limit_from": limit_from,
-            "margin_db": verdict.margin_db,
-            "pass": verdict.passed,
-            "status": verdict.status.value,
-            "method": method.value,
-            "tia_method": method.tia_letter,
-            "end_connections_included": method.end_connections,
-            "wavelength_nm": wavelength_nm,
-            "reference_dbm": reference_dbm,
-            "reading_dbm": reading_dbm,
-            "reading_back_dbm": reading_back_dbm,
-            "flags": flags,
-            "warnings": warnings,
-            "saved": saved,
-        })
+        print_json(
+            {
+                "loss_db": verdict.directions["A->B"].loss_db,
+                "loss_back_db": verdict.directions["B->A"].loss_db if "B->A" in losses else None,
+                "average_db": verdict.average_db,
+                "limit_db": limit_db,
+                "limit_from": limit_from,
+                "margin_db": verdict.margin_db,
+                "pass": verdict.passed,
+                "status": verdict.status.value,
+                "method": method.value,
+                "tia_method": method.tia_letter,
+                "end_connections_included": method.end_connections,
+                "wavelength_nm": wavelength_nm,
+                "reference_dbm": reference_dbm,
+                "reading_dbm": reading_dbm,
+                "reading_back_dbm": reading_back_dbm,
+                "flags": flags,
+                "warnings": warnings,
+                "saved": saved,
+            }
+        )
         return 0
     _print_text(verdict, method, limit_db, limit_from, warnings, saved)
     return 0
 
 
-def _limit(args: argparse.Namespace, method: Any, wavelength_nm: float | None,
-           ) -> tuple[float | None, str | None]:
+def _limit(
+    args: argparse.Namespace,
+    method: Any,
+    wavelength_nm: float | None,
+) -> tuple[float | None, str | None]:
     """The limit: typed (--limit), from the link options (the budget's), or from the budget
     saved on the job's link; None when there is none of these."""
     from fieldkit import meter_log
@@ -158,8 +208,9 @@ def _limit(args: argparse.Namespace, method: Any, wavelength_nm: float | None,
     return found
 
 
-def _limit_from_link_options(args: argparse.Namespace, method: Any,
-                             wavelength_nm: float | None) -> tuple[float, str]:
+def _limit_from_link_options(
+    args: argparse.Namespace, method: Any, wavelength_nm: float | None
+) -> tuple[float, str]:
     """The budget of the described link with only the end connections the method includes.
 
     ``--connectors`` counts every mated pair including the two end connections; the method
@@ -177,11 +228,18 @@ def _limit_from_link_options(args: argparse.Namespace, method: Any,
     return kept.loss_db, (
         f"link budget {full.loss_db:.2f} dB with {count} mated pairs; {method.value} keeps "
         f"{method.end_connections} of the 2 end connections: {count - 2 + method.end_connections}"
-        " pairs counted")
+        " pairs counted"
+    )
 
 
-def _print_text(verdict: Any, method: Any, limit_db: float | None, limit_from: str | None,
-                warnings: list[str], saved: dict[str, Any] | None) -> None:
+def _print_text(
+    verdict: Any,
+    method: Any,
+    limit_db: float | None,
+    limit_from: str | None,
+    warnings: list[str],
+    saved: dict[str, Any] | None,
+) -> None:
     def line(label: str, text: str) -> None:
         print(f"{label:<10} {text}")
 
@@ -198,11 +256,17 @@ def _print_text(verdict: Any, method: Any, limit_db: float | None, limit_from: s
     for warning in warnings:
         print(f"warning: {warning}")
     if saved:
-        print(f"saved into job {saved['job_id']}, link {saved['link_label']}: "
-              f"{len(saved['result_ids'])} result(s) against reference "
-              f"{', '.join(saved['reference_ids'])}")
+        print(
+            f"saved into job {saved['job_id']}, link {saved['link_label']}: "
+            f"{len(saved['result_ids'])} result(s) against reference "
+            f"{', '.join(saved['reference_ids'])}"
+        )
 
 
 def _status_words(status: str) -> str:
-    return {"pass": "PASS", "fail": "FAIL", "reference-problem": "REFERENCE PROBLEM (not a pass)",
-            "no-limit": "no limit given (--limit or the link options)"}[status]
+    return {
+        "pass": "PASS",
+        "fail": "FAIL",
+        "reference-problem": "REFERENCE PROBLEM (not a pass)",
+        "no-limit": "no limit given (--limit or the link options)",
+    }[status]

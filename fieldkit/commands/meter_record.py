@@ -17,19 +17,32 @@ from fieldkit.commands.common import CommandError
 def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -> None:
     """``--job``, ``--link``, ``--by`` (and ``--fibre``, ``--source``, ``--meter``, ``--cord``)."""
     group = parser.add_argument_group("saving into a job")
-    group.add_argument("--job", metavar="ID", help="the job to save into (its id or the start "
-                       "of it, as 'fieldkit jobs list' shows)")
-    group.add_argument("--link", metavar="LINK",
-                       help="the link's label or id (a new link by that label is added if the "
-                       "job has none)")
+    group.add_argument(
+        "--job",
+        metavar="ID",
+        help="the job to save into (its id or the start of it, as 'fieldkit jobs list' shows)",
+    )
+    group.add_argument(
+        "--link",
+        metavar="LINK",
+        help="the link's label or id (a new link by that label is added if the job has none)",
+    )
     if fibre:
         group.add_argument("--fibre", metavar="N", help="the fibre number (1..N)")
-    group.add_argument("--source", metavar="ID", default="",
-                       help="the light source's identifier (e.g. its serial number)")
-    group.add_argument("--meter", metavar="ID", default="",
-                       help="the power meter's identifier")
-    group.add_argument("--cord", action="append", default=[], metavar="TEXT",
-                       help="a reference cord used (repeat for each)")
+    group.add_argument(
+        "--source",
+        metavar="ID",
+        default="",
+        help="the light source's identifier (e.g. its serial number)",
+    )
+    group.add_argument("--meter", metavar="ID", default="", help="the power meter's identifier")
+    group.add_argument(
+        "--cord",
+        action="append",
+        default=[],
+        metavar="TEXT",
+        help="a reference cord used (repeat for each)",
+    )
     group.add_argument("--by", default="", metavar="NAME", help="who took the measurement")
 
 
@@ -78,8 +91,9 @@ def parse_fibre(text: str | None) -> int:
     if number != int(number) or number < 1:
         raise CommandError(f"fibre: {text} is not a fibre number (1, 2, 3 ...)")
     if number > MAX_FIBRE_NUMBER:
-        raise CommandError(f"fibre: {text} is more fibres than any cable holds "
-                           f"(at most {MAX_FIBRE_NUMBER})")
+        raise CommandError(
+            f"fibre: {text} is more fibres than any cable holds (at most {MAX_FIBRE_NUMBER})"
+        )
     return int(number)
 
 
@@ -111,9 +125,15 @@ def run_update(store: Any, job_id: str, change: Any) -> Any:
         raise CommandError(str(exc.args[0]) if exc.args else "no such link") from None
 
 
-def record_readings(args: argparse.Namespace, *, method: Any, wavelength_nm: float | None,
-                    references_dbm: dict[str, float], readings_dbm: dict[str, float | None],
-                    verdict: Any) -> dict[str, Any]:
+def record_readings(
+    args: argparse.Namespace,
+    *,
+    method: Any,
+    wavelength_nm: float | None,
+    references_dbm: dict[str, float],
+    readings_dbm: dict[str, float | None],
+    verdict: Any,
+) -> dict[str, Any]:
     """Save the reference(s) and the result(s) of ``fieldkit loss`` into the job."""
     from fieldkit import meter_log
 
@@ -139,20 +159,43 @@ def record_readings(args: argparse.Namespace, *, method: Any, wavelength_nm: flo
             if reading_dbm is None:
                 continue
             record = meter_log.reuse_or_add_reference(
-                link, wavelength_nm=wavelength_nm, level_dbm=references_dbm[direction],
-                method=method, source_id=args.source, meter_id=args.meter, cords=args.cord,
-                launch_condition=args.launch, by=args.by)
+                link,
+                wavelength_nm=wavelength_nm,
+                level_dbm=references_dbm[direction],
+                method=method,
+                source_id=args.source,
+                meter_id=args.meter,
+                cords=args.cord,
+                launch_condition=args.launch,
+                by=args.by,
+            )
             if record.id not in reference_ids:
                 reference_ids.append(record.id)
             result = meter_log.put_result(
-                link, fibre=fibre, wavelength_nm=wavelength_nm, direction=direction,
-                reading_dbm=reading_dbm, reference=record, limit_db=limit_db, by=args.by)
+                link,
+                fibre=fibre,
+                wavelength_nm=wavelength_nm,
+                direction=direction,
+                reading_dbm=reading_dbm,
+                reference=record,
+                limit_db=limit_db,
+                by=args.by,
+            )
             result_ids.append(result.id)
             if "reference-in-doubt" in result.flags:
-                warnings.append(f"reference {record.id} is in doubt (its recheck drifted); set a "
-                                "new reference and retest")
-        out.update(job_id=job.id, link_id=link.id, link_label=link.label, fibre=fibre,
-                   reference_ids=reference_ids, result_ids=result_ids, warnings=warnings)
+                warnings.append(
+                    f"reference {record.id} is in doubt (its recheck drifted); set a "
+                    "new reference and retest"
+                )
+        out.update(
+            job_id=job.id,
+            link_id=link.id,
+            link_label=link.label,
+            fibre=fibre,
+            reference_ids=reference_ids,
+            result_ids=result_ids,
+            warnings=warnings,
+        )
 
     run_update(store, job_id, change)
     return out

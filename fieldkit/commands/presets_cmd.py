@@ -21,12 +21,19 @@ def register(subparsers: Any) -> None:
         "name; a bad file or entry is reported and the rest still load. "
         "Kinds: fibres, connectors, splices, components, applications, transceivers, cables.",
     )
-    parser.add_argument("kind", nargs="?", metavar="KIND",
-                        help="one kind only (fibres, connectors, splices, components, "
-                        "applications, transceivers, cables)")
-    parser.add_argument("--check", metavar="FILE",
-                        help="check one preset file before putting it in <config>/presets: "
-                        "lists its entries, or its problems (exit status 2)")
+    parser.add_argument(
+        "kind",
+        nargs="?",
+        metavar="KIND",
+        help="one kind only (fibres, connectors, splices, components, "
+        "applications, transceivers, cables)",
+    )
+    parser.add_argument(
+        "--check",
+        metavar="FILE",
+        help="check one preset file before putting it in <config>/presets: "
+        "lists its entries, or its problems (exit status 2)",
+    )
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(parser)
     parser.set_defaults(func=run)
@@ -36,8 +43,13 @@ def _kind(text: str) -> str:
     from fieldkit.presets import KINDS
 
     low = text.strip().lower()
-    aliases = {"fibers": "fibres", "fiber": "fibres", "fibre": "fibres", "cable": "cables",
-               "connections": "connectors"}
+    aliases = {
+        "fibers": "fibres",
+        "fiber": "fibres",
+        "fibre": "fibres",
+        "cable": "cables",
+        "connections": "connectors",
+    }
     low = aliases.get(low, low)
     for kind in KINDS:
         if low in (kind, kind[:-1]):
@@ -47,8 +59,10 @@ def _kind(text: str) -> str:
 
 def _plain(value: Any) -> Any:
     if isinstance(value, dict):
-        return {str(k if not isinstance(k, float) else format(k, "g")): _plain(v)
-                for k, v in value.items()}
+        return {
+            str(k if not isinstance(k, float) else format(k, "g")): _plain(v)
+            for k, v in value.items()
+        }
     if isinstance(value, (list, tuple)):
         return [_plain(v) for v in value]
     return value
@@ -90,14 +104,23 @@ def _summary(kind: str, p: Any) -> str:
         return ", ".join(f"{v:g}{unit_text} at {k:g} nm" for k, v in sorted(table.items()))
 
     if kind == "fibres":
-        geometry = (f"core {p.core_diameter_um:g} µm, NA {p.numerical_aperture:g}"
-                    if p.family == "multimode" else
-                    f"MFD {per_nm(p.mfd_um, 'µm')}" if p.mfd_um else "")
-        return (f"{p.family}; maximum {per_nm(p.attenuation_max, 'dB/km')}"
-                + (f"; typical {per_nm(p.attenuation_typical, 'dB/km')}"
-                   if p.attenuation_typical else "")
-                + (f"; group index {per_nm(p.group_indices, '')}" if p.group_indices else "")
-                + (f"; {geometry}" if geometry else ""))
+        geometry = (
+            f"core {p.core_diameter_um:g} µm, NA {p.numerical_aperture:g}"
+            if p.family == "multimode"
+            else f"MFD {per_nm(p.mfd_um, 'µm')}"
+            if p.mfd_um
+            else ""
+        )
+        return (
+            f"{p.family}; maximum {per_nm(p.attenuation_max, 'dB/km')}"
+            + (
+                f"; typical {per_nm(p.attenuation_typical, 'dB/km')}"
+                if p.attenuation_typical
+                else ""
+            )
+            + (f"; group index {per_nm(p.group_indices, '')}" if p.group_indices else "")
+            + (f"; {geometry}" if geometry else "")
+        )
     if kind in ("connectors", "splices"):
         typical = "" if p.loss_typical_db is None else f", typical {p.loss_typical_db:g} dB"
         method = f"{p.method}, " if kind == "splices" else ""
@@ -105,23 +128,26 @@ def _summary(kind: str, p: Any) -> str:
     if kind == "components":
         if p.kind == "splitter":
             return f"{p.inputs}xN splitter, excess over 10·log10(N): " + ", ".join(
-                f"{p.inputs}x{n} {v:g} dB" for n, v in sorted(p.excess_max_db.items()))
+                f"{p.inputs}x{n} {v:g} dB" for n, v in sorted(p.excess_max_db.items())
+            )
         typical = "" if p.loss_typical_db is None else f", typical {p.loss_typical_db:g} dB"
         return f"{p.kind}, maximum {p.loss_max_db:g} dB{typical}"
     if kind == "applications":
         limits = "; ".join(
             f"{fibre} {lim.loss_max_db:g} dB / {lim.reach_m:g} m"
             + ("" if lim.loss_min_db is None else f" (min {lim.loss_min_db:g} dB)")
-            for fibre, lim in p.limits.items())
+            for fibre, lim in p.limits.items()
+        )
         nm = ", ".join(f"{w:g}" for w in p.wavelengths_nm)
         return f"{p.kind} at {nm} nm: {limits}"
     if kind == "transceivers":
         at = "" if p.wavelength_nm is None else f"{p.wavelength_nm:g} nm: "
-        return (f"{at}Tx {p.tx_min_dbm:g} to {p.tx_max_dbm:g} dBm, Rx sensitivity "
-                f"{p.rx_sensitivity_dbm:g} dBm, overload {p.rx_overload_dbm:g} dBm")
+        return (
+            f"{at}Tx {p.tx_min_dbm:g} to {p.tx_max_dbm:g} dBm, Rx sensitivity "
+            f"{p.rx_sensitivity_dbm:g} dBm, overload {p.rx_overload_dbm:g} dBm"
+        )
     if kind == "cables":
-        return (f"helix {p.helix_percent:g} ± {p.helix_uncertainty_percent:g} %; "
-                f"{p.construction}")
+        return f"helix {p.helix_percent:g} ± {p.helix_uncertainty_percent:g} %; {p.construction}"
     return ""
 
 
@@ -142,6 +168,8 @@ def _check(path: Path, kinds: list[str], as_json: bool) -> int:
         for problem in library.problems:
             print(f"problem: {problem}")
     if library.problems:
-        raise CommandError(f"{path}: {len(library.problems)} problem(s), listed above; "
-                           "fix them before using the file")
+        raise CommandError(
+            f"{path}: {len(library.problems)} problem(s), listed above; "
+            "fix them before using the file"
+        )
     return 0

@@ -18,24 +18,45 @@ def register(subparsers: Any) -> None:
         "with --recheck it is compared with the reference in use at that wavelength: a drift "
         "beyond the tolerance puts the results taken since the last good reference in doubt.",
     )
-    parser.add_argument("--level", required=True, metavar="LEVEL",
-                        help="the level the meter reads through the reference cords")
+    parser.add_argument(
+        "--level",
+        required=True,
+        metavar="LEVEL",
+        help="the level the meter reads through the reference cords",
+    )
     parser.add_argument("--wavelength", required=True, metavar="NM", help="e.g. 1310 or '850 nm'")
-    parser.add_argument("--method", default="one-cord",
-                        help="one-cord, two-cord or three-cord (TIA Method B, A or C)")
-    parser.add_argument("--launch", metavar="TEXT",
-                        help="the launch condition for multimode, e.g. 'encircled flux'")
-    parser.add_argument("--source-level", metavar="LEVEL",
-                        help="what the source should deliver (default -20 dBm multimode, -7 dBm "
-                        "single-mode; common practice)")
-    parser.add_argument("--recheck", action="store_true",
-                        help="this is the end-of-session recheck of the reference in use")
-    parser.add_argument("--of", metavar="REFERENCE_ID", dest="of_reference",
-                        help="for --recheck: the reference to recheck (default: the latest one "
-                        "set at this wavelength; give it when both directions have their own)")
-    parser.add_argument("--tolerance", metavar="DB",
-                        help="drift tolerance for --recheck (default 0.1 dB single-mode, 0.2 dB "
-                        "multimode; common practice)")
+    parser.add_argument(
+        "--method",
+        default="one-cord",
+        help="one-cord, two-cord or three-cord (TIA Method B, A or C)",
+    )
+    parser.add_argument(
+        "--launch", metavar="TEXT", help="the launch condition for multimode, e.g. 'encircled flux'"
+    )
+    parser.add_argument(
+        "--source-level",
+        metavar="LEVEL",
+        help="what the source should deliver (default -20 dBm multimode, -7 dBm "
+        "single-mode; common practice)",
+    )
+    parser.add_argument(
+        "--recheck",
+        action="store_true",
+        help="this is the end-of-session recheck of the reference in use",
+    )
+    parser.add_argument(
+        "--of",
+        metavar="REFERENCE_ID",
+        dest="of_reference",
+        help="for --recheck: the reference to recheck (default: the latest one "
+        "set at this wavelength; give it when both directions have their own)",
+    )
+    parser.add_argument(
+        "--tolerance",
+        metavar="DB",
+        help="drift tolerance for --recheck (default 0.1 dB single-mode, 0.2 dB "
+        "multimode; common practice)",
+    )
     from fieldkit.commands import meter_record
 
     meter_record.add_record_options(parser, fibre=False)
@@ -52,11 +73,13 @@ def run(args: argparse.Namespace) -> int:
 
     check_text(args)
     level_dbm = ref.level_dbm(args.level, "level")
-    wavelength_nm = parse(args.wavelength, Kind.LENGTH, default_unit="nm",
-                          what="wavelength").to("nm")
+    wavelength_nm = parse(args.wavelength, Kind.LENGTH, default_unit="nm", what="wavelength").to(
+        "nm"
+    )
     if not 600 <= wavelength_nm <= 1700:
-        raise CommandError(f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands "
-                           "(600-1700 nm)")
+        raise CommandError(
+            f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands (600-1700 nm)"
+        )
     method = ref.parse_method(args.method)
     source_dbm = ref.level_dbm(args.source_level, "source level") if args.source_level else None
     tolerance_db = ref.loss_limit_db(args.tolerance, "tolerance") if args.tolerance else None
@@ -64,14 +87,21 @@ def run(args: argparse.Namespace) -> int:
         raise CommandError("--tolerance goes with --recheck")
     if args.of_reference and not args.recheck:
         raise CommandError("--of goes with --recheck")
-    warnings = ref.reference_warnings(level_dbm, source_dbm=source_dbm,
-                                      wavelength_nm=wavelength_nm, launch_condition=args.launch)
+    warnings = ref.reference_warnings(
+        level_dbm, source_dbm=source_dbm, wavelength_nm=wavelength_nm, launch_condition=args.launch
+    )
     out: dict[str, Any] = {
-        "level_dbm": level_dbm, "wavelength_nm": wavelength_nm, "method": method.value,
-        "tia_method": method.tia_letter, "end_connections_included": method.end_connections,
-        "source_level_dbm": source_dbm if source_dbm is not None
+        "level_dbm": level_dbm,
+        "wavelength_nm": wavelength_nm,
+        "method": method.value,
+        "tia_method": method.tia_letter,
+        "end_connections_included": method.end_connections,
+        "source_level_dbm": source_dbm
+        if source_dbm is not None
         else ref.default_source_dbm(wavelength_nm),
-        "launch_condition": args.launch, "warnings": warnings, "saved": None,
+        "launch_condition": args.launch,
+        "warnings": warnings,
+        "saved": None,
     }
     if args.recheck and not meter_record.wants_record(args):
         raise CommandError("--recheck needs --job and --link (the reference to recheck is there)")
@@ -91,13 +121,20 @@ def run(args: argparse.Namespace) -> int:
         print(f"warning: {warning}")
     if out["saved"]:
         saved = out["saved"]
-        print(f"saved into job {saved['job_id']}, link {saved['link_label']}: reference "
-              f"{saved['reference_id']}")
+        print(
+            f"saved into job {saved['job_id']}, link {saved['link_label']}: reference "
+            f"{saved['reference_id']}"
+        )
     return 0
 
 
-def _save(args: argparse.Namespace, level_dbm: float, wavelength_nm: float, method: Any,
-          tolerance_db: float | None) -> dict[str, Any]:
+def _save(
+    args: argparse.Namespace,
+    level_dbm: float,
+    wavelength_nm: float,
+    method: Any,
+    tolerance_db: float | None,
+) -> dict[str, Any]:
     from fieldkit import meter_log
     from fieldkit.commands import meter_record
 
@@ -109,22 +146,43 @@ def _save(args: argparse.Namespace, level_dbm: float, wavelength_nm: float, meth
         out.clear()
         if args.recheck:
             link = meter_log.find_link(job, args.link)
-            outcome = meter_log.recheck_reference(link, wavelength_nm=wavelength_nm,
-                                                  level_dbm=level_dbm, tolerance_db=tolerance_db,
-                                                  by=args.by, reference_id=args.of_reference)
-            out.update(drift_db=outcome.drift.drift_db, tolerance_db=outcome.drift.tolerance_db,
-                       within_tolerance=outcome.drift.within, drift_message=outcome.drift.message,
-                       rechecked_reference_id=outcome.initial.id,
-                       in_doubt_result_ids=outcome.in_doubt_ids)
+            outcome = meter_log.recheck_reference(
+                link,
+                wavelength_nm=wavelength_nm,
+                level_dbm=level_dbm,
+                tolerance_db=tolerance_db,
+                by=args.by,
+                reference_id=args.of_reference,
+            )
+            out.update(
+                drift_db=outcome.drift.drift_db,
+                tolerance_db=outcome.drift.tolerance_db,
+                within_tolerance=outcome.drift.within,
+                drift_message=outcome.drift.message,
+                rechecked_reference_id=outcome.initial.id,
+                in_doubt_result_ids=outcome.in_doubt_ids,
+            )
             record = outcome.recheck
         else:
             link = meter_log.find_link(job, args.link, create=True)
             record = meter_log.add_reference(
-                link, wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method,
-                source_id=args.source, meter_id=args.meter, cords=args.cord,
-                launch_condition=args.launch, by=args.by)
-        out["saved"] = {"job_id": job.id, "link_id": link.id, "link_label": link.label,
-                        "reference_id": record.id, "kind": record.kind}
+                link,
+                wavelength_nm=wavelength_nm,
+                level_dbm=level_dbm,
+                method=method,
+                source_id=args.source,
+                meter_id=args.meter,
+                cords=args.cord,
+                launch_condition=args.launch,
+                by=args.by,
+            )
+        out["saved"] = {
+            "job_id": job.id,
+            "link_id": link.id,
+            "link_label": link.label,
+            "reference_id": record.id,
+            "kind": record.kind,
+        }
 
     meter_record.run_update(store, job_id, change)
     return out

@@ -37,8 +37,15 @@ _At = Callable[[float], datetime]
 DEMO_IDS = ("de30000000000001", "de30000000000002", "de30000000000003", "de30000000000004")
 
 
-def _budget(at: datetime, by: str, length_m: float, connectors: int, splices: int,
-            margin_db: float, fibre: str) -> BudgetRecord:
+def _budget(
+    at: datetime,
+    by: str,
+    length_m: float,
+    connectors: int,
+    splices: int,
+    margin_db: float,
+    fibre: str,
+) -> BudgetRecord:
     """A budget computed the way the budget workspace computes it, from the shipped presets,
     so a demo budget opened in the workspace shows the same numbers."""
     from fieldkit.linkspec import budget_record, resolve
@@ -71,64 +78,147 @@ def build(day_start: datetime) -> list[Job]:
 
 def _backbone(at: _At) -> Job:
     ana, tomas = "Ana Ruiz", "Tomas Hale"
-    link = Link(label="LIB-TH-01", end_a="Library comms room", end_b="Town Hall basement",
-                fibre_type="OS2", length_m=1840.0, fibre_count=12)
+    link = Link(
+        label="LIB-TH-01",
+        end_a="Library comms room",
+        end_b="Town Hall basement",
+        fibre_type="OS2",
+        length_m=1840.0,
+        fibre_count=12,
+    )
     link.budget = _budget(at(7.5), ana, 1840.0, 2, 4, 0.5, "OS2")
-    ref1310 = ReferenceRecord(source_id="SRC-2", meter_id="PM-4", wavelength_nm=1310.0,
-                              level_dbm=-7.02, method="one-cord", cords=["TRC-11"],
-                              by=tomas, at=at(8.0))
-    ref1550 = ReferenceRecord(source_id="SRC-2", meter_id="PM-4", wavelength_nm=1550.0,
-                              level_dbm=-7.10, method="one-cord", cords=["TRC-11"],
-                              by=tomas, at=at(8.0), in_doubt_since=at(10.0))
-    recheck = ReferenceRecord(source_id="SRC-2", meter_id="PM-4", wavelength_nm=1550.0,
-                              level_dbm=-7.45, method="one-cord", cords=["TRC-11"], by=tomas,
-                              at=at(12.5), kind="recheck", drift_db=-0.35)
+    ref1310 = ReferenceRecord(
+        source_id="SRC-2",
+        meter_id="PM-4",
+        wavelength_nm=1310.0,
+        level_dbm=-7.02,
+        method="one-cord",
+        cords=["TRC-11"],
+        by=tomas,
+        at=at(8.0),
+    )
+    ref1550 = ReferenceRecord(
+        source_id="SRC-2",
+        meter_id="PM-4",
+        wavelength_nm=1550.0,
+        level_dbm=-7.10,
+        method="one-cord",
+        cords=["TRC-11"],
+        by=tomas,
+        at=at(8.0),
+        in_doubt_since=at(10.0),
+    )
+    recheck = ReferenceRecord(
+        source_id="SRC-2",
+        meter_id="PM-4",
+        wavelength_nm=1550.0,
+        level_dbm=-7.45,
+        method="one-cord",
+        cords=["TRC-11"],
+        by=tomas,
+        at=at(12.5),
+        kind="recheck",
+        drift_db=-0.35,
+    )
     link.references = [ref1310, ref1550, recheck]
     losses_1310 = [1.62, 1.71, 1.58, 1.66, 1.80, 1.69, 1.74, 1.63, 1.59, 1.77, 1.68, 1.72]
     losses_1550 = [1.41, 1.49, 1.38, 1.45, 1.57, 1.47, 3.91, 1.40, 1.36, 1.52, 1.44, 1.50]
-    for wavelength_nm, losses, ref, start in ((1310.0, losses_1310, ref1310, 8.25),
-                                              (1550.0, losses_1550, ref1550, 9.25)):
+    for wavelength_nm, losses, ref, start in (
+        (1310.0, losses_1310, ref1310, 8.25),
+        (1550.0, losses_1550, ref1550, 9.25),
+    ):
         budget_row = link.budget.at_wavelength(wavelength_nm)
         assert budget_row is not None
         limit_db = round(budget_row.loss_db, 2)
         for fibre, loss_db in enumerate(losses, start=1):
             when = at(start + fibre * 0.1)
-            flags = [FLAG_REFERENCE_IN_DOUBT] if (ref.in_doubt_since
-                                                  and when >= ref.in_doubt_since) else []
-            link.results.append(LossResult(
-                fibre=fibre, wavelength_nm=wavelength_nm, direction="A->B",
-                reading_dbm=round(ref.level_dbm - loss_db, 2), loss_db=loss_db,
-                reference_id=ref.id, method="one-cord", limit_db=limit_db,
-                passed=loss_db <= limit_db, flags=flags, by=tomas, at=when))
-    link.splices = [SpliceRecord(fibre=f, loss_db=loss, estimate="fusion-splicer estimate",
-                                 by=ana, at=at(7.0 + f * 0.02))
-                    for f, loss in zip(range(1, 13), [0.02, 0.03, 0.01, 0.02, 0.04, 0.02,
-                                                      0.19, 0.03, 0.02, 0.01, 0.03, 0.02],
-                                       strict=True)]
+            flags = (
+                [FLAG_REFERENCE_IN_DOUBT]
+                if (ref.in_doubt_since and when >= ref.in_doubt_since)
+                else []
+            )
+            link.results.append(
+                LossResult(
+                    fibre=fibre,
+                    wavelength_nm=wavelength_nm,
+                    direction="A->B",
+                    reading_dbm=round(ref.level_dbm - loss_db, 2),
+                    loss_db=loss_db,
+                    reference_id=ref.id,
+                    method="one-cord",
+                    limit_db=limit_db,
+                    passed=loss_db <= limit_db,
+                    flags=flags,
+                    by=tomas,
+                    at=when,
+                )
+            )
+    link.splices = [
+        SpliceRecord(
+            fibre=f, loss_db=loss, estimate="fusion-splicer estimate", by=ana, at=at(7.0 + f * 0.02)
+        )
+        for f, loss in zip(
+            range(1, 13),
+            [0.02, 0.03, 0.01, 0.02, 0.04, 0.02, 0.19, 0.03, 0.02, 0.01, 0.03, 0.02],
+            strict=True,
+        )
+    ]
     return Job(
-        name="Library to Town Hall backbone", customer="Wrenfield Town Council",
-        site="Wrenfield town centre", crew=[ana, tomas], created_at=at(7.0), updated_at=at(12.6),
+        name="Library to Town Hall backbone",
+        customer="Wrenfield Town Council",
+        site="Wrenfield town centre",
+        crew=[ana, tomas],
+        created_at=at(7.0),
+        updated_at=at(12.6),
         notes=[
-            Note(at=at(7.1), by=ana, text="Cable pulled through the Market Street ducts; "
-                 "closure at the bank corner re-used."),
-            Note(at=at(11.2), by=tomas, text="Fibre 7 high at 1550 nm only: looks like a "
-                 "macrobend near the Town Hall tray. Check the tray before re-splicing."),
-            Note(at=at(12.6), by=tomas, text="1550 nm re-check drifted 0.35 dB: results after "
-                 "10:00 at 1550 nm to be retested tomorrow with a fresh reference."),
+            Note(
+                at=at(7.1),
+                by=ana,
+                text="Cable pulled through the Market Street ducts; "
+                "closure at the bank corner re-used.",
+            ),
+            Note(
+                at=at(11.2),
+                by=tomas,
+                text="Fibre 7 high at 1550 nm only: looks like a "
+                "macrobend near the Town Hall tray. Check the tray before re-splicing.",
+            ),
+            Note(
+                at=at(12.6),
+                by=tomas,
+                text="1550 nm re-check drifted 0.35 dB: results after "
+                "10:00 at 1550 nm to be retested tomorrow with a fresh reference.",
+            ),
         ],
-        links=[link])
+        links=[link],
+    )
 
 
 def _fit_out(at: _At) -> Job:
     priya = "Priya Nair"
-    link = Link(label="MILL-U3", end_a="Old Mill MDF", end_b="Unit 3 rack", fibre_type="OM3",
-                length_m=120.0, fibre_count=24)
+    link = Link(
+        label="MILL-U3",
+        end_a="Old Mill MDF",
+        end_b="Unit 3 rack",
+        fibre_type="OM3",
+        length_m=120.0,
+        fibre_count=24,
+    )
     link.budget = _budget(at(8.0), priya, 120.0, 2, 0, 0.0, "OM3")
-    refs = {nm: ReferenceRecord(source_id="SRC-MM1", meter_id="PM-7", wavelength_nm=nm,
-                                level_dbm=level, method="two-cord", cords=["TRC-3", "TRC-4"],
-                                launch_condition="encircled flux (IEC 61280-4-1)", by=priya,
-                                at=at(8.5))
-            for nm, level in ((850.0, -20.15), (1300.0, -20.40))}
+    refs = {
+        nm: ReferenceRecord(
+            source_id="SRC-MM1",
+            meter_id="PM-7",
+            wavelength_nm=nm,
+            level_dbm=level,
+            method="two-cord",
+            cords=["TRC-3", "TRC-4"],
+            launch_condition="encircled flux (IEC 61280-4-1)",
+            by=priya,
+            at=at(8.5),
+        )
+        for nm, level in ((850.0, -20.15), (1300.0, -20.40))
+    }
     link.references = list(refs.values())
     for nm, ref in refs.items():
         budget_row = link.budget.at_wavelength(nm)
@@ -137,72 +227,164 @@ def _fit_out(at: _At) -> Job:
         limit_db = round(budget_row.loss_db - 0.75, 2)
         for fibre in range(1, 25):
             loss_db = round((0.55 if nm == 850.0 else 0.40) + (fibre % 5) * 0.04, 2)
-            link.results.append(LossResult(
-                fibre=fibre, wavelength_nm=nm, direction="A->B",
-                reading_dbm=round(ref.level_dbm - loss_db, 2), loss_db=loss_db,
-                reference_id=ref.id, method="two-cord", limit_db=limit_db,
-                passed=loss_db <= limit_db, by=priya, at=at(9.0 + fibre * 0.05)))
+            link.results.append(
+                LossResult(
+                    fibre=fibre,
+                    wavelength_nm=nm,
+                    direction="A->B",
+                    reading_dbm=round(ref.level_dbm - loss_db, 2),
+                    loss_db=loss_db,
+                    reference_id=ref.id,
+                    method="two-cord",
+                    limit_db=limit_db,
+                    passed=loss_db <= limit_db,
+                    by=priya,
+                    at=at(9.0 + fibre * 0.05),
+                )
+            )
     return Job(
-        name="Old Mill business park: unit 3 fit-out", customer="Old Mill Estates (fictional)",
-        site="Old Mill business park, Wrenfield", crew=[priya], status="done",
-        created_at=at(8.0), updated_at=at(11.0),
-        notes=[Note(at=at(10.9), by=priya, text="All 24 fibres pass at 850 and 1300 nm. "
-                    "Labels fitted both ends.")],
-        links=[link])
+        name="Old Mill business park: unit 3 fit-out",
+        customer="Old Mill Estates (fictional)",
+        site="Old Mill business park, Wrenfield",
+        crew=[priya],
+        status="done",
+        created_at=at(8.0),
+        updated_at=at(11.0),
+        notes=[
+            Note(
+                at=at(10.9),
+                by=priya,
+                text="All 24 fibres pass at 850 and 1300 nm. Labels fitted both ends.",
+            )
+        ],
+        links=[link],
+    )
 
 
 def _reservoir(at: _At) -> Job:
     jon, ana = "Jon Okafor", "Ana Ruiz"
-    link = Link(label="RES-N-FEED", end_a="Pumping station", end_b="North Reservoir valve house",
-                fibre_type="OS2", length_m=4200.0, fibre_count=6)
-    link.faults = [FaultRecord(
-        by=jon, at=at(8.2),
-        inputs={"otdr_distance_m": 2963.0, "group_index": 1.4682, "helix_percent": 1.5,
-                "slack_loops_m": [{"at_m": 1500.0, "length_m": 30.0}]},
-        fiber_distance_m=2963.0, sheath_distance_m=2919.2, route_distance_m=2889.2,
-        low_m=2876.0, high_m=2902.4, nearest_landmark="handhole HH-12 (route 2875 m)",
-        offset_from_landmark_m=14.2, marking="sheath marking about 5841 m",
-        notes="Digger strike reported by the farm contractor; marks requested.")]
-    link.splices = [SpliceRecord(fibre=f, loss_db=loss, estimate="OTDR bidirectional", by=ana,
-                                 at=at(13.0 + f * 0.05))
-                    for f, loss in zip(range(1, 7), [0.04, 0.06, 0.03, 0.05, 0.21, 0.04],
-                                       strict=True)]
-    ref = ReferenceRecord(source_id="SRC-2", meter_id="PM-4", wavelength_nm=1550.0,
-                          level_dbm=-6.95, method="one-cord", cords=["TRC-12"], by=jon,
-                          at=at(14.0))
+    link = Link(
+        label="RES-N-FEED",
+        end_a="Pumping station",
+        end_b="North Reservoir valve house",
+        fibre_type="OS2",
+        length_m=4200.0,
+        fibre_count=6,
+    )
+    link.faults = [
+        FaultRecord(
+            by=jon,
+            at=at(8.2),
+            inputs={
+                "otdr_distance_m": 2963.0,
+                "group_index": 1.4682,
+                "helix_percent": 1.5,
+                "slack_loops_m": [{"at_m": 1500.0, "length_m": 30.0}],
+            },
+            fiber_distance_m=2963.0,
+            sheath_distance_m=2919.2,
+            route_distance_m=2889.2,
+            low_m=2876.0,
+            high_m=2902.4,
+            nearest_landmark="handhole HH-12 (route 2875 m)",
+            offset_from_landmark_m=14.2,
+            marking="sheath marking about 5841 m",
+            notes="Digger strike reported by the farm contractor; marks requested.",
+        )
+    ]
+    link.splices = [
+        SpliceRecord(
+            fibre=f, loss_db=loss, estimate="OTDR bidirectional", by=ana, at=at(13.0 + f * 0.05)
+        )
+        for f, loss in zip(range(1, 7), [0.04, 0.06, 0.03, 0.05, 0.21, 0.04], strict=True)
+    ]
+    ref = ReferenceRecord(
+        source_id="SRC-2",
+        meter_id="PM-4",
+        wavelength_nm=1550.0,
+        level_dbm=-6.95,
+        method="one-cord",
+        cords=["TRC-12"],
+        by=jon,
+        at=at(14.0),
+    )
     link.references = [ref]
     # 4.2 km × 0.3 dB/km + 2 × 0.75 + (3 + 2 repair) splices × 0.3 = 1.26 + 1.5 + 1.5 = 4.26 dB
     limit_db = 4.26
     for fibre, loss_db in enumerate([2.41, 2.52, 2.38, 2.47, 4.63, -0.12], start=1):
         flags = [FLAG_NEGATIVE_LOSS] if loss_db < 0 else []
-        link.results.append(LossResult(
-            fibre=fibre, wavelength_nm=1550.0, direction="A->B",
-            reading_dbm=round(ref.level_dbm - loss_db, 2), loss_db=loss_db,
-            reference_id=ref.id, method="one-cord", limit_db=limit_db,
-            passed=None if loss_db < 0 else loss_db <= limit_db, flags=flags, by=jon,
-            at=at(14.2 + fibre * 0.1)))
+        link.results.append(
+            LossResult(
+                fibre=fibre,
+                wavelength_nm=1550.0,
+                direction="A->B",
+                reading_dbm=round(ref.level_dbm - loss_db, 2),
+                loss_db=loss_db,
+                reference_id=ref.id,
+                method="one-cord",
+                limit_db=limit_db,
+                passed=None if loss_db < 0 else loss_db <= limit_db,
+                flags=flags,
+                by=jon,
+                at=at(14.2 + fibre * 0.1),
+            )
+        )
     return Job(
-        name="North Reservoir feed repair", customer="Wrenfield Water (fictional)",
-        site="North Reservoir road", crew=[jon, ana], created_at=at(7.8), updated_at=at(15.0),
+        name="North Reservoir feed repair",
+        customer="Wrenfield Water (fictional)",
+        site="North Reservoir road",
+        crew=[jon, ana],
+        created_at=at(7.8),
+        updated_at=at(15.0),
         notes=[
-            Note(at=at(8.3), by=jon, text="OTDR from the pumping station: break at 2963 m "
-                 "fibre distance. Search between HH-12 and the field gate."),
-            Note(at=at(12.8), by=ana, text="Break found 15 m past HH-12. Two repair splices "
-                 "in a new closure."),
-            Note(at=at(15.0), by=jon, text="Fibre 6 reads a gain: clean the cord and retest. "
-                 "Fibre 5 fails: re-splice at the new closure."),
+            Note(
+                at=at(8.3),
+                by=jon,
+                text="OTDR from the pumping station: break at 2963 m "
+                "fibre distance. Search between HH-12 and the field gate.",
+            ),
+            Note(
+                at=at(12.8),
+                by=ana,
+                text="Break found 15 m past HH-12. Two repair splices in a new closure.",
+            ),
+            Note(
+                at=at(15.0),
+                by=jon,
+                text="Fibre 6 reads a gain: clean the cord and retest. "
+                "Fibre 5 fails: re-splice at the new closure.",
+            ),
         ],
-        links=[link])
+        links=[link],
+    )
 
 
 def _survey(at: _At) -> Job:
     return Job(
-        name="Station Road duct survey", customer="Wrenfield Town Council",
-        site="Station Road", crew=["Priya Nair"], created_at=at(15.5), updated_at=at(15.6),
-        notes=[Note(at=at(15.6), by="Priya Nair", text="Duct proven to chamber SR-4; cable "
-                    "not yet pulled.")],
-        links=[Link(label="SR-SPUR", end_a="Chamber SR-1", end_b="Chamber SR-4",
-                    fibre_type="OS2", length_m=640.0, fibre_count=24)])
+        name="Station Road duct survey",
+        customer="Wrenfield Town Council",
+        site="Station Road",
+        crew=["Priya Nair"],
+        created_at=at(15.5),
+        updated_at=at(15.6),
+        notes=[
+            Note(
+                at=at(15.6),
+                by="Priya Nair",
+                text="Duct proven to chamber SR-4; cable not yet pulled.",
+            )
+        ],
+        links=[
+            Link(
+                label="SR-SPUR",
+                end_a="Chamber SR-1",
+                end_b="Chamber SR-4",
+                fibre_type="OS2",
+                length_m=640.0,
+                fibre_count=24,
+            )
+        ],
+    )
 
 
 def local_day_start(moment: datetime) -> datetime:

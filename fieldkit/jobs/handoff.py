@@ -42,9 +42,13 @@ class ImportReport:
     conflicts: list[str] = field(default_factory=list)
 
     def as_dict(self) -> dict[str, Any]:
-        return {"added_jobs": self.added_jobs, "merged_jobs": self.merged_jobs,
-                "unchanged_jobs": self.unchanged_jobs, "added_records": self.added_records,
-                "conflicts": self.conflicts}
+        return {
+            "added_jobs": self.added_jobs,
+            "merged_jobs": self.merged_jobs,
+            "unchanged_jobs": self.unchanged_jobs,
+            "added_records": self.added_records,
+            "conflicts": self.conflicts,
+        }
 
 
 def read_handoff(path: Path) -> list[Job]:
@@ -54,8 +58,10 @@ def read_handoff(path: Path) -> list[Job]:
     except OSError as exc:
         raise StoreError(f"cannot read {path}: {exc.strerror or exc}") from None
     if size > MAX_FILE_BYTES:
-        raise StoreError(f"{path.name} is {size / 1e6:.1f} MB, larger than the "
-                         f"{MAX_FILE_BYTES // (1024 * 1024)} MB import limit; nothing imported")
+        raise StoreError(
+            f"{path.name} is {size / 1e6:.1f} MB, larger than the "
+            f"{MAX_FILE_BYTES // (1024 * 1024)} MB import limit; nothing imported"
+        )
     try:
         with open(path, "rb") as handle:
             raw = handle.read(MAX_FILE_BYTES + 1)
@@ -70,8 +76,9 @@ def read_handoff(path: Path) -> list[Job]:
     except ValueError as exc:
         raise StoreError(f"{path.name} is not valid JSON ({exc}); nothing imported") from None
     except RecursionError:
-        raise StoreError(f"{path.name} is not valid JSON (nested too deeply); nothing imported"
-                         ) from None
+        raise StoreError(
+            f"{path.name} is not valid JSON (nested too deeply); nothing imported"
+        ) from None
     if isinstance(data, dict) and data.get("format") == HANDOFF_FORMAT:
         items = data.get("jobs")
         if not isinstance(items, list):
@@ -79,8 +86,9 @@ def read_handoff(path: Path) -> list[Job]:
     elif isinstance(data, dict) and "schema_version" in data and "links" in data:
         items = [data]
     else:
-        raise StoreError(f"{path.name} is neither a fieldkit hand-off nor a job file; "
-                         "nothing imported")
+        raise StoreError(
+            f"{path.name} is neither a fieldkit hand-off nor a job file; nothing imported"
+        )
     jobs: list[Job] = []
     seen: set[str] = set()
     for number, item in enumerate(items, start=1):
@@ -88,15 +96,18 @@ def read_handoff(path: Path) -> list[Job]:
             raise StoreError(f"{path.name}: job {number} is not an object; nothing imported")
         job_id = item.get("id")
         if not isinstance(job_id, str) or not JOB_ID_RE.match(job_id):
-            raise StoreError(f"{path.name}: job {number} has an id that is not a fieldkit job "
-                             f"id ({str(job_id)[:40]!r}); nothing imported")
+            raise StoreError(
+                f"{path.name}: job {number} has an id that is not a fieldkit job "
+                f"id ({str(job_id)[:40]!r}); nothing imported"
+            )
         try:
             job = job_from_dict(item)
         except NewerSchemaError as exc:
             raise StoreError(f"{path.name}: {exc}; nothing imported") from None
         except StoreError as exc:
-            raise StoreError(f"{path.name}: job {number} ({job_id}): {exc}; "
-                             "nothing imported") from None
+            raise StoreError(
+                f"{path.name}: job {number} ({job_id}): {exc}; nothing imported"
+            ) from None
         if job.read_only:
             raise StoreError(f"{path.name}: {job.read_only}; nothing imported")
         if job.id in seen:
@@ -116,8 +127,12 @@ def _repeated_record_id(job: Job) -> str | None:
     """
     groups: list[tuple[str, list[Any]]] = [("note", list(job.notes)), ("link", list(job.links))]
     for link in job.links:
-        groups += [("result", list(link.results)), ("reference", list(link.references)),
-                   ("splice", list(link.splices)), ("fault", list(link.faults))]
+        groups += [
+            ("result", list(link.results)),
+            ("reference", list(link.references)),
+            ("splice", list(link.splices)),
+            ("fault", list(link.faults)),
+        ]
     for kind, records in groups:
         ids: set[str] = set()
         for record in records:
@@ -157,8 +172,9 @@ def merge_job(local: Job, incoming: Job) -> tuple[int, list[str]]:
     for link in incoming.links:
         if link.id not in links:
             local.links.append(link)
-            added += 1 + len(link.results) + len(link.references) + len(link.splices) + len(
-                link.faults)
+            added += (
+                1 + len(link.results) + len(link.references) + len(link.splices) + len(link.faults)
+            )
             continue
         n, c = _merge_link(links[link.id], link, f"{where}, link {links[link.id].label}")
         added += n
@@ -182,8 +198,12 @@ def _merge_link(mine: Link, theirs: Link, where: str) -> tuple[int, list[str]]:
         added += 1
     elif theirs.budget is not None and not _same(mine.budget, theirs.budget):
         conflicts.append(f"{where}: the loss budget differs; kept this laptop's")
-    for attr, noun in (("references", "reference"), ("results", "result"),
-                       ("splices", "splice"), ("faults", "located fault")):
+    for attr, noun in (
+        ("references", "reference"),
+        ("results", "result"),
+        ("splices", "splice"),
+        ("faults", "located fault"),
+    ):
         n, c = _merge_list(getattr(mine, attr), getattr(theirs, attr), f"{where}: {noun}")
         added += n
         conflicts += c
@@ -223,8 +243,9 @@ def import_jobs(store: JobStore, jobs: list[Job]) -> ImportReport:
         outcome: dict[str, Any] = {}
 
         def merge(local: Job, incoming: Job = incoming, outcome: dict[str, Any] = outcome) -> None:
-            outcome["added"], outcome["conflicts"] = merge_job(local, incoming.model_copy(
-                deep=True))
+            outcome["added"], outcome["conflicts"] = merge_job(
+                local, incoming.model_copy(deep=True)
+            )
 
         try:
             probe = store.load(incoming.id)

@@ -46,7 +46,8 @@ def _v1_to_v2(data: dict[str, Any]) -> dict[str, Any]:
                 raise MigrationError("a result is not an object")
             result = dict(result)
             result["direction"] = {"AB": "A->B", "BA": "B->A"}.get(
-                result.get("direction", "AB"), result.get("direction"))
+                result.get("direction", "AB"), result.get("direction")
+            )
             results.append(result)
         link["results"] = results
         links.append(link)

@@ -37,9 +37,7 @@ RECORD_ID_RE = r"^[A-Za-z0-9_-]{1,64}$"
 
 Method = Literal["one-cord", "two-cord", "three-cord"]
 Direction = Literal["A->B", "B->A"]
-SpliceEstimate = Literal[
-    "fusion-splicer estimate", "OTDR A->B", "OTDR B->A", "OTDR bidirectional"
-]
+SpliceEstimate = Literal["fusion-splicer estimate", "OTDR A->B", "OTDR B->A", "OTDR bidirectional"]
 
 #: Flags a loss result may carry (others may be added by the meter workspace).
 FLAG_NEGATIVE_LOSS = "negative-loss"

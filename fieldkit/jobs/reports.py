@@ -103,10 +103,16 @@ class WavelengthSummary:
     in_doubt: int
 
     def as_dict(self) -> dict[str, Any]:
-        return {"link_id": self.link_id, "link": self.link_label,
-                "wavelength_nm": self.wavelength_nm, "fibres_tested": self.tested,
-                "passed": self.passed, "failed": self.failed, "no_limit": self.no_limit,
-                "in_doubt": self.in_doubt}
+        return {
+            "link_id": self.link_id,
+            "link": self.link_label,
+            "wavelength_nm": self.wavelength_nm,
+            "fibres_tested": self.tested,
+            "passed": self.passed,
+            "failed": self.failed,
+            "no_limit": self.no_limit,
+            "in_doubt": self.in_doubt,
+        }
 
 
 def link_summary(link: Link) -> list[WavelengthSummary]:
@@ -114,15 +120,26 @@ def link_summary(link: Link) -> list[WavelengthSummary]:
     by_wavelength: dict[float, dict[int, list[LossResult]]] = {}
     for result in latest_results(link):
         by_wavelength.setdefault(result.wavelength_nm, {}).setdefault(result.fibre, []).append(
-            result)
+            result
+        )
     rows = []
     for wavelength_nm in sorted(by_wavelength):
         fibres = by_wavelength[wavelength_nm]
         failed = sum(any(r.passed is False for r in rs) for rs in fibres.values())
         passed = sum(all(r.passed is True for r in rs) for rs in fibres.values())
         doubt = sum(any(result_in_doubt(link, r) for r in rs) for rs in fibres.values())
-        rows.append(WavelengthSummary(link.id, link.label, wavelength_nm, len(fibres), passed,
-                                      failed, len(fibres) - passed - failed, doubt))
+        rows.append(
+            WavelengthSummary(
+                link.id,
+                link.label,
+                wavelength_nm,
+                len(fibres),
+                passed,
+                failed,
+                len(fibres) - passed - failed,
+                doubt,
+            )
+        )
     return rows
 
 
@@ -137,8 +154,9 @@ def failures(job: Job) -> list[tuple[Link, LossResult]]:
 
 def in_doubt(job: Job) -> list[tuple[Link, LossResult]]:
     """Latest results taken against a reference that is in doubt."""
-    return [(link, r) for link in job.links for r in latest_results(link)
-            if result_in_doubt(link, r)]
+    return [
+        (link, r) for link in job.links for r in latest_results(link) if result_in_doubt(link, r)
+    ]
 
 
 def safety_lines(job: Job) -> list[str]:
@@ -180,54 +198,116 @@ class Report:
 
 
 def _result_rows(link: Link, results: Iterable[LossResult]) -> Table:
-    table = Table(["Fibre", "λ nm", "Dir", "Reading dBm", "Loss dB", "Limit dB",
-                   "Margin dB", "Result", "Flags", "Method", "Ref", "By", "When"], [],
-                  numeric={0, 1, 3, 4, 5, 6}, nowrap={2})
+    table = Table(
+        [
+            "Fibre",
+            "λ nm",
+            "Dir",
+            "Reading dBm",
+            "Loss dB",
+            "Limit dB",
+            "Margin dB",
+            "Result",
+            "Flags",
+            "Method",
+            "Ref",
+            "By",
+            "When",
+        ],
+        [],
+        numeric={0, 1, 3, 4, 5, 6},
+        nowrap={2},
+    )
     for r in results:
         margin = margin_db(r)
         doubt = result_in_doubt(link, r)
         flags = list(r.flags)
         if doubt and "reference-in-doubt" not in flags:
             flags.append("reference-in-doubt")
-        table.rows.append([str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
-                           fmt_db(r.reading_dbm), fmt_db(r.loss_db), fmt_db(r.limit_db),
-                           fmt_db(margin), verdict(r), ", ".join(flags), r.method,
-                           r.reference_id or "", r.by, fmt_time(r.at)])
+        table.rows.append(
+            [
+                str(r.fibre),
+                fmt_nm(r.wavelength_nm),
+                r.direction,
+                fmt_db(r.reading_dbm),
+                fmt_db(r.loss_db),
+                fmt_db(r.limit_db),
+                fmt_db(margin),
+                verdict(r),
+                ", ".join(flags),
+                r.method,
+                r.reference_id or "",
+                r.by,
+                fmt_time(r.at),
+            ]
+        )
         table.marks.append("fail" if r.passed is False else "doubt" if doubt else "")
     return table
 
 
 def build_report(job: Job) -> Report:
     """The content of the Markdown and HTML reports of a job."""
-    facts = [("Job", job.name), ("Job id", job.id), ("Customer", job.customer),
-             ("Site", job.site), ("Crew", ", ".join(job.crew)), ("Status", job.status),
-             ("Created", fmt_time(job.created_at)), ("Updated", fmt_time(job.updated_at))]
+    facts = [
+        ("Job", job.name),
+        ("Job id", job.id),
+        ("Customer", job.customer),
+        ("Site", job.site),
+        ("Crew", ", ".join(job.crew)),
+        ("Status", job.status),
+        ("Created", fmt_time(job.created_at)),
+        ("Updated", fmt_time(job.updated_at)),
+    ]
     sections: list[Section] = []
 
-    summary = Table(["Link", "λ nm", "Fibres tested", "Passed", "Failed", "No limit",
-                     "In doubt"], [], numeric={1, 2, 3, 4, 5, 6})
+    summary = Table(
+        ["Link", "λ nm", "Fibres tested", "Passed", "Failed", "No limit", "In doubt"],
+        [],
+        numeric={1, 2, 3, 4, 5, 6},
+    )
     for row in job_summary(job):
-        summary.rows.append([row.link_label, fmt_nm(row.wavelength_nm), str(row.tested),
-                             str(row.passed), str(row.failed), str(row.no_limit),
-                             str(row.in_doubt)])
+        summary.rows.append(
+            [
+                row.link_label,
+                fmt_nm(row.wavelength_nm),
+                str(row.tested),
+                str(row.passed),
+                str(row.failed),
+                str(row.no_limit),
+                str(row.in_doubt),
+            ]
+        )
         summary.marks.append("fail" if row.failed else "doubt" if row.in_doubt else "")
     sec = Section("Summary", tables=[summary] if summary.rows else [])
     total = sum(len(link.results) for link in job.links)
     sec.paragraphs.append(
         f"{len(job.links)} links, {total} results recorded. Counts are per fibre, from the "
-        "latest result in each direction (a retest supersedes an earlier result).")
+        "latest result in each direction (a retest supersedes an earlier result)."
+    )
     sections.append(sec)
 
     failed = failures(job)
     sec = Section("Failures")
     if failed:
-        table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Limit dB",
-                       "Margin dB", "Flags"], [], numeric={1, 2, 4, 5, 6}, nowrap={3})
+        table = Table(
+            ["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Limit dB", "Margin dB", "Flags"],
+            [],
+            numeric={1, 2, 4, 5, 6},
+            nowrap={3},
+        )
         for link, r in failed:
             margin = margin_db(r)
-            table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
-                               fmt_db(r.loss_db), fmt_db(r.limit_db), fmt_db(margin),
-                               ", ".join(r.flags)])
+            table.rows.append(
+                [
+                    link.label,
+                    str(r.fibre),
+                    fmt_nm(r.wavelength_nm),
+                    r.direction,
+                    fmt_db(r.loss_db),
+                    fmt_db(r.limit_db),
+                    fmt_db(margin),
+                    ", ".join(r.flags),
+                ]
+            )
             table.marks.append("fail")
         sec.tables.append(table)
     else:
@@ -239,12 +319,25 @@ def build_report(job: Job) -> Report:
         sec = Section("Results against a reference in doubt")
         sec.paragraphs.append(
             f"{len(doubt)} results were taken against a reference whose re-check drifted "
-            "beyond the tolerance: retest them against a fresh reference.")
-        table = Table(["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Reference"], [],
-                      numeric={1, 2, 4}, nowrap={3})
+            "beyond the tolerance: retest them against a fresh reference."
+        )
+        table = Table(
+            ["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Reference"],
+            [],
+            numeric={1, 2, 4},
+            nowrap={3},
+        )
         for link, r in doubt:
-            table.rows.append([link.label, str(r.fibre), fmt_nm(r.wavelength_nm), r.direction,
-                               fmt_db(r.loss_db), r.reference_id or ""])
+            table.rows.append(
+                [
+                    link.label,
+                    str(r.fibre),
+                    fmt_nm(r.wavelength_nm),
+                    r.direction,
+                    fmt_db(r.loss_db),
+                    r.reference_id or "",
+                ]
+            )
             table.marks.append("doubt")
         sec.tables.append(table)
         sections.append(sec)
@@ -271,43 +364,83 @@ def _link_sections(link: Link) -> list[Section]:
     if link.budget is not None:
         b = link.budget
         sec = Section(f"{link.label}: loss budget", level=3)
-        sec.paragraphs.append(f"Computed {fmt_time(b.computed_at)}"
-                              + (f" by {b.by}" if b.by else "")
-                              + f"; design margin {fmt_db(b.margin_db)} dB.")
-        table = Table(["λ nm", "Maximum loss dB", "Typical loss dB", "With margin dB"], [],
-                      numeric={0, 1, 2, 3})
+        sec.paragraphs.append(
+            f"Computed {fmt_time(b.computed_at)}"
+            + (f" by {b.by}" if b.by else "")
+            + f"; design margin {fmt_db(b.margin_db)} dB."
+        )
+        table = Table(
+            ["λ nm", "Maximum loss dB", "Typical loss dB", "With margin dB"],
+            [],
+            numeric={0, 1, 2, 3},
+        )
         items = Table(["λ nm", "Item", "Loss dB", "Source"], [], numeric={0, 2})
         for row in b.wavelengths:
-            table.rows.append([fmt_nm(row.wavelength_nm), fmt_db(row.loss_db),
-                               fmt_db(row.typical_loss_db), fmt_db(row.loss_db + b.margin_db)])
+            table.rows.append(
+                [
+                    fmt_nm(row.wavelength_nm),
+                    fmt_db(row.loss_db),
+                    fmt_db(row.typical_loss_db),
+                    fmt_db(row.loss_db + b.margin_db),
+                ]
+            )
             for item in row.items:
-                items.rows.append([fmt_nm(row.wavelength_nm), item.name, fmt_db(item.loss_db),
-                                   item.source])
+                items.rows.append(
+                    [fmt_nm(row.wavelength_nm), item.name, fmt_db(item.loss_db), item.source]
+                )
         sec.tables.append(table)
         if items.rows:
             sec.tables.append(items)
         for what, data in (("Application", b.application), ("Transceiver", b.transceiver)):
             if data:
-                sec.paragraphs.append(f"{what}: " + "; ".join(
-                    f"{k} {_plain(v)}" for k, v in data.items()))
+                sec.paragraphs.append(
+                    f"{what}: " + "; ".join(f"{k} {_plain(v)}" for k, v in data.items())
+                )
         out.append(sec)
     if link.results:
         sec = Section(f"{link.label}: results", level=3)
-        ordered = sorted(link.results, key=lambda r: (r.wavelength_nm, r.fibre, r.direction,
-                                                      r.at))
+        ordered = sorted(link.results, key=lambda r: (r.wavelength_nm, r.fibre, r.direction, r.at))
         sec.tables.append(_result_rows(link, ordered))
         out.append(sec)
     if link.references:
         sec = Section(f"{link.label}: references", level=3)
-        table = Table(["Ref", "Kind", "λ nm", "Level dBm", "Method", "Drift dB", "Cords",
-                       "Launch", "Source", "Meter", "By", "When", "In doubt since"], [],
-                      numeric={2, 3, 5})
+        table = Table(
+            [
+                "Ref",
+                "Kind",
+                "λ nm",
+                "Level dBm",
+                "Method",
+                "Drift dB",
+                "Cords",
+                "Launch",
+                "Source",
+                "Meter",
+                "By",
+                "When",
+                "In doubt since",
+            ],
+            [],
+            numeric={2, 3, 5},
+        )
         for ref in link.references:
-            table.rows.append([ref.id, ref.kind, fmt_nm(ref.wavelength_nm),
-                               fmt_db(ref.level_dbm), ref.method, fmt_db(ref.drift_db),
-                               ", ".join(ref.cords), ref.launch_condition or "", ref.source_id,
-                               ref.meter_id, ref.by, fmt_time(ref.at),
-                               fmt_time(ref.in_doubt_since)])
+            table.rows.append(
+                [
+                    ref.id,
+                    ref.kind,
+                    fmt_nm(ref.wavelength_nm),
+                    fmt_db(ref.level_dbm),
+                    ref.method,
+                    fmt_db(ref.drift_db),
+                    ", ".join(ref.cords),
+                    ref.launch_condition or "",
+                    ref.source_id,
+                    ref.meter_id,
+                    ref.by,
+                    fmt_time(ref.at),
+                    fmt_time(ref.in_doubt_since),
+                ]
+            )
             table.marks.append("doubt" if ref.in_doubt_since else "")
         sec.tables.append(table)
         out.append(sec)
@@ -315,20 +448,46 @@ def _link_sections(link: Link) -> list[Section]:
         sec = Section(f"{link.label}: splices", level=3)
         table = Table(["Fibre", "Loss dB", "Estimate", "By", "When"], [], numeric={0, 1})
         for sp in link.splices:
-            table.rows.append([str(sp.fibre), fmt_db(sp.loss_db), sp.estimate, sp.by,
-                               fmt_time(sp.at)])
+            table.rows.append(
+                [str(sp.fibre), fmt_db(sp.loss_db), sp.estimate, sp.by, fmt_time(sp.at)]
+            )
         sec.tables.append(table)
         out.append(sec)
     if link.faults:
         sec = Section(f"{link.label}: located faults", level=3)
-        table = Table(["Fibre distance m", "Sheath distance m", "Route distance m",
-                       "Search from m", "Search to m", "Nearest landmark", "Offset m",
-                       "Marking", "By", "When", "Notes"], [], numeric={0, 1, 2, 3, 4, 6})
+        table = Table(
+            [
+                "Fibre distance m",
+                "Sheath distance m",
+                "Route distance m",
+                "Search from m",
+                "Search to m",
+                "Nearest landmark",
+                "Offset m",
+                "Marking",
+                "By",
+                "When",
+                "Notes",
+            ],
+            [],
+            numeric={0, 1, 2, 3, 4, 6},
+        )
         for f in link.faults:
-            table.rows.append([fmt_m(f.fiber_distance_m), fmt_m(f.sheath_distance_m),
-                               fmt_m(f.route_distance_m), fmt_m(f.low_m), fmt_m(f.high_m),
-                               f.nearest_landmark or "", fmt_m(f.offset_from_landmark_m),
-                               f.marking or "", f.by, fmt_time(f.at), f.notes])
+            table.rows.append(
+                [
+                    fmt_m(f.fiber_distance_m),
+                    fmt_m(f.sheath_distance_m),
+                    fmt_m(f.route_distance_m),
+                    fmt_m(f.low_m),
+                    fmt_m(f.high_m),
+                    f.nearest_landmark or "",
+                    fmt_m(f.offset_from_landmark_m),
+                    f.marking or "",
+                    f.by,
+                    fmt_time(f.at),
+                    f.notes,
+                ]
+            )
         sec.tables.append(table)
         out.append(sec)
     return out
@@ -375,8 +534,13 @@ def to_markdown(job: Job) -> str:
             out += [_md_cell(para), ""]
         for table in sec.tables:
             out.append("| " + " | ".join(table.headers) + " |")
-            out.append("| " + " | ".join("---:" if i in table.numeric else "---"
-                                         for i in range(len(table.headers))) + " |")
+            out.append(
+                "| "
+                + " | ".join(
+                    "---:" if i in table.numeric else "---" for i in range(len(table.headers))
+                )
+                + " |"
+            )
             for row in table.rows:
                 out.append("| " + " | ".join(_md_cell(c) for c in row) + " |")
             out.append("")
@@ -416,10 +580,19 @@ def to_html(job: Job) -> str:
     """A self-contained HTML report (no external files, no scripts) that prints on A4/Letter."""
     report = build_report(job)
     e = html.escape
-    out = ["<!DOCTYPE html>", '<html lang="en">', "<head>", '<meta charset="utf-8">',
-           '<meta name="viewport" content="width=device-width, initial-scale=1">',
-           f"<title>{e(report.title)}</title>", f"<style>{_CSS}</style>", "</head>", "<body>",
-           f"<h1>{e(report.title)}</h1>", '<dl class="facts">']
+    out = [
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        f"<title>{e(report.title)}</title>",
+        f"<style>{_CSS}</style>",
+        "</head>",
+        "<body>",
+        f"<h1>{e(report.title)}</h1>",
+        '<dl class="facts">',
+    ]
     for key, value in report.facts:
         if value:
             out.append(f"<dt>{e(key)}</dt><dd>{e(value)}</dd>")
@@ -432,17 +605,21 @@ def to_html(job: Job) -> str:
             out.append(f"<p>{e(para)}</p>")
         for table in sec.tables:
             out.append("<table>")
-            out.append("<thead><tr>" + "".join(f"<th>{e(h)}</th>" for h in table.headers)
-                       + "</tr></thead>")
+            out.append(
+                "<thead><tr>" + "".join(f"<th>{e(h)}</th>" for h in table.headers) + "</tr></thead>"
+            )
             out.append("<tbody>")
             for i, row in enumerate(table.rows):
                 mark = table.marks[i] if i < len(table.marks) else ""
                 cls = f' class="{mark}"' if mark else ""
                 cells = "".join(
-                    f'<td class="num">{e(c)}</td>' if j in table.numeric
-                    else f'<td class="nowrap">{e(c)}</td>' if j in table.nowrap
+                    f'<td class="num">{e(c)}</td>'
+                    if j in table.numeric
+                    else f'<td class="nowrap">{e(c)}</td>'
+                    if j in table.nowrap
                     else f"<td>{e(c)}</td>"
-                    for j, c in enumerate(row))
+                    for j, c in enumerate(row)
+                )
                 out.append(f"<tr{cls}>{cells}</tr>")
             out.append("</tbody></table>")
         out.append("</section>")
@@ -451,9 +628,25 @@ def to_html(job: Job) -> str:
 
 
 # -- CSV --------------------------------------------------------------------------------------
-CSV_HEADERS = ["job", "job_id", "link", "fibre", "wavelength_nm", "direction", "reading_dbm",
-               "loss_db", "limit_db", "margin_db", "result", "flags", "reference_id",
-               "reference_level_dbm", "method", "by", "at_utc"]
+CSV_HEADERS = [
+    "job",
+    "job_id",
+    "link",
+    "fibre",
+    "wavelength_nm",
+    "direction",
+    "reading_dbm",
+    "loss_db",
+    "limit_db",
+    "margin_db",
+    "result",
+    "flags",
+    "reference_id",
+    "reference_level_dbm",
+    "method",
+    "by",
+    "at_utc",
+]
 
 
 def _text_cell(text: str) -> str:
@@ -475,22 +668,39 @@ def to_csv(job: Job) -> str:
             if result_in_doubt(link, r) and "reference-in-doubt" not in flags:
                 flags.append("reference-in-doubt")
             margin = margin_db(r)
-            writer.writerow([
-                _text_cell(job.name), job.id, _text_cell(link.label), r.fibre,
-                fmt_nm(r.wavelength_nm), r.direction, fmt_db(r.reading_dbm), fmt_db(r.loss_db),
-                fmt_db(r.limit_db), fmt_db(margin), verdict(r).lower(), ";".join(flags),
-                r.reference_id or "", fmt_db(ref.level_dbm if ref else None), r.method,
-                _text_cell(r.by), r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
-            ])
+            writer.writerow(
+                [
+                    _text_cell(job.name),
+                    job.id,
+                    _text_cell(link.label),
+                    r.fibre,
+                    fmt_nm(r.wavelength_nm),
+                    r.direction,
+                    fmt_db(r.reading_dbm),
+                    fmt_db(r.loss_db),
+                    fmt_db(r.limit_db),
+                    fmt_db(margin),
+                    verdict(r).lower(),
+                    ";".join(flags),
+                    r.reference_id or "",
+                    fmt_db(ref.level_dbm if ref else None),
+                    r.method,
+                    _text_cell(r.by),
+                    r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
+                ]
+            )
     return buffer.getvalue()
 
 
 # -- JSON hand-off -----------------------------------------------------------------------------
 def to_handoff(jobs: Iterable[Job]) -> str:
     """A JSON file that ``fieldkit jobs import`` on another laptop merges without duplicates."""
-    data = {"format": HANDOFF_FORMAT, "handoff_version": HANDOFF_VERSION,
-            "schema_version": SCHEMA_VERSION,
-            "jobs": [job.model_dump(mode="json") for job in jobs]}
+    data = {
+        "format": HANDOFF_FORMAT,
+        "handoff_version": HANDOFF_VERSION,
+        "schema_version": SCHEMA_VERSION,
+        "jobs": [job.model_dump(mode="json") for job in jobs],
+    }
     return json.dumps(data, ensure_ascii=False, indent=1, allow_nan=False) + "\n"
 
 

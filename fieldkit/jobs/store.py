@@ -113,8 +113,9 @@ class JobSummary:
     def search_text(self) -> str:
         """Id, name, customer, site, crew and link labels, case-folded (made on first use)."""
         if self._search is None:
-            self._search = _haystack(self.id, self.name, self.customer, self.site, self.crew,
-                                     self.link_labels)
+            self._search = _haystack(
+                self.id, self.name, self.customer, self.site, self.crew, self.link_labels
+            )
         return self._search
 
     @property
@@ -129,19 +130,41 @@ class JobSummary:
     def of(cls, job: Job) -> JobSummary:
         results = [r for link in job.links for r in link.results]
         return cls(
-            id=job.id, name=job.name, customer=job.customer, site=job.site,
-            crew=list(job.crew), status=job.status, created_iso=_iso(job.created_at),
-            updated_iso=_iso(job.updated_at), revision=job.revision, link_count=len(job.links),
-            result_count=len(results), failed_count=sum(r.passed is False for r in results),
-            note_count=len(job.notes), read_only=job.read_only,
+            id=job.id,
+            name=job.name,
+            customer=job.customer,
+            site=job.site,
+            crew=list(job.crew),
+            status=job.status,
+            created_iso=_iso(job.created_at),
+            updated_iso=_iso(job.updated_at),
+            revision=job.revision,
+            link_count=len(job.links),
+            result_count=len(results),
+            failed_count=sum(r.passed is False for r in results),
+            note_count=len(job.notes),
+            read_only=job.read_only,
             link_labels=[link.label for link in job.links],
         )
 
     def to_json(self) -> list[Any]:
-        return [self.id, self.name, self.customer, self.site, list(self.crew), self.status,
-                self.created_iso, self.updated_iso, self.revision, self.link_count,
-                self.result_count, self.failed_count, self.note_count, self.read_only,
-                self.link_labels]
+        return [
+            self.id,
+            self.name,
+            self.customer,
+            self.site,
+            list(self.crew),
+            self.status,
+            self.created_iso,
+            self.updated_iso,
+            self.revision,
+            self.link_count,
+            self.result_count,
+            self.failed_count,
+            self.note_count,
+            self.read_only,
+            self.link_labels,
+        ]
 
     @classmethod
     def from_json(cls, row: list[Any]) -> JobSummary:
@@ -151,12 +174,22 @@ class JobSummary:
 
     def as_dict(self) -> dict[str, Any]:
         """The summary as JSON-ready values (for ``jobs list --json``)."""
-        return {"id": self.id, "name": self.name, "customer": self.customer, "site": self.site,
-                "crew": list(self.crew), "status": self.status,
-                "created_at": self.created_iso, "updated_at": self.updated_iso,
-                "revision": self.revision, "links": self.link_count,
-                "results": self.result_count, "failed": self.failed_count,
-                "notes": self.note_count, "read_only": self.read_only}
+        return {
+            "id": self.id,
+            "name": self.name,
+            "customer": self.customer,
+            "site": self.site,
+            "crew": list(self.crew),
+            "status": self.status,
+            "created_at": self.created_iso,
+            "updated_at": self.updated_iso,
+            "revision": self.revision,
+            "links": self.link_count,
+            "results": self.result_count,
+            "failed": self.failed_count,
+            "notes": self.note_count,
+            "read_only": self.read_only,
+        }
 
 
 def _haystack(*parts: Any) -> str:
@@ -194,8 +227,11 @@ def filter_summaries(
     if status:
         out = [s for s in out if s.status == status]
     if on_date is not None:
-        out = [s for s in out if local_date(s.created_at) == on_date
-               or local_date(s.updated_at) == on_date]
+        out = [
+            s
+            for s in out
+            if local_date(s.created_at) == on_date or local_date(s.updated_at) == on_date
+        ]
     for word in words:
         out = [s for s in out if word in s.search_text]
     return out
@@ -272,7 +308,8 @@ class JobStore:
             while not _try_lock(fd):
                 if time.monotonic() > deadline:
                     raise LockTimeoutError(
-                        f"job {job_id} is being saved by another program; try again")
+                        f"job {job_id} is being saved by another program; try again"
+                    )
                 time.sleep(0.005)
             try:
                 yield
@@ -289,8 +326,11 @@ class JobStore:
         except FileNotFoundError:
             raise StoreError(f"no job {path.stem} in {self.jobs_dir}") from None
         if size > MAX_FILE_BYTES:
-            raise self._quarantine(path, f"the file is {size / 1e6:.1f} MB, larger than the "
-                                         f"{MAX_FILE_BYTES // (1024 * 1024)} MB limit")
+            raise self._quarantine(
+                path,
+                f"the file is {size / 1e6:.1f} MB, larger than the "
+                f"{MAX_FILE_BYTES // (1024 * 1024)} MB limit",
+            )
         try:
             raw = path.read_bytes()
         except FileNotFoundError:
@@ -403,8 +443,10 @@ class JobStore:
         # The folder counts as settled when nothing was renamed into it for a while before
         # this scan began, so no change can hide inside one tick of the file-system clock.
         settled = None
-        if (scan_started_ns - folder_mtime_ns > SETTLE_NS
-                and os.stat(self.jobs_dir).st_mtime_ns == folder_mtime_ns):
+        if (
+            scan_started_ns - folder_mtime_ns > SETTLE_NS
+            and os.stat(self.jobs_dir).st_mtime_ns == folder_mtime_ns
+        ):
             settled = folder_mtime_ns
         if changed or len(fresh) != len(index) or settled != settled_mtime_ns:
             self._write_index(fresh, settled)
@@ -420,9 +462,12 @@ class JobStore:
             data = json.loads(self.index_path.read_bytes())
         except (OSError, ValueError):
             return {}, None
-        if (not isinstance(data, dict) or data.get("index_version") != INDEX_VERSION
-                or data.get("schema_version") != SCHEMA_VERSION
-                or not isinstance(data.get("entries"), dict)):
+        if (
+            not isinstance(data, dict)
+            or data.get("index_version") != INDEX_VERSION
+            or data.get("schema_version") != SCHEMA_VERSION
+            or not isinstance(data.get("entries"), dict)
+        ):
             return {}, None
         entries: _IndexEntries = data["entries"]
         settled = data.get("settled_folder_mtime_ns")
@@ -431,9 +476,16 @@ class JobStore:
     def _write_index(self, entries: _IndexEntries, settled: int | None) -> None:
         if not entries and not self.jobs_dir.exists():
             return
-        data = json.dumps({"index_version": INDEX_VERSION, "schema_version": SCHEMA_VERSION,
-                           "settled_folder_mtime_ns": settled, "entries": entries},
-                          ensure_ascii=False, separators=(",", ":"))
+        data = json.dumps(
+            {
+                "index_version": INDEX_VERSION,
+                "schema_version": SCHEMA_VERSION,
+                "settled_folder_mtime_ns": settled,
+                "entries": entries,
+            },
+            ensure_ascii=False,
+            separators=(",", ":"),
+        )
         # The index is a cache: a failed write costs a slower next listing, nothing else. It
         # lives in a sub-folder so that writing it does not change the jobs folder's mtime.
         with contextlib.suppress(OSError):
@@ -459,11 +511,11 @@ class JobStore:
         except OSError as exc:
             return StoreError(f"{message}; it could not be moved to quarantine ({exc})")
         restored = self._restore_backup(path)
-        note = ("; the previous version was restored from its backup" if restored
-                else "")
+        note = "; the previous version was restored from its backup" if restored else ""
         with contextlib.suppress(OSError):
             target.with_name(target.name + ".reason.txt").write_text(
-                f"{reason}{note}\n", encoding="utf-8")
+                f"{reason}{note}\n", encoding="utf-8"
+            )
         message = f"{message}; moved to {target}{note}"
         self.problems.append(message)
         return StoreError(message)
@@ -517,12 +569,15 @@ class JobStore:
         path = self.path_of(job.id)
         on_disk = self._disk_revision(path)
         if on_disk is None and expected_revision != 0:
-            raise ConflictError(f"job {job.id} ({job.name}) is no longer in the store; "
-                                "it may have been moved to quarantine")
+            raise ConflictError(
+                f"job {job.id} ({job.name}) is no longer in the store; "
+                "it may have been moved to quarantine"
+            )
         if on_disk is not None and on_disk != expected_revision:
             raise ConflictError(
                 f"job {job.id} ({job.name}) was changed by another program (revision "
-                f"{on_disk}, this copy has {expected_revision}); reload it and redo the change")
+                f"{on_disk}, this copy has {expected_revision}); reload it and redo the change"
+            )
         previous = (job.revision, job.updated_at, job.schema_version)
         job.revision = expected_revision + 1
         job.updated_at = now()
@@ -580,15 +635,26 @@ class JobStore:
                         raise
         raise StoreError(f"job {job_id} could not be updated")  # pragma: no cover
 
-    def create(self, name: str, *, site: str = "", customer: str = "",
-               crew: Sequence[str] = (), by: str = "") -> Job:
+    def create(
+        self,
+        name: str,
+        *,
+        site: str = "",
+        customer: str = "",
+        crew: Sequence[str] = (),
+        by: str = "",
+    ) -> Job:
         """A new open job, saved at once (revision 1)."""
         name = name.strip()
         if not name:
             raise StoreError("a job needs a name")
         try:
-            job = Job(name=name, site=site.strip(), customer=customer.strip(),
-                      crew=[c.strip() for c in crew if c.strip()])
+            job = Job(
+                name=name,
+                site=site.strip(),
+                customer=customer.strip(),
+                crew=[c.strip() for c in crew if c.strip()],
+            )
             if by.strip():
                 job.add_note(f"Job created by {by.strip()}", by=by.strip())
         except ValidationError as exc:
@@ -658,11 +724,14 @@ def job_from_dict(data: dict[str, Any]) -> Job:
             raise NewerSchemaError(
                 f"job {data.get('id')!s} was written by a newer fieldkit (schema {version}; this "
                 f"one reads {SCHEMA_VERSION}); update fieldkit to open it",
-                _lenient_summary(data, version)) from None
+                _lenient_summary(data, version),
+            ) from None
         raise StoreError(f"the file is not a valid job: {explain(exc)}") from None
     if version > SCHEMA_VERSION:
-        job._read_only = (f"job {job.id} ({job.name}) was written by a newer fieldkit (schema "
-                          f"{version}); it is shown read-only: update fieldkit to change it")
+        job._read_only = (
+            f"job {job.id} ({job.name}) was written by a newer fieldkit (schema "
+            f"{version}); it is shown read-only: update fieldkit to change it"
+        )
     return job
 
 
@@ -680,11 +749,19 @@ def _lenient_summary(data: dict[str, Any], version: int) -> JobSummary:
 
     job_id = text("id")
     return JobSummary(
-        id=job_id, name=text("name") or "(newer file)", customer=text("customer"),
-        site=text("site"), crew=[], status=text("status") or "open",
-        created_iso=_iso(moment("created_at")), updated_iso=_iso(moment("updated_at")),
+        id=job_id,
+        name=text("name") or "(newer file)",
+        customer=text("customer"),
+        site=text("site"),
+        crew=[],
+        status=text("status") or "open",
+        created_iso=_iso(moment("created_at")),
+        updated_iso=_iso(moment("updated_at")),
         revision=revision if isinstance(revision := data.get("revision"), int) else 0,
-        link_count=0, result_count=0, failed_count=0, note_count=0,
+        link_count=0,
+        result_count=0,
+        failed_count=0,
+        note_count=0,
         read_only=f"written by a newer fieldkit (schema {version}); update fieldkit to open it",
     )
 
@@ -718,7 +795,15 @@ except ImportError:  # Windows
 
 
 __all__ = [
-    "ConflictError", "JobStore", "JobSummary", "LockTimeoutError", "NewerSchemaError",
-    "QuarantinedFile", "ReadOnlyError", "StoreError", "filter_summaries", "local_date",
+    "ConflictError",
+    "JobStore",
+    "JobSummary",
+    "LockTimeoutError",
+    "NewerSchemaError",
+    "QuarantinedFile",
+    "ReadOnlyError",
+    "StoreError",
+    "filter_summaries",
+    "local_date",
     "parse_job",
 ]

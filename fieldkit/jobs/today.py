@@ -29,11 +29,20 @@ class JobDay:
     open_items: list[str] = field(default_factory=list)
 
     def as_dict(self) -> dict[str, Any]:
-        return {"id": self.id, "name": self.name, "site": self.site, "status": self.status,
-                "results_today": self.results_today, "tested": self.tested,
-                "passed": self.passed, "failed": self.failed, "no_limit": self.no_limit,
-                "in_doubt": self.in_doubt, "failures": self.failures,
-                "open_items": self.open_items}
+        return {
+            "id": self.id,
+            "name": self.name,
+            "site": self.site,
+            "status": self.status,
+            "results_today": self.results_today,
+            "tested": self.tested,
+            "passed": self.passed,
+            "failed": self.failed,
+            "no_limit": self.no_limit,
+            "in_doubt": self.in_doubt,
+            "failures": self.failures,
+            "open_items": self.open_items,
+        }
 
 
 @dataclass
@@ -50,8 +59,11 @@ class DaySummary:
         return out
 
     def as_dict(self) -> dict[str, Any]:
-        return {"date": self.day.isoformat(), "totals": self.totals(),
-                "jobs": [j.as_dict() for j in self.jobs]}
+        return {
+            "date": self.day.isoformat(),
+            "totals": self.totals(),
+            "jobs": [j.as_dict() for j in self.jobs],
+        }
 
 
 def counted(count: int, one: str, many: str | None = None) -> str:
@@ -68,31 +80,41 @@ def job_day(job: Job, day: date) -> JobDay:
     doubt = in_doubt(job)
     failed = failures(job)
     entry = JobDay(
-        id=job.id, name=job.name, site=job.site, status=job.status,
+        id=job.id,
+        name=job.name,
+        site=job.site,
+        status=job.status,
         results_today=sum(local_date(r.at) == day for _, r in job.results()),
-        tested=len(latest), passed=sum(r.passed is True for _, r in latest),
-        failed=len(failed), no_limit=sum(r.passed is None for _, r in latest),
+        tested=len(latest),
+        passed=sum(r.passed is True for _, r in latest),
+        failed=len(failed),
+        no_limit=sum(r.passed is None for _, r in latest),
         in_doubt=len(doubt),
     )
     for link, r in failed:
         limit = f" > {fmt_db(r.limit_db)} dB" if r.limit_db is not None else ""
-        entry.failures.append(f"{link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
-                              f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}")
+        entry.failures.append(
+            f"{link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
+            f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}"
+        )
     for link in job.links:
         if not link.results:
             entry.open_items.append(f"{link.label}: no results yet")
         n_failed = sum(1 for lk, _ in failed if lk is link)
         if n_failed:
-            entry.open_items.append(f"{link.label}: {counted(n_failed, 'failed result')} to "
-                                    "repair and retest")
+            entry.open_items.append(
+                f"{link.label}: {counted(n_failed, 'failed result')} to repair and retest"
+            )
         n_doubt = sum(1 for lk, _ in doubt if lk is link)
         if n_doubt:
-            entry.open_items.append(f"{link.label}: {counted(n_doubt, 'result')} against a "
-                                    "reference in doubt; retest")
+            entry.open_items.append(
+                f"{link.label}: {counted(n_doubt, 'result')} against a reference in doubt; retest"
+            )
         for fault in link.faults:
             entry.open_items.append(
                 f"{link.label}: fault located at {fmt_m(fault.route_distance_m)} m along the "
-                f"route (search {fmt_m(fault.low_m)}–{fmt_m(fault.high_m)} m)")
+                f"route (search {fmt_m(fault.low_m)}–{fmt_m(fault.high_m)} m)"
+            )
     if job.status == "open":
         entry.open_items.append("job still open")
     return entry

@@ -32,17 +32,39 @@ PAGE = 200
 
 
 def make_job(i: int, results: int, base: datetime) -> Job:
-    link = Link(label=f"L{i % 97}-{i}", end_a=f"Cabinet {i % 41}", end_b=f"Chamber {i % 53}",
-                fibre_type="OS2", length_m=100.0 + i % 900, fibre_count=max(1, results // 2))
+    link = Link(
+        label=f"L{i % 97}-{i}",
+        end_a=f"Cabinet {i % 41}",
+        end_b=f"Chamber {i % 53}",
+        fibre_type="OS2",
+        length_m=100.0 + i % 900,
+        fibre_count=max(1, results // 2),
+    )
     for n in range(results):
-        link.results.append(LossResult(
-            fibre=n // 2 + 1, wavelength_nm=1310.0 if n % 2 == 0 else 1550.0,
-            reading_dbm=-8.0 - n / 100, loss_db=1.0 + n / 100, reference_id="ref0001",
-            limit_db=3.0, passed=True, by="Bench crew", at=base + timedelta(minutes=n)))
-    return Job(id=f"{0xB000000000000 + i:016x}", name=f"Job {i} Wrenfield street {i % 331}",
-               customer=f"Customer {i % 17}", site=f"Site {i % 113}", crew=["Ana", "Bo"],
-               created_at=base + timedelta(minutes=i), updated_at=base + timedelta(minutes=i),
-               links=[link], revision=1)
+        link.results.append(
+            LossResult(
+                fibre=n // 2 + 1,
+                wavelength_nm=1310.0 if n % 2 == 0 else 1550.0,
+                reading_dbm=-8.0 - n / 100,
+                loss_db=1.0 + n / 100,
+                reference_id="ref0001",
+                limit_db=3.0,
+                passed=True,
+                by="Bench crew",
+                at=base + timedelta(minutes=n),
+            )
+        )
+    return Job(
+        id=f"{0xB000000000000 + i:016x}",
+        name=f"Job {i} Wrenfield street {i % 331}",
+        customer=f"Customer {i % 17}",
+        site=f"Site {i % 113}",
+        crew=["Ana", "Bo"],
+        created_at=base + timedelta(minutes=i),
+        updated_at=base + timedelta(minutes=i),
+        links=[link],
+        revision=1,
+    )
 
 
 def timed(func, repeat: int) -> float:  # noqa: ANN001
@@ -61,7 +83,8 @@ def bench_listing(root: Path, n_jobs: int, n_results: int) -> dict[str, float]:
     base = datetime(2026, 3, 1, tzinfo=UTC)
     for i in range(n_jobs):
         (jobs_dir / f"{0xB000000000000 + i:016x}.json").write_bytes(
-            make_job(i, n_results, base).model_dump_json(indent=1).encode())
+            make_job(i, n_results, base).model_dump_json(indent=1).encode()
+        )
 
     def plain_load() -> None:
         for path in jobs_dir.glob("*.json"):
@@ -104,10 +127,16 @@ def bench_listing(root: Path, n_jobs: int, n_results: int) -> dict[str, float]:
     baseline_s, page_s = statistics.median(baselines), statistics.median(pages)
     page_ratio = statistics.median(p / b for p, b in zip(pages, baselines, strict=True))
     key_s = timed(keystroke, 45)
-    return {"baseline_plain_load_s": baseline_s, "index_build_s": index_build_s,
-            "first_page_s": page_s, "filter_keystroke_s": key_s,
-            "first_page_checking_files_s": busy_s, "busy_ratio": busy_s / baseline_s,
-            "first_page_ratio": page_ratio, "filter_ratio": key_s / baseline_s}
+    return {
+        "baseline_plain_load_s": baseline_s,
+        "index_build_s": index_build_s,
+        "first_page_s": page_s,
+        "filter_keystroke_s": key_s,
+        "first_page_checking_files_s": busy_s,
+        "busy_ratio": busy_s / baseline_s,
+        "first_page_ratio": page_ratio,
+        "filter_ratio": key_s / baseline_s,
+    }
 
 
 def bench_save(root: Path, n_results: int) -> dict[str, float]:
@@ -133,8 +162,12 @@ def bench_save(root: Path, n_results: int) -> dict[str, float]:
         plain_samples.append(timed(plain_save, 1))
         store_samples.append(timed(store_save, 1))
     plain_s, store_s = statistics.median(plain_samples), statistics.median(store_samples)
-    return {"plain_dump_fsync_s": plain_s, "store_save_s": store_s, "save_ratio": store_s / plain_s,
-            "file_bytes": float(store.path_of(job.id).stat().st_size)}
+    return {
+        "plain_dump_fsync_s": plain_s,
+        "store_save_s": store_s,
+        "save_ratio": store_s / plain_s,
+        "file_bytes": float(store.path_of(job.id).stat().st_size),
+    }
 
 
 def main() -> None:
@@ -150,17 +183,25 @@ def main() -> None:
     print(f"jobs list, {args.jobs} jobs x {args.results} results")
     print(f"  plain json.load of every file  {listing['baseline_plain_load_s'] * 1000:9.1f} ms")
     print(f"  first listing (builds index)   {listing['index_build_s'] * 1000:9.1f} ms")
-    print(f"  first page (index)             {listing['first_page_s'] * 1000:9.1f} ms  "
-          f"ratio {listing['first_page_ratio']:.3f} (goal <= 0.2)")
+    print(
+        f"  first page (index)             {listing['first_page_s'] * 1000:9.1f} ms  "
+        f"ratio {listing['first_page_ratio']:.3f} (goal <= 0.2)"
+    )
     busy_ms = listing["first_page_checking_files_s"] * 1000
-    print(f"  first page, checking each file {busy_ms:9.1f} ms  "
-          f"ratio {listing['busy_ratio']:.3f} (folder written in the last 2 s)")
-    print(f"  filter keystroke               {listing['filter_keystroke_s'] * 1000:9.2f} ms  "
-          f"ratio {listing['filter_ratio']:.4f} (goal <= 0.05)")
+    print(
+        f"  first page, checking each file {busy_ms:9.1f} ms  "
+        f"ratio {listing['busy_ratio']:.3f} (folder written in the last 2 s)"
+    )
+    print(
+        f"  filter keystroke               {listing['filter_keystroke_s'] * 1000:9.2f} ms  "
+        f"ratio {listing['filter_ratio']:.4f} (goal <= 0.05)"
+    )
     print(f"save one job of {args.save_results} results ({save['file_bytes'] / 1e3:.0f} kB)")
     print(f"  plain json.dump + fsync        {save['plain_dump_fsync_s'] * 1000:9.2f} ms")
-    print(f"  JobStore.save                  {save['store_save_s'] * 1000:9.2f} ms  "
-          f"ratio {save['save_ratio']:.2f} (goal <= 1.5)")
+    print(
+        f"  JobStore.save                  {save['store_save_s'] * 1000:9.2f} ms  "
+        f"ratio {save['save_ratio']:.2f} (goal <= 1.5)"
+    )
 
 
 if __name__ == "__main__":

@@ -125,8 +125,7 @@ async def key_by_key(make: Any, texts: list[str], is_meter: bool) -> tuple[float
             await pilot.press("enter")
         while is_meter and not meter_done(screen, len(texts)):
             await pilot.pause(0.01)
-        return ((time.perf_counter() - wall) / len(texts),
-                (time.process_time() - cpu) / len(texts))
+        return ((time.perf_counter() - wall) / len(texts), (time.process_time() - cpu) / len(texts))
 
 
 async def typed_ahead(make: Any, texts: list[str], is_meter: bool) -> tuple[float, float]:
@@ -155,8 +154,10 @@ async def typed_ahead(make: Any, texts: list[str], is_meter: bool) -> tuple[floa
                 break
             if not is_meter and app.entered >= len(texts):
                 break
-        elapsed = ((time.perf_counter() - wall) / len(texts),
-                   (time.process_time() - cpu) / len(texts))
+        elapsed = (
+            (time.perf_counter() - wall) / len(texts),
+            (time.process_time() - cpu) / len(texts),
+        )
         if is_meter:
             check_saved(app, len(texts))
         return elapsed
@@ -175,26 +176,36 @@ async def main() -> None:
     digits = sum(len(t) for t in texts)
     keys_per_reading = [len(t) + 1 for t in texts]  # the characters, then Enter
     beyond = sum(k - len(t) for k, t in zip(keys_per_reading, texts, strict=True)) / len(texts)
-    print(f"{len(texts)} readings ({FIBRES} fibres x {len(WAVELENGTHS_NM)} wavelengths), "
-          f"{digits} characters typed")
-    print(f"  keystrokes beyond the digits: {beyond:.2f} per reading (goal <= 1): Enter only; "
-          "the cursor moves on by itself, and from the last fibre to the next wavelength")
+    print(
+        f"{len(texts)} readings ({FIBRES} fibres x {len(WAVELENGTHS_NM)} wavelengths), "
+        f"{digits} characters typed"
+    )
+    print(
+        f"  keystrokes beyond the digits: {beyond:.2f} per reading (goal <= 1): Enter only; "
+        "the cursor moves on by itself, and from the last fibre to the next wavelength"
+    )
 
     with tempfile.TemporaryDirectory() as name:
         tmp = Path(name)
         ours_ahead, ours_ahead_cpu = await typed_ahead(meter_factory(tmp, 0), texts, True)
         base_ahead, base_ahead_cpu = await typed_ahead(BareInput, texts, False)
         print("typed ahead, all 288 readings (throughput):")
-        print(f"  meter workspace (incl. saving) {ours_ahead * 1000:7.2f} ms/reading wall, "
-              f"{ours_ahead_cpu * 1000:7.2f} ms CPU")
-        print(f"  bare Input                     {base_ahead * 1000:7.2f} ms/reading wall, "
-              f"{base_ahead_cpu * 1000:7.2f} ms CPU")
-        print(f"  ratio                          {ours_ahead / base_ahead:7.3f} wall, "
-              f"{ours_ahead_cpu / base_ahead_cpu:7.3f} CPU   (goal <= 1.5)")
+        print(
+            f"  meter workspace (incl. saving) {ours_ahead * 1000:7.2f} ms/reading wall, "
+            f"{ours_ahead_cpu * 1000:7.2f} ms CPU"
+        )
+        print(
+            f"  bare Input                     {base_ahead * 1000:7.2f} ms/reading wall, "
+            f"{base_ahead_cpu * 1000:7.2f} ms CPU"
+        )
+        print(
+            f"  ratio                          {ours_ahead / base_ahead:7.3f} wall, "
+            f"{ours_ahead_cpu / base_ahead_cpu:7.3f} CPU   (goal <= 1.5)"
+        )
 
         ours, base, ours_cpu, base_cpu = [], [], [], []
         for run in range(3):
-            chunk = texts[run * per_run:(run + 1) * per_run]
+            chunk = texts[run * per_run : (run + 1) * per_run]
             o = await key_by_key(meter_factory(tmp, run + 1), chunk, True)
             b = await key_by_key(BareInput, chunk, False)
             ours.append(o[0])
@@ -204,12 +215,18 @@ async def main() -> None:
         o_w, b_w = statistics.median(ours), statistics.median(base)
         o_c, b_c = statistics.median(ours_cpu), statistics.median(base_cpu)
         print(f"key by key ({per_run} readings x 3 runs, alternated, median):")
-        print(f"  meter workspace (incl. saving) {o_w * 1000:7.2f} ms/reading wall, "
-              f"{o_c * 1000:7.2f} ms CPU")
-        print(f"  bare Input                     {b_w * 1000:7.2f} ms/reading wall, "
-              f"{b_c * 1000:7.2f} ms CPU")
-        print(f"  ratio                          {o_w / b_w:7.3f} wall, {o_c / b_c:7.3f} CPU"
-              "   (goal <= 1.5)")
+        print(
+            f"  meter workspace (incl. saving) {o_w * 1000:7.2f} ms/reading wall, "
+            f"{o_c * 1000:7.2f} ms CPU"
+        )
+        print(
+            f"  bare Input                     {b_w * 1000:7.2f} ms/reading wall, "
+            f"{b_c * 1000:7.2f} ms CPU"
+        )
+        print(
+            f"  ratio                          {o_w / b_w:7.3f} wall, {o_c / b_c:7.3f} CPU"
+            "   (goal <= 1.5)"
+        )
 
 
 if __name__ == "__main__":

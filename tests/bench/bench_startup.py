@@ -58,8 +58,14 @@ Bare().run()
 
 def first_frame_s(code: str, env: dict[str, str]) -> float:
     start = time.time()
-    out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True,
-                         timeout=60, check=True).stdout
+    out = subprocess.run(
+        [sys.executable, "-c", code],
+        env=env,
+        capture_output=True,
+        text=True,
+        timeout=60,
+        check=True,
+    ).stdout
     return float(out.strip().splitlines()[-1]) - start
 
 

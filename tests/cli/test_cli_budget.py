@@ -11,8 +11,9 @@ import pytest
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", "fieldkit", *args], capture_output=True,
-                          text=True, timeout=60)
+    return subprocess.run(
+        [sys.executable, "-m", "fieldkit", *args], capture_output=True, text=True, timeout=60
+    )
 
 
 def budget_json(*args: str) -> dict:
@@ -25,8 +26,18 @@ def test_json_contract_and_worked_example():
     # OS2 (ISO/IEC 11801-1:2017, 0.4 dB/km, from memory) 10 km, 4 mated pairs at the
     # TIA-568.3-D 0.75 dB, 6 fusion splices at 0.3 dB:
     # 4.0 + 3.0 + 1.8 = 8.8 dB at 1310 and at 1550 nm; margin 3 dB -> 11.8 dB
-    data = budget_json("--fiber", "OS2", "--length", "10 km", "--connectors", "4",
-                       "--splices", "6", "--margin", "3")
+    data = budget_json(
+        "--fiber",
+        "OS2",
+        "--length",
+        "10 km",
+        "--connectors",
+        "4",
+        "--splices",
+        "6",
+        "--margin",
+        "3",
+    )
     assert [w["wavelength_nm"] for w in data["wavelengths"]] == [1310.0, 1550.0]
     for row in data["wavelengths"]:
         assert row["loss_db"] == pytest.approx(8.8, abs=1e-9)
@@ -40,9 +51,22 @@ def test_application_and_transceiver_in_json():
     # IEEE Std 802.3-2018 Clause 52 (from memory): 10GBASE-LR 6.2 dB / 10 km.
     # OS2 8 km: 3.2 + 1.5 (2 pairs) = 4.7 dB; headroom 1.5 dB; 2000 m of reach left.
     # Typed levels Tx −8.2..+0.5, Rx −14.4 / +0.5: margin −8.2 − 4.7 + 14.4 = 1.5 dB.
-    data = budget_json("--fiber", "OS2", "--length", "8km", "--application", "10GBASE-LR",
-                       "--tx-min", "-8.2", "--tx-max", "0.5", "--rx-sensitivity", "-14.4",
-                       "--rx-overload", "0.5")
+    data = budget_json(
+        "--fiber",
+        "OS2",
+        "--length",
+        "8km",
+        "--application",
+        "10GBASE-LR",
+        "--tx-min",
+        "-8.2",
+        "--tx-max",
+        "0.5",
+        "--rx-sensitivity",
+        "-14.4",
+        "--rx-overload",
+        "0.5",
+    )
     app = data["application"]
     assert app["name"] == "10GBASE-LR" and app["pass"] is True
     assert app["loss_headroom_db"] == pytest.approx(1.5, abs=1e-9)
@@ -54,8 +78,18 @@ def test_application_and_transceiver_in_json():
 
 def test_pon_budget_adds_the_application_wavelengths():
     # GPON (ITU-T G.984.2) works at 1310 and 1490 nm: both are in the result.
-    data = budget_json("--fiber", "G.652.D", "--length", "12 km", "--splitter", "1x32",
-                       "--application", "GPON Class B+", "--transceiver", "GPON B+ downstream")
+    data = budget_json(
+        "--fiber",
+        "G.652.D",
+        "--length",
+        "12 km",
+        "--splitter",
+        "1x32",
+        "--application",
+        "GPON Class B+",
+        "--transceiver",
+        "GPON B+ downstream",
+    )
     assert [w["wavelength_nm"] for w in data["wavelengths"]] == [1310.0, 1490.0, 1550.0]
     # 1310: 12 × 0.4 = 4.8; 2 × 0.75 = 1.5; 1x32: 15.0515 + 2.1 = 17.1515 -> 23.4515 dB
     assert data["application"]["loss_db"] == pytest.approx(23.4515, abs=1e-4)
@@ -65,7 +99,8 @@ def test_pon_budget_adds_the_application_wavelengths():
 
 def test_link_file_toml_with_segments_and_components(tmp_path: Path):
     path = tmp_path / "span.toml"
-    path.write_text("""
+    path.write_text(
+        """
 label = "hut to cabinet"
 margin = "2 dB"
 wavelengths = [1310, 1550]
@@ -89,7 +124,9 @@ grade = "fusion"
 [[components]]
 kind = "attenuator"
 loss = "5 dB"
-""", encoding="utf-8")
+""",
+        encoding="utf-8",
+    )
     data = budget_json(str(path))
     assert data["label"] == "hut to cabinet"
     row = data["wavelengths"][0]
@@ -97,21 +134,35 @@ loss = "5 dB"
     # 4 × 0.5 (Grade C maximum, IEC 61753-1, from memory) = 2.0; 3 × 0.3 = 0.9; 5 dB attenuator
     # total 1.68 + 0.06 + 0.019738 + 2.0 + 0.9 + 5.0 = 9.659738 dB
     assert row["loss_db"] == pytest.approx(9.659738, abs=1e-5)
-    assert [i["kind"] for i in row["items"]] == ["fibre", "mismatch", "fibre", "connectors",
-                                                 "splices", "component"]
+    assert [i["kind"] for i in row["items"]] == [
+        "fibre",
+        "mismatch",
+        "fibre",
+        "connectors",
+        "splices",
+        "component",
+    ]
 
 
 def test_link_file_json(tmp_path: Path):
     path = tmp_path / "link.json"
-    path.write_text(json.dumps({
-        "segments": [{"attenuation": {"1310": "0.33 dB/km", "1550": "0.19 dB/km"},
-                      "length": "20 km"}],
-        "connectors": {"count": 2, "loss": "0.5 dB"},
-    }), encoding="utf-8")
+    path.write_text(
+        json.dumps(
+            {
+                "segments": [
+                    {"attenuation": {"1310": "0.33 dB/km", "1550": "0.19 dB/km"}, "length": "20 km"}
+                ],
+                "connectors": {"count": 2, "loss": "0.5 dB"},
+            }
+        ),
+        encoding="utf-8",
+    )
     data = budget_json(str(path))
     # 1310: 20 × 0.33 = 6.6 + 1.0 = 7.6 dB; 1550: 20 × 0.19 = 3.8 + 1.0 = 4.8 dB
     assert {w["wavelength_nm"]: round(w["loss_db"], 9) for w in data["wavelengths"]} == {
-        1310.0: 7.6, 1550.0: 4.8}
+        1310.0: 7.6,
+        1550.0: 4.8,
+    }
 
 
 def test_text_output_has_the_breakdown():
@@ -122,20 +173,32 @@ def test_text_output_has_the_breakdown():
     assert "Application 40GBASE-SR4 on OM4" in result.stdout
 
 
-@pytest.mark.parametrize(("args", "message"), [
-    (("--fiber", "OS2", "--length=-5km"), "negative"),
-    (("--attenuation", "0.35", "--length", "5km", "--wavelength", "1310"), "no length unit"),
-    (("--fiber", "OM9", "--length", "5km"), "unknown fibre 'OM9'"),
-    (("--fiber", "OS2", "--length", "5km", "--application", "100BASE-Q"), "unknown application"),
-    (("--fiber", "OS2", "--length", "NaN km"), "not a number"),
-    (("--fiber", "OS2", "--length", "500"), "needs a unit"),
-    (("--fiber", "OM3", "--length", "1km", "--wavelength", "1550"), "no maximum attenuation"),
-    (("--fiber", "OS2", "--length", "1km", "--tx-min", "-3"), "needs all four"),
-    (("--fiber", "OS2", "--length", "1km", "--connectors", "2.5"), "not a whole number"),
-    (("--fiber", "OS2", "--length", "1km", "--splitter", "1x1"), "fewer than 2 outputs"),
-    (("--fiber", "OS2", "--length", "1km", "--margin", "inf"), "infinity"),
-    (("--length", "1km",), "--fiber TYPE or --attenuation"),
-])
+@pytest.mark.parametrize(
+    ("args", "message"),
+    [
+        (("--fiber", "OS2", "--length=-5km"), "negative"),
+        (("--attenuation", "0.35", "--length", "5km", "--wavelength", "1310"), "no length unit"),
+        (("--fiber", "OM9", "--length", "5km"), "unknown fibre 'OM9'"),
+        (
+            ("--fiber", "OS2", "--length", "5km", "--application", "100BASE-Q"),
+            "unknown application",
+        ),
+        (("--fiber", "OS2", "--length", "NaN km"), "not a number"),
+        (("--fiber", "OS2", "--length", "500"), "needs a unit"),
+        (("--fiber", "OM3", "--length", "1km", "--wavelength", "1550"), "no maximum attenuation"),
+        (("--fiber", "OS2", "--length", "1km", "--tx-min", "-3"), "needs all four"),
+        (("--fiber", "OS2", "--length", "1km", "--connectors", "2.5"), "not a whole number"),
+        (("--fiber", "OS2", "--length", "1km", "--splitter", "1x1"), "fewer than 2 outputs"),
+        (("--fiber", "OS2", "--length", "1km", "--margin", "inf"), "infinity"),
+        (
+            (
+                "--length",
+                "1km",
+            ),
+            "--fiber TYPE or --attenuation",
+        ),
+    ],
+)
 def test_bad_input_exits_2_with_one_line(args, message):
     result = run("budget", *args)
     assert result.returncode == 2
@@ -160,9 +223,24 @@ def test_budget_saved_onto_a_job_shows_in_its_export(tmp_path: Path):
     made = run("jobs", "new", "Riverside", "--data-dir", data_dir, "--json")
     assert made.returncode == 0, made.stderr
     job_id = json.loads(made.stdout)["id"]
-    saved = run("budget", "--fiber", "OS2", "--length", "10km", "--connectors", "4",
-                "--job", job_id, "--link", "span 1", "--by", "ana", "--data-dir", data_dir,
-                "--json")
+    saved = run(
+        "budget",
+        "--fiber",
+        "OS2",
+        "--length",
+        "10km",
+        "--connectors",
+        "4",
+        "--job",
+        job_id,
+        "--link",
+        "span 1",
+        "--by",
+        "ana",
+        "--data-dir",
+        data_dir,
+        "--json",
+    )
     assert saved.returncode == 0, saved.stderr
     assert json.loads(saved.stdout)["saved"]["link"] == "span 1"
     job_file = next((tmp_path / "data" / "jobs").glob(f"{job_id}*.json"))
@@ -192,8 +270,7 @@ def test_presets_lists_sources():
 def test_presets_reports_a_bad_user_file(tmp_path: Path):
     config = tmp_path / "config"
     (config / "presets").mkdir(parents=True)
-    (config / "presets" / "bad.toml").write_text('[[connectors]]\nname = "x"\n',
-                                                 encoding="utf-8")
+    (config / "presets" / "bad.toml").write_text('[[connectors]]\nname = "x"\n', encoding="utf-8")
     result = run("presets", "connectors", "--config-dir", str(config))
     assert result.returncode == 0
     assert "bad.toml: connectors entry 'x': 'loss_max_db' is missing" in result.stdout
@@ -207,14 +284,17 @@ def test_presets_unknown_kind():
 
 def test_presets_check_a_file_before_use(tmp_path: Path):
     good = tmp_path / "good.toml"
-    good.write_text('[[connectors]]\nname = "site rule"\nloss_max_db = 0.4\nsource = "ours"\n',
-                    encoding="utf-8")
+    good.write_text(
+        '[[connectors]]\nname = "site rule"\nloss_max_db = 0.4\nsource = "ours"\n', encoding="utf-8"
+    )
     result = run("presets", "--check", str(good))
     assert result.returncode == 0, result.stderr
     assert "connectors: site rule" in result.stdout
     bad = tmp_path / "bad.toml"
-    bad.write_text('[[splices]]\nname = "x"\nmethod = "laser"\nloss_max_db = 0.1\n'
-                   'source = "ours"\n', encoding="utf-8")
+    bad.write_text(
+        '[[splices]]\nname = "x"\nmethod = "laser"\nloss_max_db = 0.1\nsource = "ours"\n',
+        encoding="utf-8",
+    )
     result = run("presets", "--check", str(bad))
     assert result.returncode == 2
     assert "'method' must be fusion or mechanical, not 'laser'" in result.stdout

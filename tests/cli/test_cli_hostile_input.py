@@ -21,7 +21,11 @@ import pytest
 def run(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
     return subprocess.run(
         [sys.executable, "-m", "fieldkit", *args],
-        capture_output=True, text=True, timeout=120, env=dict(os.environ), cwd=cwd,
+        capture_output=True,
+        text=True,
+        timeout=120,
+        env=dict(os.environ),
+        cwd=cwd,
     )
 
 
@@ -36,6 +40,7 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
 
 
 # -- typed values: levels, losses, lengths --------------------------------------------------
+
 
 @pytest.mark.parametrize(
     ("args", "words"),
@@ -72,10 +77,11 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (("locate", "--distance", "1km", "--ior", "0.5"), ("below 1",)),
         (("locate", "--distance", "1km", "--ior", "1,468"), ("ambiguous",)),
         # the error terms are squared: 1e308 m used to overflow instead of being refused
-        (("locate", "--distance", "1km", "--ior", "1.468", "--sample-spacing", "1e308"),
-         ("sample spacing",)),
-        (("locate", "--distance", "1km", "--ior", "1.468", "--offset", "1e300 km"),
-         ("offset",)),
+        (
+            ("locate", "--distance", "1km", "--ior", "1.468", "--sample-spacing", "1e308"),
+            ("sample spacing",),
+        ),
+        (("locate", "--distance", "1km", "--ior", "1.468", "--offset", "1e300 km"), ("offset",)),
         (("locate", "--distance", "1e30 km", "--ior", "1.468"), ("longer",)),
         (("locate", "--time", "1e308 s", "--ior", "1.468", "--json"), ("round-trip",)),
         (("jobs", "list", "--date", "2026-02-30"), ("date",)),
@@ -92,10 +98,14 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (("convert", "1e308 THz", "--to", "nm"), ("out of range",)),
         # an empty option (an unset shell variable) used to be dropped: all units, no check
         (("convert", "5 dBm", "--to", ""), ("no unit",)),
-        (("budget", "--fiber", "OS2", "--length", "1km", "--application", ""),
-         ("--application", "empty")),
-        (("budget", "--fiber", "OS2", "--length", "1km", "--transceiver", " "),
-         ("--transceiver", "empty")),
+        (
+            ("budget", "--fiber", "OS2", "--length", "1km", "--application", ""),
+            ("--application", "empty"),
+        ),
+        (
+            ("budget", "--fiber", "OS2", "--length", "1km", "--transceiver", " "),
+            ("--transceiver", "empty"),
+        ),
     ],
 )
 def test_bad_values_are_refused_in_one_line(args: tuple[str, ...], words: tuple[str, ...]) -> None:
@@ -114,14 +124,17 @@ def test_bad_values_are_refused_in_one_line(args: tuple[str, ...], words: tuple[
         # -1e3 dBm is -1030 dBW (dBW = dBm − 30, ITU-R V.574)
         (("convert", "-1e3 dBm", "--to", "dBW", "--json"), {"value": -1030.0}),
         # -7.2 − (-9.1) = 1.9 dB
-        (("loss", "--reference", "-7,2dBm", "--reading", "-9.1dBm", "--limit", "3", "--json"),
-         {"loss_db": 1.9}),
+        (
+            ("loss", "--reference", "-7,2dBm", "--reading", "-9.1dBm", "--limit", "3", "--json"),
+            {"loss_db": 1.9},
+        ),
         # Unicode minus (U+2212) as a technician's keyboard may type it
         (("convert", "\u22127.5 dBm", "--to", "dBm", "--json"), {"value": -7.5}),
     ],
 )
-def test_values_starting_with_a_minus_are_values(args: tuple[str, ...],
-                                                 expect: dict[str, float]) -> None:
+def test_values_starting_with_a_minus_are_values(
+    args: tuple[str, ...], expect: dict[str, float]
+) -> None:
     result = run(*args)
     assert result.returncode == 0, result.stderr
     data = json.loads(result.stdout)
@@ -152,23 +165,39 @@ _GOOD_SEGMENT = '[[segments]]\nfibre = "OS2"\nlength = "5 km"\n'
         ("inf.toml", b'[[segments]]\nfibre = "OS2"\nlength = inf\n', ("finite",)),
         ("nan.toml", b'[[segments]]\nfibre = "OS2"\nlength = nan\n', ("finite",)),
         ("date.toml", b'[[segments]]\nfibre = "OS2"\nlength = 1979-05-27\n', ("not a value",)),
-        ("big.json",
-         b'{"segments": [{"fibre": "OS2", "length": "5 km"}], "connectors": {"count": 1'
-         + b"0" * 400 + b"}}", ("401-digit",)),
-        ("bool.json",
-         b'{"segments": [{"fibre": "OS2", "length": "5 km"}], "connectors": {"count": true}}',
-         ("not a number",)),
-        ("extra.json", b'{"segments": [{"fibre": "OS2", "length": "5 km"}], "colour": 1}',
-         ("colour",)),
-        ("kind.json",
-         b'{"segments": [{"fibre": "OS2", "length": "5 km"}], '
-         b'"components": [{"kind": "bogus", "loss": "1 dB"}]}', ("bogus",)),
-        ("mixed.toml", (_GOOD_SEGMENT + '[[segments]]\nfibre = "OM4"\nlength = "1 km"\n').encode(),
-         ("multimode",)),
+        (
+            "big.json",
+            b'{"segments": [{"fibre": "OS2", "length": "5 km"}], "connectors": {"count": 1'
+            + b"0" * 400
+            + b"}}",
+            ("401-digit",),
+        ),
+        (
+            "bool.json",
+            b'{"segments": [{"fibre": "OS2", "length": "5 km"}], "connectors": {"count": true}}',
+            ("not a number",),
+        ),
+        (
+            "extra.json",
+            b'{"segments": [{"fibre": "OS2", "length": "5 km"}], "colour": 1}',
+            ("colour",),
+        ),
+        (
+            "kind.json",
+            b'{"segments": [{"fibre": "OS2", "length": "5 km"}], '
+            b'"components": [{"kind": "bogus", "loss": "1 dB"}]}',
+            ("bogus",),
+        ),
+        (
+            "mixed.toml",
+            (_GOOD_SEGMENT + '[[segments]]\nfibre = "OM4"\nlength = "1 km"\n').encode(),
+            ("multimode",),
+        ),
     ],
 )
-def test_broken_link_files_are_refused(tmp_path: Path, name: str, content: bytes,
-                                       words: tuple[str, ...]) -> None:
+def test_broken_link_files_are_refused(
+    tmp_path: Path, name: str, content: bytes, words: tuple[str, ...]
+) -> None:
     path = tmp_path / name
     path.write_bytes(content)
     assert_refused(run("budget", str(path)), *words)
@@ -183,8 +212,9 @@ def test_a_folder_given_as_link_file_is_refused(tmp_path: Path) -> None:
 @pytest.mark.parametrize("suffix", [".toml", ".json"])
 def test_a_link_file_with_a_byte_order_mark_is_read(tmp_path: Path, suffix: str) -> None:
     # Some editors start UTF-8 files with U+FEFF; the file is still UTF-8 text.
-    body = (_GOOD_SEGMENT if suffix == ".toml"
-            else '{"segments": [{"fibre": "OS2", "length": "5 km"}]}')
+    body = (
+        _GOOD_SEGMENT if suffix == ".toml" else '{"segments": [{"fibre": "OS2", "length": "5 km"}]}'
+    )
     path = tmp_path / f"link{suffix}"
     path.write_bytes(b"\xef\xbb\xbf" + body.encode())
     result = run("budget", str(path), "--json", "--wavelength", "1310")
@@ -196,6 +226,7 @@ def test_a_link_file_with_a_byte_order_mark_is_read(tmp_path: Path, suffix: str)
 
 
 # -- user preset files -----------------------------------------------------------------------
+
 
 def test_a_deeply_nested_user_preset_file_is_a_problem_not_a_crash(
     isolated_dirs: dict[str, Path],
@@ -220,14 +251,17 @@ def test_a_deeply_nested_user_preset_file_is_a_problem_not_a_crash(
 
 def test_a_user_preset_file_with_a_byte_order_mark_loads(tmp_path: Path) -> None:
     path = tmp_path / "mine.toml"
-    path.write_bytes(b"\xef\xbb\xbf" + b'[[connectors]]\nname = "site grade"\nloss_max_db = 0.5\n'
-                     b'source = "site specification"\n')
+    path.write_bytes(
+        b"\xef\xbb\xbf" + b'[[connectors]]\nname = "site grade"\nloss_max_db = 0.5\n'
+        b'source = "site specification"\n'
+    )
     result = run("presets", "--check", str(path))
     assert result.returncode == 0, result.stdout + result.stderr
     assert "connectors: site grade" in result.stdout
 
 
 # -- jobs: ids, prefixes, hand-off files, exports --------------------------------------------
+
 
 def _new_job(name: str) -> str:
     result = run("jobs", "new", name, "--json")
@@ -256,11 +290,17 @@ def test_export_onto_the_jobs_own_file_is_refused(isolated_dirs: dict[str, Path]
     job_id = _new_job("keep me")
     job_file = isolated_dirs["data"] / "jobs" / f"{job_id}.json"
     before = job_file.read_bytes()
-    assert_refused(run("jobs", "export", job_id, "--format", "csv", "-o", str(job_file)),
-                   "inside the jobs folder")
+    assert_refused(
+        run("jobs", "export", job_id, "--format", "csv", "-o", str(job_file)),
+        "inside the jobs folder",
+    )
     assert job_file.read_bytes() == before
-    assert_refused(run("jobs", "export", job_id, "--format", "md", "-o",
-                       str(job_file.parent / "sub" / "r.md")), "inside the jobs folder")
+    assert_refused(
+        run(
+            "jobs", "export", job_id, "--format", "md", "-o", str(job_file.parent / "sub" / "r.md")
+        ),
+        "inside the jobs folder",
+    )
     assert run("jobs", "show", job_id).returncode == 0
 
 
@@ -281,8 +321,9 @@ def test_export_elsewhere_still_writes(tmp_path: Path) -> None:
         (b"null", ("neither",)),
     ],
 )
-def test_broken_handoff_files_import_nothing(tmp_path: Path, isolated_dirs: dict[str, Path],
-                                             content: bytes, words: tuple[str, ...]) -> None:
+def test_broken_handoff_files_import_nothing(
+    tmp_path: Path, isolated_dirs: dict[str, Path], content: bytes, words: tuple[str, ...]
+) -> None:
     path = tmp_path / "handoff.json"
     path.write_bytes(content)
     assert_refused(run("jobs", "import", str(path)), *words)
@@ -291,9 +332,9 @@ def test_broken_handoff_files_import_nothing(tmp_path: Path, isolated_dirs: dict
 
 
 @pytest.mark.parametrize("bad_id", ["../../etc/evil", "/abs", ""])
-def test_handoff_with_a_path_trick_id_imports_nothing(tmp_path: Path,
-                                                      isolated_dirs: dict[str, Path],
-                                                      bad_id: str) -> None:
+def test_handoff_with_a_path_trick_id_imports_nothing(
+    tmp_path: Path, isolated_dirs: dict[str, Path], bad_id: str
+) -> None:
     job_id = _new_job("source")
     jobs_dir = isolated_dirs["data"] / "jobs"
     data = json.loads((jobs_dir / f"{job_id}.json").read_text(encoding="utf-8"))
@@ -330,8 +371,9 @@ def test_a_deeply_nested_job_file_is_quarantined_and_the_rest_list(
         ("jobs", "new", "x"),
     ],
 )
-def test_a_data_folder_that_is_a_file_is_named_in_one_line(tmp_path: Path,
-                                                          args: tuple[str, ...]) -> None:
+def test_a_data_folder_that_is_a_file_is_named_in_one_line(
+    tmp_path: Path, args: tuple[str, ...]
+) -> None:
     not_a_folder = tmp_path / "data-file"
     not_a_folder.write_text("x", encoding="utf-8")
     result = run("--data-dir", str(not_a_folder), *args)
@@ -355,9 +397,11 @@ def read_only_jobs(isolated_dirs: dict[str, Path]) -> Iterator[tuple[str, Path]]
         pass
     else:  # root ignores modes: make the folders immutable instead, if the tool is there
         probe.unlink()
-        if shutil.which("chattr") is None or subprocess.run(
-            ["chattr", "+i", *map(str, folders)], capture_output=True
-        ).returncode != 0:
+        if (
+            shutil.which("chattr") is None
+            or subprocess.run(["chattr", "+i", *map(str, folders)], capture_output=True).returncode
+            != 0
+        ):
             for folder in folders:
                 folder.chmod(0o755)
             pytest.skip("cannot make a folder read-only here")
@@ -383,7 +427,8 @@ def read_only_jobs(isolated_dirs: dict[str, Path]) -> Iterator[tuple[str, Path]]
     ],
 )
 def test_a_read_only_jobs_folder_refuses_in_one_line_and_keeps_the_job(
-    read_only_jobs: tuple[str, Path], args: tuple[str, ...],
+    read_only_jobs: tuple[str, Path],
+    args: tuple[str, ...],
 ) -> None:
     job_id, jobs_dir = read_only_jobs
     job_file = jobs_dir / f"{job_id}.json"
@@ -404,7 +449,9 @@ def test_a_broken_user_override_is_named_when_the_shipped_preset_is_used(
     (presets / "my-fibres.toml").write_text(
         '[[fibres]]\nname = "OS2"\nfamily = "singlemode"\nstandard = "site cable"\n'
         "default_wavelengths_nm = [1310]\nattenuation_max_db_per_km = { 1310 = nan }\n"
-        'source = "datasheet"\n', encoding="utf-8")
+        'source = "datasheet"\n',
+        encoding="utf-8",
+    )
     result = run("budget", "--fiber", "OS2", "--length", "5km", "--wavelength", "1310", "--json")
     assert result.returncode == 0, result.stderr
     lines = result.stderr.strip().splitlines()
@@ -439,16 +486,36 @@ _NOT_UTF8 = os.fsdecode(b"\xff")
         (("jobs", "new", "ok", "--crew", _NOT_UTF8), ("crew", "not UTF-8")),
         (("jobs", "new", "ok", "--site", "x\ty"), ("site", "U+0009")),
         (("jobs", "new", "ok", "--by", "\x1b[2J"), ("by", "U+001B")),
-        (("budget", "--fiber", "OS2", "--length", "1km", "--job", "{id}", "--link", "a\nb"),
-         ("link", "U+000A")),
-        (("locate", "--distance", "1km", "--ior", "1.468", "--landmark", "\x1b[1m:1 km:1 km"),
-         ("landmark name", "U+001B")),
-        (("locate", "--distance", "1km", "--ior", "1.468", "--job", "{id}", "--link", "L",
-          "--by", _NOT_UTF8), ("by", "not UTF-8")),
+        (
+            ("budget", "--fiber", "OS2", "--length", "1km", "--job", "{id}", "--link", "a\nb"),
+            ("link", "U+000A"),
+        ),
+        (
+            ("locate", "--distance", "1km", "--ior", "1.468", "--landmark", "\x1b[1m:1 km:1 km"),
+            ("landmark name", "U+001B"),
+        ),
+        (
+            (
+                "locate",
+                "--distance",
+                "1km",
+                "--ior",
+                "1.468",
+                "--job",
+                "{id}",
+                "--link",
+                "L",
+                "--by",
+                _NOT_UTF8,
+            ),
+            ("by", "not UTF-8"),
+        ),
     ],
 )
 def test_control_characters_and_broken_text_are_refused_before_any_write(
-    isolated_dirs: dict[str, Path], args: tuple[str, ...], words: tuple[str, ...],
+    isolated_dirs: dict[str, Path],
+    args: tuple[str, ...],
+    words: tuple[str, ...],
 ) -> None:
     job_id = _new_job("target")
     jobs_dir = isolated_dirs["data"] / "jobs"
@@ -469,7 +536,8 @@ def test_a_note_keeps_its_line_breaks_and_accents() -> None:
 
 
 def test_a_handoff_whose_job_repeats_a_record_id_imports_nothing(
-    tmp_path: Path, isolated_dirs: dict[str, Path],
+    tmp_path: Path,
+    isolated_dirs: dict[str, Path],
 ) -> None:
     job_id = _new_job("source")
     assert run("jobs", "note", job_id, "first").returncode == 0

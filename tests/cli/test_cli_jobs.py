@@ -14,8 +14,12 @@ import pytest
 
 def run(*args: str, data: Path | None = None) -> subprocess.CompletedProcess[str]:
     extra = ["--data-dir", str(data)] if data is not None else []
-    return subprocess.run([sys.executable, "-m", "fieldkit", *args, *extra],
-                          capture_output=True, text=True, timeout=60)
+    return subprocess.run(
+        [sys.executable, "-m", "fieldkit", *args, *extra],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
 
 
 def ok(*args: str, data: Path | None = None) -> str:
@@ -26,8 +30,19 @@ def ok(*args: str, data: Path | None = None) -> str:
 
 def test_new_note_done_show_list(tmp_path: Path) -> None:
     d = tmp_path / "d"
-    created = json.loads(ok("jobs", "new", "Quay cabinet", "--site", "Quay", "--customer",
-                            "Harbour board", "--json", data=d))
+    created = json.loads(
+        ok(
+            "jobs",
+            "new",
+            "Quay cabinet",
+            "--site",
+            "Quay",
+            "--customer",
+            "Harbour board",
+            "--json",
+            data=d,
+        )
+    )
     job_id = created["id"]
     assert ok("jobs", "note", job_id[:13], "Cabinet mounted", "--by", "Ana", data=d)
     assert ok("jobs", "done", job_id[:13], data=d).strip() == "Quay cabinet: done"
@@ -36,8 +51,10 @@ def test_new_note_done_show_list(tmp_path: Path) -> None:
     assert [(n["by"], n["text"]) for n in shown["job"]["notes"]] == [("Ana", "Cabinet mounted")]
     listing = json.loads(ok("jobs", "list", "--json", "--status", "done", data=d))
     assert [j["id"] for j in listing["jobs"]] == [job_id]
-    assert json.loads(ok("jobs", "list", "--json", "--search", "nothing-like-it",
-                         data=d))["count"] == 0
+    assert (
+        json.loads(ok("jobs", "list", "--json", "--search", "nothing-like-it", data=d))["count"]
+        == 0
+    )
     plain = ok("jobs", "new", "Second", data=d).strip()
     assert len(plain) >= 12 and plain in ok("jobs", "list", data=d)
 
@@ -48,13 +65,16 @@ def test_data_dir_from_the_environment(tmp_path: Path, monkeypatch: pytest.Monke
     assert list((tmp_path / "env" / "jobs").glob("*.json"))
 
 
-@pytest.mark.parametrize("args, message", [
-    (("jobs", "show", "zz"), "not a job id"),
-    (("jobs", "show", "abcdef"), "no job with an id starting"),
-    (("jobs", "new", "  "), "needs a name"),
-    (("jobs", "list", "--date", "14/03/2026"), "not a date"),
-    (("jobs", "import", "/nonexistent/handoff.json"), "cannot read"),
-])
+@pytest.mark.parametrize(
+    "args, message",
+    [
+        (("jobs", "show", "zz"), "not a job id"),
+        (("jobs", "show", "abcdef"), "no job with an id starting"),
+        (("jobs", "new", "  "), "needs a name"),
+        (("jobs", "list", "--date", "14/03/2026"), "not a date"),
+        (("jobs", "import", "/nonexistent/handoff.json"), "cannot read"),
+    ],
+)
 def test_errors_exit_2_with_one_line(tmp_path: Path, args: tuple[str, ...], message: str) -> None:
     proc = run(*args, data=tmp_path / "d")
     assert proc.returncode == 2
@@ -76,8 +96,9 @@ def test_demo_export_import_round_trip(tmp_path: Path) -> None:
     rows = list(csv.DictReader(io.StringIO(raw.decode("utf-8-sig"))))
     assert len(rows) == 24 and sum(r["result"] == "fail" for r in rows) == 1
     for fmt in ("md", "html"):
-        assert "Safety and disclaimer" in ok("jobs", "export", backbone["id"], "--format",
-                                             fmt, data=demo)
+        assert "Safety and disclaimer" in ok(
+            "jobs", "export", backbone["id"], "--format", fmt, data=demo
+        )
     handoff = tmp_path / "handoff.json"
     ok("jobs", "export", backbone["id"], "--format", "json", "-o", str(handoff), data=demo)
     other = tmp_path / "other"
@@ -94,11 +115,13 @@ def test_demo_refuses_a_folder_of_real_jobs(tmp_path: Path) -> None:
     proc = run("demo", "--no-ui", data=real)
     assert proc.returncode == 2 and "not demo data" in proc.stderr
     assert [j["name"] for j in json.loads(ok("jobs", "list", "--json", data=real))["jobs"]] == [
-        "My real job"]
+        "My real job"
+    ]
 
 
-def test_demo_default_folder_is_beside_the_users_jobs(tmp_path: Path,
-                                                      monkeypatch: pytest.MonkeyPatch) -> None:
+def test_demo_default_folder_is_beside_the_users_jobs(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     monkeypatch.setenv("FIELDKIT_DATA_DIR", str(tmp_path / "data"))
     ok("jobs", "new", "Mine")
     assert ok("demo", "--no-ui").strip() == str(tmp_path / "data" / "demo")
@@ -107,8 +130,16 @@ def test_demo_default_folder_is_beside_the_users_jobs(tmp_path: Path,
 
 def test_import_refuses_hostile_file_and_writes_nothing(tmp_path: Path) -> None:
     bad = tmp_path / "bad.json"
-    bad.write_text(json.dumps({"format": "fieldkit-jobs-handoff", "jobs": [
-        {"schema_version": 2, "id": "../../../tmp/evil", "name": "x", "links": []}]}))
+    bad.write_text(
+        json.dumps(
+            {
+                "format": "fieldkit-jobs-handoff",
+                "jobs": [
+                    {"schema_version": 2, "id": "../../../tmp/evil", "name": "x", "links": []}
+                ],
+            }
+        )
+    )
     proc = run("jobs", "import", str(bad), data=tmp_path / "d")
     assert proc.returncode == 2 and "nothing imported" in proc.stderr
     assert not (tmp_path / "d").exists()

@@ -13,8 +13,12 @@ from fieldkit import safety
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", "fieldkit", "locate", *args],
-                          capture_output=True, text=True, timeout=60)
+    return subprocess.run(
+        [sys.executable, "-m", "fieldkit", "locate", *args],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
 
 
 def run_json(*args: str) -> dict:
@@ -26,8 +30,18 @@ def run_json(*args: str) -> dict:
 
 def test_json_has_the_contract_keys() -> None:
     data = run_json("--distance", "3412", "--ior", "1.4677", "--helix", "0")
-    for key in ("fiber_distance_m", "sheath_distance_m", "route_distance_m", "uncertainty_m",
-                "nearest_landmark", "marking", "low_m", "high_m", "warnings", "cautions"):
+    for key in (
+        "fiber_distance_m",
+        "sheath_distance_m",
+        "route_distance_m",
+        "uncertainty_m",
+        "nearest_landmark",
+        "marking",
+        "low_m",
+        "high_m",
+        "warnings",
+        "cautions",
+    ):
         assert key in data
     assert data["cautions"] == [safety.DIGGING, safety.DEFER]
 
@@ -42,8 +56,18 @@ def test_rescale_helix_and_fibre_preset() -> None:
     # shown 3.412 km with the OTDR at 1.4700; the G.652.D preset's 1.4677 at 1550 nm (typical,
     # from memory in the preset): 3412 × 1.47 / 1.4677 = 3417.3469 m of fibre;
     # helix 1.5 %: sheath 3417.3469 / 1.015 = 3366.8442 m
-    data = run_json("--distance", "3.412 km", "--ior-set", "1.47", "--fiber", "G.652.D",
-                    "--wavelength", "1550", "--helix", "1.5")
+    data = run_json(
+        "--distance",
+        "3.412 km",
+        "--ior-set",
+        "1.47",
+        "--fiber",
+        "G.652.D",
+        "--wavelength",
+        "1550",
+        "--helix",
+        "1.5",
+    )
     assert data["group_index"] == pytest.approx(1.4677, abs=1e-9)
     assert data["fiber_distance_m"] == pytest.approx(3417.3469, abs=1e-3)
     assert data["sheath_distance_m"] == pytest.approx(3366.8442, abs=1e-3)
@@ -64,10 +88,22 @@ def test_landmarks_slack_and_marking() -> None:
     # 2750 m; route 2750 − 20 = 2730 m. Closure 6 is 2730 − 1950 = 780 m back, closure 7
     # 3330 − 2730 = 600 m ahead: the nearest is 600 m before closure 7.
     # marking 10 000 m counting down: 10 000 − 2750 = 7250
-    data = run_json("--distance", "2800", "--ior", "1.4677",
-                    "--landmark", "closure 6:2000:1950", "--landmark", "closure 7:3.4 km:3330",
-                    "--slack", "2500:20", "--marking-start", "10000", "--marking-direction",
-                    "down")
+    data = run_json(
+        "--distance",
+        "2800",
+        "--ior",
+        "1.4677",
+        "--landmark",
+        "closure 6:2000:1950",
+        "--landmark",
+        "closure 7:3.4 km:3330",
+        "--slack",
+        "2500:20",
+        "--marking-start",
+        "10000",
+        "--marking-direction",
+        "down",
+    )
     assert data["route_distance_m"] == pytest.approx(2730.0, abs=1e-6)
     assert data["basis"] == "interpolated"
     assert data["nearest_landmark"] == "closure 7"
@@ -78,8 +114,18 @@ def test_landmarks_slack_and_marking() -> None:
 
 def test_two_ended_check() -> None:
     # 3412 + 1590 − 5000 = 2 m, within ±2 m (four 1 m terms, root-sum-square)
-    data = run_json("--distance", "3412", "--ior", "1.4677", "--helix", "0",
-                    "--from-b", "1590", "--total", "5000")
+    data = run_json(
+        "--distance",
+        "3412",
+        "--ior",
+        "1.4677",
+        "--helix",
+        "0",
+        "--from-b",
+        "1590",
+        "--total",
+        "5000",
+    )
     two = data["two_ended"]
     assert two["discrepancy_m"] == pytest.approx(2.0, abs=1e-9)
     assert two["consistent"] is True
@@ -102,19 +148,22 @@ def test_list_cables() -> None:
     assert "stranded loose tube" in result.stdout
 
 
-@pytest.mark.parametrize(("args", "message"), [
-    (("--distance", "-5", "--ior", "1.468"), "negative"),
-    (("--time=-2 us", "--ior", "1.468"), "more than zero"),
-    (("--distance", "100", "--ior", "0.9"), "below 1"),
-    (("--distance", "100", "--ior", "NaN"), "not a number"),
-    (("--distance", "-3 dBm", "--ior", "1.468"), "optical power"),
-    (("--distance", "100"), "group index"),
-    (("--ior", "1.468"), "either --distance or --time"),
-    (("--distance", "100", "--ior", "1.468", "--landmark", "x:3"), "NAME:OTDR_DISTANCE"),
-    (("--distance", "100", "--ior", "1.468", "--from-b", "50"), "both --from-b and --total"),
-    (("--distance", "100", "--fiber", "OS2", "--wavelength", "850"), "no group index at 850"),
-    (("--distance", "100", "--ior", "1.468", "--cable", "none such"), "unknown cable"),
-])
+@pytest.mark.parametrize(
+    ("args", "message"),
+    [
+        (("--distance", "-5", "--ior", "1.468"), "negative"),
+        (("--time=-2 us", "--ior", "1.468"), "more than zero"),
+        (("--distance", "100", "--ior", "0.9"), "below 1"),
+        (("--distance", "100", "--ior", "NaN"), "not a number"),
+        (("--distance", "-3 dBm", "--ior", "1.468"), "optical power"),
+        (("--distance", "100"), "group index"),
+        (("--ior", "1.468"), "either --distance or --time"),
+        (("--distance", "100", "--ior", "1.468", "--landmark", "x:3"), "NAME:OTDR_DISTANCE"),
+        (("--distance", "100", "--ior", "1.468", "--from-b", "50"), "both --from-b and --total"),
+        (("--distance", "100", "--fiber", "OS2", "--wavelength", "850"), "no group index at 850"),
+        (("--distance", "100", "--ior", "1.468", "--cable", "none such"), "unknown cable"),
+    ],
+)
 def test_bad_input_exits_2_with_one_line(args: tuple[str, ...], message: str) -> None:
     result = run(*args)
     assert result.returncode == 2
@@ -129,8 +178,22 @@ def test_saving_onto_a_job_link(tmp_path: Path) -> None:
     data_dir = tmp_path / "d"
     store = JobStore(data_dir / "jobs")
     job = store.create("Cut on Main St", by="tester")
-    data = run_json("--distance", "2040", "--ior", "1.468", "--helix", "2", "--job", job.id[:8],
-                    "--link", "Span 4", "--by", "ana", "--data-dir", str(data_dir))
+    data = run_json(
+        "--distance",
+        "2040",
+        "--ior",
+        "1.468",
+        "--helix",
+        "2",
+        "--job",
+        job.id[:8],
+        "--link",
+        "Span 4",
+        "--by",
+        "ana",
+        "--data-dir",
+        str(data_dir),
+    )
     saved = data["saved"]
     assert saved["link_label"] == "Span 4"
     loaded = store.load(job.id)
@@ -147,13 +210,39 @@ def test_a_saved_fault_shows_in_the_job_export(tmp_path: Path) -> None:
 
     data_dir = tmp_path / "d"
     job = JobStore(data_dir / "jobs").create("Reservoir feed")
-    saved = run("--distance", "2040", "--ior", "1.468", "--helix", "2", "--job", job.id,
-                "--link", "Feed 1", "--data-dir", str(data_dir))
+    saved = run(
+        "--distance",
+        "2040",
+        "--ior",
+        "1.468",
+        "--helix",
+        "2",
+        "--job",
+        job.id,
+        "--link",
+        "Feed 1",
+        "--data-dir",
+        str(data_dir),
+    )
     assert saved.returncode == 0, saved.stderr
     assert "Saved onto job" in saved.stdout
-    export = subprocess.run([sys.executable, "-m", "fieldkit", "jobs", "export", job.id,
-                             "--format", "md", "--data-dir", str(data_dir)],
-                            capture_output=True, text=True, timeout=60)
+    export = subprocess.run(
+        [
+            sys.executable,
+            "-m",
+            "fieldkit",
+            "jobs",
+            "export",
+            job.id,
+            "--format",
+            "md",
+            "--data-dir",
+            str(data_dir),
+        ],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
     assert export.returncode == 0, export.stderr
     assert "Feed 1: located faults" in export.stdout
     # 2040 / 1.02 = 2000 m of route

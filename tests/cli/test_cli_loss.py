@@ -11,8 +11,9 @@ import pytest
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", "fieldkit", *args], capture_output=True,
-                          text=True, timeout=60)
+    return subprocess.run(
+        [sys.executable, "-m", "fieldkit", *args], capture_output=True, text=True, timeout=60
+    )
 
 
 def run_json(*args: str) -> dict:
@@ -35,8 +36,17 @@ def test_loss_with_a_typed_limit() -> None:
 def test_loss_in_linear_units_and_both_directions() -> None:
     # ITU-R V.574: 100 µW = -10 dBm, 10 µW = -20 dBm, 12.5 µW = -19.0309 dBm.
     # A->B: -10 − (-20) = 10.00 dB; B->A: 10·log10(100/12.5) = 9.0309 dB; mean 9.51545 dB.
-    out = run_json("loss", "--reference", "100 uW", "--reading", "10 µW",
-                   "--reading-back", "12.5 uW", "--limit", "9.5")
+    out = run_json(
+        "loss",
+        "--reference",
+        "100 uW",
+        "--reading",
+        "10 µW",
+        "--reading-back",
+        "12.5 uW",
+        "--limit",
+        "9.5",
+    )
     assert out["loss_db"] == pytest.approx(10.0, abs=1e-9)
     assert out["loss_back_db"] == pytest.approx(9.03090, abs=1e-5)
     assert out["average_db"] == pytest.approx(9.51545, abs=1e-5)
@@ -70,8 +80,17 @@ def test_plausibility_warning_for_a_weak_reference() -> None:
     # Typical single-mode source -7 dBm (common practice): -12 dBm is 5.0 dB below it.
     out = run_json("loss", "--reference", "-12", "--reading", "-13", "--wavelength", "1310")
     assert any("5.0 dB below" in w and "clean" in w for w in out["warnings"])
-    out = run_json("loss", "--reference", "-12", "--reading", "-13", "--wavelength", "1310",
-                   "--source-level", "-11")
+    out = run_json(
+        "loss",
+        "--reference",
+        "-12",
+        "--reading",
+        "-13",
+        "--wavelength",
+        "1310",
+        "--source-level",
+        "-11",
+    )
     assert out["warnings"] == []
 
 
@@ -106,21 +125,66 @@ def test_reference_and_results_recorded_into_a_job(isolated_dirs: dict[str, Path
     from fieldkit.jobs.store import JobStore
 
     job_id = _new_job(isolated_dirs["data"])
-    saved = run_json("reference", "--job", job_id[:8], "--link", "Trunk 1", "--wavelength",
-                     "1310", "--level", "-7.20", "--method", "two-cord", "--source", "LS-1",
-                     "--meter", "PM-7", "--cord", "TC-1", "--cord", "TC-2", "--by", "Ana")
+    saved = run_json(
+        "reference",
+        "--job",
+        job_id[:8],
+        "--link",
+        "Trunk 1",
+        "--wavelength",
+        "1310",
+        "--level",
+        "-7.20",
+        "--method",
+        "two-cord",
+        "--source",
+        "LS-1",
+        "--meter",
+        "PM-7",
+        "--cord",
+        "TC-1",
+        "--cord",
+        "TC-2",
+        "--by",
+        "Ana",
+    )
     reference_id = saved["saved"]["reference_id"]
-    out = run_json("loss", "--job", job_id, "--link", "trunk 1", "--fibre", "3", "--wavelength",
-                   "1310", "--reference", "-7.20", "--reading", "-8.40", "--reading-back",
-                   "-8.60", "--method", "two-cord", "--limit", "1.3", "--by", "Ana")
+    out = run_json(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "trunk 1",
+        "--fibre",
+        "3",
+        "--wavelength",
+        "1310",
+        "--reference",
+        "-7.20",
+        "--reading",
+        "-8.40",
+        "--reading-back",
+        "-8.60",
+        "--method",
+        "two-cord",
+        "--limit",
+        "1.3",
+        "--by",
+        "Ana",
+    )
     assert out["saved"]["reference_ids"] == [reference_id]  # the same reference, reused
     job = JobStore(isolated_dirs["data"] / "jobs").load(job_id)
     (link,) = job.links
     assert link.label == "Trunk 1"
     (reference,) = link.references
-    assert (reference.level_dbm, reference.method, reference.source_id, reference.meter_id,
-            reference.cords, reference.by) == (-7.2, "two-cord", "LS-1", "PM-7",
-                                               ["TC-1", "TC-2"], "Ana")
+    assert (
+        reference.level_dbm,
+        reference.method,
+        reference.source_id,
+        reference.meter_id,
+        reference.cords,
+        reference.by,
+    ) == (-7.2, "two-cord", "LS-1", "PM-7", ["TC-1", "TC-2"], "Ana")
     by_direction = {r.direction: r for r in link.results}
     # -7.20 − (-8.40) = 1.20 dB passes 1.3; -7.20 − (-8.60) = 1.40 dB fails.
     assert by_direction["A->B"].loss_db == pytest.approx(1.20, abs=1e-9)
@@ -128,12 +192,26 @@ def test_reference_and_results_recorded_into_a_job(isolated_dirs: dict[str, Path
     assert by_direction["B->A"].loss_db == pytest.approx(1.40, abs=1e-9)
     assert by_direction["B->A"].passed is False
     assert {r.reference_id for r in link.results} == {reference_id}
-    assert all(r.fibre == 3 and r.wavelength_nm == 1310 and r.limit_db == 1.3
-               for r in link.results)
+    assert all(r.fibre == 3 and r.wavelength_nm == 1310 and r.limit_db == 1.3 for r in link.results)
 
     # A correction replaces the cell instead of adding a second result.
-    run_json("loss", "--job", job_id, "--link", "Trunk 1", "--fibre", "3", "--wavelength",
-             "1310", "--reference", "-7.20", "--reading", "-8.30", "--method", "two-cord")
+    run_json(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "Trunk 1",
+        "--fibre",
+        "3",
+        "--wavelength",
+        "1310",
+        "--reference",
+        "-7.20",
+        "--reading",
+        "-8.30",
+        "--method",
+        "two-cord",
+    )
     link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
     assert len(link.results) == 2
     assert {r.direction: r.loss_db for r in link.results}["A->B"] == pytest.approx(1.1, abs=1e-9)
@@ -143,25 +221,71 @@ def test_recheck_beyond_tolerance_puts_results_in_doubt(isolated_dirs: dict[str,
     from fieldkit.jobs.store import JobStore
 
     job_id = _new_job(isolated_dirs["data"])
-    run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
-             "--level", "-7.00")
+    run_json(
+        "reference", "--job", job_id, "--link", "L1", "--wavelength", "1550", "--level", "-7.00"
+    )
     for fibre in ("1", "2"):
-        run_json("loss", "--job", job_id, "--link", "L1", "--fibre", fibre, "--wavelength",
-                 "1550", "--reference", "-7.00", "--reading", "-8.0")
+        run_json(
+            "loss",
+            "--job",
+            job_id,
+            "--link",
+            "L1",
+            "--fibre",
+            fibre,
+            "--wavelength",
+            "1550",
+            "--reference",
+            "-7.00",
+            "--reading",
+            "-8.0",
+        )
     # Within: -7.05 − (-7.00) = -0.05 dB, inside 0.1 dB (single-mode, common practice).
-    good = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
-                    "--level", "-7.05", "--recheck")
+    good = run_json(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "1550",
+        "--level",
+        "-7.05",
+        "--recheck",
+    )
     assert good["within_tolerance"] is True and good["in_doubt_result_ids"] == []
     # Beyond: -7.25 − (-7.00) = -0.25 dB.
-    bad = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
-                   "--level", "-7.25", "--recheck")
+    bad = run_json(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "1550",
+        "--level",
+        "-7.25",
+        "--recheck",
+    )
     assert bad["drift_db"] == pytest.approx(-0.25, abs=1e-9)
     assert bad["within_tolerance"] is False
     # The results were taken before the good recheck: only those after it would be in doubt.
     assert bad["in_doubt_result_ids"] == []
     # With an edited tolerance of 0.3 dB the same drift is within.
-    edited = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1550",
-                      "--level", "-7.25", "--recheck", "--tolerance", "0.3")
+    edited = run_json(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "1550",
+        "--level",
+        "-7.25",
+        "--recheck",
+        "--tolerance",
+        "0.3",
+    )
     assert edited["within_tolerance"] is True
     job = JobStore(isolated_dirs["data"] / "jobs").load(job_id)
     kinds = [r.kind for r in job.links[0].references]
@@ -173,13 +297,47 @@ def test_recheck_marks_results_since_the_initial_reference(isolated_dirs: dict[s
     from fieldkit.jobs.store import JobStore
 
     job_id = _new_job(isolated_dirs["data"])
-    run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "850",
-             "--level", "-20.0", "--launch", "encircled flux")
-    run_json("loss", "--job", job_id, "--link", "L1", "--fibre", "1", "--wavelength", "850",
-             "--reference", "-20.0", "--reading", "-21.5")
+    run_json(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "850",
+        "--level",
+        "-20.0",
+        "--launch",
+        "encircled flux",
+    )
+    run_json(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--fibre",
+        "1",
+        "--wavelength",
+        "850",
+        "--reference",
+        "-20.0",
+        "--reading",
+        "-21.5",
+    )
     # Multimode tolerance 0.2 dB (common practice): -20.3 − (-20.0) = -0.3 dB is beyond.
-    bad = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "850",
-                   "--level", "-20.3", "--recheck")
+    bad = run_json(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "850",
+        "--level",
+        "-20.3",
+        "--recheck",
+    )
     assert bad["tolerance_db"] == pytest.approx(0.2, abs=1e-12)
     assert len(bad["in_doubt_result_ids"]) == 1
     link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
@@ -190,17 +348,64 @@ def test_recheck_marks_results_since_the_initial_reference(isolated_dirs: dict[s
 
 def test_recording_errors_exit_2(isolated_dirs: dict[str, Path]) -> None:
     job_id = _new_job(isolated_dirs["data"])
-    proc = run("reference", "--job", job_id, "--link", "L9", "--wavelength", "1310",
-               "--level", "-7", "--recheck")
+    proc = run(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L9",
+        "--wavelength",
+        "1310",
+        "--level",
+        "-7",
+        "--recheck",
+    )
     assert proc.returncode == 2 and "no link" in proc.stderr
-    proc = run("loss", "--job", "ffffff", "--link", "L1", "--fibre", "1", "--wavelength", "1310",
-               "--reference", "-7", "--reading", "-8")
+    proc = run(
+        "loss",
+        "--job",
+        "ffffff",
+        "--link",
+        "L1",
+        "--fibre",
+        "1",
+        "--wavelength",
+        "1310",
+        "--reference",
+        "-7",
+        "--reading",
+        "-8",
+    )
     assert proc.returncode == 2 and "no job" in proc.stderr
-    proc = run("loss", "--job", job_id, "--link", "L1", "--fibre", "0", "--wavelength", "1310",
-               "--reference", "-7", "--reading", "-8")
+    proc = run(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--fibre",
+        "0",
+        "--wavelength",
+        "1310",
+        "--reference",
+        "-7",
+        "--reading",
+        "-8",
+    )
     assert proc.returncode == 2 and "fibre" in proc.stderr
-    proc = run("loss", "--job", job_id, "--link", "L1", "--fibre", "1",
-               "--reference", "-7", "--reading", "-8")
+    proc = run(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--fibre",
+        "1",
+        "--reference",
+        "-7",
+        "--reading",
+        "-8",
+    )
     assert proc.returncode == 2 and "--wavelength" in proc.stderr
 
 
@@ -208,17 +413,28 @@ def test_recording_errors_exit_2(isolated_dirs: dict[str, Path]) -> None:
 # (counting both end connections) × 0.50 dB = 2.00 dB; budget 5.50 dB. One-cord keeps both end
 # connections: 5.50 dB; two-cord keeps one (3 pairs): 5.00 dB; three-cord none (2 pairs): 4.50 dB
 # (IEC 61280-4-1 / -4-2 end connections per method, from memory).
-LINK = ["--attenuation", "0.35 dB/km", "--length", "10 km", "--connectors", "4",
-        "--connector-loss", "0.5", "--wavelength", "1310"]
+LINK = [
+    "--attenuation",
+    "0.35 dB/km",
+    "--length",
+    "10 km",
+    "--connectors",
+    "4",
+    "--connector-loss",
+    "0.5",
+    "--wavelength",
+    "1310",
+]
 
 
 @pytest.mark.parametrize(
-    ("method", "limit_db"), [("one-cord", 5.50), ("two-cord", 5.00), ("three-cord", 4.50)])
+    ("method", "limit_db"), [("one-cord", 5.50), ("two-cord", 5.00), ("three-cord", 4.50)]
+)
 def test_limit_from_the_link_options_counts_the_methods_end_connections(
-        method: str, limit_db: float) -> None:
+    method: str, limit_db: float
+) -> None:
     # Reading: -7.20 − (-12.00) = 4.80 dB: passes 5.50 and 5.00, fails 4.50.
-    out = run_json("loss", "--reference", "-7.20", "--reading", "-12.00", "--method", method,
-                   *LINK)
+    out = run_json("loss", "--reference", "-7.20", "--reading", "-12.00", "--method", method, *LINK)
     assert out["limit_db"] == pytest.approx(limit_db, abs=1e-9)
     assert out["margin_db"] == pytest.approx(limit_db - 4.80, abs=1e-9)
     assert out["pass"] is (limit_db >= 4.80)
@@ -227,8 +443,21 @@ def test_limit_from_the_link_options_counts_the_methods_end_connections(
 def test_limit_from_the_link_options_refuses_a_typed_limit_too() -> None:
     proc = run("loss", "--reference", "-7", "--reading", "-8", "--limit", "3", *LINK)
     assert proc.returncode == 2 and "not both" in proc.stderr
-    proc = run("loss", "--reference", "-7", "--reading", "-8", "--attenuation", "0.35 dB/km",
-               "--length", "10 km", "--connectors", "1", "--wavelength", "1310")
+    proc = run(
+        "loss",
+        "--reference",
+        "-7",
+        "--reading",
+        "-8",
+        "--attenuation",
+        "0.35 dB/km",
+        "--length",
+        "10 km",
+        "--connectors",
+        "1",
+        "--wavelength",
+        "1310",
+    )
     assert proc.returncode == 2 and "at least 2" in proc.stderr
 
 
@@ -237,9 +466,23 @@ def test_limit_from_the_budget_saved_on_the_jobs_link(isolated_dirs: dict[str, P
     saved = run("budget", "--job", job_id, "--link", "L1", *LINK)
     assert saved.returncode == 0, saved.stderr
     # Same budget as above, saved on the link; a three-cord result keeps 2 pairs: 4.50 dB.
-    out = run_json("loss", "--job", job_id, "--link", "L1", "--fibre", "1", "--wavelength",
-                   "1310", "--reference", "-7.20", "--reading", "-12.00", "--method",
-                   "three-cord")
+    out = run_json(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--fibre",
+        "1",
+        "--wavelength",
+        "1310",
+        "--reference",
+        "-7.20",
+        "--reading",
+        "-12.00",
+        "--method",
+        "three-cord",
+    )
     assert out["limit_db"] == pytest.approx(4.50, abs=1e-9)
     assert out["pass"] is False
     from fieldkit.jobs.store import JobStore
@@ -253,33 +496,101 @@ def test_recheck_of_one_directions_reference(isolated_dirs: dict[str, Path]) -> 
     from fieldkit.jobs.store import JobStore
 
     job_id = _new_job(isolated_dirs["data"])
-    out = run_json("loss", "--job", job_id, "--link", "L1", "--fibre", "1", "--wavelength",
-                   "1310", "--reference", "-7.20", "--reading", "-8.0", "--reference-back",
-                   "-6.90", "--reading-back", "-7.9")
+    out = run_json(
+        "loss",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--fibre",
+        "1",
+        "--wavelength",
+        "1310",
+        "--reference",
+        "-7.20",
+        "--reading",
+        "-8.0",
+        "--reference-back",
+        "-6.90",
+        "--reading-back",
+        "-7.9",
+    )
     forward_id, backward_id = out["saved"]["reference_ids"]
     # -7.40 − (-7.20) = -0.20 dB: beyond 0.1 dB; only the A->B result used that reference.
-    bad = run_json("reference", "--job", job_id, "--link", "L1", "--wavelength", "1310",
-                   "--level", "-7.40", "--recheck", "--of", forward_id)
+    bad = run_json(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "1310",
+        "--level",
+        "-7.40",
+        "--recheck",
+        "--of",
+        forward_id,
+    )
     assert bad["rechecked_reference_id"] == forward_id and len(bad["in_doubt_result_ids"]) == 1
     link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
     flagged = {r.direction: "reference-in-doubt" in r.flags for r in link.results}
     assert flagged == {"A->B": True, "B->A": False}
     assert link.reference(backward_id).in_doubt_since is None  # type: ignore[union-attr]
-    proc = run("reference", "--job", job_id, "--link", "L1", "--wavelength", "1310",
-               "--level", "-7.40", "--recheck", "--of", "nosuchid")
+    proc = run(
+        "reference",
+        "--job",
+        job_id,
+        "--link",
+        "L1",
+        "--wavelength",
+        "1310",
+        "--level",
+        "-7.40",
+        "--recheck",
+        "--of",
+        "nosuchid",
+    )
     assert proc.returncode == 2 and "nosuchid" in proc.stderr
 
 
-@pytest.mark.parametrize(("args", "phrase"), [
-    # a level no power meter reads is a typo or a wrong unit, not a measurement
-    (["loss", "--reference", "1e308", "--reading", "-9", "--limit", "3"],
-     "outside what a power meter reads"),
-    (["reference", "--level", "-150 dBm", "--wavelength", "1310"],
-     "outside what a power meter reads"),
-    (["loss", "--reference", "-7", "--reading", "-9", "--limit", "3", "--wavelength", "1310",
-      "--job", "x", "--link", "a\x1b[31m", "--fibre", "2"], "control character"),
-    (["reference", "--level", "-7", "--wavelength", "1310", "--by", "x\ny"], "control character"),
-])
+@pytest.mark.parametrize(
+    ("args", "phrase"),
+    [
+        # a level no power meter reads is a typo or a wrong unit, not a measurement
+        (
+            ["loss", "--reference", "1e308", "--reading", "-9", "--limit", "3"],
+            "outside what a power meter reads",
+        ),
+        (
+            ["reference", "--level", "-150 dBm", "--wavelength", "1310"],
+            "outside what a power meter reads",
+        ),
+        (
+            [
+                "loss",
+                "--reference",
+                "-7",
+                "--reading",
+                "-9",
+                "--limit",
+                "3",
+                "--wavelength",
+                "1310",
+                "--job",
+                "x",
+                "--link",
+                "a\x1b[31m",
+                "--fibre",
+                "2",
+            ],
+            "control character",
+        ),
+        (
+            ["reference", "--level", "-7", "--wavelength", "1310", "--by", "x\ny"],
+            "control character",
+        ),
+    ],
+)
 def test_meter_commands_refuse_implausible_levels_and_control_characters(args, phrase) -> None:
     result = run(*args)
     assert result.returncode == 2

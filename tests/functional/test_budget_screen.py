@@ -179,8 +179,12 @@ async def test_application_and_transceiver_panels(tmp_path: Path):
         screen.query_one("#transceiver", Select).value = "__typed__"
         await pilot.pause()
         assert screen.query_one("#tx-levels").display
-        for field_id, value in (("tx-min", "-8.2"), ("tx-max", "0.5"), ("rx-sens", "-14.4"),
-                                ("rx-over", "0.5")):
+        for field_id, value in (
+            ("tx-min", "-8.2"),
+            ("tx-max", "0.5"),
+            ("rx-sens", "-14.4"),
+            ("rx-over", "0.5"),
+        ):
             screen.query_one(f"#{field_id}", Input).value = value
         await pilot.pause()
         # margin −8.2 − 4.7 + 14.4 = 1.5 dB
@@ -211,7 +215,8 @@ async def test_margin_and_wavelengths_fields(tmp_path: Path):
         screen.query_one("#wavelengths", Input).value = "1490, 2500"
         await pilot.pause()
         assert "not an optical wavelength" in str(
-            screen.query_one("#wavelengths-error", Static).render())
+            screen.query_one("#wavelengths-error", Static).render()
+        )
 
 
 async def test_save_onto_a_job_link(tmp_path: Path):
@@ -265,9 +270,22 @@ async def test_open_a_budget_saved_from_the_cli(tmp_path: Path):
     budget_cmd.add_link_options(parser, fibre_alias=True)
     for flag in ("--application", "--transceiver", "--wavelength"):
         parser.add_argument(flag)
-    args = parser.parse_args(["--fiber", "G.652.D", "--length", "12 km", "--splices", "4",
-                              "--splitter", "1x16", "--margin", "2", "--application",
-                              "GPON Class B+"])
+    args = parser.parse_args(
+        [
+            "--fiber",
+            "G.652.D",
+            "--length",
+            "12 km",
+            "--splices",
+            "4",
+            "--splitter",
+            "1x16",
+            "--margin",
+            "2",
+            "--application",
+            "GPON Class B+",
+        ]
+    )
     args.config_dir = str(tmp_path / "c")
     from fieldkit import linkspec
 
@@ -288,8 +306,7 @@ async def test_open_a_budget_saved_from_the_cli(tmp_path: Path):
         await pilot.pause()
         screen = app.screen
         assert isinstance(screen, BudgetScreen)
-        assert [i["kind"] for i in screen.items] == ["fibre", "splitter", "splices",
-                                                     "connectors"]
+        assert [i["kind"] for i in screen.items] == ["fibre", "splitter", "splices", "connectors"]
         assert screen.query_one("#margin", Input).value == "2"
         assert screen.query_one("#application", Select).value == "GPON Class B+"
         # the same numbers as when it was saved
@@ -304,8 +321,12 @@ def test_workspace_items_round_trip_through_the_saved_description():
     from fieldkit.tui.screens.budget import TYPED, items_from_spec, spec_from_items
 
     items = [
-        {"kind": "fibre", "preset": TYPED, "value": "3 km",
-         "extra": "1310=0.33 dB/km; 1550=0.19 dB/km"},
+        {
+            "kind": "fibre",
+            "preset": TYPED,
+            "value": "3 km",
+            "extra": "1310=0.33 dB/km; 1550=0.19 dB/km",
+        },
         {"kind": "attenuator", "preset": "", "value": "5 dB", "extra": ""},
         {"kind": "other", "preset": "", "value": "0.4 dB", "extra": "closure"},
         {"kind": "component", "preset": "CWDM mux or demux", "value": "2", "extra": ""},
@@ -378,8 +399,7 @@ async def test_empty_start_asks_calmly_for_the_length(tmp_path: Path, size):
         await pilot.press("k", "m")
         screen.query_one("#item-preset", Select).value = "__typed__"
         await pilot.pause()
-        assert waiting.display and "Type the attenuation of item 1 (Fibre)" in str(
-            waiting.render())
+        assert waiting.display and "Type the attenuation of item 1 (Fibre)" in str(waiting.render())
         await pilot.press("ctrl+s")  # nothing to save yet: a warning, not a picker
         await pilot.pause()
         assert isinstance(app.screen, BudgetScreen)
@@ -447,8 +467,9 @@ async def test_typed_transceiver_levels_are_asked_for_not_refused(tmp_path: Path
         screen.query_one("#transceiver", Select).value = "__typed__"
         await pilot.pause()
         out = text_of(app, "#transceiver-out")
-        assert out == ("Type Tx minimum, Tx maximum, Rx sensitivity, Rx overload to check the "
-                       "transceiver.")
+        assert out == (
+            "Type Tx minimum, Tx maximum, Rx sensitivity, Rx overload to check the transceiver."
+        )
         for field_id in ("tx-min", "tx-max", "rx-sens", "rx-over"):
             assert not screen.query_one(f"#{field_id}-error", Static).display
         assert screen.report is not None
@@ -456,4 +477,5 @@ async def test_typed_transceiver_levels_are_asked_for_not_refused(tmp_path: Path
         screen.query_one("#tx-max", Input).value = "0.5"
         await pilot.pause()
         assert text_of(app, "#transceiver-out") == (
-            "Type Rx sensitivity, Rx overload to check the transceiver.")
+            "Type Rx sensitivity, Rx overload to check the transceiver."
+        )

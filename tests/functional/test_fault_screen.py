@@ -34,8 +34,9 @@ async def _show(pilot: Any, screen: Any, selector: str) -> None:
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_typing_a_distance_gives_a_range_and_the_cautions(tmp_path: Path,
-                                                                size: tuple[int, int]) -> None:
+async def test_typing_a_distance_gives_a_range_and_the_cautions(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
     app = _app(tmp_path)
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
@@ -60,8 +61,9 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(tmp_path: Path,
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_bad_input_is_shown_beside_the_field_and_kept(tmp_path: Path,
-                                                            size: tuple[int, int]) -> None:
+async def test_bad_input_is_shown_beside_the_field_and_kept(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
     app = _app(tmp_path)
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
@@ -83,8 +85,9 @@ async def test_bad_input_is_shown_beside_the_field_and_kept(tmp_path: Path,
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_landmarks_added_edited_and_removed_by_keys(tmp_path: Path,
-                                                          size: tuple[int, int]) -> None:
+async def test_landmarks_added_edited_and_removed_by_keys(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
     app = _app(tmp_path)
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
@@ -206,16 +209,21 @@ async def test_f5_opens_the_fault_workspace(tmp_path: Path) -> None:
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_clicking_a_landmark_row_opens_it_for_editing(tmp_path: Path,
-                                                           size: tuple[int, int]) -> None:
+async def test_clicking_a_landmark_row_opens_it_for_editing(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
     app = _app(tmp_path)
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
         screen.query_one("#fault-distance", Input).value = "2800"
         landmarks = screen.query_one("#fault-landmarks", PointList)
-        landmarks.set_rows([{"name": "closure 6", "otdr": "2000", "route": "1950"},
-                            {"name": "closure 7", "otdr": "3400", "route": "3330"}])
+        landmarks.set_rows(
+            [
+                {"name": "closure 6", "otdr": "2000", "route": "1950"},
+                {"name": "closure 7", "otdr": "3400", "route": "3330"},
+            ]
+        )
         await pilot.pause()
         await _show(pilot, screen, "#fault-landmarks-rows")
         await pilot.click("#fault-landmarks-rows", offset=(4, 1))  # the second row

@@ -17,8 +17,18 @@ from fieldkit.tui.app import make_app
 SIZES = [(80, 24), (44, 22)]
 
 HOSTILE = [
-    "nan", "-inf", "1e400", "1e308 dBm", "-1e308 dB", "1e-320 nm", "-7,5", "1,234", "5 MW",
-    "0 mW", "9" * 400, "[bold]x[/",
+    "nan",
+    "-inf",
+    "1e400",
+    "1e308 dBm",
+    "-1e308 dB",
+    "1e-320 nm",
+    "-7,5",
+    "1,234",
+    "5 MW",
+    "0 mW",
+    "9" * 400,
+    "[bold]x[/",
 ]
 
 
@@ -61,9 +71,9 @@ async def test_no_typed_value_stops_the_workspace(tmp_path: Path, mode: str) -> 
         ("grid-in", "1e-320 nm", "out of range"),
     ],
 )
-async def test_convert_explains_values_it_cannot_convert(tmp_path: Path, size: tuple[int, int],
-                                                         input_id: str, text: str,
-                                                         words: str) -> None:
+async def test_convert_explains_values_it_cannot_convert(
+    tmp_path: Path, size: tuple[int, int], input_id: str, text: str, words: str
+) -> None:
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
     async with app.run_test(size=size) as pilot:
         await pilot.pause()

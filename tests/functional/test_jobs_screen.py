@@ -30,8 +30,7 @@ def _text(screen: object, selector: str) -> str:
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_filter_open_note_and_done_by_keyboard(tmp_path: Path,
-                                                     size: tuple[int, int]) -> None:
+async def test_filter_open_note_and_done_by_keyboard(tmp_path: Path, size: tuple[int, int]) -> None:
     store = _demo(tmp_path / "d")
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
     async with app.run_test(size=size) as pilot:
@@ -65,7 +64,8 @@ async def test_note_keeps_an_entry_saved_meanwhile_by_another_program(tmp_path: 
         assert shown is not None
         # Another program (say the CLI) appends while this screen shows the job.
         JobStore(locations.jobs_dir(tmp_path / "d")).update(
-            shown.id, lambda j: j.add_note("from the CLI") and None)
+            shown.id, lambda j: j.add_note("from the CLI") and None
+        )
         await pilot.press("ctrl+n", *"from the screen", "enter")
         await pilot.pause()
     texts = [n.text for n in store.load(shown.id).notes]
@@ -93,8 +93,9 @@ async def test_mouse_picks_a_job_and_adds_a_note(tmp_path: Path, size: tuple[int
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_end_of_day_view_counts_and_opens_a_job(tmp_path: Path,
-                                                      size: tuple[int, int]) -> None:
+async def test_end_of_day_view_counts_and_opens_a_job(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
     _demo(tmp_path / "d")
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
     async with app.run_test(size=size) as pilot:
@@ -142,8 +143,9 @@ async def test_empty_store_says_so(tmp_path: Path) -> None:
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_footer_fits_and_job_actions_are_buttons(tmp_path: Path,
-                                                       size: tuple[int, int]) -> None:
+async def test_footer_fits_and_job_actions_are_buttons(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
     from textual.widgets import Button, Footer
     from textual.widgets._footer import FooterKey
 
@@ -162,8 +164,11 @@ async def test_footer_fits_and_job_actions_are_buttons(tmp_path: Path,
         await pilot.press(*"reservoir", "enter", "enter")
         await pilot.pause()
         # The job's actions sit right under its name, with their keys, whole and on screen.
-        for selector, label in (("#job-done", "Done ^O"), ("#job-export", "Export F8"),
-                                ("#job-today", "End of day F7")):
+        for selector, label in (
+            ("#job-done", "Done ^O"),
+            ("#job-export", "Export F8"),
+            ("#job-today", "End of day F7"),
+        ):
             button = screen.query_one(selector, Button)
             assert str(button.label) == label
             region = button.region

@@ -60,10 +60,12 @@ def _reading(fibre: int, wavelength_nm: int) -> str:
 
 @pytest.mark.parametrize("size", [(80, 24), (44, 22)])
 async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv(
-        isolated_dirs: dict[str, Path], size: tuple[int, int]) -> None:
+    isolated_dirs: dict[str, Path], size: tuple[int, int]
+) -> None:
     store, job_id, link_id = _job_with_link(isolated_dirs["data"])
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
@@ -119,8 +121,7 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
     for (fibre, wavelength_nm, _), result in by_cell.items():
         reading_dbm = float(_reading(fibre, wavelength_nm))
         assert result.reading_dbm == pytest.approx(reading_dbm, abs=1e-9)
-        assert result.loss_db == pytest.approx(levels[result.reference_id] - reading_dbm,
-                                               abs=1e-9)
+        assert result.loss_db == pytest.approx(levels[result.reference_id] - reading_dbm, abs=1e-9)
         assert result.limit_db == pytest.approx(2.0, abs=1e-12)
         assert result.method == "one-cord"
     # Fibre 3 at 1310 nm: -7.20 − (-8.30) = 1.10 dB, a pass.
@@ -147,9 +148,11 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
 
 
 async def test_bad_reading_and_missing_reference_keep_the_text(
-        isolated_dirs: dict[str, Path]) -> None:
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+    isolated_dirs: dict[str, Path],
+) -> None:
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = app.screen
@@ -190,8 +193,9 @@ async def test_bad_reading_and_missing_reference_keep_the_text(
 
 async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, Path]) -> None:
     store, job_id, link_id = _job_with_link(isolated_dirs["data"], fibres=12)
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = app.screen
@@ -209,8 +213,7 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
         await pilot.press("up", "f9")  # fibre 2 again: clear it
         await _settle(pilot, screen)
         link = store.load(job_id).link(link_id)
-        assert sorted((r.fibre, round(r.loss_db, 6)) for r in link.results) == [(1, 1.0),
-                                                                                  (3, 1.2)]
+        assert sorted((r.fibre, round(r.loss_db, 6)) for r in link.results) == [(1, 1.0), (3, 1.2)]
         # A click on a cell moves the entry there, ready to type. The grid's header is its
         # first line and the fibre column 7 cells wide, so (10, 9) is fibre 9 at 1310 nm.
         await pilot.click("#readings", offset=(10, 9))
@@ -224,10 +227,12 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
 
 
 async def test_recheck_beyond_tolerance_marks_results_in_doubt(
-        isolated_dirs: dict[str, Path]) -> None:
+    isolated_dirs: dict[str, Path],
+) -> None:
     store, job_id, link_id = _job_with_link(isolated_dirs["data"], fibres=4)
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = app.screen
@@ -262,16 +267,27 @@ async def test_recheck_beyond_tolerance_marks_results_in_doubt(
 
 
 @pytest.mark.parametrize("size", [(80, 24), (44, 22)])
-async def test_everything_fits_the_screen(isolated_dirs: dict[str, Path],
-                                          size: tuple[int, int]) -> None:
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+async def test_everything_fits_the_screen(
+    isolated_dirs: dict[str, Path], size: tuple[int, int]
+) -> None:
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
         width, height = size
-        for selector in ("#method", "#wavelengths", "#fibres", "#directions", "#reference",
-                         "#limit", "#reading", "#readings", "#meter-summary"):
+        for selector in (
+            "#method",
+            "#wavelengths",
+            "#fibres",
+            "#directions",
+            "#reference",
+            "#limit",
+            "#reading",
+            "#readings",
+            "#meter-summary",
+        ):
             region = screen.query_one(selector).region
             assert region.width > 0 and region.height > 0, selector
             assert region.right <= width and region.bottom <= height - 1, selector
@@ -289,13 +305,22 @@ async def test_budget_limit_by_method_and_both_directions(isolated_dirs: dict[st
         # command records them).
         job.link(link_id).budget = BudgetRecord(  # type: ignore[attr-defined]
             description={"connector_count": 4, "connector_loss_db": 0.75},
-            wavelengths=[BudgetWavelength(wavelength_nm=1310, loss_db=4.60, items=[
-                BudgetItem(name="fibre", loss_db=1.60),
-                BudgetItem(name="4 mated connector pairs", loss_db=3.00)])])
+            wavelengths=[
+                BudgetWavelength(
+                    wavelength_nm=1310,
+                    loss_db=4.60,
+                    items=[
+                        BudgetItem(name="fibre", loss_db=1.60),
+                        BudgetItem(name="4 mated connector pairs", loss_db=3.00),
+                    ],
+                )
+            ],
+        )
 
     store.update(job_id, budget)
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = app.screen
@@ -332,14 +357,20 @@ async def test_budget_limit_by_method_and_both_directions(isolated_dirs: dict[st
     assert all(r.limit_db == pytest.approx(3.85, abs=1e-9) for r in link.results)
     assert sorted(r.level_dbm for r in link.references) == [-7.2, -6.9]
     assert sorted((r.fibre, r.direction, r.passed) for r in link.results) == [
-        (1, "A->B", True), (1, "B->A", True), (2, "A->B", False), (2, "B->A", True)]
+        (1, "A->B", True),
+        (1, "B->A", True),
+        (2, "A->B", False),
+        (2, "B->A", True),
+    ]
 
 
 async def test_readings_typed_just_before_quitting_are_saved(
-        isolated_dirs: dict[str, Path]) -> None:
+    isolated_dirs: dict[str, Path],
+) -> None:
     store, job_id, link_id = _job_with_link(isolated_dirs["data"], fibres=24)
-    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"],
-                   start_mode="meter")
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="meter"
+    )
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = app.screen

@@ -25,15 +25,15 @@ def _app(dirs: dict[str, Path]):  # noqa: ANN202 - the app factory's app
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_setup_labels_say_what_they_mean(isolated_dirs: dict[str, Path],
-                                               size: tuple[int, int]) -> None:
+async def test_setup_labels_say_what_they_mean(
+    isolated_dirs: dict[str, Path], size: tuple[int, int]
+) -> None:
     async with _app(isolated_dirs).run_test(size=size) as pilot:
         await pilot.pause()
         screen = pilot.app.screen
         assert isinstance(screen, MeterScreen)
         labels = [str(label.render()) for label in screen.query(".meter-label").results(Label)]
-        assert labels[:6] == ["Method", "Wavelength", "Fibres", "Directions", "Ref 1310",
-                              "Limit"]
+        assert labels[:6] == ["Method", "Wavelength", "Fibres", "Directions", "Ref 1310", "Limit"]
         # The directions number says what it means beside it, whole.
         meaning = screen.query_one("#directions-meaning", Label)
         assert str(meaning.render()) == "A→B"
@@ -42,7 +42,10 @@ async def test_setup_labels_say_what_they_mean(isolated_dirs: dict[str, Path],
         await pilot.pause()
         assert str(meaning.render()) == "both"
         assert [c.heading for c in screen.query_one(ReadingsGrid).columns_shown][:3] == [
-            "1310 A→B", "1310 B→A", "1310 avg"]
+            "1310 A→B",
+            "1310 B→A",
+            "1310 avg",
+        ]
         screen.query_one("#directions", Input).value = "3"
         await pilot.pause()
         assert str(meaning.render()) == "?"
@@ -55,7 +58,8 @@ async def test_setup_labels_say_what_they_mean(isolated_dirs: dict[str, Path],
 
 @pytest.mark.parametrize("size", SIZES)
 async def test_invisible_light_caution_beside_the_reference_prompt(
-        isolated_dirs: dict[str, Path], size: tuple[int, int]) -> None:
+    isolated_dirs: dict[str, Path], size: tuple[int, int]
+) -> None:
     async with _app(isolated_dirs).run_test(size=size) as pilot:
         await pilot.pause()
         screen = pilot.app.screen
@@ -147,12 +151,12 @@ async def test_every_hint_key_and_a_click_at_44_columns(isolated_dirs: dict[str,
         assert screen.focused is screen.query_one("#reading")
         grid = screen.query_one(ReadingsGrid)
         assert grid.cursor_coordinate.row == 2
-        assert grid.columns_shown[grid.cursor_coordinate.column - 1] == GridColumn(1310.0,
-                                                                                   "B->A")
+        assert grid.columns_shown[grid.cursor_coordinate.column - 1] == GridColumn(1310.0, "B->A")
 
 
 async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
-        isolated_dirs: dict[str, Path]) -> None:
+    isolated_dirs: dict[str, Path],
+) -> None:
     async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
         await pilot.pause()
         screen = pilot.app.screen
@@ -172,7 +176,7 @@ async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
         summary = screen.query_one("#meter-summary", Static)
         await pilot.pause(0.3)
         lines = str(summary.render()).splitlines()
-        visible = lines[:summary.region.height]
+        visible = lines[: summary.region.height]
         # Every line fits 42 columns, so the five rows show both wavelengths' worst fibres.
         assert all(len(line) <= 42 for line in visible), visible
         assert visible[0].startswith("1310") and "24/24" in visible[0]
@@ -183,7 +187,8 @@ async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
 
 
 async def test_job_budget_limit_and_replace_hint_fit_44_columns(
-        isolated_dirs: dict[str, Path]) -> None:
+    isolated_dirs: dict[str, Path],
+) -> None:
     from fieldkit.jobs.models import BudgetItem, BudgetRecord, BudgetWavelength
     from fieldkit.jobs.store import JobStore
 
@@ -198,9 +203,17 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
         # A saved budget: 4.60 dB at 1310 nm counting 4 mated pairs at 0.75 dB.
         link.budget = BudgetRecord(
             description={"connector_count": 4, "connector_loss_db": 0.75},
-            wavelengths=[BudgetWavelength(wavelength_nm=1310, loss_db=4.60, items=[
-                BudgetItem(name="fibre", loss_db=1.60),
-                BudgetItem(name="4 mated connector pairs", loss_db=3.00)])])
+            wavelengths=[
+                BudgetWavelength(
+                    wavelength_nm=1310,
+                    loss_db=4.60,
+                    items=[
+                        BudgetItem(name="fibre", loss_db=1.60),
+                        BudgetItem(name="4 mated connector pairs", loss_db=3.00),
+                    ],
+                )
+            ],
+        )
 
     store.update(job.id, add_link)
     async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
@@ -221,8 +234,10 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
         await pilot.pause()
         note = screen.query_one("#reference-note", Static)
         lines = str(note.render()).splitlines()
-        assert lines == ["two-cord: 1 of 2 end connections counted",
-                         "limit 3.85 dB: budget less 1 connection"]
+        assert lines == [
+            "two-cord: 1 of 2 end connections counted",
+            "limit 3.85 dB: budget less 1 connection",
+        ]
         assert note.region.height == 2
         assert all(len(line) <= note.content_region.width for line in lines)
         reading = screen.query_one("#reading", Input)
@@ -234,8 +249,9 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_recheck_dialog_carries_the_caution(isolated_dirs: dict[str, Path],
-                                                  size: tuple[int, int]) -> None:
+async def test_recheck_dialog_carries_the_caution(
+    isolated_dirs: dict[str, Path], size: tuple[int, int]
+) -> None:
     from fieldkit.tui.widgets.recheck_dialog import RecheckDialog
 
     async with _app(isolated_dirs).run_test(size=size) as pilot:

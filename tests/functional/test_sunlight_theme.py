@@ -44,8 +44,9 @@ def _colours(widget) -> tuple[tuple[int, int, int], tuple[int, int, int]]:
 
 @pytest.mark.parametrize("size", SIZES)
 @pytest.mark.parametrize("mode", MODES)
-async def test_sunlight_keeps_the_current_workspace_and_labels_readable(tmp_path: Path, size,
-                                                                        mode) -> None:
+async def test_sunlight_keeps_the_current_workspace_and_labels_readable(
+    tmp_path: Path, size, mode
+) -> None:
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode=mode)
     async with app.run_test(size=size) as pilot:
         await pilot.pause()

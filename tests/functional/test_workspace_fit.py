@@ -45,8 +45,11 @@ async def test_jobs_find_hint_fits(tmp_path: Path, size) -> None:
 
 @pytest.mark.parametrize(
     ("mode", "field_id", "named"),
-    [("convert", "sum-a", "level A"), ("fault", "fault-distance", "OTDR dist"),
-     ("convert", "value", "value")],
+    [
+        ("convert", "sum-a", "level A"),
+        ("fault", "fault-distance", "OTDR dist"),
+        ("convert", "value", "value"),
+    ],
 )
 async def test_problem_names_the_field_as_labelled(tmp_path: Path, mode, field_id, named):
     # "level a" and "otdr dist" read as typing errors of our own; the label's case is kept.

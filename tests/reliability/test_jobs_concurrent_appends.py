@@ -22,8 +22,12 @@ def test_two_processes_appending_keep_every_note(tmp_path: Path) -> None:
     store = JobStore(tmp_path / "jobs")
     job = store.create("Shared job")
     count = 60
-    procs = [subprocess.Popen([sys.executable, "-c", APPENDER, str(store.jobs_dir), job.id,
-                               who, str(count)]) for who in ("tui", "cli")]
+    procs = [
+        subprocess.Popen(
+            [sys.executable, "-c", APPENDER, str(store.jobs_dir), job.id, who, str(count)]
+        )
+        for who in ("tui", "cli")
+    ]
     for proc in procs:
         assert proc.wait(timeout=120) == 0
     saved = store.load(job.id)

@@ -48,16 +48,19 @@ def test_sigkill_during_saves_leaves_old_or_new(tmp_path: Path) -> None:
 
     def big(j: object) -> None:
         link = j.add_link("K-1")  # type: ignore[attr-defined]
-        link.results.extend(LossResult(fibre=i % 144 + 1, wavelength_nm=1310.0,
-                                       loss_db=0.5 + i / 1000) for i in range(600))
+        link.results.extend(
+            LossResult(fibre=i % 144 + 1, wavelength_nm=1310.0, loss_db=0.5 + i / 1000)
+            for i in range(600)
+        )
 
     store.update(job.id, big)  # ~250 KB per save, so kills land inside writes
     rng = random.Random(20261201)
     confirmed = 0
     rounds = 40
     for _ in range(rounds):
-        proc = subprocess.Popen([sys.executable, "-c", WRITER, str(jobs_dir), job.id],
-                                stdout=subprocess.PIPE, text=True)
+        proc = subprocess.Popen(
+            [sys.executable, "-c", WRITER, str(jobs_dir), job.id], stdout=subprocess.PIPE, text=True
+        )
         assert proc.stdout is not None
         first = proc.stdout.readline()  # started and saved once: now kill at a random moment
         time.sleep(rng.random() * 0.2)

@@ -17,12 +17,22 @@ def lib():
     return load_presets()
 
 
-def link(lib, fibre: str, length_m: float, connectors: int = 2, connector_db: float = 0.75,
-         splices: int = 0, splice_db: float = 0.3, **kw) -> b.LinkDescription:
+def link(
+    lib,
+    fibre: str,
+    length_m: float,
+    connectors: int = 2,
+    connector_db: float = 0.75,
+    splices: int = 0,
+    splice_db: float = 0.3,
+    **kw,
+) -> b.LinkDescription:
     return b.LinkDescription(
         segments=(b.Segment(lib.fibres[fibre], length_m),),
         connectors=b.Connections(connectors, connector_db),
-        splices=(b.Splices(splices, splice_db),) if splices else (), **kw)
+        splices=(b.Splices(splices, splice_db),) if splices else (),
+        **kw,
+    )
 
 
 def test_tia_multimode_channel_om3_300m(lib):
@@ -39,8 +49,11 @@ def test_tia_multimode_channel_om3_300m(lib):
 def test_items_add_up_to_the_total(lib):
     spec = b.LinkDescription(
         segments=(b.Segment(lib.fibres["G.652.D"], 20_000.0),),
-        connectors=b.Connections(4, 0.75, 0.3), splices=(b.Splices(10, 0.3, 0.05),),
-        components=(b.splitter(8, excess_max_db=1.5, excess_typical_db=0.8),), margin_db=3.0)
+        connectors=b.Connections(4, 0.75, 0.3),
+        splices=(b.Splices(10, 0.3, 0.05),),
+        components=(b.splitter(8, excess_max_db=1.5, excess_typical_db=0.8),),
+        margin_db=3.0,
+    )
     for w in b.compute_budget(spec).wavelengths:
         assert math.fsum(i.loss_db for i in w.items) == pytest.approx(w.loss_db, abs=1e-12)
         assert w.loss_with_margin_db == pytest.approx(w.loss_db + 3.0, abs=1e-12)
@@ -60,9 +73,11 @@ def test_typical_total_uses_typical_values(lib):
     # Typical (common practice, see presets/fibres.toml and connections.toml): OS2 0.35 dB/km
     # at 1310 nm, 0.3 dB per mated pair, 0.05 dB per fusion splice.
     # 10 km × 0.35 = 3.5; 2 × 0.3 = 0.6; 4 × 0.05 = 0.2 -> 4.3 dB
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OS2"], 10_000.0),),
-                             connectors=b.Connections(2, 0.75, 0.3),
-                             splices=(b.Splices(4, 0.3, 0.05),))
+    spec = b.LinkDescription(
+        segments=(b.Segment(lib.fibres["OS2"], 10_000.0),),
+        connectors=b.Connections(2, 0.75, 0.3),
+        splices=(b.Splices(4, 0.3, 0.05),),
+    )
     row = b.compute_budget(spec).at(1310)
     assert row.typical_loss_db == pytest.approx(4.3, abs=1e-9)
     assert row.loss_db == pytest.approx(4.0 + 1.5 + 1.2, abs=1e-9)
@@ -73,10 +88,18 @@ def test_typical_missing_when_an_item_has_none(lib):
     assert row.typical_loss_db is None
 
 
-@pytest.mark.parametrize(("outputs", "ideal_db"), [
-    # 10·log10(N) by hand: log10(2) = 0.30103, log10(32) = 5 × 0.30103 = 1.50515
-    (2, 3.0103), (4, 6.0206), (8, 9.0309), (16, 12.0412), (32, 15.0515), (64, 18.0618),
-])
+@pytest.mark.parametrize(
+    ("outputs", "ideal_db"),
+    [
+        # 10·log10(N) by hand: log10(2) = 0.30103, log10(32) = 5 × 0.30103 = 1.50515
+        (2, 3.0103),
+        (4, 6.0206),
+        (8, 9.0309),
+        (16, 12.0412),
+        (32, 15.0515),
+        (64, 18.0618),
+    ],
+)
 def test_splitter_ideal_loss(outputs, ideal_db):
     assert coupling.splitter_ideal_loss_db(outputs) == pytest.approx(ideal_db, abs=1e-4)
     part = b.splitter(outputs, excess_max_db=1.0)
@@ -113,8 +136,9 @@ def test_mfd_mismatch_gaussian_overlap():
 def test_mixed_multimode_segments_add_a_mismatch_line(lib):
     # OM1 (62.5 µm, NA 0.275) next to OM3 (50 µm, NA 0.200): worse direction OM1 -> OM3,
     # 1.93820 + 2.76605 = 4.70425 dB, its own line; the best direction is 0 dB.
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OM1"], 100.0),
-                                       b.Segment(lib.fibres["OM3"], 200.0)))
+    spec = b.LinkDescription(
+        segments=(b.Segment(lib.fibres["OM1"], 100.0), b.Segment(lib.fibres["OM3"], 200.0))
+    )
     row = b.compute_budget(spec).at(850)
     joints = [i for i in row.items if i.kind == "mismatch"]
     assert len(joints) == 1
@@ -129,9 +153,13 @@ def test_mismatch_counts_each_joint_in_the_direction_the_light_travels(lib):
     # 0 dB); from end B the same two joints the other way round: 0 + 4.70425 dB. Either way the
     # link loses 4.70425 dB to mismatch, never both joints' worse directions (9.4085 dB).
     # Formulas: Keiser, "Optical Fiber Communications", 4th ed., §5.4 (from memory).
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OM1"], 2.0),
-                                       b.Segment(lib.fibres["OM3"], 300.0),
-                                       b.Segment(lib.fibres["OM1"], 2.0)))
+    spec = b.LinkDescription(
+        segments=(
+            b.Segment(lib.fibres["OM1"], 2.0),
+            b.Segment(lib.fibres["OM3"], 300.0),
+            b.Segment(lib.fibres["OM1"], 2.0),
+        )
+    )
     row = b.compute_budget(spec).at(850)
     joints = [i for i in row.items if i.kind == "mismatch"]
     assert len(joints) == 2
@@ -146,11 +174,14 @@ def test_mixed_singlemode_segments_use_mfd_per_wavelength(lib):
     # presets: G.652.D MFD 9.2 µm at 1310 nm, 10.4 at 1550; G.657.A2 8.6 and 9.6 µm (typical).
     # 1310: 0.019738 dB (as above). 1550: 2·10.4·9.6 = 199.68; 108.16 + 92.16 = 200.32;
     # 199.68/200.32 = 1 − 0.64/200.32 = 0.9968051; squared 0.9936204; −10·log10 = 0.027795 dB
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["G.652.D"], 1000.0),
-                                       b.Segment(lib.fibres["G.657.A2"], 50.0)))
+    spec = b.LinkDescription(
+        segments=(b.Segment(lib.fibres["G.652.D"], 1000.0), b.Segment(lib.fibres["G.657.A2"], 50.0))
+    )
     result = b.compute_budget(spec)
-    at = {w.wavelength_nm: [i for i in w.items if i.kind == "mismatch"][0].loss_db
-          for w in result.wavelengths}
+    at = {
+        w.wavelength_nm: [i for i in w.items if i.kind == "mismatch"][0].loss_db
+        for w in result.wavelengths
+    }
     assert at[1310.0] == pytest.approx(0.019738, abs=2e-6)
     assert at[1550.0] == pytest.approx(0.027795, abs=2e-6)
 
@@ -160,9 +191,10 @@ def test_gpon_feeder_and_bend_insensitive_drop_at_1490_nm(lib):
     # 9.3 µm), presets (from memory). Gaussian overlap (Marcuse 1977, from memory):
     # 2·10·9.3 = 186; 10² + 9.3² = 186.49; 186/186.49 = 0.9973725; squared 0.9947519;
     # −10·log10(0.9947519) = 0.022852 dB
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OS2"], 8000.0),
-                                       b.Segment(lib.fibres["G.657.A2"], 150.0)),
-                             wavelengths_nm=(1490.0,))
+    spec = b.LinkDescription(
+        segments=(b.Segment(lib.fibres["OS2"], 8000.0), b.Segment(lib.fibres["G.657.A2"], 150.0)),
+        wavelengths_nm=(1490.0,),
+    )
     row = b.compute_budget(spec).at(1490)
     joints = [i for i in row.items if i.kind == "mismatch"]
     assert len(joints) == 1
@@ -173,9 +205,13 @@ def test_a_joint_without_mode_field_values_is_noted_not_refused(lib):
     # Neither G.652.D nor G.657.A2 has a mode-field diameter at 1383 nm in the presets: the
     # budget still comes out (fibre only: 1 km × 0.4 + 0.05 km × 0.4 = 0.42 dB, ITU-T G.652
     # (11/2016) 1383 nm cable maximum, from memory) and a note says no mismatch was counted.
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["G.652.D"], 1000.0),
-                                       b.Segment(lib.fibres["G.657.A2"], 50.0)),
-                             wavelengths_nm=(1383.0,))
+    spec = b.LinkDescription(
+        segments=(
+            b.Segment(lib.fibres["G.652.D"], 1000.0),
+            b.Segment(lib.fibres["G.657.A2"], 50.0),
+        ),
+        wavelengths_nm=(1383.0,),
+    )
     result = b.compute_budget(spec)
     assert result.at(1383).loss_db == pytest.approx(0.42, abs=1e-9)
     assert not [i for i in result.at(1383).items if i.kind == "mismatch"]
@@ -184,8 +220,9 @@ def test_a_joint_without_mode_field_values_is_noted_not_refused(lib):
 
 def test_multimode_and_singlemode_cannot_be_joined(lib):
     with pytest.raises(InputError, match="multimode and single-mode"):
-        b.LinkDescription(segments=(b.Segment(lib.fibres["OM4"], 10.0),
-                                    b.Segment(lib.fibres["OS2"], 10.0)))
+        b.LinkDescription(
+            segments=(b.Segment(lib.fibres["OM4"], 10.0), b.Segment(lib.fibres["OS2"], 10.0))
+        )
 
 
 def test_wavelength_without_a_value_is_named(lib):
@@ -240,13 +277,16 @@ def test_application_wavelength_window(lib):
 def test_pon_class_minimum_loss(lib):
     # ITU-T G.984.2 Amd 1: class B+ 13–28 dB (from memory). A 1x8 splitter on 1 km has a
     # lowest plausible loss of 9.031 + 0.24 (1490 nm typical) = 9.27 dB < 13 dB: fails the minimum.
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OS2"], 1000.0),),
-                             connectors=b.Connections(2, 0.75),
-                             components=(b.splitter(8, excess_max_db=1.5),),
-                             wavelengths_nm=(1310.0, 1490.0))
+    spec = b.LinkDescription(
+        segments=(b.Segment(lib.fibres["OS2"], 1000.0),),
+        connectors=b.Connections(2, 0.75),
+        components=(b.splitter(8, excess_max_db=1.5),),
+        wavelengths_nm=(1310.0, 1490.0),
+    )
     result = b.compute_budget(spec)
-    limits = b.ApplicationLimits("GPON Class B+", "singlemode", 28.0, 20_000.0,
-                                 (1310.0, 1490.0), loss_min_db=13.0)
+    limits = b.ApplicationLimits(
+        "GPON Class B+", "singlemode", 28.0, 20_000.0, (1310.0, 1490.0), loss_min_db=13.0
+    )
     check = b.check_application(result, limits)
     assert check.loss_pass is True
     assert check.min_pass is False
@@ -275,10 +315,13 @@ def test_transceiver_needs_an_attenuator_and_gets_one_that_fits(lib):
     #   min loss  = 0.24 + 9.0309 = 9.2709 dB; received max = 5 − 9.2709 = −4.2709 dBm > −8
     #   attenuator at least −4.2709 − (−8) = 3.7291 dB, at most 16.0691 − 2 (margin) = 14.0691
     #   smallest stock value in [3.73, 14.07]: 5 dB
-    spec = b.LinkDescription(segments=(b.Segment(lib.fibres["OS2"], 1000.0),),
-                             connectors=b.Connections(2, 0.75),
-                             components=(b.splitter(8, excess_max_db=1.5),),
-                             margin_db=2.0, wavelengths_nm=(1490.0,))
+    spec = b.LinkDescription(
+        segments=(b.Segment(lib.fibres["OS2"], 1000.0),),
+        connectors=b.Connections(2, 0.75),
+        components=(b.splitter(8, excess_max_db=1.5),),
+        margin_db=2.0,
+        wavelengths_nm=(1490.0,),
+    )
     tx = b.Transceiver(1.5, 5.0, -27.0, -8.0, wavelength_nm=1490.0)
     check = b.check_transceiver(b.compute_budget(spec), tx)
     assert check.overload is True
@@ -290,8 +333,11 @@ def test_transceiver_needs_an_attenuator_and_gets_one_that_fits(lib):
 
 def test_transceiver_no_attenuator_fits():
     fibre = load_presets().fibres["OS2"]
-    spec = b.LinkDescription(segments=(b.Segment(fibre, 100.0),),
-                             connectors=b.Connections(2, 5.0), wavelengths_nm=(1310.0,))
+    spec = b.LinkDescription(
+        segments=(b.Segment(fibre, 100.0),),
+        connectors=b.Connections(2, 5.0),
+        wavelengths_nm=(1310.0,),
+    )
     # max loss 0.04 + 10 = 10.04; min 0.035; Tx 0..+5, Rx −12 .. −3:
     # margin 0 − 10.04 + 12 = 1.96; needs 5 − 0.035 + 3 = 7.965 dB, allows only 1.96 dB
     check = b.check_transceiver(b.compute_budget(spec), b.Transceiver(0.0, 5.0, -12.0, -3.0))
@@ -305,8 +351,10 @@ def test_transceiver_wavelength_missing_from_the_budget_is_refused(lib):
     # too much over 10 km, enough to hide a receiver overload. Ask for the wavelength instead.
     result = b.compute_budget(link(lib, "OS2", 10_000.0, wavelengths_nm=(1310.0,)))
     tx = b.Transceiver(0.0, 5.0, -24.0, -7.0, name="1550 pair", wavelength_nm=1550.0)
-    with pytest.raises(InputError, match="1550 pair: works at 1550 nm, but the budget has "
-                                         "1310 nm; add the wavelength 1550"):
+    with pytest.raises(
+        InputError,
+        match="1550 pair: works at 1550 nm, but the budget has 1310 nm; add the wavelength 1550",
+    ):
         b.check_transceiver(result, tx)
     # Without a wavelength the pair is judged at the budget's wavelengths, as before:
     # margin 0 − (4.0 + 1.5) + 24 = 18.5 dB
@@ -322,12 +370,17 @@ def test_transceiver_levels_validated():
         b.Transceiver(-5.0, 0.0, -3.0, -20.0)
 
 
-@pytest.mark.parametrize(("included", "expected_db"), [
-    # OS2 10 km at 1310 nm: 4.0 dB fibre; 4 mated pairs × 0.75 dB, two of them the ends.
-    # one-cord keeps both ends: 4.0 + 4 × 0.75 = 7.00; two-cord one: 4.0 + 3 × 0.75 = 6.25;
-    # three-cord none: 4.0 + 2 × 0.75 = 5.50 (IEC 61280-4-2, from memory)
-    (2, 7.00), (1, 6.25), (0, 5.50),
-])
+@pytest.mark.parametrize(
+    ("included", "expected_db"),
+    [
+        # OS2 10 km at 1310 nm: 4.0 dB fibre; 4 mated pairs × 0.75 dB, two of them the ends.
+        # one-cord keeps both ends: 4.0 + 4 × 0.75 = 7.00; two-cord one: 4.0 + 3 × 0.75 = 6.25;
+        # three-cord none: 4.0 + 2 × 0.75 = 5.50 (IEC 61280-4-2, from memory)
+        (2, 7.00),
+        (1, 6.25),
+        (0, 5.50),
+    ],
+)
 def test_method_limit_keeps_the_end_connections_the_method_includes(lib, included, expected_db):
     spec = link(lib, "OS2", 10_000.0, connectors=4)
     assert b.method_limit(spec, included).at(1310).loss_db == pytest.approx(expected_db, abs=1e-9)

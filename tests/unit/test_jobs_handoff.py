@@ -49,8 +49,9 @@ def test_new_entries_from_the_other_laptop_merge_in(tmp_path: Path, store: JobSt
     store.update(sample().id, lambda j: j.add_note("local note") and None)
     theirs = sample()
     theirs.add_note("their note")
-    theirs.links[0].results.append(LossResult(fibre=7, wavelength_nm=1550.0, loss_db=1.45,
-                                              limit_db=3.25, passed=True))
+    theirs.links[0].results.append(
+        LossResult(fibre=7, wavelength_nm=1550.0, loss_db=1.45, limit_db=3.25, passed=True)
+    )
     report = import_jobs(store, read_handoff(_write(tmp_path, [theirs])))
     assert report.merged_jobs == [sample().id]
     assert report.added_records == 2 and report.conflicts == []
@@ -86,8 +87,12 @@ def _hostile(tmp_path: Path, data: object, name: str = "bad.json") -> Path:
 
 
 def _handoff_with(job: dict) -> dict:
-    return {"format": "fieldkit-jobs-handoff", "handoff_version": 1, "schema_version": 2,
-            "jobs": [job]}
+    return {
+        "format": "fieldkit-jobs-handoff",
+        "handoff_version": 1,
+        "schema_version": 2,
+        "jobs": [job],
+    }
 
 
 @pytest.mark.parametrize("job_id", ["../../outside", "/etc/passwd", "ABCDEF012345", "", 17])
@@ -123,11 +128,14 @@ def test_huge_file_is_refused_before_reading(tmp_path: Path) -> None:
         read_handoff(path)
 
 
-@pytest.mark.parametrize("text, message", [
-    ("not json at all", "not valid JSON"),
-    ("[1, 2, 3]", "neither a fieldkit hand-off nor a job file"),
-    ('{"format": "fieldkit-jobs-handoff", "jobs": 5}', "no list of jobs"),
-])
+@pytest.mark.parametrize(
+    "text, message",
+    [
+        ("not json at all", "not valid JSON"),
+        ("[1, 2, 3]", "neither a fieldkit hand-off nor a job file"),
+        ('{"format": "fieldkit-jobs-handoff", "jobs": 5}', "no list of jobs"),
+    ],
+)
 def test_files_that_are_not_handoffs(tmp_path: Path, text: str, message: str) -> None:
     path = tmp_path / "x.json"
     path.write_text(text)

@@ -28,57 +28,116 @@ from fieldkit.jobs.models import (
 
 finite = st.floats(min_value=-1e6, max_value=1e6, allow_nan=False, allow_infinity=False)
 positive = st.floats(min_value=0.001, max_value=1e5, allow_nan=False, allow_infinity=False)
-moments = st.datetimes(min_value=datetime(2000, 1, 1), max_value=datetime(2100, 1, 1),
-                       timezones=st.just(UTC))
+moments = st.datetimes(
+    min_value=datetime(2000, 1, 1), max_value=datetime(2100, 1, 1), timezones=st.just(UTC)
+)
 words = st.text(max_size=40)
 methods = st.sampled_from(["one-cord", "two-cord", "three-cord"])
 
 notes = st.builds(Note, at=moments, by=words, text=st.text(min_size=1, max_size=80))
 references = st.builds(
-    ReferenceRecord, source_id=words, meter_id=words, wavelength_nm=positive, level_dbm=finite,
-    method=methods, cords=st.lists(words, max_size=3),
-    launch_condition=st.none() | words, by=words, at=moments,
-    kind=st.sampled_from(["initial", "recheck"]), drift_db=st.none() | finite,
-    in_doubt_since=st.none() | moments)
+    ReferenceRecord,
+    source_id=words,
+    meter_id=words,
+    wavelength_nm=positive,
+    level_dbm=finite,
+    method=methods,
+    cords=st.lists(words, max_size=3),
+    launch_condition=st.none() | words,
+    by=words,
+    at=moments,
+    kind=st.sampled_from(["initial", "recheck"]),
+    drift_db=st.none() | finite,
+    in_doubt_since=st.none() | moments,
+)
 results = st.builds(
-    LossResult, fibre=st.integers(1, 864), wavelength_nm=positive,
-    direction=st.sampled_from(["A->B", "B->A"]), reading_dbm=st.none() | finite,
-    loss_db=finite, reference_id=st.none() | st.just(new_id()), method=methods,
-    limit_db=st.none() | finite, passed=st.none() | st.booleans(),
+    LossResult,
+    fibre=st.integers(1, 864),
+    wavelength_nm=positive,
+    direction=st.sampled_from(["A->B", "B->A"]),
+    reading_dbm=st.none() | finite,
+    loss_db=finite,
+    reference_id=st.none() | st.just(new_id()),
+    method=methods,
+    limit_db=st.none() | finite,
+    passed=st.none() | st.booleans(),
     flags=st.lists(st.sampled_from(["negative-loss", "reference-in-doubt"]), max_size=2),
-    by=words, at=moments)
+    by=words,
+    at=moments,
+)
 budgets = st.builds(
-    BudgetRecord, computed_at=moments, by=words,
+    BudgetRecord,
+    computed_at=moments,
+    by=words,
     description=st.dictionaries(st.text(max_size=8), finite | words, max_size=3),
-    wavelengths=st.lists(st.builds(
-        BudgetWavelength, wavelength_nm=positive, loss_db=finite,
-        typical_loss_db=st.none() | finite,
-        items=st.lists(st.builds(BudgetItem, name=words, loss_db=finite, source=words),
-                       max_size=3)), max_size=3),
+    wavelengths=st.lists(
+        st.builds(
+            BudgetWavelength,
+            wavelength_nm=positive,
+            loss_db=finite,
+            typical_loss_db=st.none() | finite,
+            items=st.lists(
+                st.builds(BudgetItem, name=words, loss_db=finite, source=words), max_size=3
+            ),
+        ),
+        max_size=3,
+    ),
     margin_db=finite,
     application=st.none() | st.dictionaries(st.text(max_size=8), finite, max_size=2),
-    transceiver=st.none() | st.dictionaries(st.text(max_size=8), finite, max_size=2))
+    transceiver=st.none() | st.dictionaries(st.text(max_size=8), finite, max_size=2),
+)
 splices = st.builds(
-    SpliceRecord, fibre=st.integers(1, 864), loss_db=finite,
-    estimate=st.sampled_from(["fusion-splicer estimate", "OTDR A->B", "OTDR B->A",
-                              "OTDR bidirectional"]), by=words, at=moments)
+    SpliceRecord,
+    fibre=st.integers(1, 864),
+    loss_db=finite,
+    estimate=st.sampled_from(
+        ["fusion-splicer estimate", "OTDR A->B", "OTDR B->A", "OTDR bidirectional"]
+    ),
+    by=words,
+    at=moments,
+)
 faults = st.builds(
-    FaultRecord, by=words, at=moments,
+    FaultRecord,
+    by=words,
+    at=moments,
     inputs=st.dictionaries(st.text(max_size=8), finite | words, max_size=3),
-    fiber_distance_m=finite, sheath_distance_m=finite, route_distance_m=finite, low_m=finite,
-    high_m=finite, nearest_landmark=st.none() | words,
-    offset_from_landmark_m=st.none() | finite, marking=st.none() | words, notes=words)
+    fiber_distance_m=finite,
+    sheath_distance_m=finite,
+    route_distance_m=finite,
+    low_m=finite,
+    high_m=finite,
+    nearest_landmark=st.none() | words,
+    offset_from_landmark_m=st.none() | finite,
+    marking=st.none() | words,
+    notes=words,
+)
 links = st.builds(
-    Link, label=st.text(min_size=1, max_size=20), end_a=words, end_b=words, fibre_type=words,
-    length_m=st.none() | positive, fibre_count=st.none() | st.integers(1, 864),
-    budget=st.none() | budgets, references=st.lists(references, max_size=2),
-    results=st.lists(results, max_size=3), splices=st.lists(splices, max_size=2),
-    faults=st.lists(faults, max_size=1))
+    Link,
+    label=st.text(min_size=1, max_size=20),
+    end_a=words,
+    end_b=words,
+    fibre_type=words,
+    length_m=st.none() | positive,
+    fibre_count=st.none() | st.integers(1, 864),
+    budget=st.none() | budgets,
+    references=st.lists(references, max_size=2),
+    results=st.lists(results, max_size=3),
+    splices=st.lists(splices, max_size=2),
+    faults=st.lists(faults, max_size=1),
+)
 jobs = st.builds(
-    Job, name=st.text(min_size=1, max_size=40), customer=words, site=words,
-    crew=st.lists(words, max_size=3), created_at=moments, updated_at=moments,
-    status=st.sampled_from(["open", "done"]), notes=st.lists(notes, max_size=3),
-    links=st.lists(links, max_size=2), revision=st.integers(0, 10_000))
+    Job,
+    name=st.text(min_size=1, max_size=40),
+    customer=words,
+    site=words,
+    crew=st.lists(words, max_size=3),
+    created_at=moments,
+    updated_at=moments,
+    status=st.sampled_from(["open", "done"]),
+    notes=st.lists(notes, max_size=3),
+    links=st.lists(links, max_size=2),
+    revision=st.integers(0, 10_000),
+)
 
 
 @settings(max_examples=60, deadline=None)
@@ -129,13 +188,27 @@ def test_generated_ids_match_the_pattern_and_sort_by_time() -> None:
 
 
 def test_result_in_doubt_by_flag_or_by_reference_time() -> None:
-    ref = ReferenceRecord(wavelength_nm=1550.0, level_dbm=-7.0, method="one-cord",
-                          at=datetime(2026, 1, 1, 8, tzinfo=UTC),
-                          in_doubt_since=datetime(2026, 1, 1, 10, tzinfo=UTC))
+    ref = ReferenceRecord(
+        wavelength_nm=1550.0,
+        level_dbm=-7.0,
+        method="one-cord",
+        at=datetime(2026, 1, 1, 8, tzinfo=UTC),
+        in_doubt_since=datetime(2026, 1, 1, 10, tzinfo=UTC),
+    )
     link = Link(label="L", references=[ref])
-    before = LossResult(fibre=1, wavelength_nm=1550.0, loss_db=1.0, reference_id=ref.id,
-                        at=datetime(2026, 1, 1, 9, tzinfo=UTC))
-    after = LossResult(fibre=2, wavelength_nm=1550.0, loss_db=1.0, reference_id=ref.id,
-                       at=datetime(2026, 1, 1, 11, tzinfo=UTC))
+    before = LossResult(
+        fibre=1,
+        wavelength_nm=1550.0,
+        loss_db=1.0,
+        reference_id=ref.id,
+        at=datetime(2026, 1, 1, 9, tzinfo=UTC),
+    )
+    after = LossResult(
+        fibre=2,
+        wavelength_nm=1550.0,
+        loss_db=1.0,
+        reference_id=ref.id,
+        at=datetime(2026, 1, 1, 11, tzinfo=UTC),
+    )
     flagged = LossResult(fibre=3, wavelength_nm=1550.0, loss_db=1.0, flags=["reference-in-doubt"])
     assert [result_in_doubt(link, r) for r in (before, after, flagged)] == [False, True, True]

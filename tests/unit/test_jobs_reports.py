@@ -59,19 +59,39 @@ def test_summary_counts_by_hand() -> None:
     # 2.41, 2.52, 2.38, 2.47 <= 4.26 pass; 4.63 fails; -0.12 (negative loss) has no verdict.
     assert (feed.tested, feed.passed, feed.failed, feed.no_limit) == (6, 4, 1, 1)
     assert [(link.label, r.fibre) for link, r in failures(sample())] == [
-        ("LIB-TH-01", 7), ("RES-N-FEED", 5)]
+        ("LIB-TH-01", 7),
+        ("RES-N-FEED", 5),
+    ]
     assert len(in_doubt(sample())) == 5
 
 
 def test_a_retest_supersedes_the_earlier_result() -> None:
     t0 = datetime(2026, 3, 14, 9, tzinfo=UTC)
-    link = Link(label="L", results=[
-        LossResult(fibre=1, wavelength_nm=1310.0, loss_db=3.0, limit_db=2.0, passed=False, at=t0),
-        LossResult(fibre=1, wavelength_nm=1310.0, loss_db=1.5, limit_db=2.0, passed=True,
-                   at=t0 + timedelta(hours=1)),
-        LossResult(fibre=1, wavelength_nm=1310.0, direction="B->A", loss_db=1.6, limit_db=2.0,
-                   passed=True, at=t0),
-    ])
+    link = Link(
+        label="L",
+        results=[
+            LossResult(
+                fibre=1, wavelength_nm=1310.0, loss_db=3.0, limit_db=2.0, passed=False, at=t0
+            ),
+            LossResult(
+                fibre=1,
+                wavelength_nm=1310.0,
+                loss_db=1.5,
+                limit_db=2.0,
+                passed=True,
+                at=t0 + timedelta(hours=1),
+            ),
+            LossResult(
+                fibre=1,
+                wavelength_nm=1310.0,
+                direction="B->A",
+                loss_db=1.6,
+                limit_db=2.0,
+                passed=True,
+                at=t0,
+            ),
+        ],
+    )
     job = Job(name="Retest", links=[link])
     assert [r.loss_db for r in latest_results(link)] == [1.5, 1.6]
     [row] = job_summary(job)
@@ -89,14 +109,24 @@ def test_csv_has_one_row_per_result_and_parses() -> None:
     record = dict(zip(CSV_HEADERS, fibre7, strict=True))
     # reading = reference − loss = −7.10 − 3.91 = −11.01 dBm; margin = 3.25 − 3.91 = −0.66 dB
     assert (record["reading_dbm"], record["margin_db"], record["result"]) == (
-        "-11.01", "-0.66", "fail")
+        "-11.01",
+        "-0.66",
+        "fail",
+    )
     assert record["reference_level_dbm"] == "-7.10"
     assert "reference-in-doubt" in next(r for r in rows[1:] if r[3] == "12" and r[4] == "1550")[11]
 
 
 def test_csv_keeps_formula_looking_text_as_text() -> None:
-    job = Job(name="=HYPERLINK(1)", links=[Link(label="+L", results=[
-        LossResult(fibre=1, wavelength_nm=1310.0, loss_db=-0.5, by="@me")])])
+    job = Job(
+        name="=HYPERLINK(1)",
+        links=[
+            Link(
+                label="+L",
+                results=[LossResult(fibre=1, wavelength_nm=1310.0, loss_db=-0.5, by="@me")],
+            )
+        ],
+    )
     row = list(csv.reader(io.StringIO(to_csv(job))))[1]
     assert (row[0], row[2], row[15]) == ("'=HYPERLINK(1)", "'+L", "'@me")
     assert row[7] == "-0.50"  # numbers stay numbers
@@ -138,9 +168,17 @@ def test_a_negative_loss_is_reported_as_a_reference_problem_without_margin() -> 
     from fieldkit.jobs.reports import margin_db, verdict
 
     # DESIGN §4: a negative loss means a bad reference, not a good fibre.
-    bad = LossResult(fibre=6, wavelength_nm=1550.0, direction="A->B", reading_dbm=-6.83,
-                     loss_db=-0.12, method="one-cord", limit_db=4.26, passed=None,
-                     flags=[FLAG_NEGATIVE_LOSS])
+    bad = LossResult(
+        fibre=6,
+        wavelength_nm=1550.0,
+        direction="A->B",
+        reading_dbm=-6.83,
+        loss_db=-0.12,
+        method="one-cord",
+        limit_db=4.26,
+        passed=None,
+        flags=[FLAG_NEGATIVE_LOSS],
+    )
     assert verdict(bad) == "reference problem"
     assert margin_db(bad) is None
     good = bad.model_copy(update={"loss_db": 2.41, "passed": True, "flags": []})

@@ -38,8 +38,9 @@ def test_nothing_is_created_until_the_first_write(tmp_path: Path) -> None:
 
 
 def test_create_then_load_and_list(store: JobStore) -> None:
-    job = store.create("  Quay Street  ", site="Quay", customer="Harbour board",
-                       crew=["Ana", " ", "Bo"], by="Ana")
+    job = store.create(
+        "  Quay Street  ", site="Quay", customer="Harbour board", crew=["Ana", " ", "Bo"], by="Ana"
+    )
     assert job.revision == 1
     loaded = store.load(job.id)
     assert (loaded.name, loaded.site, loaded.crew) == ("Quay Street", "Quay", ["Ana", "Bo"])
@@ -295,10 +296,15 @@ def test_parse_job_refuses_any_garbage_with_a_store_error(raw: bytes) -> None:
 
 
 @settings(max_examples=100, deadline=None)
-@given(st.dictionaries(st.sampled_from(["schema_version", "id", "name", "links", "notes",
-                                        "crew", "status", "revision"]),
-                       st.none() | st.integers() | st.text(max_size=5) | st.lists(
-                           st.integers(), max_size=2), max_size=8))
+@given(
+    st.dictionaries(
+        st.sampled_from(
+            ["schema_version", "id", "name", "links", "notes", "crew", "status", "revision"]
+        ),
+        st.none() | st.integers() | st.text(max_size=5) | st.lists(st.integers(), max_size=2),
+        max_size=8,
+    )
+)
 def test_parse_job_refuses_wrong_shapes_with_a_store_error(data: dict) -> None:
     try:
         parse_job(json.dumps(data).encode())

@@ -29,8 +29,9 @@ from fieldkit.calc.locate import (
 from fieldkit.calc.optics import SPEED_OF_LIGHT_M_PER_S
 from fieldkit.calc.units import InputError
 
-NO_ERRORS = ErrorTerms(offset_m=0, scale_error_percent=0, sample_spacing_m=0,
-                       group_index_uncertainty=0)
+NO_ERRORS = ErrorTerms(
+    offset_m=0, scale_error_percent=0, sample_spacing_m=0, group_index_uncertainty=0
+)
 
 
 def test_speed_of_light_is_the_si_definition() -> None:
@@ -46,8 +47,9 @@ def test_distance_from_round_trip_time() -> None:
 
 
 def test_time_reading_through_locate_matches_the_formula() -> None:
-    result = locate(LocateInput(round_trip_time_s=10e-6, group_index=1.5, helix_percent=0.0,
-                                errors=NO_ERRORS))
+    result = locate(
+        LocateInput(round_trip_time_s=10e-6, group_index=1.5, helix_percent=0.0, errors=NO_ERRORS)
+    )
     assert result.position.fiber_distance_m == pytest.approx(999.3081933, abs=1e-6)
 
 
@@ -55,8 +57,15 @@ def test_rescaling_from_the_index_set_on_the_instrument() -> None:
     # 3412 m shown at n_set 1.4700 on a fibre of 1.4677: 3412 × 1.47 / 1.4677 = 5015.64 / 1.4677
     # = 3417.3469 m
     assert rescale_distance(3412, 1.4700, 1.4677) == pytest.approx(3417.3469, abs=1e-3)
-    result = locate(LocateInput(otdr_distance_m=3412, index_set=1.47, group_index=1.4677,
-                                helix_percent=0.0, errors=NO_ERRORS))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=3412,
+            index_set=1.47,
+            group_index=1.4677,
+            helix_percent=0.0,
+            errors=NO_ERRORS,
+        )
+    )
     assert result.position.fiber_distance_m == pytest.approx(3417.3469, abs=1e-3)
 
 
@@ -82,8 +91,15 @@ def test_slack_loops_take_cable_with_no_route_progress() -> None:
 def test_model_chain_with_helix_and_slack() -> None:
     # 2040 m shown, index right, 2 % helix: sheath 2040 / 1.02 = 2000 m;
     # a 25 m loop at 800 m: route = 2000 − 25 = 1975 m
-    result = locate(LocateInput(otdr_distance_m=2040, group_index=1.468, helix_percent=2.0,
-                                slack=(SlackLoop(800, 25, "coil"),), errors=NO_ERRORS))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=2040,
+            group_index=1.468,
+            helix_percent=2.0,
+            slack=(SlackLoop(800, 25, "coil"),),
+            errors=NO_ERRORS,
+        )
+    )
     p = result.position
     assert p.sheath_distance_m == pytest.approx(2000.0, abs=1e-9)
     assert p.route_distance_m == pytest.approx(1975.0, abs=1e-9)
@@ -97,8 +113,9 @@ def test_interpolation_between_landmarks() -> None:
     # fault shown at 2800 m between closure 6 (2000 m OTDR, 1950 m route) and closure 7 (3400,
     # 3330): route = 1950 + (2800 − 2000) × (3330 − 1950) / (3400 − 2000)
     #              = 1950 + 800 × 1380 / 1400 = 1950 + 788.5714 = 2738.5714 m
-    result = locate(LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS,
-                                errors=NO_ERRORS))
+    result = locate(
+        LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS)
+    )
     p = result.position
     assert p.route_distance_m == pytest.approx(2738.5714, abs=1e-3)
     assert p.basis == "interpolated"
@@ -110,17 +127,31 @@ def test_interpolation_between_landmarks() -> None:
 
 
 def test_interpolation_cancels_index_and_helix_error() -> None:
-    plain = locate(LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS,
-                               errors=NO_ERRORS)).position
+    plain = locate(
+        LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS)
+    ).position
     # a wrong index set on the instrument and a large helix change nothing between landmarks
-    skewed = locate(LocateInput(otdr_distance_m=2800, index_set=1.50, group_index=1.4677,
-                                helix_percent=3.0, landmarks=LANDMARKS,
-                                errors=NO_ERRORS)).position
+    skewed = locate(
+        LocateInput(
+            otdr_distance_m=2800,
+            index_set=1.50,
+            group_index=1.4677,
+            helix_percent=3.0,
+            landmarks=LANDMARKS,
+            errors=NO_ERRORS,
+        )
+    ).position
     assert skewed.route_distance_m == pytest.approx(plain.route_distance_m, abs=1e-6)
     # and their uncertainty terms vanish: only the readings' sampling remains
-    full = locate(LocateInput(otdr_distance_m=2800, group_index=1.4677, helix_percent=1.5,
-                              landmarks=LANDMARKS,
-                              errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    full = locate(
+        LocateInput(
+            otdr_distance_m=2800,
+            group_index=1.4677,
+            helix_percent=1.5,
+            landmarks=LANDMARKS,
+            errors=ErrorTerms(helix_uncertainty_percent=0.5),
+        )
+    ).position
     names = {c.name: c.route_m for c in full.contributions}
     assert "helix" not in names
     assert names.get("group index", 0.0) == pytest.approx(0.0, abs=1e-9)
@@ -131,8 +162,15 @@ def test_interpolation_with_a_slack_loop_between_landmarks() -> None:
     # a 20 m loop at route 2500 between the closures: sheath at closure 7 = 3330 + 20 = 3350 m,
     # fibre per sheath = 1400 / (3350 − 1950) = 1; sheath at the fault = 1950 + 800 = 2750 m;
     # the loop holds sheath 2500–2520, so route = 2750 − 20 = 2730 m
-    result = locate(LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS,
-                                slack=(SlackLoop(2500, 20),), errors=NO_ERRORS))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=2800,
+            group_index=1.4677,
+            landmarks=LANDMARKS,
+            slack=(SlackLoop(2500, 20),),
+            errors=NO_ERRORS,
+        )
+    )
     assert result.position.sheath_distance_m == pytest.approx(2750.0, abs=1e-9)
     assert result.position.route_distance_m == pytest.approx(2730.0, abs=1e-9)
 
@@ -140,8 +178,9 @@ def test_interpolation_with_a_slack_loop_between_landmarks() -> None:
 def test_extrapolation_beyond_the_last_landmark_says_so() -> None:
     # 4000 m shown, past closure 7; ratio start → closure 7 = 3400 / 3330;
     # route = 3330 + (4000 − 3400) × 3330 / 3400 = 3330 + 587.647 = 3917.647 m
-    result = locate(LocateInput(otdr_distance_m=4000, group_index=1.4677, landmarks=LANDMARKS,
-                                errors=NO_ERRORS))
+    result = locate(
+        LocateInput(otdr_distance_m=4000, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS)
+    )
     p = result.position
     assert p.route_distance_m == pytest.approx(3917.647, abs=1e-3)
     assert p.basis == "extrapolated"
@@ -154,8 +193,9 @@ def test_a_landmark_at_route_zero_replaces_the_start() -> None:
     # launch cord left on the trace: the panel shows at 150 m OTDR, route 0; the next closure at
     # 1150 m OTDR, 1000 m route. Fault at 650 m: route = (650 − 150) × 1000 / 1000 = 500 m
     marks = (Landmark("panel", 150, 0), Landmark("closure 1", 1150, 1000))
-    result = locate(LocateInput(otdr_distance_m=650, group_index=1.4677, landmarks=marks,
-                                errors=NO_ERRORS))
+    result = locate(
+        LocateInput(otdr_distance_m=650, group_index=1.4677, landmarks=marks, errors=NO_ERRORS)
+    )
     assert result.position.route_distance_m == pytest.approx(500.0, abs=1e-9)
     assert result.position.basis == "interpolated"
 
@@ -165,20 +205,31 @@ def test_sheath_marking_counting_up_and_down() -> None:
     assert sheath_marking(Marking(1000, "m", "up"), 2000) == pytest.approx(3000, abs=1e-9)
     # counting down in feet: 20 000 ft − 1000 m / 0.3048 m per ft (international foot, exact)
     # = 20 000 − 3280.8399 = 16 719.1601 ft
-    assert sheath_marking(Marking(20000, "ft", "down"), 1000) == pytest.approx(16719.1601,
-                                                                                abs=1e-3)
+    assert sheath_marking(Marking(20000, "ft", "down"), 1000) == pytest.approx(16719.1601, abs=1e-3)
 
 
 def test_marking_through_locate_has_a_range() -> None:
     # 1020 m shown, 2 % helix: sheath 1000 m; marking 5000 up: 6000 m
-    result = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
-                                marking=Marking(5000, "m", "up")))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=1020,
+            group_index=1.468,
+            helix_percent=2.0,
+            marking=Marking(5000, "m", "up"),
+        )
+    )
     marking = result.position.marking
     assert marking is not None
     assert marking.value == pytest.approx(6000.0, abs=1e-9)
     assert marking.low < marking.value < marking.high
-    down = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
-                              marking=Marking(500, "m", "down"))).warnings
+    down = locate(
+        LocateInput(
+            otdr_distance_m=1020,
+            group_index=1.468,
+            helix_percent=2.0,
+            marking=Marking(500, "m", "down"),
+        )
+    ).warnings
     assert any("past zero" in w for w in down)
 
 
@@ -186,34 +237,64 @@ def test_marking_range_includes_the_print_tolerance_of_the_markings() -> None:
     # No instrument errors: 1020 m shown at 2 % helix is exactly 1000 m of sheath. Printed
     # markings within 1 % of the length counted (common practice, from memory): ±10 m, so
     # marking 5000 counting up gives 6000 (5990 to 6010).
-    result = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
-                                marking=Marking(5000, "m", "up"), errors=NO_ERRORS))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=1020,
+            group_index=1.468,
+            helix_percent=2.0,
+            marking=Marking(5000, "m", "up"),
+            errors=NO_ERRORS,
+        )
+    )
     marking = result.position.marking
     assert marking is not None
     assert (marking.low, marking.value, marking.high) == (
-        pytest.approx(5990.0, abs=1e-9), pytest.approx(6000.0, abs=1e-9),
-        pytest.approx(6010.0, abs=1e-9))
+        pytest.approx(5990.0, abs=1e-9),
+        pytest.approx(6000.0, abs=1e-9),
+        pytest.approx(6010.0, abs=1e-9),
+    )
     # 0.5 % counting down in feet: ±5 m = ±16.4042 ft (5 / 0.3048) around
     # 20 000 − 1000 / 0.3048 = 16 719.1601 ft
-    feet = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
-                              marking=Marking(20000, "ft", "down", tolerance_percent=0.5),
-                              errors=NO_ERRORS)).position.marking
+    feet = locate(
+        LocateInput(
+            otdr_distance_m=1020,
+            group_index=1.468,
+            helix_percent=2.0,
+            marking=Marking(20000, "ft", "down", tolerance_percent=0.5),
+            errors=NO_ERRORS,
+        )
+    ).position.marking
     assert feet is not None
     assert feet.high == pytest.approx(16719.1601 - 16.4042, abs=1e-3)
     assert feet.low == pytest.approx(16719.1601 + 16.4042, abs=1e-3)
     # with the sheath-length range too, root-sum-square: helix ±0.5 % on 1020 m of fibre moves
     # the sheath to 1020 / 1.015 = 1004.926 (+4.926 m) or 1020 / 1.025 = 995.122 (−4.878 m);
     # √(4.926² + 10²) = 11.147 m
-    both = locate(LocateInput(otdr_distance_m=1020, group_index=1.468, helix_percent=2.0,
-                              marking=Marking(5000, "m", "up"),
-                              errors=ErrorTerms(offset_m=0, scale_error_percent=0,
-                                                sample_spacing_m=0, group_index_uncertainty=0,
-                                                helix_uncertainty_percent=0.5))).position.marking
+    both = locate(
+        LocateInput(
+            otdr_distance_m=1020,
+            group_index=1.468,
+            helix_percent=2.0,
+            marking=Marking(5000, "m", "up"),
+            errors=ErrorTerms(
+                offset_m=0,
+                scale_error_percent=0,
+                sample_spacing_m=0,
+                group_index_uncertainty=0,
+                helix_uncertainty_percent=0.5,
+            ),
+        )
+    ).position.marking
     assert both is not None
     assert both.high - both.value == pytest.approx(11.147, abs=1e-3)
     with pytest.raises(InputError, match="marking tolerance"):
-        locate(LocateInput(otdr_distance_m=1020, group_index=1.468,
-                           marking=Marking(5000, "m", "up", tolerance_percent=-1)))
+        locate(
+            LocateInput(
+                otdr_distance_m=1020,
+                group_index=1.468,
+                marking=Marking(5000, "m", "up", tolerance_percent=-1),
+            )
+        )
 
 
 def test_two_ended_consistent_and_combined() -> None:
@@ -221,8 +302,14 @@ def test_two_ended_consistent_and_combined() -> None:
     # Tolerance with defaults (offset 1 m, sample 1 m): A's offset is common to from-A and the
     # total and cancels; B's own offset 1 m; three readings' sampling 1 m each:
     # √(1² + 1² + 1² + 1²) = 2 m (scale and index terms ≈ 0.0002 m)
-    result = locate(LocateInput(otdr_distance_m=3412, group_index=1.4677, helix_percent=0.0,
-                                two_ended=TwoEnded(1590, 5000)))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=3412,
+            group_index=1.4677,
+            helix_percent=0.0,
+            two_ended=TwoEnded(1590, 5000),
+        )
+    )
     two = result.two_ended
     assert two is not None
     assert two.discrepancy_m == pytest.approx(2.0, abs=1e-9)
@@ -239,8 +326,14 @@ def test_two_ended_consistent_and_combined() -> None:
 
 def test_two_ended_inconsistent_is_flagged() -> None:
     # 3412 + 1600 − 5000 = 12 m, far beyond ±2 m
-    result = locate(LocateInput(otdr_distance_m=3412, group_index=1.4677, helix_percent=0.0,
-                                two_ended=TwoEnded(1600, 5000)))
+    result = locate(
+        LocateInput(
+            otdr_distance_m=3412,
+            group_index=1.4677,
+            helix_percent=0.0,
+            two_ended=TwoEnded(1600, 5000),
+        )
+    )
     assert result.two_ended is not None and not result.two_ended.consistent
     assert any("Two-ended check fails" in w for w in result.warnings)
 
@@ -270,8 +363,14 @@ def test_uncertainty_is_the_root_sum_square_of_the_terms() -> None:
 def test_helix_uncertainty_dominates_a_long_bare_reading() -> None:
     # 5000 m fibre, helix 1.5 ± 0.5 %: sheath 5000/1.015 = 4926.108; at 1.0 %: 4950.495 (+24.387);
     # at 2.0 %: 4901.961 (−24.147); the term is the larger, 24.387 m
-    p = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=1.5,
-                           errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    p = locate(
+        LocateInput(
+            otdr_distance_m=5000,
+            group_index=1.468,
+            helix_percent=1.5,
+            errors=ErrorTerms(helix_uncertainty_percent=0.5),
+        )
+    ).position
     assert p.route_distance_m == pytest.approx(4926.108, abs=1e-3)
     terms = {c.name: c.route_m for c in p.contributions}
     assert terms["helix"] == pytest.approx(24.387, abs=1e-3)
@@ -290,17 +389,21 @@ def test_a_helix_not_given_widens_the_range_to_the_typical_helix() -> None:
     assert p.uncertainty_m == pytest.approx(145.631, abs=1e-3)
     assert any("allows for a helix of up to 3 %" in w for w in result.warnings)
     # a helix given (even 0 %) is taken at its word: no such term
-    given_zero = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0,
-                                    errors=NO_ERRORS)).position
+    given_zero = locate(
+        LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0, errors=NO_ERRORS)
+    ).position
     assert given_zero.uncertainty_m == pytest.approx(0.0, abs=1e-9)
 
 
-@pytest.mark.parametrize(("metres", "unit", "expected"), [
-    (1609.344, "mi", 1.0),  # international mile = 1609.344 m exactly (NIST SP 811)
-    (0.3048, "ft", 1.0),  # international foot = 0.3048 m exactly (NIST SP 811)
-    (3412.0, "km", 3.412),
-    (5.0, "m", 5.0),
-])
+@pytest.mark.parametrize(
+    ("metres", "unit", "expected"),
+    [
+        (1609.344, "mi", 1.0),  # international mile = 1609.344 m exactly (NIST SP 811)
+        (0.3048, "ft", 1.0),  # international foot = 0.3048 m exactly (NIST SP 811)
+        (3412.0, "km", 3.412),
+        (5.0, "m", 5.0),
+    ],
+)
 def test_output_units(metres: float, unit: str, expected: float) -> None:
     assert in_unit(metres, unit) == pytest.approx(expected, abs=1e-12)
 
@@ -316,35 +419,57 @@ def test_formatting_and_offsets() -> None:
         in_unit(1.0, "yd")
 
 
-@pytest.mark.parametrize(("inp", "message"), [
-    (LocateInput(otdr_distance_m=-5, group_index=1.468), "negative"),
-    (LocateInput(round_trip_time_s=-1e-6, group_index=1.468), "more than zero"),
-    (LocateInput(otdr_distance_m=100, group_index=0.9), "below 1"),
-    (LocateInput(otdr_distance_m=100, group_index=float("nan")), "not a finite number"),
-    (LocateInput(otdr_distance_m=100, index_set=float("inf"), group_index=1.46), "finite"),
-    (LocateInput(otdr_distance_m=100), "group index"),
-    (LocateInput(round_trip_time_s=1e-6, index_set=1.47), "needs the fibre's group index"),
-    (LocateInput(group_index=1.468), "either"),
-    (LocateInput(otdr_distance_m=1, round_trip_time_s=1e-6, group_index=1.468), "either"),
-    (LocateInput(otdr_distance_m=100, group_index=1.468, helix_percent=-1), "helix"),
-    (LocateInput(otdr_distance_m=100, group_index=1.468, slack=(SlackLoop(10, -2),)),
-     "slack cable length"),
-    (LocateInput(otdr_distance_m=100, group_index=1.468,
-                 landmarks=(Landmark("a", 500, 400), Landmark("b", 450, 600))), "not further"),
-    (LocateInput(otdr_distance_m=100, group_index=1.468,
-                 landmarks=(Landmark("a", 500, 400), Landmark("a", 900, 800))), "used twice"),
-    (LocateInput(otdr_distance_m=100, group_index=1.468, two_ended=TwoEnded(600, 500)),
-     "longer than the total"),
-    (LocateInput(otdr_distance_m=100, group_index=1.468,
-                 errors=ErrorTerms(sample_spacing_m=-1)), "sample spacing"),
-])
+@pytest.mark.parametrize(
+    ("inp", "message"),
+    [
+        (LocateInput(otdr_distance_m=-5, group_index=1.468), "negative"),
+        (LocateInput(round_trip_time_s=-1e-6, group_index=1.468), "more than zero"),
+        (LocateInput(otdr_distance_m=100, group_index=0.9), "below 1"),
+        (LocateInput(otdr_distance_m=100, group_index=float("nan")), "not a finite number"),
+        (LocateInput(otdr_distance_m=100, index_set=float("inf"), group_index=1.46), "finite"),
+        (LocateInput(otdr_distance_m=100), "group index"),
+        (LocateInput(round_trip_time_s=1e-6, index_set=1.47), "needs the fibre's group index"),
+        (LocateInput(group_index=1.468), "either"),
+        (LocateInput(otdr_distance_m=1, round_trip_time_s=1e-6, group_index=1.468), "either"),
+        (LocateInput(otdr_distance_m=100, group_index=1.468, helix_percent=-1), "helix"),
+        (
+            LocateInput(otdr_distance_m=100, group_index=1.468, slack=(SlackLoop(10, -2),)),
+            "slack cable length",
+        ),
+        (
+            LocateInput(
+                otdr_distance_m=100,
+                group_index=1.468,
+                landmarks=(Landmark("a", 500, 400), Landmark("b", 450, 600)),
+            ),
+            "not further",
+        ),
+        (
+            LocateInput(
+                otdr_distance_m=100,
+                group_index=1.468,
+                landmarks=(Landmark("a", 500, 400), Landmark("a", 900, 800)),
+            ),
+            "used twice",
+        ),
+        (
+            LocateInput(otdr_distance_m=100, group_index=1.468, two_ended=TwoEnded(600, 500)),
+            "longer than the total",
+        ),
+        (
+            LocateInput(
+                otdr_distance_m=100, group_index=1.468, errors=ErrorTerms(sample_spacing_m=-1)
+            ),
+            "sample spacing",
+        ),
+    ],
+)
 def test_bad_input_is_refused_with_a_message(inp: LocateInput, message: str) -> None:
     with pytest.raises(InputError, match=message):
         locate(inp)
 
 
-@given(st.floats(0, 1e5), st.lists(st.tuples(st.floats(0, 1e5), st.floats(0, 500)),
-                                   max_size=5))
+@given(st.floats(0, 1e5), st.lists(st.tuples(st.floats(0, 1e5), st.floats(0, 500)), max_size=5))
 def test_route_and_sheath_round_trip(route: float, loops: list[tuple[float, float]]) -> None:
     slack = tuple(SlackLoop(p, length) for p, length in loops)
     back, _ = route_from_cable(cable_at_route(route, slack), slack)
@@ -355,16 +480,28 @@ def test_extrapolation_carries_a_helix_term_for_the_unmeasured_stretch() -> None
     # one landmark HH 3 (1500 m OTDR, 1460 m route); fault 2040 m: ratio 1500/1460 = 1.027397,
     # 540 m of fibre past HH 3 = 525.600 m of sheath. With the helix ± 0.5 points the stretch may
     # be 525.600 / 0.995 = 528.241 (+2.641) or 525.600 / 1.005 = 522.985 (−2.615) m: term 2.641
-    p = locate(LocateInput(otdr_distance_m=2040, group_index=1.468, helix_percent=2.0,
-                           landmarks=(Landmark("HH 3", 1500, 1460),),
-                           errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    p = locate(
+        LocateInput(
+            otdr_distance_m=2040,
+            group_index=1.468,
+            helix_percent=2.0,
+            landmarks=(Landmark("HH 3", 1500, 1460),),
+            errors=ErrorTerms(helix_uncertainty_percent=0.5),
+        )
+    ).position
     assert p.route_distance_m == pytest.approx(1460 + 525.600, abs=1e-3)
     terms = {c.name: c.route_m for c in p.contributions}
     assert terms["helix beyond the landmarks"] == pytest.approx(2.641, abs=1e-3)
     # between landmarks the same term is zero: nothing is extrapolated
-    inside = locate(LocateInput(otdr_distance_m=1000, group_index=1.468, helix_percent=2.0,
-                                landmarks=(Landmark("HH 3", 1500, 1460),),
-                                errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+    inside = locate(
+        LocateInput(
+            otdr_distance_m=1000,
+            group_index=1.468,
+            helix_percent=2.0,
+            landmarks=(Landmark("HH 3", 1500, 1460),),
+            errors=ErrorTerms(helix_uncertainty_percent=0.5),
+        )
+    ).position
     assert "helix beyond the landmarks" not in {c.name for c in inside.contributions}
 
 
@@ -372,24 +509,36 @@ def test_before_the_first_landmark_is_extrapolated_and_named() -> None:
     # a launch cord left on: the panel at 150 m OTDR is route 0, closure 1 at 1150 m / 1000 m;
     # a reading of 100 m lies on the cord, before the panel
     marks = (Landmark("panel", 150, 0), Landmark("closure 1", 1150, 1000))
-    result = locate(LocateInput(otdr_distance_m=100, group_index=1.4677, landmarks=marks,
-                                errors=NO_ERRORS))
+    result = locate(
+        LocateInput(otdr_distance_m=100, group_index=1.4677, landmarks=marks, errors=NO_ERRORS)
+    )
     assert result.position.basis == "extrapolated"
     assert result.position.route_distance_m == 0.0
     assert any("Before the first landmark (panel)" in w for w in result.warnings)
 
 
-@given(st.floats(0, 2e5), st.floats(1.0, 2.0), st.floats(0, 5),
-       st.lists(st.tuples(st.floats(1, 1e5), st.floats(0.9, 1.1)), max_size=4))
+@given(
+    st.floats(0, 2e5),
+    st.floats(1.0, 2.0),
+    st.floats(0, 5),
+    st.lists(st.tuples(st.floats(1, 1e5), st.floats(0.9, 1.1)), max_size=4),
+)
 def test_range_is_between_the_largest_term_and_the_worst_case(
-        shown: float, index: float, helix: float, marks: list[tuple[float, float]]) -> None:
+    shown: float, index: float, helix: float, marks: list[tuple[float, float]]
+) -> None:
     # landmarks made consistent: route increasing, OTDR = route × a ratio near 1
     routes = sorted({round(r, 3) for r, _ in marks})
     landmarks = tuple(Landmark(f"L{i}", r * ratio_of(i, marks), r) for i, r in enumerate(routes))
     try:
-        p = locate(LocateInput(otdr_distance_m=shown, group_index=index, helix_percent=helix,
-                               landmarks=landmarks,
-                               errors=ErrorTerms(helix_uncertainty_percent=0.5))).position
+        p = locate(
+            LocateInput(
+                otdr_distance_m=shown,
+                group_index=index,
+                helix_percent=helix,
+                landmarks=landmarks,
+                errors=ErrorTerms(helix_uncertainty_percent=0.5),
+            )
+        ).position
     except InputError:
         return  # e.g. two landmarks whose OTDR distances do not increase: refused with a message
     largest = max((c.route_m for c in p.contributions), default=0.0)

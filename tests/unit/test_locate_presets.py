@@ -26,7 +26,8 @@ def test_every_cable_is_typical_with_a_source_and_an_uncertainty() -> None:
 def test_a_cable_preset_drives_the_sheath_length() -> None:
     cable = load_presets().find("cables", "stranded loose tube")
     # 1.5 ± 0.7 % (common practice): 2030 m of fibre / 1.015 = 2000 m of sheath
-    result = locate(LocateInput(otdr_distance_m=2030, group_index=1.4677,
-                                helix_percent=cable.helix_percent))
+    result = locate(
+        LocateInput(otdr_distance_m=2030, group_index=1.4677, helix_percent=cable.helix_percent)
+    )
     assert cable.helix_percent == pytest.approx(1.5, abs=1e-12)
     assert result.position.sheath_distance_m == pytest.approx(2000.0, abs=1e-9)

@@ -33,8 +33,14 @@ def test_strip_to_scale_and_legend_in_route_order() -> None:
     assert lines[1].endswith("4305.0 m")
     legend = lines[2:]
     assert [line.split()[2] for line in legend] == ["├", "1", "∞", "X", "2", "3"]
-    assert [line.split()[3] for line in legend] == ["start", "closure", "slack", "fault,",
-                                                     "closure", "handhole"]
+    assert [line.split()[3] for line in legend] == [
+        "start",
+        "closure",
+        "slack",
+        "fault,",
+        "closure",
+        "handhole",
+    ]
     assert "fault, look 2700.0 m–2777.2 m" in legend[3]
     assert legend[-1].endswith("…")  # a long name is cut, never wrapped
 

@@ -38,25 +38,32 @@ def test_required_fibre_types_are_shipped():
         assert name in lib.fibres
 
 
-@pytest.mark.parametrize(("fibre", "nm", "grade", "db_per_km"), [
-    ("OM3", 850, "max", 3.0),   # ANSI/TIA-568.3-D (2016) Table 1 (from memory)
-    ("OM3", 1300, "max", 1.5),  # ANSI/TIA-568.3-D (2016) Table 1 (from memory)
-    ("OS2", 1310, "max", 0.4),  # ISO/IEC 11801-1:2017 OS2 (from memory)
-    ("OS1a", 1550, "max", 1.0),  # ISO/IEC 11801-1:2017 OS1a (from memory)
-    ("G.652.D", 1550, "max", 0.3),  # ITU-T G.652 (11/2016) G.652.D cable (from memory)
-    ("G.652.D", 1625, "max", 0.4),  # ITU-T G.652 (11/2016) 1310–1625 nm maximum (from memory)
-])
+@pytest.mark.parametrize(
+    ("fibre", "nm", "grade", "db_per_km"),
+    [
+        ("OM3", 850, "max", 3.0),  # ANSI/TIA-568.3-D (2016) Table 1 (from memory)
+        ("OM3", 1300, "max", 1.5),  # ANSI/TIA-568.3-D (2016) Table 1 (from memory)
+        ("OS2", 1310, "max", 0.4),  # ISO/IEC 11801-1:2017 OS2 (from memory)
+        ("OS1a", 1550, "max", 1.0),  # ISO/IEC 11801-1:2017 OS1a (from memory)
+        ("G.652.D", 1550, "max", 0.3),  # ITU-T G.652 (11/2016) G.652.D cable (from memory)
+        ("G.652.D", 1625, "max", 0.4),  # ITU-T G.652 (11/2016) 1310–1625 nm maximum (from memory)
+    ],
+)
 def test_attenuation_values(fibre, nm, grade, db_per_km):
     assert load_presets().fibres[fibre].attenuation_db_per_km(nm, grade) == pytest.approx(
-        db_per_km, abs=1e-12)
+        db_per_km, abs=1e-12
+    )
 
 
-@pytest.mark.parametrize(("fibre", "nm", "index"), [
-    ("G.652.D", 1310, 1.467),  # typical G.652 group index (from memory)
-    ("G.652.D", 1550, 1.468),  # typical (from memory)
-    ("OM3", 850, 1.49),  # typical 50 µm graded index (from memory)
-    ("OM3", 1300, 1.48),  # typical (from memory)
-])
+@pytest.mark.parametrize(
+    ("fibre", "nm", "index"),
+    [
+        ("G.652.D", 1310, 1.467),  # typical G.652 group index (from memory)
+        ("G.652.D", 1550, 1.468),  # typical (from memory)
+        ("OM3", 850, 1.49),  # typical 50 µm graded index (from memory)
+        ("OM3", 1300, 1.48),  # typical (from memory)
+    ],
+)
 def test_group_index_typical_values(fibre, nm, index):
     assert load_presets().fibres[fibre].group_index(nm) == pytest.approx(index, abs=0.01)
 
@@ -83,7 +90,10 @@ def test_find_forgives_case_and_spacing():
 
 def test_user_preset_extends_and_overrides(isolated_dirs):
     config = isolated_dirs["config"]
-    write(config, "mine.toml", """
+    write(
+        config,
+        "mine.toml",
+        """
 [[fibres]]
 name = "OS2"
 family = "singlemode"
@@ -94,7 +104,8 @@ source = "our cable's data sheet"
 name = "site low-loss"
 loss_max_db = 0.35
 source = "our acceptance rule"
-""")
+""",
+    )
     lib = load_presets(config)
     assert lib.problems == []
     assert lib.fibres["OS2"].attenuation_db_per_km(1310) == 0.35
@@ -106,7 +117,10 @@ source = "our acceptance rule"
 def test_bad_file_and_bad_entries_are_reported_and_the_rest_load(isolated_dirs):
     config = isolated_dirs["config"]
     write(config, "broken.toml", "[[fibres]\nname = ")
-    write(config, "mixed.toml", """
+    write(
+        config,
+        "mixed.toml",
+        """
 [[fibres]]
 name = "good one"
 family = "singlemode"
@@ -141,13 +155,15 @@ source = "test"
 
 [[widgets]]
 name = "x"
-""")
+""",
+    )
     lib = load_presets(config)
     problems = "\n".join(lib.problems)
     assert "broken.toml: is not valid TOML" in problems
     assert "mixed.toml: fibres entry 'typo': unknown field(s) sauce" in problems
-    assert ("fibres entry 'upside down': typical attenuation 0.5 dB/km at 1310 nm is above"
-            in problems)
+    assert (
+        "fibres entry 'upside down': typical attenuation 0.5 dB/km at 1310 nm is above" in problems
+    )
     assert "connectors entry 'nan loss': 'loss_max_db' must be a finite number" in problems
     assert "transceivers entry 'backwards': 'tx_min_dbm' is above 'tx_max_dbm'" in problems
     assert "unknown section 'widgets'" in problems
@@ -158,11 +174,15 @@ name = "x"
 
 def test_missing_fields_named(tmp_path):
     path = tmp_path / "x.toml"
-    path.write_text('[[applications]]\nname = "10G thing"\nwavelengths_nm = [850]\n'
-                    'limits.OM3 = { reach_m = 300 }\nsource = "x"\n', encoding="utf-8")
+    path.write_text(
+        '[[applications]]\nname = "10G thing"\nwavelengths_nm = [850]\n'
+        'limits.OM3 = { reach_m = 300 }\nsource = "x"\n',
+        encoding="utf-8",
+    )
     lib = load_file(path)
     assert lib.problems == [
-        f"{path}: applications entry '10G thing': limits for 'OM3': 'loss_max_db' is missing"]
+        f"{path}: applications entry '10G thing': limits for 'OM3': 'loss_max_db' is missing"
+    ]
 
 
 def test_cache_rereads_a_changed_file(isolated_dirs):
@@ -173,6 +193,7 @@ def test_cache_rereads_a_changed_file(isolated_dirs):
     assert load_presets(config) is load_presets(config)  # cached
     path.write_text(text.format(0.15), encoding="utf-8")
     import os
+
     st = path.stat()
     os.utime(path, ns=(st.st_atime_ns, st.st_mtime_ns + 1_000_000))
     assert load_presets(config).splices["ours"].loss_max_db == 0.15
@@ -186,9 +207,11 @@ def test_budget_modules_import_without_the_ui_and_build_nothing():
     import subprocess
     import sys
 
-    code = ("import sys, fieldkit.presets, fieldkit.linkspec, fieldkit.calc.budget, "
-            "fieldkit.calc.coupling, fieldkit.commands.budget, fieldkit.commands.presets_cmd; "
-            "print('textual' in sys.modules, 'pint' in sys.modules)")
+    code = (
+        "import sys, fieldkit.presets, fieldkit.linkspec, fieldkit.calc.budget, "
+        "fieldkit.calc.coupling, fieldkit.commands.budget, fieldkit.commands.presets_cmd; "
+        "print('textual' in sys.modules, 'pint' in sys.modules)"
+    )
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert run.returncode == 0, run.stderr
     assert run.stdout.split() == ["False", "False"]

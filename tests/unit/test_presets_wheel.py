@@ -15,16 +15,32 @@ ROOT = Path(__file__).resolve().parents[2]
 def test_presets_load_from_an_installed_wheel(tmp_path):
     wheel_dir = tmp_path / "wheel"
     build = subprocess.run(
-        [sys.executable, "-m", "pip", "wheel", "--no-deps", "--no-build-isolation", "-q",
-         "-w", str(wheel_dir), str(ROOT)],
-        capture_output=True, text=True, timeout=120)
+        [
+            sys.executable,
+            "-m",
+            "pip",
+            "wheel",
+            "--no-deps",
+            "--no-build-isolation",
+            "-q",
+            "-w",
+            str(wheel_dir),
+            str(ROOT),
+        ],
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
     assert build.returncode == 0, build.stderr
     wheel = next(wheel_dir.glob("fieldkit-*.whl"))
     with zipfile.ZipFile(wheel) as archive:
         assert "fieldkit/_presets/fibres.toml" in archive.namelist()
     venv = tmp_path / "venv"
-    subprocess.run([sys.executable, "-m", "venv", "--system-site-packages", "--without-pip",
-                    str(venv)], check=True, timeout=60)
+    subprocess.run(
+        [sys.executable, "-m", "venv", "--system-site-packages", "--without-pip", str(venv)],
+        check=True,
+        timeout=60,
+    )
     python = venv / "bin" / "python"
     target = tmp_path / "site"
     with zipfile.ZipFile(wheel) as archive:
@@ -35,8 +51,13 @@ def test_presets_load_from_an_installed_wheel(tmp_path):
         "print(p.shipped_dir()); print(lib.fibres['G.652.D'].group_index(1310)); "
         "print(len(lib.problems))"
     )
-    run = subprocess.run([str(python), "-c", code, str(target)], capture_output=True, text=True,
-                         timeout=60, cwd=tmp_path)
+    run = subprocess.run(
+        [str(python), "-c", code, str(target)],
+        capture_output=True,
+        text=True,
+        timeout=60,
+        cwd=tmp_path,
+    )
     assert run.returncode == 0, run.stderr
     folder, index, problems = run.stdout.split()
     assert folder == str(target / "fieldkit" / "_presets")

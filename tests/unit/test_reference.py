@@ -14,6 +14,7 @@ from fieldkit.calc.units import InputError
 
 # -- methods -----------------------------------------------------------------------------------
 
+
 # IEC 61280-4-1 (multimode) and IEC 61280-4-2 (single-mode), reference methods (from memory):
 # one-cord reference includes both end connections, two-cord one, three-cord neither.
 # TIA-526-14-B / TIA-526-7 (from memory): Method B = one jumper, Method A = two jumpers,
@@ -61,6 +62,7 @@ def test_unknown_method_is_refused_with_the_accepted_names(text: str) -> None:
 
 # -- arithmetic against the dBm definition -----------------------------------------------------
 
+
 # ITU-R V.574-5: L[dBm] = 10·log10(P / 1 mW); a ratio in dB is 10·log10(P1/P2).
 @pytest.mark.parametrize(
     ("text", "expected_dbm"),
@@ -93,7 +95,8 @@ def test_insertion_loss_is_reference_minus_reading() -> None:
     assert reference_dbm == pytest.approx(-3.010300, abs=1e-6)
     assert reading_dbm == pytest.approx(-20.0, abs=1e-9)
     assert ref.insertion_loss_db(reference_dbm, reading_dbm) == pytest.approx(
-        10 * math.log10(50), abs=1e-9)
+        10 * math.log10(50), abs=1e-9
+    )
     assert ref.insertion_loss_db(reference_dbm, reading_dbm) == pytest.approx(16.98970, abs=1e-5)
     # dBm straight: -7.20 − (-9.65) = 2.45 dB.
     assert ref.insertion_loss_db(-7.20, -9.65) == pytest.approx(2.45, abs=1e-9)
@@ -109,6 +112,7 @@ def test_bidirectional_average() -> None:
 
 # -- limits ------------------------------------------------------------------------------------
 
+
 # Hand computation: a budget of 3.75 dB counting both end connections at 0.75 dB each
 # (TIA-568.3-D: 0.75 dB max per mated pair, from memory). One-cord keeps both: 3.75 dB;
 # two-cord drops one: 3.00 dB; three-cord drops both: 2.25 dB.
@@ -116,8 +120,9 @@ def test_bidirectional_average() -> None:
     ("method", "limit_db"),
     [(Method.ONE_CORD, 3.75), (Method.TWO_CORD, 3.00), (Method.THREE_CORD, 2.25)],
 )
-def test_budget_limit_counts_the_end_connections_of_the_method(method: Method,
-                                                               limit_db: float) -> None:
+def test_budget_limit_counts_the_end_connections_of_the_method(
+    method: Method, limit_db: float
+) -> None:
     assert ref.method_limit_db(3.75, 0.75, method) == pytest.approx(limit_db, abs=1e-9)
 
 
@@ -167,8 +172,9 @@ def test_one_failing_direction_fails_the_fibre() -> None:
 
 def test_directions_far_apart_warn() -> None:
     # DIRECTION_SPREAD_DB = 0.5 dB (common practice): 1.0 vs 1.8 differ by 0.8 dB.
-    assert any("differ by 0.80 dB" in w for w in ref.judge_fibre({"A->B": 1.0, "B->A": 1.8},
-                                                                  3.0).warnings)
+    assert any(
+        "differ by 0.80 dB" in w for w in ref.judge_fibre({"A->B": 1.0, "B->A": 1.8}, 3.0).warnings
+    )
     assert not ref.judge_fibre({"A->B": 1.0, "B->A": 1.3}, 3.0).warnings
 
 
@@ -178,6 +184,7 @@ def test_bad_direction_is_refused() -> None:
 
 
 # -- drift ---------------------------------------------------------------------------------------
+
 
 def test_drift_is_recheck_minus_initial() -> None:
     # Common practice tolerance: 0.1 dB single-mode (1310 nm), 0.2 dB multimode (850 nm).
@@ -219,6 +226,7 @@ def test_results_since_the_last_good_reference_are_in_doubt() -> None:
 
 # -- plausibility ----------------------------------------------------------------------------
 
+
 def test_reference_far_below_the_source_warns_with_what_to_check() -> None:
     # Typical single-mode laser source -7 dBm (common practice); -12.4 dBm is 5.4 dB below.
     warnings = ref.reference_warnings(-12.4, wavelength_nm=1310)
@@ -242,9 +250,11 @@ def test_multimode_reference_asks_for_the_launch_condition() -> None:
 
 # -- summary ---------------------------------------------------------------------------------
 
+
 def test_summary_counts_and_worst_fibre() -> None:
     readings = [
-        (1, 1310.0, "A->B", 1.0), (1, 1310.0, "B->A", 1.2),
+        (1, 1310.0, "A->B", 1.0),
+        (1, 1310.0, "B->A", 1.2),
         (2, 1310.0, "A->B", 3.4),  # fails 3.0
         (3, 1310.0, "A->B", -0.2),  # reference problem
         (1, 1550.0, "A->B", 0.8),

@@ -20,34 +20,63 @@ def _link():  # noqa: ANN202 - a pydantic Link
 
 def test_two_directions_keep_their_own_references() -> None:
     link = _link()
-    a = meter_log.reuse_or_add_reference(link, wavelength_nm=1310, level_dbm=-7.2,
-                                         method=Method.ONE_CORD)
-    b = meter_log.reuse_or_add_reference(link, wavelength_nm=1310, level_dbm=-6.9,
-                                         method=Method.ONE_CORD)
-    again_a = meter_log.reuse_or_add_reference(link, wavelength_nm=1310, level_dbm=-7.2,
-                                               method=Method.ONE_CORD)
+    a = meter_log.reuse_or_add_reference(
+        link, wavelength_nm=1310, level_dbm=-7.2, method=Method.ONE_CORD
+    )
+    b = meter_log.reuse_or_add_reference(
+        link, wavelength_nm=1310, level_dbm=-6.9, method=Method.ONE_CORD
+    )
+    again_a = meter_log.reuse_or_add_reference(
+        link, wavelength_nm=1310, level_dbm=-7.2, method=Method.ONE_CORD
+    )
     assert a.id != b.id and again_a.id == a.id
     assert len(link.references) == 2
     # Another method is another reference.
-    c = meter_log.reuse_or_add_reference(link, wavelength_nm=1310, level_dbm=-7.2,
-                                         method=Method.TWO_CORD)
+    c = meter_log.reuse_or_add_reference(
+        link, wavelength_nm=1310, level_dbm=-7.2, method=Method.TWO_CORD
+    )
     assert c.id not in (a.id, b.id)
 
 
 def test_put_result_computes_loss_flags_and_replaces_a_correction() -> None:
     link = _link()
-    reference = meter_log.add_reference(link, wavelength_nm=1550, level_dbm=-7.0,
-                                        method=Method.ONE_CORD, at=T0)
-    first = meter_log.put_result(link, fibre=5, wavelength_nm=1550, direction="A->B",
-                                 reading_dbm=-9.0, reference=reference, limit_db=1.5, at=T0)
+    reference = meter_log.add_reference(
+        link, wavelength_nm=1550, level_dbm=-7.0, method=Method.ONE_CORD, at=T0
+    )
+    first = meter_log.put_result(
+        link,
+        fibre=5,
+        wavelength_nm=1550,
+        direction="A->B",
+        reading_dbm=-9.0,
+        reference=reference,
+        limit_db=1.5,
+        at=T0,
+    )
     # -7.0 − (-9.0) = 2.0 dB > 1.5 dB: fail.
     assert first.loss_db == pytest.approx(2.0, abs=1e-12) and first.passed is False
-    fixed = meter_log.put_result(link, fibre=5, wavelength_nm=1550, direction="A->B",
-                                 reading_dbm=-8.0, reference=reference, limit_db=1.5, at=T0)
+    fixed = meter_log.put_result(
+        link,
+        fibre=5,
+        wavelength_nm=1550,
+        direction="A->B",
+        reading_dbm=-8.0,
+        reference=reference,
+        limit_db=1.5,
+        at=T0,
+    )
     assert len(link.results) == 1 and fixed.id == first.id
     assert fixed.loss_db == pytest.approx(1.0, abs=1e-12) and fixed.passed is True
-    negative = meter_log.put_result(link, fibre=6, wavelength_nm=1550, direction="A->B",
-                                    reading_dbm=-6.8, reference=reference, limit_db=1.5, at=T0)
+    negative = meter_log.put_result(
+        link,
+        fibre=6,
+        wavelength_nm=1550,
+        direction="A->B",
+        reading_dbm=-6.8,
+        reference=reference,
+        limit_db=1.5,
+        at=T0,
+    )
     assert negative.flags == ["negative-loss"] and negative.passed is None
     assert meter_log.remove_result(link, fibre=6, wavelength_nm=1550, direction="A->B")
     assert not meter_log.remove_result(link, fibre=6, wavelength_nm=1550, direction="A->B")
@@ -55,39 +84,71 @@ def test_put_result_computes_loss_flags_and_replaces_a_correction() -> None:
 
 def test_recheck_puts_results_since_the_last_good_check_in_doubt() -> None:
     link = _link()
-    reference = meter_log.add_reference(link, wavelength_nm=1310, level_dbm=-7.0,
-                                        method=Method.ONE_CORD, at=T0)
-    early = meter_log.put_result(link, fibre=1, wavelength_nm=1310, direction="A->B",
-                                 reading_dbm=-8.0, reference=reference, limit_db=None,
-                                 at=T0 + timedelta(minutes=10))
-    good = meter_log.recheck_reference(link, wavelength_nm=1310, level_dbm=-7.05,
-                                       at=T0 + timedelta(hours=1))
+    reference = meter_log.add_reference(
+        link, wavelength_nm=1310, level_dbm=-7.0, method=Method.ONE_CORD, at=T0
+    )
+    early = meter_log.put_result(
+        link,
+        fibre=1,
+        wavelength_nm=1310,
+        direction="A->B",
+        reading_dbm=-8.0,
+        reference=reference,
+        limit_db=None,
+        at=T0 + timedelta(minutes=10),
+    )
+    good = meter_log.recheck_reference(
+        link, wavelength_nm=1310, level_dbm=-7.05, at=T0 + timedelta(hours=1)
+    )
     # -7.05 − (-7.00) = -0.05 dB, within 0.1 dB (single-mode, common practice).
     assert good.drift.within and good.in_doubt_ids == []
-    late = meter_log.put_result(link, fibre=2, wavelength_nm=1310, direction="A->B",
-                                reading_dbm=-8.0, reference=reference, limit_db=None,
-                                at=T0 + timedelta(hours=2))
-    bad = meter_log.recheck_reference(link, wavelength_nm=1310, level_dbm=-7.3,
-                                      at=T0 + timedelta(hours=3))
+    late = meter_log.put_result(
+        link,
+        fibre=2,
+        wavelength_nm=1310,
+        direction="A->B",
+        reading_dbm=-8.0,
+        reference=reference,
+        limit_db=None,
+        at=T0 + timedelta(hours=2),
+    )
+    bad = meter_log.recheck_reference(
+        link, wavelength_nm=1310, level_dbm=-7.3, at=T0 + timedelta(hours=3)
+    )
     # -7.30 − (-7.00) = -0.30 dB: beyond; only the result after the good check is in doubt.
     assert bad.drift.drift_db == pytest.approx(-0.30, abs=1e-9) and not bad.drift.within
     assert bad.in_doubt_ids == [late.id]
     assert reference.in_doubt_since == T0 + timedelta(hours=1)
     assert not result_in_doubt(link, early) and result_in_doubt(link, late)
     # A reading taken after the bad recheck against the same reference is flagged at once.
-    after = meter_log.put_result(link, fibre=3, wavelength_nm=1310, direction="A->B",
-                                 reading_dbm=-8.0, reference=reference, limit_db=None,
-                                 at=T0 + timedelta(hours=4))
+    after = meter_log.put_result(
+        link,
+        fibre=3,
+        wavelength_nm=1310,
+        direction="A->B",
+        reading_dbm=-8.0,
+        reference=reference,
+        limit_db=None,
+        at=T0 + timedelta(hours=4),
+    )
     assert "reference-in-doubt" in after.flags
     with pytest.raises(KeyError, match="no reference"):
         meter_log.recheck_reference(link, wavelength_nm=1550, level_dbm=-7.0)
 
 
-def _budget(description: dict[str, object], items: list[tuple[str, float]],
-            loss_db: float) -> BudgetRecord:
-    return BudgetRecord(description=description, wavelengths=[BudgetWavelength(
-        wavelength_nm=1310, loss_db=loss_db,
-        items=[BudgetItem(name=n, loss_db=v) for n, v in items])])
+def _budget(
+    description: dict[str, object], items: list[tuple[str, float]], loss_db: float
+) -> BudgetRecord:
+    return BudgetRecord(
+        description=description,
+        wavelengths=[
+            BudgetWavelength(
+                wavelength_nm=1310,
+                loss_db=loss_db,
+                items=[BudgetItem(name=n, loss_db=v) for n, v in items],
+            )
+        ],
+    )
 
 
 @pytest.mark.parametrize(
@@ -98,13 +159,17 @@ def _budget(description: dict[str, object], items: list[tuple[str, float]],
 )
 def test_budget_limit_of_a_saved_budget(method: Method, limit_db: float) -> None:
     link = _link()
-    link.budget = _budget({"connector_count": 4, "connector_loss_db": 0.5},
-                          [("fibre", 3.5), ("4 mated connector pairs", 2.0)], 5.5)
+    link.budget = _budget(
+        {"connector_count": 4, "connector_loss_db": 0.5},
+        [("fibre", 3.5), ("4 mated connector pairs", 2.0)],
+        5.5,
+    )
     found = meter_log.budget_limit_db(link, 1310, method)
     assert found is not None and found[0] == pytest.approx(limit_db, abs=1e-9)
     # Without connector_loss_db: the connectors line divided by the count (2.0 / 4 = 0.5 dB).
-    link.budget = _budget({"connectors": 4}, [("fibre", 3.5), ("4 mated connector pairs", 2.0)],
-                          5.5)
+    link.budget = _budget(
+        {"connectors": 4}, [("fibre", 3.5), ("4 mated connector pairs", 2.0)], 5.5
+    )
     found = meter_log.budget_limit_db(link, 1310, method)
     assert found is not None and found[0] == pytest.approx(limit_db, abs=1e-9)
     assert meter_log.budget_limit_db(link, 1550, method) is None

@@ -33,8 +33,10 @@ _DEFAULT_UNITS = [None, "dBm", "dB", "m", "nm", "s", "Hz", "dB/km"]
 # the parser's corners (signs, separators, exponents, unit letters) far more often than
 # arbitrary Unicode does.
 _FIELD_TEXT = st.text(
-    alphabet=st.sampled_from(list("0123456789.,+-eE /%'dDbBmMwWkKuUnNfFtTiIaAhHzZsS")
-                             + ["\u2212", "\u00b5", "\u03bc", "\u00a0", "\u221e"]),
+    alphabet=st.sampled_from(
+        list("0123456789.,+-eE /%'dDbBmMwWkKuUnNfFtTiIaAhHzZsS")
+        + ["\u2212", "\u00b5", "\u03bc", "\u00a0", "\u221e"]
+    ),
     max_size=24,
 )
 
@@ -60,14 +62,18 @@ def test_parse_number_refuses_or_gives_a_finite_number(text: str) -> None:
     _refused_or_finite(parse_number, text, what="field")
 
 
-@given(st.one_of(st.text(max_size=40), _FIELD_TEXT), st.sampled_from(_KINDS),
-       st.sampled_from(_DEFAULT_UNITS))
+@given(
+    st.one_of(st.text(max_size=40), _FIELD_TEXT),
+    st.sampled_from(_KINDS),
+    st.sampled_from(_DEFAULT_UNITS),
+)
 @example("1e308 dBm", Kind.POWER, None)
 @example("-7,5", Kind.POWER, "dBm")
 @example("5 MW", Kind.POWER, None)
 @example("0.35 dB/", Kind.ATTENUATION, None)
-def test_parse_with_a_kind_refuses_or_gives_that_kind(text: str, kind: Kind,
-                                                      default_unit: str | None) -> None:
+def test_parse_with_a_kind_refuses_or_gives_that_kind(
+    text: str, kind: Kind, default_unit: str | None
+) -> None:
     try:
         value = parse(text, kind, default_unit=default_unit, what="field")
     except InputError as exc:
@@ -128,12 +134,15 @@ def test_a_decimal_comma_is_never_a_thousands_guess(whole: int, frac: str, sign:
         assert number == pytest.approx(dotted, rel=1e-15, abs=0.0)
 
 
-@given(st.floats(min_value=-60, max_value=30, allow_nan=False).map(lambda x: round(x, 3)),
-       st.sampled_from(["dBm", "dbm", "DBM", "DbM"]),
-       st.sampled_from(["-", "\u2212", "\u2012", "\u2013", "\ufe63", "\uff0d"]),
-       st.sampled_from(["", " ", "\u00a0", "\u202f"]))
-def test_minus_signs_spaces_and_dbm_case_all_read_the_same(level: float, unit: str, minus: str,
-                                                           space: str) -> None:
+@given(
+    st.floats(min_value=-60, max_value=30, allow_nan=False).map(lambda x: round(x, 3)),
+    st.sampled_from(["dBm", "dbm", "DBM", "DbM"]),
+    st.sampled_from(["-", "\u2212", "\u2012", "\u2013", "\ufe63", "\uff0d"]),
+    st.sampled_from(["", " ", "\u00a0", "\u202f"]),
+)
+def test_minus_signs_spaces_and_dbm_case_all_read_the_same(
+    level: float, unit: str, minus: str, space: str
+) -> None:
     assume(level != 0)
     typed = f"{minus if level < 0 else ''}{abs(level)}{space}{unit}"
     value = parse(typed, Kind.POWER, what="level")
@@ -142,8 +151,10 @@ def test_minus_signs_spaces_and_dbm_case_all_read_the_same(level: float, unit: s
 
 
 @_NO_DEADLINE
-@given(st.floats(min_value=1e-3, max_value=1e6, allow_nan=False),
-       st.sampled_from(["uW", "\u00b5W", "\u03bcW", "microwatts"]))
+@given(
+    st.floats(min_value=1e-3, max_value=1e6, allow_nan=False),
+    st.sampled_from(["uW", "\u00b5W", "\u03bcW", "microwatts"]),
+)
 def test_every_spelling_of_micro_is_micro(power: float, unit: str) -> None:
     value = parse(f"{power!r} {unit}", Kind.POWER, what="power")
     # 1 µW = 1e-3 mW (SI prefix micro = 1e-6)

@@ -32,21 +32,62 @@ EXTRA_CHARS = QUANTITY_CHARS[:-2] + "=;:()]*"
 
 #: Item kinds: what the list shows and what each field of the editor means for it.
 KINDS: dict[str, dict[str, str]] = {
-    "fibre": {"title": "Fibre", "preset": "Fibre", "value": "Length", "extra": "dB/km",
-              "value_hint": "1.2 km, 3900 ft", "extra_hint": "0.35 dB/km or 1310=0.35 dB/km; "
-              "1550=0.22 dB/km"},
-    "connectors": {"title": "Connectors", "preset": "Grade", "value": "Pairs", "extra": "Each",
-                   "value_hint": "mated pairs incl. both ends", "extra_hint": "0.5 dB"},
-    "splices": {"title": "Splices", "preset": "Grade", "value": "Count", "extra": "Each",
-                "value_hint": "6", "extra_hint": "0.1 dB"},
-    "splitter": {"title": "Splitter", "preset": "Preset", "value": "Split", "extra": "Excess",
-                 "value_hint": "1x32", "extra_hint": "2.0 dB"},
-    "component": {"title": "Component", "preset": "Preset", "value": "Count", "extra": "",
-                  "value_hint": "1", "extra_hint": ""},
-    "attenuator": {"title": "Attenuator", "preset": "", "value": "Loss", "extra": "",
-                   "value_hint": "5 dB", "extra_hint": ""},
-    "other": {"title": "Other loss", "preset": "", "value": "Loss", "extra": "Name",
-              "value_hint": "0.5 dB", "extra_hint": "patch cord, closure ..."},
+    "fibre": {
+        "title": "Fibre",
+        "preset": "Fibre",
+        "value": "Length",
+        "extra": "dB/km",
+        "value_hint": "1.2 km, 3900 ft",
+        "extra_hint": "0.35 dB/km or 1310=0.35 dB/km; 1550=0.22 dB/km",
+    },
+    "connectors": {
+        "title": "Connectors",
+        "preset": "Grade",
+        "value": "Pairs",
+        "extra": "Each",
+        "value_hint": "mated pairs incl. both ends",
+        "extra_hint": "0.5 dB",
+    },
+    "splices": {
+        "title": "Splices",
+        "preset": "Grade",
+        "value": "Count",
+        "extra": "Each",
+        "value_hint": "6",
+        "extra_hint": "0.1 dB",
+    },
+    "splitter": {
+        "title": "Splitter",
+        "preset": "Preset",
+        "value": "Split",
+        "extra": "Excess",
+        "value_hint": "1x32",
+        "extra_hint": "2.0 dB",
+    },
+    "component": {
+        "title": "Component",
+        "preset": "Preset",
+        "value": "Count",
+        "extra": "",
+        "value_hint": "1",
+        "extra_hint": "",
+    },
+    "attenuator": {
+        "title": "Attenuator",
+        "preset": "",
+        "value": "Loss",
+        "extra": "",
+        "value_hint": "5 dB",
+        "extra_hint": "",
+    },
+    "other": {
+        "title": "Other loss",
+        "preset": "",
+        "value": "Loss",
+        "extra": "Name",
+        "value_hint": "0.5 dB",
+        "extra_hint": "patch cord, closure ...",
+    },
 }
 ADD_KINDS = ("fibre", "splices", "splitter", "component", "attenuator", "other", "connectors")
 
@@ -66,15 +107,20 @@ def attenuation_entry(text: str) -> Any:
     if parts and all(pairs):
         return {m.group(1): m.group(2) for m in pairs if m}
     if len(parts) > 1 or any(pairs):
-        raise InputError("attenuation: give one coefficient, or NM=COEF for each wavelength "
-                         "separated by ';'")
+        raise InputError(
+            "attenuation: give one coefficient, or NM=COEF for each wavelength separated by ';'"
+        )
     return text
 
 
 def item_entry(item: dict[str, str]) -> tuple[str, Any]:
     """Where an item goes in the link description, and its entry there."""
-    kind, preset, value, extra = item["kind"], item.get("preset") or "", item.get("value", ""), \
-        item.get("extra", "")
+    kind, preset, value, extra = (
+        item["kind"],
+        item.get("preset") or "",
+        item.get("value", ""),
+        item.get("extra", ""),
+    )
     if kind == "fibre":
         seg: dict[str, Any] = {"length": value}
         if preset == TYPED:
@@ -108,8 +154,12 @@ def item_entry(item: dict[str, str]) -> tuple[str, Any]:
 #: What a count means when it is left empty (the link description's own defaults).
 _EMPTY_COUNT = {"connectors": "2", "splices": "0", "component": "1"}
 #: What each item's second field is called in a prompt.
-_EXTRA_WORD = {"fibre": "attenuation", "connectors": "loss each", "splices": "loss each",
-               "splitter": "excess loss"}
+_EXTRA_WORD = {
+    "fibre": "attenuation",
+    "connectors": "loss each",
+    "splices": "loss each",
+    "splitter": "excess loss",
+}
 
 
 def missing_entry(items: list[dict[str, str]]) -> str | None:
@@ -119,10 +169,15 @@ def missing_entry(items: list[dict[str, str]]) -> str | None:
         kind = item["kind"]
         title = KINDS[kind]["title"]
         if not item.get("value", "").strip() and kind not in _EMPTY_COUNT:
-            return f"Type the {KINDS[kind]['value'].lower()} of item {index} ({title}) to see " \
+            return (
+                f"Type the {KINDS[kind]['value'].lower()} of item {index} ({title}) to see "
                 "the budget."
-        if item.get("preset") == TYPED and kind in _EXTRA_WORD and \
-                not item.get("extra", "").strip():
+            )
+        if (
+            item.get("preset") == TYPED
+            and kind in _EXTRA_WORD
+            and not item.get("extra", "").strip()
+        ):
             return f"Type the {_EXTRA_WORD[kind]} of item {index} ({title}) to see the budget."
     return None
 
@@ -131,8 +186,11 @@ def item_text(index: int, item: dict[str, str]) -> str:
     """One line of the item list."""
     kind = item["kind"]
     preset = item.get("preset") or ""
-    value = item.get("value", "").strip() or _EMPTY_COUNT.get(kind, "") or \
-        f"{KINDS[kind]['value'].lower()} not typed"
+    value = (
+        item.get("value", "").strip()
+        or _EMPTY_COUNT.get(kind, "")
+        or f"{KINDS[kind]['value'].lower()} not typed"
+    )
     extra = item.get("extra", "").strip()
     if kind == "fibre":
         what = f"typed {extra or 'dB/km not typed'}" if preset == TYPED else preset
@@ -149,8 +207,10 @@ def item_text(index: int, item: dict[str, str]) -> str:
         return f"{index}. {value} × {preset}"
     if kind == "attenuator":
         return f"{index}. Attenuator {value}"
-    return f"{index}. {extra or 'Other loss'}{',' if not item.get('value', '').strip() else ''} " \
+    return (
+        f"{index}. {extra or 'Other loss'}{',' if not item.get('value', '').strip() else ''} "
         f"{value}"
+    )
 
 
 def spec_from_items(items: list[dict[str, str]], settings: dict[str, Any]) -> dict[str, Any]:
@@ -188,12 +248,21 @@ def items_from_spec(spec: dict[str, Any]) -> tuple[list[dict[str, str]], dict[st
         length = _text(seg.get("length")) or _text(seg.get("length_m"), "m")
         att = seg.get("attenuation")
         if att is not None:
-            extra = ("; ".join(f"{k}={v}" for k, v in att.items()) if isinstance(att, dict)
-                     else _text(att))
+            extra = (
+                "; ".join(f"{k}={v}" for k, v in att.items())
+                if isinstance(att, dict)
+                else _text(att)
+            )
             items.append({"kind": "fibre", "preset": TYPED, "value": length, "extra": extra})
         else:
-            items.append({"kind": "fibre", "preset": _text(seg.get("fibre") or seg.get("fiber")),
-                          "value": length, "extra": ""})
+            items.append(
+                {
+                    "kind": "fibre",
+                    "preset": _text(seg.get("fibre") or seg.get("fiber")),
+                    "value": length,
+                    "extra": "",
+                }
+            )
     for kind in ("components",):
         for comp in spec.get(kind) or []:
             if not isinstance(comp, dict):
@@ -202,48 +271,78 @@ def items_from_spec(spec: dict[str, Any]) -> tuple[list[dict[str, str]], dict[st
             loss = _text(comp.get("loss")) or _text(comp.get("loss_db"), "dB")
             if "splitter" in comp:
                 excess = _text(comp.get("excess"))
-                items.append({"kind": "splitter", "preset": TYPED if excess else
-                              _text(comp.get("preset")) or f"{str(comp['splitter'])[:1]}xN "
-                              "splitter", "value": _text(comp["splitter"]), "extra": excess})
+                items.append(
+                    {
+                        "kind": "splitter",
+                        "preset": TYPED
+                        if excess
+                        else _text(comp.get("preset")) or f"{str(comp['splitter'])[:1]}xN splitter",
+                        "value": _text(comp["splitter"]),
+                        "extra": excess,
+                    }
+                )
             elif comp.get("preset") and not loss:
-                items.append({"kind": "component", "preset": _text(comp["preset"]),
-                              "value": count, "extra": ""})
+                items.append(
+                    {
+                        "kind": "component",
+                        "preset": _text(comp["preset"]),
+                        "value": count,
+                        "extra": "",
+                    }
+                )
             elif comp.get("kind") == "attenuator":
                 items.append({"kind": "attenuator", "preset": "", "value": loss, "extra": ""})
             else:
-                items.append({"kind": "other", "preset": "", "value": loss,
-                              "extra": _text(comp.get("name"))})
+                items.append(
+                    {"kind": "other", "preset": "", "value": loss, "extra": _text(comp.get("name"))}
+                )
     splices = spec.get("splices") or []
     for sp in [splices] if isinstance(splices, dict) else splices:
         if not isinstance(sp, dict):
             continue
         loss = _text(sp.get("loss")) or _text(sp.get("loss_db"), "dB")
-        items.append({"kind": "splices", "preset": TYPED if loss else
-                      _text(sp.get("grade") or sp.get("method") or "fusion"),
-                      "value": _text(sp.get("count")) or "0", "extra": loss})
+        items.append(
+            {
+                "kind": "splices",
+                "preset": TYPED if loss else _text(sp.get("grade") or sp.get("method") or "fusion"),
+                "value": _text(sp.get("count")) or "0",
+                "extra": loss,
+            }
+        )
     conn = spec.get("connectors")
     if isinstance(conn, dict):
         loss = _text(conn.get("loss")) or _text(conn.get("loss_db"), "dB")
         count = _text(conn.get("count")) or "2"
         if not (count == "0" and loss in ("0 dB", "0")):
-            items.append({"kind": "connectors", "preset": TYPED if loss else
-                          _text(conn.get("grade") or "TIA-568.3-D"), "value": count,
-                          "extra": loss})
+            items.append(
+                {
+                    "kind": "connectors",
+                    "preset": TYPED if loss else _text(conn.get("grade") or "TIA-568.3-D"),
+                    "value": count,
+                    "extra": loss,
+                }
+            )
     else:
         items.append({"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""})
     raw_nm = spec.get("wavelengths", spec.get("wavelengths_nm", []))
     wavelengths = ", ".join(_text(v) for v in (raw_nm if isinstance(raw_nm, list) else [raw_nm]))
     margin = _text(spec.get("margin")) or _text(spec.get("margin_db"), "dB")
-    settings = {"wavelengths": wavelengths, "margin": "" if margin in ("0 dB", "0") else margin,
-                "application": _text(spec.get("application"))}
+    settings = {
+        "wavelengths": wavelengths,
+        "margin": "" if margin in ("0 dB", "0") else margin,
+        "application": _text(spec.get("application")),
+    }
     tx = spec.get("transceiver")
     if isinstance(tx, str):
         settings["transceiver"] = tx
     elif isinstance(tx, dict):
         settings["transceiver"] = TYPED
-        for field_id, key in (("tx-min", "tx_min_dbm"), ("tx-max", "tx_max_dbm"),
-                              ("rx-sens", "rx_sensitivity_dbm"),
-                              ("rx-over", "rx_overload_dbm")):
+        for field_id, key in (
+            ("tx-min", "tx_min_dbm"),
+            ("tx-max", "tx_max_dbm"),
+            ("rx-sens", "rx_sensitivity_dbm"),
+            ("rx-over", "rx_overload_dbm"),
+        ):
             settings[field_id] = _text(tx.get(key), "dBm")
     return items, settings
 
@@ -254,18 +353,48 @@ class BudgetScreen(Screen[None]):
     CSS_PATH = "budget.tcss"
     AUTO_FOCUS = "#item-value"
     BINDINGS = [
-        Binding("ctrl+n", "add_item", "Add", id="budget.add",
-                tooltip="Add an item of the kind chosen beside the Add button"),
-        Binding("ctrl+r", "remove_item", "Del", id="budget.remove", show=False,
-                tooltip="Remove the item picked in the list"),
-        Binding("ctrl+up,f7", "move_item(-1)", "Up", id="budget.up", show=False,
-                tooltip="Move the picked item towards end A"),
-        Binding("ctrl+down,f8", "move_item(1)", "Down", id="budget.down", show=False,
-                tooltip="Move the picked item towards end B"),
-        Binding("ctrl+s", "save", "Save", id="budget.save",
-                tooltip="Save this budget onto a job's link"),
-        Binding("ctrl+o", "open_saved", "Open", id="budget.open", show=False,
-                tooltip="Open the budget saved on a job's link, to check or change it"),
+        Binding(
+            "ctrl+n",
+            "add_item",
+            "Add",
+            id="budget.add",
+            tooltip="Add an item of the kind chosen beside the Add button",
+        ),
+        Binding(
+            "ctrl+r",
+            "remove_item",
+            "Del",
+            id="budget.remove",
+            show=False,
+            tooltip="Remove the item picked in the list",
+        ),
+        Binding(
+            "ctrl+up,f7",
+            "move_item(-1)",
+            "Up",
+            id="budget.up",
+            show=False,
+            tooltip="Move the picked item towards end A",
+        ),
+        Binding(
+            "ctrl+down,f8",
+            "move_item(1)",
+            "Down",
+            id="budget.down",
+            show=False,
+            tooltip="Move the picked item towards end B",
+        ),
+        Binding(
+            "ctrl+s", "save", "Save", id="budget.save", tooltip="Save this budget onto a job's link"
+        ),
+        Binding(
+            "ctrl+o",
+            "open_saved",
+            "Open",
+            id="budget.open",
+            show=False,
+            tooltip="Open the budget saved on a job's link, to check or change it",
+        ),
     ]
 
     def __init__(self) -> None:
@@ -294,28 +423,42 @@ class BudgetScreen(Screen[None]):
         if kind == "fibre":
             return [(n, n) for n in lib.fibres] + [("typed attenuation", TYPED)]
         if kind == "connectors":
-            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.connectors.items()] + \
-                [("typed loss", TYPED)]
+            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.connectors.items()] + [
+                ("typed loss", TYPED)
+            ]
         if kind == "splices":
-            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.splices.items()] + \
-                [("typed loss", TYPED)]
+            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.splices.items()] + [
+                ("typed loss", TYPED)
+            ]
         if kind == "splitter":
-            return [(n, n) for n, p in lib.components.items() if p.kind == "splitter"] + \
-                [("typed excess", TYPED)]
+            return [(n, n) for n, p in lib.components.items() if p.kind == "splitter"] + [
+                ("typed excess", TYPED)
+            ]
         if kind == "component":
             return [(n, n) for n, p in lib.components.items() if p.kind != "splitter"]
         return []
 
     # -- layout --------------------------------------------------------------------------
     @staticmethod
-    def _field(label: str, field_id: str, placeholder: str, *, label_id: str | None = None,
-               tooltip: str | None = None) -> ComposeResult:
+    def _field(
+        label: str,
+        field_id: str,
+        placeholder: str,
+        *,
+        label_id: str | None = None,
+        tooltip: str | None = None,
+    ) -> ComposeResult:
         with Vertical(id=f"{field_id}-field", classes="bf-field"):
             with Horizontal(classes="bf-row"):
                 yield Label(label, classes="bf-label", id=label_id)
-                yield Input(placeholder=placeholder, type="text",
-                            restrict=EXTRA_CHARS if field_id == "item-extra" else QUANTITY_CHARS,
-                            compact=True, id=field_id, tooltip=tooltip)
+                yield Input(
+                    placeholder=placeholder,
+                    type="text",
+                    restrict=EXTRA_CHARS if field_id == "item-extra" else QUANTITY_CHARS,
+                    compact=True,
+                    id=field_id,
+                    tooltip=tooltip,
+                )
             yield Static("", classes="field-error", id=f"{field_id}-error", markup=False)
 
     def compose(self) -> ComposeResult:
@@ -327,45 +470,80 @@ class BudgetScreen(Screen[None]):
                         panel.border_title = "Link, end A to end B"
                         yield OptionList(id="items")
                         with Horizontal(id="item-buttons"):
-                            yield Select([(KINDS[k]["title"], k) for k in ADD_KINDS],
-                                         value="fibre", allow_blank=False, compact=True,
-                                         id="add-kind", tooltip="Kind of item to add")
-                            yield Button("Add", id="add", compact=True,
-                                         tooltip="Add an item (Ctrl+N)")
-                            yield Button("Remove", id="remove", compact=True,
-                                         tooltip="Remove the picked item (Ctrl+R)")
-                            yield Button("↑", id="up", compact=True,
-                                         tooltip="Move up (Ctrl+Up or F7)")
-                            yield Button("↓", id="down", compact=True,
-                                         tooltip="Move down (Ctrl+Down or F8)")
+                            yield Select(
+                                [(KINDS[k]["title"], k) for k in ADD_KINDS],
+                                value="fibre",
+                                allow_blank=False,
+                                compact=True,
+                                id="add-kind",
+                                tooltip="Kind of item to add",
+                            )
+                            yield Button(
+                                "Add", id="add", compact=True, tooltip="Add an item (Ctrl+N)"
+                            )
+                            yield Button(
+                                "Remove",
+                                id="remove",
+                                compact=True,
+                                tooltip="Remove the picked item (Ctrl+R)",
+                            )
+                            yield Button(
+                                "↑", id="up", compact=True, tooltip="Move up (Ctrl+Up or F7)"
+                            )
+                            yield Button(
+                                "↓", id="down", compact=True, tooltip="Move down (Ctrl+Down or F8)"
+                            )
                     with Vertical(id="item-panel", classes="panel") as panel:
                         panel.border_title = "Item"
                         with Horizontal(id="item-preset-row", classes="bf-row"):
                             yield Label("Fibre", classes="bf-label", id="item-preset-label")
-                            yield Select([], allow_blank=True, compact=True, id="item-preset",
-                                         prompt="choose")
-                        yield from self._field("Length", "item-value", "1.2 km",
-                                               label_id="item-value-label")
-                        yield from self._field("dB/km", "item-extra", "0.35 dB/km",
-                                               label_id="item-extra-label")
+                            yield Select(
+                                [],
+                                allow_blank=True,
+                                compact=True,
+                                id="item-preset",
+                                prompt="choose",
+                            )
+                        yield from self._field(
+                            "Length", "item-value", "1.2 km", label_id="item-value-label"
+                        )
+                        yield from self._field(
+                            "dB/km", "item-extra", "0.35 dB/km", label_id="item-extra-label"
+                        )
                     yield Static("", id="budget-summary", markup=False)
                     with Vertical(id="settings-panel", classes="panel") as panel:
                         panel.border_title = "Wavelengths and checks"
-                        yield from self._field("Wavelengths", "wavelengths",
-                                               "default by fibre family",
-                                               tooltip="e.g. 1310, 1550 (blank: 850/1300 "
-                                               "multimode, 1310/1550 single-mode)")
-                        yield from self._field("Margin", "margin", "design margin, 3 dB",
-                                               tooltip="repairs and ageing; shown beside the "
-                                               "link loss, not in it")
+                        yield from self._field(
+                            "Wavelengths",
+                            "wavelengths",
+                            "default by fibre family",
+                            tooltip="e.g. 1310, 1550 (blank: 850/1300 "
+                            "multimode, 1310/1550 single-mode)",
+                        )
+                        yield from self._field(
+                            "Margin",
+                            "margin",
+                            "design margin, 3 dB",
+                            tooltip="repairs and ageing; shown beside the link loss, not in it",
+                        )
                         with Horizontal(classes="bf-row"):
                             yield Label("Application", classes="bf-label")
-                            yield Select([], allow_blank=True, compact=True, id="application",
-                                         prompt="no application check")
+                            yield Select(
+                                [],
+                                allow_blank=True,
+                                compact=True,
+                                id="application",
+                                prompt="no application check",
+                            )
                         with Horizontal(classes="bf-row"):
                             yield Label("Transceiver", classes="bf-label")
-                            yield Select([], allow_blank=True, compact=True, id="transceiver",
-                                         prompt="no transceiver check")
+                            yield Select(
+                                [],
+                                allow_blank=True,
+                                compact=True,
+                                id="transceiver",
+                                prompt="no transceiver check",
+                            )
                         with Vertical(id="tx-levels"):
                             yield from self._field("Tx min", "tx-min", "-8.2 dBm")
                             yield from self._field("Tx max", "tx-max", "0.5 dBm")
@@ -388,26 +566,38 @@ class BudgetScreen(Screen[None]):
                         yield Static("", id="sources-out", classes="result", markup=False)
                     yield Static("", id="budget-saved", classes="field-note", markup=False)
                     with Horizontal(id="job-buttons"):
-                        yield Button("Save to job ^S", id="save", compact=True,
-                                     tooltip="Save this budget onto a job's link (Ctrl+S)")
-                        yield Button("Open saved ^O", id="open", compact=True,
-                                     tooltip="Open the budget saved on a job's link (Ctrl+O)")
+                        yield Button(
+                            "Save to job ^S",
+                            id="save",
+                            compact=True,
+                            tooltip="Save this budget onto a job's link (Ctrl+S)",
+                        )
+                        yield Button(
+                            "Open saved ^O",
+                            id="open",
+                            compact=True,
+                            tooltip="Open the budget saved on a job's link (Ctrl+O)",
+                        )
                     yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
         lib = self.library
-        self._check_options = {"application": list(lib.applications),
-                               "transceiver": [*lib.transceivers, TYPED]}
+        self._check_options = {
+            "application": list(lib.applications),
+            "transceiver": [*lib.transceivers, TYPED],
+        }
         self.query_one("#application", Select).set_options([(n, n) for n in lib.applications])
         self.query_one("#transceiver", Select).set_options(
-            [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)])
+            [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)]
+        )
         self.query_one("#tx-levels").display = False
         for error in self.query(".field-error"):
             error.display = False
         if lib.problems:
-            self.notify("Preset problems: " + "; ".join(lib.problems), severity="warning",
-                        timeout=10)
+            self.notify(
+                "Preset problems: " + "; ".join(lib.problems), severity="warning", timeout=10
+            )
         self._refresh_list()
         self._load_item()
         self.recompute()
@@ -422,9 +612,9 @@ class BudgetScreen(Screen[None]):
     def _update_list_line(self) -> None:
         items = self.query_one("#items", OptionList)
         if 0 <= self.current < len(self.items):
-            items.replace_option_prompt_at_index(self.current,
-                                                 item_text(self.current + 1,
-                                                           self.items[self.current]))
+            items.replace_option_prompt_at_index(
+                self.current, item_text(self.current + 1, self.items[self.current])
+            )
 
     def _load_item(self) -> None:
         """Show the picked item in the editor."""
@@ -548,10 +738,11 @@ class BudgetScreen(Screen[None]):
     def action_add_item(self) -> None:
         kind = str(self.query_one("#add-kind", Select).value)
         if kind == "connectors" and any(i["kind"] == "connectors" for i in self.items):
-            self.notify("The link has one connectors line: edit its number of mated pairs.",
-                        severity="warning")
-            self.current = next(i for i, it in enumerate(self.items)
-                                if it["kind"] == "connectors")
+            self.notify(
+                "The link has one connectors line: edit its number of mated pairs.",
+                severity="warning",
+            )
+            self.current = next(i for i, it in enumerate(self.items) if it["kind"] == "connectors")
             self._refresh_list()
             self._load_item()
             return
@@ -579,8 +770,10 @@ class BudgetScreen(Screen[None]):
     def action_remove_item(self) -> None:
         if not self.items:
             return
-        if sum(1 for i in self.items if i["kind"] == "fibre") == 1 and \
-                self.items[self.current]["kind"] == "fibre":
+        if (
+            sum(1 for i in self.items if i["kind"] == "fibre") == 1
+            and self.items[self.current]["kind"] == "fibre"
+        ):
             self.notify("A link needs at least one fibre segment.", severity="warning")
             return
         del self.items[self.current]
@@ -600,10 +793,14 @@ class BudgetScreen(Screen[None]):
 
     @on(Button.Pressed)
     def _button(self, event: Button.Pressed) -> None:
-        actions = {"add": self.action_add_item, "remove": self.action_remove_item,
-                   "up": lambda: self.action_move_item(-1),
-                   "down": lambda: self.action_move_item(1), "save": self.action_save,
-                   "open": self.action_open_saved}
+        actions = {
+            "add": self.action_add_item,
+            "remove": self.action_remove_item,
+            "up": lambda: self.action_move_item(-1),
+            "down": lambda: self.action_move_item(1),
+            "save": self.action_save,
+            "open": self.action_open_saved,
+        }
         action = actions.get(event.button.id or "")
         if action is not None:
             action()
@@ -621,8 +818,7 @@ class BudgetScreen(Screen[None]):
 
     @on(Select.Changed, "#application, #transceiver")
     def _check_changed(self, event: Select.Changed) -> None:
-        self.query_one("#tx-levels").display = (
-            self.query_one("#transceiver", Select).value == TYPED)
+        self.query_one("#tx-levels").display = self.query_one("#transceiver", Select).value == TYPED
         self.recompute()
 
     def _settings(self) -> dict[str, Any]:
@@ -641,8 +837,9 @@ class BudgetScreen(Screen[None]):
             problems.append(str(exc))
         margin = self.query_one("#margin", Input).value
         try:
-            out["margin"] = f"{linkspec.loss_db(margin, 'design margin')} dB" if margin.strip() \
-                else ""
+            out["margin"] = (
+                f"{linkspec.loss_db(margin, 'design margin')} dB" if margin.strip() else ""
+            )
             self._error("margin", "")
         except InputError as exc:
             self._error("margin", str(exc))
@@ -655,10 +852,12 @@ class BudgetScreen(Screen[None]):
             levels: dict[str, Any] = {}
             level_problems: list[str] = []
             untyped: list[str] = []
-            for field_id, key, what in (("tx-min", "tx_min_dbm", "Tx minimum"),
-                                        ("tx-max", "tx_max_dbm", "Tx maximum"),
-                                        ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
-                                        ("rx-over", "rx_overload_dbm", "Rx overload")):
+            for field_id, key, what in (
+                ("tx-min", "tx_min_dbm", "Tx minimum"),
+                ("tx-max", "tx_max_dbm", "Tx maximum"),
+                ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
+                ("rx-over", "rx_overload_dbm", "Rx overload"),
+            ):
                 typed = self.query_one(f"#{field_id}", Input).value
                 if not typed.strip():
                     untyped.append(what)
@@ -674,8 +873,10 @@ class BudgetScreen(Screen[None]):
                 # The budget still shows; only the transceiver check waits for its levels:
                 # wrong text is named, levels not typed yet are asked for.
                 self._tx_problem = (
-                    f"Type the four levels to check: {level_problems[0]}" if level_problems
-                    else "Type " + ", ".join(untyped) + " to check the transceiver.")
+                    f"Type the four levels to check: {level_problems[0]}"
+                    if level_problems
+                    else "Type " + ", ".join(untyped) + " to check the transceiver."
+                )
             else:
                 levels["name"] = "typed levels"
                 out["transceiver"] = levels
@@ -702,8 +903,12 @@ class BudgetScreen(Screen[None]):
                 problem.display = False
                 waiting.update(prompt)
                 waiting.display = True
-                for out_id in ("#budget-out", "#sources-out", "#application-out",
-                               "#transceiver-out"):
+                for out_id in (
+                    "#budget-out",
+                    "#sources-out",
+                    "#application-out",
+                    "#transceiver-out",
+                ):
                     self.query_one(out_id, Static).update("")
                 summary = self.query_one("#budget-summary", Static)
                 summary.update(prompt)
@@ -749,22 +954,27 @@ class BudgetScreen(Screen[None]):
             typical = "—" if w.typical_loss_db is None else f"{w.typical_loss_db:.2f}"
             lines.append(f"{w.wavelength_nm:g} nm  max {w.loss_db:.2f} dB  typ {typical} dB")
             if r.margin_db:
-                lines.append(f"{_PAD}with {r.margin_db:.2f} dB margin: "
-                             f"{w.loss_with_margin_db:.2f} dB")
+                lines.append(
+                    f"{_PAD}with {r.margin_db:.2f} dB margin: {w.loss_with_margin_db:.2f} dB"
+                )
             for item in w.items:
                 number = f"{item.loss_db:6.2f}".replace(" ", "\u00a0")
                 lines.append(f"{_PAD}{number}  {item.name}")
         lines.append(f"Fibre length {r.length_m:g} m")
         self.query_one("#budget-out", Static).update(Text("\n".join(lines)))
-        summary = ("Budget: " + ", ".join(f"{w.wavelength_nm:g} nm {w.loss_db:.2f} dB"
-                                          for w in r.wavelengths)
-                   + (f" (+{r.margin_db:.2f} dB margin)" if r.margin_db else ""))
+        summary = (
+            "Budget: "
+            + ", ".join(f"{w.wavelength_nm:g} nm {w.loss_db:.2f} dB" for w in r.wavelengths)
+            + (f" (+{r.margin_db:.2f} dB margin)" if r.margin_db else "")
+        )
         if report.application is not None:
             summary += f"\n{report.application.name}: " + (
-                "PASS" if report.application.passed else "FAIL")
+                "PASS" if report.application.passed else "FAIL"
+            )
         if report.transceiver is not None:
             summary += f"\n{report.transceiver.name}: " + (
-                "PASS" if report.transceiver.passed else "FAIL")
+                "PASS" if report.transceiver.passed else "FAIL"
+            )
             if report.transceiver.overload and report.transceiver.attenuator_db is not None:
                 summary += f", add {report.transceiver.attenuator_db:g} dB attenuator"
         summary_out = self.query_one("#budget-summary", Static)
@@ -780,16 +990,20 @@ class BudgetScreen(Screen[None]):
             self.query_one("#application-out", Static).update("Pick an application to check.")
         else:
             verdict = "PASS" if app.passed else "FAIL"
-            text = [f"{app.name} on {app.fibre}: {verdict}",
-                    f"loss {app.loss_db:.2f} of {app.loss_max_db:.2f} dB at "
-                    f"{app.wavelength_nm:g} nm: headroom {app.loss_headroom_db:+.2f} dB "
-                    f"{'ok' if app.loss_pass else 'OVER'}",
-                    f"after margin {app.margin_headroom_db:+.2f} dB",
-                    f"length {app.length_m:g} of {app.reach_m:g} m: headroom "
-                    f"{app.length_headroom_m:+g} m {'ok' if app.length_pass else 'OVER'}"]
+            text = [
+                f"{app.name} on {app.fibre}: {verdict}",
+                f"loss {app.loss_db:.2f} of {app.loss_max_db:.2f} dB at "
+                f"{app.wavelength_nm:g} nm: headroom {app.loss_headroom_db:+.2f} dB "
+                f"{'ok' if app.loss_pass else 'OVER'}",
+                f"after margin {app.margin_headroom_db:+.2f} dB",
+                f"length {app.length_m:g} of {app.reach_m:g} m: headroom "
+                f"{app.length_headroom_m:+g} m {'ok' if app.length_pass else 'OVER'}",
+            ]
             if app.loss_min_db is not None:
-                text.append(f"lowest plausible {app.link_loss_min_db:.2f} dB, class minimum "
-                            f"{app.loss_min_db:.2f} dB {'ok' if app.min_pass else 'UNDER'}")
+                text.append(
+                    f"lowest plausible {app.link_loss_min_db:.2f} dB, class minimum "
+                    f"{app.loss_min_db:.2f} dB {'ok' if app.min_pass else 'UNDER'}"
+                )
             self.query_one("#application-out", Static).update(_minus("\n".join(text)))
         tx = report.transceiver
         if tx is None and self._tx_problem:
@@ -799,28 +1013,35 @@ class BudgetScreen(Screen[None]):
         else:
             verdict = "PASS" if tx.passed else "FAIL"
             where = "" if tx.wavelength_nm is None else f" at {tx.wavelength_nm:g} nm"
-            text = [f"{tx.name}{where}: {verdict}",
-                    f"power budget {tx.power_budget_db:.2f} dB",
-                    f"margin {tx.margin_db:+.2f} dB (needs {tx.required_margin_db:.2f}) "
-                    f"{'ok' if tx.margin_pass else 'SHORT'}",
-                    f"received {tx.received_min_dbm:+.2f} to {tx.received_max_dbm:+.2f} dBm"]
+            text = [
+                f"{tx.name}{where}: {verdict}",
+                f"power budget {tx.power_budget_db:.2f} dB",
+                f"margin {tx.margin_db:+.2f} dB (needs {tx.required_margin_db:.2f}) "
+                f"{'ok' if tx.margin_pass else 'SHORT'}",
+                f"received {tx.received_min_dbm:+.2f} to {tx.received_max_dbm:+.2f} dBm",
+            ]
             if not tx.overload:
                 text.append("no attenuator needed")
             elif tx.attenuator_fits and tx.attenuator_db is not None:
-                text.append(f"overload: add {tx.attenuator_db:g} dB attenuator (fits "
-                            f"{tx.attenuator_min_db:.2f}–{tx.attenuator_max_db:.2f} dB)")
+                text.append(
+                    f"overload: add {tx.attenuator_db:g} dB attenuator (fits "
+                    f"{tx.attenuator_min_db:.2f}–{tx.attenuator_max_db:.2f} dB)"
+                )
             else:
-                text.append(f"overload: needs ≥ {tx.attenuator_min_db:.2f} dB but the margin "
-                            f"allows {tx.attenuator_max_db:.2f} dB: no attenuator fits")
+                text.append(
+                    f"overload: needs ≥ {tx.attenuator_min_db:.2f} dB but the margin "
+                    f"allows {tx.attenuator_max_db:.2f} dB: no attenuator fits"
+                )
             self.query_one("#transceiver-out", Static).update(_minus("\n".join(text)))
 
     # -- opening a saved budget ---------------------------------------------------------
     def action_open_saved(self) -> None:
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
-        self.app.push_screen(JobLinkPicker(job_id=self._job_id,
-                                           title="Open the budget saved on a link"),
-                             self._open_from)
+        self.app.push_screen(
+            JobLinkPicker(job_id=self._job_id, title="Open the budget saved on a link"),
+            self._open_from,
+        )
 
     def _open_from(self, choice: tuple[str, str] | None) -> None:
         from fieldkit.jobs.store import StoreError
@@ -844,7 +1065,8 @@ class BudgetScreen(Screen[None]):
         self.load(items, fields)
         self._job_id = job_id
         self.query_one("#budget-saved", Static).update(
-            f"Opened the budget saved on link {link.label}.")
+            f"Opened the budget saved on link {link.label}."
+        )
 
     def load(self, items: list[dict[str, str]], fields: dict[str, str]) -> None:
         """Replace the link and the settings (typed text is kept as typed)."""
@@ -860,8 +1082,9 @@ class BudgetScreen(Screen[None]):
             else:
                 select.clear()
                 if wanted:
-                    self.notify(f"{select_id}: '{wanted}' is not among the presets now",
-                                severity="warning")
+                    self.notify(
+                        f"{select_id}: '{wanted}' is not among the presets now", severity="warning"
+                    )
         self._refresh_list()
         self._load_item()
         self.recompute()
@@ -874,8 +1097,10 @@ class BudgetScreen(Screen[None]):
             self.notify(self.problem or "No budget to save yet.", severity="warning")
             return
         resolved, report = self.resolved, self.report
-        self.app.push_screen(JobLinkPicker(job_id=self._job_id),
-                             lambda choice: self._save_to(choice, resolved, report))
+        self.app.push_screen(
+            JobLinkPicker(job_id=self._job_id),
+            lambda choice: self._save_to(choice, resolved, report),
+        )
 
     def _save_to(self, choice: tuple[str, str] | None, resolved: Any, report: Any) -> None:
         from fieldkit import linkspec, settings

@@ -131,8 +131,9 @@ class ConvertScreen(Screen[None]):
     def _show_value(self) -> None:
         value = self._field("value").value_or_none()
         if value is None:
-            self._out("value-out", "Type a value and its unit: dBm, mW, µW, dB, dB/km, km, ft, "
-                      "nm or THz.")
+            self._out(
+                "value-out", "Type a value and its unit: dBm, mW, µW, dB, dB/km, km, ft, nm or THz."
+            )
             return
         rows = [
             (format_number(number), display_unit(unit)) for unit, number in related_values(value)
@@ -156,8 +157,10 @@ class ConvertScreen(Screen[None]):
             ("after loss", f"{format_number(after)} dBm = {_linear(after)}"),
             # The typed level taken as received: what went in before the loss.
             ("before loss", f"{format_number(power.apply_gain(level_dbm, loss_db))} dBm"),
-            ("passes", f"{format_number(power.loss_db_to_percent_transmitted(loss_db), 4)} % "
-                       "of the power"),
+            (
+                "passes",
+                f"{format_number(power.loss_db_to_percent_transmitted(loss_db), 4)} % of the power",
+            ),
         ]
         self._out("loss-out", _rows(rows))
 

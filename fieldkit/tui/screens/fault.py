@@ -59,12 +59,26 @@ class NumberField(Vertical):
     NumberField .field-error { padding-left: 12; color: $error; text-style: bold; }
     """
 
-    def __init__(self, label: str, *, field_id: str, placeholder: str = "", value: str = "",
-                 tooltip: str | None = None) -> None:
+    def __init__(
+        self,
+        label: str,
+        *,
+        field_id: str,
+        placeholder: str = "",
+        value: str = "",
+        tooltip: str | None = None,
+    ) -> None:
         super().__init__(id=f"{field_id}-field")
         self._label = label
-        self._input = Input(value=value, placeholder=placeholder, type="text",
-                            restrict=NUMBER_CHARS, compact=True, id=field_id, tooltip=tooltip)
+        self._input = Input(
+            value=value,
+            placeholder=placeholder,
+            type="text",
+            restrict=NUMBER_CHARS,
+            compact=True,
+            id=field_id,
+            tooltip=tooltip,
+        )
         self._error = Static("", classes="field-error", markup=False)
 
     def compose(self) -> ComposeResult:
@@ -148,8 +162,12 @@ class PointList(Vertical):
         for column in self.columns:
             with Horizontal():
                 yield Label(column.label, classes="pl-label")
-                yield Input(placeholder=column.placeholder, type="text", compact=True,
-                            id=f"{self.id}-{column.key}")
+                yield Input(
+                    placeholder=column.placeholder,
+                    type="text",
+                    compact=True,
+                    id=f"{self.id}-{column.key}",
+                )
         yield Static("", classes="field-error", markup=False)
         with Horizontal(classes="pl-buttons"):
             yield Button("Add", id=f"{self.id}-add", compact=True, variant="primary")
@@ -167,8 +185,9 @@ class PointList(Vertical):
         for column in self.columns:
             text = row.get(column.key, "")
             if column.kind == "length":
-                out[column.key] = parse(text, Kind.LENGTH, default_unit="m",
-                                        what=field_name(column.label)).to("m")
+                out[column.key] = parse(
+                    text, Kind.LENGTH, default_unit="m", what=field_name(column.label)
+                ).to("m")
             else:
                 out[column.key] = text.strip()
         return out
@@ -223,7 +242,8 @@ class PointList(Vertical):
         self._editing = index
         for column in self.columns:
             self.query_one(f"#{self.id}-{column.key}", Input).value = self.rows[index].get(
-                column.key, "")
+                column.key, ""
+            )
         self.query_one(f"#{self.id}-add", Button).label = "Update"
         self._say("")
 
@@ -285,28 +305,40 @@ SLACK_COLUMNS = (
 )
 
 
-_BASIS = {"model": "index and helix (no landmark)",
-          "interpolated": "between landmarks",
-          "extrapolated": "extrapolated past landmarks"}
-_SHORT_TERMS = {"instrument offset": "offset", "scale error": "scale",
-                "sample spacing (fault reading)": "sampling", "group index": "index",
-                "helix": "helix"}
+_BASIS = {
+    "model": "index and helix (no landmark)",
+    "interpolated": "between landmarks",
+    "extrapolated": "extrapolated past landmarks",
+}
+_SHORT_TERMS = {
+    "instrument offset": "offset",
+    "scale error": "scale",
+    "sample spacing (fault reading)": "sampling",
+    "group index": "index",
+    "helix": "helix",
+}
 
 
 def _short_term(name: str) -> str:
     if name in _SHORT_TERMS:
         return _SHORT_TERMS[name]
-    for long, short in (("sample spacing (", "sampling "), ("route distance (", "route "),
-                        ("instrument offset (", "offset ")):
+    for long, short in (
+        ("sample spacing (", "sampling "),
+        ("route distance (", "route "),
+        ("instrument offset (", "offset "),
+    ):
         if name.startswith(long):
-            return short + name[len(long):].rstrip(")")
+            return short + name[len(long) :].rstrip(")")
     return name
 
 
 def _has_landmark(p: Any) -> bool:
     """A nearest landmark worth naming: not the start when no landmark was given."""
-    return (p.nearest_landmark is not None and p.offset_from_landmark_m is not None
-            and not (p.nearest_landmark == "start" and p.basis == "model"))
+    return (
+        p.nearest_landmark is not None
+        and p.offset_from_landmark_m is not None
+        and not (p.nearest_landmark == "start" and p.basis == "model")
+    )
 
 
 def _position_rows(p: Any, unit: str) -> list[str]:
@@ -341,13 +373,17 @@ def result_lines(location: Location, unit: str) -> list[str]:
     terms = sorted((c for c in p.contributions if c.route_m >= 0.05), key=lambda c: -c.route_m)
     worst = format_distance(p.worst_case_m, unit)
     lines.append(f"± is the root-sum-square of (worst case ± {worst}):")
-    lines.append(", ".join(f"{_short_term(c.name)} {format_distance(c.route_m, unit)}"
-                           for c in terms) or "no term above 0.05 m")
+    lines.append(
+        ", ".join(f"{_short_term(c.name)} {format_distance(c.route_m, unit)}" for c in terms)
+        or "no term above 0.05 m"
+    )
     two = location.two_ended
     if two is not None:
         verdict = "consistent" if two.consistent else "NOT consistent"
-        lines.append(f"Two ends: A + B − total = {format_distance(two.discrepancy_m, unit)} "
-                     f"(± {format_distance(two.tolerance_m, unit)}), {verdict}")
+        lines.append(
+            f"Two ends: A + B − total = {format_distance(two.discrepancy_m, unit)} "
+            f"(± {format_distance(two.tolerance_m, unit)}), {verdict}"
+        )
         lines.append("Combined from both ends:")
         lines += _position_rows(two.combined, unit)
     return lines
@@ -359,10 +395,20 @@ class FaultScreen(Screen[None]):
     CSS_PATH = "fault.tcss"
     AUTO_FOCUS = "#fault-distance"
     BINDINGS = [
-        Binding("ctrl+s", "save", "Save", id="fault.save",
-                tooltip="Save this located fault onto a job's link"),
-        Binding("ctrl+r", "focus_result", "Result", id="fault.result",
-                tooltip="Scroll to the result and the route diagram"),
+        Binding(
+            "ctrl+s",
+            "save",
+            "Save",
+            id="fault.save",
+            tooltip="Save this located fault onto a job's link",
+        ),
+        Binding(
+            "ctrl+r",
+            "focus_result",
+            "Result",
+            id="fault.result",
+            tooltip="Scroll to the result and the route diagram",
+        ),
     ]
 
     def __init__(self) -> None:
@@ -375,115 +421,205 @@ class FaultScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         library = self._library()
         fibres = [f for f in library.fibres.values() if f.group_indices]
-        fibre_name = next((f.name for f in fibres if f.name == "G.652.D"),
-                          fibres[0].name if fibres else TYPED)
+        fibre_name = next(
+            (f.name for f in fibres if f.name == "G.652.D"), fibres[0].name if fibres else TYPED
+        )
         cables = list(library.cables.values())
-        cable_name = next((c.name for c in cables if c.name == "stranded loose tube"),
-                          cables[0].name if cables else TYPED)
+        cable_name = next(
+            (c.name for c in cables if c.name == "stranded loose tube"),
+            cables[0].name if cables else TYPED,
+        )
         yield WorkspaceBar()
         yield Static("", id="fault-summary")
         with VerticalScroll(id="fault-body"), Vertical(classes="two-col"):
             with Vertical(classes="col", id="fault-inputs"):
                 with Vertical(classes="panel", id="fault-reading") as panel:
                     panel.border_title = "Reading from the start"
-                    yield QuantityField("OTDR dist", expect=Kind.LENGTH, default_unit="m",
-                                        field_id="fault-distance", placeholder="3.412 km",
-                                        tooltip="The event's distance as the OTDR shows it")
-                    yield QuantityField("or time", expect=Kind.TIME, field_id="fault-time",
-                                        placeholder="34.1 µs round trip",
-                                        tooltip="The round-trip time instead of a distance")
-                    yield NumberField("Index set", field_id="fault-ior-set",
-                                      placeholder="as set on the OTDR",
-                                      tooltip="The group index the OTDR was set to; empty if it "
-                                      "was set to the fibre's")
+                    yield QuantityField(
+                        "OTDR dist",
+                        expect=Kind.LENGTH,
+                        default_unit="m",
+                        field_id="fault-distance",
+                        placeholder="3.412 km",
+                        tooltip="The event's distance as the OTDR shows it",
+                    )
+                    yield QuantityField(
+                        "or time",
+                        expect=Kind.TIME,
+                        field_id="fault-time",
+                        placeholder="34.1 µs round trip",
+                        tooltip="The round-trip time instead of a distance",
+                    )
+                    yield NumberField(
+                        "Index set",
+                        field_id="fault-ior-set",
+                        placeholder="as set on the OTDR",
+                        tooltip="The group index the OTDR was set to; empty if it "
+                        "was set to the fibre's",
+                    )
                 with Vertical(classes="panel", id="fault-fibre-panel") as panel:
                     panel.border_title = "Fibre and cable"
                     with Horizontal(classes="fault-row"):
                         yield Label("Fibre", classes="fault-label")
-                        yield Select([("index typed", TYPED)]
-                                     + [(f.name, f.name) for f in fibres],
-                                     value=fibre_name, id="fault-fibre", compact=True,
-                                     allow_blank=False, tooltip="Fibre type: fills the group index")
+                        yield Select(
+                            [("index typed", TYPED)] + [(f.name, f.name) for f in fibres],
+                            value=fibre_name,
+                            id="fault-fibre",
+                            compact=True,
+                            allow_blank=False,
+                            tooltip="Fibre type: fills the group index",
+                        )
                     with Horizontal(classes="fault-row"):
                         yield Label("Wavelength", classes="fault-label")
-                        yield Select([("—", 0.0)], value=0.0, id="fault-wavelength",
-                                     compact=True, allow_blank=False, tooltip="OTDR wavelength")
-                    yield NumberField("Group index", field_id="fault-ior", placeholder="1.4677",
-                                      tooltip="The fibre's group index (filled from the preset; "
-                                      "type the cable's own if you have it)")
+                        yield Select(
+                            [("—", 0.0)],
+                            value=0.0,
+                            id="fault-wavelength",
+                            compact=True,
+                            allow_blank=False,
+                            tooltip="OTDR wavelength",
+                        )
+                    yield NumberField(
+                        "Group index",
+                        field_id="fault-ior",
+                        placeholder="1.4677",
+                        tooltip="The fibre's group index (filled from the preset; "
+                        "type the cable's own if you have it)",
+                    )
                     with Horizontal(classes="fault-row"):
                         yield Label("Cable", classes="fault-label")
-                        yield Select([("helix typed", TYPED)]
-                                     + [(c.name, c.name) for c in cables],
-                                     value=cable_name, id="fault-cable", compact=True,
-                                     allow_blank=False,
-                                     tooltip="Cable construction: fills a typical helix")
-                    yield NumberField("Helix %", field_id="fault-helix", placeholder="1.5",
-                                      tooltip="Helix / excess fibre length: how much longer the "
-                                      "fibre is than the sheath")
+                        yield Select(
+                            [("helix typed", TYPED)] + [(c.name, c.name) for c in cables],
+                            value=cable_name,
+                            id="fault-cable",
+                            compact=True,
+                            allow_blank=False,
+                            tooltip="Cable construction: fills a typical helix",
+                        )
+                    yield NumberField(
+                        "Helix %",
+                        field_id="fault-helix",
+                        placeholder="1.5",
+                        tooltip="Helix / excess fibre length: how much longer the "
+                        "fibre is than the sheath",
+                    )
                     yield Static("", id="fault-cable-note", classes="field-note")
                 with Vertical(classes="panel", id="fault-landmarks-panel") as panel:
                     panel.border_title = "Landmarks"
-                    yield PointList(LANDMARK_COLUMNS, list_id="fault-landmarks",
-                                    empty="None yet: closures, handholes, building entries "
-                                    "with OTDR and route distance. Enter adds; pick a row to "
-                                    "edit; Delete removes.")
+                    yield PointList(
+                        LANDMARK_COLUMNS,
+                        list_id="fault-landmarks",
+                        empty="None yet: closures, handholes, building entries "
+                        "with OTDR and route distance. Enter adds; pick a row to "
+                        "edit; Delete removes.",
+                    )
                 with Vertical(classes="panel", id="fault-slack-panel") as panel:
                     panel.border_title = "Slack loops and coils"
-                    yield PointList(SLACK_COLUMNS, list_id="fault-slack",
-                                    empty="None yet: each loop's route position and cable "
-                                    "length. Enter adds.")
+                    yield PointList(
+                        SLACK_COLUMNS,
+                        list_id="fault-slack",
+                        empty="None yet: each loop's route position and cable length. Enter adds.",
+                    )
                 with Vertical(classes="panel", id="fault-marking-panel") as panel:
                     panel.border_title = "Sheath markings"
-                    yield NumberField("At start", field_id="fault-marking",
-                                      placeholder="12345 (optional)")
+                    yield NumberField(
+                        "At start", field_id="fault-marking", placeholder="12345 (optional)"
+                    )
                     with Horizontal(classes="fault-row"):
                         yield Label("Marked", classes="fault-label")
-                        yield Select([("metres", "m"), ("feet", "ft")], value="m",
-                                     allow_blank=False, compact=True, id="fault-marking-unit")
-                        yield Select([("count up", "up"), ("count down", "down")], value="up",
-                                     allow_blank=False, compact=True,
-                                     id="fault-marking-direction")
+                        yield Select(
+                            [("metres", "m"), ("feet", "ft")],
+                            value="m",
+                            allow_blank=False,
+                            compact=True,
+                            id="fault-marking-unit",
+                        )
+                        yield Select(
+                            [("count up", "up"), ("count down", "down")],
+                            value="up",
+                            allow_blank=False,
+                            compact=True,
+                            id="fault-marking-direction",
+                        )
                 with Vertical(classes="panel", id="fault-two-panel") as panel:
                     panel.border_title = "Two-ended check"
-                    yield QuantityField("From end B", expect=Kind.LENGTH, default_unit="m",
-                                        field_id="fault-from-b", placeholder="same set-up")
-                    yield QuantityField("Total", expect=Kind.LENGTH, default_unit="m",
-                                        field_id="fault-total", placeholder="end to end")
+                    yield QuantityField(
+                        "From end B",
+                        expect=Kind.LENGTH,
+                        default_unit="m",
+                        field_id="fault-from-b",
+                        placeholder="same set-up",
+                    )
+                    yield QuantityField(
+                        "Total",
+                        expect=Kind.LENGTH,
+                        default_unit="m",
+                        field_id="fault-total",
+                        placeholder="end to end",
+                    )
                 with Vertical(classes="panel", id="fault-errors-panel") as panel:
                     panel.border_title = "Uncertainty (± typical)"
-                    yield QuantityField("Offset", expect=Kind.LENGTH, default_unit="m",
-                                        field_id="fault-offset", value=f"{DEFAULT_OFFSET_M:g} m",
-                                        placeholder="1 m")
-                    yield NumberField("Scale %", field_id="fault-scale",
-                                      value=f"{DEFAULT_SCALE_ERROR_PERCENT:g}")
-                    yield QuantityField("Sampling", expect=Kind.LENGTH, default_unit="m",
-                                        field_id="fault-sampling",
-                                        value=f"{DEFAULT_SAMPLE_SPACING_M:g} m", placeholder="1 m")
-                    yield NumberField("Index ±", field_id="fault-ior-u",
-                                      value=f"{DEFAULT_GROUP_INDEX_UNCERTAINTY:g}")
+                    yield QuantityField(
+                        "Offset",
+                        expect=Kind.LENGTH,
+                        default_unit="m",
+                        field_id="fault-offset",
+                        value=f"{DEFAULT_OFFSET_M:g} m",
+                        placeholder="1 m",
+                    )
+                    yield NumberField(
+                        "Scale %", field_id="fault-scale", value=f"{DEFAULT_SCALE_ERROR_PERCENT:g}"
+                    )
+                    yield QuantityField(
+                        "Sampling",
+                        expect=Kind.LENGTH,
+                        default_unit="m",
+                        field_id="fault-sampling",
+                        value=f"{DEFAULT_SAMPLE_SPACING_M:g} m",
+                        placeholder="1 m",
+                    )
+                    yield NumberField(
+                        "Index ±",
+                        field_id="fault-ior-u",
+                        value=f"{DEFAULT_GROUP_INDEX_UNCERTAINTY:g}",
+                    )
                     yield NumberField("Helix ± %", field_id="fault-helix-u", value="0.5")
-                    yield QuantityField("Landmark ±", expect=Kind.LENGTH, default_unit="m",
-                                        field_id="fault-landmark-u", value="0 m",
-                                        placeholder="route records")
+                    yield QuantityField(
+                        "Landmark ±",
+                        expect=Kind.LENGTH,
+                        default_unit="m",
+                        field_id="fault-landmark-u",
+                        value="0 m",
+                        placeholder="route records",
+                    )
             with Vertical(classes="col", id="fault-outputs"):
                 with Vertical(classes="panel", id="fault-result-panel") as panel:
                     panel.border_title = "Where to look"
                     with Horizontal(classes="fault-row"):
                         yield Label("Show in", classes="fault-label")
-                        yield Select([(u, u) for u in OUTPUT_UNITS], value="m",
-                                     allow_blank=False, compact=True, id="fault-unit")
+                        yield Select(
+                            [(u, u) for u in OUTPUT_UNITS],
+                            value="m",
+                            allow_blank=False,
+                            compact=True,
+                            id="fault-unit",
+                        )
                     yield Static("", id="fault-result", classes="result")
                     yield Static("", id="fault-warnings", classes="result")
-                    yield Static(f"{safety.DIGGING}\n{safety.DEFER}", id="fault-cautions",
-                                 classes="caution")
+                    yield Static(
+                        f"{safety.DIGGING}\n{safety.DEFER}", id="fault-cautions", classes="caution"
+                    )
                 with Vertical(classes="panel", id="fault-route-panel") as panel:
                     panel.border_title = "Route"
                     yield RouteDiagram(id="fault-diagram")
                 with Vertical(classes="panel", id="fault-save-panel") as panel:
                     panel.border_title = "Job"
-                    yield Button("Save onto a job's link (Ctrl+S)", id="fault-save",
-                                 compact=True, variant="primary")
+                    yield Button(
+                        "Save onto a job's link (Ctrl+S)",
+                        id="fault-save",
+                        compact=True,
+                        variant="primary",
+                    )
                     yield Static("", id="fault-saved", classes="field-note")
         yield Footer(compact=True)
 
@@ -523,8 +659,7 @@ class FaultScreen(Screen[None]):
         wavelengths.disabled = False
         current = wavelengths.value
         wavelengths.set_options([(f"{w:g} nm", w) for w in keys])
-        wavelengths.value = (current if current in keys
-                             else 1550.0 if 1550.0 in keys else keys[-1])
+        wavelengths.value = current if current in keys else 1550.0 if 1550.0 in keys else keys[-1]
         self._wavelength_chosen()
 
     def _wavelength_chosen(self) -> None:
@@ -602,19 +737,25 @@ class FaultScreen(Screen[None]):
             self.problem = "Give the OTDR distance or the round-trip time, not both."
             return None
         try:
-            landmarks = tuple(Landmark(v["name"], v["otdr"], v["route"])
-                              for v in self.query_one("#fault-landmarks", PointList).values())
-            slack = tuple(SlackLoop(v["position"], v["length"], v["label"])
-                          for v in self.query_one("#fault-slack", PointList).values())
+            landmarks = tuple(
+                Landmark(v["name"], v["otdr"], v["route"])
+                for v in self.query_one("#fault-landmarks", PointList).values()
+            )
+            slack = tuple(
+                SlackLoop(v["position"], v["length"], v["label"])
+                for v in self.query_one("#fault-slack", PointList).values()
+            )
         except InputError as exc:
             self.problem = str(exc)
             return None
         marking_start = self._n("fault-marking")
         marking = None
         if marking_start is not None:
-            marking = Marking(marking_start,
-                              str(self.query_one("#fault-marking-unit", Select).value),  # type: ignore[arg-type]
-                              str(self.query_one("#fault-marking-direction", Select).value))  # type: ignore[arg-type]
+            marking = Marking(
+                marking_start,
+                str(self.query_one("#fault-marking-unit", Select).value),  # type: ignore[arg-type]
+                str(self.query_one("#fault-marking-direction", Select).value),
+            )  # type: ignore[arg-type]
         from_b, total = self._q("fault-from-b"), self._q("fault-total")
         two = TwoEnded(from_b, total) if from_b is not None and total is not None else None
         defaults = ErrorTerms()
@@ -627,10 +768,10 @@ class FaultScreen(Screen[None]):
             offset_m=given(self._q("fault-offset"), defaults.offset_m),
             scale_error_percent=given(self._n("fault-scale"), defaults.scale_error_percent),
             sample_spacing_m=given(self._q("fault-sampling"), defaults.sample_spacing_m),
-            group_index_uncertainty=given(self._n("fault-ior-u"),
-                                          defaults.group_index_uncertainty),
-            helix_uncertainty_percent=(given(self._n("fault-helix-u"), 0.0)
-                                       if helix is not None else 0.0),
+            group_index_uncertainty=given(self._n("fault-ior-u"), defaults.group_index_uncertainty),
+            helix_uncertainty_percent=(
+                given(self._n("fault-helix-u"), 0.0) if helix is not None else 0.0
+            ),
             landmark_route_uncertainty_m=given(self._q("fault-landmark-u"), 0.0),
         )
         field_problem = self._field_errors()
@@ -640,9 +781,17 @@ class FaultScreen(Screen[None]):
         if (from_b is None) != (total is None):
             self.problem = "The two-ended check needs both the distance from B and the total."
         return LocateInput(
-            otdr_distance_m=distance, round_trip_time_s=time, index_set=self._n("fault-ior-set"),
-            group_index=self._n("fault-ior"), helix_percent=helix, slack=slack,
-            landmarks=landmarks, marking=marking, two_ended=two, errors=errors)
+            otdr_distance_m=distance,
+            round_trip_time_s=time,
+            index_set=self._n("fault-ior-set"),
+            group_index=self._n("fault-ior"),
+            helix_percent=helix,
+            slack=slack,
+            landmarks=landmarks,
+            marking=marking,
+            two_ended=two,
+            errors=errors,
+        )
 
     def _field_errors(self) -> str | None:
         for error in self.query(".field-error"):
@@ -700,8 +849,10 @@ class FaultScreen(Screen[None]):
         where = ""
         if _has_landmark(p) and p.nearest_landmark and p.offset_from_landmark_m is not None:
             where = f" · {describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)}"
-        summary.update(f"Fault {format_distance(p.route_distance_m, unit)} ± "
-                       f"{format_distance(p.uncertainty_m, unit)}{where}")
+        summary.update(
+            f"Fault {format_distance(p.route_distance_m, unit)} ± "
+            f"{format_distance(p.uncertainty_m, unit)}{where}"
+        )
         summary.set_class(False, "-problem")
         diagram.show(points, FaultMark(p.route_distance_m, p.low_m, p.high_m), unit)
 
@@ -733,11 +884,13 @@ class FaultScreen(Screen[None]):
             self.notify(self.problem or "Nothing located yet to save.", severity="warning")
             return
         location, inputs = self.location, dict(self.inputs)
-        self.app.push_screen(JobLinkPicker(), lambda choice: self._save_to(choice, location,
-                                                                           inputs))
+        self.app.push_screen(
+            JobLinkPicker(), lambda choice: self._save_to(choice, location, inputs)
+        )
 
-    def _save_to(self, choice: tuple[str, str] | None, location: Location,
-                 inputs: dict[str, Any]) -> None:
+    def _save_to(
+        self, choice: tuple[str, str] | None, location: Location, inputs: dict[str, Any]
+    ) -> None:
         from fieldkit import settings
         from fieldkit.commands.locate import fault_record, save_fault
         from fieldkit.jobs.store import StoreError
@@ -755,7 +908,9 @@ class FaultScreen(Screen[None]):
             self.query_one("#fault-saved", Static).update(f"Not saved: {message}")
             return
         label = next((link.label for link in job.links if link.id == link_id), link_id)
-        text = (f"Saved onto {job.name} / {label}: "
-                f"{format_distance(record.route_distance_m, self.unit)} on the route.")
+        text = (
+            f"Saved onto {job.name} / {label}: "
+            f"{format_distance(record.route_distance_m, self.unit)} on the route."
+        )
         self.query_one("#fault-saved", Static).update(text)
         self.notify(text)

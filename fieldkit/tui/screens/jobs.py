@@ -161,12 +161,24 @@ class JobsScreen(Screen[None]):
                 yield Static("Pick a job on the list.", id="job-head")
                 # At hand without scrolling: on a phone terminal the footer has no room for them.
                 with Horizontal(id="job-actions"):
-                    yield Button("Done ^O", id="job-done", compact=True,
-                                 tooltip="Mark the job done, or open it again (Ctrl+O)")
-                    yield Button("Export F8", id="job-export", compact=True,
-                                 tooltip="Write the job report: CSV, Markdown, HTML, JSON")
-                    yield Button("End of day F7", id="job-today", compact=True,
-                                 tooltip="Today's jobs, counts, failures and open items")
+                    yield Button(
+                        "Done ^O",
+                        id="job-done",
+                        compact=True,
+                        tooltip="Mark the job done, or open it again (Ctrl+O)",
+                    )
+                    yield Button(
+                        "Export F8",
+                        id="job-export",
+                        compact=True,
+                        tooltip="Write the job report: CSV, Markdown, HTML, JSON",
+                    )
+                    yield Button(
+                        "End of day F7",
+                        id="job-today",
+                        compact=True,
+                        tooltip="Today's jobs, counts, failures and open items",
+                    )
                 yield Static("", id="job-summary")
                 yield Static("", id="job-failures")
                 yield Static("", id="job-links")

@@ -63,8 +63,10 @@ class EndOfDayScreen(ModalScreen[str | None]):
         t = summary.totals()
         self.query_one("#eod-title", Label).update(f"End of day {self._day.isoformat()}")
         totals = Text()
-        totals.append(f"{counted(t['jobs'], 'job')} ({t['open_jobs']} open), "
-                      f"{counted(t['results_today'], 'result')} today\n")
+        totals.append(
+            f"{counted(t['jobs'], 'job')} ({t['open_jobs']} open), "
+            f"{counted(t['results_today'], 'result')} today\n"
+        )
         totals.append(f"{t['passed']} pass", "green")
         totals.append(" · ")
         totals.append(f"{t['failed']} fail", "bold red" if t["failed"] else "")

@@ -96,16 +96,44 @@ class MeterScreen(Screen[None]):
         Binding("up", "move(-1)", "Prev fibre", show=False, id="meter.prev"),
         Binding("pagedown", "move(12)", "+12", show=False, id="meter.page_down"),
         Binding("pageup", "move(-12)", "-12", show=False, id="meter.page_up"),
-        Binding("f7", "column(-1)", "Prev col", show=False, id="meter.prev_column",
-                tooltip="Previous wavelength/direction column"),
-        Binding("f8", "column(1)", "Next col", show=False, id="meter.next_column",
-                tooltip="Next wavelength/direction column"),
-        Binding("f9", "clear_cell", "Clear", show=False, id="meter.clear",
-                tooltip="Remove the reading of the cell under the cursor"),
-        Binding("ctrl+o", "pick_job", "Job", id="meter.job",
-                tooltip="Choose the job and link the results are saved into"),
-        Binding("ctrl+r", "recheck", "Recheck", id="meter.recheck",
-                tooltip="Recheck the reference of this column at the end of the session"),
+        Binding(
+            "f7",
+            "column(-1)",
+            "Prev col",
+            show=False,
+            id="meter.prev_column",
+            tooltip="Previous wavelength/direction column",
+        ),
+        Binding(
+            "f8",
+            "column(1)",
+            "Next col",
+            show=False,
+            id="meter.next_column",
+            tooltip="Next wavelength/direction column",
+        ),
+        Binding(
+            "f9",
+            "clear_cell",
+            "Clear",
+            show=False,
+            id="meter.clear",
+            tooltip="Remove the reading of the cell under the cursor",
+        ),
+        Binding(
+            "ctrl+o",
+            "pick_job",
+            "Job",
+            id="meter.job",
+            tooltip="Choose the job and link the results are saved into",
+        ),
+        Binding(
+            "ctrl+r",
+            "recheck",
+            "Recheck",
+            id="meter.recheck",
+            tooltip="Recheck the reference of this column at the end of the session",
+        ),
     ]
 
     def __init__(self) -> None:
@@ -140,56 +168,102 @@ class MeterScreen(Screen[None]):
         yield WorkspaceBar()
         with Vertical(id="meter-body"):
             with Grid(id="meter-setup"):
-                yield from self._field("Method", "method", "one-cord",
-                                       "one-cord, two-cord or three-cord (TIA Method B, A or C)")
-                yield from self._field("Wavelength", "wavelengths", "1310 1550",
-                                       "Test wavelengths, e.g. 1310 1550 or 850 1300")
+                yield from self._field(
+                    "Method",
+                    "method",
+                    "one-cord",
+                    "one-cord, two-cord or three-cord (TIA Method B, A or C)",
+                )
+                yield from self._field(
+                    "Wavelength",
+                    "wavelengths",
+                    "1310 1550",
+                    "Test wavelengths, e.g. 1310 1550 or 850 1300",
+                )
                 yield from self._field("Fibres", "fibres", "12", "Number of fibres in the cable")
-                yield from self._field("Directions", "directions", "1",
-                                       "1: A->B only; 2: both directions (each its own reference)",
-                                       meaning=DIRECTION_WORDS["1"])
-                yield from self._field("Ref", "reference", "",
-                                       "Reference level of this column: dBm, or µW, nW, mW",
-                                       placeholder="dBm")
-                yield from self._field("Limit", "limit", "",
-                                       "Largest loss allowed at this wavelength, dB; empty: "
-                                       "from the link's budget, counting the method's end "
-                                       "connections")
+                yield from self._field(
+                    "Directions",
+                    "directions",
+                    "1",
+                    "1: A->B only; 2: both directions (each its own reference)",
+                    meaning=DIRECTION_WORDS["1"],
+                )
+                yield from self._field(
+                    "Ref",
+                    "reference",
+                    "",
+                    "Reference level of this column: dBm, or µW, nW, mW",
+                    placeholder="dBm",
+                )
+                yield from self._field(
+                    "Limit",
+                    "limit",
+                    "",
+                    "Largest loss allowed at this wavelength, dB; empty: "
+                    "from the link's budget, counting the method's end "
+                    "connections",
+                )
             with Collapsible(title="Reference details", id="meter-details", collapsed=True):
                 with Grid(id="meter-details-grid"):
                     yield from self._field("Source", "source", "", "Light source identifier")
                     yield from self._field("Meter", "meter", "", "Power meter identifier")
-                    yield from self._field("Cords", "cords", "",
-                                           "Reference cords used, separated by commas")
-                    yield from self._field("Launch", "launch", "",
-                                           "Launch condition (multimode), e.g. encircled flux")
-                    yield from self._field("Src out", "source-level", "",
-                                           "What the source should deliver through a good cord, "
-                                           "dBm (default -20 multimode, -7 single-mode; common "
-                                           "practice)")
+                    yield from self._field(
+                        "Cords", "cords", "", "Reference cords used, separated by commas"
+                    )
+                    yield from self._field(
+                        "Launch", "launch", "", "Launch condition (multimode), e.g. encircled flux"
+                    )
+                    yield from self._field(
+                        "Src out",
+                        "source-level",
+                        "",
+                        "What the source should deliver through a good cord, "
+                        "dBm (default -20 multimode, -7 single-mode; common "
+                        "practice)",
+                    )
                     yield from self._field("By", "by", "", "Who takes the readings")
                 yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="meter-caution")
             yield Static("", id="reference-note", classes="field-note")
             with Horizontal(id="meter-entry"):
                 yield Label("", id="entry-where")
-                yield EntryInput(placeholder="reading, dBm", type="text",
-                                 restrict=QUANTITY_CHARS, compact=True, id="reading",
-                                 check=self._reading_acceptable,
-                                 tooltip="Type the reading and press Enter; Up/Down move "
-                                 "between fibres, F7/F8 between columns")
+                yield EntryInput(
+                    placeholder="reading, dBm",
+                    type="text",
+                    restrict=QUANTITY_CHARS,
+                    compact=True,
+                    id="reading",
+                    check=self._reading_acceptable,
+                    tooltip="Type the reading and press Enter; Up/Down move "
+                    "between fibres, F7/F8 between columns",
+                )
             yield Static("", id="entry-message", classes="field-note")
             with Horizontal(id="meter-main"):
                 yield ReadingsGrid(id="readings")
                 yield Static("", id="meter-summary")
         yield Footer(compact=True)
 
-    def _field(self, label: str, field_id: str, value: str, tooltip: str, *,
-               meaning: str | None = None, placeholder: str = "") -> ComposeResult:
+    def _field(
+        self,
+        label: str,
+        field_id: str,
+        value: str,
+        tooltip: str,
+        *,
+        meaning: str | None = None,
+        placeholder: str = "",
+    ) -> ComposeResult:
         with Vertical(classes="meter-field", id=f"{field_id}-box"):
             with Horizontal():
                 yield Label(label, classes="meter-label")
-                yield Input(value=value, type="text", restrict=QUANTITY_CHARS, compact=True,
-                            id=field_id, tooltip=tooltip, placeholder=placeholder)
+                yield Input(
+                    value=value,
+                    type="text",
+                    restrict=QUANTITY_CHARS,
+                    compact=True,
+                    id=field_id,
+                    tooltip=tooltip,
+                    placeholder=placeholder,
+                )
                 if meaning is not None:
                     # What the number means, beside it: "1 A→B", "2 both".
                     yield Label(meaning, classes="meter-meaning", id=f"{field_id}-meaning")
@@ -370,8 +444,9 @@ class MeterScreen(Screen[None]):
         for part in parts:
             nm = parse(part, Kind.LENGTH, default_unit="nm", what="wavelength").to("nm")
             if not 600 <= nm <= 1700:
-                raise InputError(f"wavelength: {nm:g} nm is outside the fibre test bands "
-                                 "(600-1700 nm)")
+                raise InputError(
+                    f"wavelength: {nm:g} nm is outside the fibre test bands (600-1700 nm)"
+                )
             if any(abs(nm - w) <= 0.5 for w in out):
                 raise InputError(f"wavelength: {nm:g} nm is listed twice")
             out.append(round(nm, 3))
@@ -473,8 +548,12 @@ class MeterScreen(Screen[None]):
         budget = self._budget_limits.get(self.active_column.wavelength_nm)
         # The note above says the limit is the budget's; 44 columns leave 10 for the field.
         self.query_one("#limit", Input).placeholder = (
-            "dB" if not budget else f"{budget[0]:.2f} dB" if self.narrow
-            else f"{budget[0]:.2f} budget")
+            "dB"
+            if not budget
+            else f"{budget[0]:.2f} dB"
+            if self.narrow
+            else f"{budget[0]:.2f} budget"
+        )
 
     def _sync_column_fields(self, force: bool = False) -> None:
         """Show the active column's reference and its wavelength's limit in the fields.
@@ -492,8 +571,9 @@ class MeterScreen(Screen[None]):
             self._show_error("reference", "")
             self._show_error("limit", "")
         self.query_one("#reference-box Label", Label).update(
-            f"Ref {column.wavelength_nm:g}" + ("" if len(self._directions) == 1
-                                                else " →" if column.direction == "A->B" else " ←"))
+            f"Ref {column.wavelength_nm:g}"
+            + ("" if len(self._directions) == 1 else " →" if column.direction == "A->B" else " ←")
+        )
         self._show_limit_placeholder()
         self._show_reference_note()
 
@@ -503,11 +583,13 @@ class MeterScreen(Screen[None]):
         note = self.query_one("#reference-note", Static)
         if current is None:
             # Setting a reference means handling live cords: the caution goes with the prompt.
-            note.update(f"Set the reference for {column.heading} (Ref), then type readings.\n"
-                        f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)"
-                        if not self.narrow else
-                        f"Set Ref {column.heading}, then type readings.\n"
-                        f"⚠ {safety.INVISIBLE_LIGHT_SHORT}")
+            note.update(
+                f"Set the reference for {column.heading} (Ref), then type readings.\n"
+                f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)"
+                if not self.narrow
+                else f"Set Ref {column.heading}, then type readings.\n"
+                f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"
+            )
             return
         source_dbm = None
         source_text = self.query_one("#source-level", Input).value
@@ -518,8 +600,11 @@ class MeterScreen(Screen[None]):
             except InputError as exc:
                 self._show_error("source-level", str(exc))
         warnings = ref.reference_warnings(
-            current.level_dbm, source_dbm=source_dbm, wavelength_nm=column.wavelength_nm,
-            launch_condition=self.query_one("#launch", Input).value)
+            current.level_dbm,
+            source_dbm=source_dbm,
+            wavelength_nm=column.wavelength_nm,
+            launch_condition=self.query_one("#launch", Input).value,
+        )
         method = self._method
         budget = self._budget_limits.get(column.wavelength_nm)
         # The method's TIA letter is in the Method field's tooltip; a phone has one line here.
@@ -595,8 +680,11 @@ class MeterScreen(Screen[None]):
             self._say(str(exc), error=True)
             return
         if current is None:
-            self._say(f"Set the reference for {column.heading} first (the Ref field); "
-                      "the reading is kept here.", error=True)
+            self._say(
+                f"Set the reference for {column.heading} first (the Ref field); "
+                "the reading is kept here.",
+                error=True,
+            )
             return
         if not event.accepted:
             # Refused when Enter was pressed but fine now (the reference was set since):
@@ -607,17 +695,31 @@ class MeterScreen(Screen[None]):
         self._cells[(self._fibre, column.wavelength_nm, direction)] = cell
         self._refresh_cell(self._fibre, column.wavelength_nm, direction)
         verdict = ref.judge(cell.loss_db, self._limit_db(column.wavelength_nm))
-        self._say(self._verdict_words(self._fibre, column, verdict, short=self.narrow),
-                  error=verdict.status is ref.Status.REFERENCE_PROBLEM)
-        self._queue(("put", self._fibre, column.wavelength_nm, direction, reading_dbm,
-                     current.level_dbm, self._method, self._limit_db(column.wavelength_nm),
-                     stamp, {**self._details(), "at": current.set_at}))
+        self._say(
+            self._verdict_words(self._fibre, column, verdict, short=self.narrow),
+            error=verdict.status is ref.Status.REFERENCE_PROBLEM,
+        )
+        self._queue(
+            (
+                "put",
+                self._fibre,
+                column.wavelength_nm,
+                direction,
+                reading_dbm,
+                current.level_dbm,
+                self._method,
+                self._limit_db(column.wavelength_nm),
+                stamp,
+                {**self._details(), "at": current.set_at},
+            )
+        )
         self.action_move(1)
         self._summary_soon()
 
     @staticmethod
-    def _verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict, *,
-                       short: bool = False) -> str:
+    def _verdict_words(
+        fibre: int, column: GridColumn, verdict: ref.Verdict, *, short: bool = False
+    ) -> str:
         """What the reading came to; ``short``: in one line of 42 columns (a phone terminal)."""
         head = f"fibre {fibre} {column.heading}: {verdict.loss_db:.2f} dB"
         if verdict.status is ref.Status.REFERENCE_PROBLEM:
@@ -635,19 +737,23 @@ class MeterScreen(Screen[None]):
         def text(field_id: str) -> str:
             return self.query_one(f"#{field_id}", Input).value.strip()
 
-        return {"source_id": text("source"), "meter_id": text("meter"),
-                "cords": [c.strip() for c in text("cords").split(",") if c.strip()],
-                "launch_condition": text("launch") or None, "by": text("by")}
+        return {
+            "source_id": text("source"),
+            "meter_id": text("meter"),
+            "cords": [c.strip() for c in text("cords").split(",") if c.strip()],
+            "launch_condition": text("launch") or None,
+            "by": text("by"),
+        }
 
     def _show_entry_where(self) -> None:
         column = self.active_column
         cell = self._cells.get((self._fibre, column.wavelength_nm, column.direction or "A->B"))
-        self.query_one("#entry-where", Label).update(f"fibre {self._fibre} {column.heading}",
-                                                    layout=False)
+        self.query_one("#entry-where", Label).update(
+            f"fibre {self._fibre} {column.heading}", layout=False
+        )
         reading = self.query_one("#reading", Input)
         replace = "" if self.narrow else "; type to replace"  # 21 columns at 44
-        reading.placeholder = (f"now {cell.reading_dbm:.2f} dBm{replace}" if cell
-                               else "reading, dBm")
+        reading.placeholder = f"now {cell.reading_dbm:.2f} dBm{replace}" if cell else "reading, dBm"
 
     def action_move(self, step: int) -> None:
         fibre = self._fibre + step
@@ -723,8 +829,11 @@ class MeterScreen(Screen[None]):
         if self._summary_timer is not None:
             self._summary_timer.stop()
             self._summary_timer = None
-        readings = [(fibre, w, d, cell.loss_db) for (fibre, w, d), cell in self._cells.items()
-                    if fibre <= self._fibres and w in self._wavelengths and d in self._directions]
+        readings = [
+            (fibre, w, d, cell.loss_db)
+            for (fibre, w, d), cell in self._cells.items()
+            if fibre <= self._fibres and w in self._wavelengths and d in self._directions
+        ]
         limits = {w: self._limit_db(w) for w in self._wavelengths}
         lines: list[str] = []
         # On a phone terminal the summary has five rows: each line fits the width (shorter
@@ -742,11 +851,15 @@ class MeterScreen(Screen[None]):
             if s.reference_problems:
                 counts += f", {s.reference_problems} ref?"
             tally = f"{s.fibres}/{self._fibres}, {counts}"
-            lines.append(_fit(width, f"{w:g} nm {limit_words}: {tally}",
-                              f"{w:g} {limit_words}: {tally}",
-                              f"{w:g} {limit_words} {s.fibres}/{self._fibres}: "
-                              + counts.replace(",", ""),
-                              f"{w:g}: {tally}"))
+            lines.append(
+                _fit(
+                    width,
+                    f"{w:g} nm {limit_words}: {tally}",
+                    f"{w:g} {limit_words}: {tally}",
+                    f"{w:g} {limit_words} {s.fibres}/{self._fibres}: " + counts.replace(",", ""),
+                    f"{w:g}: {tally}",
+                )
+            )
             worst = [f"{f} {loss:.2f}" for f, loss in s.worst]
             while len(worst) > 1 and width and len("  worst fibre " + ", ".join(worst)) > width:
                 worst.pop()
@@ -783,8 +896,9 @@ class MeterScreen(Screen[None]):
     def action_pick_job(self) -> None:
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
-        self.app.push_screen(JobLinkPicker(title="Save readings onto a job's link"),
-                             self._job_picked)
+        self.app.push_screen(
+            JobLinkPicker(title="Save readings onto a job's link"), self._job_picked
+        )
 
     def _job_picked(self, choice: tuple[str, str] | None) -> None:
         if choice:
@@ -808,11 +922,25 @@ class MeterScreen(Screen[None]):
         # Readings typed before a job was chosen go into it now (they win over the link's).
         for (fibre, w, d), cell in typed_before.items():
             column_ref = self._refs.get((w, d))
-            set_at = (column_ref.set_at if column_ref is not None
-                      and abs(column_ref.level_dbm - cell.reference_dbm) < 1e-9 else cell.at)
-            self._queue(("put", fibre, w, d, cell.reading_dbm, cell.reference_dbm,
-                         self._method, self._limit_db(w), cell.at,
-                         {**self._details(), "at": set_at}))
+            set_at = (
+                column_ref.set_at
+                if column_ref is not None and abs(column_ref.level_dbm - cell.reference_dbm) < 1e-9
+                else cell.at
+            )
+            self._queue(
+                (
+                    "put",
+                    fibre,
+                    w,
+                    d,
+                    cell.reading_dbm,
+                    cell.reference_dbm,
+                    self._method,
+                    self._limit_db(w),
+                    cell.at,
+                    {**self._details(), "at": set_at},
+                )
+            )
         self._rebuild_grid()
         self._sync_column_fields(force=True)
         self._show_entry_where()
@@ -832,8 +960,9 @@ class MeterScreen(Screen[None]):
                 continue
             key = (r.fibre, round(r.wavelength_nm, 3), r.direction)
             if key not in self._cells:
-                self._cells[key] = Cell(r.reading_dbm, reference.level_dbm, r.at,
-                                        in_doubt=result_in_doubt(link, r))
+                self._cells[key] = Cell(
+                    r.reading_dbm, reference.level_dbm, r.at, in_doubt=result_in_doubt(link, r)
+                )
         for reference in sorted(link.references, key=lambda x: x.at):
             if reference.kind != "initial":
                 continue
@@ -842,8 +971,12 @@ class MeterScreen(Screen[None]):
             column_key = (round(reference.wavelength_nm, 3), direction)
             if column_key not in self._refs:
                 self._refs[column_key] = ColumnReference(
-                    reference.level_dbm, reference.at, reference.at, reference.id,
-                    reference.in_doubt_since is not None)
+                    reference.level_dbm,
+                    reference.at,
+                    reference.at,
+                    reference.id,
+                    reference.in_doubt_since is not None,
+                )
                 self._ref_text[column_key] = f"{reference.level_dbm:g}"
         for w in wavelengths:
             if w not in self._wavelengths:
@@ -894,7 +1027,7 @@ class MeterScreen(Screen[None]):
                 self.app.call_from_thread(self._save_failed, str(exc))
                 return
             with self._lock:
-                del self._pending[:len(ops)]
+                del self._pending[: len(ops)]
             self.app.call_from_thread(self._save_done, outcome)
 
     def _save(self, ops: list[tuple[Any, ...]]) -> SaveOutcome:
@@ -913,11 +1046,20 @@ class MeterScreen(Screen[None]):
                 if kind == "put":
                     _, fibre, w, d, reading_dbm, reference_dbm, method, limit_db, at, details = op
                     record = meter_log.reuse_or_add_reference(
-                        link, wavelength_nm=w, level_dbm=reference_dbm, method=method, **details)
+                        link, wavelength_nm=w, level_dbm=reference_dbm, method=method, **details
+                    )
                     outcome.reference_ids[(w, d, reference_dbm)] = record.id
-                    meter_log.put_result(link, fibre=fibre, wavelength_nm=w, direction=d,
-                                         reading_dbm=reading_dbm, reference=record,
-                                         limit_db=limit_db, by=details["by"], at=at)
+                    meter_log.put_result(
+                        link,
+                        fibre=fibre,
+                        wavelength_nm=w,
+                        direction=d,
+                        reading_dbm=reading_dbm,
+                        reference=record,
+                        limit_db=limit_db,
+                        by=details["by"],
+                        at=at,
+                    )
                 elif kind == "remove":
                     _, fibre, w, d = op
                     meter_log.remove_result(link, fibre=fibre, wavelength_nm=w, direction=d)
@@ -931,16 +1073,26 @@ class MeterScreen(Screen[None]):
                             result.passed = ref.judge(result.loss_db, limit_db).passed
                 elif kind == "recheck":
                     _, w, d, reference_dbm, method, level_dbm, tolerance_db, at, by = op
-                    matching = [r for r in link.references
-                                if r.kind == "initial" and abs(r.wavelength_nm - w) <= 0.5
-                                and abs(r.level_dbm - reference_dbm) < 1e-9
-                                and r.method == method.value]
+                    matching = [
+                        r
+                        for r in link.references
+                        if r.kind == "initial"
+                        and abs(r.wavelength_nm - w) <= 0.5
+                        and abs(r.level_dbm - reference_dbm) < 1e-9
+                        and r.method == method.value
+                    ]
                     if not matching:
                         continue
                     initial = max(matching, key=lambda r: r.at)
                     result = meter_log.recheck_reference(
-                        link, wavelength_nm=w, level_dbm=level_dbm, tolerance_db=tolerance_db,
-                        by=by, at=at, reference_id=initial.id)
+                        link,
+                        wavelength_nm=w,
+                        level_dbm=level_dbm,
+                        tolerance_db=tolerance_db,
+                        by=by,
+                        at=at,
+                        reference_id=initial.id,
+                    )
                     outcome.rechecks.append((f"{w:g} {d}", result.drift, len(result.in_doubt_ids)))
             outcome.saved = len(link.results)
 
@@ -956,9 +1108,11 @@ class MeterScreen(Screen[None]):
                 current.reference_id = reference_id
         for column, drift, doubted in outcome.rechecks:
             if not drift.within:
-                self.notify(f"{column}: {drift.message} "
-                            f"({counted(doubted, 'result')} marked in doubt)",
-                            severity="warning", timeout=10)
+                self.notify(
+                    f"{column}: {drift.message} ({counted(doubted, 'result')} marked in doubt)",
+                    severity="warning",
+                    timeout=10,
+                )
         self._show_summary()
 
     def flush_saves(self, timeout_s: float = 5.0) -> bool:
@@ -991,7 +1145,7 @@ class MeterScreen(Screen[None]):
             with self._lock:
                 self._saving = False
         with self._lock:
-            del self._pending[:len(ops)]
+            del self._pending[: len(ops)]
             return not self._pending
 
     def on_unmount(self) -> None:
@@ -999,8 +1153,11 @@ class MeterScreen(Screen[None]):
 
     def _save_failed(self, message: str) -> None:
         self._save_error = message
-        self.notify(f"Readings not saved (kept here; saving again with the next entry): "
-                    f"{message}", severity="error", timeout=10)
+        self.notify(
+            f"Readings not saved (kept here; saving again with the next entry): {message}",
+            severity="error",
+            timeout=10,
+        )
         self._show_summary()
 
     # -- recheck ------------------------------------------------------------------------
@@ -1032,14 +1189,28 @@ class MeterScreen(Screen[None]):
         else:
             current.in_doubt = True
             for (fibre, w, d), cell in self._cells.items():
-                if (w == column.wavelength_nm and d == direction
-                        and abs(cell.reference_dbm - current.level_dbm) < 1e-9
-                        and cell.at >= current.last_good_at):
+                if (
+                    w == column.wavelength_nm
+                    and d == direction
+                    and abs(cell.reference_dbm - current.level_dbm) < 1e-9
+                    and cell.at >= current.last_good_at
+                ):
                     cell.in_doubt = True
                     self._refresh_cell(fibre, w, d)
         self._say(f"{column.heading}: {drift.message}", error=not drift.within)
-        self._queue(("recheck", column.wavelength_nm, direction, current.level_dbm, self._method,
-                     level_dbm, tolerance_db, stamp, self._details()["by"]))
+        self._queue(
+            (
+                "recheck",
+                column.wavelength_nm,
+                direction,
+                current.level_dbm,
+                self._method,
+                level_dbm,
+                tolerance_db,
+                stamp,
+                self._details()["by"],
+            )
+        )
         self._show_reference_note()
         self._show_summary()
         return drift

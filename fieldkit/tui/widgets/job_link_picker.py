@@ -81,8 +81,13 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         Binding("escape", "cancel", "Cancel", id="job_link_picker.cancel"),
     ]
 
-    def __init__(self, store: JobStore | None = None, *, job_id: str | None = None,
-                 title: str = "Save onto a job's link") -> None:
+    def __init__(
+        self,
+        store: JobStore | None = None,
+        *,
+        job_id: str | None = None,
+        title: str = "Save onto a job's link",
+    ) -> None:
         super().__init__()
         self._store = store
         self._initial_job = job_id

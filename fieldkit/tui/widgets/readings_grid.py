@@ -46,13 +46,15 @@ class ReadingsGrid(DataTable[Text]):
     """
 
     def __init__(self, *, id: str | None = None) -> None:  # noqa: A002 - Textual's own name
-        super().__init__(id=id, cursor_type="cell", zebra_stripes=True, show_row_labels=False,
-                         fixed_columns=1)
+        super().__init__(
+            id=id, cursor_type="cell", zebra_stripes=True, show_row_labels=False, fixed_columns=1
+        )
         self.columns_shown: list[GridColumn] = []
         self.fibres = 0
 
-    def set_layout(self, fibres: int, columns: list[GridColumn],
-                   cells: dict[tuple[int, str], Text]) -> None:
+    def set_layout(
+        self, fibres: int, columns: list[GridColumn], cells: dict[tuple[int, str], Text]
+    ) -> None:
         """Rebuild the grid for ``fibres`` rows and ``columns``, filled from ``cells``."""
         self.clear(columns=True)
         self.fibres = fibres
@@ -108,8 +110,9 @@ class EntryInput(Input):
         def control(self) -> EntryInput:
             return self.entry
 
-    def __init__(self, *args: object, check: Callable[[str], bool] | None = None,
-                 **kwargs: object) -> None:
+    def __init__(
+        self, *args: object, check: Callable[[str], bool] | None = None, **kwargs: object
+    ) -> None:
         super().__init__(*args, **kwargs)  # type: ignore[arg-type]
         self._check = check
 

@@ -65,20 +65,30 @@ class RecheckDialog(ModalScreen[tuple[float, float] | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="rc-dialog"):
-            yield Label(f"Recheck the reference of {self._column} "
-                        f"(set at {self._initial_dbm:.2f} dBm)")
+            yield Label(
+                f"Recheck the reference of {self._column} (set at {self._initial_dbm:.2f} dBm)"
+            )
             # The reference cord goes back on the meter with the source on.
             yield Static(f"⚠ {safety.INVISIBLE_LIGHT_SHORT}", id="rc-caution")
             with Horizontal():
                 yield Label("Level now", classes="rc-label")
-                yield Input(placeholder="dBm, or µW, nW", type="text", restrict=QUANTITY_CHARS,
-                            compact=True, id="rc-level")
+                yield Input(
+                    placeholder="dBm, or µW, nW",
+                    type="text",
+                    restrict=QUANTITY_CHARS,
+                    compact=True,
+                    id="rc-level",
+                )
             with Horizontal():
                 yield Label("Tolerance", classes="rc-label")
-                yield Input(value=f"{self._tolerance_db:g}", type="text",
-                            restrict=QUANTITY_CHARS, compact=True, id="rc-tolerance",
-                            tooltip="Drift allowed, dB (common practice: 0.1 single-mode, "
-                            "0.2 multimode)")
+                yield Input(
+                    value=f"{self._tolerance_db:g}",
+                    type="text",
+                    restrict=QUANTITY_CHARS,
+                    compact=True,
+                    id="rc-tolerance",
+                    tooltip="Drift allowed, dB (common practice: 0.1 single-mode, 0.2 multimode)",
+                )
             yield Static("", id="rc-out")
             with Horizontal(id="rc-buttons"):
                 yield Button("Cancel", id="rc-cancel")
@@ -93,8 +103,9 @@ class RecheckDialog(ModalScreen[tuple[float, float] | None]):
             return "Type the level the meter reads now through the reference cords."
         try:
             level_dbm = ref.level_dbm(level_text, "level now")
-            tolerance_db = ref.loss_limit_db(self.query_one("#rc-tolerance", Input).value,
-                                             "tolerance")
+            tolerance_db = ref.loss_limit_db(
+                self.query_one("#rc-tolerance", Input).value, "tolerance"
+            )
             drift = ref.reference_drift(self._initial_dbm, level_dbm, tolerance_db)
         except InputError as exc:
             return str(exc)

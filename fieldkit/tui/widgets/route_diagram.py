@@ -45,8 +45,9 @@ def _symbol(index: int) -> str:
     return _LANDMARK_SYMBOLS[index] if index < len(_LANDMARK_SYMBOLS) else "+"
 
 
-def render_route(points: Sequence[RoutePoint], fault: FaultMark | None, width: int,
-                 unit: str = "m") -> list[str]:
+def render_route(
+    points: Sequence[RoutePoint], fault: FaultMark | None, width: int, unit: str = "m"
+) -> list[str]:
     """The diagram as lines no wider than ``width`` (at least 20).
 
     Landmarks are numbered 1, 2, 3 ... in route order on the strip and in the legend.
