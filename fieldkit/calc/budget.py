@@ -621,8 +621,8 @@ def _mismatch_item(
             loss_db=loss,
             typical_loss_db=loss,
             loss_min_db=loss,
-            source=f"single-mode mode-field mismatch, Gaussian overlap −10·log10((2w1w2/(w1²+w2²))²), "
-            f"MFD {w1:g} / {w2:g} µm at {_nm(nm)}",
+            source="single-mode mode-field mismatch, Gaussian overlap "
+            f"−10·log10((2w1w2/(w1²+w2²))²), MFD {w1:g} / {w2:g} µm at {_nm(nm)}",
         ),
     )
 
