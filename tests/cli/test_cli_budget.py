@@ -1,19 +1,17 @@
-"""``fieldkit budget`` and ``fieldkit presets`` run as a user runs them: a subprocess."""
+"""``fieldkit budget`` and ``fieldkit presets`` as a user runs them (in-process: cli_runner.py)."""
 
 from __future__ import annotations
 
 import json
 import subprocess
-import sys
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", *args], capture_output=True, text=True, timeout=60
-    )
+    return cli_runner.run(*args)
 
 
 def budget_json(*args: str) -> dict:

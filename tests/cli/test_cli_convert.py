@@ -1,18 +1,16 @@
-"""``fieldkit convert`` and ``fieldkit levels`` run as a user runs them: a subprocess."""
+"""``fieldkit convert`` and ``fieldkit levels`` as a user runs them (in-process: cli_runner.py)."""
 
 from __future__ import annotations
 
 import json
 import subprocess
-import sys
 
+import cli_runner
 import pytest
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", *args], capture_output=True, text=True, timeout=60
-    )
+    return cli_runner.run(*args)
 
 
 @pytest.mark.parametrize(

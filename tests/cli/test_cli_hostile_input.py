@@ -1,8 +1,8 @@
 """Hostile and odd input on every command: exit 2 (or 0 where the input is fine), one line on
 stderr naming the problem, never a traceback, never a partial write.
 
-Each case runs the CLI as a user runs it (a subprocess). The data and config folders come from
-the autouse fixture in tests/conftest.py, so nothing touches a real folder.
+Each case runs the CLI as a user runs it (in-process: cli_runner.py). The data and config
+folders come from the autouse fixture in tests/conftest.py, so nothing touches a real folder.
 """
 
 from __future__ import annotations
@@ -11,22 +11,15 @@ import json
 import os
 import shutil
 import subprocess
-import sys
 from collections.abc import Iterator
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 
 def run(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", *args],
-        capture_output=True,
-        text=True,
-        timeout=120,
-        env=dict(os.environ),
-        cwd=cwd,
-    )
+    return cli_runner.run(*args, cwd=cwd)
 
 
 def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> None:

@@ -1,4 +1,4 @@
-"""``fieldkit jobs`` and ``fieldkit demo`` run as a user runs them, in a subprocess."""
+"""``fieldkit jobs`` and ``fieldkit demo`` run as a user runs them, in-process (cli_runner.py)."""
 
 from __future__ import annotations
 
@@ -6,20 +6,15 @@ import csv
 import io
 import json
 import subprocess
-import sys
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 
 def run(*args: str, data: Path | None = None) -> subprocess.CompletedProcess[str]:
     extra = ["--data-dir", str(data)] if data is not None else []
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", *args, *extra],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
+    return cli_runner.run(*args, *extra)
 
 
 def ok(*args: str, data: Path | None = None) -> str:

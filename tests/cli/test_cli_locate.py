@@ -1,4 +1,4 @@
-"""``fieldkit locate`` run as a user runs it: a subprocess."""
+"""``fieldkit locate`` run as a user runs it (in-process, see cli_runner.py)."""
 
 from __future__ import annotations
 
@@ -7,18 +7,14 @@ import subprocess
 import sys
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 from fieldkit import safety
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", "locate", *args],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
+    return cli_runner.run("locate", *args)
 
 
 def run_json(*args: str) -> dict:

@@ -1,19 +1,17 @@
-"""``fieldkit loss`` and ``fieldkit reference`` run as a subprocess."""
+"""``fieldkit loss`` and ``fieldkit reference`` run in-process (cli_runner.py)."""
 
 from __future__ import annotations
 
 import json
 import subprocess
-import sys
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", *args], capture_output=True, text=True, timeout=60
-    )
+    return cli_runner.run(*args)
 
 
 def run_json(*args: str) -> dict:
