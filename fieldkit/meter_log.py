@@ -113,8 +113,12 @@ def reuse_or_add_reference(
     if matching:
         return max(matching, key=lambda r: r.at)
     return add_reference(
-        link, wavelength_nm=wavelength_nm, level_dbm=level_dbm, method=method, **fields
-    )  # type: ignore[arg-type]
+        link,
+        wavelength_nm=wavelength_nm,
+        level_dbm=level_dbm,
+        method=method,
+        **fields,  # type: ignore[arg-type]
+    )
 
 
 def put_result(

@@ -754,8 +754,8 @@ class FaultScreen(Screen[None]):
             marking = Marking(
                 marking_start,
                 str(self.query_one("#fault-marking-unit", Select).value),  # type: ignore[arg-type]
-                str(self.query_one("#fault-marking-direction", Select).value),
-            )  # type: ignore[arg-type]
+                str(self.query_one("#fault-marking-direction", Select).value),  # type: ignore[arg-type]
+            )
         from_b, total = self._q("fault-from-b"), self._q("fault-total")
         two = TwoEnded(from_b, total) if from_b is not None and total is not None else None
         defaults = ErrorTerms()
