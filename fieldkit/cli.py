@@ -79,7 +79,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         make_app(data_dir=args.data_dir, config_dir=args.config_dir).run()
         return 0
     try:
-        return int(args.func(args) or 0)
+        status = int(args.func(args) or 0)
     except (CommandError, InputError) as exc:
         print(f"fieldkit {args.command}: {exc}", file=sys.stderr)
         return 2
@@ -93,6 +93,15 @@ def main(argv: Sequence[str] | None = None) -> int:
         where = f" {exc.filename}" if exc.filename else ""
         print(f"fieldkit {args.command}: cannot use{where}: {exc.strerror or exc}", file=sys.stderr)
         return 2
+    start_ui = getattr(args, "start_ui", None)
+    if status == 0 and start_ui is not None:
+        # A command (``demo``) asked for the UI once its work was done; commands never import it.
+        from fieldkit.tui.app import make_app
+
+        make_app(
+            data_dir=start_ui.data_dir, config_dir=args.config_dir, start_mode=start_ui.start_mode
+        ).run()
+    return status
 
 
 if __name__ == "__main__":

@@ -7,11 +7,25 @@ import json
 import math
 import sys
 import unicodedata
+from dataclasses import dataclass
+from pathlib import Path
 from typing import Any
 
 
 class CommandError(Exception):
     """Bad input or an impossible request on the command line: exit 2 with this message."""
+
+
+@dataclass(frozen=True)
+class StartUi:
+    """A command's request that ``cli.main`` start the terminal UI when the command is done.
+
+    Commands never import the UI (the layer contract in pyproject.toml): ``fieldkit demo``
+    writes its data, sets ``args.start_ui`` to one of these, and the entry point starts the app.
+    """
+
+    data_dir: Path | None = None
+    start_mode: str | None = None
 
 
 def add_data_dir(parser: argparse.ArgumentParser) -> None:

@@ -12,7 +12,7 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_data_dir
+from fieldkit.commands.common import CommandError, StartUi, add_data_dir
 
 MARKER = "fieldkit-demo.txt"
 MARKER_TEXT = (
@@ -87,7 +87,5 @@ def run(args: argparse.Namespace) -> int:
     if args.no_ui:
         print(folder)
         return 0
-    from fieldkit.tui.app import make_app
-
-    make_app(data_dir=folder, config_dir=getattr(args, "config_dir", None), start_mode="jobs").run()
+    args.start_ui = StartUi(data_dir=folder, start_mode="jobs")
     return 0
