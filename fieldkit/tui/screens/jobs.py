@@ -37,8 +37,9 @@ from fieldkit.jobs.reports import (
     result_in_doubt,
     verdict,
 )
-from fieldkit.jobs.store import JobSummary, StoreError, filter_summaries, local_date
+from fieldkit.jobs.store import JobStore, JobSummary, StoreError, filter_summaries, local_date
 from fieldkit.jobs.today import counted
+from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 #: How many matching jobs the list shows at once; typing in the filter narrows the rest.
@@ -203,8 +204,8 @@ class JobsScreen(Screen[None]):
 
     # -- data ------------------------------------------------------------------------------
     @property
-    def store(self):  # noqa: ANN201 - the app's JobStore
-        return self.app.store  # type: ignore[attr-defined]
+    def store(self) -> JobStore:
+        return fieldkit_app(self).store
 
     def reload(self, rescan: bool = False) -> None:
         try:
