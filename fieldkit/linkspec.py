@@ -35,7 +35,7 @@ import json
 import math
 import re
 import tomllib
-from collections.abc import Mapping, Sequence
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -705,18 +705,6 @@ def _add_check_wavelengths(
     from dataclasses import replace
 
     return replace(link, wavelengths_nm=tuple(sorted(dict.fromkeys(wanted))))
-
-
-def spec_summary(spec: Mapping[str, Any]) -> str:
-    """One line describing a written link, for lists and reports."""
-    parts: list[str] = []
-    for seg in spec.get("segments", []) if isinstance(spec.get("segments"), Sequence) else []:
-        if isinstance(seg, Mapping):
-            parts.append(
-                f"{seg.get('fibre') or seg.get('fiber') or seg.get('attenuation')} "
-                f"{seg.get('length') or seg.get('length_m')}"
-            )
-    return ", ".join(parts)
 
 
 # -- what a job keeps, and the text the CLI prints ---------------------------------------------

@@ -428,11 +428,3 @@ def format_number(number: float, digits: int = 6) -> str:
             text = text.rstrip("0").rstrip(".")
         return text.replace("-", "\u2212") if text.startswith("-") else text
     return f"{number:.{digits - 1}e}".replace("-", "\u2212", 1 if number < 0 else 0)
-
-
-def format_value(number: float, unit: str, decimals: int | None = None) -> str:
-    """``number`` with its unit, e.g. ``−7.50 dBm``; fixed ``decimals`` when given."""
-    text = format_number(number) if decimals is None else f"{number:.{decimals}f}"
-    if decimals is not None and text.startswith("-"):
-        text = "\u2212" + text[1:]
-    return f"{text} {display_unit(unit)}"

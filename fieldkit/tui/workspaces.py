@@ -69,10 +69,3 @@ WORKSPACES: tuple[Workspace, ...] = (
         "JobsScreen",
     ),
 )
-
-
-def by_mode(mode: str) -> Workspace:
-    for workspace in WORKSPACES:
-        if workspace.mode == mode:
-            return workspace
-    raise KeyError(mode)
