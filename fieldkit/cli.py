@@ -70,6 +70,7 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     from fieldkit.calc.units import InputError
     from fieldkit.commands.common import CommandError
+    from fieldkit.text.escape import terminal
 
     parser = build_parser()
     args = parser.parse_args(argv)
@@ -81,7 +82,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         status = int(args.func(args) or 0)
     except (CommandError, InputError) as exc:
-        print(f"fieldkit {args.command}: {exc}", file=sys.stderr)
+        # one line whatever the input: user text echoed in the message cannot break it or
+        # send control sequences to the terminal
+        print(f"fieldkit {args.command}: {terminal(exc)}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         return 130
@@ -91,7 +94,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         # A file or folder the command could not read or write (read-only data folder, full
         # disk, a folder where a file was expected): name it in one line, never a traceback.
         where = f" {exc.filename}" if exc.filename else ""
-        print(f"fieldkit {args.command}: cannot use{where}: {exc.strerror or exc}", file=sys.stderr)
+        print(
+            f"fieldkit {args.command}: cannot use{terminal(where)}: {exc.strerror or exc}",
+            file=sys.stderr,
+        )
         return 2
     start_ui = getattr(args, "start_ui", None)
     if status == 0 and start_ui is not None:

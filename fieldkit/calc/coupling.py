@@ -25,6 +25,13 @@ def _positive(x: float, what: str) -> float:
     return x
 
 
+def _ratio_loss_db(amplitude_ratio: float, what: str) -> float:
+    """−10·log10(ratio²) = −20·log10(ratio), refusing a ratio too small for a float."""
+    if amplitude_ratio < 1e-150:  # its square would be below the smallest float
+        raise InputError(f"{what}: the two values are too far apart to be joined fibres")
+    return -20.0 * math.log10(amplitude_ratio)
+
+
 def core_diameter_mismatch_loss_db(core_tx_um: float, core_rx_um: float) -> float:
     """Loss when light passes from a multimode core of ``core_tx_um`` into one of ``core_rx_um``.
 
@@ -37,7 +44,7 @@ def core_diameter_mismatch_loss_db(core_tx_um: float, core_rx_um: float) -> floa
     d_rx = _positive(core_rx_um, "receiving core diameter")
     if d_tx <= d_rx:
         return 0.0
-    return -10.0 * math.log10((d_rx / d_tx) ** 2)
+    return _ratio_loss_db(d_rx / d_tx, "core diameters")
 
 
 def na_mismatch_loss_db(na_tx: float, na_rx: float) -> float:
@@ -52,7 +59,7 @@ def na_mismatch_loss_db(na_tx: float, na_rx: float) -> float:
     rx = _positive(na_rx, "receiving numerical aperture")
     if tx <= rx:
         return 0.0
-    return -10.0 * math.log10((rx / tx) ** 2)
+    return _ratio_loss_db(rx / tx, "numerical apertures")
 
 
 def multimode_mismatch_loss_db(
@@ -74,7 +81,9 @@ def mfd_mismatch_loss_db(mfd_1_um: float, mfd_2_um: float) -> float:
     """
     w1 = _positive(mfd_1_um, "mode-field diameter")
     w2 = _positive(mfd_2_um, "mode-field diameter")
-    return -10.0 * math.log10((2.0 * w1 * w2 / (w1 * w1 + w2 * w2)) ** 2)
+    # the same overlap written with r = w_small / w_large, so that no square overflows
+    r = min(w1, w2) / max(w1, w2)
+    return _ratio_loss_db(2.0 * r / (1.0 + r * r), "mode-field diameters")
 
 
 def splitter_ideal_loss_db(outputs: int) -> float:

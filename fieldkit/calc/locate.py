@@ -301,6 +301,7 @@ def sheath_length(fiber_m: float, helix_percent: float) -> float:
     .. math:: L_{sheath} = \\frac{d}{1 + h/100}
     """
     _check_helix(helix_percent)
+    _finite(fiber_m, "fibre distance")
     return fiber_m / (1.0 + helix_percent / 100.0)
 
 
@@ -338,7 +339,7 @@ def in_unit(distance_m: float, unit: str) -> float:
     """``distance_m`` in ``unit`` (m, km, ft or mi), through the unit registry."""
     if unit not in OUTPUT_UNITS:
         raise InputError(f"unit: '{unit}' is not one of {', '.join(OUTPUT_UNITS)}")
-    return distance_m if unit == "m" else linear(distance_m, "m", unit)
+    return _finite(distance_m, "distance") if unit == "m" else linear(distance_m, "m", unit)
 
 
 def format_distance(distance_m: float, unit: str = "m") -> str:
@@ -801,11 +802,23 @@ def locate(inp: LocateInput) -> Location:
         b_shown_m=inp.two_ended.from_b_otdr_m if inp.two_ended else None,
         total_shown_m=inp.two_ended.total_otdr_m if inp.two_ended else None,
     )
-    position = _position(chain, inp, two_ended=False)
+    two: TwoEndedResult | None = None
+    position: Position | None
+    try:
+        position = _position(chain, inp, two_ended=False)
+        two = _two_ended(chain, inp) if inp.two_ended is not None else None
+    except (OverflowError, ZeroDivisionError):
+        position = None
+    if position is None or not _plausible(position) or (two and not _plausible(two.combined)):
+        # e.g. a landmark at 1e-200 m on the trace: its ratio to the route blows up the range
+        if inp.landmarks:
+            raise InputError(
+                "landmarks: these distances put the fault beyond any span; check each "
+                "landmark's OTDR and route distance and their units"
+            )
+        raise InputError("reading: the result is beyond any span; check the reading's unit")
     warnings += _position_warnings(position, "")
-    two = None
-    if inp.two_ended is not None:
-        two = _two_ended(chain, inp)
+    if two is not None:
         if not two.consistent:
             warnings.append(
                 f"Two-ended check fails: from A + from B − total = "
@@ -839,6 +852,20 @@ def locate(inp: LocateInput) -> Location:
         helix_percent=helix,
         warnings=tuple(warnings),
     )
+
+
+def _plausible(p: Position) -> bool:
+    """True when every distance of a position is a number within reach of a real span."""
+    values = (
+        p.fiber_distance_m,
+        p.sheath_distance_m,
+        p.route_distance_m,
+        p.uncertainty_m,
+        p.worst_case_m,
+        p.fiber_uncertainty_m,
+        p.sheath_uncertainty_m,
+    )
+    return all(math.isfinite(v) and abs(v) <= 10 * MAX_DISTANCE_M for v in values)
 
 
 def _position_warnings(p: Position, prefix: str) -> list[str]:

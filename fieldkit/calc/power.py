@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-from fieldkit.calc.units import InputError, linear
+from fieldkit.calc.units import SMALLEST_NORMAL, InputError, linear
 
 #: dBW − dBm for the same power: 1 W = 1000 mW, so 10·log10(1000) = 30 dB exactly.
 DBW_TO_DBM_DB = 30.0
@@ -26,14 +26,32 @@ def _finite(x: float, what: str) -> float:
     return x
 
 
+def _result(x: float, what: str) -> float:
+    """A computed value, refusing one that left float range (e.g. 1e308 dBm less −1e308 dB)."""
+    if not math.isfinite(x):
+        raise InputError(f"{what}: the result is too large for a number")
+    return x
+
+
 def _exp10(db: float, what: str, unit: str) -> float:
-    """10^(db/10), refusing a value whose power does not fit in a float (above about 3080 dB)."""
+    """10^(db/10), refusing a value whose power does not fit in a float.
+
+    Above about +3082 dB the power overflows; below about −3076 dB it falls under the smallest
+    full-precision float and then to zero, whose logarithm a later step could not take.
+    """
     try:
-        return 10.0 ** (_finite(db, what) / 10.0)
+        result = 10.0 ** (_finite(db, what) / 10.0)
     except OverflowError:
         raise InputError(
             f"{what}: {db:g} {unit} is too large to express as a linear power or ratio"
         ) from None
+    if result < SMALLEST_NORMAL:
+        below = "below any measurable level" if unit == "dBm" else "too small"
+        raise InputError(
+            f"{what}: {db:g} {unit} is {below} (its linear power or ratio is too small for a "
+            "number)"
+        )
+    return result
 
 
 def dbm_to_mw(level_dbm: float) -> float:
@@ -44,7 +62,8 @@ def dbm_to_mw(level_dbm: float) -> float:
     Raises
     ------
     InputError
-        For a level too large for its power to be a float (above about +3080 dBm).
+        For a level whose power does not fit in a float: above about +3082 dBm or below about
+        −3076 dBm.
     """
     return _exp10(level_dbm, "level", "dBm")
 
@@ -80,7 +99,10 @@ def dbw_to_dbm(level_dbw: float) -> float:
 
 def dbm_to_power(level_dbm: float, unit: str) -> float:
     """Power of a level in dBm, in a linear unit ``W``, ``mW``, ``uW``, ``nW`` or ``pW``."""
-    return linear(dbm_to_mw(level_dbm), "mW", unit)
+    try:
+        return linear(dbm_to_mw(level_dbm), "mW", unit)
+    except InputError as exc:
+        raise InputError(f"level: {exc}") from None
 
 
 def power_to_dbm(power: float, unit: str) -> float:
@@ -91,7 +113,11 @@ def power_to_dbm(power: float, unit: str) -> float:
             f"power: {power} {unit} has no level in dBm (the logarithm of zero or a negative "
             "power is undefined)"
         )
-    return mw_to_dbm(linear(power, unit, "mW"))
+    try:
+        power_mw = linear(power, unit, "mW")
+    except InputError as exc:
+        raise InputError(f"power: {exc}") from None
+    return mw_to_dbm(power_mw)
 
 
 def ratio_to_db(ratio: float) -> float:
@@ -109,13 +135,19 @@ def ratio_to_db(ratio: float) -> float:
 
 
 def db_to_ratio(gain_db: float) -> float:
-    """The power ratio of a gain in dB: 10^(dB/10). For a loss, pass the loss negated."""
+    """The power ratio of a gain in dB: 10^(dB/10). For a loss, pass the loss negated.
+
+    Raises
+    ------
+    InputError
+        For a gain whose ratio does not fit in a float (beyond about ±3080 dB).
+    """
     return _exp10(gain_db, "gain", "dB")
 
 
 def loss_db_to_percent_transmitted(loss_db: float) -> float:
     """Percent of the input power that gets through a loss in dB: 100·10^(−loss/10)."""
-    return 100.0 * db_to_ratio(-loss_db)
+    return _result(100.0 * db_to_ratio(-loss_db), "percent transmitted")
 
 
 def percent_transmitted_to_loss_db(percent: float) -> float:
@@ -128,17 +160,17 @@ def percent_transmitted_to_loss_db(percent: float) -> float:
 
 def apply_loss(level_dbm: float, loss_db: float) -> float:
     """The level after a loss: L_out = L_in − loss. A negative loss is a gain."""
-    return _finite(level_dbm, "level") - _finite(loss_db, "loss")
+    return _result(_finite(level_dbm, "level") - _finite(loss_db, "loss"), "level after the loss")
 
 
 def apply_gain(level_dbm: float, gain_db: float) -> float:
     """The level after a gain: L_out = L_in + gain."""
-    return _finite(level_dbm, "level") + _finite(gain_db, "gain")
+    return _result(_finite(level_dbm, "level") + _finite(gain_db, "gain"), "level after the gain")
 
 
 def level_difference_db(level_a_dbm: float, level_b_dbm: float) -> float:
     """The ratio between two levels in dB: L_a − L_b (dBm − dBm = dB)."""
-    return _finite(level_a_dbm, "level") - _finite(level_b_dbm, "level")
+    return _result(_finite(level_a_dbm, "level") - _finite(level_b_dbm, "level"), "difference")
 
 
 def sum_levels_dbm(levels_dbm: Iterable[float]) -> float:
@@ -166,12 +198,12 @@ def attenuation_in(db_per_km: float, per_unit: str) -> float:
     ``per_unit`` is a canonical length (``m``, ``km``, ``ft``, ``kft``, ``mi``). For example
     0.35 dB/km is 0.35 × 0.3048 = 0.106680 dB/kft (international foot, 0.3048 m exactly).
     """
-    return _finite(db_per_km, "attenuation") * linear(1.0, per_unit, "km")
+    return _result(_finite(db_per_km, "attenuation") * linear(1.0, per_unit, "km"), "attenuation")
 
 
 def attenuation_to_db_per_km(coefficient: float, per_unit: str) -> float:
     """An attenuation coefficient given per ``per_unit`` of length, in dB/km."""
-    return _finite(coefficient, "attenuation") / linear(1.0, per_unit, "km")
+    return _result(_finite(coefficient, "attenuation") / linear(1.0, per_unit, "km"), "attenuation")
 
 
 def loss_of_length_db(db_per_km: float, length_m: float) -> float:
@@ -185,4 +217,4 @@ def loss_of_length_db(db_per_km: float, length_m: float) -> float:
     _finite(length_m, "length")
     if length_m < 0:
         raise InputError(f"length: {length_m} m is negative")
-    return _finite(db_per_km, "attenuation") * length_m / 1000.0
+    return _result(_finite(db_per_km, "attenuation") * length_m / 1000.0, "fibre loss")

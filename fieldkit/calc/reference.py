@@ -158,12 +158,18 @@ def insertion_loss_db(reference_dbm: float, reading_dbm: float) -> float:
     for value, what in ((reference_dbm, "reference"), (reading_dbm, "reading")):
         if not math.isfinite(value):
             raise InputError(f"{what}: {value} is not a finite level")
-    return reference_dbm - reading_dbm
+    loss_db = reference_dbm - reading_dbm
+    if not math.isfinite(loss_db):
+        raise InputError("loss: the two levels are too far apart for a number")
+    return loss_db
 
 
 def bidirectional_average_db(loss_a_to_b_db: float, loss_b_to_a_db: float) -> float:
     """The mean of the two directions' losses, the value usually reported for a fibre."""
-    return (loss_a_to_b_db + loss_b_to_a_db) / 2.0
+    for value, what in ((loss_a_to_b_db, "loss A->B"), (loss_b_to_a_db, "loss B->A")):
+        if not math.isfinite(value):
+            raise InputError(f"{what}: {value} is not a finite loss")
+    return loss_a_to_b_db / 2.0 + loss_b_to_a_db / 2.0  # halved first: no overflow
 
 
 def method_limit_db(
@@ -410,6 +416,8 @@ def reference_drift(initial_dbm: float, recheck_dbm: float, tolerance_db: float)
         if not math.isfinite(value):
             raise InputError(f"{what}: {value} is not a finite level")
     drift_db = recheck_dbm - initial_dbm
+    if not math.isfinite(drift_db):
+        raise InputError("drift: the two levels are too far apart for a number")
     # Round away float noise (−7.0 → −7.1 is 0.0999…): a drift equal to the tolerance is within.
     return Drift(drift_db, tolerance_db, abs(round(drift_db, 9)) <= tolerance_db)
 

@@ -12,7 +12,8 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
+import sys
+from dataclasses import dataclass, field
 from enum import StrEnum
 from functools import cache
 from typing import TYPE_CHECKING, Any
@@ -23,6 +24,16 @@ if TYPE_CHECKING:  # pint is imported lazily: start-up must not pay for it
 
 class InputError(ValueError):
     """Typed input that fieldkit will not guess about. The message says why."""
+
+
+#: The smallest magnitude a float holds at full precision (about 2.2e-308). Below it a number
+#: loses digits and then becomes zero, so a power that small is refused rather than shown as 0.
+SMALLEST_NORMAL = sys.float_info.min
+
+
+def _tiny(x: float) -> bool:
+    """True for a non-zero result that fell below full float precision (or to zero)."""
+    return abs(x) < SMALLEST_NORMAL
 
 
 class Kind(StrEnum):
@@ -148,6 +159,8 @@ class Value:
     kind: Kind
     magnitude: float
     unit: str
+    #: The field the value was typed into; conversion refusals start with it.
+    what: str = field(default="value", compare=False)
 
     def to(self, unit: str) -> float:
         """This value in ``unit`` (a canonical or typed spelling)."""
@@ -201,6 +214,9 @@ def _split_number(text: str, what: str) -> tuple[float, str]:
     number = float(match.group(0))
     if not math.isfinite(number):
         raise InputError(f"{what}: '{match.group(0)}' is too large to be a value")
+    if _tiny(number) and any(d in "123456789" for d in match.group(0).lower().split("e")[0]):
+        # 1e-400 would silently become 0 (and 1e-320 a number with a few digits left)
+        raise InputError(f"{what}: '{match.group(0)}' is too close to zero to be a value")
     return number, text[match.end() :].strip()
 
 
@@ -328,7 +344,7 @@ def parse(
         )
     if kind is Kind.RATIO and unit == "%" and not 0 < number:
         raise InputError(f"{what}: {format_number(number)} % transmitted has no value in dB")
-    return Value(kind, number, unit)
+    return Value(kind, number, unit, what)
 
 
 def convert(value: Value, unit: str) -> float:
@@ -344,22 +360,38 @@ def convert(value: Value, unit: str) -> float:
     kind, target = canonical_unit(unit, "unit")
     if kind is not value.kind:
         raise InputError(
-            f"cannot convert {value} to {display_unit(target)}: "
+            f"{value.what}: cannot convert {value} to {display_unit(target)}: "
             f"{value.kind.noun.split(' (')[0]} is not {kind.noun.split(' (')[0]}"
         )
     if value.unit == target:
         return value.magnitude
     try:
-        return _convert(value, kind, target)
+        result = _convert(value, kind, target)
     except OverflowError:
+        result = math.inf
+    except _Underflow as exc:
+        raise InputError(f"{value.what}: {value} {exc}") from None
+    except InputError as exc:  # from linear(): a length or power out of float range
+        raise InputError(f"{value.what}: {exc}") from None
+    if not math.isfinite(result):
         raise InputError(
-            f"cannot convert {value} to {display_unit(target)}: the result is too large for a "
-            "number"
-        ) from None
+            f"{value.what}: cannot convert {value} to {display_unit(target)}: the result is too "
+            "large for a number"
+        )
+    return result
+
+
+class _Underflow(ArithmeticError):
+    """A power or ratio too small for a float; the message completes "<value> ..."."""
 
 
 def _convert(value: Value, kind: Kind, target: str) -> float:
     if kind is Kind.POWER:
+        # dBm and dBW differ by 30 dB exactly: no detour through a linear power that may not fit
+        if value.unit == "dBm" and target == "dBW":
+            return value.magnitude - 30.0
+        if value.unit == "dBW" and target == "dBm":
+            return value.magnitude + 30.0
         mw = _power_mw(value)
         if target == "dBm":
             return 10.0 * math.log10(mw)
@@ -368,6 +400,8 @@ def _convert(value: Value, kind: Kind, target: str) -> float:
         return linear(mw, "mW", target)
     if kind is Kind.RATIO:
         ratio = 10.0 ** (-value.magnitude / 10.0) if value.unit == "dB" else value.magnitude / 100.0
+        if _tiny(ratio):
+            raise _Underflow("passes less power than a number can hold; no value in % or dB")
         return 100.0 * ratio if target == "%" else -10.0 * math.log10(ratio)
     if kind is Kind.ATTENUATION:
         # dB per length: the number scales with the length unit, the dB do not.
@@ -379,14 +413,37 @@ def _convert(value: Value, kind: Kind, target: str) -> float:
 
 def _power_mw(value: Value) -> float:
     if value.unit == "dBm":
-        return 10.0 ** (value.magnitude / 10.0)
-    if value.unit == "dBW":
-        return 10.0 ** ((value.magnitude + 30.0) / 10.0)
-    return linear(value.magnitude, value.unit, "mW")
+        mw = 10.0 ** (value.magnitude / 10.0)
+    elif value.unit == "dBW":
+        mw = 10.0 ** ((value.magnitude + 30.0) / 10.0)
+    else:
+        mw = float(_pint_linear(value.magnitude, value.unit, "mW"))
+    if _tiny(mw):
+        # 10^(L/10) mW for L below about -3076 dBm is smaller than any float
+        raise _Underflow("is below any measurable level (its power is too small for a number)")
+    return mw
 
 
 def linear(magnitude: float, from_unit: str, to_unit: str) -> float:
-    """Convert a linear magnitude between canonical units through the registry."""
+    """Convert a linear magnitude between canonical units through the registry.
+
+    Raises
+    ------
+    InputError
+        For a result too large or too small (but not zero) for a float.
+    """
+    if from_unit == to_unit:
+        return magnitude
+    result = _pint_linear(magnitude, from_unit, to_unit)
+    shown = f"{format_number(magnitude)} {display_unit(from_unit)}"
+    if not math.isfinite(result):
+        raise InputError(f"{shown} is too large to express in {display_unit(to_unit)}")
+    if _tiny(result) and magnitude != 0:
+        raise InputError(f"{shown} is too small to express in {display_unit(to_unit)}")
+    return result
+
+
+def _pint_linear(magnitude: float, from_unit: str, to_unit: str) -> float:
     if from_unit == to_unit:
         return magnitude
     source = _LINEAR_UNITS[from_unit][1]

@@ -17,6 +17,7 @@ ID may be any unique prefix of a job id. Every subcommand accepts ``--data-dir``
 from __future__ import annotations
 
 import argparse
+import builtins
 import sys
 from collections.abc import Callable
 from datetime import date
@@ -24,10 +25,17 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from fieldkit.commands.common import CommandError, add_data_dir, plain_text, print_json
+from fieldkit.text.escape import terminal
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job
     from fieldkit.jobs.store import JobStore
+
+
+def print(*values: object, file: Any = None) -> None:  # noqa: A001
+    """Every line this command prints passes through the terminal escaping: a job file or an
+    import may hold control characters (an escape sequence would reach the terminal raw)."""
+    builtins.print(*(terminal(v, multiline=True) for v in values), file=file)
 
 
 def register(subparsers: Any) -> None:
@@ -173,7 +181,7 @@ def _day(text: str | None) -> date:
 
 def _warn_problems(store: JobStore) -> None:
     for problem in store.problems:
-        print(f"fieldkit jobs: warning: {problem}", file=sys.stderr)
+        print(f"fieldkit jobs: warning: {terminal(problem)}", file=sys.stderr)
 
 
 def run_new(args: argparse.Namespace) -> int:
@@ -225,7 +233,8 @@ def run_list(args: argparse.Namespace) -> int:
         flag = " (read-only)" if s.read_only else ""
         print(
             f"{s.id}  {s.status:<4}  {local_date(s.updated_at).isoformat()}  "
-            f"{s.name}{where}  [{s.link_count} links, {s.result_count} results{failed}]"
+            f"{terminal(s.name)}{terminal(where)}  [{s.link_count} links, "
+            f"{s.result_count} results{failed}]"
             f"{flag}"
         )
     return 0
@@ -252,7 +261,7 @@ def run_show(args: argparse.Namespace) -> int:
         return 0
     if job.read_only:
         print(f"note: {job.read_only}")
-    print(f"{job.name}  ({job.status})")
+    print(f"{terminal(job.name)}  ({job.status})")
     print(f"  id        {job.id}")
     for label, value in (
         ("customer", job.customer),
@@ -260,14 +269,14 @@ def run_show(args: argparse.Namespace) -> int:
         ("crew", ", ".join(job.crew)),
     ):
         if value:
-            print(f"  {label:<9} {value}")
+            print(f"  {label:<9} {terminal(value)}")
     print(f"  created   {fmt_time(job.created_at)}")
     print(f"  updated   {fmt_time(job.updated_at)}  (revision {job.revision})")
     if not job.links:
         print("links: none yet")
     for link in job.links:
         ends = f"  {link.end_a} -> {link.end_b}" if link.end_a or link.end_b else ""
-        print(f"link {link.label}{ends}")
+        print(f"link {terminal(link.label)}{terminal(ends)}")
         rows = [r for r in summary if r.link_id == link.id]
         for r in rows:
             print(
@@ -385,11 +394,11 @@ def run_today(args: argparse.Namespace) -> int:
         f"{t['failed']} failed, {t['no_limit']} without limit, {t['in_doubt']} in doubt"
     )
     for job in summary.jobs:
-        print(f"\n{job.name} ({job.status}) {job.id}")
+        print(f"\n{terminal(job.name)} ({job.status}) {job.id}")
         for failure in job.failures:
-            print(f"  FAIL {failure}")
+            print(f"  FAIL {terminal(failure)}")
         for item in job.open_items:
-            print(f"  open: {item}")
+            print(f"  open: {terminal(item)}")
     return 0
 
 

@@ -16,7 +16,6 @@ laptop.
 from __future__ import annotations
 
 import csv
-import html
 import io
 import json
 from collections.abc import Iterable
@@ -33,6 +32,7 @@ from fieldkit.jobs.models import (
     LossResult,
     result_in_doubt,
 )
+from fieldkit.text import escape
 
 HANDOFF_FORMAT = "fieldkit-jobs-handoff"
 HANDOFF_VERSION = 1
@@ -516,9 +516,7 @@ def _plain(value: Any) -> str:
 
 # -- Markdown ---------------------------------------------------------------------------------
 def _md_cell(text: str) -> str:
-    # "<" would open raw HTML in a Markdown viewer; "|" would end the table cell.
-    text = text.replace("<", "&lt;").replace("|", "\\|")
-    return " ".join(text.split()) if text else ""
+    return escape.markdown(text)
 
 
 def to_markdown(job: Job) -> str:
@@ -579,7 +577,7 @@ h2, h3 { break-after: avoid; page-break-after: avoid; }
 def to_html(job: Job) -> str:
     """A self-contained HTML report (no external files, no scripts) that prints on A4/Letter."""
     report = build_report(job)
-    e = html.escape
+    e = escape.html
     out = [
         "<!DOCTYPE html>",
         '<html lang="en">',
@@ -650,10 +648,7 @@ CSV_HEADERS = [
 
 
 def _text_cell(text: str) -> str:
-    # A cell starting with = + - @ is run as a formula by spreadsheets: keep it text.
-    if text[:1] in ("=", "+", "-", "@", "\t", "\r"):
-        return "'" + text
-    return text
+    return escape.csv_cell(text)
 
 
 def to_csv(job: Job) -> str:
@@ -668,27 +663,26 @@ def to_csv(job: Job) -> str:
             if result_in_doubt(link, r) and "reference-in-doubt" not in flags:
                 flags.append("reference-in-doubt")
             margin = margin_db(r)
-            writer.writerow(
-                [
-                    _text_cell(job.name),
-                    job.id,
-                    _text_cell(link.label),
-                    r.fibre,
-                    fmt_nm(r.wavelength_nm),
-                    r.direction,
-                    fmt_db(r.reading_dbm),
-                    fmt_db(r.loss_db),
-                    fmt_db(r.limit_db),
-                    fmt_db(margin),
-                    verdict(r).lower(),
-                    ";".join(flags),
-                    r.reference_id or "",
-                    fmt_db(ref.level_dbm if ref else None),
-                    r.method,
-                    _text_cell(r.by),
-                    r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
-                ]
-            )
+            row = [
+                _text_cell(job.name),
+                job.id,
+                _text_cell(link.label),
+                r.fibre,
+                fmt_nm(r.wavelength_nm),
+                r.direction,
+                fmt_db(r.reading_dbm),
+                fmt_db(r.loss_db),
+                fmt_db(r.limit_db),
+                fmt_db(margin),
+                verdict(r).lower(),
+                ";".join(flags),
+                r.reference_id or "",
+                fmt_db(ref.level_dbm if ref else None),
+                r.method,
+                _text_cell(r.by),
+                r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
+            ]
+            writer.writerow([escape.csv_cell(cell) for cell in row])
     return buffer.getvalue()
 
 

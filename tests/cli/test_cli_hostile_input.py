@@ -85,9 +85,43 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         # the message used to print all 309 digits of 1e308
         (("convert", "1e308 nm", "--grid"), ("1.00000e+308 nm", "neither")),
         (("convert", "0 nm", "--to", "THz"), ("positive",)),
-        # c / (1e-320 nm) divided by zero once the nm became metres
-        (("convert", "1e-320 nm", "--grid"), ("out of range",)),
-        (("convert", "1e-320 nm", "--to", "THz"), ("out of range",)),
+        # 1e-320 is a subnormal float (below about 2.2e-308, IEEE 754): refused as typed
+        (("convert", "1e-320 nm", "--grid"), ("too close to zero",)),
+        (("convert", "1e-320 nm", "--to", "THz"), ("too close to zero",)),
+        # underflow: 10^(-4000/10) mW = 1e-400 mW is below the smallest float
+        (("convert", "-4000 dBm"), ("quantity", "below any measurable level")),
+        (("convert", "-4000 dBm", "--to", "mW"), ("below any measurable level",)),
+        (("convert", "1e-320 pW"), ("quantity", "too close to zero")),
+        (("convert", "1e-300 pW", "--to", "dBm"), ("below any measurable level",)),
+        (("convert", "4000 dB", "--to", "%"), ("less power",)),
+        (("loss", "--reference", "1e-320 pW", "--reading", "-9"), ("reference", "too close")),
+        (("loss", "--reference", "1e-300 pW", "--reading", "-9"), ("reference", "below any")),
+        (("reference", "--level", "1e-320 pW", "--wavelength", "1310"), ("level", "too close")),
+        (("levels", "1e-320 pW", "--loss", "3"), ("level 1", "too close")),
+        (("levels", "-4000 dBm", "--loss", "3"), ("below any",)),
+        (
+            (
+                "budget",
+                "--fiber",
+                "OS2",
+                "--length",
+                "1km",
+                "--tx-min",
+                "1e-300 pW",
+                "--tx-max",
+                "0",
+                "--rx-sensitivity",
+                "-20",
+                "--rx-overload",
+                "0",
+            ),
+            ("below any",),
+        ),
+        # a landmark at 1e-200 m on the trace made the route ratio overflow when squared
+        (
+            ("locate", "--distance", "200 m", "--ior", "1.4682", "--landmark", "A:1e-200 m:0.5 m"),
+            ("landmarks",),
+        ),
         (("convert", "1e308 THz", "--to", "nm"), ("out of range",)),
         # an empty option (an unset shell variable) used to be dropped: all units, no check
         (("convert", "5 dBm", "--to", ""), ("no unit",)),

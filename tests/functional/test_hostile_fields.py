@@ -23,6 +23,9 @@ HOSTILE = [
     "1e308 dBm",
     "-1e308 dB",
     "1e-320 nm",
+    "1e-320 pW",
+    "-4000 dBm",
+    "1e-300 pW",
     "-7,5",
     "1,234",
     "5 MW",
@@ -67,8 +70,10 @@ async def test_no_typed_value_stops_the_workspace(tmp_path: Path, mode: str) -> 
         # 10^(1e308/10) mW does not fit in a float: refused beside the field, not a crash
         ("value", "1e308 dBm", "too large"),
         ("value", "4000 dBm", "too large"),
-        # c / 1e-320 nm has no frequency a float can hold
-        ("grid-in", "1e-320 nm", "out of range"),
+        # 10^(-4000/10) mW = 1e-400 mW is below the smallest float (IEEE 754, from memory)
+        ("value", "-4000 dBm", "below any measurable level"),
+        # 1e-320 is a subnormal float: refused as typed rather than computed with lost digits
+        ("grid-in", "1e-320 nm", "too close to zero"),
     ],
 )
 async def test_convert_explains_values_it_cannot_convert(
@@ -85,3 +90,23 @@ async def test_convert_explains_values_it_cannot_convert(
         shown += " ".join(str(s.render()) for s in app.screen.query(".result").results(Static))
         assert words in shown, shown
         assert field.value == text
+
+
+async def test_meter_reference_and_reading_refuse_powers_below_any_float(tmp_path: Path) -> None:
+    # 1e-300 pW is 1e-309 mW, a subnormal float; -4000 dBm is 1e-400 mW (IEEE 754, from memory)
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="meter")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        for field_id in ("reference", "reading", "source-level"):
+            field = screen.query_one(f"#{field_id}", Input)
+            for text in ("1e-320 pW", "-4000 dBm", "1e-300 pW"):
+                typed = _typeable(field, text)
+                if typed is None:
+                    continue
+                field.value = typed
+                await pilot.pause()
+                if field_id == "reading":
+                    await pilot.press("enter")
+                    await pilot.pause()
+                assert app.is_running and app.screen is screen, (field_id, text)

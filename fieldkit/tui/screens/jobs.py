@@ -39,6 +39,7 @@ from fieldkit.jobs.reports import (
 )
 from fieldkit.jobs.store import JobStore, JobSummary, StoreError, filter_summaries, local_date
 from fieldkit.jobs.today import counted
+from fieldkit.text.escape import terminal
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -50,7 +51,7 @@ _STATUS_CYCLE = {None: "open", "open": "done", "done": None}
 
 def _t(text: str, style: str = "") -> Text:
     """User text as plain text: a "[" in a job name must not be read as markup."""
-    return Text(text, style=style)
+    return Text(terminal(text, multiline=True), style=style)
 
 
 class JobsScreen(Screen[None]):
@@ -401,13 +402,13 @@ class JobsScreen(Screen[None]):
 def _prompt(s: JobSummary) -> str:
     mark = "✓" if s.status == "done" else "•"
     failed = f", {s.failed_count} failed" if s.failed_count else ""
-    site = f"{s.site} · " if s.site else ""
-    return f"{mark} {s.name}\n  {site}{counted(s.result_count, 'result')}{failed}"
+    site = f"{terminal(s.site)} · " if s.site else ""
+    return f"{mark} {terminal(s.name)}\n  {site}{counted(s.result_count, 'result')}{failed}"
 
 
 def _head(job: Job) -> RenderableType:
     text = Text()
-    text.append(job.name, style="bold")
+    text.append(terminal(job.name), style="bold")
     text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
     for label, value in (
         ("Customer", job.customer),
@@ -416,7 +417,7 @@ def _head(job: Job) -> RenderableType:
     ):
         if value:
             text.append(f"\n{label}: ", style="dim")
-            text.append(value)
+            text.append(terminal(value))
     text.append(f"\nId {job.id} · updated {fmt_time(job.updated_at)}", style="dim")
     if job.read_only:
         text.append(f"\n{job.read_only}", style="bold yellow")
@@ -430,7 +431,7 @@ def _summary_table(job: Job) -> RenderableType:
         return _t("No results yet.", "dim")
     text = Text("Fibres per link and wavelength", style="bold")
     for r in rows:
-        text.append(f"\n{r.link_label} {fmt_nm(r.wavelength_nm)} nm: ")
+        text.append(f"\n{terminal(r.link_label)} {fmt_nm(r.wavelength_nm)} nm: ")
         text.append(f"{r.tested} tested, {r.passed} pass")
         text.append(f", {r.failed} fail", style="bold red" if r.failed else "")
         if r.no_limit:
@@ -448,7 +449,7 @@ def _failures(job: Job) -> RenderableType:
     for link, r in failed:
         limit = f" (limit {fmt_db(r.limit_db)} dB)" if r.limit_db is not None else ""
         text.append(
-            f"\n✗ {link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
+            f"\n✗ {terminal(link.label)} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
             f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}",
             style="red",
         )
@@ -458,7 +459,7 @@ def _failures(job: Job) -> RenderableType:
 def _links(job: Job) -> RenderableType:
     parts: list[RenderableType] = []
     for link in job.links:
-        head = Text(f"\nLink {link.label}", style="bold")
+        head = Text(f"\nLink {terminal(link.label)}", style="bold")
         details = [
             d
             for d in (
@@ -470,7 +471,7 @@ def _links(job: Job) -> RenderableType:
             if d
         ]
         if details:
-            head.append("\n" + " · ".join(details), style="dim")
+            head.append("\n" + terminal(" · ".join(details)), style="dim")
         parts.append(head)
         if link.budget is not None:
             b = link.budget
@@ -534,8 +535,8 @@ def _notes(job: Job) -> RenderableType:
     for note in job.notes:
         text.append(f"\n{fmt_time(note.at)}", style="dim")
         if note.by:
-            text.append(f" {note.by}", style="dim")
-        text.append(f"\n  {note.text}")
+            text.append(f" {terminal(note.by)}", style="dim")
+        text.append(f"\n  {terminal(note.text, multiline=True)}")
     return text
 
 
@@ -551,7 +552,7 @@ class ExportDialog(ModalScreen[Path | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="export-dialog"):
-            yield Label(f"Export {self._job.name}", id="export-title")
+            yield Label(Text(f"Export {terminal(self._job.name)}"), id="export-title")
             yield OptionList(
                 *[Option(_FORMAT_NAMES[f], id=f) for f in EXPORT_FORMATS],
                 id="export-format",

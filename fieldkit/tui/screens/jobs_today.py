@@ -20,6 +20,7 @@ from textual.widgets.option_list import Option
 from fieldkit.jobs.models import now
 from fieldkit.jobs.store import StoreError, local_date
 from fieldkit.jobs.today import DaySummary, counted, day_summary
+from fieldkit.text.escape import terminal
 
 
 class EndOfDayScreen(ModalScreen[str | None]):
@@ -80,16 +81,16 @@ class EndOfDayScreen(ModalScreen[str | None]):
             mark = "✓" if job.status == "done" else "•"
             fail = f", {job.failed} FAIL" if job.failed else ""
             results = counted(job.results_today, "result")
-            jobs.add_option(Option(f"{mark} {job.name}: {results}{fail}", id=job.id))
+            jobs.add_option(Option(f"{mark} {terminal(job.name)}: {results}{fail}", id=job.id))
         detail = Text()
         if not summary.jobs:
             detail.append("No job was created or updated on this day.", "dim")
         for job in summary.jobs:
-            detail.append(f"{job.name}\n", "bold")
+            detail.append(f"{terminal(job.name)}\n", "bold")
             for failure in job.failures:
-                detail.append(f"  ✗ {failure}\n", "red")
+                detail.append(f"  ✗ {terminal(failure)}\n", "red")
             for item in job.open_items:
-                detail.append(f"  • {item}\n")
+                detail.append(f"  • {terminal(item)}\n")
         self.query_one("#eod-detail", Static).update(detail)
         if summary.jobs:
             jobs.highlighted = 0

@@ -25,6 +25,8 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
+from fieldkit.text.escape import terminal
+
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job
     from fieldkit.jobs.store import JobStore
@@ -132,7 +134,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
             summaries = []
         for summary in summaries:
             where = f" · {summary.site}" if summary.site else ""
-            jobs_list.add_option(Option(f"{summary.name}{where}", id=summary.id))
+            jobs_list.add_option(Option(terminal(f"{summary.name}{where}"), id=summary.id))
         if not summaries:
             self._say("No open job yet: type a job name and press Enter.")
             self.query_one("#jlp-new-job", Input).focus()
@@ -160,7 +162,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         self._jobs[job_id] = job
         for link in job.links:
             ends = f" ({link.end_a} – {link.end_b})" if link.end_a or link.end_b else ""
-            links.add_option(Option(f"{link.label}{ends}", id=link.id))
+            links.add_option(Option(terminal(f"{link.label}{ends}"), id=link.id))
         if job.links:
             ids = [link.id for link in job.links]
             links.highlighted = ids.index(select) if select in ids else 0
