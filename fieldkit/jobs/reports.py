@@ -695,7 +695,7 @@ def to_handoff(jobs: Iterable[Job]) -> str:
         "schema_version": SCHEMA_VERSION,
         "jobs": [job.model_dump(mode="json") for job in jobs],
     }
-    return json.dumps(data, ensure_ascii=False, indent=1, allow_nan=False) + "\n"
+    return escape.json_text(json.dumps(data, ensure_ascii=False, indent=1, allow_nan=False)) + "\n"
 
 
 def export(job: Job, fmt: str) -> str:

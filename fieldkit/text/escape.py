@@ -105,6 +105,16 @@ def html(text: object) -> str:
     return _html.escape(terminal(text, multiline=True), quote=True)
 
 
+_JSON_CODES = str.maketrans({code: f"\\u{code:04x}" for code in _INVISIBLE})
+
+
+def json_text(text: str) -> str:
+    """A JSON document with the C1 controls and invisible direction marks that ``json.dumps``
+    leaves raw (it escapes only C0) written as ``\\u`` escapes: the same data, but safe to
+    print on a terminal. Valid because these characters can only occur inside strings."""
+    return text.translate(_JSON_CODES)
+
+
 def markup(text: object, *, multiline: bool = False) -> str:
     """``text`` for a Textual/Rich widget that reads markup: visible controls, and ``[``
     escaped so a job named ``[bold]`` or ``[link=…]`` is shown as typed."""

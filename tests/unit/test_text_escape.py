@@ -49,9 +49,11 @@ def test_terminal_keeps_printable_text_and_marks_what_it_replaced() -> None:
 @given(st.text())
 @example(_TITLE + _CLEAR + _UP + _CSI)
 def test_no_control_character_survives_any_target(text: str) -> None:
-    for out in (terminal(text), markdown(text), html(text), markup(text)):
+    for out in (terminal(text), markdown(text), markup(text)):
         assert not _CONTROLS.search(out), repr(out)
-    assert not _CONTROLS.search(csv_cell(text).replace("\n", ""))
+    # HTML and a CSV cell keep a line break (HTML folds it; CSV quotes it), nothing else
+    for out in (html(text), csv_cell(text)):
+        assert not _CONTROLS.search(out.replace("\n", "")), repr(out)
 
 
 @pytest.mark.parametrize(
