@@ -24,9 +24,17 @@ DIGGING = (
     "rules (request a locate and wait for the marks), confirm the position with a second "
     "measurement or from the other end, and keep to the site's permit and traffic rules."
 )
+OTDR_LIVE_FIBRE = (
+    "An OTDR sends strong invisible pulses: never look into its port or a fibre end under test. "
+    "A pulse into a live fibre can damage the receiver at the far end: disconnect the equipment "
+    "first, or on an in-service PON test only through a filtered port at an out-of-band "
+    "wavelength, and follow the operator's procedures."
+)
+# One line for a narrow screen.
+OTDR_LIVE_FIBRE_SHORT = "OTDR: invisible pulses; never into a live fibre"
 DEFER = (
     "fieldkit gives estimates to plan and check work; it does not replace local codes, site "
     "rules, the operator's procedures or licensed practice, which always take precedence."
 )
 
-ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, GLASS_SHARDS, DIGGING, DEFER)
+ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, OTDR_LIVE_FIBRE, GLASS_SHARDS, DIGGING, DEFER)

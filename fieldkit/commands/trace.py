@@ -1,0 +1,344 @@
+"""``fieldkit trace``: read OTDR traces, find and measure their events, pair both directions.
+
+``show FILE`` analyses one trace, ``pair A_TO_B B_TO_A`` averages the two directions of one
+fibre, ``folder DIR`` analyses a folder into one table per fibre, ``example DIR`` writes an
+invented cable's traces as standard records to try the others on.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from fieldkit import safety
+from fieldkit.commands.common import CommandError, add_data_dir, print_json
+
+if TYPE_CHECKING:
+    from fieldkit.traces.analysis import Settings
+    from fieldkit.traces.files import ReadOptions
+
+SAFETY = f"{safety.OTDR_LIVE_FIBRE} {safety.DEFER}"
+
+
+def register(subparsers: Any) -> None:
+    parser: argparse.ArgumentParser = subparsers.add_parser(
+        "trace",
+        help="OTDR traces: events, losses, reflectance; both directions averaged",
+        description="Read OTDR traces (the standard SR-4731 record, or two-column text/CSV), "
+        "find their events and measure them, average both directions of a fibre, analyse a "
+        "folder of traces. Safety: " + SAFETY,
+    )
+    sub = parser.add_subparsers(dest="trace_command", metavar="SUBCOMMAND", required=True)
+
+    show = sub.add_parser(
+        "show",
+        help="analyse one trace",
+        description="The events (distance, kind, loss, reflectance, cumulative loss), the "
+        "sections' attenuation and the verdicts of one trace, with the instrument's own "
+        "events beside them. Safety: " + SAFETY,
+    )
+    show.add_argument("file", help="a trace file (.sor, or text/CSV with a header)")
+    _common(show)
+    show.set_defaults(func=run_show)
+
+    pair = sub.add_parser(
+        "pair",
+        help="average both directions of one fibre",
+        description="Align the two traces of one fibre by their lengths and end events, match "
+        "events within a tolerance and average their losses (ITU-T G.650.3). Distances are "
+        "from end A. A gainer in one direction is explained, not judged alone. Safety: " + SAFETY,
+    )
+    pair.add_argument("a_to_b", metavar="A_TO_B", help="the trace taken from end A")
+    pair.add_argument("b_to_a", metavar="B_TO_A", help="the trace taken from end B")
+    pair.add_argument(
+        "--tolerance",
+        metavar="M",
+        help="match events within this distance, m (default: the "
+        "larger of 5 m, four samples and one pulse)",
+    )
+    _common(pair)
+    pair.set_defaults(func=run_pair)
+
+    folder = sub.add_parser(
+        "folder",
+        help="analyse a folder of traces into one table per fibre",
+        description="Every trace in a folder: fibre (from the record, or the first number in "
+        "the file name), direction (AB/BA in the name, or the record's start location), both "
+        "directions paired, the worst event and the verdict per fibre. A progress bar shows "
+        "on a terminal. Safety: " + SAFETY,
+    )
+    folder.add_argument("folder", metavar="DIR", help="the folder holding the traces")
+    folder.add_argument("--quiet", action="store_true", help="no progress bar")
+    _common(folder)
+    folder.set_defaults(func=run_folder)
+
+    example = sub.add_parser(
+        "example",
+        help="write an invented cable's traces to try the other commands on",
+        description="Standard records of an invented 8 km cable, both directions of each "
+        "fibre, made from the physical model (backscatter, splices, a connector, a clean end, "
+        "noise). Writes only new files into DIR.",
+    )
+    example.add_argument("folder", metavar="DIR", help="where to write (created if missing)")
+    example.add_argument("--fibres", default="4", metavar="N", help="how many fibres (1-288)")
+    example.add_argument("--points", default=None, metavar="N", help="points per trace")
+    example.set_defaults(func=run_example)
+
+
+def _common(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    g = p.add_argument_group("analysis (defaults are common practice)")
+    g.add_argument("--splice-threshold", metavar="DB", help="smallest loss reported (0.05 dB)")
+    g.add_argument(
+        "--reflectance-threshold", metavar="DB", help="weakest reflection reported (-72 dB)"
+    )
+    g.add_argument("--end-threshold", metavar="DB", help="a loss this large is the end (3 dB)")
+    g.add_argument(
+        "--loss-method",
+        choices=("two-line", "five-point"),
+        default="two-line",
+        help="event loss by the two-line least-squares method (default) or the 5-point method",
+    )
+    g.add_argument(
+        "--backscatter",
+        metavar="DB",
+        help="backscatter coefficient for 1 ns, dB (default: the file's, else typical: "
+        "-79 dB at 1310 nm, -82 dB at 1550 nm, from memory)",
+    )
+    lim = p.add_argument_group("verdict limits")
+    lim.add_argument(
+        "--fibre",
+        "--fiber",
+        dest="fibre",
+        metavar="TYPE",
+        help="fibre preset giving the attenuation maximum (default G.652.D)",
+    )
+    lim.add_argument("--polish", choices=("UPC", "APC"), default="UPC", help="connector polish")
+    lim.add_argument("--splice-max", metavar="DB", help="splice loss maximum (0.3 dB)")
+    lim.add_argument("--connector-max", metavar="DB", help="connector loss maximum (0.75 dB)")
+    txt = p.add_argument_group("text traces and files")
+    txt.add_argument(
+        "--distance-unit",
+        choices=("m", "km", "ft", "kft", "mi"),
+        help="distance unit of a text trace without a header",
+    )
+    txt.add_argument("--wavelength", metavar="NM", help="wavelength, when the file lacks it")
+    txt.add_argument("--pulse-width", metavar="NS", help="pulse width, when the file lacks it")
+    txt.add_argument("--ior", metavar="N", help="group index, when the file lacks it")
+    txt.add_argument(
+        "--no-checksum", action="store_true", help="read a record whose checksum does not match"
+    )
+    add_data_dir(p)
+
+
+def _num(text: str | None, what: str, lo: float, hi: float) -> float | None:
+    from fieldkit.calc.units import parse_number
+
+    if text is None:
+        return None
+    value = parse_number(text, what)
+    if not lo <= value <= hi:
+        raise CommandError(f"{what}: {value:g} is outside {lo:g} to {hi:g}")
+    return value
+
+
+def settings_from(args: argparse.Namespace) -> tuple[Settings, ReadOptions]:
+    """Analysis settings and read options from the command line (shared by every subcommand)."""
+    from dataclasses import replace
+
+    from fieldkit.calc.otdr import Thresholds
+    from fieldkit.traces.analysis import Settings
+    from fieldkit.traces.files import ReadOptions
+    from fieldkit.traces.verdicts import Limits
+
+    th = Thresholds()
+    splice = _num(args.splice_threshold, "--splice-threshold", 0.001, 2.0)
+    refl = _num(args.reflectance_threshold, "--reflectance-threshold", -100.0, -10.0)
+    end = _num(args.end_threshold, "--end-threshold", 0.5, 30.0)
+    th = replace(
+        th,
+        splice_loss_db=splice if splice is not None else th.splice_loss_db,
+        reflectance_db=refl if refl is not None else th.reflectance_db,
+        end_of_fibre_db=end if end is not None else th.end_of_fibre_db,
+    )
+    if th.end_of_fibre_db <= th.splice_loss_db:
+        raise CommandError("--end-threshold must be larger than --splice-threshold")
+    limits = Limits(polish=args.polish)
+    if args.fibre:
+        limits = _fibre_limits(args, limits)
+    smax = _num(args.splice_max, "--splice-max", 0.0, 10.0)
+    cmax = _num(args.connector_max, "--connector-max", 0.0, 10.0)
+    if smax is not None:
+        limits = replace(limits, splice_max_db=smax, splice_source="typed")
+    if cmax is not None:
+        limits = replace(limits, connector_max_db=cmax, connector_source="typed")
+    settings = Settings(
+        thresholds=th,
+        loss_method=args.loss_method,
+        backscatter_db=_num(args.backscatter, "--backscatter", -100.0, -40.0),
+        group_index=_num(args.ior, "--ior", 1.3, 1.7),
+        pulse_width_ns=_num(args.pulse_width, "--pulse-width", 1.0, 100_000.0),
+        limits=limits,
+    )
+    options = ReadOptions(
+        distance_unit=args.distance_unit,
+        wavelength_nm=_num(args.wavelength, "--wavelength", 600.0, 1700.0),
+        pulse_width_ns=settings.pulse_width_ns,
+        group_index=settings.group_index,
+        check_checksum=not args.no_checksum,
+    )
+    return settings, options
+
+
+def _fibre_limits(args: argparse.Namespace, limits: Any) -> Any:
+    from dataclasses import replace
+
+    from fieldkit import locations
+    from fieldkit.commands.common import warn_preset_problems
+    from fieldkit.presets import load_presets
+
+    library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
+    warn_preset_problems(args, library.problems)
+    fibre = library.fibres.get(args.fibre)
+    if fibre is None:
+        names = ", ".join(sorted(library.fibres))
+        raise CommandError(f"--fibre: no fibre preset {args.fibre!r} (presets: {names})")
+    table = {float(k): float(v) for k, v in fibre.attenuation_max.items()}
+    return replace(
+        limits, attenuation_max_db_per_km=table, attenuation_source=f"{fibre.name} preset"
+    )
+
+
+def _analyse(path: str, args: argparse.Namespace) -> Any:
+    from fieldkit.traces.analysis import analyse_trace
+    from fieldkit.traces.files import read_trace
+    from fieldkit.traces.model import TraceFileError
+
+    settings, options = settings_from(args)
+    try:
+        return analyse_trace(read_trace(Path(path), options), settings)
+    except TraceFileError as exc:
+        raise CommandError(str(exc)) from None
+
+
+def _width() -> int:
+    import shutil
+
+    return shutil.get_terminal_size((80, 24)).columns
+
+
+def run_show(args: argparse.Namespace) -> int:
+    from fieldkit.traces import lines
+
+    result = _analyse(args.file, args)
+    if args.json:
+        data = result.to_json()
+        data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
+        print_json(data)
+        return 0
+    for line in lines.trace_lines(result, _width()):
+        print(line)
+    return 0
+
+
+def run_pair(args: argparse.Namespace) -> int:
+    from fieldkit.traces import lines
+    from fieldkit.traces.model import TraceFileError
+    from fieldkit.traces.pairing import pair
+
+    a = _analyse(args.a_to_b, args)
+    b = _analyse(args.b_to_a, args)
+    tol = _num(args.tolerance, "--tolerance", 0.1, 1000.0)
+    try:
+        result = pair(a, b, tolerance_m=tol)
+    except TraceFileError as exc:
+        raise CommandError(str(exc)) from None
+    if args.json:
+        data = result.to_json()
+        data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
+        print_json(data)
+        return 0
+    for line in lines.pair_lines(result, _width()):
+        print(line)
+    return 0
+
+
+def _progress_bar(done: int, total: int, name: str) -> None:
+    width = 30
+    filled = width * done // max(total, 1)
+    bar = "#" * filled + "." * (width - filled)
+    sys.stderr.write(f"\r[{bar}] {done}/{total} {name[:30]:<30}")
+    if done == total:
+        sys.stderr.write("\n")
+    sys.stderr.flush()
+
+
+def run_folder(args: argparse.Namespace) -> int:
+    from fieldkit.traces import lines
+    from fieldkit.traces.folder import analyse_folder
+    from fieldkit.traces.model import TraceFileError
+
+    settings, options = settings_from(args)
+    show_bar = not args.quiet and sys.stderr.isatty()
+    try:
+        result = analyse_folder(
+            Path(args.folder),
+            settings=settings,
+            options=options,
+            progress=_progress_bar if show_bar else None,
+        )
+    except TraceFileError as exc:
+        raise CommandError(str(exc)) from None
+    if result.files == 0:
+        raise CommandError(f"{args.folder}: no trace files (.sor, .csv, .txt, .tsv, .dat)")
+    if args.json:
+        print_json(result.to_json())
+        return 0
+    for line in lines.folder_lines(result, _width()):
+        print(line)
+    return 0
+
+
+def run_example(args: argparse.Namespace) -> int:
+    from dataclasses import replace
+
+    from fieldkit.traces.analysis import analyse_trace
+    from fieldkit.traces.model import InstrumentEvent
+    from fieldkit.traces.sor import write_sor
+    from fieldkit.traces.synthetic import example_fibre, synth_trace
+
+    fibres = int(_num(args.fibres, "--fibres", 1, 288) or 4)
+    points = _num(args.points, "--points", 1000, 256_000)
+    out = Path(args.folder)
+    out.mkdir(parents=True, exist_ok=True)
+    written = 0
+    for number in range(1, fibres + 1):
+        fibre = example_fibre(number, points=int(points) if points else None)
+        for direction, f in (("AB", fibre), ("BA", fibre.reversed())):
+            path = out / f"F{number:03d}_{int(f.wavelength_nm)}_{direction}.sor"
+            if path.exists():
+                continue
+            trace = synth_trace(f, seed=number * 2 + (direction == "BA"), source=path.name)
+            # the "instrument's" events: our own analysis, as an instrument would record it
+            found = analyse_trace(trace)
+            events = [
+                InstrumentEvent(
+                    e.number,
+                    e.distance_m,
+                    e.loss_db,
+                    e.reflectance_db,
+                    ("1" if e.reflectance_db is not None else "0")
+                    + ("E" if e.kind == "end" else "F")
+                    + "9999",
+                )
+                for e in found.events
+            ]
+            data = write_sor(replace(trace, acquired_unix_s=1_780_000_000), events=events)
+            tmp = path.with_suffix(".sor.tmp")
+            tmp.write_bytes(data)
+            tmp.replace(path)
+            written += 1
+    print(f"wrote {written} traces into {out}")
+    return 0

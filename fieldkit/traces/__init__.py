@@ -1,0 +1,1 @@
+"""OTDR traces: the standard record and text traces, their analysis, pairing and drawing."""

@@ -1,0 +1,175 @@
+"""Text lines for traces: the CLI prints them and the Traces workspace shows the same ones.
+
+Width-aware: at 60 columns or more an event is one row of a table; narrower, the columns that
+matter most (number, distance, kind, loss) stay and the rest go to a second line.
+"""
+
+from __future__ import annotations
+
+from fieldkit.traces.analysis import TraceResult
+from fieldkit.traces.folder import FolderResult
+from fieldkit.traces.pairing import PairResult
+
+MINUS = "-"  # the project prints ASCII minus signs in tables so they paste into spreadsheets
+
+KIND_LABELS = {
+    "splice": "splice",
+    "reflective": "reflect",
+    "gainer": "gainer",
+    "end": "end",
+}
+
+
+def fmt(value: float | None, digits: int = 2, unit: str = "") -> str:
+    """A number for a table: ``-`` for none, fixed digits, the unit after a space."""
+    if value is None:
+        return "-"
+    text = f"{value:.{digits}f}"
+    if text.startswith("-") and float(text) == 0.0:
+        text = text[1:]
+    return f"{text} {unit}".rstrip()
+
+
+def distance(value_m: float) -> str:
+    """A distance as the trade reads it: metres to 0.1 m."""
+    return f"{value_m:.1f} m"
+
+
+def summary_lines(r: TraceResult) -> list[str]:
+    t, a = r.trace, r.analysis
+    wl = f"{t.wavelength_nm:g} nm" if t.wavelength_nm else "wavelength ?"
+    pulse = t.pulse_width_ns or r.settings.pulse_width_ns
+    head = f"{t.source}: {wl}, pulse {fmt(pulse, 0, 'ns') if pulse else '?'}, "
+    head += f"index {r.group_index:.4f}, spacing {t.spacing_m:.3g} m, {t.points} points"
+    length = distance(a.length_m) if a.length_m is not None else "no end found"
+    lines = [head]
+    lines.append(
+        f"length {length}, total loss {fmt(a.total_loss_db, 2, 'dB')}, ORL {fmt(a.orl_db, 1, 'dB')}"
+        f", noise floor {fmt(a.noise_floor_db, 1, 'dB')}"
+    )
+    lines.append(
+        f"loss by the {r.settings.loss_method} method; backscatter {r.backscatter_db:g} dB "
+        f"for 1 ns ({r.backscatter_source})"
+    )
+    lines.extend(f"note: {n}" for n in r.notes)
+    return lines
+
+
+def event_lines(r: TraceResult, width: int = 80) -> list[str]:
+    """fieldkit's event table of one trace."""
+    if width >= 60:
+        lines = [
+            f"{'#':>2} {'distance':>10} {'kind':<7} {'loss dB':>7} {'refl dB':>7} "
+            f"{'cum dB':>6}  verdict"
+        ]
+        for e in r.events:
+            lines.append(
+                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
+                f"{fmt(e.loss_db, 3):>7} {fmt(e.reflectance_db, 1):>7} "
+                f"{fmt(e.cumulative_loss_db, 2):>6}  {e.verdict}"
+            )
+        return lines
+    lines = [f"{'#':>2} {'distance':>10} {'kind':<7} {'loss':>6}"]
+    for e in r.events:
+        lines.append(
+            f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
+            f"{fmt(e.loss_db, 3):>6}"
+        )
+        extra = f"   refl {fmt(e.reflectance_db, 1)} cum {fmt(e.cumulative_loss_db, 2)} {e.verdict}"
+        lines.append(extra[:width])
+    return lines
+
+
+def section_lines(r: TraceResult) -> list[str]:
+    return [
+        f"section {s.number}: {distance(s.from_m)} to {distance(s.to_m)}, "
+        f"{s.attenuation_db_per_km:.3f} dB/km, {s.loss_db:.2f} dB, {s.verdict}"
+        for s in r.sections
+    ]
+
+
+def instrument_lines(r: TraceResult) -> list[str]:
+    """The instrument's own event table, labelled as such (never mixed with ours)."""
+    ev = r.trace.instrument_events
+    if not ev:
+        return []
+    lines = ["instrument's own events (as recorded in the file):"]
+    for e in ev:
+        lines.append(
+            f"  {e.number:>2} {distance(e.distance_m):>10} {e.kind:<10} loss {fmt(e.loss_db, 3)} "
+            f"refl {fmt(e.reflectance_db, 1)} code {e.code}"
+        )
+    return lines
+
+
+def trace_lines(r: TraceResult, width: int = 80) -> list[str]:
+    return [
+        *summary_lines(r),
+        "",
+        *event_lines(r, width),
+        "",
+        *section_lines(r),
+        *([""] + instrument_lines(r) if r.trace.instrument_events else []),
+    ]
+
+
+def pair_lines(p: PairResult, width: int = 80) -> list[str]:
+    lines = [
+        f"A→B {p.a_to_b.trace.source}, B→A {p.b_to_a.trace.source}",
+        f"length {distance(p.length_m)} (A→B {distance(p.length_ab_m)}, B→A "
+        f"{distance(p.length_ba_m)}), total loss {fmt(p.total_loss_db, 2, 'dB')} averaged, "
+        f"match within {p.tolerance_m:g} m",
+        "",
+    ]
+    if width >= 60:
+        lines.append(
+            f"{'#':>2} {'from A':>10} {'kind':<7} {'A→B':>7} {'B→A':>7} {'avg dB':>7}  verdict"
+        )
+        for e in p.events:
+            lines.append(
+                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
+                f"{fmt(e.loss_ab_db, 3):>7} {fmt(e.loss_ba_db, 3):>7} {fmt(e.average_db, 3):>7}  "
+                f"{e.verdict}"
+            )
+            if e.note:
+                lines.append(f"   {e.note}")
+    else:
+        lines.append(f"{'#':>2} {'from A':>10} {'kind':<7} {'avg dB':>7}")
+        for e in p.events:
+            lines.append(
+                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
+                f"{fmt(e.average_db, 3):>7}"
+            )
+            lines.append(
+                f"   A→B {fmt(e.loss_ab_db, 3)} B→A {fmt(e.loss_ba_db, 3)} {e.verdict}"[:width]
+            )
+    lines.extend(f"note: {n}" for n in p.notes)
+    return lines
+
+
+def folder_lines(result: FolderResult, width: int = 80) -> list[str]:
+    """One row per fibre and wavelength: directions, events, worst event, total, verdict."""
+    lines = [f"{result.files} files, {len(result.rows)} fibres/wavelengths"]
+    if width >= 60:
+        lines.append(
+            f"{'fibre':<6} {'nm':>5} {'dirs':<7} {'ev':>3} {'worst at':>10} {'dB':>6} "
+            f"{'total':>6}  verdict"
+        )
+    for row in result.rows:
+        worst = row.worst()
+        wl = f"{row.wavelength_nm:g}" if row.wavelength_nm else "?"
+        at = distance(worst[0]) if worst else "-"
+        if width >= 60:
+            lines.append(
+                f"{row.fibre[:6]:<6} {wl:>5} {row.directions:<7} {row.event_count:>3} {at:>10} "
+                f"{fmt(worst[1] if worst else None, 3):>6} {fmt(row.total_loss_db, 2):>6}  "
+                f"{row.verdict}"
+            )
+        else:
+            lines.append(f"{row.fibre[:6]:<6} {wl:>5} {row.directions:<7} {row.verdict}")
+            lines.append(f"   worst {at} {fmt(worst[1] if worst else None, 3)} dB"[:width])
+        for problem in row.problems:
+            lines.append(f"   {problem}"[: max(width, 20)])
+    for _name, problem in result.unread:
+        lines.append(f"unread: {problem}")
+    return lines

@@ -1,0 +1,125 @@
+"""Verdicts per event and per section against a link's limits.
+
+The limits are plain numbers with their sources; the commands and the workspace fill them from
+the link's presets (fibre type, splice and connector grades), the defaults below are the ones
+the shipped presets use. Verdict words follow the project's counting rule: ``pass``, ``fail``,
+``no limit``, ``in doubt``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+from typing import Literal
+
+Polish = Literal["UPC", "APC"]
+
+#: Reflectance maxima by connector polish, dB (common practice: UPC -50 dB, APC -60 dB; the
+#: TIA-568.3-D floor for single-mode is -35 dB, from memory).
+REFLECTANCE_MAX_DB: dict[str, float] = {"UPC": -50.0, "APC": -60.0}
+#: ITU-T G.652.D cabled maxima, dB/km (as in presets/fibres.toml, from memory).
+G652D_ATTENUATION_MAX_DB_PER_KM: dict[float, float] = {
+    1310.0: 0.4,
+    1383.0: 0.4,
+    1490.0: 0.4,
+    1550.0: 0.3,
+    1625.0: 0.4,
+}
+
+
+@dataclass(frozen=True, slots=True)
+class Limits:
+    """Maxima an event or section is judged against, with where each came from."""
+
+    splice_max_db: float | None = 0.3
+    splice_source: str = "TIA-568.3-D splice maximum (from memory)"
+    connector_max_db: float | None = 0.75
+    connector_source: str = "TIA-568.3-D mated pair maximum (from memory)"
+    polish: Polish = "UPC"
+    reflectance_max_db: float | None = None  # None: by polish from REFLECTANCE_MAX_DB
+    reflectance_source: str = "common practice"
+    attenuation_max_db_per_km: dict[float, float] = field(
+        default_factory=lambda: dict(G652D_ATTENUATION_MAX_DB_PER_KM)
+    )
+    attenuation_source: str = "ITU-T G.652.D cabled maximum (from memory)"
+    # the one value for the wavelength at hand, set by for_wavelength()
+    attenuation_here_db_per_km: float | None = None
+
+    @property
+    def reflectance_limit_db(self) -> float | None:
+        if self.reflectance_max_db is not None:
+            return self.reflectance_max_db
+        return REFLECTANCE_MAX_DB.get(self.polish)
+
+    def for_wavelength(self, wavelength_nm: float | None) -> Limits:
+        """These limits with the attenuation maximum of ``wavelength_nm`` (the nearest listed
+        wavelength within 20 nm; none otherwise)."""
+        here = None
+        if wavelength_nm is not None and self.attenuation_max_db_per_km:
+            nearest = min(self.attenuation_max_db_per_km, key=lambda w: abs(w - wavelength_nm))
+            if abs(nearest - wavelength_nm) <= 20.0:
+                here = self.attenuation_max_db_per_km[nearest]
+        return replace(self, attenuation_here_db_per_km=here)
+
+
+def event_verdict(
+    kind: str,
+    loss_db: float | None,
+    reflectance_db: float | None,
+    limits: Limits,
+    *,
+    bidirectional: bool,
+) -> tuple[str, str]:
+    """Verdict and its reason for one event.
+
+    A one-way gainer is ``in doubt``: only the average of both directions is the splice's loss
+    (ITU-T G.650.3). A one-way non-reflective loss is judged but said to be one-way.
+    """
+    if kind == "end":
+        return "no limit", "end of fibre"
+    if kind == "gainer" and not bidirectional:
+        return "in doubt", "gainer: average both directions"
+    reasons: list[str] = []
+    failed = False
+    judged = False
+    if kind == "reflective":
+        limit, source = limits.connector_max_db, limits.connector_source
+    else:
+        limit, source = limits.splice_max_db, limits.splice_source
+    if loss_db is not None and limit is not None:
+        judged = True
+        if loss_db > limit:
+            failed = True
+            reasons.append(f"loss {loss_db:.2f} > {limit:g} dB ({source})")
+    r_limit = limits.reflectance_limit_db
+    if kind == "reflective" and reflectance_db is not None and r_limit is not None:
+        judged = True
+        if reflectance_db > r_limit:
+            failed = True
+            reasons.append(
+                f"reflectance {reflectance_db:.1f} > {r_limit:g} dB "
+                f"({limits.polish}, {limits.reflectance_source})"
+            )
+    if failed:
+        return "fail", "; ".join(reasons)
+    if not judged:
+        return "no limit", "no limit for this event"
+    return "pass", "within limits" + ("" if bidirectional else " (one direction)")
+
+
+def section_verdict(
+    attenuation_db_per_km: float, length_m: float, limits: Limits
+) -> tuple[str, str]:
+    """A section's attenuation against the fibre's maximum at this wavelength.
+
+    Sections shorter than 500 m are not judged: their slope is too uncertain (common practice).
+    """
+    limit = limits.attenuation_here_db_per_km
+    if limit is None:
+        return "no limit", "no attenuation maximum for this wavelength"
+    if length_m < 500.0:
+        return "no limit", "section under 500 m: slope not judged"
+    if attenuation_db_per_km > limit:
+        return "fail", (
+            f"{attenuation_db_per_km:.3f} > {limit:g} dB/km ({limits.attenuation_source})"
+        )
+    return "pass", f"within {limit:g} dB/km"
