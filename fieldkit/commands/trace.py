@@ -109,12 +109,13 @@ def _common(p: argparse.ArgumentParser) -> None:
     )
     lim = p.add_argument_group("verdict limits")
     lim.add_argument(
-        "--fibre",
-        "--fiber",
-        dest="fibre",
+        "--fibre-type",
+        dest="fibre_type",
         metavar="TYPE",
         help="fibre preset giving the attenuation maximum (default G.652.D)",
     )
+    # the spelling other commands took first; hidden so that --fibre can mean a fibre number
+    lim.add_argument("--fiber", dest="fibre_type", help=argparse.SUPPRESS)
     lim.add_argument("--polish", choices=("UPC", "APC"), default="UPC", help="connector polish")
     lim.add_argument("--splice-max", metavar="DB", help="splice loss maximum (0.3 dB)")
     lim.add_argument("--connector-max", metavar="DB", help="connector loss maximum (0.75 dB)")
@@ -166,7 +167,7 @@ def settings_from(args: argparse.Namespace) -> tuple[Settings, ReadOptions]:
     if th.end_of_fibre_db <= th.splice_loss_db:
         raise CommandError("--end-threshold must be larger than --splice-threshold")
     limits = Limits(polish=args.polish)
-    if args.fibre:
+    if args.fibre_type:
         limits = _fibre_limits(args, limits)
     smax = _num(args.splice_max, "--splice-max", 0.0, 10.0)
     cmax = _num(args.connector_max, "--connector-max", 0.0, 10.0)
@@ -201,10 +202,10 @@ def _fibre_limits(args: argparse.Namespace, limits: Any) -> Any:
 
     library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
     warn_preset_problems(args, library.problems)
-    fibre = library.fibres.get(args.fibre)
+    fibre = library.fibres.get(args.fibre_type)
     if fibre is None:
         names = ", ".join(sorted(library.fibres))
-        raise CommandError(f"--fibre: no fibre preset {args.fibre!r} (presets: {names})")
+        raise CommandError(f"--fibre-type: no fibre preset {args.fibre_type!r} (presets: {names})")
     table = {float(k): float(v) for k, v in fibre.attenuation_max.items()}
     return replace(
         limits, attenuation_max_db_per_km=table, attenuation_source=f"{fibre.name} preset"

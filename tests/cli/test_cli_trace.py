@@ -1,24 +1,19 @@
-"""``fieldkit trace`` run as a user runs it: a subprocess."""
+"""``fieldkit trace`` run as a user runs it (in-process through cli_runner)."""
 
 from __future__ import annotations
 
 import json
 import subprocess
-import sys
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 from fieldkit import safety
 
 
 def run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", "trace", *args],
-        capture_output=True,
-        text=True,
-        timeout=120,
-    )
+    return cli_runner.run("trace", *args)
 
 
 @pytest.fixture(scope="module")
@@ -80,7 +75,7 @@ def test_folder_table_and_json(cable: Path):
         (("show", "missing.sor"), "no such file"),
         (("show", "{cable}/F001_1550_AB.sor", "--splice-threshold", "nan"), "splice-threshold"),
         (("show", "{cable}/F001_1550_AB.sor", "--end-threshold", "0,1"), "outside"),
-        (("show", "{cable}/F001_1550_AB.sor", "--fibre", "nonesuch"), "no fibre preset"),
+        (("show", "{cable}/F001_1550_AB.sor", "--fibre-type", "nonesuch"), "no fibre preset"),
         (("pair", "{cable}/F001_1550_AB.sor", "{cable}/broken.sor"), "broken.sor"),
         (("folder", "{cable}/F001_1550_AB.sor"), "not a folder"),
         (("folder", "{empty}"), "no trace files"),
