@@ -46,7 +46,12 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"{self.prog}: error: {message}\n")
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(modules: Sequence[str] = COMMAND_MODULES) -> argparse.ArgumentParser:
+    """The ``fieldkit`` parser with the commands of ``modules`` (by default all of them)."""
+    return _build(modules)[0]
+
+
+def _build(modules: Sequence[str]) -> tuple[argparse.ArgumentParser, set[str]]:
     parser = _Parser(
         prog="fieldkit",
         description="Offline field assistant for fibre-optic crews. Without a command, starts "
@@ -63,9 +68,38 @@ def build_parser() -> argparse.ArgumentParser:
         "platform config folder; or $FIELDKIT_CONFIG_DIR)",
     )
     subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
-    for name in COMMAND_MODULES:
+    for name in modules:
         importlib.import_module(name).register(subparsers)
-    return parser
+    return parser, set(subparsers.choices)
+
+
+#: Options of ``fieldkit`` itself that take a value (``--data-dir DIR``).
+_VALUE_OPTIONS = ("--data-dir", "--config-dir")
+
+
+def _needed_modules(argv: Sequence[str]) -> tuple[tuple[str, ...], str | None]:
+    """The command modules ``argv`` needs, and the command it names.
+
+    None to start the UI (no command, no help), only the named command's module when its
+    name says which, all of them otherwise (help, or a name argparse must refuse by listing
+    the commands). Importing every command's parser is a tenth of the UI's start-up.
+    """
+    expect_value = False
+    for arg in argv:
+        if expect_value:
+            expect_value = False
+        elif arg in ("-h", "--help", "--version"):
+            return COMMAND_MODULES, None
+        elif not arg.startswith("-"):
+            named = tuple(
+                module
+                for module in COMMAND_MODULES
+                if module.rpartition(".")[2] in (arg, f"{arg}_cmd")
+            )
+            return named or COMMAND_MODULES, arg
+        elif "=" not in arg and any(o.startswith(arg) for o in _VALUE_OPTIONS if len(arg) > 2):
+            expect_value = True
+    return (), None
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -73,8 +107,12 @@ def main(argv: Sequence[str] | None = None) -> int:
     from fieldkit.commands.common import CommandError
     from fieldkit.text.escape import terminal
 
-    parser = build_parser()
-    args = parser.parse_args(argv)
+    arguments = sys.argv[1:] if argv is None else list(argv)
+    modules, command = _needed_modules(arguments)
+    parser, commands = _build(modules)
+    if command is not None and command not in commands:
+        parser, _ = _build(COMMAND_MODULES)
+    args = parser.parse_args(arguments)
     if args.command is None:
         from fieldkit.tui.app import make_app
 

@@ -24,6 +24,16 @@ class Workspace:
     def make_screen(self) -> Screen:
         cls = getattr(importlib.import_module(self.module), self.screen_class)
         screen: Screen = cls()
+        # The layout class for the terminal's width (-wide / -narrow) goes on before the screen
+        # is mounted: set on its first resize, it would restyle every widget once more.
+        breakpoints = screen.HORIZONTAL_BREAKPOINTS
+        if breakpoints is None:
+            breakpoints = screen.app.HORIZONTAL_BREAKPOINTS
+        width = screen.app.size.width
+        for threshold, name in sorted(breakpoints or [], reverse=True):
+            if width >= threshold:
+                screen.add_class(name)
+                break
         return screen
 
 
