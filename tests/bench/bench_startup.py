@@ -40,9 +40,9 @@ FIELDKIT_CHILD = """
 import os, sys, time
 argv = sys.argv[1:]
 mode = "jobs" if argv[:1] == ["demo"] else "convert"
-from fieldkit.tui.workspaces import by_mode
+from fieldkit.tui.workspaces import WORKSPACES
 import importlib
-workspace = by_mode(mode)
+workspace = next(w for w in WORKSPACES if w.mode == mode)
 screen_class = getattr(importlib.import_module(workspace.module), workspace.screen_class)
 mounted = screen_class.__dict__.get("on_mount")
 
