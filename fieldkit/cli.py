@@ -26,6 +26,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.loss",
     "fieldkit.commands.reference",
     "fieldkit.commands.locate",
+    "fieldkit.commands.splice",
     "fieldkit.commands.trace",
     "fieldkit.commands.jobs",
     "fieldkit.commands.demo",

@@ -37,6 +37,8 @@ KINDS: tuple[str, ...] = (
     "applications",
     "transceivers",
     "cables",
+    "colour_sequences",
+    "splice_plans",
 )
 
 COMPONENT_KINDS = ("splitter", "wdm", "filter", "attenuator", "other")
@@ -172,6 +174,30 @@ class CablePreset:
     origin: str = ""
 
 
+@dataclass(frozen=True)
+class ColourSequencePreset:
+    """A fibre and tube colour code: the colours of positions 1..n in order, and the tracer
+    marked on repeats (see :class:`fieldkit.calc.splicing.ColourSequence`)."""
+
+    name: str
+    colours: tuple[str, ...]
+    tracer_colour: str
+    tracer_on_tracer: str
+    source: str
+    origin: str = ""
+
+
+@dataclass(frozen=True)
+class SplicePlanPreset:
+    """A splice plan as text (``straight``; ``1-12 > 25-36``; ``drop 13-24 > D``;
+    ``park 25-36``), read by :func:`fieldkit.inputs.splice_plan`."""
+
+    name: str
+    plan: str
+    source: str
+    origin: str = ""
+
+
 @dataclass
 class PresetLibrary:
     """Every loaded preset, by kind and name, and the problems met while loading."""
@@ -183,6 +209,8 @@ class PresetLibrary:
     applications: dict[str, ApplicationPreset] = field(default_factory=dict)
     transceivers: dict[str, TransceiverPreset] = field(default_factory=dict)
     cables: dict[str, CablePreset] = field(default_factory=dict)
+    colour_sequences: dict[str, ColourSequencePreset] = field(default_factory=dict)
+    splice_plans: dict[str, SplicePlanPreset] = field(default_factory=dict)
     problems: list[str] = field(default_factory=list)
 
     def of_kind(self, kind: str) -> dict[str, Any]:
@@ -206,7 +234,9 @@ class PresetLibrary:
         for key, value in table.items():
             if _fold(key) == wanted:
                 return value
-        singular = kind[:-1] if kind != "fibres" else "fibre"
+        singular = {"fibres": "fibre", "colour_sequences": "colour sequence"}.get(
+            kind, kind[:-1].replace("_", " ")
+        )
         have = ", ".join(table) or "none"
         raise InputError(f"unknown {singular} '{name}' (known: {have})")
 
@@ -602,6 +632,39 @@ def _cable(entry: Mapping[str, Any], origin: str) -> CablePreset:
     )
 
 
+def _colour_sequence(entry: Mapping[str, Any], origin: str) -> ColourSequencePreset:
+    colours = entry.get("colours")
+    if (
+        not isinstance(colours, list)
+        or not 2 <= len(colours) <= 48
+        or not all(isinstance(c, str) and c.strip() for c in colours)
+    ):
+        raise _EntryError("'colours' must be a list of 2 to 48 colour words")
+    words = tuple(c.strip().lower() for c in colours)
+    if len(set(words)) != len(words):
+        raise _EntryError("'colours' names a colour twice")
+    return ColourSequencePreset(
+        _text(entry, "name"),
+        words,
+        _text(entry, "tracer_colour", required=False, default="black").lower(),
+        _text(entry, "tracer_on_tracer", required=False, default="yellow").lower(),
+        _text(entry, "source"),
+        origin,
+    )
+
+
+def _splice_plan(entry: Mapping[str, Any], origin: str) -> SplicePlanPreset:
+    from fieldkit.inputs import splice_plan
+
+    plan = _text(entry, "plan")
+    try:
+        # Checked with placeholder cables; "straight" takes the count when applied.
+        splice_plan(plan, "A", "B", count_a=1, what="plan")
+    except InputError as exc:
+        raise _EntryError(str(exc)) from None
+    return SplicePlanPreset(_text(entry, "name"), plan, _text(entry, "source"), origin)
+
+
 _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = {
     "fibres": (
         _fibre,
@@ -654,4 +717,9 @@ _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = 
         _cable,
         {"name", "construction", "helix_percent", "helix_uncertainty_percent", "source", "notes"},
     ),
+    "colour_sequences": (
+        _colour_sequence,
+        {"name", "colours", "tracer_colour", "tracer_on_tracer", "source", "notes"},
+    ),
+    "splice_plans": (_splice_plan, {"name", "plan", "source", "notes"}),
 }

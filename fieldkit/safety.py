@@ -19,6 +19,15 @@ GLASS_SHARDS = (
     "put offcuts in a marked shard container, never on the floor or the work surface, and do "
     "not eat or drink at the splice bench."
 )
+SPLICER_HEAT = (
+    "The fusion splicer's electrodes carry a high-voltage arc and the heat-shrink oven runs hot: "
+    "keep fingers out of both while they work and let a sleeve cool before handling it."
+)
+# Before splicing: the fibre may be lit from the far end, or a locator may be on it.
+NEVER_LOOK = (
+    "Never look into a fibre end or a visual fault locator's output: the far end may be lit "
+    "with invisible light."
+)
 DIGGING = (
     "Before anyone digs or opens a closure at a located fault: follow the local utility-locate "
     "rules (request a locate and wait for the marks), confirm the position with a second "
@@ -37,4 +46,7 @@ DEFER = (
     "rules, the operator's procedures or licensed practice, which always take precedence."
 )
 
-ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, OTDR_LIVE_FIBRE, GLASS_SHARDS, DIGGING, DEFER)
+ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, OTDR_LIVE_FIBRE, GLASS_SHARDS, SPLICER_HEAT, DIGGING, DEFER)
+
+#: The cautions of the splice log (workspace and report), in order.
+SPLICING = (GLASS_SHARDS, SPLICER_HEAT, NEVER_LOOK, FAULT_LOCATOR)

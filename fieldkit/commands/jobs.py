@@ -287,8 +287,9 @@ def run_show(args: argparse.Namespace) -> int:
         extras = []
         if link.budget is not None:
             extras.append("budget")
-        if link.splices:
-            extras.append(f"{len(link.splices)} splices")
+        if link.closures:
+            count = sum(len(c.current_splices()) for c in link.closures)
+            extras.append(f"{len(link.closures)} closures, {count} splices")
         if link.faults:
             extras.append(f"{len(link.faults)} located faults")
         if link.references:

@@ -148,6 +148,14 @@ def _summary(kind: str, p: Any) -> str:
         )
     if kind == "cables":
         return f"helix {p.helix_percent:g} ± {p.helix_uncertainty_percent:g} %; {p.construction}"
+    if kind == "colour_sequences":
+        return (
+            " ".join(f"{i} {c}" for i, c in enumerate(p.colours, start=1))
+            + f"; repeats with a {p.tracer_colour} tracer ({p.tracer_on_tracer} on "
+            f"{p.tracer_colour})"
+        )
+    if kind == "splice_plans":
+        return str(p.plan)
     return ""
 
 

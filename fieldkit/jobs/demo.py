@@ -28,7 +28,14 @@ from fieldkit.jobs.models import (
     LossResult,
     Note,
     ReferenceRecord,
-    SpliceRecord,
+)
+from fieldkit.jobs.splices import Closure, Splice, SpliceCable, SpliceLimit, Tray
+
+_TIA_FUSION = SpliceLimit(
+    method="fusion",
+    preset="fusion",
+    loss_max_db=0.3,
+    source="ANSI/TIA-568.3-D (2016) §7.3.5, 0.3 dB per splice (from memory)",
 )
 
 #: at(hours): a time that many hours after the start of the demo day.
@@ -153,14 +160,43 @@ def _backbone(at: _At) -> Job:
                     at=when,
                 )
             )
-    link.splices = [
-        SpliceRecord(
-            fibre=f, loss_db=loss, estimate="fusion-splicer estimate", by=ana, at=at(7.0 + f * 0.02)
-        )
-        for f, loss in zip(
-            range(1, 13),
-            [0.02, 0.03, 0.01, 0.02, 0.04, 0.02, 0.19, 0.03, 0.02, 0.01, 0.03, 0.02],
-            strict=True,
+    link.splice_limits = [_TIA_FUSION.model_copy(update={"by": ana, "at": at(7.0)})]
+    cables = [
+        SpliceCable(name="Library", fibre_count=12, fibre_type="G.652.D", by=ana, at=at(7.0)),
+        SpliceCable(name="Town Hall", fibre_count=12, fibre_type="G.657.A2", by=ana, at=at(7.0)),
+    ]
+    link.closures = [
+        Closure(
+            name="JC-3 Market Street",
+            route_distance_m=2100.0,
+            landmark="chamber JC-3 by the market cross",
+            cables=cables,
+            trays=[Tray(number=1, capacity=12, by=ana, at=at(7.0))],
+            splices=[
+                Splice(
+                    cable_a="Library",
+                    fibre_a=f,
+                    cable_b="Town Hall",
+                    fibre_b=f,
+                    tray=1,
+                    slot=f,
+                    estimate_db=est,
+                    loss_ab_db=ab,
+                    loss_ba_db=ba,
+                    wavelength_nm=1550.0,
+                    by=ana,
+                    at=at(7.0 + f * 0.02),
+                )
+                for f, est, ab, ba in zip(
+                    range(1, 13),
+                    [0.02, 0.03, 0.01, 0.02, 0.04, 0.02, 0.19, 0.03, 0.02, 0.01, 0.03, 0.02],
+                    [-0.04, 0.01, -0.06, 0.00, 0.02, -0.03, 0.21, -0.01, 0.00, -0.05, 0.02, -0.02],
+                    [0.10, 0.07, 0.10, 0.06, 0.08, 0.09, 0.47, 0.09, 0.06, 0.09, 0.06, 0.08],
+                    strict=True,
+                )
+            ],
+            by=ana,
+            at=at(7.0),
         )
     ]
     return Job(
@@ -292,11 +328,42 @@ def _reservoir(at: _At) -> Job:
             notes="Digger strike reported by the farm contractor; marks requested.",
         )
     ]
-    link.splices = [
-        SpliceRecord(
-            fibre=f, loss_db=loss, estimate="OTDR bidirectional", by=ana, at=at(13.0 + f * 0.05)
+    link.splice_limits = [_TIA_FUSION.model_copy(update={"by": ana, "at": at(13.0)})]
+    link.closures = [
+        Closure(
+            name="Repair closure past HH-12",
+            route_distance_m=2890.0,
+            landmark="handhole HH-12 + 15 m",
+            notes="New closure at the digger strike.",
+            cables=[
+                SpliceCable(name="to Works", fibre_count=6, per_tube=6, by=ana, at=at(13.0)),
+                SpliceCable(name="to Reservoir", fibre_count=6, per_tube=6, by=ana, at=at(13.0)),
+            ],
+            trays=[Tray(number=1, capacity=12, by=ana, at=at(13.0))],
+            splices=[
+                Splice(
+                    cable_a="to Works",
+                    fibre_a=f,
+                    cable_b="to Reservoir",
+                    fibre_b=f,
+                    tray=1,
+                    slot=f,
+                    loss_ab_db=ab,
+                    loss_ba_db=ba,
+                    wavelength_nm=1550.0,
+                    by=ana,
+                    at=at(13.0 + f * 0.05),
+                )
+                for f, ab, ba in zip(
+                    range(1, 7),
+                    [0.05, 0.07, 0.02, 0.04, 0.36, 0.03],
+                    [0.03, 0.05, 0.04, 0.06, 0.40, 0.05],
+                    strict=True,
+                )
+            ],
+            by=ana,
+            at=at(13.0),
         )
-        for f, loss in zip(range(1, 7), [0.04, 0.06, 0.03, 0.05, 0.21, 0.04], strict=True)
     ]
     ref = ReferenceRecord(
         source_id="SRC-2",

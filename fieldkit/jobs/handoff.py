@@ -130,9 +130,16 @@ def _repeated_record_id(job: Job) -> str | None:
         groups += [
             ("result", list(link.results)),
             ("reference", list(link.references)),
-            ("splice", list(link.splices)),
+            ("closure", list(link.closures)),
+            ("splice limit", list(link.splice_limits)),
             ("fault", list(link.faults)),
         ]
+        for closure in link.closures:
+            groups += [
+                ("cable", list(closure.cables)),
+                ("tray", list(closure.trays)),
+                ("splice", list(closure.splices)),
+            ]
     for kind, records in groups:
         ids: set[str] = set()
         for record in records:
@@ -173,7 +180,11 @@ def merge_job(local: Job, incoming: Job) -> tuple[int, list[str]]:
         if link.id not in links:
             local.links.append(link)
             added += (
-                1 + len(link.results) + len(link.references) + len(link.splices) + len(link.faults)
+                1
+                + len(link.results)
+                + len(link.references)
+                + sum(1 + len(c.splices) for c in link.closures)
+                + len(link.faults)
             )
             continue
         n, c = _merge_link(links[link.id], link, f"{where}, link {links[link.id].label}")
@@ -201,12 +212,31 @@ def _merge_link(mine: Link, theirs: Link, where: str) -> tuple[int, list[str]]:
     for attr, noun in (
         ("references", "reference"),
         ("results", "result"),
-        ("splices", "splice"),
+        ("splice_limits", "splice limit"),
         ("faults", "located fault"),
     ):
         n, c = _merge_list(getattr(mine, attr), getattr(theirs, attr), f"{where}: {noun}")
         added += n
         conflicts += c
+    closures = {closure.id: closure for closure in mine.closures}
+    for closure in theirs.closures:
+        if closure.id not in closures:
+            mine.closures.append(closure)
+            added += 1 + len(closure.splices)
+            continue
+        here = closures[closure.id]
+        inside = f"{where}, closure {here.name}"
+        for attr, noun in (("cables", "cable"), ("trays", "tray"), ("splices", "splice")):
+            n, c = _merge_list(getattr(here, attr), getattr(closure, attr), f"{inside}: {noun}")
+            added += n
+            conflicts += c
+        if not here.plan and closure.plan:
+            here.plan, here.plan_source = list(closure.plan), closure.plan_source
+            added += 1
+        elif closure.plan and [r.model_dump() for r in here.plan] != [
+            r.model_dump() for r in closure.plan
+        ]:
+            conflicts.append(f"{inside}: the splice plan differs; kept this laptop's")
     return added, conflicts
 
 

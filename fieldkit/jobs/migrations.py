@@ -6,6 +6,14 @@ version N and returns one of version N + 1; :func:`migrate` chains them.
 Version 1 (fieldkit before per-link records were shared): ``crew`` was one comma-separated
 string, notes named their author ``author``, there was no ``revision``, and result directions
 were written ``"AB"`` / ``"BA"``.
+
+Version 2 (before the splice log): a link held a flat ``splices`` list of ``{fibre, loss_db,
+estimate}``. Version 3 keeps splices in closures (:mod:`fieldkit.jobs.splices`); the flat list
+moves into one closure per link, "splices before closures", with cables "A" and "B" whose fibre
+count and tube size were not recorded, each splice joining the same fibre number on both sides.
+A loss estimated by the splicer becomes ``estimate_db``, an OTDR one-way value
+``loss_ab_db`` / ``loss_ba_db``, a bidirectional one ``average_only_db``. A second splice of the
+same fibre becomes a re-splice of the first (``replaces``).
 """
 
 from __future__ import annotations
@@ -56,8 +64,79 @@ def _v1_to_v2(data: dict[str, Any]) -> dict[str, Any]:
     return out
 
 
+#: The name of the closure that holds a version-2 link's splices.
+MIGRATED_CLOSURE = "splices before closures"
+
+_ESTIMATE_FIELDS = {
+    "fusion-splicer estimate": "estimate_db",
+    "OTDR A->B": "loss_ab_db",
+    "OTDR B->A": "loss_ba_db",
+    "OTDR bidirectional": "average_only_db",
+}
+
+
+def _v2_to_v3(data: dict[str, Any]) -> dict[str, Any]:
+    out = dict(data)
+    links = []
+    for link in out.get("links", []) or []:
+        if not isinstance(link, dict):
+            raise MigrationError("a link is not an object")
+        link = dict(link)
+        old = link.pop("splices", None) or []
+        if not isinstance(old, list):
+            raise MigrationError("a link's splices are not a list")
+        link.setdefault("closures", [])
+        link.setdefault("splice_limits", [])
+        if old:
+            splices = []
+            last_of_fibre: dict[int, str] = {}
+            ordered = sorted(
+                (s for s in old if isinstance(s, dict)), key=lambda s: str(s.get("at", ""))
+            )
+            if len(ordered) != len(old):
+                raise MigrationError("a splice is not an object")
+            for sp in ordered:
+                estimate = sp.get("estimate", "fusion-splicer estimate")
+                if estimate not in _ESTIMATE_FIELDS:
+                    raise MigrationError(f"a splice has an unknown estimate {estimate!r}")
+                new: dict[str, Any] = {
+                    "cable_a": "A",
+                    "fibre_a": sp.get("fibre"),
+                    "cable_b": "B",
+                    "fibre_b": sp.get("fibre"),
+                    _ESTIMATE_FIELDS[estimate]: sp.get("loss_db"),
+                    "by": sp.get("by", ""),
+                }
+                for key in ("id", "at"):
+                    if key in sp:
+                        new[key] = sp[key]
+                fibre = sp.get("fibre")
+                if isinstance(fibre, int) and fibre in last_of_fibre:
+                    new["replaces"] = last_of_fibre[fibre]
+                if isinstance(fibre, int) and "id" in sp:
+                    last_of_fibre[fibre] = sp["id"]
+                splices.append(new)
+            first_at = {"at": ordered[0]["at"]} if "at" in ordered[0] else {}
+            cable = {"fibre_count": None, "per_tube": None, **first_at}
+            link["closures"] = [
+                *link["closures"],
+                {
+                    "name": MIGRATED_CLOSURE,
+                    "notes": "Moved from the link's splice list when fieldkit began keeping "
+                    "closures; cables, trays and tube sizes were not recorded then.",
+                    "cables": [{"name": "A", **cable}, {"name": "B", **cable}],
+                    "splices": splices,
+                    **first_at,
+                },
+            ]
+        links.append(link)
+    out["links"] = links
+    out["schema_version"] = 3
+    return out
+
+
 #: MIGRATIONS[n] turns a version-n dict into a version-(n+1) dict.
-MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {1: _v1_to_v2}
+MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {1: _v1_to_v2, 2: _v2_to_v3}
 
 
 def migrate(data: dict[str, Any]) -> dict[str, Any]:

@@ -32,6 +32,18 @@ from fieldkit.jobs.models import (
     LossResult,
     result_in_doubt,
 )
+from fieldkit.jobs.splices import (
+    Closure,
+    Judgement,
+    Splice,
+    SpliceCable,
+    closure_summary,
+    current_limit,
+    fibre_words,
+    judge_in,
+    tray_map,
+    verdict_words,
+)
 from fieldkit.text import escape
 
 HANDOFF_FORMAT = "fieldkit-jobs-handoff"
@@ -162,8 +174,8 @@ def in_doubt(job: Job) -> list[tuple[Link, LossResult]]:
 def safety_lines(job: Job) -> list[str]:
     """The cautions that belong in this job's report."""
     lines = [safety.INVISIBLE_LIGHT]
-    if any(link.splices for link in job.links):
-        lines.append(safety.GLASS_SHARDS)
+    if any(link.closures for link in job.links):
+        lines.extend(line for line in safety.SPLICING if line not in lines)
     if any(link.faults for link in job.links):
         lines.append(safety.DIGGING)
     lines.append(safety.DEFER)
@@ -444,15 +456,7 @@ def _link_sections(link: Link) -> list[Section]:
             table.marks.append("doubt" if ref.in_doubt_since else "")
         sec.tables.append(table)
         out.append(sec)
-    if link.splices:
-        sec = Section(f"{link.label}: splices", level=3)
-        table = Table(["Fibre", "Loss dB", "Estimate", "By", "When"], [], numeric={0, 1})
-        for sp in link.splices:
-            table.rows.append(
-                [str(sp.fibre), fmt_db(sp.loss_db), sp.estimate, sp.by, fmt_time(sp.at)]
-            )
-        sec.tables.append(table)
-        out.append(sec)
+    out.extend(_closure_sections(link))
     if link.faults:
         sec = Section(f"{link.label}: located faults", level=3)
         table = Table(
@@ -491,6 +495,194 @@ def _link_sections(link: Link) -> list[Section]:
         sec.tables.append(table)
         out.append(sec)
     return out
+
+
+# -- splice log: one closure record per closure (fieldkit.jobs.splices) -------------------------
+_SPLICE_HEADERS = [
+    "Fibre A",
+    "Fibre B",
+    "Tray/slot",
+    "Method",
+    "Estimate dB",
+    "A→B dB",
+    "B→A dB",
+    "Average dB",
+    "Result",
+    "Notes",
+    "By",
+    "When",
+]
+
+
+def closure_rows(link: Link, closure: Closure) -> list[tuple[Splice, Judgement, bool]]:
+    """Every splice of a closure with its judgement and whether a re-splice superseded it:
+    failures first, then the rest in fibre order, superseded splices last."""
+    current = closure.current_splices()
+    rows = [(s, judge_in(closure, s, link.splice_limits), False) for s in current]
+    rows.sort(key=lambda row: (row[1].verdict != "fail", row[0].cable_a.casefold(), row[0].fibre_a))
+    old = sorted(closure.superseded(), key=lambda s: (s.fibre_a, s.at))
+    rows += [(s, judge_in(closure, s, link.splice_limits), True) for s in old]
+    return rows
+
+
+def _closure_sections(link: Link) -> list[Section]:
+    out = []
+    for closure in link.closures:
+        sec = Section(f"{link.label}: closure {closure.name}", level=3)
+        where = []
+        if closure.route_distance_m is not None:
+            where.append(f"route {fmt_m(closure.route_distance_m)} m")
+        if closure.landmark:
+            where.append(closure.landmark)
+        sec.paragraphs.append(closure_summary(closure, link.splice_limits) + ".")
+        if where:
+            sec.paragraphs.append("Where: " + "; ".join(where) + ".")
+        for cable in closure.cables:
+            sec.paragraphs.append(_cable_line(cable))
+        for method in ("fusion", "mechanical"):
+            limit = current_limit(link.splice_limits, method)
+            if limit is not None and any(s.method == method for s in closure.splices):
+                sec.paragraphs.append(
+                    f"{method.capitalize()} splices judged on the bidirectional OTDR average "
+                    f"(ITU-T G.650.3 App. I) against {fmt_db(limit.loss_max_db)} dB"
+                    + (f" ({limit.preset}: {limit.source})" if limit.preset else "")
+                    + "."
+                )
+        if closure.plan_source:
+            sec.paragraphs.append(f"Splice plan: {closure.plan_source}.")
+        trays = tray_map(closure)
+        if trays:
+            sec.paragraphs.append("Tray map: " + "; ".join(trays) + ".")
+        sec.paragraphs.append("Colours read tube/fibre (TIA-598 words; the number comes first).")
+        if closure.notes:
+            sec.paragraphs.append(f"Notes: {closure.notes}")
+        table = Table(list(_SPLICE_HEADERS), [], numeric={4, 5, 6, 7}, nowrap={2})
+        rows = closure_rows(link, closure)
+        for mismatch in dict.fromkeys(j.mismatch for _, j, _ in rows if j.mismatch):
+            sec.paragraphs.append(f"Fibre types differ: {mismatch}.")
+        for sp, j, old in rows:
+            table.rows.append(_splice_cells(closure, sp, j, old))
+            table.marks.append("fail" if j.verdict == "fail" and not old else "")
+        if table.rows:
+            sec.tables.append(table)
+        out.append(sec)
+    return out
+
+
+def _cable_line(cable: SpliceCable) -> str:
+    count = f"{cable.fibre_count} fibres" if cable.fibre_count else "fibre count not recorded"
+    tube = f", {cable.per_tube} a tube" if cable.per_tube else ""
+    kind = f", {cable.fibre_type}" if cable.fibre_type else ""
+    return f"Cable {cable.name}: {count}{tube}{kind}, colour code {cable.colour_sequence}."
+
+
+def _splice_cells(closure: Closure, sp: Splice, j: Judgement, old: bool) -> list[str]:
+    result = "superseded (re-spliced)" if old else verdict_words(j)
+    notes = "; ".join(j.warnings_without_mismatch()) if not old else ""
+    if sp.notes:
+        notes = f"{sp.notes}; {notes}" if notes else sp.notes
+    place = "/".join(str(n) if n is not None else "-" for n in (sp.tray, sp.slot))
+    return [
+        f"{sp.cable_a} " + fibre_words(closure.cable(sp.cable_a), sp.fibre_a, short=True),
+        f"{sp.cable_b} " + fibre_words(closure.cable(sp.cable_b), sp.fibre_b, short=True),
+        place if (sp.tray or sp.slot) else "",
+        sp.method,
+        fmt_db(sp.estimate_db),
+        fmt_db(sp.loss_ab_db),
+        fmt_db(sp.loss_ba_db),
+        fmt_db(j.average_db),
+        result,
+        notes,
+        sp.by,
+        fmt_time(sp.at),
+    ]
+
+
+CLOSURE_CSV_HEADERS = [
+    "record",
+    "job_id",
+    "link",
+    "closure",
+    "route_distance_m",
+    "tray_map",
+    "cable_a",
+    "fibre_a",
+    "fibre_a_colours",
+    "cable_b",
+    "fibre_b",
+    "fibre_b_colours",
+    "tray",
+    "slot",
+    "method",
+    "estimate_db",
+    "loss_ab_db",
+    "loss_ba_db",
+    "average_db",
+    "limit_db",
+    "result",
+    "warnings",
+    "by",
+    "at_utc",
+]
+
+
+def _closure_csv(job: Job, writer: Any) -> None:
+    """After the results, a blank line and the splice log: a ``closure`` row per closure
+    (with its tray map) followed by its ``splice`` rows, failures first."""
+    if not any(link.closures for link in job.links):
+        return
+    writer.writerow([])
+    writer.writerow(CLOSURE_CSV_HEADERS)
+    for link in job.links:
+        for closure in link.closures:
+            blank = [""] * (len(CLOSURE_CSV_HEADERS) - 6)
+            _row(
+                writer,
+                [
+                    "closure",
+                    job.id,
+                    _text_cell(link.label),
+                    _text_cell(closure.name),
+                    fmt_m(closure.route_distance_m),
+                    _text_cell("; ".join(tray_map(closure))),
+                    *blank,
+                ],
+            )
+            for sp, j, old in closure_rows(link, closure):
+                a, b = closure.cable(sp.cable_a), closure.cable(sp.cable_b)
+                _row(
+                    writer,
+                    [
+                        "splice",
+                        job.id,
+                        _text_cell(link.label),
+                        _text_cell(closure.name),
+                        "",
+                        "",
+                        _text_cell(sp.cable_a),
+                        sp.fibre_a,
+                        fibre_words(a, sp.fibre_a, short=True).partition(" ")[2],
+                        _text_cell(sp.cable_b),
+                        sp.fibre_b,
+                        fibre_words(b, sp.fibre_b, short=True).partition(" ")[2],
+                        sp.tray or "",
+                        sp.slot or "",
+                        sp.method,
+                        fmt_db(sp.estimate_db),
+                        fmt_db(sp.loss_ab_db),
+                        fmt_db(sp.loss_ba_db),
+                        fmt_db(j.average_db),
+                        fmt_db(j.limit.loss_max_db if j.limit else None),
+                        "superseded" if old else j.verdict,
+                        _text_cell("; ".join(j.warnings_without_mismatch()) if not old else ""),
+                        _text_cell(sp.by),
+                        sp.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
+                    ],
+                )
+
+
+def _row(writer: Any, cells: list[Any]) -> None:
+    writer.writerow([escape.csv_cell(cell) for cell in cells])
 
 
 def _link_line(link: Link) -> str:
@@ -683,6 +875,7 @@ def to_csv(job: Job) -> str:
                 r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
             ]
             writer.writerow([escape.csv_cell(cell) for cell in row])
+    _closure_csv(job, writer)
     return buffer.getvalue()
 
 

@@ -88,7 +88,8 @@ def test_demo_export_import_round_trip(tmp_path: Path) -> None:
     ok("jobs", "export", backbone["id"], "--format", "csv", "-o", str(out), data=demo)
     raw = out.read_bytes()
     assert raw.startswith(b"\xef\xbb\xbf")  # UTF-8 byte-order mark for spreadsheets
-    rows = list(csv.DictReader(io.StringIO(raw.decode("utf-8-sig"))))
+    results = raw.decode("utf-8-sig").split("\r\n\r\n")[0]  # the splice log follows
+    rows = list(csv.DictReader(io.StringIO(results)))
     assert len(rows) == 24 and sum(r["result"] == "fail" for r in rows) == 1
     for fmt in ("md", "html"):
         assert "Safety and disclaimer" in ok(

@@ -21,10 +21,10 @@ from fieldkit.jobs.models import (
     LossResult,
     Note,
     ReferenceRecord,
-    SpliceRecord,
     new_id,
     result_in_doubt,
 )
+from fieldkit.jobs.splices import Closure, Splice, SpliceCable, Tray
 
 finite = st.floats(min_value=-1e6, max_value=1e6, allow_nan=False, allow_infinity=False)
 positive = st.floats(min_value=0.001, max_value=1e5, allow_nan=False, allow_infinity=False)
@@ -86,12 +86,41 @@ budgets = st.builds(
     application=st.none() | st.dictionaries(st.text(max_size=8), finite, max_size=2),
     transceiver=st.none() | st.dictionaries(st.text(max_size=8), finite, max_size=2),
 )
+small_db = st.none() | st.floats(-5, 20, allow_nan=False)
 splices = st.builds(
-    SpliceRecord,
-    fibre=st.integers(1, 864),
-    loss_db=finite,
-    estimate=st.sampled_from(
-        ["fusion-splicer estimate", "OTDR A->B", "OTDR B->A", "OTDR bidirectional"]
+    Closure,
+    name=st.text(min_size=1, max_size=20),
+    route_distance_m=st.none() | positive,
+    landmark=words,
+    cables=st.lists(
+        st.builds(
+            SpliceCable,
+            name=st.text(min_size=1, max_size=8),
+            fibre_count=st.none() | st.integers(1, 864),
+            per_tube=st.none() | st.integers(1, 24),
+            by=words,
+            at=moments,
+        ),
+        max_size=2,
+    ),
+    trays=st.lists(
+        st.builds(Tray, number=st.integers(1, 99), capacity=st.integers(1, 99)), max_size=2
+    ),
+    splices=st.lists(
+        st.builds(
+            Splice,
+            cable_a=st.text(min_size=1, max_size=8),
+            fibre_a=st.integers(1, 864),
+            cable_b=st.text(min_size=1, max_size=8),
+            fibre_b=st.integers(1, 864),
+            method=st.sampled_from(["fusion", "mechanical"]),
+            estimate_db=small_db,
+            loss_ab_db=small_db,
+            loss_ba_db=small_db,
+            by=words,
+            at=moments,
+        ),
+        max_size=3,
     ),
     by=words,
     at=moments,
@@ -122,7 +151,7 @@ links = st.builds(
     budget=st.none() | budgets,
     references=st.lists(references, max_size=2),
     results=st.lists(results, max_size=3),
-    splices=st.lists(splices, max_size=2),
+    closures=st.lists(splices, max_size=2),
     faults=st.lists(faults, max_size=1),
 )
 jobs = st.builds(

@@ -102,7 +102,8 @@ def test_a_retest_supersedes_the_earlier_result() -> None:
 
 def test_csv_has_one_row_per_result_and_parses() -> None:
     job = sample()
-    rows = list(csv.reader(io.StringIO(to_csv(job))))
+    every = list(csv.reader(io.StringIO(to_csv(job))))
+    rows = every[: every.index([])]  # the splice log follows the results after a blank line
     assert rows[0] == CSV_HEADERS
     assert len(rows) - 1 == sum(len(link.results) for link in job.links) == 30
     fibre7 = next(r for r in rows[1:] if r[2] == "LIB-TH-01" and r[3] == "7" and r[4] == "1550")

@@ -37,6 +37,7 @@ from fieldkit.jobs.reports import (
     result_in_doubt,
     verdict,
 )
+from fieldkit.jobs.splices import closure_summary
 from fieldkit.jobs.store import JobStore, JobSummary, StoreError, filter_summaries, local_date
 from fieldkit.jobs.today import counted
 from fieldkit.text.escape import terminal
@@ -488,14 +489,8 @@ def _links(job: Job) -> RenderableType:
                     "bold magenta",
                 )
             )
-        if link.splices:
-            worst = max(link.splices, key=lambda s: s.loss_db)
-            parts.append(
-                _t(
-                    f"{len(link.splices)} splices, worst {fmt_db(worst.loss_db)} dB "
-                    f"(fibre {worst.fibre}, {worst.estimate})"
-                )
-            )
+        for closure in link.closures:
+            parts.append(_t("Closure " + closure_summary(closure, link.splice_limits)))
         if link.results:
             table = Table(box=None, padding=(0, 1), show_edge=False, expand=False)
             for name in ("Fib", "nm", "Dir", "Loss dB", "Limit", "Result"):
