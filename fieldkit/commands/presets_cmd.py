@@ -15,18 +15,20 @@ def register(subparsers: Any) -> None:
     # the presets module at start-up (a test checks the two lists agree).
     parser: argparse.ArgumentParser = subparsers.add_parser(
         "presets",
-        help="list fibre, connection, component, application, transceiver and cable presets",
+        help="list fibre, connection, component, application, transceiver, cable, colour "
+        "code and splice plan presets",
         description="Lists the presets with the standard and edition each value comes from. "
         "Your own preset files in <config>/presets/*.toml add to them or replace one by "
         "name; a bad file or entry is reported and the rest still load. "
-        "Kinds: fibres, connectors, splices, components, applications, transceivers, cables.",
+        "Kinds: fibres, connectors, splices, components, applications, transceivers, cables, "
+        "colour_sequences, splice_plans.",
     )
     parser.add_argument(
         "kind",
         nargs="?",
         metavar="KIND",
         help="one kind only (fibres, connectors, splices, components, "
-        "applications, transceivers, cables)",
+        "applications, transceivers, cables, colour_sequences, splice_plans)",
     )
     parser.add_argument(
         "--check",

@@ -469,8 +469,7 @@ def splice_line(closure: Closure, splice: Splice, j: Judgement, *, short: bool =
     measured = ", ".join(losses) + " dB" if losses else "no loss yet"
     limit = f" (limit {j.limit.loss_max_db:.2f} dB)" if j.limit and j.passed is not None else ""
     return (
-        f"{splice.cable_a} {a} → {splice.cable_b} {b}{place}: {measured}: "
-        f"{verdict_words(j)}{limit}"
+        f"{splice.cable_a} {a} → {splice.cable_b} {b}{place}: {measured}: {verdict_words(j)}{limit}"
     )
 
 
