@@ -714,3 +714,60 @@ def record_otdr_losses(
 
 class _DryRun(Exception):
     """Raised inside a change to leave the file untouched after computing the outcome."""
+
+
+@dataclass
+class LossUpdate:
+    """What :func:`update_losses` did: the splice after the change, and the values it did not
+    write because different ones were recorded (``(field, recorded, typed)``)."""
+
+    splice: Splice | None
+    judgement: Judgement | None
+    would_overwrite: list[tuple[str, float, float]] = field(default_factory=list)
+
+
+def update_losses(
+    store: Any,
+    job_id: str,
+    link: str,
+    closure: str,
+    splice_id: str,
+    *,
+    estimate_db: float | None = None,
+    loss_ab_db: float | None = None,
+    loss_ba_db: float | None = None,
+    overwrite: bool = False,
+) -> LossUpdate:
+    """Fill a splice's estimate or one-way losses measured later (not a re-splice).
+
+    Values given as None stay. A value that differs from one already recorded is written only
+    with ``overwrite``; without it nothing at all is written and ``would_overwrite`` lists the
+    differences, so the caller can ask first.
+    """
+    result = LossUpdate(None, None)
+    typed = {"estimate_db": estimate_db, "loss_ab_db": loss_ab_db, "loss_ba_db": loss_ba_db}
+
+    def change(job: Job) -> None:
+        result.would_overwrite.clear()
+        target = find_link(job, link)
+        item = find_closure(target, closure)
+        found = next((s for s in item.splices if s.id == splice_id), None)
+        if found is None:
+            raise SpliceError(f"closure {item.name!r} has no splice {splice_id}")
+        for name, value in typed.items():
+            old = getattr(found, name)
+            if value is not None and old is not None and abs(old - value) > 0.005:
+                result.would_overwrite.append((name, old, value))
+        if result.would_overwrite and not overwrite:
+            raise _DryRun
+        for name, value in typed.items():
+            if value is not None:
+                setattr(found, name, value)
+        result.splice = found.model_copy()
+        result.judgement = judge_in(item, found, target.splice_limits)
+
+    try:
+        _store_update(store, job_id, change)
+    except _DryRun:
+        pass
+    return result
