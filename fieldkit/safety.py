@@ -39,7 +39,11 @@ OTDR_LIVE_FIBRE = (
     "first, or on an in-service PON test only through a filtered port at an out-of-band "
     "wavelength, and follow the operator's procedures."
 )
-# One line for a narrow screen.
+# Two lines of an 80-column screen, and one line of a phone terminal.
+OTDR_LIVE_FIBRE_MEDIUM = (
+    "Invisible OTDR pulses: never look into the port or a fibre end. Never into a live fibre "
+    "(it can damage the far receiver): disconnect, or use a filtered PON port."
+)
 OTDR_LIVE_FIBRE_SHORT = "OTDR: invisible pulses; never into a live fibre"
 DEFER = (
     "fieldkit gives estimates to plan and check work; it does not replace local codes, site "

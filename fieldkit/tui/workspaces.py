@@ -78,4 +78,12 @@ WORKSPACES: tuple[Workspace, ...] = (
         "fieldkit.tui.screens.jobs",
         "JobsScreen",
     ),
+    Workspace(
+        "traces",
+        "f10",
+        "Traces",
+        "OTDR traces: events, both directions averaged, the trace drawn",
+        "fieldkit.tui.screens.traces",
+        "TracesScreen",
+    ),
 )

@@ -869,6 +869,34 @@ class FaultScreen(Screen[None]):
         return points
 
     # -- actions ----------------------------------------------------------------------------
+    def prefill(
+        self,
+        distance_m: float,
+        *,
+        ior_set: float | None = None,
+        landmarks: list[tuple[str, float, float]] | None = None,
+        note: str = "",
+    ) -> None:
+        """Fill the reading from another workspace (an OTDR event from the Traces workspace).
+
+        ``landmarks`` are (name, OTDR distance m, route distance m); they replace the list
+        only when given. Everything else the user typed stays.
+        """
+        self.query_one("#fault-distance", Input).value = f"{distance_m:.1f} m"
+        self.query_one("#fault-time", Input).value = ""
+        if ior_set is not None:
+            self.query_one("#fault-ior-set", Input).value = f"{ior_set:.4f}"
+        if landmarks:
+            self.query_one("#fault-landmarks", PointList).set_rows(
+                [
+                    {"name": name, "otdr": f"{otdr:.1f} m", "route": f"{route:.1f} m"}
+                    for name, otdr, route in landmarks
+                ]
+            )
+        if note:
+            self.notify(note, timeout=6)
+        self.recompute()
+
     def action_focus_result(self) -> None:
         panel = self.query_one("#fault-result-panel")
         self.query_one("#fault-body", VerticalScroll).scroll_to_widget(panel, top=True)

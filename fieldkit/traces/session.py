@@ -1,0 +1,282 @@
+"""What the Traces workspace holds: one trace, a pair, or a folder; the event table it shows;
+the hand-off of an event to the fault workspace. Plain state, tested without a terminal.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import numpy.typing as npt
+
+from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace
+from fieldkit.traces.files import ReadOptions, read_trace
+from fieldkit.traces.folder import FibreRow, FolderResult, Progress, analyse_folder
+from fieldkit.traces.lines import KIND_LABELS, fmt
+from fieldkit.traces.model import TraceFileError
+from fieldkit.traces.pairing import PairResult, pair
+
+
+@dataclass(frozen=True, slots=True)
+class EventMark:
+    number: int
+    distance_m: float  # in the frame of the trace shown
+    kind: str
+    failed: bool
+
+
+@dataclass(frozen=True, slots=True)
+class FaultHandoff:
+    """What the fault workspace needs: the OTDR distance as read from the instrument's end."""
+
+    distance_m: float
+    group_index: float
+    from_end: str  # "A" or "B"
+    landmarks: tuple[tuple[str, float, float], ...]  # (name, OTDR distance, route distance)
+    note: str
+
+
+@dataclass(frozen=True, slots=True)
+class Closure:
+    """A landmark with a known route position (a splice closure, a handhole)."""
+
+    name: str
+    route_m: float
+
+
+@dataclass
+class TraceSession:
+    settings: Settings = field(default_factory=Settings)
+    options: ReadOptions = field(default_factory=ReadOptions)
+    a: TraceResult | None = None
+    b: TraceResult | None = None
+    paired: PairResult | None = None
+    folder: FolderResult | None = None
+    shown: str = "AB"  # which direction the plot shows
+    instrument_table: bool = False  # the instrument's own events instead of ours
+
+    # -- opening ---------------------------------------------------------------------------
+    def open(self, path_a: str, path_b: str = "") -> str:
+        """Open one trace, or both directions of a fibre. Returns a one-line summary.
+
+        Raises
+        ------
+        TraceFileError
+            A file that cannot be read, or two that cannot be paired; nothing changes then.
+        """
+        if not path_a.strip():
+            raise TraceFileError("type the path of a trace file (or a folder)")
+        a = analyse_trace(
+            read_trace(Path(path_a.strip()).expanduser(), self.options), self.settings
+        )
+        b = None
+        paired = None
+        if path_b.strip():
+            b = analyse_trace(
+                read_trace(Path(path_b.strip()).expanduser(), self.options), self.settings
+            )
+            paired = pair(a, b)
+        self.a, self.b, self.paired = a, b, paired
+        self.shown = "AB"
+        return self.summary()
+
+    def open_folder(self, path: str, progress: Progress | None = None) -> FolderResult:
+        """Analyse a folder (kept; :meth:`open_row` shows one of its fibres)."""
+        result = analyse_folder(
+            Path(path.strip()).expanduser(),
+            settings=self.settings,
+            options=self.options,
+            progress=progress,
+        )
+        if result.files == 0:
+            raise TraceFileError(
+                f"{Path(path).name}: no trace files (.sor, .csv, .txt, .tsv, .dat)"
+            )
+        self.folder = result
+        return result
+
+    def open_row(self, row: FibreRow) -> str:
+        a = row.a_to_b or row.b_to_a
+        if a is None:
+            raise TraceFileError(f"fibre {row.fibre}: no trace could be read")
+        self.a = a
+        self.b = row.b_to_a if row.a_to_b is not None else None
+        self.paired = row.paired
+        self.shown = "AB"
+        return self.summary()
+
+    # -- what is shown ---------------------------------------------------------------------
+    @property
+    def current(self) -> TraceResult | None:
+        if self.shown == "BA" and self.b is not None:
+            return self.b
+        return self.a
+
+    def toggle_direction(self) -> str:
+        if self.b is None:
+            return "only one direction is open"
+        self.shown = "BA" if self.shown == "AB" else "AB"
+        return f"showing {'B→A' if self.shown == 'BA' else 'A→B'}"
+
+    def summary(self) -> str:
+        if self.paired is not None:
+            p = self.paired
+            return (
+                f"pair: {p.length_m:.1f} m, total {fmt(p.total_loss_db, 2, 'dB')} averaged, "
+                f"{sum(1 for e in p.events if e.kind != 'end')} events"
+            )
+        if self.a is not None:
+            a = self.a.analysis
+            length = f"{a.length_m:.1f} m" if a.length_m is not None else "no end found"
+            return f"{self.a.trace.source}: {length}, total {fmt(a.total_loss_db, 2, 'dB')}"
+        return "no trace open"
+
+    def curve(self) -> tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]] | None:
+        r = self.current
+        if r is None:
+            return None
+        return r.trace.distance_m, r.trace.level_db
+
+    def marks(self) -> list[EventMark]:
+        """The events to mark on the shown trace, numbered as in the table."""
+        r = self.current
+        if r is None:
+            return []
+        if self.paired is not None and not self.instrument_table:
+            to_frame = (lambda x: x) if self.shown == "AB" else (lambda x: self.paired_length_b - x)
+            return [
+                EventMark(e.number, to_frame(e.distance_m), e.kind, e.verdict == "fail")
+                for e in self.paired.events
+            ]
+        if self.instrument_table:
+            return [
+                EventMark(e.number, e.distance_m, e.kind, False) for e in r.trace.instrument_events
+            ]
+        return [EventMark(e.number, e.distance_m, e.kind, e.verdict == "fail") for e in r.events]
+
+    @property
+    def paired_length_b(self) -> float:
+        assert self.paired is not None
+        return self.paired.length_ba_m
+
+    def columns(self, wide: bool) -> tuple[str, ...]:
+        if self.instrument_table:
+            return ("#", "distance", "kind", "loss dB", "refl dB", "code")
+        if self.paired is not None:
+            if wide:
+                return ("#", "from A", "kind", "A→B dB", "B→A dB", "avg dB", "verdict")
+            return ("#", "from A", "kind", "avg dB", "verdict")
+        if wide:
+            return ("#", "distance", "kind", "loss dB", "refl dB", "cum dB", "verdict")
+        return ("#", "distance", "kind", "loss dB", "verdict")
+
+    def table_title(self) -> str:
+        r = self.current
+        if self.instrument_table and r is not None:
+            return f"The instrument's own events ({r.trace.source}), as recorded"
+        if self.paired is not None:
+            return f"Events, both directions averaged ({self.settings.loss_method})"
+        return f"Events ({self.settings.loss_method} loss)"
+
+    def rows(self, wide: bool) -> list[tuple[str, ...]]:
+        r = self.current
+        if r is None:
+            return []
+        if self.instrument_table:
+            return [
+                (
+                    str(e.number),
+                    f"{e.distance_m:.1f} m",
+                    e.kind,
+                    fmt(e.loss_db, 3),
+                    fmt(e.reflectance_db, 1),
+                    e.code,
+                )
+                for e in r.trace.instrument_events
+            ]
+        if self.paired is not None:
+            out: list[tuple[str, ...]] = []
+            for e in self.paired.events:
+                head = (str(e.number), f"{e.distance_m:.1f} m", KIND_LABELS[e.kind])
+                if wide:
+                    out.append(
+                        head
+                        + (fmt(e.loss_ab_db, 3), fmt(e.loss_ba_db, 3), fmt(e.average_db, 3))
+                        + (e.verdict,)
+                    )
+                else:
+                    out.append(head + (fmt(e.average_db, 3), e.verdict))
+            return out
+        out = []
+        for ev in r.events:
+            head = (str(ev.number), f"{ev.distance_m:.1f} m", KIND_LABELS[ev.kind])
+            if wide:
+                out.append(
+                    head
+                    + (fmt(ev.loss_db, 3), fmt(ev.reflectance_db, 1), fmt(ev.cumulative_loss_db, 2))
+                    + (ev.verdict,)
+                )
+            else:
+                out.append(head + (fmt(ev.loss_db, 3), ev.verdict))
+        return out
+
+    def event_note(self, number: int) -> str:
+        """The verdict reason and the gainer note of an event, for the line under the table."""
+        if self.instrument_table:
+            return "the instrument's own event, as recorded in the file (not judged)"
+        if self.paired is not None:
+            for e in self.paired.events:
+                if e.number == number:
+                    return "; ".join(t for t in (e.verdict_reason, e.note) if t)
+        elif self.current is not None:
+            for ev in self.current.events:
+                if ev.number == number:
+                    return ev.verdict_reason
+        return ""
+
+    # -- hand-offs -------------------------------------------------------------------------
+    def fault_handoff(
+        self, number: int | None, closures: list[Closure] | tuple[Closure, ...] = ()
+    ) -> FaultHandoff:
+        """The OTDR distance of event ``number`` (default: the end, the break) as the
+        instrument at end A (or B, when only B→A is open) reads it, with the group index the
+        trace was taken with, and landmarks: each closure matched to the nearest event within
+        the pairing tolerance of its route position's OTDR distance.
+
+        Raises
+        ------
+        TraceFileError
+            When no trace is open or there is no such event.
+        """
+        r = self.a
+        if r is None:
+            raise TraceFileError("open a trace first")
+        if self.paired is not None:
+            events = [(e.number, e.distance_m, e.kind) for e in self.paired.events]
+        else:
+            events = [(e.number, e.distance_m, e.kind) for e in r.events]
+        if number is None:
+            ends = [e for e in events if e[2] == "end"]
+            if not ends:
+                raise TraceFileError("no end of fibre found: pick the event to send")
+            chosen = ends[0]
+        else:
+            found = [e for e in events if e[0] == number]
+            if not found:
+                raise TraceFileError(f"no event {number}")
+            chosen = found[0]
+        from_end = "A"  # self.a is the trace from end A (or the only one open)
+        landmarks = []
+        for c in closures:
+            near = [e for e in events if e[2] != "end" and e[0] != chosen[0]]
+            if not near:
+                break
+            best = min(near, key=lambda e: abs(e[1] - c.route_m))
+            # an event within 10 % of the closure's route position is taken as the closure
+            # (cable helix and slack put fibre distance a few percent beyond route distance)
+            if abs(best[1] - c.route_m) <= 0.1 * max(c.route_m, 1.0):
+                landmarks.append((c.name, best[1], c.route_m))
+        kind = "break (end of fibre)" if chosen[2] == "end" else f"event {chosen[0]} ({chosen[2]})"
+        note = f"From the Traces workspace: {kind} at {chosen[1]:.1f} m from end {from_end}"
+        return FaultHandoff(chosen[1], r.group_index, from_end, tuple(landmarks), note)

@@ -1,0 +1,290 @@
+"""The Traces workspace: open an OTDR trace, both directions of a fibre, or a folder; read the
+event table beside the drawn trace; send an event to the fault workspace.
+
+Layout and wiring only: the state is :class:`fieldkit.traces.session.TraceSession`, the
+numbers come from :mod:`fieldkit.traces`, the same as ``fieldkit trace``.
+"""
+
+from __future__ import annotations
+
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal
+from textual.screen import Screen
+from textual.widgets import Button, DataTable, Footer, Input, Label, ProgressBar, Static
+
+from fieldkit import safety
+from fieldkit.text.escape import terminal
+from fieldkit.traces.folder import FolderResult
+from fieldkit.traces.model import TraceFileError
+from fieldkit.traces.session import TraceSession
+from fieldkit.tui.widgets.trace_plot import Mark, TracePlot
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+
+
+class TracesScreen(Screen[None]):
+    """OTDR traces: events, both directions averaged, the trace drawn."""
+
+    CSS_PATH = "traces.tcss"
+    AUTO_FOCUS = "#traces-a"
+    BINDINGS = [
+        Binding("ctrl+o", "open", "Open", id="traces.open", tooltip="Open the files typed above"),
+        Binding(
+            # not Ctrl+B: that is tmux's prefix, and crews run fieldkit in tmux
+            "f9",
+            "send_fault",
+            "To fault",
+            id="traces.fault",
+            tooltip="Send the selected event (or the end: the break) to the fault workspace",
+        ),
+        Binding(
+            "f7",
+            "direction",
+            "A→B/B→A",
+            id="traces.direction",
+            tooltip="Draw the other direction's trace",
+        ),
+        Binding(
+            "f8",
+            "instrument",
+            "Instr.",
+            id="traces.instrument",
+            tooltip="The instrument's own event table, or ours",
+        ),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.session = TraceSession()
+        self.selected: int | None = None  # event number selected in the table / plot
+        self.folder_rows: list[int] = []
+
+    def compose(self) -> ComposeResult:
+        yield WorkspaceBar()
+        with Horizontal(id="traces-files"):
+            yield Label("A→B", classes="traces-label")
+            yield Input(
+                placeholder="trace file or folder",
+                id="traces-a",
+                compact=True,
+                tooltip="A trace from end A (.sor or text), or a folder of traces",
+            )
+            yield Label("B→A", classes="traces-label")
+            yield Input(
+                placeholder="other end (optional)",
+                id="traces-b",
+                compact=True,
+                tooltip="The same fibre traced from end B",
+            )
+            yield Button("Open", id="traces-open", compact=True, variant="primary")
+        yield Static("", id="traces-status", markup=False)
+        yield ProgressBar(id="traces-progress", show_eta=False)
+        yield TracePlot(id="traces-plot")
+        table: DataTable[str] = DataTable(id="traces-table", cursor_type="row", zebra_stripes=True)
+        yield table
+        yield Static("", id="traces-note", markup=False)
+        yield Static(safety.OTDR_LIVE_FIBRE, id="traces-caution", markup=False)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#traces-progress").display = False
+        self._say("Type a trace file (and the other end's) or a folder, then Enter.")
+        self._fit_caution()
+
+    def on_resize(self) -> None:
+        self._fit_caution()
+        self._fill_table()
+
+    def _fit_caution(self) -> None:
+        narrow = self.size.width < 72
+        caution = self.query_one("#traces-caution", Static)
+        caution.update(safety.OTDR_LIVE_FIBRE_SHORT if narrow else safety.OTDR_LIVE_FIBRE_MEDIUM)
+        caution.tooltip = f"{safety.OTDR_LIVE_FIBRE} {safety.DEFER}"
+
+    @property
+    def wide(self) -> bool:
+        return self.size.width >= 72
+
+    def _say(self, text: str, problem: bool = False) -> None:
+        status = self.query_one("#traces-status", Static)
+        status.update(terminal(text))
+        status.set_class(problem, "-problem")
+
+    # -- opening ---------------------------------------------------------------------------
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
+        self.action_open()
+
+    @on(Button.Pressed, "#traces-open")
+    def _open_pressed(self) -> None:
+        self.action_open()
+
+    def action_open(self) -> None:
+        from pathlib import Path
+
+        path_a = self.query_one("#traces-a", Input).value
+        path_b = self.query_one("#traces-b", Input).value
+        if path_a.strip() and Path(path_a.strip()).expanduser().is_dir():
+            self._open_folder(path_a)
+            return
+        try:
+            summary = self.session.open(path_a, path_b)
+        except TraceFileError as exc:
+            self._say(str(exc), problem=True)  # the typed paths stay as typed
+            return
+        self.session.folder = None
+        self.selected = None
+        self._say(summary)
+        self._show()
+        self.query_one("#traces-table", DataTable).focus()
+
+    def _open_folder(self, path: str) -> None:
+        bar = self.query_one("#traces-progress", ProgressBar)
+        bar.display = True
+        bar.update(total=None, progress=0)
+        self._say("Analysing the folder...")
+        self._analyse_folder(path)
+
+    @work(thread=True, exclusive=True, group="traces-folder", exit_on_error=False)
+    def _analyse_folder(self, path: str) -> None:
+        bar = self.query_one("#traces-progress", ProgressBar)
+
+        def progress(done: int, total: int, name: str) -> None:
+            self.app.call_from_thread(bar.update, total=total, progress=done)
+
+        try:
+            result = self.session.open_folder(path, progress)
+        except TraceFileError as exc:
+            self.app.call_from_thread(self._folder_failed, str(exc))
+            return
+        self.app.call_from_thread(self._folder_done, result)
+
+    def _folder_failed(self, message: str) -> None:
+        self.query_one("#traces-progress").display = False
+        self._say(message, problem=True)
+
+    def _folder_done(self, result: FolderResult) -> None:
+        self.query_one("#traces-progress").display = False
+        self.session.a = self.session.b = self.session.paired = None
+        self.query_one("#traces-plot", TracePlot).clear()
+        fails = sum(1 for r in result.rows if r.verdict == "fail")
+        self._say(
+            f"{result.files} files, {len(result.rows)} fibres, {fails} failed; "
+            "Enter on a fibre opens it"
+        )
+        self._fill_table()
+        self.query_one("#traces-table", DataTable).focus()
+
+    # -- showing ---------------------------------------------------------------------------
+    def _show(self) -> None:
+        plot = self.query_one("#traces-plot", TracePlot)
+        curve = self.session.curve()
+        if curve is None:
+            plot.clear()
+        else:
+            marks = [Mark(m.number, m.distance_m, m.kind, m.failed) for m in self.session.marks()]
+            plot.show_trace(curve[0], curve[1], marks)
+        self._fill_table()
+
+    def _fill_table(self) -> None:
+        table = self.query_one("#traces-table", DataTable)
+        table.clear(columns=True)
+        s = self.session
+        if s.folder is not None and s.a is None:
+            table.border_title = "Fibres (Enter opens one)"
+            cols: tuple[str, ...] = ("fibre", "nm", "dirs", "ev", "worst dB", "total", "verdict")
+            if not self.wide:
+                cols = ("fibre", "nm", "worst dB", "verdict")
+            table.add_columns(*cols)
+            for k, row in enumerate(s.folder.rows):
+                worst = row.worst()
+                wl = f"{row.wavelength_nm:g}" if row.wavelength_nm else "?"
+                worst_db = f"{worst[1]:.3f}" if worst else "-"
+                total = f"{row.total_loss_db:.2f}" if row.total_loss_db is not None else "-"
+                cells: tuple[str, ...] = (row.fibre, wl, worst_db)
+                if self.wide:
+                    cells = (row.fibre, wl, row.directions, str(row.event_count), worst_db, total)
+                table.add_row(*(terminal(c) for c in cells), row.verdict, key=f"fibre-{k}")
+            return
+        table.border_title = s.table_title()
+        if s.current is None:
+            return
+        table.add_columns(*s.columns(self.wide))
+        for event_cells in s.rows(self.wide):
+            table.add_row(*(terminal(c) for c in event_cells), key=f"event-{event_cells[0]}")
+        if self.selected is not None:
+            self._highlight(self.selected)
+
+    def _highlight(self, number: int) -> None:
+        table = self.query_one("#traces-table", DataTable)
+        try:
+            row = table.get_row_index(f"event-{number}")
+        except Exception:  # the row is not in this table (the instrument's has other numbers)
+            return
+        table.move_cursor(row=row)
+
+    @on(DataTable.RowHighlighted, "#traces-table")
+    def _row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        key = event.row_key.value or ""
+        if key.startswith("event-"):
+            number = int(key.removeprefix("event-"))
+            if number != self.selected:
+                self.selected = number
+                self.query_one("#traces-plot", TracePlot).select_event(number)
+            self.query_one("#traces-note", Static).update(terminal(self.session.event_note(number)))
+
+    @on(DataTable.RowSelected, "#traces-table")
+    def _row_selected(self, event: DataTable.RowSelected) -> None:
+        key = event.row_key.value or ""
+        if key.startswith("fibre-") and self.session.folder is not None:
+            row = self.session.folder.rows[int(key.removeprefix("fibre-"))]
+            try:
+                self._say(self.session.open_row(row))
+            except TraceFileError as exc:
+                self._say(str(exc), problem=True)
+                return
+            self.selected = None
+            self._show()
+
+    @on(TracePlot.CursorMoved)
+    def _cursor_moved(self, event: TracePlot.CursorMoved) -> None:
+        if event.mark is not None:
+            self.selected = event.mark.number
+            self._highlight(event.mark.number)
+
+    # -- actions ---------------------------------------------------------------------------
+    def action_direction(self) -> None:
+        self._say(self.session.toggle_direction())
+        self._show()
+
+    def action_instrument(self) -> None:
+        s = self.session
+        if s.current is None:
+            return
+        if not s.current.trace.instrument_events and not s.instrument_table:
+            self._say("this file holds no instrument events")
+            return
+        s.instrument_table = not s.instrument_table
+        self.selected = None
+        self._show()
+
+    async def action_send_fault(self) -> None:
+        try:
+            hand = self.session.fault_handoff(
+                self.selected if not self.session.instrument_table else None
+            )
+        except TraceFileError as exc:
+            self._say(str(exc), problem=True)
+            return
+        await self.app.switch_mode("fault")
+        fault = self.app.screen
+        prefill = getattr(fault, "prefill", None)
+        if prefill is None:
+            return
+        prefill(
+            hand.distance_m,
+            ior_set=hand.group_index,
+            landmarks=list(hand.landmarks),
+            note=hand.note,
+        )

@@ -1,0 +1,73 @@
+"""The Traces workspace at 80×24 and 44×22: open a pair, jump to an event, send it to Fault."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import DataTable, Input, Static
+
+from fieldkit import safety
+from fieldkit.traces.sor import write_sor
+from fieldkit.traces.synthetic import SynthEvent, SynthFibre, synth_trace
+from fieldkit.tui.app import make_app
+from fieldkit.tui.screens.fault import FaultScreen
+from fieldkit.tui.screens.traces import TracesScreen
+from fieldkit.tui.widgets.trace_plot import TracePlot
+
+SIZES = [(80, 24), (44, 22)]
+FIBRE = SynthFibre(
+    length_m=4000.0,
+    spacing_m=1.0,
+    dynamic_range_db=18.0,
+    events=(SynthEvent(1500.0, 0.25), SynthEvent(2600.0, 0.4, -48.0)),
+)
+
+
+@pytest.fixture(scope="module")
+def pair_files(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, Path]:
+    folder = tmp_path_factory.mktemp("pair")
+    ab, ba = folder / "F001_1550_AB.sor", folder / "F001_1550_BA.sor"
+    ab.write_bytes(write_sor(synth_trace(FIBRE, seed=1)))
+    ba.write_bytes(write_sor(synth_trace(FIBRE.reversed(), seed=2)))
+    return ab, ba
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_open_a_pair_jump_to_an_event_and_send_it_to_fault(
+    tmp_path: Path, size: tuple[int, int], pair_files: tuple[Path, Path]
+) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, TracesScreen)
+        screen.query_one("#traces-a", Input).value = str(pair_files[0])
+        screen.query_one("#traces-b", Input).value = str(pair_files[1])
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        assert screen.session.paired is not None
+        table = screen.query_one("#traces-table", DataTable)
+        assert table.row_count == 3  # splice, connector, end
+        # the caution is on screen at both sizes
+        caution = str(screen.query_one("#traces-caution", Static).render())
+        assert caution in (safety.OTDR_LIVE_FIBRE_MEDIUM, safety.OTDR_LIVE_FIBRE_SHORT)
+        # the table opens on event 1; jump to the next event on the plot
+        assert screen.selected == 1
+        plot = screen.query_one("#traces-plot", TracePlot)
+        plot.focus()
+        await pilot.press("pagedown")
+        await pilot.pause()
+        assert screen.selected == 2
+        assert plot.view is not None and plot.view.cursor_m == pytest.approx(2600.0, abs=2.0)
+        assert "event 2 reflective" in plot.readout()
+        assert table.cursor_row == 1
+        # every drawn line fits the terminal
+        assert all(len(line) <= size[0] for line in str(plot.render()).splitlines())
+        await pilot.press("f9")
+        await pilot.pause()
+        fault = app.screen
+        assert isinstance(fault, FaultScreen)
+        distance = fault.query_one("#fault-distance", Input).value
+        assert float(distance.removesuffix(" m")) == pytest.approx(2600.0, abs=2.0)
+        assert fault.query_one("#fault-ior-set", Input).value == "1.4682"
