@@ -40,6 +40,9 @@ def register(subparsers: Any) -> None:
         "events beside them. Safety: " + SAFETY,
     )
     show.add_argument("file", help="a trace file (.sor, or text/CSV with a header)")
+    show.add_argument(
+        "--html", metavar="OUT", help="also write a self-contained HTML page (trace as SVG)"
+    )
     _common(show)
     show.set_defaults(func=run_show)
 
@@ -52,6 +55,9 @@ def register(subparsers: Any) -> None:
     )
     pair.add_argument("a_to_b", metavar="A_TO_B", help="the trace taken from end A")
     pair.add_argument("b_to_a", metavar="B_TO_A", help="the trace taken from end B")
+    pair.add_argument(
+        "--html", metavar="OUT", help="also write a self-contained HTML page (both traces as SVG)"
+    )
     pair.add_argument(
         "--tolerance",
         metavar="M",
@@ -234,6 +240,8 @@ def run_show(args: argparse.Namespace) -> int:
     from fieldkit.traces import lines
 
     result = _analyse(args.file, args)
+    if args.html:
+        _write_html(Path(args.html), html_page([result], None))
     if args.json:
         data = result.to_json()
         data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
@@ -256,6 +264,8 @@ def run_pair(args: argparse.Namespace) -> int:
         result = pair(a, b, tolerance_m=tol)
     except TraceFileError as exc:
         raise CommandError(str(exc)) from None
+    if args.html:
+        _write_html(Path(args.html), html_page([a, b], result))
     if args.json:
         data = result.to_json()
         data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
@@ -343,3 +353,104 @@ def run_example(args: argparse.Namespace) -> int:
             written += 1
     print(f"wrote {written} traces into {out}")
     return 0
+
+
+def _write_html(path: Path, page: str) -> None:
+    from fieldkit.fsutil import atomic_write_bytes
+
+    if path.exists() and path.is_dir():
+        raise CommandError(f"--html: {path} is a folder")
+    atomic_write_bytes(path, page.encode("utf-8"))
+
+
+def html_page(results: list[Any], paired: Any | None) -> str:
+    """A self-contained HTML page: each trace as inline SVG with its event table, the averaged
+    table of a pair, the cautions. No scripts, no external files."""
+    from fieldkit.text.escape import html
+    from fieldkit.traces.lines import KIND_LABELS, fmt
+    from fieldkit.traces.svg import trace_svg
+
+    def table(head: list[str], rows: list[list[str]]) -> str:
+        cells = "".join(f"<th>{html(h)}</th>" for h in head)
+        body = "".join(
+            "<tr>" + "".join(f"<td>{html(c)}</td>" for c in row) + "</tr>" for row in rows
+        )
+        return f"<table><thead><tr>{cells}</tr></thead><tbody>{body}</tbody></table>"
+
+    parts = [
+        '<!DOCTYPE html><html lang="en"><head><meta charset="utf-8">',
+        "<title>OTDR traces</title><style>body{font-family:sans-serif;margin:1em}"
+        "table{border-collapse:collapse;margin:.5em 0 1.5em}td,th{border:1px solid #bbb;"
+        "padding:2px 6px;text-align:right}th{background:#eee}.caution{color:#8a4b00}</style>",
+        "</head><body><h1>OTDR traces</h1>",
+    ]
+    if paired is not None:
+        parts.append(
+            f"<h2>Both directions averaged: {html(paired.a_to_b.trace.source)} and "
+            f"{html(paired.b_to_a.trace.source)}</h2>"
+            f"<p>Length {paired.length_m:.1f} m, total loss {fmt(paired.total_loss_db, 2, 'dB')} "
+            f"averaged; loss by the {html(paired.a_to_b.settings.loss_method)} method.</p>"
+        )
+        parts.append(
+            table(
+                ["#", "from A", "kind", "A→B dB", "B→A dB", "average dB", "verdict", "note"],
+                [
+                    [
+                        str(e.number),
+                        f"{e.distance_m:.1f} m",
+                        KIND_LABELS[e.kind],
+                        fmt(e.loss_ab_db, 3),
+                        fmt(e.loss_ba_db, 3),
+                        fmt(e.average_db, 3),
+                        e.verdict,
+                        e.note,
+                    ]
+                    for e in paired.events
+                ],
+            )
+        )
+    for r in results:
+        t = r.trace
+        wl = f"{t.wavelength_nm:g} nm" if t.wavelength_nm else "wavelength not given"
+        parts.append(f"<h2>{html(t.source)}</h2><p>{html(wl)}</p>")
+        parts.append(trace_svg(r))
+        parts.append(
+            table(
+                ["#", "distance", "kind", "loss dB", "reflectance dB", "cumulative dB", "verdict"],
+                [
+                    [
+                        str(e.number),
+                        f"{e.distance_m:.1f} m",
+                        KIND_LABELS[e.kind],
+                        fmt(e.loss_db, 3),
+                        fmt(e.reflectance_db, 1),
+                        fmt(e.cumulative_loss_db, 2),
+                        e.verdict,
+                    ]
+                    for e in r.events
+                ],
+            )
+        )
+        if t.instrument_events:
+            parts.append("<p>The instrument's own events, as recorded in the file:</p>")
+            parts.append(
+                table(
+                    ["#", "distance", "kind", "loss dB", "reflectance dB", "code"],
+                    [
+                        [
+                            str(e.number),
+                            f"{e.distance_m:.1f} m",
+                            e.kind,
+                            fmt(e.loss_db, 3),
+                            fmt(e.reflectance_db, 1),
+                            e.code,
+                        ]
+                        for e in t.instrument_events
+                    ],
+                )
+            )
+    parts.append(
+        f'<p class="caution">{html(safety.OTDR_LIVE_FIBRE)}</p>'
+        f'<p class="caution">{html(safety.DEFER)}</p></body></html>'
+    )
+    return "".join(parts)

@@ -96,3 +96,29 @@ def test_help_carries_the_otdr_caution():
     result = run("show", "--help")
     text = " ".join(result.stdout.split())
     assert " ".join(safety.OTDR_LIVE_FIBRE.split()) in text
+
+
+def test_html_page_is_self_contained_with_an_svg_per_trace(cable: Path, tmp_path: Path):
+    import re
+    import xml.etree.ElementTree as ET
+
+    out = tmp_path / "pair.html"
+    result = run(
+        "pair",
+        str(cable / "F001_1550_AB.sor"),
+        str(cable / "F001_1550_BA.sor"),
+        "--html",
+        str(out),
+    )
+    assert result.returncode == 0, result.stderr
+    page = out.read_text(encoding="utf-8")
+    assert "<script" not in page and "http://" not in page.replace(
+        'xmlns="http://www.w3.org/2000/svg"', ""
+    )
+    svgs = re.findall(r"<svg.*?</svg>", page, re.S)
+    assert len(svgs) == 2
+    root = ET.fromstring(svgs[0])  # well-formed XML
+    assert root.tag.endswith("svg")
+    assert "both directions averaged" in page.lower()
+    assert "The instrument's own events" in page
+    assert " ".join(safety.OTDR_LIVE_FIBRE.split()) in " ".join(page.split()).replace("&#x27;", "'")

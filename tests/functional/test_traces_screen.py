@@ -71,3 +71,56 @@ async def test_open_a_pair_jump_to_an_event_and_send_it_to_fault(
         distance = fault.query_one("#fault-distance", Input).value
         assert float(distance.removesuffix(" m")) == pytest.approx(2600.0, abs=2.0)
         assert fault.query_one("#fault-ior-set", Input).value == "1.4682"
+
+
+async def test_mouse_click_moves_the_cursor_and_the_wheel_zooms(
+    tmp_path: Path, pair_files: tuple[Path, Path]
+) -> None:
+    from textual import events
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#traces-a", Input).value = str(pair_files[0])
+        await pilot.press("enter")
+        await pilot.pause()
+        plot = screen.query_one("#traces-plot", TracePlot)
+        assert plot.view is not None
+        span = plot.view.span_m
+        # a click half-way across puts the cursor half-way along the view
+        await pilot.click("#traces-plot", offset=(plot.size.width // 2, 2))
+        await pilot.pause()
+        middle = plot.view.start_m + span / 2
+        assert plot.view.cursor_m == pytest.approx(middle, abs=span / plot.size.width * 2)
+        plot.post_message(
+            events.MouseScrollUp(plot, plot.size.width // 2, 2, 0, 0, 0, False, False, False)
+        )
+        await pilot.pause()
+        assert plot.view.span_m == pytest.approx(span * 0.7)
+        await pilot.press("home")  # the plot has focus after the click
+        await pilot.pause()
+        assert plot.view.span_m == pytest.approx(span)
+
+
+async def test_a_folder_is_analysed_into_fibres_and_each_opens(
+    tmp_path: Path, pair_files: tuple[Path, Path]
+) -> None:
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, TracesScreen)
+        screen.query_one("#traces-a", Input).value = str(pair_files[0].parent)
+        await pilot.press("enter")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        table = screen.query_one("#traces-table", DataTable)
+        assert table.row_count == 1  # one fibre, both directions
+        assert "2 files, 1 fibre," in str(screen.query_one("#traces-status", Static).render())
+        await pilot.press("enter")
+        await pilot.pause()
+        assert screen.session.paired is not None and table.row_count == 3
+        await pilot.press("escape")
+        await pilot.pause()
+        assert screen.session.a is None and table.row_count == 1

@@ -52,7 +52,15 @@ class TracesScreen(Screen[None]):
             id="traces.instrument",
             tooltip="The instrument's own event table, or ours",
         ),
+        Binding(
+            "escape", "back", "Fibres", id="traces.back", tooltip="Back to the folder's fibres"
+        ),
     ]
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "back":
+            return self.session.folder is not None and self.session.a is not None
+        return True
 
     def __init__(self) -> None:
         super().__init__()
@@ -169,10 +177,7 @@ class TracesScreen(Screen[None]):
         self.session.a = self.session.b = self.session.paired = None
         self.query_one("#traces-plot", TracePlot).clear()
         fails = sum(1 for r in result.rows if r.verdict == "fail")
-        self._say(
-            f"{result.files} files, {len(result.rows)} fibres, {fails} failed; "
-            "Enter on a fibre opens it"
-        )
+        self._say(f"{_folder_counts(result)}, {fails} failed; Enter on a fibre opens it")
         self._fill_table()
         self.query_one("#traces-table", DataTable).focus()
 
@@ -246,6 +251,7 @@ class TracesScreen(Screen[None]):
                 return
             self.selected = None
             self._show()
+            self.refresh_bindings()
 
     @on(TracePlot.CursorMoved)
     def _cursor_moved(self, event: TracePlot.CursorMoved) -> None:
@@ -254,6 +260,17 @@ class TracesScreen(Screen[None]):
             self._highlight(event.mark.number)
 
     # -- actions ---------------------------------------------------------------------------
+    def action_back(self) -> None:
+        s = self.session
+        if s.folder is None:
+            return
+        s.a = s.b = s.paired = None
+        self.selected = None
+        self.query_one("#traces-plot", TracePlot).clear()
+        self._say(f"{_folder_counts(s.folder)}; Enter on a fibre opens it")
+        self._fill_table()
+        self.refresh_bindings()
+
     def action_direction(self) -> None:
         self._say(self.session.toggle_direction())
         self._show()
@@ -288,3 +305,9 @@ class TracesScreen(Screen[None]):
             landmarks=list(hand.landmarks),
             note=hand.note,
         )
+
+
+def _folder_counts(result: FolderResult) -> str:
+    files = f"{result.files} file{'s' if result.files != 1 else ''}"
+    rows = len(result.rows)
+    return f"{files}, {rows} fibre{'s' if rows != 1 else ''}"

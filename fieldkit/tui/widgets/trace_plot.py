@@ -219,7 +219,11 @@ class TracePlot(Widget, can_focus=True):
         self.y: npt.NDArray[np.float64] = np.zeros(0)
         self.view: PlotView | None = None
         self.caption = ""
-        self.tooltip = "←/→ cursor, +/- zoom, Shift+←/→ pan, PgUp/PgDn events, Home whole trace"
+        self._drag: tuple[int, float, bool] | None = None  # (x, view start, moved) while dragging
+        self._dragged = False
+        self.tooltip = (
+            "←/→ cursor, +/- or wheel zoom, Shift+←/→ or drag pan, PgUp/PgDn events, Home whole"
+        )
 
     def show_trace(
         self,
@@ -378,7 +382,31 @@ class TracePlot(Widget, can_focus=True):
             return None
         return self.view.start_m + x / (self.size.width - 1) * self.view.span_m
 
+    def on_mouse_down(self, event: events.MouseDown) -> None:
+        if self.view is not None and event.button == 1:
+            self._drag = (event.x, self.view.start_m, False)
+            self.capture_mouse()
+
+    def on_mouse_move(self, event: events.MouseMove) -> None:
+        if self._drag is None or self.view is None or self.size.width < 2:
+            return
+        x0, start, _moved = self._drag
+        if event.x != x0:
+            shift = (event.x - x0) / (self.size.width - 1) * self.view.span_m
+            self.view.pan((start - shift - self.view.start_m) / self.view.span_m)
+            self._drag = (x0, start, True)
+            self._changed()
+
+    def on_mouse_up(self, event: events.MouseUp) -> None:
+        if self._drag is not None:
+            self.release_mouse()
+            self._dragged = self._drag[2]
+            self._drag = None
+
     def on_click(self, event: events.Click) -> None:
+        if self._dragged:  # the end of a drag is not a click on a place
+            self._dragged = False
+            return
         d = self._distance_at(event.x)
         if d is not None and self.view is not None:
             self.view.current = None
