@@ -80,6 +80,35 @@ def register(subparsers: Any) -> None:
     _common(folder)
     folder.set_defaults(func=run_folder)
 
+    fill = sub.add_parser(
+        "fill-splices",
+        help="splice losses from traces into a closure's splice log on a job's link",
+        description="Find the event at the closure's route position on each fibre's traces and "
+        "write its one-way losses (A→B, B→A) into the closure's splice log; the splice log "
+        "shows their average. One trace and --fibre, both directions and --fibre, or --folder "
+        "(fibres from the file names). A splice that already holds a different loss is not "
+        "overwritten without --overwrite; --dry-run shows what would be written. Safety: " + SAFETY,
+    )
+    fill.add_argument("files", nargs="*", metavar="FILE", help="A→B trace, then B→A (optional)")
+    fill.add_argument("--folder", metavar="DIR", help="every fibre's traces in a folder")
+    fill.add_argument("--fibre", metavar="N", help="the fibre the FILE(s) hold")
+    fill.add_argument(
+        "--direction",
+        choices=("ab", "ba"),
+        default="ab",
+        help="the direction of a single FILE (default ab: taken from end A)",
+    )
+    fill.add_argument("--job", required=True, metavar="ID", help="the job (id or its start)")
+    fill.add_argument("--link", required=True, metavar="LINK", help="the link's label or id")
+    fill.add_argument("--closure", required=True, metavar="NAME", help="the closure's name or id")
+    fill.add_argument("--overwrite", action="store_true", help="replace losses already recorded")
+    fill.add_argument("--dry-run", action="store_true", help="write nothing; say what would be")
+    fill.add_argument(
+        "--by", default=None, metavar="NAME", help="who did the work (default: $FIELDKIT_OPERATOR)"
+    )
+    _common(fill)
+    fill.set_defaults(func=run_fill)
+
     example = sub.add_parser(
         "example",
         help="write an invented cable's traces to try the other commands on",
@@ -454,3 +483,116 @@ def html_page(results: list[Any], paired: Any | None) -> str:
         f'<p class="caution">{html(safety.DEFER)}</p></body></html>'
     )
     return "".join(parts)
+
+
+def run_fill(args: argparse.Namespace) -> int:
+    import os
+
+    from fieldkit.actions.traces import FibreTraces, fill_splice_log
+    from fieldkit.commands.common import plain_text
+    from fieldkit.commands.meter_record import open_store
+    from fieldkit.jobs.store import StoreError
+    from fieldkit.traces.folder import analyse_folder
+    from fieldkit.traces.model import TraceFileError
+    from fieldkit.traces.pairing import pair
+
+    for option in ("link", "closure"):
+        plain_text(getattr(args, option), f"--{option}")
+    by = plain_text(
+        (args.by if args.by is not None else os.environ.get("FIELDKIT_OPERATOR", "")).strip(),
+        "--by",
+    )
+    fibres: list[FibreTraces] = []
+    if args.folder:
+        if args.files:
+            raise CommandError("give trace files or --folder, not both")
+        settings, options = settings_from(args)
+        try:
+            result = analyse_folder(Path(args.folder), settings=settings, options=options)
+        except TraceFileError as exc:
+            raise CommandError(str(exc)) from None
+        for row in result.rows:
+            if not row.fibre.isdigit():
+                raise CommandError(
+                    f"{row.fibre}: the file name gives no fibre number (e.g. F012_1550_AB.sor)"
+                )
+            if row.paired is not None:
+                fibres.append(FibreTraces(int(row.fibre), paired=row.paired))
+            elif row.a_to_b or row.b_to_a:
+                one = row.a_to_b or row.b_to_a
+                direction = "A->B" if row.a_to_b else "B->A"
+                fibres.append(FibreTraces(int(row.fibre), one_way=one, direction=direction))
+    else:
+        if not 1 <= len(args.files) <= 2:
+            raise CommandError("give one trace file (or both directions) and --fibre, or --folder")
+        number = _num(args.fibre, "--fibre", 1, 10_000)
+        if number is None or number != int(number):
+            raise CommandError("--fibre: give the fibre number the traces hold")
+        results = [_analyse(f, args) for f in args.files]
+        if len(results) == 2:
+            try:
+                fibres.append(FibreTraces(int(number), paired=pair(results[0], results[1])))
+            except TraceFileError as exc:
+                raise CommandError(str(exc)) from None
+        else:
+            direction = "B->A" if args.direction == "ba" else "A->B"
+            fibres.append(FibreTraces(int(number), one_way=results[0], direction=direction))
+    store = open_store(args)
+    try:
+        job_id = store.resolve(args.job)
+        done = fill_splice_log(
+            store,
+            job_id,
+            args.link,
+            args.closure,
+            fibres,
+            overwrite=args.overwrite,
+            dry_run=args.dry_run or not args.overwrite,
+            by=by,
+        )
+        asked = bool(done.would_overwrite) and not args.overwrite
+        if not args.dry_run and not asked:
+            done = fill_splice_log(
+                store, job_id, args.link, args.closure, fibres, overwrite=args.overwrite, by=by
+            )
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
+    if asked and not args.dry_run:
+        first, old = done.would_overwrite[0]
+        more = (
+            f" (and {len(done.would_overwrite) - 1} more)" if len(done.would_overwrite) > 1 else ""
+        )
+        raise CommandError(
+            f"fibre {first.fibre} {first.direction} already holds {old:.3f} dB, the trace says "
+            f"{first.loss_db:.3f} dB{more}: nothing written; --overwrite replaces them"
+        )
+    data = {
+        "job": job_id,
+        "link": args.link,
+        "closure": args.closure,
+        "dry_run": bool(args.dry_run),
+        "written": [
+            {"fibre": w.fibre, "direction": w.direction, "loss_db": w.loss_db}
+            for w in done.fill.written
+        ],
+        "created": done.fill.created,
+        "would_overwrite": [
+            {"fibre": w.fibre, "direction": w.direction, "loss_db": w.loss_db, "old_db": old}
+            for w, old in done.would_overwrite
+        ],
+        "matched": [{"fibre": f, "distance_m": d} for f, d in done.matched],
+        "unmatched_fibres": done.unmatched,
+    }
+    if args.json:
+        print_json(data)
+        return 0
+    verb = "would write" if args.dry_run else "wrote"
+    print(
+        f"{verb} {len(done.fill.written)} one-way losses into closure {args.closure} "
+        f"({len(done.matched)} fibres matched, {len(done.unmatched)} without an event there)"
+    )
+    for w in done.fill.written:
+        print(f"  fibre {w.fibre} {w.direction.replace('->', '→')} {w.loss_db:.3f} dB")
+    for fibre_no in done.unmatched:
+        print(f"  fibre {fibre_no}: no event near the closure")
+    return 0

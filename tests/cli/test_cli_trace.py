@@ -122,3 +122,38 @@ def test_html_page_is_self_contained_with_an_svg_per_trace(cable: Path, tmp_path
     assert "both directions averaged" in page.lower()
     assert "The instrument's own events" in page
     assert " ".join(safety.OTDR_LIVE_FIBRE.split()) in " ".join(page.split()).replace("&#x27;", "'")
+
+
+def test_fill_splices_writes_then_asks_before_overwriting(cable: Path, isolated_dirs):
+    from fieldkit import locations
+    from fieldkit.actions import splices as act
+    from fieldkit.jobs.store import JobStore
+
+    store = JobStore(locations.jobs_dir(isolated_dirs["data"]))
+    job = store.create("Mill Lane")
+    # example_fibre puts fusion splices at 2100 m and 4650 m of fibre; the closure's route
+    # position 2070 m lies within 3 % + 20 m of 2100 m
+    act.add_closure(store, job.id, "feeder", "JC-3", route_distance_m=2070.0, by="Ana")
+    args = ["--job", job.id, "--link", "feeder", "--closure", "JC-3", "--by", "Ana", "--json"]
+    result = run("fill-splices", "--folder", str(cable), *args)
+    assert result.returncode == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert {(w["fibre"], w["direction"]) for w in data["written"]} == {
+        (1, "A->B"),
+        (1, "B->A"),
+        (2, "A->B"),
+        (2, "B->A"),
+    }
+    closure = store.load(job.id).links[0].closures[0]
+    splice = next(s for s in closure.splices if s.fibre_a == 1)
+    act.update_losses(store, job.id, "feeder", "JC-3", splice.id, loss_ab_db=0.9, overwrite=True)
+    again = run("fill-splices", "--folder", str(cable), *args)
+    assert again.returncode == 2 and "already holds 0.900 dB" in again.stderr
+    assert (
+        next(
+            s for s in store.load(job.id).links[0].closures[0].splices if s.fibre_a == 1
+        ).loss_ab_db
+        == 0.9
+    )
+    forced = run("fill-splices", "--folder", str(cable), *args, "--overwrite")
+    assert forced.returncode == 0, forced.stderr
