@@ -760,6 +760,7 @@ def update_losses(
                 result.would_overwrite.append((name, old, value))
         if result.would_overwrite and not overwrite:
             raise _DryRun
+        result.would_overwrite.clear()  # written: nothing left unwritten
         for name, value in typed.items():
             if value is not None:
                 setattr(found, name, value)

@@ -79,6 +79,14 @@ WORKSPACES: tuple[Workspace, ...] = (
         "JobsScreen",
     ),
     Workspace(
+        "splices",
+        "f7",
+        "Splices",
+        "Splice log: closures, trays, every splice by number and colour, both directions",
+        "fieldkit.tui.screens.splices",
+        "SplicesScreen",
+    ),
+    Workspace(
         "traces",
         "f10",
         "Traces",

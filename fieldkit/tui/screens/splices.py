@@ -1,0 +1,304 @@
+"""The splice workspace: log a closure fibre by fibre, with colours, losses and verdicts.
+
+Layout and wiring only: the state and what each key does live in
+:class:`fieldkit.tui.splice_session.SpliceSession`; every save goes through
+:mod:`fieldkit.actions.splices`.
+"""
+
+from __future__ import annotations
+
+import os
+
+from rich.text import Text
+from textual import events, on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import Screen
+from textual.widgets import Button, Footer, Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+from fieldkit import safety
+from fieldkit.calc.units import InputError
+from fieldkit.tui.splice_session import (
+    ENTRY_MODES,
+    LABELS,
+    SAFETY_SHORT,
+    SWATCH,
+    ClosureSetup,
+    SpliceSession,
+    Step,
+)
+from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.readings_grid import EntryInput
+from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+
+LOSS_CHARS = r"[0-9A-Za-z .,+\-\u2212]*"
+_SETUP = (
+    ("name", "Closure", "JC-3 Market St"),
+    ("route", "Route", "2.1 km (optional)"),
+    ("cable_a", "Cable A", "A"),
+    ("count_a", "Fibres A", "144"),
+    ("cable_b", "Cable B", "B"),
+    ("count_b", "Fibres B", "144"),
+    ("per_tube", "Per tube", "12"),
+    ("trays", "Trays", "12"),
+    ("capacity", "Tray size", "12"),
+    ("plan", "Plan", "straight; 1-12 > 25-36; park 13-24"),
+)
+_MODE_WORDS = {"estimate": "estimate", "otdr": "A→B, B→A", "all": "estimate, A→B, B→A"}
+
+
+class SplicesScreen(Screen[None]):
+    """Closures, cables, trays and every splice of a link."""
+
+    CSS_PATH = "splices.tcss"
+    BINDINGS = [
+        Binding("ctrl+o", "pick_job", "Open", id="splices.open", tooltip="Choose the job and link"),
+        Binding("ctrl+n", "new_closure", "New", id="splices.new", tooltip="Set up a new closure"),
+        Binding("ctrl+s", "start_closure", "Save", id="splices.save", show=False),
+        Binding("ctrl+e", "resplice", "Re-splice", id="splices.resplice"),
+        Binding("ctrl+y", "cycle_entry", "Fields", id="splices.fields"),
+        Binding("down", "move(1)", "Next", show=False),
+        Binding("up", "move(-1)", "Prev", show=False),
+        Binding("pagedown", "move(12)", "+12", show=False),
+        Binding("pageup", "move(-12)", "-12", show=False),
+        Binding("escape", "keep", "Keep", show=False),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.session: SpliceSession | None = None
+        self.job_id: str | None = None
+        self.link_id: str | None = None
+        self._mode = "estimate"
+
+    def compose(self) -> ComposeResult:
+        yield WorkspaceBar()
+        with Horizontal(id="sp-top"):
+            yield Static("Ctrl+O: choose a job and link", id="sp-where")
+            yield Button("Open ^O", id="sp-open", compact=True)
+        with Vertical(id="sp-setup"):
+            yield OptionList(id="sp-closures")
+            yield Static("New closure: fill in, then Enter or ^S", id="sp-setup-title")
+            with Vertical(id="sp-form"):
+                for key, label, hint in _SETUP:
+                    with Horizontal(classes="sp-row"):
+                        yield Label(label, classes="sp-label")
+                        yield Input(placeholder=hint, id=f"setup-{key}", compact=True)
+                yield Static("", id="sp-setup-error", classes="sp-error")
+                yield Button("Start closure ^S", id="sp-start", compact=True)
+        with Vertical(id="sp-entry"):
+            yield Static("", id="sp-fibre")
+            yield Static("", id="sp-colour")
+            with Horizontal(id="sp-fields"):
+                yield Label("", id="sp-field-label")
+                yield EntryInput(
+                    id="sp-value",
+                    restrict=LOSS_CHARS,
+                    compact=True,
+                    placeholder="0.02",
+                    check=self._check,
+                )
+            yield Static("", id="sp-typed")
+            yield Static("", id="sp-error", classes="sp-error")
+            yield Static("", id="sp-result")
+            yield OptionList(id="sp-list")
+        yield Static(SAFETY_SHORT, id="sp-safety")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        defaults = ClosureSetup()
+        for key, _, _ in _SETUP:
+            self.query_one(f"#setup-{key}", Input).value = getattr(defaults, key)
+        self.query_one("#setup-name", Input).value = ""
+        self.query_one("#sp-entry").display = False
+        self.query_one("#sp-setup").display = False
+        self.query_one("#sp-safety", Static).tooltip = "\n\n".join(safety.SPLICING)
+
+    # -- choosing a job, link and closure ---------------------------------------------------
+    def _operator(self) -> str:
+        name = getattr(self.app, "operator", "") or os.environ.get("FIELDKIT_OPERATOR", "")
+        return str(name)
+
+    def action_pick_job(self) -> None:
+        from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+        self.app.push_screen(
+            JobLinkPicker(job_id=self.job_id, title="Splice log of a job's link"), self.choose
+        )
+
+    @on(Button.Pressed, "#sp-open")
+    def _open_pressed(self) -> None:
+        self.action_pick_job()
+
+    def choose(self, choice: tuple[str, str] | None) -> None:
+        """The job and link picked (the picker's callback; tests call it directly)."""
+        if not choice:
+            return
+        self.job_id, self.link_id = choice
+        job = fieldkit_app(self).store.load(self.job_id)
+        link = job.link(self.link_id)
+        self.query_one("#sp-where", Static).update(f"{job.name} · {link.label}")
+        closures = self.query_one("#sp-closures", OptionList)
+        closures.clear_options()
+        closures.add_options([Option(f"Open closure {c.name}", id=c.id) for c in link.closures])
+        closures.display = bool(link.closures)
+        self.session = None
+        self.query_one("#sp-entry").display = False
+        self.query_one("#sp-setup").display = True
+        if link.closures:
+            closures.highlighted = 0
+            closures.focus()
+        else:
+            self.query_one("#setup-name", Input).focus()
+
+    @on(OptionList.OptionSelected, "#sp-closures")
+    def _closure_picked(self, event: OptionList.OptionSelected) -> None:
+        if event.option.id:
+            self.open_closure(event.option.id)
+
+    def action_new_closure(self) -> None:
+        if self.job_id is None:
+            self.action_pick_job()
+            return
+        self.query_one("#sp-entry").display = False
+        self.query_one("#sp-setup").display = True
+        self.query_one("#setup-name", Input).focus()
+
+    @on(Button.Pressed, "#sp-start")
+    def action_start_closure(self) -> None:
+        if self.job_id is None or self.link_id is None or self.session is not None:
+            return
+        form = ClosureSetup(
+            **{key: self.query_one(f"#setup-{key}", Input).value for key, _, _ in _SETUP}
+        )
+        error = self.query_one("#sp-setup-error", Static)
+        try:
+            name = SpliceSession.start(
+                fieldkit_app(self).store, self.job_id, self.link_id, form, by=self._operator()
+            )
+        except InputError as exc:
+            error.update(Text(str(exc)))
+            return
+        error.update("")
+        self.open_closure(name)
+
+    def open_closure(self, closure: str) -> None:
+        assert self.job_id is not None and self.link_id is not None
+        self.session = SpliceSession(
+            fieldkit_app(self).store, self.job_id, self.link_id, closure, by=self._operator()
+        )
+        self.session.set_entry(self._mode)
+        self.query_one("#sp-setup").display = False
+        self.query_one("#sp-entry").display = True
+        narrow = self.size.width < 60
+        self.query_one("#sp-where", Static).update(self.session.where_line(short=narrow))
+        self._refresh()
+        self.query_one("#sp-value", EntryInput).focus()
+
+    # -- entry -------------------------------------------------------------------------------
+    def _check(self, text: str) -> bool:
+        return self.session.check(text) if self.session is not None else False
+
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
+        if (event.input.id or "").startswith("setup-"):
+            self.action_start_closure()
+
+    @on(EntryInput.Entered, "#sp-value")
+    def _entered(self, event: EntryInput.Entered) -> None:
+        if self.session is None:
+            return
+        if not event.accepted:
+            try:
+                from fieldkit import inputs
+
+                inputs.splice_loss_db(event.value, LABELS[self.session.field])
+            except InputError as exc:
+                self.query_one("#sp-error", Static).update(Text(str(exc)))
+            return
+        self._apply(self.session.enter_value(event.value))
+
+    def _apply(self, step: Step) -> None:
+        assert self.session is not None
+        error = self.query_one("#sp-error", Static)
+        if step.error:
+            error.update(Text(step.error[1]))  # the message names the field
+        elif step.question:
+            error.update(Text(step.question))
+        else:
+            error.update("")
+        if step.recorded or step.message:
+            lines = [step.message, *(f"  {w}" for w in step.warnings)]
+            self.query_one("#sp-result", Static).update(Text("\n".join(lines)))
+        self._refresh()
+
+    def action_move(self, delta: int) -> None:
+        if self.session is not None:
+            self.session.move(delta)
+            self._refresh()
+
+    def action_resplice(self) -> None:
+        if self.session is not None:
+            self._apply(self.session.resplice())
+
+    def action_keep(self) -> None:
+        if self.session is not None:
+            self.session.cancel_question()
+            self.query_one("#sp-error", Static).update("kept as recorded")
+
+    def action_cycle_entry(self) -> None:
+        modes = list(ENTRY_MODES)
+        self._mode = modes[(modes.index(self._mode) + 1) % len(modes)]
+        if self.session is not None:
+            self.session.set_entry(self._mode)
+            self._refresh()
+
+    @on(events.Click, "#sp-colour")
+    def _toggle_swatch(self) -> None:
+        if self.session is not None:
+            self.session.swatch = not self.session.swatch
+            self._refresh()
+
+    @on(OptionList.OptionSelected, "#sp-list")
+    def _row_picked(self, event: OptionList.OptionSelected) -> None:
+        if self.session is not None and event.option.id:
+            self.session.goto(int(event.option.id))
+            self._refresh()
+            self.query_one("#sp-value", EntryInput).focus()
+
+    # -- drawing -------------------------------------------------------------------------------
+    def _refresh(self) -> None:
+        session = self.session
+        if session is None:
+            return
+        self.query_one("#sp-fibre", Static).update(Text(session.fibre_line(), style="bold"))
+        colour = Text()
+        for i, (where, words) in enumerate(session.colours()):
+            if i:
+                colour.append(" · ")
+            if session.swatch:
+                base = words.split(" ")[0]
+                colour.append("██", style=SWATCH.get(base, ""))
+                colour.append(" ")
+            colour.append(f"{where} {words}")
+        hint = f"Enter takes {_MODE_WORDS[self._mode]}; ^Y other fields; ↑↓ fibre"
+        if not colour:
+            colour.append("tube size not recorded")
+        self.query_one("#sp-colour", Static).update(colour)
+        self.query_one("#sp-field-label", Label).update(LABELS[session.field] + " ")
+        self.query_one("#sp-typed", Static).update(Text(session.typed_line()))
+        self.query_one("#sp-colour", Static).tooltip = hint + "; click: colour swatch on/off"
+        narrow = self.size.width < 60
+        rows = session.rows(short=narrow)
+        listing = self.query_one("#sp-list", OptionList)
+        highlighted = listing.highlighted
+        listing.clear_options()
+        header = "Fib   Est   A→B   B→A   Avg" if narrow else session.summary()
+        listing.border_title = header
+        for fibre, line, mark in rows:
+            style = "bold red" if mark == "fail" else "yellow" if mark == "warn" else ""
+            listing.add_option(Option(Text(line, style=style), id=str(fibre)))
+        if highlighted is not None and rows:
+            listing.highlighted = min(highlighted, len(rows) - 1)
