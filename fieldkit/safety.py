@@ -54,3 +54,5 @@ ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, OTDR_LIVE_FIBRE, GLASS_SHARDS, SPLICER_HE
 
 #: The cautions of the splice log (workspace and report), in order.
 SPLICING = (GLASS_SHARDS, SPLICER_HEAT, NEVER_LOOK, FAULT_LOCATOR)
+# The same cautions in one line of the splice workspace (the full ones on hover and in Help).
+SPLICING_SHORT = "Shards: glasses, shard bin · hot arc and oven · never look into a fibre"

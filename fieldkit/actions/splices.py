@@ -121,6 +121,32 @@ def add_closure(
     return made[0]
 
 
+def latest_fault_position(link: Link) -> tuple[float, str] | None:
+    """The route position and a landmark line of the link's latest located fault, if any: a
+    repair closure goes there."""
+    if not link.faults:
+        return None
+    fault = max(link.faults, key=lambda f: f.at)
+    where = f"at the fault located {fault.at:%Y-%m-%d}"
+    if fault.nearest_landmark:
+        offset = fault.offset_from_landmark_m
+        where += f", {fault.nearest_landmark}" + (f" + {offset:.0f} m" if offset else "")
+    return fault.route_distance_m, where
+
+
+def add_closure_at_fault(store: Any, job_id: str, link: str, name: str, *, by: str = "") -> Closure:
+    """Add a (repair) closure at the route position of the link's latest located fault."""
+    job = store.load(job_id)
+    found = latest_fault_position(find_link(job, link))
+    if found is None:
+        raise SpliceError(f"link {link!r} has no located fault to put a closure at")
+    route_m, where = found
+    return add_closure(
+        store, job_id, link, name, route_distance_m=route_m, landmark=where, by=by,
+        create_link=False,
+    )  # fmt: skip
+
+
 def edit_closure(
     store: Any,
     job_id: str,

@@ -63,6 +63,11 @@ def register(subparsers: Any) -> None:
     _job_options(p, closure=False)
     p.add_argument("name", metavar="NAME", help="the closure's name, e.g. 'JC-3 Market St'")
     p.add_argument("--route-distance", metavar="DIST", help="its route position, e.g. 2.1km")
+    p.add_argument(
+        "--at-fault",
+        action="store_true",
+        help="at the route position of the link's latest located fault (a repair closure)",
+    )
     p.add_argument("--landmark", default="", help="where it is, e.g. 'chamber by the bridge'")
     p.add_argument("--notes", default="", help="free notes")
     p.add_argument("--json", action="store_true", help="print one JSON object")
@@ -246,17 +251,23 @@ def run_closure(args: argparse.Namespace) -> int:
             args.route_distance, Kind.LENGTH, default_unit="m", what="--route-distance"
         ).to("m")
     store, job_id = _store_and_job(args)
-    closure = _call(
-        act.add_closure,
-        store,
-        job_id,
-        args.link,
-        args.name,
-        route_distance_m=distance,
-        landmark=args.landmark,
-        notes=args.notes,
-        by=by,
-    )
+    if args.at_fault:
+        if distance is not None:
+            raise CommandError("give --route-distance or --at-fault, not both")
+        closure = _call(act.add_closure_at_fault, store, job_id, args.link, args.name, by=by)
+        distance = closure.route_distance_m
+    else:
+        closure = _call(
+            act.add_closure,
+            store,
+            job_id,
+            args.link,
+            args.name,
+            route_distance_m=distance,
+            landmark=args.landmark,
+            notes=args.notes,
+            by=by,
+        )
     if args.json:
         print_json(closure.model_dump(mode="json"))
     else:

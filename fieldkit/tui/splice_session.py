@@ -29,6 +29,7 @@ from fieldkit.jobs.splices import (
     splice_line,
     verdict_words,
 )
+from fieldkit.presets import PresetLibrary, load_presets
 
 FIELDS: tuple[str, ...] = ("estimate", "ab", "ba")
 LABELS = {"estimate": "Estimate dB", "ab": "A→B dB", "ba": "B→A dB"}
@@ -55,8 +56,7 @@ SWATCH = {
     "aqua": "#18d6d6",
 }
 
-#: The splicing cautions in one line of a wide terminal (the full ones: hover, Help, reports).
-SAFETY_SHORT = "Shards: glasses, shard bin · hot arc and oven · never look into a fibre"
+SAFETY_SHORT = safety.SPLICING_SHORT
 
 
 @dataclass
@@ -84,6 +84,8 @@ class ClosureSetup:
     per_tube: str = "12"
     trays: str = "12"
     capacity: str = "12"
+    type_a: str = ""
+    type_b: str = ""
     plan: str = "straight"
 
 
@@ -114,11 +116,19 @@ class SpliceSession:
 
     # -- set-up ------------------------------------------------------------------------------
     @staticmethod
-    def start(store: Any, job_id: str, link: str, form: ClosureSetup, by: str = "") -> str:
+    def start(
+        store: Any,
+        job_id: str,
+        link: str,
+        form: ClosureSetup,
+        by: str = "",
+        library: PresetLibrary | None = None,
+    ) -> str:
         """Create a closure from the set-up form; returns its name. Raises InputError naming
-        the field."""
+        the field. The plan may be typed or a splice-plan preset's name."""
         from fieldkit.calc.units import Kind, parse
 
+        library = library or load_presets()
         name = form.name.strip()
         if not name:
             raise InputError("closure: give the closure a name")
@@ -131,21 +141,40 @@ class SpliceSession:
         trays = inputs.count(form.trays, "trays", high=200) if form.trays.strip() else 0
         capacity = inputs.count(form.capacity, "tray size", high=1000) if trays else 0
         cables = [
-            act.make_cable(form.cable_a or "A", fibre_count=count_a, per_tube=per_tube, by=by),
-            act.make_cable(form.cable_b or "B", fibre_count=count_b, per_tube=per_tube, by=by),
+            act.make_cable(
+                form.cable_a or "A",
+                fibre_count=count_a,
+                per_tube=per_tube,
+                fibre_type=form.type_a,
+                library=library,
+                by=by,
+            ),
+            act.make_cable(
+                form.cable_b or "B",
+                fibre_count=count_b,
+                per_tube=per_tube,
+                fibre_type=form.type_b,
+                library=library,
+                by=by,
+            ),
         ]
         if cables[0].name.casefold() == cables[1].name.casefold():
             raise InputError("cable B: give it a name of its own")
         probe = Closure(name=name, cables=cables)
-        plan_rows = act.parse_plan_for(probe, form.plan) if form.plan.strip() else []
+        plan = form.plan.strip()
+        if plan.casefold() in {n.casefold() for n in library.splice_plans}:
+            plan = library.find("splice_plans", plan).plan
+        plan_rows = act.parse_plan_for(probe, plan) if plan else []
         act.add_closure(store, job_id, link, name, route_distance_m=route, by=by)
         for cable in cables:
-            act.add_cable(store, job_id, link, name, cable.name, fibre_count=cable.fibre_count,
-                          per_tube=cable.per_tube, by=by)  # fmt: skip
+            act.add_cable(
+                store, job_id, link, name, cable.name, fibre_count=cable.fibre_count,
+                per_tube=cable.per_tube, fibre_type=cable.fibre_type, library=library, by=by,
+            )  # fmt: skip
         if trays:
             act.add_trays(store, job_id, link, name, list(range(1, trays + 1)), capacity, by=by)
         if plan_rows:
-            act.set_plan(store, job_id, link, name, form.plan)
+            act.set_plan(store, job_id, link, name, form.plan, library=library)
         return name
 
     # -- reading the job -----------------------------------------------------------------------

@@ -272,3 +272,32 @@ def test_schema_2_file_migrates_its_splices(tmp_path: Path) -> None:
     # an "OTDR bidirectional" value becomes the average, without inventing one-way values
     feed = job.links[1].closures[0].current_for("A", 5)
     assert feed is not None and (feed.loss_ab_db, feed.average_only_db) == (None, 0.21)
+
+
+def test_repair_closure_goes_where_the_fault_was_located(tmp_path: Path) -> None:
+    from fieldkit.jobs.models import FaultRecord
+
+    store = JobStore(tmp_path / "jobs")
+    job = store.create("Repair")
+
+    def add(j: object) -> None:
+        link = j.add_link("FEED")  # type: ignore[attr-defined]
+        link.faults.append(
+            FaultRecord(
+                fiber_distance_m=2963.0,
+                sheath_distance_m=2919.2,
+                route_distance_m=2889.2,
+                low_m=2876.0,
+                high_m=2902.4,
+                nearest_landmark="handhole HH-12",
+                offset_from_landmark_m=14.2,
+            )
+        )
+
+    store.update(job.id, add)
+    closure = act.add_closure_at_fault(store, job.id, "FEED", "Repair 1", by="Jon")
+    assert closure.route_distance_m == 2889.2 and "HH-12 + 14 m" in closure.landmark
+    other = store.create("x")
+    store.update(other.id, lambda j: j.add_link("FEED"))
+    with pytest.raises(act.SpliceError, match="no located fault"):
+        act.add_closure_at_fault(store, other.id, "FEED", "R")

@@ -133,3 +133,22 @@ def test_one_entry_line_walks_the_fields_and_answers_questions(session: SpliceSe
     assert session.enter_value("").recorded  # an empty Enter answers: replace
     s1 = session.closure.current_for("A", 1)
     assert s1 is not None and (s1.loss_ab_db, s1.loss_ba_db) == (0.30, 0.25)
+
+
+def test_setup_takes_fibre_types_and_a_plan_preset(tmp_path: Path) -> None:
+    store = JobStore(tmp_path / "jobs")
+    job = store.create("Types")
+    store.update(job.id, lambda j: j.add_link("L1"))
+    link_id = store.load(job.id).links[0].id
+    form = ClosureSetup(
+        name="M", count_a="24", count_b="24", type_a="G.652.D", type_b="G.657.A2",
+        plan="express 1-12, drop 13-24",  # shipped preset: 1-12 > 1-12; park 13-24
+    )  # fmt: skip
+    s = SpliceSession(store, job.id, link_id, SpliceSession.start(store, job.id, link_id, form))
+    assert s.closure.plan_source.startswith("preset express 1-12, drop 13-24")
+    s.set_entry("otdr")
+    s.enter_value("-0.30")
+    step = s.enter_value("0.40")
+    # G.652.D 10.4 µm to G.657.A2 9.6 µm at 1550 nm (shipped presets, typical values from
+    # memory): 10·log10(9.6/10.4) = −0.35 dB one way
+    assert any("G.652.D to G.657.A2" in w and "-0.35 dB" in w for w in step.warnings)

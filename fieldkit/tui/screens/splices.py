@@ -20,6 +20,7 @@ from textual.widgets.option_list import Option
 
 from fieldkit import safety
 from fieldkit.calc.units import InputError
+from fieldkit.presets import load_presets
 from fieldkit.tui.splice_session import (
     ENTRY_MODES,
     LABELS,
@@ -42,9 +43,11 @@ _SETUP = (
     ("cable_b", "Cable B", "B"),
     ("count_b", "Fibres B", "144"),
     ("per_tube", "Per tube", "12"),
+    ("type_a", "Type A", "G.652.D (optional)"),
+    ("type_b", "Type B", "G.657.A2 (optional)"),
     ("trays", "Trays", "12"),
     ("capacity", "Tray size", "12"),
-    ("plan", "Plan", "straight; 1-12 > 25-36; park 13-24"),
+    ("plan", "Plan", "straight; 1-12 > 25-36; park 13-24; a preset"),
 )
 _MODE_WORDS = {"estimate": "estimate", "otdr": "A→B, B→A", "all": "estimate, A→B, B→A"}
 
@@ -144,6 +147,13 @@ class SplicesScreen(Screen[None]):
         closures.clear_options()
         closures.add_options([Option(f"Open closure {c.name}", id=c.id) for c in link.closures])
         closures.display = bool(link.closures)
+        from fieldkit.actions.splices import latest_fault_position
+
+        fault = latest_fault_position(link)
+        route = self.query_one("#setup-route", Input)
+        if fault is not None and not route.value.strip():
+            route.value = f"{fault[0]:.1f} m"
+            route.tooltip = f"Route position {fault[1]}"
         self.session = None
         self.query_one("#sp-entry").display = False
         self.query_one("#sp-setup").display = True
@@ -176,7 +186,12 @@ class SplicesScreen(Screen[None]):
         error = self.query_one("#sp-setup-error", Static)
         try:
             name = SpliceSession.start(
-                fieldkit_app(self).store, self.job_id, self.link_id, form, by=self._operator()
+                fieldkit_app(self).store,
+                self.job_id,
+                self.link_id,
+                form,
+                by=self._operator(),
+                library=load_presets(fieldkit_app(self).config_dir),
             )
         except InputError as exc:
             error.update(Text(str(exc)))
