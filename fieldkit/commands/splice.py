@@ -158,6 +158,13 @@ def register(subparsers: Any) -> None:
 
 
 # -- helpers -----------------------------------------------------------------------------------
+def _say(text: str, file: Any = None) -> None:
+    """One line on the terminal, user text in it shown as typed (controls made visible)."""
+    from fieldkit.text.escape import terminal
+
+    print(terminal(text), file=file)
+
+
 def _operator(args: argparse.Namespace) -> str:
     name = args.by if args.by is not None else os.environ.get("FIELDKIT_OPERATOR", "")
     return plain_text(name.strip(), "--by")
@@ -230,7 +237,7 @@ def run_colour(args: argparse.Namespace) -> int:
     if args.json:
         print_json({**position_record(position), "per_tube": per_tube, "sequence": preset.name})
         return 0
-    print(
+    _say(
         f"fibre {fibre}: tube {position.tube} {colour_words(position.tube_colour)}, "
         f"fibre {position.fibre_in_tube} {colour_words(position.fibre_colour)} "
         f"({per_tube} a tube, {preset.name})"
@@ -272,7 +279,7 @@ def run_closure(args: argparse.Namespace) -> int:
         print_json(closure.model_dump(mode="json"))
     else:
         where = f" at route {distance:.1f} m" if distance is not None else ""
-        print(f"closure {closure.name} added to link {args.link}{where}")
+        _say(f"closure {closure.name} added to link {args.link}{where}")
     return 0
 
 
@@ -302,7 +309,7 @@ def run_cable(args: argparse.Namespace) -> int:
         print_json(cable.model_dump(mode="json"))
     else:
         kind = f", {cable.fibre_type}" if cable.fibre_type else ""
-        print(
+        _say(
             f"cable {cable.name}: {cable.fibre_count} fibres, {cable.per_tube} a tube, "
             f"{cable.colour_sequence}{kind}"
         )
@@ -334,7 +341,7 @@ def run_tray(args: argparse.Namespace) -> int:
     if args.json:
         print_json({"trays": [t.model_dump(mode="json") for t in trays]})
     else:
-        print(f"{len(trays)} trays of {capacity} added to closure {args.closure}")
+        _say(f"{len(trays)} trays of {capacity} added to closure {args.closure}")
     return 0
 
 
@@ -362,7 +369,7 @@ def run_limit(args: argparse.Namespace) -> int:
     if args.json:
         print_json(limit.model_dump(mode="json"))
     else:
-        print(f"{args.method} splices on {args.link}: at most {limit.loss_max_db:.2f} dB")
+        _say(f"{args.method} splices on {args.link}: at most {limit.loss_max_db:.2f} dB")
     return 0
 
 
@@ -456,10 +463,10 @@ def run_add(args: argparse.Namespace) -> int:
         )
         return 0
     for notice in done.notices:
-        print(f"note: {notice}", file=sys.stderr)
-    print(splice_line(closure, s, j))
+        _say(f"note: {notice}", file=sys.stderr)
+    _say(splice_line(closure, s, j))
     for warning in j.warnings:
-        print(f"  {warning}")
+        _say(f"  {warning}")
     return 0
 
 
@@ -505,7 +512,7 @@ def run_plan(args: argparse.Namespace) -> int:
             }
         )
     else:
-        print(f"closure {closure.name}: plan {closure.plan_source or 'none'}")
+        _say(f"closure {closure.name}: plan {closure.plan_source or 'none'}")
     return 0
 
 
@@ -545,9 +552,9 @@ def run_otdr(args: argparse.Namespace) -> int:
             }
         )
         return 0
-    print(f"{len(fill.written)} losses recorded ({len(fill.created)} new splices)")
+    _say(f"{len(fill.written)} losses recorded ({len(fill.created)} new splices)")
     for x, old in fill.would_overwrite:
-        print(
+        _say(
             f"  fibre {x.fibre} {x.direction}: kept {old:.2f} dB, not {x.loss_db:.2f} dB "
             "(--overwrite replaces it)"
         )
@@ -568,12 +575,12 @@ def run_list(args: argparse.Namespace) -> int:
         for closure in closures:
             rows = closure_rows(link, closure)
             if not args.json:
-                print(f"{link.label}: {closure_summary(closure, link.splice_limits)}")
+                _say(f"{link.label}: {closure_summary(closure, link.splice_limits)}")
                 for line in tray_map(closure):
-                    print(f"  {line}")
+                    _say(f"  {line}")
                 for s, j, old in rows:
                     mark = " (superseded)" if old else ""
-                    print(f"  {splice_line(closure, s, j, short=True)}{mark}")
+                    _say(f"  {splice_line(closure, s, j, short=True)}{mark}")
                 continue
             out.append(
                 {
@@ -599,5 +606,5 @@ def run_list(args: argparse.Namespace) -> int:
     if args.json:
         print_json({"job_id": job.id, "closures": out})
     elif not any(link.closures for link in links):
-        print("no closures recorded")
+        _say("no closures recorded")
     return 0

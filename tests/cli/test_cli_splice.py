@@ -140,3 +140,33 @@ def test_splice_command_runs_as_a_program() -> None:
     # TIA-598: fibre 20 of 12-fibre tubes is tube 2 (orange), fibre 8 (black)
     data = json.loads(proc.stdout)
     assert (data["tube_colour"], data["fibre_colour"]) == ("orange", "black")
+
+
+def test_cable_with_unknown_colour_sequence_is_refused(
+    capsys: pytest.CaptureFixture[str], job: str
+) -> None:
+    base = ["--job", job, "--link", "L1", "--closure", "JC-1"]
+    err = refused(capsys, "cable", *base, "C3", "--fibres", "12", "--sequence", "rainbow")
+    assert "unknown colour sequence 'rainbow'" in err
+
+
+def test_closure_at_fault_needs_a_located_fault(
+    capsys: pytest.CaptureFixture[str], job: str
+) -> None:
+    err = refused(capsys, "closure", "--job", job, "--link", "L1", "R-1", "--at-fault")
+    assert "no located fault" in err
+
+
+def test_listing_shows_the_closure_and_its_tray_map(
+    capsys: pytest.CaptureFixture[str], job: str
+) -> None:
+    base = ["--job", job, "--link", "L1", "--closure", "JC-1"]
+    assert main(["splice", "tray", *base, "1", "--capacity", "12"]) == 0
+    capsys.readouterr()
+    ok_json(capsys, *add(job, "--fibre", "14", "--loss-ab", "0.04", "--loss-ba", "0.06"))
+    code, out, _ = run(capsys, "list", "--job", job)
+    assert code == 0
+    # TIA-598, 12 a tube: fibre 14 is tube 2 orange, fibre 2 orange; (0.04 + 0.06) / 2 = 0.05
+    assert "tray 1 (1/12): C1 14" in out
+    assert "C1 14 orange/orange → C2 14 orange/orange, tray 1 slot 1" in out
+    assert "average 0.05 dB: pass" in out

@@ -21,6 +21,7 @@ from textual.widgets.option_list import Option
 from fieldkit import safety
 from fieldkit.calc.units import InputError
 from fieldkit.presets import load_presets
+from fieldkit.text import escape
 from fieldkit.tui.splice_session import (
     ENTRY_MODES,
     LABELS,
@@ -142,10 +143,12 @@ class SplicesScreen(Screen[None]):
         self.job_id, self.link_id = choice
         job = fieldkit_app(self).store.load(self.job_id)
         link = job.link(self.link_id)
-        self.query_one("#sp-where", Static).update(f"{job.name} · {link.label}")
+        self.query_one("#sp-where", Static).update(Text(f"{job.name} · {link.label}"))
         closures = self.query_one("#sp-closures", OptionList)
         closures.clear_options()
-        closures.add_options([Option(f"Open closure {c.name}", id=c.id) for c in link.closures])
+        closures.add_options(
+            [Option(Text(f"Open closure {c.name}"), id=c.id) for c in link.closures]
+        )
         closures.display = bool(link.closures)
         from fieldkit.actions.splices import latest_fault_position
 
@@ -208,7 +211,7 @@ class SplicesScreen(Screen[None]):
         self.query_one("#sp-setup").display = False
         self.query_one("#sp-entry").display = True
         narrow = self.size.width < 60
-        self.query_one("#sp-where", Static).update(self.session.where_line(short=narrow))
+        self.query_one("#sp-where", Static).update(Text(self.session.where_line(short=narrow)))
         self._refresh()
         self.query_one("#sp-value", EntryInput).focus()
 
@@ -311,7 +314,7 @@ class SplicesScreen(Screen[None]):
         highlighted = listing.highlighted
         listing.clear_options()
         header = "Fib   Est   A→B   B→A   Avg" if narrow else session.summary()
-        listing.border_title = header
+        listing.border_title = escape.markup(header)
         for fibre, line, mark in rows:
             style = "bold red" if mark == "fail" else "yellow" if mark == "warn" else ""
             listing.add_option(Option(Text(line, style=style), id=str(fibre)))
