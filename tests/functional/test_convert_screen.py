@@ -143,17 +143,24 @@ async def test_workspaces_are_in_the_command_palette(tmp_path: Path) -> None:
 
 @pytest.mark.parametrize("size", SIZES)
 async def test_workspace_bar_shows_keys_and_takes_clicks(tmp_path: Path, size) -> None:
-    from fieldkit.tui.widgets.workspace_bar import WorkspaceTab
+    from fieldkit.tui.widgets.workspace_bar import TABS, WorkspaceBar
 
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
-        tabs = {tab.mode: tab for tab in app.screen.query(WorkspaceTab)}
-        assert "F2 Convert" in str(tabs["convert"].render())
-        assert tabs["convert"].has_class("-current")
-        for tab in tabs.values():
-            assert tab.key_label in str(tab.render())  # every key visible, even at 44 columns
-        await pilot.click("#tab-help")
+        bar = app.screen.query_one(WorkspaceBar)
+        line = str(bar.render())
+        assert "F2 Convert" in line
+        for tab in TABS:
+            assert tab.key_label in line  # every key visible, even at 44 columns
+        assert len(line) <= size[0]
+        current = bar.tab_style(TABS[0])
+        assert all(bar.tab_style(tab) != current for tab in TABS[1:])  # only Convert is lit
+        await pilot.click(WorkspaceBar, offset=(line.index("F4") + 1, 0))
+        await pilot.pause()
+        assert app.current_mode == "meter"
+        line = str(app.screen.query_one(WorkspaceBar).render())
+        await pilot.click(WorkspaceBar, offset=(line.rindex("F1") + 1, 0))
         await pilot.pause()
         assert isinstance(app.screen, HelpScreen)
 

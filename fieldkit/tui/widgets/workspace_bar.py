@@ -3,40 +3,47 @@
 It takes the place of a title bar. The current workspace is highlighted; every entry can be
 clicked or tapped. On a narrow terminal the other workspaces shrink to their keys, so the line
 fits 40 columns. The footer below keeps its room for the current screen's own keys.
+
+One widget draws the whole line (each entry a clickable span), not a widget per entry: every
+workspace mounts and styles this bar before its first frame.
 """
 
 from __future__ import annotations
 
-from textual.app import ComposeResult
-from textual.containers import Horizontal
-from textual.events import Click
-from textual.widgets import Static
+from typing import NamedTuple
+
+from rich.style import Style
+from rich.text import Text
+from textual.events import Click, MouseEvent, MouseMove
+from textual.widget import Widget
 
 from fieldkit.tui.workspaces import WORKSPACES
 
 
-class WorkspaceTab(Static):
-    """One workspace: its key and title; a click opens it."""
+class Tab(NamedTuple):
+    """One entry of the bar: what a click runs, its key and its title."""
 
-    def __init__(self, mode: str, key: str, title: str, action: str | None = None) -> None:
-        super().__init__(id=f"tab-{mode}", classes="workspace-tab", markup=False)
-        self.mode = mode
-        self.action = action or f"workspace('{mode}')"
-        self.key_label = key.upper()
-        self.title = title
-        self.tooltip = f"{title} ({self.key_label})"
-
-    def show(self, current: bool, narrow: bool) -> None:
-        self.set_class(current, "-current")
-        self.update(self.key_label if narrow and not current else f"{self.key_label} {self.title}")
-
-    async def _on_click(self, event: Click) -> None:
-        event.stop()
-        await self.app.run_action(self.action)
+    mode: str
+    action: str  # an action of the app
+    key_label: str
+    title: str
 
 
-class WorkspaceBar(Horizontal):
-    """Name of the app, then a tab per workspace, then Help."""
+TABS: tuple[Tab, ...] = (
+    *(Tab(ws.mode, f"workspace('{ws.mode}')", ws.key.upper(), ws.title) for ws in WORKSPACES),
+    Tab("help", "show_help", "F1", "Help"),
+)
+
+
+class WorkspaceBar(Widget):
+    """Name of the app, then an entry per workspace, then Help."""
+
+    COMPONENT_CLASSES = {
+        "workspace-bar--name",
+        "workspace-bar--tab",
+        "workspace-bar--tab-hover",
+        "workspace-bar--current",
+    }
 
     DEFAULT_CSS = """
     WorkspaceBar {
@@ -44,46 +51,78 @@ class WorkspaceBar(Horizontal):
         width: 1fr;
         background: $panel;
     }
-    WorkspaceBar > .app-name {
-        width: auto;
-        padding: 0 1;
+    WorkspaceBar > .workspace-bar--name {
         text-style: bold;
         color: $text;
     }
-    WorkspaceBar > .workspace-tab {
-        width: auto;
-        padding: 0 1;
+    WorkspaceBar > .workspace-bar--tab {
         color: $text-muted;
     }
-    WorkspaceBar > .workspace-tab:hover {
+    WorkspaceBar > .workspace-bar--tab-hover {
         background: $boost;
         color: $text;
     }
-    WorkspaceBar > .workspace-tab.-current {
+    WorkspaceBar > .workspace-bar--current {
         background: $primary;
         color: $text;
         text-style: bold;
     }
     """
 
-    #: Below this width the other workspaces show only their keys.
-    NARROW_BELOW = 72
+    def __init__(self) -> None:
+        super().__init__()
+        self._hovered: str | None = None
 
-    def compose(self) -> ComposeResult:
-        yield Static("fieldkit", classes="app-name")
-        for ws in WORKSPACES:
-            yield WorkspaceTab(ws.mode, ws.key, ws.title)
-        yield WorkspaceTab("help", "f1", "Help", action="show_help")
+    def tab_text(self, tab: Tab, narrow: bool) -> str:
+        """What the bar shows for ``tab``: narrow, only the key unless it is the current one."""
+        current = tab.mode == self.app.current_mode
+        return tab.key_label if narrow and not current else f"{tab.key_label} {tab.title}"
 
-    def on_mount(self) -> None:
-        self._refresh_tabs()
+    def tab_style(self, tab: Tab) -> Style:
+        """The colours of ``tab``: current, under the pointer, or plain."""
+        if tab.mode == self.app.current_mode:
+            name = "workspace-bar--current"
+        elif tab.mode == self._hovered:
+            name = "workspace-bar--tab-hover"
+        else:
+            name = "workspace-bar--tab"
+        return self.get_component_rich_style(name)
+
+    def render(self) -> Text:
+        # The app's name and every title when they fit, then every title, then keys only.
+        width = self.size.width or self.app.size.width
+        full = sum(len(self.tab_text(tab, False)) + 2 for tab in TABS)
+        narrow = full > width
+        line = Text(no_wrap=True, overflow="crop")
+        if full + len(" fieldkit ") <= width:
+            line.append(" fieldkit ", self.get_component_rich_style("workspace-bar--name"))
+        for tab in TABS:
+            # Each entry carries its mode, so a click or the pointer finds its tab.
+            meta = Style.from_meta({"tab": tab.mode})
+            line.append(f" {self.tab_text(tab, narrow)} ", self.tab_style(tab) + meta)
+        return line
+
+    def tab_at(self, event: MouseEvent) -> Tab | None:
+        mode = event.style.meta.get("tab")
+        return next((tab for tab in TABS if tab.mode == mode), None)
+
+    async def on_click(self, event: Click) -> None:
+        tab = self.tab_at(event)
+        if tab is not None:
+            event.stop()
+            await self.app.run_action(tab.action)
 
     def on_resize(self) -> None:
-        self._refresh_tabs()
+        self.refresh()
 
-    def _refresh_tabs(self) -> None:
-        current = self.app.current_mode
-        narrow = self.app.size.width < self.NARROW_BELOW
-        self.query_one(".app-name", Static).display = not narrow
-        for tab in self.query(WorkspaceTab):
-            tab.show(tab.mode == current, narrow)
+    def on_mouse_move(self, event: MouseMove) -> None:
+        tab = self.tab_at(event)
+        hovered = tab.mode if tab is not None else None
+        if hovered != self._hovered:
+            self._hovered = hovered
+            self.refresh()
+
+    def on_leave(self) -> None:
+        if self._hovered is not None:
+            self._hovered = None
+            self.refresh()
