@@ -86,6 +86,7 @@ class ClosureSetup:
     capacity: str = "12"
     type_a: str = ""
     type_b: str = ""
+    limit: str = ""
     plan: str = "straight"
 
 
@@ -165,7 +166,10 @@ class SpliceSession:
         if plan.casefold() in {n.casefold() for n in library.splice_plans}:
             plan = library.find("splice_plans", plan).plan
         plan_rows = act.parse_plan_for(probe, plan) if plan else []
+        limit = _limit(form.limit, library, by) if form.limit.strip() else None
         act.add_closure(store, job_id, link, name, route_distance_m=route, by=by)
+        if limit is not None:
+            act.set_splice_limit(store, job_id, link, limit)
         for cable in cables:
             act.add_cable(
                 store, job_id, link, name, cable.name, fibre_count=cable.fibre_count,
@@ -435,6 +439,22 @@ _SHORT_VERDICT = {
     "one direction": "one way",
     "not measured": "no loss",
 }
+
+
+def _limit(text: str, library: PresetLibrary, by: str) -> Any:
+    """The fusion splice limit typed in the set-up: a splice preset's name, or a figure in dB."""
+    from fieldkit.calc.reference import loss_limit_db
+    from fieldkit.jobs.splices import SpliceLimit
+
+    text = text.strip()
+    if text.casefold() in {name.casefold() for name in library.splices}:
+        return act.limit_from_preset("fusion", text, library, by=by)
+    value = loss_limit_db(text, "limit")
+    if value > 5:
+        raise InputError(f"limit: {value:g} dB is not a splice limit (at most 5 dB)")
+    return SpliceLimit(
+        method="fusion", loss_max_db=value, source=f"typed by {by or 'the operator'}", by=by
+    )
 
 
 def _short(name: str) -> str:

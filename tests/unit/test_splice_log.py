@@ -301,3 +301,19 @@ def test_repair_closure_goes_where_the_fault_was_located(tmp_path: Path) -> None
     store.update(other.id, lambda j: j.add_link("FEED"))
     with pytest.raises(act.SpliceError, match="no located fault"):
         act.add_closure_at_fault(store, other.id, "FEED", "R")
+
+
+def test_an_old_job_file_imports_and_two_laptops_merge_their_splices(tmp_path: Path) -> None:
+    from fieldkit.jobs.handoff import merge_job, read_handoff
+
+    jobs = read_handoff(GOLDEN / "job_schema_v2.json")  # a schema-2 job file, migrated on read
+    [job] = jobs
+    assert job.links[0].closures[0].name == MIGRATED_CLOSURE
+    mine, theirs = job.model_copy(deep=True), job.model_copy(deep=True)
+    closure = theirs.links[1].closures[0]
+    extra = Splice(cable_a="A", fibre_a=7, cable_b="B", fibre_b=7, loss_ab_db=0.03, by="Jon")
+    closure.splices.append(extra)
+    added, conflicts = merge_job(mine, theirs)
+    assert (added, conflicts) == (1, [])
+    assert mine.links[1].closures[0].current_for("A", 7) == extra
+    assert merge_job(mine, theirs) == (0, [])  # a second import adds nothing

@@ -152,3 +152,19 @@ def test_setup_takes_fibre_types_and_a_plan_preset(tmp_path: Path) -> None:
     # G.652.D 10.4 µm to G.657.A2 9.6 µm at 1550 nm (shipped presets, typical values from
     # memory): 10·log10(9.6/10.4) = −0.35 dB one way
     assert any("G.652.D to G.657.A2" in w and "-0.35 dB" in w for w in step.warnings)
+
+
+def test_setup_sets_a_tighter_limit_of_the_operator(tmp_path: Path) -> None:
+    store = JobStore(tmp_path / "jobs")
+    job = store.create("Tight")
+    store.update(job.id, lambda j: j.add_link("L1"))
+    link_id = store.load(job.id).links[0].id
+    form = ClosureSetup(name="T", count_a="12", count_b="12", limit="0.15 dB")
+    s = SpliceSession(store, job.id, link_id, SpliceSession.start(store, job.id, link_id, form))
+    s.set_entry("otdr")
+    s.enter_value("0.18")
+    step = s.enter_value("0.20")
+    # (0.18 + 0.20) / 2 = 0.19 dB: within TIA-568.3-D 0.3 dB (from memory), over our 0.15 dB
+    assert "FAIL (limit 0.15 dB)" in step.message
+    with pytest.raises(Exception, match="limit"):
+        SpliceSession.start(store, job.id, link_id, ClosureSetup(name="U", limit="0.3 dBm"))

@@ -48,6 +48,7 @@ _SETUP = (
     ("type_b", "Type B", "G.657.A2 (optional)"),
     ("trays", "Trays", "12"),
     ("capacity", "Tray size", "12"),
+    ("limit", "Limit", "fusion preset, or 0.15 dB"),
     ("plan", "Plan", "straight; 1-12 > 25-36; park 13-24; a preset"),
 )
 _MODE_WORDS = {"estimate": "estimate", "otdr": "A→B, B→A", "all": "estimate, A→B, B→A"}
