@@ -124,3 +124,48 @@ async def test_a_folder_is_analysed_into_fibres_and_each_opens(
         await pilot.press("escape")
         await pilot.pause()
         assert screen.session.a is None and table.row_count == 1
+
+
+async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
+    tmp_path: Path, pair_files: tuple[Path, Path]
+) -> None:
+    from fieldkit import locations
+    from fieldkit.actions import splices as act
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.screens.traces import OverwriteDialog
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Mill Lane")
+    act.add_closure(store, job.id, "L1", "JC-7", route_distance_m=1480.0, by="Ana")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#traces-a", Input).value = str(pair_files[0])
+        screen.query_one("#traces-b", Input).value = str(pair_files[1])
+        await pilot.press("enter")
+        await pilot.pause()
+        for _round in range(2):
+            await pilot.press("ctrl+l")
+            await pilot.pause()
+            await pilot.press("enter")  # the job
+            await pilot.press("enter")  # its link
+            await pilot.pause()
+            await pilot.press("enter")  # closure JC-7, fibre 1 from the file name
+            await pilot.pause()
+            if _round == 0:
+                status = str(screen.query_one("#traces-status", Static).render())
+                assert "2 one-way losses written" in status
+                closure = store.load(job.id).links[0].closures[0]
+                splice = next(s for s in closure.splices if s.fibre_a == 1)
+                # the splice at 1500 m is 0.25 dB from both ends (FIBRE above)
+                assert splice.loss_ab_db == pytest.approx(0.25, abs=0.02)
+                act.update_losses(
+                    store, job.id, "L1", "JC-7", splice.id, loss_ab_db=0.9, overwrite=True
+                )
+        assert isinstance(app.screen, OverwriteDialog)
+        await pilot.press("escape")  # keep what is recorded
+        await pilot.pause()
+        assert "Nothing written" in str(screen.query_one("#traces-status", Static).render())
+        kept = next(s for s in store.load(job.id).links[0].closures[0].splices if s.fibre_a == 1)
+        assert kept.loss_ab_db == 0.9

@@ -10,15 +10,26 @@ from __future__ import annotations
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal
-from textual.screen import Screen
-from textual.widgets import Button, DataTable, Footer, Input, Label, ProgressBar, Static
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen, Screen
+from textual.widgets import (
+    Button,
+    DataTable,
+    Footer,
+    Input,
+    Label,
+    OptionList,
+    ProgressBar,
+    Static,
+)
+from textual.widgets.option_list import Option
 
 from fieldkit import safety
 from fieldkit.text.escape import terminal
 from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.model import TraceFileError
 from fieldkit.traces.session import TraceSession
+from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.trace_plot import Mark, TracePlot
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -53,6 +64,13 @@ class TracesScreen(Screen[None]):
             tooltip="The instrument's own event table, or ours",
         ),
         Binding(
+            "ctrl+l",
+            "fill_splices",
+            "Splice log",
+            id="traces.splices",
+            tooltip="Fill a closure's splice log on a job's link with these traces' losses",
+        ),
+        Binding(
             "escape", "back", "Fibres", id="traces.back", tooltip="Back to the folder's fibres"
         ),
     ]
@@ -66,7 +84,7 @@ class TracesScreen(Screen[None]):
         super().__init__()
         self.session = TraceSession()
         self.selected: int | None = None  # event number selected in the table / plot
-        self.folder_rows: list[int] = []
+        self.job_link: tuple[str, str] | None = None  # chosen for the splice log: landmarks too
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
@@ -260,6 +278,120 @@ class TracesScreen(Screen[None]):
             self._highlight(event.mark.number)
 
     # -- actions ---------------------------------------------------------------------------
+    # -- the splice log --------------------------------------------------------------------
+    def _fibres_to_fill(self, fibre: int | None) -> list:
+        from fieldkit.actions.traces import FibreTraces
+
+        s = self.session
+        if s.a is None and s.folder is not None:
+            out = []
+            for row in s.folder.rows:
+                if not row.fibre.isdigit():
+                    continue
+                if row.paired is not None:
+                    out.append(FibreTraces(int(row.fibre), paired=row.paired))
+                elif row.a_to_b or row.b_to_a:
+                    direction = "A->B" if row.a_to_b else "B->A"
+                    one = row.a_to_b or row.b_to_a
+                    out.append(FibreTraces(int(row.fibre), one_way=one, direction=direction))
+            return out
+        if fibre is None:
+            return []
+        if s.paired is not None:
+            return [FibreTraces(fibre, paired=s.paired)]
+        return [FibreTraces(fibre, one_way=s.a)]
+
+    def action_fill_splices(self) -> None:
+        from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+        s = self.session
+        if s.a is None and s.folder is None:
+            self._say("Open traces first, then Ctrl+L fills a closure's splice log.", True)
+            return
+        self.app.push_screen(JobLinkPicker(), self._link_chosen)
+
+    def _link_chosen(self, choice: tuple[str, str] | None) -> None:
+        from fieldkit.actions.splices import find_link
+        from fieldkit.traces.folder import fibre_label
+
+        if choice is None:
+            return
+        self.job_link = choice
+        store = fieldkit_app(self).store
+        try:
+            link = find_link(store.load(choice[0]), choice[1])
+        except Exception as exc:  # noqa: BLE001 - a store or lookup problem, shown as one line
+            self._say(str(exc), True)
+            return
+        closures = [(c.name, c.route_distance_m) for c in link.closures]
+        if not closures:
+            self._say(f"link {link.label}: no closures yet; add them in the splice log", True)
+            return
+        s = self.session
+        fibre = None
+        ask = s.a is not None
+        if s.a is not None:
+            label = fibre_label(s.a.trace, s.a.trace.source)
+            fibre = int(label) if label.isdigit() else None
+        self.app.push_screen(
+            ClosurePicker(closures, fibre, ask), lambda c: self._closure_chosen(choice, c)
+        )
+
+    def _closure_chosen(
+        self, where: tuple[str, str], choice: tuple[str, int | None] | None
+    ) -> None:
+        from fieldkit.actions.traces import fill_splice_log
+        from fieldkit.calc.units import InputError
+
+        if choice is None:
+            return
+        closure, fibre = choice
+        fibres = self._fibres_to_fill(fibre)
+        store = fieldkit_app(self).store
+        by = _operator(self)
+        try:
+            trial = fill_splice_log(store, *where, closure, fibres, dry_run=True, by=by)
+        except InputError as exc:
+            self._say(str(exc), True)
+            return
+        if trial.would_overwrite:
+            first, old = trial.would_overwrite[0]
+            more = len(trial.would_overwrite) - 1
+            question = (
+                f"Fibre {first.fibre} {first.direction.replace('->', '→')} already holds "
+                f"{old:.3f} dB; the trace says {first.loss_db:.3f} dB"
+                + (f" (and {more} more)" if more else "")
+                + ". Replace them?"
+            )
+            self.app.push_screen(
+                OverwriteDialog(question),
+                lambda yes: self._write(where, closure, fibres, by, bool(yes)),
+            )
+            return
+        self._write(where, closure, fibres, by, False)
+
+    def _write(
+        self, where: tuple[str, str], closure: str, fibres: list, by: str, overwrite: bool
+    ) -> None:
+        from fieldkit.actions.traces import fill_splice_log
+        from fieldkit.calc.units import InputError
+
+        store = fieldkit_app(self).store
+        try:
+            trial = fill_splice_log(store, *where, closure, fibres, dry_run=True, by=by)
+            if trial.would_overwrite and not overwrite:
+                self._say("Nothing written: the recorded losses stay.")
+                return
+            done = fill_splice_log(store, *where, closure, fibres, overwrite=overwrite, by=by)
+        except InputError as exc:
+            self._say(str(exc), True)
+            return
+        missing = f", {len(done.unmatched)} fibres without an event there" if done.unmatched else ""
+        self._say(
+            f"Splice log of {closure}: {len(done.fill.written)} one-way losses written "
+            f"({len(done.matched)} fibres{missing})"
+        )
+
     def action_back(self) -> None:
         s = self.session
         if s.folder is None:
@@ -311,3 +443,107 @@ def _folder_counts(result: FolderResult) -> str:
     files = f"{result.files} file{'s' if result.files != 1 else ''}"
     rows = len(result.rows)
     return f"{files}, {rows} fibre{'s' if rows != 1 else ''}"
+
+
+class ClosurePicker(ModalScreen[tuple[str, int | None] | None]):
+    """Pick the closure whose splice log the traces fill (and the fibre, for one pair)."""
+
+    DEFAULT_CSS = """
+    ClosurePicker { align: center middle; }
+    ClosurePicker > Vertical {
+        width: 90%; max-width: 70; height: auto; max-height: 100%;
+        border: round $accent; background: $surface; padding: 0 1;
+    }
+    ClosurePicker OptionList { height: auto; max-height: 10; }
+    ClosurePicker Horizontal { height: 1; }
+    ClosurePicker Label { width: 8; color: $text-muted; }
+    ClosurePicker Input { width: 10; }
+    ClosurePicker #cp-error { color: $error; }
+    """
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(
+        self, closures: list[tuple[str, float | None]], fibre: int | None, ask_fibre: bool
+    ):
+        super().__init__()
+        self.closures = closures
+        self.fibre = fibre
+        self.ask_fibre = ask_fibre
+
+    def compose(self) -> ComposeResult:
+        with Vertical() as box:
+            box.border_title = "Fill which closure's splice log?"
+            options = []
+            for name, route in self.closures:
+                where = f"route {route:.0f} m" if route is not None else "no route position"
+                options.append(Option(terminal(f"{name}  ({where})"), disabled=route is None))
+            yield OptionList(*options, id="cp-closures")
+            if self.ask_fibre:
+                with Horizontal():
+                    yield Label("Fibre")
+                    yield Input(
+                        value=str(self.fibre or ""),
+                        restrict=r"[0-9]*",
+                        compact=True,
+                        id="cp-fibre",
+                        tooltip="The fibre number these traces hold",
+                    )
+            yield Static("", id="cp-error", markup=False)
+            yield Static("Enter on a closure fills it; Esc cancels.", classes="field-note")
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+    @on(OptionList.OptionSelected)
+    def _chosen(self, event: OptionList.OptionSelected) -> None:
+        name = self.closures[event.option_index][0]
+        fibre: int | None = None
+        if self.ask_fibre:
+            text = self.query_one("#cp-fibre", Input).value.strip()
+            if not text or int(text) < 1:
+                self.query_one("#cp-error", Static).update("Type the fibre number first.")
+                return
+            fibre = int(text)
+        self.dismiss((name, fibre))
+
+
+class OverwriteDialog(ModalScreen[bool]):
+    """Ask before replacing splice losses already recorded."""
+
+    DEFAULT_CSS = """
+    OverwriteDialog { align: center middle; }
+    OverwriteDialog > Vertical {
+        width: 90%; max-width: 70; height: auto;
+        border: round $warning; background: $surface; padding: 0 1;
+    }
+    OverwriteDialog Horizontal { height: auto; }
+    OverwriteDialog Button { margin-right: 2; }
+    """
+    BINDINGS = [Binding("escape", "no", "Keep")]
+
+    def __init__(self, question: str) -> None:
+        super().__init__()
+        self.question = question
+
+    def compose(self) -> ComposeResult:
+        with Vertical() as box:
+            box.border_title = "Replace recorded losses?"
+            yield Static(self.question, markup=False)
+            with Horizontal():
+                yield Button("Replace", id="ow-yes", variant="warning", compact=True)
+                yield Button("Keep (write nothing)", id="ow-no", compact=True)
+
+    def action_no(self) -> None:
+        self.dismiss(False)
+
+    @on(Button.Pressed)
+    def _pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "ow-yes")
+
+
+def _operator(node: Screen[None]) -> str:
+    """Who did the work: the app's operator once it has one, else $FIELDKIT_OPERATOR."""
+    import os
+
+    name = getattr(node.app, "operator", None)
+    return str(name) if name else os.environ.get("FIELDKIT_OPERATOR", "")
