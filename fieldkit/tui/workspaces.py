@@ -88,7 +88,7 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "traces",
-        "f10",
+        "f8",
         "Traces",
         "OTDR traces: events, both directions averaged, the trace drawn",
         "fieldkit.tui.screens.traces",

@@ -64,7 +64,7 @@ async def test_open_a_pair_jump_to_an_event_and_send_it_to_fault(
         assert table.cursor_row == 1
         # every drawn line fits the terminal
         assert all(len(line) <= size[0] for line in str(plot.render()).splitlines())
-        await pilot.press("f9")
+        await pilot.press("ctrl+g")
         await pilot.pause()
         fault = app.screen
         assert isinstance(fault, FaultScreen)
@@ -121,6 +121,9 @@ async def test_a_folder_is_analysed_into_fibres_and_each_opens(
         await pilot.press("enter")
         await pilot.pause()
         assert screen.session.paired is not None and table.row_count == 3
+        await pilot.press("ctrl+y")  # the other direction drawn, same averaged table
+        await pilot.pause()
+        assert screen.session.shown == "BA" and table.row_count == 3
         await pilot.press("escape")
         await pilot.pause()
         assert screen.session.a is None and table.row_count == 1
@@ -146,7 +149,7 @@ async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
         await pilot.press("enter")
         await pilot.pause()
         for _round in range(2):
-            await pilot.press("ctrl+l")
+            await pilot.press("ctrl+s")
             await pilot.pause()
             await pilot.press("enter")  # the job
             await pilot.press("enter")  # its link

@@ -39,36 +39,31 @@ class TracesScreen(Screen[None]):
 
     CSS_PATH = "traces.tcss"
     AUTO_FOCUS = "#traces-a"
+    # Keys follow the project's key table: Ctrl+O open, Ctrl+S save onto a job's link (here:
+    # into a closure's splice log), Ctrl+G go to the result (here: the break, in Fault),
+    # Ctrl+Y cycle what the list shows, Esc close (back to the folder's fibres).
     BINDINGS = [
         Binding("ctrl+o", "open", "Open", id="traces.open", tooltip="Open the files typed above"),
         Binding(
-            # not Ctrl+B: that is tmux's prefix, and crews run fieldkit in tmux
-            "f9",
+            "ctrl+g",
             "send_fault",
             "To fault",
             id="traces.fault",
             tooltip="Send the selected event (or the end: the break) to the fault workspace",
         ),
         Binding(
-            "f7",
-            "direction",
-            "A→B/B→A",
-            id="traces.direction",
-            tooltip="Draw the other direction's trace",
-        ),
-        Binding(
-            "f8",
-            "instrument",
-            "Instr.",
-            id="traces.instrument",
-            tooltip="The instrument's own event table, or ours",
-        ),
-        Binding(
-            "ctrl+l",
+            "ctrl+s",
             "fill_splices",
             "Splice log",
             id="traces.splices",
             tooltip="Fill a closure's splice log on a job's link with these traces' losses",
+        ),
+        Binding(
+            "ctrl+y",
+            "cycle_view",
+            "Show",
+            id="traces.show",
+            tooltip="Cycle: A→B, B→A, the instrument's own events",
         ),
         Binding(
             "escape", "back", "Fibres", id="traces.back", tooltip="Back to the folder's fibres"
@@ -403,19 +398,28 @@ class TracesScreen(Screen[None]):
         self._fill_table()
         self.refresh_bindings()
 
-    def action_direction(self) -> None:
-        self._say(self.session.toggle_direction())
-        self._show()
-
-    def action_instrument(self) -> None:
+    def action_cycle_view(self) -> None:
+        """A→B, B→A (when both are open), then the instrument's own events of each."""
         s = self.session
         if s.current is None:
             return
-        if not s.current.trace.instrument_events and not s.instrument_table:
-            self._say("this file holds no instrument events")
-            return
-        s.instrument_table = not s.instrument_table
+        views = [("AB", False)]
+        if s.b is not None:
+            views.append(("BA", False))
+        for direction, result in (("AB", s.a), ("BA", s.b)):
+            if result is not None and result.trace.instrument_events:
+                views.append((direction, True))
+        k = (
+            views.index((s.shown, s.instrument_table))
+            if (s.shown, s.instrument_table) in views
+            else 0
+        )
+        s.shown, s.instrument_table = views[(k + 1) % len(views)]
         self.selected = None
+        which = "B→A" if s.shown == "BA" else "A→B"
+        self._say(
+            f"{which}: " + ("the instrument's own events" if s.instrument_table else "our events")
+        )
         self._show()
 
     async def action_send_fault(self) -> None:
