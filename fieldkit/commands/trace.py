@@ -77,6 +77,11 @@ def register(subparsers: Any) -> None:
     )
     folder.add_argument("folder", metavar="DIR", help="the folder holding the traces")
     folder.add_argument("--quiet", action="store_true", help="no progress bar")
+    folder.add_argument(
+        "--csv",
+        metavar="OUT",
+        help="also write the table as CSV (one row per fibre and wavelength)",
+    )
     _common(folder)
     folder.set_defaults(func=run_folder)
 
@@ -333,6 +338,8 @@ def run_folder(args: argparse.Namespace) -> int:
         raise CommandError(str(exc)) from None
     if result.files == 0:
         raise CommandError(f"{args.folder}: no trace files (.sor, .csv, .txt, .tsv, .dat)")
+    if args.csv:
+        _write_html(Path(args.csv), folder_csv(result))
     if args.json:
         print_json(result.to_json())
         return 0
@@ -388,7 +395,7 @@ def _write_html(path: Path, page: str) -> None:
     from fieldkit.fsutil import atomic_write_bytes
 
     if path.exists() and path.is_dir():
-        raise CommandError(f"--html: {path} is a folder")
+        raise CommandError(f"{path}: is a folder; give a file to write")
     atomic_write_bytes(path, page.encode("utf-8"))
 
 
@@ -596,3 +603,51 @@ def run_fill(args: argparse.Namespace) -> int:
     for fibre_no in done.unmatched:
         print(f"  fibre {fibre_no}: no event near the closure")
     return 0
+
+
+def folder_csv(result: Any) -> str:
+    """The folder's table as CSV: text cells escaped so a spreadsheet never runs them."""
+    import csv
+    import io
+
+    from fieldkit.text.escape import csv_cell
+
+    out = io.StringIO()
+    w = csv.writer(out, lineterminator="\r\n")
+    w.writerow(
+        [
+            "fibre",
+            "wavelength_nm",
+            "directions",
+            "length_m",
+            "total_loss_db",
+            "events",
+            "worst_distance_m",
+            "worst_loss_db",
+            "verdict",
+            "files",
+        ]
+    )
+
+    def num(value: float | None, digits: int) -> str:
+        return "" if value is None else f"{value:.{digits}f}"
+
+    for row in result.rows:
+        worst = row.worst()
+        w.writerow(
+            [
+                csv_cell(row.fibre),
+                num(row.wavelength_nm, 0),
+                csv_cell(row.directions),
+                num(row.length_m, 1),
+                num(row.total_loss_db, 3),
+                str(row.event_count),
+                num(worst[0] if worst else None, 1),
+                num(worst[1] if worst else None, 3),
+                csv_cell(row.verdict),
+                csv_cell(" ".join(r.trace.source for r in (row.a_to_b, row.b_to_a) if r)),
+            ]
+        )
+    for name, problem in result.unread:
+        w.writerow([csv_cell(name), "", "", "", "", "", "", "", "unread", csv_cell(problem)])
+    return out.getvalue()

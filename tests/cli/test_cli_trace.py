@@ -157,3 +157,16 @@ def test_fill_splices_writes_then_asks_before_overwriting(cable: Path, isolated_
     )
     forced = run("fill-splices", "--folder", str(cable), *args, "--overwrite")
     assert forced.returncode == 0, forced.stderr
+
+
+def test_folder_csv_has_a_row_per_fibre(cable: Path, tmp_path: Path):
+    import csv
+
+    out = tmp_path / "cable.csv"
+    result = run("folder", str(cable), "--csv", str(out), "--quiet")
+    assert result.returncode == 0, result.stderr
+    rows = list(csv.DictReader(out.read_text(encoding="utf-8").splitlines()))
+    assert [r["fibre"] for r in rows] == ["1", "2"]
+    assert all(r["directions"] == "A→B+B→A" and r["verdict"] for r in rows)
+    # example_fibre: 8 km span
+    assert float(rows[0]["length_m"]) == pytest.approx(8000.0, abs=1.0)
