@@ -1,15 +1,20 @@
-"""Named field parsers: one rule per field, used by the CLI, the workspaces and preset files.
+"""Named field parsers: one rule per field, used by the CLI, the workspaces and files alike.
 
-Each parser takes what the user typed and returns a typed value or raises
-:class:`fieldkit.calc.units.InputError` with one line naming the field and the problem.
+Each parser takes what a person typed (or a number from a file) and the field's name, and returns
+a bare value in the unit of its name, or raises :class:`fieldkit.calc.units.InputError` with one
+line naming the field and the problem. Nothing here knows about the terminal, argparse or Textual.
 """
 
 from __future__ import annotations
 
+import math
 import re
+from typing import Any
 
+from fieldkit.calc import budget as b
+from fieldkit.calc.fibre import check_wavelength_nm
 from fieldkit.calc.splicing import PlanRange
-from fieldkit.calc.units import InputError, Kind, parse, parse_number
+from fieldkit.calc.units import InputError, Kind, format_number, parse, parse_number
 
 #: The largest cables made hold 6912 fibres (common practice).
 MAX_FIBRE_NUMBER = 6912
@@ -146,3 +151,198 @@ def plan_text(rows: list[PlanRange], cable_a: str, cable_b: str) -> str:
                 + side(row.cable_b, row.first_b, row.last_b, cable_b)
             )
     return "; ".join(out)
+
+
+#: The most things of one kind fieldkit counts in a link (connections, splices, components).
+MAX_COUNT = 10_000
+
+_SPLITTER = re.compile(r"^\s*([12])\s*[x×X:]\s*(\d+)\s*$")
+_PAIR = re.compile(r"^\s*(\d+(?:[.,]\d+)?\s*(?:nm)?)\s*[=:@]\s*(.+?)\s*$")
+
+
+def _text_or_number(value: Any, what: str) -> str:
+    if isinstance(value, bool) or value is None:
+        raise InputError(f"{what}: {value!r} is not a value")
+    if isinstance(value, (int, float)):
+        if not math.isfinite(value):
+            raise InputError(f"{what}: {value} is not a finite number")
+        return repr(value)
+    if isinstance(value, str):
+        return value
+    raise InputError(f"{what}: {value!r} is not a value")
+
+
+def length_m(value: Any, what: str = "length") -> float:
+    """A length typed with its unit ("12.4 km", "3900 ft"), in m; negative refused."""
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        _text_or_number(value, what)  # NaN and infinity are refused as such
+        raise InputError(f"{what}: {format_number(float(value))} needs a unit (m, km, ft, kft, mi)")
+    metres = parse(_text_or_number(value, what), Kind.LENGTH, what=what).to("m")
+    if metres < 0:
+        raise InputError(f"{what}: {format_number(metres)} m is negative")
+    if not math.isfinite(metres) or metres > b.MAX_LENGTH_M:
+        raise InputError(f"{what}: {value} is longer than any fibre link; check the unit")
+    return metres
+
+
+def otdr_distance_m(text: str, what: str = "distance") -> float:
+    """A distance as an OTDR shows it, in m. A bare number is refused: instruments show km or m
+    depending on the range, so "3.412" could be 3.412 km or 3.412 m.
+
+    Raises
+    ------
+    InputError
+        For a number without a unit (asking for one), or anything :func:`length_m` refuses.
+    """
+    try:
+        number = parse_number(text, what)
+    except InputError:
+        return length_m(text, what)
+    shown = format_number(number)
+    if number < 0:
+        raise InputError(f"{what}: {shown} is negative; an OTDR distance is 0 or more")
+    raise InputError(f"{what}: {shown} needs a unit, as the OTDR shows it: {shown} km or {shown} m")
+
+
+def loss_db(value: Any, what: str = "loss") -> float:
+    """A loss in dB (a bare number is dB); negative refused."""
+    db = parse(_text_or_number(value, what), Kind.RATIO, default_unit="dB", what=what).to("dB")
+    if db < 0:
+        raise InputError(f"{what}: {format_number(db)} dB is negative; a loss is 0 or more")
+    if db > b.MAX_LOSS_DB:
+        raise InputError(
+            f"{what}: {format_number(db)} dB is more than fieldkit accepts "
+            f"({format_number(b.MAX_LOSS_DB)} dB); check the unit"
+        )
+    return db
+
+
+def attenuation_db_per_km(value: Any, what: str = "attenuation") -> float:
+    """An attenuation coefficient with its length unit ("0.35 dB/km", "0.1 dB/kft")."""
+    text = _text_or_number(value, what)
+    try:
+        coef = parse(text, Kind.ATTENUATION, what=what).to("dB/km")
+    except InputError as exc:
+        if re.fullmatch(r"\s*[-+]?[\d.,]+\s*(dB)?\s*", text, flags=re.IGNORECASE):
+            raise InputError(
+                f"{what}: '{text.strip()}' has no length unit; type it as dB/km, dB/kft, dB/mi "
+                "or dB/m"
+            ) from None
+        raise exc
+    if coef < 0:
+        raise InputError(f"{what}: {format_number(coef)} dB/km is negative")
+    if coef > 1000:
+        raise InputError(
+            f"{what}: {format_number(coef)} dB/km is more than any fibre; check the unit"
+        )
+    return coef
+
+
+def attenuation_entry(values: str | list[str], what: str = "attenuation") -> str | dict[str, str]:
+    """Typed attenuation as a link description keeps it: one coefficient for every wavelength,
+    or ``NM=COEF`` per wavelength, separated by ``;`` (``1310=0.35 dB/km; 1550=0.22 dB/km``) or
+    given one per option (``--attenuation 1310=... --attenuation 1550=...``). The same rule for
+    the command line and the workspace.
+
+    Raises
+    ------
+    InputError
+        For a mix of bare coefficients and pairs, or more than one bare coefficient.
+    """
+    texts = [values] if isinstance(values, str) else list(values)
+    parts = [p for text in texts for p in text.split(";") if p.strip()]
+    pairs = [_PAIR.match(p) for p in parts]
+    if parts and all(pairs):
+        return {m.group(1).strip(): m.group(2) for m in pairs if m}
+    if len(parts) == 1:
+        return parts[0]
+    if not parts:
+        raise InputError(f"{what}: empty; type a coefficient such as 0.35 dB/km")
+    raise InputError(
+        f"{what}: give one coefficient, or NM=COEF for each wavelength (separated by ';')"
+    )
+
+
+def wavelength_nm(value: Any, what: str = "wavelength") -> float:
+    """A wavelength in nm (a bare number is nm), inside the fibre bands
+    (:data:`fieldkit.calc.fibre.FIBRE_BAND_NM`)."""
+    nm = parse(_text_or_number(value, what), Kind.LENGTH, default_unit="nm", what=what).to("nm")
+    return check_wavelength_nm(nm, what)
+
+
+def wavelength_list(value: Any, what: str = "wavelength") -> list[float]:
+    """Wavelengths typed as one value or a list ("1310, 1550", "1310 1550 nm").
+
+    Commas separate wavelengths here: "1310,1550" is two wavelengths, never 1310.155 nm.
+    """
+    if isinstance(value, (list, tuple)):
+        return [nm for v in value for nm in wavelength_list(v, what)]
+    if isinstance(value, str):
+        parts = [p for p in re.split(r"[,;\s]+(?!nm\b)", value.strip()) if p]
+        if not parts:
+            raise InputError(f"{what}: empty; type a wavelength in nm, e.g. 1310")
+        return [wavelength_nm(p, what) for p in parts]
+    return [wavelength_nm(value, what)]
+
+
+def item_count(value: Any, what: str) -> int:
+    """A whole number of things in a link (connections, splices, components), 0 or more."""
+    if isinstance(value, bool):
+        raise InputError(f"{what}: {value!r} is not a number")
+    number = value if isinstance(value, int) else parse_number(_text_or_number(value, what), what)
+    if isinstance(number, float):
+        if not number.is_integer():
+            raise InputError(f"{what}: {format_number(number)} is not a whole number")
+        number = int(number)
+    if number < 0:
+        raise InputError(f"{what}: {number} is negative")
+    if number > MAX_COUNT:
+        shown = str(number) if number < 10**12 else f"a {len(str(number))}-digit number"
+        raise InputError(f"{what}: {shown} is more than fieldkit will count ({MAX_COUNT})")
+    return int(number)
+
+
+def splitter(text: Any, what: str = "splitter") -> tuple[int, int]:
+    """``"1x32"`` → (1, 32); 1xN and 2xN with N ≥ 2."""
+    if not isinstance(text, str):
+        raise InputError(f"{what}: write the split as 1xN or 2xN, e.g. 1x32")
+    match = _SPLITTER.match(text)
+    if not match:
+        raise InputError(f"{what}: '{text}' is not 1xN or 2xN (e.g. 1x32)")
+    inputs, outputs = int(match.group(1)), int(match.group(2))
+    if outputs < 2:
+        raise InputError(f"{what}: {text} has fewer than 2 outputs")
+    if outputs > 1024:
+        raise InputError(f"{what}: {outputs} outputs is more than a passive splitter has")
+    return inputs, outputs
+
+
+def level_dbm(value: Any, what: str) -> float:
+    """A transmitter or receiver level typed in dBm or dBW or a linear power; a bare number is
+    dBm. (Meter readings go through :func:`fieldkit.calc.reference.level_dbm`, which also
+    refuses levels no power meter reads.)"""
+    return parse(_text_or_number(value, what), Kind.POWER, default_unit="dBm", what=what).to("dBm")
+
+
+def bit_rate_gbd(value: Any, what: str = "bit rate") -> float:
+    """A line rate in GBd (a bare number is GBd; ``10.3125 Gb/s`` and ``1250 MBd`` too)."""
+    text = _text_or_number(value, what).strip()
+    match = re.fullmatch(r"(.*?)\s*([GM])(?:b/s|bps|bd|baud)?", text, flags=re.IGNORECASE)
+    scale = 1.0
+    if match and match.group(1):
+        text, scale = match.group(1), (1.0 if match.group(2).upper() == "G" else 1e-3)
+    rate = parse_number(text, what) * scale
+    if not 0.0 < rate <= 1000.0:
+        raise InputError(f"{what}: {format_number(rate)} GBd is outside 0–1000 GBd")
+    return rate
+
+
+def spectral_width_nm(value: Any, what: str = "spectral width") -> float:
+    """A source's RMS spectral width in nm (a bare number is nm; ``0.1 nm`` too)."""
+    text = _text_or_number(value, what).strip()
+    if text.lower().endswith("nm"):
+        text = text[:-2]
+    width = parse_number(text, what)
+    if not 0.0 < width <= 100.0:
+        raise InputError(f"{what}: {format_number(width)} nm is outside 0–100 nm")
+    return width

@@ -32,8 +32,6 @@ Every problem raises :class:`InputError` naming the place ("segment 2: length: .
 from __future__ import annotations
 
 import json
-import math
-import re
 import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field
@@ -42,7 +40,17 @@ from typing import Any
 
 from fieldkit.calc import budget as b
 from fieldkit.calc.fibre import Fibre, lookup
-from fieldkit.calc.units import InputError, Kind, format_number, parse, parse_number
+from fieldkit.calc.units import InputError, format_number
+from fieldkit.inputs import (
+    attenuation_db_per_km,
+    item_count,
+    length_m,
+    level_dbm,
+    loss_db,
+    wavelength_list,
+    wavelength_nm,
+)
+from fieldkit.inputs import splitter as parse_splitter
 from fieldkit.presets import ComponentPreset, PresetLibrary
 
 DEFAULT_CONNECTOR_GRADE = "TIA-568.3-D"
@@ -68,7 +76,6 @@ _TOP_KEYS = {
     "connector_loss_db",
     "length_m",
 }
-_SPLITTER = re.compile(r"^\s*([12])\s*[x×X:]\s*(\d+)\s*$")
 
 
 @dataclass(frozen=True)
@@ -134,107 +141,6 @@ def _refuse_constant(name: str) -> Any:
 
 
 # -- value helpers -----------------------------------------------------------------------------
-
-
-def _text_or_number(value: Any, what: str) -> str:
-    if isinstance(value, bool) or value is None:
-        raise InputError(f"{what}: {value!r} is not a value")
-    if isinstance(value, (int, float)):
-        if not math.isfinite(value):
-            raise InputError(f"{what}: {value} is not a finite number")
-        return repr(value)
-    if isinstance(value, str):
-        return value
-    raise InputError(f"{what}: {value!r} is not a value")
-
-
-def length_m(value: Any, what: str = "length") -> float:
-    """A length typed with its unit ("12.4 km", "3900 ft"), in m; negative refused."""
-    if isinstance(value, (int, float)) and not isinstance(value, bool):
-        _text_or_number(value, what)  # NaN and infinity are refused as such
-        raise InputError(f"{what}: {format_number(float(value))} needs a unit (m, km, ft, kft, mi)")
-    metres = parse(_text_or_number(value, what), Kind.LENGTH, what=what).to("m")
-    if metres < 0:
-        raise InputError(f"{what}: {format_number(metres)} m is negative")
-    if not math.isfinite(metres) or metres > b.MAX_LENGTH_M:
-        raise InputError(f"{what}: {value} is longer than any fibre link; check the unit")
-    return metres
-
-
-def loss_db(value: Any, what: str = "loss") -> float:
-    """A loss in dB (a bare number is dB); negative refused."""
-    db = parse(_text_or_number(value, what), Kind.RATIO, default_unit="dB", what=what).to("dB")
-    if db < 0:
-        raise InputError(f"{what}: {format_number(db)} dB is negative; a loss is 0 or more")
-    if db > b.MAX_LOSS_DB:
-        raise InputError(
-            f"{what}: {format_number(db)} dB is more than fieldkit accepts "
-            f"({format_number(b.MAX_LOSS_DB)} dB); check the unit"
-        )
-    return db
-
-
-def attenuation_db_per_km(value: Any, what: str = "attenuation") -> float:
-    """An attenuation coefficient with its length unit ("0.35 dB/km", "0.1 dB/kft")."""
-    text = _text_or_number(value, what)
-    try:
-        coef = parse(text, Kind.ATTENUATION, what=what).to("dB/km")
-    except InputError as exc:
-        if re.fullmatch(r"\s*[-+]?[\d.,]+\s*(dB)?\s*", text, flags=re.IGNORECASE):
-            raise InputError(
-                f"{what}: '{text.strip()}' has no length unit; type it as dB/km, dB/kft, dB/mi "
-                "or dB/m"
-            ) from None
-        raise exc
-    if coef < 0:
-        raise InputError(f"{what}: {format_number(coef)} dB/km is negative")
-    if coef > 1000:
-        raise InputError(
-            f"{what}: {format_number(coef)} dB/km is more than any fibre; check the unit"
-        )
-    return coef
-
-
-def wavelength_nm(value: Any, what: str = "wavelength") -> float:
-    """A wavelength in nm (a bare number is nm)."""
-    nm = parse(_text_or_number(value, what), Kind.LENGTH, default_unit="nm", what=what).to("nm")
-    if not 200.0 <= nm <= 2000.0:
-        raise InputError(
-            f"{what}: {format_number(nm)} nm is not an optical wavelength (200–2000 nm)"
-        )
-    return nm
-
-
-def wavelength_list(value: Any, what: str = "wavelength") -> list[float]:
-    """Wavelengths typed as one value or a list ("1310, 1550", "1310 1550 nm").
-
-    Commas separate wavelengths here: "1310,1550" is two wavelengths, never 1310.155 nm.
-    """
-    if isinstance(value, (list, tuple)):
-        return [nm for v in value for nm in wavelength_list(v, what)]
-    if isinstance(value, str):
-        parts = [p for p in re.split(r"[,;\s]+(?!nm\b)", value.strip()) if p]
-        if not parts:
-            raise InputError(f"{what}: empty; type a wavelength in nm, e.g. 1310")
-        return [wavelength_nm(p, what) for p in parts]
-    return [wavelength_nm(value, what)]
-
-
-def count(value: Any, what: str) -> int:
-    """A whole number of things, 0 or more."""
-    if isinstance(value, bool):
-        raise InputError(f"{what}: {value!r} is not a number")
-    number = value if isinstance(value, int) else parse_number(_text_or_number(value, what), what)
-    if isinstance(number, float):
-        if not number.is_integer():
-            raise InputError(f"{what}: {format_number(number)} is not a whole number")
-        number = int(number)
-    if number < 0:
-        raise InputError(f"{what}: {number} is negative")
-    if number > 10_000:
-        shown = str(number) if number < 10**12 else f"a {len(str(number))}-digit number"
-        raise InputError(f"{what}: {shown} is more than fieldkit will count (10000)")
-    return int(number)
 
 
 def _table(value: Any, what: str) -> Mapping[str, Any]:
@@ -316,7 +222,7 @@ def resolve(spec: Mapping[str, Any], library: PresetLibrary) -> ResolvedBudget:
         application = application_limits(library, spec["application"], link)
     transceiver = None
     if spec.get("transceiver"):
-        transceiver = _transceiver(spec["transceiver"], library)
+        transceiver = _transceiver(spec["transceiver"], library, link.family)
     if not wavelengths:
         link = _add_check_wavelengths(link, application, transceiver)
     return ResolvedBudget(link, application, transceiver, dict(spec))
@@ -412,7 +318,7 @@ def _connectors(raw: Any, library: PresetLibrary) -> b.Connections | None:
     what = "connectors"
     table = _table(raw, what)
     _only(table, {"count", "grade", "loss", "loss_db"}, what)
-    n = count(table.get("count", DEFAULT_CONNECTORS), "mated connector pairs")
+    n = item_count(table.get("count", DEFAULT_CONNECTORS), "mated connector pairs")
     typed = _loss_field(table, what)
     if typed is not None:
         if "grade" in table:
@@ -441,7 +347,7 @@ def _splices(raw: Any, library: PresetLibrary) -> tuple[b.Splices, ...]:
         what = f"splices {index}"
         table = _table(item, what)
         _only(table, {"count", "grade", "method", "loss", "loss_db"}, what)
-        n = count(table.get("count", 0), f"{what}: count")
+        n = item_count(table.get("count", 0), f"{what}: count")
         typed = _loss_field(table, what)
         if typed is not None:
             if "grade" in table:
@@ -470,21 +376,6 @@ def _splices(raw: Any, library: PresetLibrary) -> tuple[b.Splices, ...]:
             )
         )
     return tuple(out)
-
-
-def parse_splitter(text: Any, what: str = "splitter") -> tuple[int, int]:
-    """``"1x32"`` → (1, 32); 1xN and 2xN with N ≥ 2."""
-    if not isinstance(text, str):
-        raise InputError(f"{what}: write the split as 1xN or 2xN, e.g. 1x32")
-    match = _SPLITTER.match(text)
-    if not match:
-        raise InputError(f"{what}: '{text}' is not 1xN or 2xN (e.g. 1x32)")
-    inputs, outputs = int(match.group(1)), int(match.group(2))
-    if outputs < 2:
-        raise InputError(f"{what}: {text} has fewer than 2 outputs")
-    if outputs > 1024:
-        raise InputError(f"{what}: {outputs} outputs is more than a passive splitter has")
-    return inputs, outputs
 
 
 def splitter_component(
@@ -544,7 +435,7 @@ def _components(raw: Any, library: PresetLibrary) -> tuple[b.Component, ...]:
             {"splitter", "preset", "kind", "name", "loss", "loss_db", "excess", "count"},
             what,
         )
-        n = count(table.get("count", 1), f"{what}: count")
+        n = item_count(table.get("count", 1), f"{what}: count")
         if "splitter" in table:
             out.append(
                 splitter_component(
@@ -610,8 +501,17 @@ def application_limits(
     if not isinstance(name, str):
         raise InputError("application: must be a preset name")
     preset = library.find("applications", name)
-    fibre_names = tuple(s.fibre.name for s in link.segments if s.fibre.family is not None)
-    key, limit = preset.limit_for(fibre_names, link.family)
+    fibres = tuple(
+        {s.fibre.name: s.fibre for s in link.segments if s.fibre.family is not None}.values()
+    )
+    key, limit = preset.limit_for(fibres, link.family)
+    names = [f.name for f in fibres]
+    rows = {preset.row_key(f.name, link.family) for f in fibres}
+    reason = ""
+    if len(rows) > 1:
+        reason = f"the {key} row, the lowest-grade fibre of {' + '.join(names)}"
+    elif len(names) > 1:
+        reason = f"the {key} row, which covers {' + '.join(names)}"
     return b.ApplicationLimits(
         name=preset.name,
         fibre=key,
@@ -620,15 +520,11 @@ def application_limits(
         wavelengths_nm=preset.wavelengths_nm,
         loss_min_db=limit.loss_min_db,
         source=preset.source,
+        row_reason=reason,
     )
 
 
 _TX_FIELDS = ("tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm", "rx_overload_dbm")
-
-
-def level_dbm(value: Any, what: str) -> float:
-    """A level typed in dBm or dBW or a linear power; a bare number is dBm."""
-    return parse(_text_or_number(value, what), Kind.POWER, default_unit="dBm", what=what).to("dBm")
 
 
 def transceiver_from_levels(
@@ -651,22 +547,30 @@ def transceiver_from_levels(
     )
 
 
-def transceiver_preset(library: PresetLibrary, name: str) -> b.Transceiver:
+def transceiver_preset(
+    library: PresetLibrary, name: str, family: str | None = None
+) -> b.Transceiver:
+    """The transceiver preset ``name`` with its levels for the link's fibre ``family`` (the
+    launch power of some classes differs between multimode and single-mode fibre)."""
     p = library.find("transceivers", name)
+    levels, for_family = p.levels_for(family)
     return b.Transceiver(
-        p.tx_min_dbm,
-        p.tx_max_dbm,
-        p.rx_sensitivity_dbm,
-        p.rx_overload_dbm,
+        levels.tx_min_dbm,
+        levels.tx_max_dbm,
+        levels.rx_sensitivity_dbm,
+        levels.rx_overload_dbm,
         name=p.name,
         wavelength_nm=p.wavelength_nm,
         source=p.source,
+        family=for_family,
+        dispersion_tolerance_ps_nm=p.dispersion_tolerance_ps_nm,
+        line_rate_gbd=p.line_rate_gbd,
     )
 
 
-def _transceiver(raw: Any, library: PresetLibrary) -> b.Transceiver:
+def _transceiver(raw: Any, library: PresetLibrary, family: str | None = None) -> b.Transceiver:
     if isinstance(raw, str):
-        return transceiver_preset(library, raw)
+        return transceiver_preset(library, raw, family)
     table = _table(raw, "transceiver")
     _only(table, {*(_TX_FIELDS), "name", "wavelength"}, "transceiver")
     missing = [k for k in _TX_FIELDS if k not in table]
@@ -743,84 +647,3 @@ def budget_record(resolved: ResolvedBudget, report: b.BudgetReport, by: str = ""
         application=None if report.application is None else report.application.as_dict(),
         transceiver=None if report.transceiver is None else report.transceiver.as_dict(),
     )
-
-
-def _db(x: float | None) -> str:
-    return "—" if x is None else f"{x:.2f} dB".replace("-", "\u2212")
-
-
-def _pass(flag: bool | None) -> str:
-    return "n/a" if flag is None else ("PASS" if flag else "FAIL")
-
-
-def report_lines(report: b.BudgetReport) -> list[str]:
-    """The budget as plain text lines (the CLI's output; the workspace shows the same)."""
-    r = report.result
-    lines: list[str] = []
-    label = report.extra.get("label")
-    if label:
-        lines.append(str(label))
-    length = (
-        f"{format_number(r.length_m / 1000.0)} km"
-        if r.length_m >= 1000
-        else f"{format_number(r.length_m)} m"
-    )
-    lines.append(f"Fibre length {length}; design margin {_db(r.margin_db)}")
-    for w in r.wavelengths:
-        lines.append("")
-        lines.append(
-            f"At {format_number(w.wavelength_nm)} nm: maximum {_db(w.loss_db)}, "
-            f"typical {_db(w.typical_loss_db)}, with margin {_db(w.loss_with_margin_db)}"
-        )
-        for item in w.items:
-            typ = "" if item.typical_loss_db is None else f" (typical {_db(item.typical_loss_db)})"
-            lines.append(f"  {item.loss_db:7.2f} dB  {item.name}{typ}")
-        lines.append(f"  {w.loss_db:7.2f} dB  total")
-    for note in r.notes:
-        lines.append(f"Note: {note}")
-    app = report.application
-    if app is not None:
-        lines.append("")
-        lines.append(f"Application {app.name} on {app.fibre}: {_pass(app.passed)}")
-        lines.append(
-            f"  loss {_db(app.loss_db)} at {format_number(app.wavelength_nm)} nm, "
-            f"limit {_db(app.loss_max_db)}, headroom {_db(app.loss_headroom_db)}: "
-            f"{_pass(app.loss_pass)}"
-        )
-        lines.append(f"  after the design margin headroom {_db(app.margin_headroom_db)}")
-        lines.append(
-            f"  length {format_number(app.length_m)} m, reach "
-            f"{format_number(app.reach_m)} m, headroom "
-            f"{format_number(app.length_headroom_m)} m: {_pass(app.length_pass)}"
-        )
-        if app.loss_min_db is not None:
-            lines.append(
-                f"  lowest plausible loss {_db(app.link_loss_min_db)}, class minimum "
-                f"{_db(app.loss_min_db)}: {_pass(app.min_pass)}"
-            )
-    tx = report.transceiver
-    if tx is not None:
-        lines.append("")
-        where = "" if tx.wavelength_nm is None else f" at {format_number(tx.wavelength_nm)} nm"
-        lines.append(f"Transceiver {tx.name}{where}: {_pass(tx.passed)}")
-        lines.append(
-            f"  power budget {_db(tx.power_budget_db)}; margin after the maximum loss "
-            f"{_db(tx.margin_db)} (needs {_db(tx.required_margin_db)}): "
-            f"{_pass(tx.margin_pass)}"
-        )
-        if tx.overload:
-            if tx.attenuator_fits and tx.attenuator_db is not None:
-                lines.append(
-                    f"  receiver overload: add an attenuator of "
-                    f"{_db(tx.attenuator_db)} (fits from {_db(tx.attenuator_min_db)} "
-                    f"to {_db(tx.attenuator_max_db)})"
-                )
-            else:
-                lines.append(
-                    f"  receiver overload: needs at least {_db(tx.attenuator_min_db)}, "
-                    f"but more than {_db(tx.attenuator_max_db)} loses the margin; "
-                    "no attenuator fits"
-                )
-        else:
-            lines.append("  no attenuator needed")
-    return lines

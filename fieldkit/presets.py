@@ -20,14 +20,14 @@ from __future__ import annotations
 
 import math
 import tomllib
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from fieldkit.calc.fibre import Fibre
-from fieldkit.calc.units import InputError, parse_number
+from fieldkit.calc.fibre import Fibre, check_wavelength_nm, rayleigh_scaled_db_per_km
+from fieldkit.calc.units import InputError, format_number, parse_number
 
 KINDS: tuple[str, ...] = (
     "fibres",
@@ -39,6 +39,7 @@ KINDS: tuple[str, ...] = (
     "cables",
     "colour_sequences",
     "splice_plans",
+    "reflectance",
 )
 
 COMPONENT_KINDS = ("splitter", "wdm", "filter", "attenuator", "other")
@@ -111,40 +112,74 @@ class ApplicationPreset:
     source: str
     origin: str = ""
 
-    def limit_for(
-        self, fibre_names: tuple[str, ...], family: str | None
-    ) -> tuple[str, ApplicationFibreLimit]:
-        """The limits for the fibre types of a link: the strictest over the types present.
+    line_rate_gbd: float | None = None
 
-        Looks each fibre up by name, then by family ("singlemode", "multimode").
+    def row_key(self, fibre_name: str, family: str | None) -> str | None:
+        """The key of the row for one fibre: by its name, else by its family, else None."""
+        keys = {k.lower(): k for k in self.limits}
+        return keys.get(fibre_name.lower()) or (keys.get(family.lower()) if family else None)
+
+    def has_row_for(self, fibre_names: tuple[str, ...], family: str | None) -> bool:
+        """True when every fibre of a link has a row (by name or by family)."""
+        return all(self.row_key(name, family) is not None for name in fibre_names or ("",))
+
+    def limit_for(
+        self, fibres: Sequence[Fibre] | tuple[str, ...], family: str | None
+    ) -> tuple[str, ApplicationFibreLimit]:
+        """The row a link is judged on: the row of the lowest-grade fibre present.
+
+        Each fibre is looked up by name, then by family ("singlemode", "multimode"). A link that
+        mixes fibre types is judged on one row of the standard, never on a mix of rows (the
+        smallest loss of one and the shortest reach of another belongs to no row). The lowest
+        grade is the fibre with the lowest modal bandwidth at the application's first wavelength
+        when every multimode fibre present has one; otherwise the row with the shortest reach
+        (reach falls with the grade in every application table), then the lowest loss.
 
         Raises
         ------
         InputError
-            When the application has no limits for a fibre of the link.
+            When the application has no row for a fibre of the link.
         """
-        found: list[tuple[str, ApplicationFibreLimit]] = []
-        keys = {k.lower(): k for k in self.limits}
-        for name in fibre_names or ("",):
-            key = keys.get(name.lower()) or (keys.get(family.lower()) if family else None)
+        found: list[tuple[str, ApplicationFibreLimit, float | None]] = []
+        items: list[tuple[str, Fibre | None]] = [
+            (f, None) if isinstance(f, str) else (f.name, f) for f in fibres
+        ] or [("", None)]
+        nm = self.wavelengths_nm[0]
+        for name, fibre in items:
+            key = self.row_key(name, family)
             if key is None and len(self.limits) == 1 and not name:
                 key = next(iter(self.limits))
             if key is None:
                 have = ", ".join(self.limits)
+                what = name or "of unknown type"
+                hint = ""
+                if fibre is not None and fibre.below_cutoff(nm):
+                    hint = (
+                        f"; {fibre.name} is single-mode and {format_number(nm)} nm is below its "
+                        "cable cut-off, where it carries a few modes: a multimode application "
+                        "does not run on it"
+                    )
                 raise InputError(
-                    f"application {self.name}: no limits for fibre {name or 'of unknown type'} "
-                    f"(it has limits for {have})"
+                    f"application {self.name}: no limits for fibre {what} "
+                    f"(it has limits for {have}){hint}"
                 )
-            found.append((key, self.limits[key]))
-        key, _ = min(found, key=lambda kv: (kv[1].loss_max_db, kv[1].reach_m))
-        strictest = ApplicationFibreLimit(
-            loss_max_db=min(v.loss_max_db for _, v in found),
-            reach_m=min(v.reach_m for _, v in found),
-            loss_min_db=max(
-                (v.loss_min_db for _, v in found if v.loss_min_db is not None), default=None
-            ),
-        )
-        return "+".join(dict.fromkeys(k for k, _ in found)), strictest
+            bandwidth = None if fibre is None else fibre.modal_bandwidth(nm)
+            found.append((key, self.limits[key], bandwidth))
+        if len(found) > 1 and all(bw is not None for _, _, bw in found):
+            key, limit, _ = min(found, key=lambda f: (f[2], f[1].reach_m, f[1].loss_max_db))
+        else:
+            key, limit, _ = min(found, key=lambda f: (f[1].reach_m, f[1].loss_max_db))
+        return key, limit
+
+
+@dataclass(frozen=True)
+class TransceiverLevels:
+    """Transmitter launch power and receiver range in dBm (average power)."""
+
+    tx_min_dbm: float
+    tx_max_dbm: float
+    rx_sensitivity_dbm: float
+    rx_overload_dbm: float
 
 
 @dataclass(frozen=True)
@@ -159,6 +194,22 @@ class TransceiverPreset:
     rx_overload_dbm: float
     source: str
     origin: str = ""
+    by_family: Mapping[str, TransceiverLevels] = field(default_factory=dict)
+    dispersion_tolerance_ps_nm: float | None = None
+    line_rate_gbd: float | None = None
+
+    def levels_for(self, family: str | None) -> tuple[TransceiverLevels, str | None]:
+        """The levels on a fibre family, and the family they are for (None: the default
+        levels). A transceiver whose launch power differs by fibre family (1000BASE-LX into
+        multimode or single-mode fibre) holds the other family's levels in ``by_family``."""
+        if family is not None and family in self.by_family:
+            return self.by_family[family], family
+        return (
+            TransceiverLevels(
+                self.tx_min_dbm, self.tx_max_dbm, self.rx_sensitivity_dbm, self.rx_overload_dbm
+            ),
+            None,
+        )
 
 
 @dataclass(frozen=True)
@@ -198,6 +249,19 @@ class SplicePlanPreset:
     origin: str = ""
 
 
+@dataclass(frozen=True)
+class ReflectancePreset:
+    """A single-mode reflectance limit: the highest discrete reflectance allowed for one event
+    (dB, negative), and the lowest optical return loss of the whole path (dB, positive) where
+    the standard sets one. For OTDR trace analysis and acceptance."""
+
+    name: str
+    reflectance_max_db: float
+    orl_min_db: float | None
+    source: str
+    origin: str = ""
+
+
 @dataclass
 class PresetLibrary:
     """Every loaded preset, by kind and name, and the problems met while loading."""
@@ -211,6 +275,7 @@ class PresetLibrary:
     cables: dict[str, CablePreset] = field(default_factory=dict)
     colour_sequences: dict[str, ColourSequencePreset] = field(default_factory=dict)
     splice_plans: dict[str, SplicePlanPreset] = field(default_factory=dict)
+    reflectance: dict[str, ReflectancePreset] = field(default_factory=dict)
     problems: list[str] = field(default_factory=list)
 
     def of_kind(self, kind: str) -> dict[str, Any]:
@@ -234,11 +299,25 @@ class PresetLibrary:
         for key, value in table.items():
             if _fold(key) == wanted:
                 return value
-        singular = {"fibres": "fibre", "colour_sequences": "colour sequence"}.get(
-            kind, kind[:-1].replace("_", " ")
-        )
+        singular = {
+            "fibres": "fibre",
+            "colour_sequences": "colour sequence",
+            "reflectance": "reflectance limit",
+        }.get(kind, kind[:-1].replace("_", " "))
         have = ", ".join(table) or "none"
         raise InputError(f"unknown {singular} '{name}' (known: {have})")
+
+    def applications_by_fit(
+        self, fibre_names: tuple[str, ...], family: str | None
+    ) -> tuple[list[str], list[str]]:
+        """Application names with a row for every fibre of the link first, then the others
+        (which need an explicit choice: their check says which fibre has no row)."""
+        fits: list[str] = []
+        others: list[str] = []
+        for name, app in self.applications.items():
+            known = bool(fibre_names) or family is not None
+            (fits if known and app.has_row_for(fibre_names, family) else others).append(name)
+        return fits, others
 
 
 def _fold(name: str) -> str:
@@ -423,9 +502,10 @@ def _wavelength_key(key: str, table: str) -> float:
         nm = parse_number(str(key), what=table)
     except InputError as exc:
         raise _EntryError(f"'{table}': key '{key}' is not a wavelength in nm") from exc
-    if not 200 <= nm <= 2000:
-        raise _EntryError(f"'{table}': {nm:g} nm is not an optical wavelength (200–2000 nm)")
-    return nm
+    try:
+        return check_wavelength_nm(nm, f"'{table}'")
+    except InputError as exc:
+        raise _EntryError(str(exc)) from None
 
 
 def _by_wavelength(
@@ -494,6 +574,23 @@ def _fibre(entry: Mapping[str, Any], origin: str) -> FibrePreset:
     for nm in defaults:
         if not any(abs(nm - have) <= 0.5 for have in att_max):
             raise _EntryError(f"default wavelength {nm:g} nm has no maximum attenuation")
+    bandwidth = _by_wavelength(entry, "modal_bandwidth_mhz_km", low=1.0, high=1e6)
+    if bandwidth and family != "multimode":
+        raise _EntryError("'modal_bandwidth_mhz_km' is for multimode fibre")
+    cutoff = _num(entry, "cable_cutoff_nm", required=False, low=200.0, high=2000.0)
+    slope = _num(entry, "dispersion_slope_ps_nm2_km", required=False, positive=True, high=1.0)
+    raw_zero = entry.get("zero_dispersion_nm")
+    zero: tuple[float, float] | None = None
+    if raw_zero is not None:
+        if not isinstance(raw_zero, list) or len(raw_zero) != 2:
+            raise _EntryError("'zero_dispersion_nm' must be [lowest, highest] in nm")
+        lo, hi = (_number(x, "zero_dispersion_nm") for x in raw_zero)
+        if not 200.0 <= lo <= hi <= 2000.0:
+            raise _EntryError("'zero_dispersion_nm' must be [lowest, highest], 200–2000 nm")
+        zero = (lo, hi)
+    if (zero is None) != (slope is None):
+        raise _EntryError("give 'zero_dispersion_nm' and 'dispersion_slope_ps_nm2_km' together")
+    estimated = _estimated(entry, att_max, att_typ)
     return FibrePreset(
         name=_text(entry, "name"),
         family=family,  # type: ignore[arg-type]
@@ -506,8 +603,41 @@ def _fibre(entry: Mapping[str, Any], origin: str) -> FibrePreset:
         source=_text(entry, "source"),
         standard=_text(entry, "standard", required=False),
         default_wavelengths_nm=defaults,
+        modal_bandwidth_mhz_km=bandwidth,
+        cable_cutoff_nm=cutoff,
+        zero_dispersion_nm=zero,
+        dispersion_slope_ps_nm2_km=slope,
+        estimated_nm=estimated,
         origin=origin,
     )
+
+
+def _estimated(
+    entry: Mapping[str, Any], att_max: dict[float, float], att_typ: dict[float, float]
+) -> tuple[float, ...]:
+    """Wavelengths listed in ``attenuation_estimated_nm``: each gets a maximum scaled from the
+    nearest tabulated one as Rayleigh scattering scales (and a typical value likewise, unless one
+    is given). The tables are filled in place."""
+    raw = entry.get("attenuation_estimated_nm", [])
+    if not isinstance(raw, list):
+        raise _EntryError("'attenuation_estimated_nm' must be a list of wavelengths")
+    out: list[float] = []
+    for x in raw:
+        nm = _number(x, "attenuation_estimated_nm")
+        if not 200 <= nm <= 2000:
+            raise _EntryError(f"'attenuation_estimated_nm': {nm:g} nm is not an optical wavelength")
+        if any(abs(nm - have) <= 0.5 for have in att_max):
+            raise _EntryError(
+                f"'attenuation_estimated_nm': {nm:g} nm already has a maximum attenuation"
+            )
+        if not att_max:
+            raise _EntryError("'attenuation_estimated_nm' needs a tabulated maximum to scale")
+        base = min(att_max, key=lambda have: abs(have - nm))
+        att_max[nm] = rayleigh_scaled_db_per_km(att_max[base], base, nm)
+        if nm not in att_typ and base in att_typ:
+            att_typ[nm] = rayleigh_scaled_db_per_km(att_typ[base], base, nm)
+        out.append(nm)
+    return tuple(out)
 
 
 def _typical_not_above(max_db: float | None, typ_db: float | None) -> None:
@@ -596,29 +726,66 @@ def _application(entry: Mapping[str, Any], origin: str) -> ApplicationPreset:
         limits,
         _text(entry, "source"),
         origin,
+        line_rate_gbd=_num(entry, "line_rate_gbd", required=False, positive=True, high=1e4),
     )
+
+
+def _levels(entry: Mapping[str, Any], base: TransceiverLevels | None = None) -> TransceiverLevels:
+    def get(key: str, low: float, fallback: float | None) -> float:
+        if key not in entry and fallback is not None:
+            return fallback
+        return _req(entry, key, low=low, high=30.0)
+
+    levels = TransceiverLevels(
+        get("tx_min_dbm", -60.0, None if base is None else base.tx_min_dbm),
+        get("tx_max_dbm", -60.0, None if base is None else base.tx_max_dbm),
+        get("rx_sensitivity_dbm", -80.0, None if base is None else base.rx_sensitivity_dbm),
+        get("rx_overload_dbm", -80.0, None if base is None else base.rx_overload_dbm),
+    )
+    if levels.tx_min_dbm > levels.tx_max_dbm:
+        raise _EntryError("'tx_min_dbm' is above 'tx_max_dbm'")
+    if levels.rx_sensitivity_dbm >= levels.rx_overload_dbm:
+        raise _EntryError("'rx_sensitivity_dbm' must be below 'rx_overload_dbm'")
+    return levels
 
 
 def _transceiver(entry: Mapping[str, Any], origin: str) -> TransceiverPreset:
-    tx_min = _req(entry, "tx_min_dbm", low=-60.0, high=30.0)
-    tx_max = _req(entry, "tx_max_dbm", low=-60.0, high=30.0)
-    rx_sens = _req(entry, "rx_sensitivity_dbm", low=-80.0, high=30.0)
-    rx_over = _req(entry, "rx_overload_dbm", low=-80.0, high=30.0)
-    if tx_min > tx_max:
-        raise _EntryError("'tx_min_dbm' is above 'tx_max_dbm'")
-    if rx_sens >= rx_over:
-        raise _EntryError("'rx_sensitivity_dbm' must be below 'rx_overload_dbm'")
+    levels = _levels(entry)
     wavelength = _num(entry, "wavelength_nm", required=False, low=200.0, high=2000.0)
+    raw_family = entry.get("by_family", {})
+    if not isinstance(raw_family, dict):
+        raise _EntryError("'by_family' must be a table of family = { tx_min_dbm, ... }")
+    by_family: dict[str, TransceiverLevels] = {}
+    for family, raw in raw_family.items():
+        if family not in ("multimode", "singlemode") or not isinstance(raw, dict):
+            raise _EntryError(
+                f"'by_family': '{family}' must be multimode or singlemode with a table of levels"
+            )
+        unknown = sorted(set(raw) - set(_TX_LEVELS))
+        if unknown:
+            raise _EntryError(f"'by_family.{family}': unknown field(s) {', '.join(unknown)}")
+        try:
+            by_family[family] = _levels(raw, levels)
+        except _EntryError as exc:
+            raise _EntryError(f"'by_family.{family}': {exc}") from None
     return TransceiverPreset(
         _text(entry, "name"),
         wavelength,
-        tx_min,
-        tx_max,
-        rx_sens,
-        rx_over,
+        levels.tx_min_dbm,
+        levels.tx_max_dbm,
+        levels.rx_sensitivity_dbm,
+        levels.rx_overload_dbm,
         _text(entry, "source"),
         origin,
+        by_family=by_family,
+        dispersion_tolerance_ps_nm=_num(
+            entry, "dispersion_tolerance_ps_nm", required=False, positive=True, high=1e6
+        ),
+        line_rate_gbd=_num(entry, "line_rate_gbd", required=False, positive=True, high=1e4),
     )
+
+
+_TX_LEVELS = ("tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm", "rx_overload_dbm")
 
 
 def _cable(entry: Mapping[str, Any], origin: str) -> CablePreset:
@@ -665,6 +832,16 @@ def _splice_plan(entry: Mapping[str, Any], origin: str) -> SplicePlanPreset:
     return SplicePlanPreset(_text(entry, "name"), plan, _text(entry, "source"), origin)
 
 
+def _reflectance(entry: Mapping[str, Any], origin: str) -> ReflectancePreset:
+    return ReflectancePreset(
+        name=_text(entry, "name"),
+        reflectance_max_db=_req(entry, "reflectance_max_db", low=-100.0, high=0.0),
+        orl_min_db=_num(entry, "orl_min_db", required=False, low=0.0, high=100.0),
+        source=_text(entry, "source"),
+        origin=origin,
+    )
+
+
 _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = {
     "fibres": (
         _fibre,
@@ -680,6 +857,11 @@ _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = 
             "attenuation_typical_db_per_km",
             "group_index",
             "mode_field_diameter_um",
+            "modal_bandwidth_mhz_km",
+            "cable_cutoff_nm",
+            "zero_dispersion_nm",
+            "dispersion_slope_ps_nm2_km",
+            "attenuation_estimated_nm",
             "notes",
         },
     ),
@@ -699,7 +881,10 @@ _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = 
             "notes",
         },
     ),
-    "applications": (_application, {"name", "kind", "wavelengths_nm", "limits", "source", "notes"}),
+    "applications": (
+        _application,
+        {"name", "kind", "wavelengths_nm", "limits", "line_rate_gbd", "source", "notes"},
+    ),
     "transceivers": (
         _transceiver,
         {
@@ -709,6 +894,9 @@ _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = 
             "tx_max_dbm",
             "rx_sensitivity_dbm",
             "rx_overload_dbm",
+            "by_family",
+            "dispersion_tolerance_ps_nm",
+            "line_rate_gbd",
             "source",
             "notes",
         },
@@ -722,4 +910,8 @@ _PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = 
         {"name", "colours", "tracer_colour", "tracer_on_tracer", "source", "notes"},
     ),
     "splice_plans": (_splice_plan, {"name", "plan", "source", "notes"}),
+    "reflectance": (
+        _reflectance,
+        {"name", "reflectance_max_db", "orl_min_db", "source", "notes"},
+    ),
 }

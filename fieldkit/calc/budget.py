@@ -27,10 +27,10 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
-from typing import Any
+from typing import Any, Literal
 
 from fieldkit.calc import coupling
-from fieldkit.calc.fibre import Fibre
+from fieldkit.calc.fibre import Fibre, check_wavelength_nm
 from fieldkit.calc.units import InputError, format_number
 
 #: An application or transceiver wavelength matches a budget wavelength in the same window
@@ -248,10 +248,7 @@ class LinkDescription:
         _finite(self.margin_db, "design margin", low=0.0, high=MAX_LOSS_DB, unit=" dB")
         for nm in self.wavelengths_nm:
             _finite(nm, "wavelength", low=0.0)
-            if not 200.0 <= nm <= 2000.0:
-                raise InputError(
-                    f"wavelength: {_nm(nm)} is not an optical wavelength (200–2000 nm)"
-                )
+            check_wavelength_nm(nm)
         families = {s.fibre.family for s in self.segments if s.fibre.family is not None}
         if len(families) > 1:
             raise InputError(
@@ -498,7 +495,31 @@ def compute_budget(link: LinkDescription) -> BudgetResult:
 
 def _fibre_item(seg: Segment, nm: float, notes: list[str]) -> BudgetItem:
     fibre = seg.fibre
-    alpha = fibre.attenuation_db_per_km(nm, "max")
+    cutoff = None
+    if fibre.below_cutoff(nm):
+        cutoff = (
+            f"{fibre.name} is single-mode fibre: at {_nm(nm)}, below its cable cut-off "
+            f"({_nm(fibre.cable_cutoff_nm or 0.0)}), it carries a few modes, so a multimode "
+            "wavelength gives modal noise and no single-mode behaviour on it"
+        )
+        notes.append(cutoff)
+    try:
+        alpha = fibre.attenuation_db_per_km(nm, "max")
+    except InputError as exc:
+        if cutoff is None:
+            raise
+        raise InputError(f"{exc}; {cutoff}") from None
+    estimate = ""
+    if fibre.is_estimated(nm):
+        estimate = (
+            f"; at {_nm(nm)} no standard gives a maximum: {alpha:.3f} dB/km is an estimate, the "
+            "nearest standard maximum scaled as Rayleigh scattering scales (λ⁻⁴)"
+        )
+        notes.append(
+            f"{fibre.name} at {_nm(nm)}: {alpha:.3f} dB/km is an estimate (no standard gives a "
+            "maximum there; the nearest standard maximum scaled as Rayleigh scattering scales, "
+            "λ⁻⁴); use the cable's data sheet for an acceptance budget"
+        )
     km = seg.length_m / 1000.0
     typical = fibre.attenuation_db_per_km(nm, "typical") * km if fibre.has_typical(nm) else None
     if typical is None:
@@ -507,13 +528,14 @@ def _fibre_item(seg: Segment, nm: float, notes: list[str]) -> BudgetItem:
             "plausible loss uses the maximum"
         )
     label = f"{seg.label}: " if seg.label else ""
+    coefficient = f"{alpha:.3f} dB/km (estimate)" if estimate else f"{alpha:g} dB/km"
     return BudgetItem(
-        name=f"{label}{fibre.name} {_length_text(seg.length_m)} × {alpha:g} dB/km",
+        name=f"{label}{fibre.name} {_length_text(seg.length_m)} × {coefficient}",
         kind="fibre",
         loss_db=alpha * km,
         typical_loss_db=typical,
         loss_min_db=typical if typical is not None else alpha * km,
-        source=fibre.source or "typed value",
+        source=(fibre.source or "typed value") + estimate,
     )
 
 
@@ -641,6 +663,12 @@ class ApplicationLimits:
     wavelengths_nm: tuple[float, ...]
     loss_min_db: float | None = None
     source: str = ""
+    #: Why this row: e.g. "OM3, the lowest-grade fibre of OM3 + OM4" (empty for one fibre type).
+    row_reason: str = ""
+
+
+#: An application verdict: fits with the design margin, fits only without it, or does not fit.
+ApplicationVerdict = Literal["pass", "no-margin", "fail"]
 
 
 @dataclass(frozen=True)
@@ -664,16 +692,28 @@ class ApplicationCheck:
     min_pass: bool | None
     per_wavelength: tuple[tuple[float, float, float], ...]  # (nm, loss, headroom)
     source: str
+    row_reason: str = ""
 
     @property
     def passed(self) -> bool:
+        """Within the application's limits (loss, length, class minimum), margin aside."""
         return self.loss_pass and self.length_pass and self.min_pass is not False
+
+    @property
+    def verdict(self) -> ApplicationVerdict:
+        """``pass`` with the design margin to spare, ``no-margin`` when the link fits the
+        limits but not with the design margin on top, ``fail`` when it does not fit."""
+        if not self.passed:
+            return "fail"
+        return "pass" if self.margin_pass else "no-margin"
 
     def as_dict(self) -> dict[str, Any]:
         return {
             "name": self.name,
             "fibre": self.fibre,
+            "row_reason": self.row_reason,
             "pass": self.passed,
+            "verdict": self.verdict,
             "wavelength_nm": self.wavelength_nm,
             "loss_db": self.loss_db,
             "loss_max_db": self.loss_max_db,
@@ -702,8 +742,9 @@ def check_application(result: BudgetResult, limits: ApplicationLimits) -> Applic
 
     Loss passes when the maximum link loss at every application wavelength is within the
     maximum channel insertion loss; length passes when the fibre length is within the reach.
-    Headroom = limit − value (negative when over). The design margin is reported after the loss
-    headroom but does not decide the pass. A class with a minimum loss (PON) also needs the
+    Headroom = limit − value (negative when over). A link within the limits whose loss plus the
+    design margin is over the limit gets its own verdict, ``no-margin`` ("fits, but not with the
+    design margin"), never a plain pass. A class with a minimum loss (PON) also needs the
     lowest plausible link loss at or above that minimum.
 
     Raises
@@ -748,6 +789,7 @@ def check_application(result: BudgetResult, limits: ApplicationLimits) -> Applic
         min_pass=min_pass,
         per_wavelength=per,
         source=limits.source,
+        row_reason=limits.row_reason,
     )
 
 
@@ -765,6 +807,12 @@ class Transceiver:
     name: str = "transceiver"
     wavelength_nm: float | None = None
     source: str = ""
+    #: The fibre family these levels are for, when they differ by family (None: any).
+    family: str | None = None
+    #: Chromatic dispersion the receiver tolerates, in ps/nm (None: not given).
+    dispersion_tolerance_ps_nm: float | None = None
+    #: Line rate in GBd (None: not given).
+    line_rate_gbd: float | None = None
 
     def __post_init__(self) -> None:
         for what, value in (
@@ -790,6 +838,7 @@ class Transceiver:
 class TransceiverCheck:
     name: str
     wavelength_nm: float | None
+    family: str | None
     power_budget_db: float
     loss_max_db: float
     loss_min_db: float
@@ -814,6 +863,7 @@ class TransceiverCheck:
             "name": self.name,
             "pass": self.passed,
             "wavelength_nm": self.wavelength_nm,
+            "levels_for": self.family,
             "power_budget_db": self.power_budget_db,
             "loss_max_db": self.loss_max_db,
             "loss_min_db": self.loss_min_db,
@@ -891,6 +941,7 @@ def check_transceiver(
     return TransceiverCheck(
         name=tx.name,
         wavelength_nm=nm,
+        family=tx.family,
         power_budget_db=budget,
         loss_max_db=loss_max,
         loss_min_db=loss_min,

@@ -28,6 +28,28 @@ DEFAULT_WAVELENGTHS_NM: dict[str, tuple[float, ...]] = {
 }
 
 
+#: The wavelengths fibre work uses, in nm: from the 650 nm of a visual fault locator to the
+#: 1625/1650 nm monitoring band (common practice). One rule for budgets, meters and presets.
+FIBRE_BAND_NM = (600.0, 1700.0)
+
+
+def check_wavelength_nm(wavelength_nm: float, what: str = "wavelength") -> float:
+    """``wavelength_nm`` when it lies in :data:`FIBRE_BAND_NM`.
+
+    Raises
+    ------
+    InputError
+        For a wavelength outside the fibre bands (a slipped unit, 1.31 for 1310 nm) or not finite.
+    """
+    low, high = FIBRE_BAND_NM
+    if not math.isfinite(wavelength_nm) or not low <= wavelength_nm <= high:
+        raise InputError(
+            f"{what}: {format_number(wavelength_nm)} nm is outside the fibre bands "
+            f"({format_number(low)}–{format_number(high)} nm)"
+        )
+    return float(wavelength_nm)
+
+
 def _nm(wavelength_nm: float) -> str:
     return f"{format_number(wavelength_nm)} nm"
 
@@ -59,6 +81,19 @@ class Fibre:
         Typical group index (dimensionless) by wavelength in nm.
     mfd_um
         Single-mode mode-field diameter in µm by wavelength in nm.
+    modal_bandwidth_mhz_km
+        Multimode bandwidth·length product in MHz·km by wavelength in nm: the effective modal
+        bandwidth at 850 nm where the grade defines one, the overfilled-launch bandwidth
+        otherwise.
+    cable_cutoff_nm
+        Single-mode cable cut-off wavelength in nm: below it the fibre carries more than one mode.
+    zero_dispersion_nm
+        Single-mode zero-dispersion wavelength range (lowest, highest) in nm.
+    dispersion_slope_ps_nm2_km
+        Single-mode maximum zero-dispersion slope S0 in ps/(nm²·km).
+    estimated_nm
+        Wavelengths whose maximum attenuation no standard gives: the value held there is an
+        estimate (see :func:`rayleigh_scaled_db_per_km`), and a budget using it says so.
     """
 
     name: str
@@ -72,6 +107,11 @@ class Fibre:
     source: str = ""
     standard: str = ""
     default_wavelengths_nm: tuple[float, ...] = ()
+    modal_bandwidth_mhz_km: Mapping[float, float] = field(default_factory=dict)
+    cable_cutoff_nm: float | None = None
+    zero_dispersion_nm: tuple[float, float] | None = None
+    dispersion_slope_ps_nm2_km: float | None = None
+    estimated_nm: tuple[float, ...] = ()
 
     @property
     def wavelengths_nm(self) -> tuple[float, ...]:
@@ -100,6 +140,23 @@ class Fibre:
             label = "maximum attenuation" if grade == "max" else "typical attenuation"
             raise self._missing(label, table, wavelength_nm)
         return value
+
+    def is_estimated(self, wavelength_nm: float) -> bool:
+        """True when the maximum attenuation at ``wavelength_nm`` is an estimate, not a
+        standard's value."""
+        return any(abs(nm - wavelength_nm) <= WAVELENGTH_MATCH_NM for nm in self.estimated_nm)
+
+    def below_cutoff(self, wavelength_nm: float) -> bool:
+        """True for a single-mode fibre used below its cable cut-off (it carries a few modes)."""
+        return (
+            self.family == "singlemode"
+            and self.cable_cutoff_nm is not None
+            and wavelength_nm < self.cable_cutoff_nm
+        )
+
+    def modal_bandwidth(self, wavelength_nm: float) -> float | None:
+        """The bandwidth·length product in MHz·km at ``wavelength_nm`` (multimode), or None."""
+        return lookup(self.modal_bandwidth_mhz_km, wavelength_nm)
 
     def has_typical(self, wavelength_nm: float) -> bool:
         return lookup(self.attenuation_typical, wavelength_nm) is not None
@@ -137,3 +194,29 @@ class Fibre:
         if self.family is not None:
             return DEFAULT_WAVELENGTHS_NM[self.family]
         return self.wavelengths_nm
+
+
+#: Wavelength ratio exponent of Rayleigh scattering: loss ∝ λ⁻⁴.
+RAYLEIGH_EXPONENT = 4.0
+
+
+def rayleigh_scaled_db_per_km(alpha_db_per_km: float, from_nm: float, to_nm: float) -> float:
+    """An attenuation coefficient at ``from_nm`` scaled to ``to_nm`` as Rayleigh scattering
+    scales, for a wavelength no standard gives a maximum at.
+
+    .. math:: \\alpha(\\lambda_2) = \\alpha(\\lambda_1)\\,(\\lambda_1/\\lambda_2)^4
+
+    Applied to the whole coefficient (absorption and cabling loss scale less), so the estimate
+    errs on the lossy side below ``from_nm``. 0.4 dB/km at 1310 nm → 1270 nm:
+    0.4 × (1310/1270)⁴ = 0.4 × 1.13203 = 0.45281 dB/km.
+
+    References
+    ----------
+    Rayleigh scattering in silica, loss ∝ λ⁻⁴: G. Keiser, "Optical Fiber Communications",
+    4th ed., §3.1 (from memory).
+    """
+    checks = (("attenuation", alpha_db_per_km), ("wavelength", from_nm), ("wavelength", to_nm))
+    for what, x in checks:
+        if not math.isfinite(x) or x < 0 or (what == "wavelength" and x == 0):
+            raise InputError(f"{what}: {x!r} must be a positive, finite number")
+    return alpha_db_per_km * (from_nm / to_nm) ** RAYLEIGH_EXPONENT

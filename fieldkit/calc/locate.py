@@ -39,7 +39,8 @@ Each independent error source is given as a half-width (a typical ± figure, edi
 - sample spacing ``s`` (an event is located to within one sample; independent per reading),
 - group-index uncertainty ``δn``,
 - helix uncertainty ``δh`` (percentage points); with no helix given (and no landmarks), the
-  helix is taken as 0 and the term is the change from 0 to ``UNKNOWN_HELIX_MAX_PERCENT``,
+  helix is estimated at the middle of 0–``UNKNOWN_HELIX_MAX_PERCENT`` and the term spans that
+  whole interval (the cable can only be shorter than its fibre, never longer),
 - the route-distance uncertainty of each landmark (as-built records),
 - beyond the landmarks, the helix uncertainty once more, applied to the extrapolated stretch
   (the cable there may not have the ratio measured between the landmarks).
@@ -93,9 +94,14 @@ MAX_DISTANCE_M = 1.0e7
 MARKING_TOLERANCE_PERCENT = 1.0
 
 #: The largest helix a cable of unknown construction is taken to have, in percent (common
-#: practice: cables are typically 0–3 % shorter than their fibre). With no helix given the
-#: sheath is taken as long as the fibre and the range allows for this much helix.
+#: practice: cables are typically 0–3 % shorter than their fibre). With no helix given (and no
+#: landmarks) the estimate takes the middle, ``UNKNOWN_HELIX_ESTIMATE_PERCENT``, and the range
+#: runs from no helix (the sheath as long as the fibre) to this much.
 UNKNOWN_HELIX_MAX_PERCENT = 3.0
+UNKNOWN_HELIX_ESTIMATE_PERCENT = UNKNOWN_HELIX_MAX_PERCENT / 2.0
+
+#: Helix uncertainty when a helix is typed without one, in percentage points (common practice).
+TYPED_HELIX_UNCERTAINTY_PERCENT = 0.5
 
 #: Units a result may be shown in.
 OUTPUT_UNITS = ("m", "km", "ft", "mi")
@@ -605,15 +611,16 @@ def _terms(chain: _Chain, inp: LocateInput, two_ended: bool) -> list[tuple[str, 
     err = inp.errors
     helix_term: tuple[str, _Move]
     if inp.helix_percent is None and not chain.landmark_names:
-        # Not given: taken as 0 (the sheath as long as the fibre), but it may be up to the
-        # largest typical helix, which only ever makes the sheath shorter.
+        # Not given: the cable can only be shorter than its fibre, by up to the largest typical
+        # helix. The estimate takes the middle and the term spans 0 % to the largest, so the
+        # range runs from the fibre distance down to the shortest plausible cable.
+        half = UNKNOWN_HELIX_MAX_PERCENT - UNKNOWN_HELIX_ESTIMATE_PERCENT
         helix_term = (
             f"helix (not given: 0–{format_number(UNKNOWN_HELIX_MAX_PERCENT)} %)",
             lambda k: replace(
                 chain,
-                helix_percent=max(
-                    UNKNOWN_HELIX_MAX_PERCENT if k > 0 else 0.0,
-                    chain.helix_percent + k * err.helix_uncertainty_percent,
+                helix_percent=min(
+                    UNKNOWN_HELIX_MAX_PERCENT, max(0.0, chain.helix_percent + k * half)
                 ),
             ),
         )
@@ -781,12 +788,13 @@ def locate(inp: LocateInput) -> Location:
         fault_shown_m = fiber_distance_from_time(inp.round_trip_time_s, index_set)
     helix = inp.helix_percent if inp.helix_percent is not None else 0.0
     if inp.helix_percent is None and not inp.landmarks:
+        helix = UNKNOWN_HELIX_ESTIMATE_PERCENT
         warnings.append(
-            "No helix given: the sheath is taken as long as the fibre, and the range "
-            "allows for a helix of up to "
-            f"{format_number(UNKNOWN_HELIX_MAX_PERCENT)} % (cables are typically "
-            "0–3 % shorter than their fibre); give the cable's helix or a landmark "
-            "to narrow it."
+            f"No helix given: the estimate takes {format_number(helix)} %, the middle of the "
+            f"0–{format_number(UNKNOWN_HELIX_MAX_PERCENT)} % typical of cables; the range runs "
+            "from the fibre distance (no helix) to the shortest plausible cable "
+            f"({format_number(UNKNOWN_HELIX_MAX_PERCENT)} %). Give the cable's helix or a "
+            "landmark to narrow it."
         )
     slack = tuple(sorted(inp.slack, key=lambda s: s.route_position_m))
     marks = tuple(inp.landmarks)

@@ -457,6 +457,34 @@ TYPICAL_SOURCE_DBM: dict[str, float] = {"multimode": -20.0, "singlemode": -7.0}
 PLAUSIBLE_SHORTFALL_DB = 3.0
 
 
+#: How far above the source's output a reference may be before it is called implausible
+#: (common practice: a reference cannot exceed what the source delivers; 3 dB leaves room for
+#: the source's own tolerance and a different source model).
+PLAUSIBLE_EXCESS_DB = 3.0
+
+#: What field power meters plausibly read, in dBm (common practice: typical field meters span
+#: about −70 to +27 dBm). A level outside is still taken, with a warning.
+PLAUSIBLE_METER_DBM = (-70.0, 27.0)
+
+
+def level_warnings(level_dbm: float, what: str = "level") -> list[str]:
+    """A warning when ``level_dbm`` lies outside what field meters plausibly read
+    (:data:`PLAUSIBLE_METER_DBM`), on either side; none otherwise."""
+    low, high = PLAUSIBLE_METER_DBM
+    if level_dbm < low:
+        return [
+            f"{what} {level_dbm:.2f} dBm is below what field meters read (about {low:g} dBm): "
+            "probably no light reaches the meter (a break, the wrong fibre, the source off) "
+            "or a typo"
+        ]
+    if level_dbm > high:
+        return [
+            f"{what} {level_dbm:+.2f} dBm is above what field meters read (about +{high:g} dBm) "
+            "and above any test source: check the unit (mW or µW, dBm or dBW) and the number"
+        ]
+    return []
+
+
 def default_source_dbm(wavelength_nm: float) -> float:
     """The typical source output assumed at ``wavelength_nm`` (see TYPICAL_SOURCE_DBM)."""
     return TYPICAL_SOURCE_DBM[fibre_family(wavelength_nm)]
@@ -472,13 +500,23 @@ def reference_warnings(
 ) -> list[str]:
     """Warnings about a reference level before any reading is taken against it.
 
+    - outside what field meters read (:func:`level_warnings`), either side;
+    - more than :data:`PLAUSIBLE_EXCESS_DB` above what the source should deliver: a slipped unit
+      or a wrong number (a reference cannot exceed its source);
     - more than ``shortfall_db`` below what the source should deliver: a dirty or damaged cord;
     - a multimode wavelength with no launch condition recorded (IEC 61280-4-1 asks for an
       encircled-flux launch).
     """
-    warnings: list[str] = []
+    warnings: list[str] = level_warnings(reference_dbm, "reference")
     if source_dbm is None and wavelength_nm is not None:
         source_dbm = default_source_dbm(wavelength_nm)
+    if source_dbm is not None and reference_dbm > source_dbm + PLAUSIBLE_EXCESS_DB:
+        warnings.append(
+            f"reference {reference_dbm:+.2f} dBm is {reference_dbm - source_dbm:.1f} dB above the "
+            f"{source_dbm:.1f} dBm the source should deliver: a reference cannot exceed the "
+            "source; check the unit, the number and the source's output setting (give it as "
+            "the source level if it really is that strong)"
+        )
     if source_dbm is not None and reference_dbm < source_dbm - shortfall_db:
         warnings.append(
             f"reference {reference_dbm:.2f} dBm is {source_dbm - reference_dbm:.1f} dB below the "

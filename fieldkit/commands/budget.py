@@ -205,15 +205,10 @@ def _wavelengths(args: argparse.Namespace) -> list[str]:
 
 
 def _attenuation_spec(values: list[str]) -> Any:
-    """One bare coefficient for every wavelength, or NM=COEF pairs."""
-    import re
+    """One bare coefficient for every wavelength, or NM=COEF pairs (the workspace's rule)."""
+    from fieldkit.inputs import attenuation_entry
 
-    pairs = [re.match(r"^\s*([\d.,]+\s*(?:nm)?)\s*[=:@]\s*(.+)$", v) for v in values]
-    if all(pairs):
-        return {m.group(1): m.group(2) for m in pairs if m}
-    if len(values) == 1 and not any(pairs):
-        return values[0]
-    raise CommandError("--attenuation: give one coefficient, or NM=COEF for each wavelength")
+    return attenuation_entry(values, "--attenuation")
 
 
 def _overlay_checks(spec: dict[str, Any], args: argparse.Namespace) -> dict[str, Any]:
@@ -407,7 +402,7 @@ def _save(args: argparse.Namespace, resolved: Any, report: Any) -> dict[str, str
 
 
 def _print_text(report: Any, saved: dict[str, str] | None) -> None:
-    from fieldkit.linkspec import report_lines
+    from fieldkit.text.budget import report_lines
 
     for line in report_lines(report):
         print(line)

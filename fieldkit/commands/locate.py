@@ -135,10 +135,6 @@ def register(subparsers: Any) -> None:
     parser.set_defaults(func=run)
 
 
-#: Helix uncertainty when a helix is typed without one (percentage points; common practice).
-TYPED_HELIX_UNCERTAINTY_PERCENT = 0.5
-
-
 def run(args: argparse.Namespace) -> int:
     from fieldkit import safety
     from fieldkit.calc.locate import locate
@@ -231,7 +227,11 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
     notes: list[str] = []
     if bool(args.distance) == bool(args.time):
         raise CommandError("give either --distance or --time")
-    distance_m = _length_m(args.distance, "distance") if args.distance else None
+    distance_m = None
+    if args.distance:
+        from fieldkit.inputs import otdr_distance_m
+
+        distance_m = otdr_distance_m(args.distance, "distance")
     time_s = parse(args.time, Kind.TIME, what="time").to("s") if args.time else None
     if args.ior and args.fiber:
         raise CommandError("give either --ior or --fiber, not both")
@@ -261,6 +261,8 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
     helix_u = 0.0
     if args.helix:
         helix = _percent(args.helix, "helix")
+        from fieldkit.calc.locate import TYPED_HELIX_UNCERTAINTY_PERCENT
+
         helix_u = TYPED_HELIX_UNCERTAINTY_PERCENT
     elif args.cable:
         library = library or _presets(args)

@@ -131,6 +131,9 @@ def run(args: argparse.Namespace) -> int:
             )
             if "launch condition" not in w
         ]
+    warnings += ref.level_warnings(reading_dbm, "reading")
+    if reading_back_dbm is not None:
+        warnings += ref.level_warnings(reading_back_dbm, "reading back")
     warnings += list(verdict.warnings)
     flags = sorted({f for v in verdict.directions.values() for f in v.flags})
 

@@ -16,19 +16,19 @@ def register(subparsers: Any) -> None:
     parser: argparse.ArgumentParser = subparsers.add_parser(
         "presets",
         help="list fibre, connection, component, application, transceiver, cable, colour "
-        "code and splice plan presets",
+        "code, splice plan and reflectance presets",
         description="Lists the presets with the standard and edition each value comes from. "
         "Your own preset files in <config>/presets/*.toml add to them or replace one by "
         "name; a bad file or entry is reported and the rest still load. "
         "Kinds: fibres, connectors, splices, components, applications, transceivers, cables, "
-        "colour_sequences, splice_plans.",
+        "colour_sequences, splice_plans, reflectance.",
     )
     parser.add_argument(
         "kind",
         nargs="?",
         metavar="KIND",
         help="one kind only (fibres, connectors, splices, components, "
-        "applications, transceivers, cables, colour_sequences, splice_plans)",
+        "applications, transceivers, cables, colour_sequences, splice_plans, reflectance)",
     )
     parser.add_argument(
         "--check",
@@ -158,6 +158,9 @@ def _summary(kind: str, p: Any) -> str:
         )
     if kind == "splice_plans":
         return str(p.plan)
+    if kind == "reflectance":
+        orl = "" if p.orl_min_db is None else f"; optical return loss at least {p.orl_min_db:g} dB"
+        return f"discrete reflectance at most {p.reflectance_max_db:g} dB{orl}".replace("-", "−")
     return ""
 
 

@@ -405,9 +405,7 @@ def _link_sections(link: Link) -> list[Section]:
             sec.tables.append(items)
         for what, data in (("Application", b.application), ("Transceiver", b.transceiver)):
             if data:
-                sec.paragraphs.append(
-                    f"{what}: " + "; ".join(f"{k} {_plain(v)}" for k, v in data.items())
-                )
+                sec.paragraphs.append(f"{what}: " + _check_text(data))
         out.append(sec)
     if link.results:
         sec = Section(f"{link.label}: results", level=3)
@@ -905,3 +903,17 @@ def export(job: Job, fmt: str) -> str:
 
 
 EXPORT_FORMATS = ("csv", "md", "html", "json")
+
+
+def _check_text(data: dict[str, Any]) -> str:
+    """A stored application or transceiver check: its verdict in words, then every figure."""
+    from fieldkit.text.budget import NO_MARGIN_TEXT, verdict_word
+
+    verdict = data.get("verdict")
+    head = ""
+    if isinstance(verdict, str):
+        head = f"{verdict_word(verdict)}" + (
+            f" ({NO_MARGIN_TEXT})" if verdict == "no-margin" else ""
+        )
+        head += "; "
+    return head + "; ".join(f"{k} {_plain(v)}" for k, v in data.items())

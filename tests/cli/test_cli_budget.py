@@ -166,9 +166,44 @@ def test_link_file_json(tmp_path: Path):
 def test_text_output_has_the_breakdown():
     result = run("budget", "--fiber", "OM4", "--length", "100m", "--application", "40GBASE-SR4")
     assert result.returncode == 0, result.stderr
-    assert "At 850 nm: maximum" in result.stdout
+    # OM4 100 m × 3.0 dB/km (ANSI/TIA-568.3-D, from memory) = 0.30 dB + 2 × 0.75 = 1.80 dB, over
+    # the 40GBASE-SR4 OM4 row's 1.5 dB (IEEE 802.3 Clause 86, from memory) by 0.30 dB
+    assert "850 nm  max 1.80 dB" in result.stdout
     assert "2 mated connector pairs × 0.75 dB" in result.stdout
-    assert "Application 40GBASE-SR4 on OM4" in result.stdout
+    assert "Application 40GBASE-SR4 on OM4: FAIL" in result.stdout
+    assert "headroom \u22120.30 dB OVER" in result.stdout
+
+
+def test_cli_and_workspace_print_the_same_check_lines():
+    # one builder for both faces: the CLI's application section is the workspace panel's lines
+    from fieldkit import linkspec
+    from fieldkit.presets import load_presets
+    from fieldkit.text.budget import application_lines
+
+    result = run(
+        "budget",
+        "--fiber",
+        "OS2",
+        "--length",
+        "10km",
+        "--margin",
+        "3",
+        "--application",
+        "10GBASE-LR",
+    )
+    report = linkspec.resolve(
+        {
+            "segments": [{"fibre": "OS2", "length": "10km"}],
+            "margin": "3",
+            "application": "10GBASE-LR",
+        },
+        load_presets(),
+    ).evaluate()
+    expected = application_lines(report.application)
+    assert "Application " + "\n  ".join(expected) in result.stdout
+    # IEEE 802.3 Clause 52 (from memory) 6.2 dB; 10 × 0.4 + 1.5 = 5.5 dB; 0.7 − 3 = −2.3 dB
+    assert "10GBASE-LR on singlemode: FITS, NO MARGIN" in result.stdout
+    assert "fits the limits, but not with the design margin" in result.stdout
 
 
 @pytest.mark.parametrize(

@@ -25,7 +25,7 @@ def run_json(*args: str) -> dict:
 
 
 def test_json_has_the_contract_keys() -> None:
-    data = run_json("--distance", "3412", "--ior", "1.4677", "--helix", "0")
+    data = run_json("--distance", "3412 m", "--ior", "1.4677", "--helix", "0")
     for key in (
         "fiber_distance_m",
         "sheath_distance_m",
@@ -71,7 +71,7 @@ def test_rescale_helix_and_fibre_preset() -> None:
 
 
 def test_cable_preset_gives_helix_and_its_uncertainty() -> None:
-    data = run_json("--distance", "1000", "--ior", "1.468", "--cable", "drop cable")
+    data = run_json("--distance", "1000 m", "--ior", "1.468", "--cable", "drop cable")
     # drop cable preset: 0.1 ± 0.1 % (common practice): sheath 1000 / 1.001 = 999.0010 m
     assert data["helix_percent"] == pytest.approx(0.1, abs=1e-12)
     assert data["sheath_distance_m"] == pytest.approx(999.0010, abs=1e-3)
@@ -86,7 +86,7 @@ def test_landmarks_slack_and_marking() -> None:
     # marking 10 000 m counting down: 10 000 − 2750 = 7250
     data = run_json(
         "--distance",
-        "2800",
+        "2800 m",
         "--ior",
         "1.4677",
         "--landmark",
@@ -112,7 +112,7 @@ def test_two_ended_check() -> None:
     # 3412 + 1590 − 5000 = 2 m, within ±2 m (four 1 m terms, root-sum-square)
     data = run_json(
         "--distance",
-        "3412",
+        "3412 m",
         "--ior",
         "1.4677",
         "--helix",
@@ -129,7 +129,7 @@ def test_two_ended_check() -> None:
 
 
 def test_text_output_in_feet_shows_range_and_cautions() -> None:
-    result = run("--distance", "3048", "--ior", "1.468", "--helix", "0", "--unit", "ft")
+    result = run("--distance", "3048 m", "--ior", "1.468", "--helix", "0", "--unit", "ft")
     assert result.returncode == 0, result.stderr
     # 3048 m / 0.3048 m per ft = 10 000 ft (international foot, NIST SP 811)
     assert "10000 ft" in result.stdout
@@ -148,16 +148,18 @@ def test_list_cables() -> None:
     ("args", "message"),
     [
         (("--distance", "-5", "--ior", "1.468"), "negative"),
+        # a bare number is refused: OTDRs show km or m by range, 3.412 could be either
+        (("--distance", "3.412", "--ior", "1.468"), "3.412 needs a unit"),
         (("--time=-2 us", "--ior", "1.468"), "more than zero"),
-        (("--distance", "100", "--ior", "0.9"), "below 1"),
-        (("--distance", "100", "--ior", "NaN"), "not a number"),
+        (("--distance", "100 m", "--ior", "0.9"), "below 1"),
+        (("--distance", "100 m", "--ior", "NaN"), "not a number"),
         (("--distance", "-3 dBm", "--ior", "1.468"), "optical power"),
-        (("--distance", "100"), "group index"),
+        (("--distance", "100 m"), "group index"),
         (("--ior", "1.468"), "either --distance or --time"),
-        (("--distance", "100", "--ior", "1.468", "--landmark", "x:3"), "NAME:OTDR_DISTANCE"),
-        (("--distance", "100", "--ior", "1.468", "--from-b", "50"), "both --from-b and --total"),
-        (("--distance", "100", "--fiber", "OS2", "--wavelength", "850"), "no group index at 850"),
-        (("--distance", "100", "--ior", "1.468", "--cable", "none such"), "unknown cable"),
+        (("--distance", "100 m", "--ior", "1.468", "--landmark", "x:3"), "NAME:OTDR_DISTANCE"),
+        (("--distance", "100 m", "--ior", "1.468", "--from-b", "50"), "both --from-b and --total"),
+        (("--distance", "100 m", "--fiber", "OS2", "--wavelength", "850"), "no group index at 850"),
+        (("--distance", "100 m", "--ior", "1.468", "--cable", "none such"), "unknown cable"),
     ],
 )
 def test_bad_input_exits_2_with_one_line(args: tuple[str, ...], message: str) -> None:
@@ -176,7 +178,7 @@ def test_saving_onto_a_job_link(tmp_path: Path) -> None:
     job = store.create("Cut on Main St", by="tester")
     data = run_json(
         "--distance",
-        "2040",
+        "2040 m",
         "--ior",
         "1.468",
         "--helix",
@@ -198,7 +200,7 @@ def test_saving_onto_a_job_link(tmp_path: Path) -> None:
     assert fault.route_distance_m == pytest.approx(2000.0, abs=1e-9)
     assert fault.by == "ana"
     assert fault.low_m < 2000.0 < fault.high_m
-    assert fault.inputs["typed"]["distance"] == "2040"
+    assert fault.inputs["typed"]["distance"] == "2040 m"
 
 
 def test_a_saved_fault_shows_in_the_job_export(tmp_path: Path) -> None:
@@ -208,7 +210,7 @@ def test_a_saved_fault_shows_in_the_job_export(tmp_path: Path) -> None:
     job = JobStore(data_dir / "jobs").create("Reservoir feed")
     saved = run(
         "--distance",
-        "2040",
+        "2040 m",
         "--ior",
         "1.468",
         "--helix",

@@ -603,3 +603,33 @@ def test_fibre_number_beyond_any_cable_is_refused() -> None:
     assert parse_fibre("6912") == 6912
     with pytest.raises(CommandError, match="more fibres than any cable"):
         parse_fibre("99999999")
+
+
+def test_a_fibre_number_past_the_links_fibre_count_is_refused(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    store = JobStore(isolated_dirs["data"] / "jobs")
+    job = store.create("Campus trunk")
+    store.update(job.id, lambda j: j.add_link("Trunk 1", fibre_count=24))
+    args = ("loss", "--reference", "-7.2", "--reading", "-9.9", "--wavelength", "1310")
+    proc = run(*args, "--job", job.id, "--link", "Trunk 1", "--fibre", "999")
+    assert proc.returncode == 2
+    assert "fibre: 999 is beyond the link's 24 fibres" in proc.stderr
+    assert JobStore(isolated_dirs["data"] / "jobs").load(job.id).links[0].results == []
+    assert run_json(*args, "--job", job.id, "--link", "Trunk 1", "--fibre", "24")["loss_db"] == (
+        pytest.approx(2.7, abs=1e-9)  # −7.2 − (−9.9) = 2.7 dB
+    )
+
+
+def test_levels_past_what_meters_read_warn_on_both_sides() -> None:
+    # common practice: field meters read about −70 to +27 dBm; a single-mode source delivers
+    # about −7 dBm, so a +30 dBm reference is 37 dB above it
+    out = run_json("loss", "--reference", "30", "--reading", "-95", "--wavelength", "1310")
+    text = " | ".join(out["warnings"])
+    assert "reference +30.00 dBm is above what field meters read" in text
+    assert "37.0 dB above the -7.0 dBm the source should deliver" in text
+    assert "reading -95.00 dBm is below what field meters read" in text
+    quiet = run_json("loss", "--reference", "-7.2", "--reading", "-9.9", "--wavelength", "1310")
+    assert quiet["warnings"] == []

@@ -214,7 +214,7 @@ async def test_margin_and_wavelengths_fields(tmp_path: Path):
         assert result.at(1625).loss_with_margin_db == pytest.approx(5.3, abs=1e-9)
         screen.query_one("#wavelengths", Input).value = "1490, 2500"
         await pilot.pause()
-        assert "not an optical wavelength" in str(
+        assert "outside the fibre bands" in str(
             screen.query_one("#wavelengths-error", Static).render()
         )
 

@@ -43,14 +43,19 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(
         screen = app.screen
         assert isinstance(screen, FaultScreen)
         assert screen.focused is screen.query_one("#fault-distance", Input)
-        await pilot.press(*"2040")
+        await pilot.press(*"2040 m")
         await pilot.pause()
-        # defaults: G.652.D at 1550 nm (1.4677, the preset's typical value), stranded loose tube
-        # 1.5 % (common practice): sheath = route = 2040 / 1.015 = 2009.8522 m
+        # defaults: G.652.D at 1550 nm (1.4677, the preset's typical value), no helix given, as
+        # on the command line: the estimate takes 1.5 %, the middle of 0–3 % (common practice):
+        # sheath = route = 2040 / 1.015 = 2009.8522 m, range up to the fibre's 2040 m
+        assert "Helix not given" in _text(screen, "#fault-cable-note")
         assert screen.location is not None
         assert screen.location.position.route_distance_m == pytest.approx(2009.8522, abs=1e-3)
         assert "Fault 2009.9 m ±" in _text(screen, "#fault-summary")
         assert "route    2009.9 m" in _text(screen, "#fault-result")
+        p = screen.location.position  # the range tops out at the fibre distance, within its ±
+        assert p.high_m <= 2040.0 + p.fiber_uncertainty_m
+        assert any("the estimate takes 1.5 %" in w for w in screen.location.warnings)
         cautions = _text(screen, "#fault-cautions")
         assert safety.DIGGING in cautions and safety.DEFER in cautions
         diagram = screen.query_one("#fault-diagram", RouteDiagram)
@@ -76,8 +81,13 @@ async def test_bad_input_is_shown_beside_the_field_and_kept(
         assert screen.query_one("#fault-distance", Input).value == "-3 dBm"
         assert screen.location is None
         assert "Fix the field" in _text(screen, "#fault-summary")
+        # a bare number is refused beside the field, asking for a unit (as the CLI does)
+        screen.query_one("#fault-distance", Input).value = "3.412"
+        await pilot.pause()
+        assert "3.412 needs a unit" in str(error.render()) and screen.location is None
+        assert screen.query_one("#fault-distance", Input).value == "3.412"
         # a group index below 1 is refused too
-        screen.query_one("#fault-distance", Input).value = "1000"
+        screen.query_one("#fault-distance", Input).value = "1000 m"
         screen.query_one("#fault-ior", Input).value = "0.9"
         await pilot.pause()
         assert screen.location is None
@@ -92,7 +102,7 @@ async def test_landmarks_added_edited_and_removed_by_keys(
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
-        await pilot.press(*"2800")
+        await pilot.press(*"2800 m")
         screen.query_one("#fault-landmarks-name", Input).focus()
         await pilot.press(*"closure 6", "tab", *"2000", "tab", *"1950", "enter")
         await pilot.press("shift+tab", "shift+tab")  # back to the name
@@ -131,7 +141,7 @@ async def test_slack_loop_added_with_the_mouse(tmp_path: Path, size: tuple[int, 
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
-        await pilot.press(*"2040")
+        await pilot.press(*"2040 m")
         screen.query_one("#fault-cable", Select).value = "__typed__"
         screen.query_one("#fault-helix", Input).value = "2"
         screen.query_one("#fault-slack-position", Input).value = "800"
@@ -154,7 +164,7 @@ async def test_marking_two_ended_and_unit(tmp_path: Path) -> None:
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         screen = app.screen
-        screen.query_one("#fault-distance", Input).value = "3412"
+        screen.query_one("#fault-distance", Input).value = "3412 m"
         screen.query_one("#fault-cable", Select).value = "__typed__"
         screen.query_one("#fault-helix", Input).value = "0"
         screen.query_one("#fault-marking", Input).value = "10000"
@@ -185,7 +195,7 @@ async def test_save_onto_a_job_link(tmp_path: Path, size: tuple[int, int]) -> No
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
-        await pilot.press(*"2040")
+        await pilot.press(*"2040 m")
         await pilot.press("ctrl+s")
         await pilot.pause()
         assert isinstance(app.screen, JobLinkPicker)
@@ -196,7 +206,7 @@ async def test_save_onto_a_job_link(tmp_path: Path, size: tuple[int, int]) -> No
     assert len(faults) == 1
     assert faults[0].route_distance_m == pytest.approx(2009.8522, abs=1e-3)
     assert faults[0].low_m < faults[0].route_distance_m < faults[0].high_m
-    assert faults[0].inputs["typed"]["distance"] == "2040"
+    assert faults[0].inputs["typed"]["distance"] == "2040 m"
 
 
 async def test_f5_opens_the_fault_workspace(tmp_path: Path) -> None:
@@ -216,7 +226,7 @@ async def test_clicking_a_landmark_row_opens_it_for_editing(
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
         screen = app.screen
-        screen.query_one("#fault-distance", Input).value = "2800"
+        screen.query_one("#fault-distance", Input).value = "2800 m"
         landmarks = screen.query_one("#fault-landmarks", PointList)
         landmarks.set_rows(
             [
@@ -246,7 +256,7 @@ async def test_round_trip_time_in_the_workspace(tmp_path: Path) -> None:
         assert screen.location is not None
         assert screen.location.position.fiber_distance_m == pytest.approx(999.3082, abs=1e-4)
         # a distance as well is refused, and both texts are kept
-        screen.query_one("#fault-distance", Input).value = "1000"
+        screen.query_one("#fault-distance", Input).value = "1000 m"
         await pilot.pause()
         assert screen.location is None
         assert "not both" in _text(screen, "#fault-summary")

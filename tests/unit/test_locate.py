@@ -377,22 +377,28 @@ def test_helix_uncertainty_dominates_a_long_bare_reading() -> None:
     assert p.uncertainty_m > 24.387
 
 
-def test_a_helix_not_given_widens_the_range_to_the_typical_helix() -> None:
-    # No helix given, no landmarks: the sheath is taken as the fibre's 5000 m, but a cable is
-    # typically up to 3 % shorter than its fibre (common practice), so the sheath may be as
-    # short as 5000 / 1.03 = 4854.369 m: the helix term is 5000 − 4854.369 = 145.631 m.
+def test_a_helix_not_given_runs_the_range_from_the_fibre_down_to_the_shortest_cable() -> None:
+    # No helix given, no landmarks: a cable is 0–3 % shorter than its fibre (common practice),
+    # never longer. The estimate takes the middle, 1.5 %: 5000 / 1.015 = 4926.108 m. The helix
+    # term spans 0 % (5000 − 4926.108 = 73.892 m) to 3 % (4926.108 − 5000 / 1.03 = 4926.108 −
+    # 4854.369 = 71.739 m); the larger, 73.892 m, is the half-width. So the range is 4852.216 to
+    # 5000.000 m: from the fibre distance down past the shortest plausible cable (4854.369 m).
     result = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, errors=NO_ERRORS))
     p = result.position
-    assert p.route_distance_m == pytest.approx(5000.0, abs=1e-9)
+    assert p.route_distance_m == pytest.approx(4926.108, abs=1e-3)
     terms = {c.name: c.route_m for c in p.contributions}
-    assert terms == {"helix (not given: 0–3 %)": pytest.approx(145.631, abs=1e-3)}
-    assert p.uncertainty_m == pytest.approx(145.631, abs=1e-3)
-    assert any("allows for a helix of up to 3 %" in w for w in result.warnings)
+    assert terms == {"helix (not given: 0–3 %)": pytest.approx(73.892, abs=1e-3)}
+    assert p.high_m == pytest.approx(5000.0, abs=1e-3)
+    assert p.low_m == pytest.approx(4852.216, abs=1e-3)
+    assert any("the estimate takes 1.5 %" in w for w in result.warnings)
+    # the old range, ±145.6 m around 5000 m, had half its width above the fibre distance
+    assert p.high_m <= 5000.0 + 1e-6
     # a helix given (even 0 %) is taken at its word: no such term
     given_zero = locate(
         LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0, errors=NO_ERRORS)
     ).position
     assert given_zero.uncertainty_m == pytest.approx(0.0, abs=1e-9)
+    assert given_zero.route_distance_m == pytest.approx(5000.0, abs=1e-9)
 
 
 @pytest.mark.parametrize(
@@ -517,34 +523,29 @@ def test_before_the_first_landmark_is_extrapolated_and_named() -> None:
     assert any("Before the first landmark (panel)" in w for w in result.warnings)
 
 
-@given(
-    st.floats(0, 2e5),
-    st.floats(1.0, 2.0),
-    st.floats(0, 5),
-    st.lists(st.tuples(st.floats(1, 1e5), st.floats(0.9, 1.1)), max_size=4),
-)
-def test_range_is_between_the_largest_term_and_the_worst_case(
-    shown: float, index: float, helix: float, marks: list[tuple[float, float]]
-) -> None:
-    # landmarks made consistent: route increasing, OTDR = route × a ratio near 1
-    routes = sorted({round(r, 3) for r, _ in marks})
-    landmarks = tuple(Landmark(f"L{i}", r * ratio_of(i, marks), r) for i, r in enumerate(routes))
-    try:
-        p = locate(
-            LocateInput(
-                otdr_distance_m=shown,
-                group_index=index,
-                helix_percent=helix,
-                landmarks=landmarks,
-                errors=ErrorTerms(helix_uncertainty_percent=0.5),
-            )
-        ).position
-    except InputError:
-        return  # e.g. two landmarks whose OTDR distances do not increase: refused with a message
-    largest = max((c.route_m for c in p.contributions), default=0.0)
-    assert largest - 1e-9 <= p.uncertainty_m <= p.worst_case_m + 1e-9
-    assert p.low_m <= p.route_distance_m <= p.high_m
-
-
-def ratio_of(i: int, marks: list[tuple[float, float]]) -> float:
-    return marks[i][1] if i < len(marks) else 1.0
+def test_range_of_an_interpolated_fault_by_hand() -> None:
+    # A fault shown at 2800 m between closure 6 (2000 m OTDR, 1950 m route) and closure 7
+    # (3400 m, 3330 m); only the sample spacing (±1 m per reading) counts. The span's ratio is
+    # 1380 m route per 1400 m fibre: route = 1950 + 800 × 1380 / 1400 = 2738.571429 m.
+    # Each term is the larger change of the route when its reading moves 1 m either way:
+    #   fault reading: 1380 / 1400 = 0.985714 m;
+    #   closure 6 at 2001 m: 1950 + 799 × 1380 / 1399 = 2738.148678 (0.422751 m; at 1999 m
+    #   2738.993576, 0.422148 m);
+    #   closure 7 at 3399 m: 1950 + 800 × 1380 / 1399 = 2739.135096 (0.563668 m; at 3401 m
+    #   2738.008565, 0.562863 m).
+    # Root-sum-square √(0.971633 + 0.178718 + 0.317722) = √1.468073 = 1.211641 m; worst case
+    # (their sum) 1.972133 m.
+    marks = (Landmark("closure 6", 2000, 1950), Landmark("closure 7", 3400, 3330))
+    p = locate(
+        LocateInput(
+            otdr_distance_m=2800,
+            group_index=1.4677,
+            landmarks=marks,
+            errors=ErrorTerms(
+                offset_m=0, scale_error_percent=0, sample_spacing_m=1.0, group_index_uncertainty=0
+            ),
+        )
+    ).position
+    assert p.route_distance_m == pytest.approx(2738.571, abs=1e-3)
+    assert p.uncertainty_m == pytest.approx(1.211641, abs=1e-5)
+    assert p.worst_case_m == pytest.approx(1.972133, abs=1e-5)

@@ -274,10 +274,22 @@ def test_multimode_geometry(lib, fibre, core_um, na):
     assert f.numerical_aperture == pytest.approx(na, abs=1e-9)
 
 
-@pytest.mark.parametrize("fibre", ["G.652.D", "G.657.A1", "G.657.A2", "OS2"])
-def test_mode_field_diameter_at_1310_in_the_standard_range(lib, fibre):
-    # ITU-T G.652 / G.657 (11/2016): nominal MFD at 1310 nm within 8.6–9.5 µm (from memory)
-    assert 8.6 <= lib.fibres[fibre].mode_field_diameter_um(1310) <= 9.5
+@pytest.mark.parametrize(
+    ("fibre", "typical_um"),
+    [
+        # ITU-T G.652 / G.657 (11/2016): nominal MFD at 1310 nm 8.6–9.2 µm, tolerance ±0.4 µm
+        # (from memory). The presets' typical values (from memory): G.652.D 9.2 µm (the top of
+        # the nominal range), G.657.A1 8.8 µm, G.657.A2 8.6 µm (the bottom).
+        ("G.652.D", 9.2),
+        ("OS2", 9.2),
+        ("G.657.A1", 8.8),
+        ("G.657.A2", 8.6),
+    ],
+)
+def test_mode_field_diameter_at_1310_in_the_nominal_range(lib, fibre, typical_um):
+    mfd = lib.fibres[fibre].mode_field_diameter_um(1310)
+    assert mfd == pytest.approx(typical_um, abs=1e-9)
+    assert 8.6 <= mfd <= 9.2  # the nominal range, not nominal ± tolerance (8.2–9.6)
 
 
 def _relative_group_delay_ps_per_km(nm: float, zero_nm: float, slope: float) -> float:

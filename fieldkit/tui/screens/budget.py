@@ -26,7 +26,6 @@ from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 TYPED = "__typed__"
-_PAD = "\u00a0\u00a0"  # leading spaces that survive the text layout
 #: The second item field also takes ``1310=0.35 dB/km; 1550=0.22 dB/km`` and names.
 EXTRA_CHARS = QUANTITY_CHARS[:-2] + "=;:()]*"
 
@@ -91,26 +90,19 @@ KINDS: dict[str, dict[str, str]] = {
 }
 ADD_KINDS = ("fibre", "splices", "splitter", "component", "attenuator", "other", "connectors")
 
-_PAIR = re.compile(r"^\s*(\d+(?:[.,]\d+)?\s*(?:nm)?)\s*[=:@]\s*(.+?)\s*$")
 
-
-def _minus(text: str) -> str:
-    """Negative numbers with the typographic minus, leaving names like 10GBASE-LR alone."""
-    return re.sub(r"(?<![\w.])-(?=\d)", "\u2212", text)
+def _keep_indent(line: str) -> str:
+    """Leading spaces as no-break spaces, so the text layout keeps the indent."""
+    stripped = line.lstrip(" ")
+    return "\u00a0" * (len(line) - len(stripped)) + stripped
 
 
 def attenuation_entry(text: str) -> Any:
-    """A typed attenuation as the link description takes it: one coefficient, or
-    ``1310=0.35 dB/km; 1550=0.22 dB/km`` (``;`` between wavelengths)."""
-    parts = [p for p in re.split(r";", text) if p.strip()]
-    pairs = [_PAIR.match(p) for p in parts]
-    if parts and all(pairs):
-        return {m.group(1): m.group(2) for m in pairs if m}
-    if len(parts) > 1 or any(pairs):
-        raise InputError(
-            "attenuation: give one coefficient, or NM=COEF for each wavelength separated by ';'"
-        )
-    return text
+    """A typed attenuation as the link description takes it (see
+    :func:`fieldkit.inputs.attenuation_entry`: the CLI's rule too)."""
+    from fieldkit.inputs import attenuation_entry as entry
+
+    return entry(text)
 
 
 def item_entry(item: dict[str, str]) -> tuple[str, Any]:
@@ -709,7 +701,7 @@ class BudgetScreen(Screen[None]):
                     linkspec.length_m(value, "length")
             elif kind in ("connectors", "splices", "component"):
                 if value.strip():
-                    linkspec.count(value, KINDS[kind]["value"].lower())
+                    linkspec.item_count(value, KINDS[kind]["value"].lower())
             elif kind == "splitter":
                 if value.strip():
                     linkspec.parse_splitter(value)
@@ -946,93 +938,27 @@ class BudgetScreen(Screen[None]):
         return message
 
     def _show(self, report: Any) -> None:
-        r = report.result
-        lines: list[str] = []
-        if report.result.notes:
-            lines.extend(f"Note: {n}" for n in report.result.notes)
-        for w in r.wavelengths:
-            typical = "—" if w.typical_loss_db is None else f"{w.typical_loss_db:.2f}"
-            lines.append(f"{w.wavelength_nm:g} nm  max {w.loss_db:.2f} dB  typ {typical} dB")
-            if r.margin_db:
-                lines.append(
-                    f"{_PAD}with {r.margin_db:.2f} dB margin: {w.loss_with_margin_db:.2f} dB"
-                )
-            for item in w.items:
-                number = f"{item.loss_db:6.2f}".replace(" ", "\u00a0")
-                lines.append(f"{_PAD}{number}  {item.name}")
-        lines.append(f"Fibre length {r.length_m:g} m")
-        self.query_one("#budget-out", Static).update(Text("\n".join(lines)))
-        summary = (
-            "Budget: "
-            + ", ".join(f"{w.wavelength_nm:g} nm {w.loss_db:.2f} dB" for w in r.wavelengths)
-            + (f" (+{r.margin_db:.2f} dB margin)" if r.margin_db else "")
+        from fieldkit.text import budget as lines
+
+        self.query_one("#budget-out", Static).update(
+            Text("\n".join(_keep_indent(line) for line in lines.breakdown_lines(report)))
         )
-        if report.application is not None:
-            summary += f"\n{report.application.name}: " + (
-                "PASS" if report.application.passed else "FAIL"
-            )
-        if report.transceiver is not None:
-            summary += f"\n{report.transceiver.name}: " + (
-                "PASS" if report.transceiver.passed else "FAIL"
-            )
-            if report.transceiver.overload and report.transceiver.attenuator_db is not None:
-                summary += f", add {report.transceiver.attenuator_db:g} dB attenuator"
         summary_out = self.query_one("#budget-summary", Static)
-        summary_out.update(summary)
+        summary_out.update(lines.summary_text(report))
         summary_out.set_class(False, "-waiting").set_class(False, "-problem")
-        sources: dict[str, None] = {}
-        for w in r.wavelengths:
-            for item in w.items:
-                sources.setdefault(f"{item.name.split(' × ')[0]}: {item.source}", None)
-        self.query_one("#sources-out", Static).update("\n".join(f"• {s}" for s in sources))
+        self.query_one("#sources-out", Static).update("\n".join(lines.source_lines(report)))
         app = report.application
-        if app is None:
-            self.query_one("#application-out", Static).update("Pick an application to check.")
-        else:
-            verdict = "PASS" if app.passed else "FAIL"
-            text = [
-                f"{app.name} on {app.fibre}: {verdict}",
-                f"loss {app.loss_db:.2f} of {app.loss_max_db:.2f} dB at "
-                f"{app.wavelength_nm:g} nm: headroom {app.loss_headroom_db:+.2f} dB "
-                f"{'ok' if app.loss_pass else 'OVER'}",
-                f"after margin {app.margin_headroom_db:+.2f} dB",
-                f"length {app.length_m:g} of {app.reach_m:g} m: headroom "
-                f"{app.length_headroom_m:+g} m {'ok' if app.length_pass else 'OVER'}",
-            ]
-            if app.loss_min_db is not None:
-                text.append(
-                    f"lowest plausible {app.link_loss_min_db:.2f} dB, class minimum "
-                    f"{app.loss_min_db:.2f} dB {'ok' if app.min_pass else 'UNDER'}"
-                )
-            self.query_one("#application-out", Static).update(_minus("\n".join(text)))
+        self.query_one("#application-out", Static).update(
+            "Pick an application to check."
+            if app is None
+            else "\n".join(lines.application_lines(app))
+        )
         tx = report.transceiver
-        if tx is None and self._tx_problem:
-            self.query_one("#transceiver-out", Static).update(self._tx_problem)
-        elif tx is None:
-            self.query_one("#transceiver-out", Static).update("Pick a transceiver to check.")
+        out = self.query_one("#transceiver-out", Static)
+        if tx is None:
+            out.update(self._tx_problem or "Pick a transceiver to check.")
         else:
-            verdict = "PASS" if tx.passed else "FAIL"
-            where = "" if tx.wavelength_nm is None else f" at {tx.wavelength_nm:g} nm"
-            text = [
-                f"{tx.name}{where}: {verdict}",
-                f"power budget {tx.power_budget_db:.2f} dB",
-                f"margin {tx.margin_db:+.2f} dB (needs {tx.required_margin_db:.2f}) "
-                f"{'ok' if tx.margin_pass else 'SHORT'}",
-                f"received {tx.received_min_dbm:+.2f} to {tx.received_max_dbm:+.2f} dBm",
-            ]
-            if not tx.overload:
-                text.append("no attenuator needed")
-            elif tx.attenuator_fits and tx.attenuator_db is not None:
-                text.append(
-                    f"overload: add {tx.attenuator_db:g} dB attenuator (fits "
-                    f"{tx.attenuator_min_db:.2f}–{tx.attenuator_max_db:.2f} dB)"
-                )
-            else:
-                text.append(
-                    f"overload: needs ≥ {tx.attenuator_min_db:.2f} dB but the margin "
-                    f"allows {tx.attenuator_max_db:.2f} dB: no attenuator fits"
-                )
-            self.query_one("#transceiver-out", Static).update(_minus("\n".join(text)))
+            out.update("\n".join(lines.transceiver_lines(tx)))
 
     # -- opening a saved budget ---------------------------------------------------------
     def action_open_saved(self) -> None:

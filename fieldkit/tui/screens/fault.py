@@ -27,6 +27,9 @@ from fieldkit.calc.locate import (
     DEFAULT_SAMPLE_SPACING_M,
     DEFAULT_SCALE_ERROR_PERCENT,
     OUTPUT_UNITS,
+    TYPED_HELIX_UNCERTAINTY_PERCENT,
+    UNKNOWN_HELIX_ESTIMATE_PERCENT,
+    UNKNOWN_HELIX_MAX_PERCENT,
     ErrorTerms,
     Landmark,
     LocateInput,
@@ -38,7 +41,15 @@ from fieldkit.calc.locate import (
     format_distance,
     locate,
 )
-from fieldkit.calc.units import InputError, Kind, normalise_text, parse, parse_number
+from fieldkit.calc.units import (
+    InputError,
+    Kind,
+    format_number,
+    normalise_text,
+    parse,
+    parse_number,
+)
+from fieldkit.inputs import otdr_distance_m
 from fieldkit.tui.widgets.quantity_field import QuantityField, field_name
 from fieldkit.tui.widgets.route_diagram import FaultMark, RouteDiagram, RoutePoint
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
@@ -46,6 +57,8 @@ from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 #: Characters a plain-number field lets through (a decimal comma is handled by the parser).
 NUMBER_CHARS = r"[0-9 .,+\-\u2212%eE]*"
 TYPED = "__typed__"
+#: The cable choice that gives no helix: the calculation's own assumption, shown as such.
+NOT_GIVEN = "__not_given__"
 
 
 class NumberField(Vertical):
@@ -425,10 +438,9 @@ class FaultScreen(Screen[None]):
             (f.name for f in fibres if f.name == "G.652.D"), fibres[0].name if fibres else TYPED
         )
         cables = list(library.cables.values())
-        cable_name = next(
-            (c.name for c in cables if c.name == "stranded loose tube"),
-            cables[0].name if cables else TYPED,
-        )
+        # No helix until one is chosen or typed, as on the command line: the range then runs
+        # from the fibre distance down to the shortest plausible cable (calc.locate).
+        cable_name = NOT_GIVEN
         yield WorkspaceBar()
         yield Static("", id="fault-summary")
         with VerticalScroll(id="fault-body"), Vertical(classes="two-col"):
@@ -438,8 +450,8 @@ class FaultScreen(Screen[None]):
                     yield QuantityField(
                         "OTDR dist",
                         expect=Kind.LENGTH,
-                        default_unit="m",
                         field_id="fault-distance",
+                        check=otdr_distance_m,
                         placeholder="3.412 km",
                         tooltip="The event's distance as the OTDR shows it",
                     )
@@ -489,7 +501,8 @@ class FaultScreen(Screen[None]):
                     with Horizontal(classes="fault-row"):
                         yield Label("Cable", classes="fault-label")
                         yield Select(
-                            [("helix typed", TYPED)] + [(c.name, c.name) for c in cables],
+                            [("helix not given", NOT_GIVEN), ("helix typed", TYPED)]
+                            + [(c.name, c.name) for c in cables],
                             value=cable_name,
                             id="fault-cable",
                             compact=True,
@@ -583,7 +596,11 @@ class FaultScreen(Screen[None]):
                         field_id="fault-ior-u",
                         value=f"{DEFAULT_GROUP_INDEX_UNCERTAINTY:g}",
                     )
-                    yield NumberField("Helix ± %", field_id="fault-helix-u", value="0.5")
+                    yield NumberField(
+                        "Helix ± %",
+                        field_id="fault-helix-u",
+                        value=format_number(TYPED_HELIX_UNCERTAINTY_PERCENT),
+                    )
                     yield QuantityField(
                         "Landmark ±",
                         expect=Kind.LENGTH,
@@ -678,6 +695,14 @@ class FaultScreen(Screen[None]):
         name = self.query_one("#fault-cable", Select).value
         note = self.query_one("#fault-cable-note", Static)
         cable = self._library().cables.get(str(name))
+        if name == NOT_GIVEN:
+            self.query_one("#fault-helix", Input).value = ""
+            note.update(
+                f"Helix not given: estimate {format_number(UNKNOWN_HELIX_ESTIMATE_PERCENT)} %, "
+                f"range 0–{format_number(UNKNOWN_HELIX_MAX_PERCENT)} % (fibre distance down to "
+                "the shortest plausible cable)."
+            )
+            return
         if cable is None:
             note.update("Typed helix; give its ± under Uncertainty.")
             return
@@ -770,7 +795,9 @@ class FaultScreen(Screen[None]):
             sample_spacing_m=given(self._q("fault-sampling"), defaults.sample_spacing_m),
             group_index_uncertainty=given(self._n("fault-ior-u"), defaults.group_index_uncertainty),
             helix_uncertainty_percent=(
-                given(self._n("fault-helix-u"), 0.0) if helix is not None else 0.0
+                given(self._n("fault-helix-u"), TYPED_HELIX_UNCERTAINTY_PERCENT)
+                if helix is not None
+                else 0.0
             ),
             landmark_route_uncertainty_m=given(self._q("fault-landmark-u"), 0.0),
         )

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 from textual.app import ComposeResult
 from textual.widget import Widget
 from textual.widgets import Input, Label, Static
@@ -59,8 +61,12 @@ class QuantityField(Widget):
         value: str = "",
         field_id: str,
         tooltip: str | None = None,
+        check: Callable[[str, str], object] | None = None,
     ) -> None:
         super().__init__(id=f"{field_id}-field")
+        # A field's own rule from fieldkit.inputs, run on the text before the unit parser
+        # (e.g. an OTDR distance refuses a bare number); it raises InputError to refuse.
+        self._check = check
         self._label = label
         self._expect = expect
         self._default_unit = default_unit
@@ -86,6 +92,8 @@ class QuantityField(Widget):
     def value(self) -> Value:
         """The typed value; raises InputError (and shows it) when it cannot be used."""
         try:
+            if self._check is not None:
+                self._check(self._input.value, field_name(self._label))
             parsed = parse(
                 self._input.value,
                 self._expect,

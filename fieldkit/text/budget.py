@@ -1,0 +1,196 @@
+"""The budget's result as lines of text: ``fieldkit budget`` prints them and the budget workspace
+shows them, so the two always say the same thing.
+
+Numbers: losses to 0.01 dB, levels to 0.01 dBm, headroom with its sign; negative numbers take the
+typographic minus (U+2212) and positive headroom a plus sign, names such as ``10GBASE-LR`` keep
+their hyphen. Lines are short (the workspace shows them in a column of about 38 characters at 80
+columns; the CLI prints the same lines).
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Any
+
+from fieldkit.calc.budget import (
+    ApplicationCheck,
+    BudgetReport,
+    TransceiverCheck,
+)
+from fieldkit.calc.units import format_number
+
+MINUS = "\u2212"
+
+#: The word of each application verdict.
+VERDICT_WORD = {"pass": "PASS", "no-margin": "FITS, NO MARGIN", "fail": "FAIL"}
+#: The sentence a "no-margin" verdict adds.
+NO_MARGIN_TEXT = "fits the limits, but not with the design margin"
+
+
+def minus(text: str) -> str:
+    """Negative numbers with the typographic minus, leaving names like 10GBASE-LR alone."""
+    return re.sub(r"(?<![\w.])-(?=\d)", MINUS, text)
+
+
+def db(x: float | None) -> str:
+    """A loss or margin: ``6.30 dB``; ``—`` when there is none."""
+    return "—" if x is None else minus(f"{x:.2f} dB")
+
+
+def signed_db(x: float) -> str:
+    """A headroom: ``+1.50 dB`` or ``−2.30 dB``."""
+    return minus(f"{x:+.2f} dB")
+
+
+def dbm(x: float) -> str:
+    return minus(f"{x:+.2f} dBm")
+
+
+def nm(x: float) -> str:
+    return f"{format_number(x)} nm"
+
+
+def length(x_m: float) -> str:
+    """``12.4 km`` from 1000 m up, else ``350 m``."""
+    return f"{format_number(x_m / 1000.0)} km" if abs(x_m) >= 1000 else f"{format_number(x_m)} m"
+
+
+def signed_length(x_m: float) -> str:
+    sign = "+" if x_m >= 0 else MINUS
+    return sign + length(abs(x_m))
+
+
+def verdict_word(verdict: str) -> str:
+    return VERDICT_WORD.get(verdict, verdict.upper())
+
+
+def _ok(flag: bool | None, bad: str) -> str:
+    return "n/a" if flag is None else ("ok" if flag else bad)
+
+
+# -- the loss budget ---------------------------------------------------------------------------
+
+
+def breakdown_lines(report: BudgetReport) -> list[str]:
+    """Per wavelength: the maximum and typical totals, the total with the margin, the items."""
+    r = report.result
+    lines: list[str] = [f"Note: {n}" for n in r.notes]
+    for w in r.wavelengths:
+        typical = "—" if w.typical_loss_db is None else f"{w.typical_loss_db:.2f}"
+        lines.append(f"{nm(w.wavelength_nm)}  max {db(w.loss_db)}  typ {typical} dB")
+        if r.margin_db:
+            lines.append(f"  with {db(r.margin_db)} margin: {db(w.loss_with_margin_db)}")
+        for item in w.items:
+            lines.append(f"  {item.loss_db:6.2f}  {item.name}")
+    lines.append(f"Fibre length {length(r.length_m)}")
+    return lines
+
+
+def summary_text(report: BudgetReport) -> str:
+    """The short result under the link: totals, the checks' verdicts."""
+    r = report.result
+    text = (
+        "Budget: "
+        + ", ".join(f"{nm(w.wavelength_nm)} {db(w.loss_db)}" for w in r.wavelengths)
+        + (f" (+{db(r.margin_db)} margin)" if r.margin_db else "")
+    )
+    app = report.application
+    if app is not None:
+        text += f"\n{app.name}: {verdict_word(app.verdict)}"
+    tx = report.transceiver
+    if tx is not None:
+        text += f"\n{tx.name}: {'PASS' if tx.passed else 'FAIL'}"
+        if tx.overload and tx.attenuator_db is not None:
+            text += f", add {format_number(tx.attenuator_db)} dB attenuator"
+    return text
+
+
+def source_lines(report: BudgetReport) -> list[str]:
+    """Each value used, once, with where it comes from."""
+    sources: dict[str, None] = {}
+    for w in report.result.wavelengths:
+        for item in w.items:
+            sources.setdefault(f"• {item.name.split(' × ')[0]}: {item.source}", None)
+    return list(sources)
+
+
+# -- the checks --------------------------------------------------------------------------------
+
+
+def application_lines(app: ApplicationCheck) -> list[str]:
+    """The application check: verdict, the row used, loss, margin, length, class minimum."""
+    lines = [f"{app.name} on {app.fibre}: {verdict_word(app.verdict)}"]
+    if app.row_reason:
+        lines.append(f"judged on {app.row_reason}")
+    lines.append(
+        f"loss {db(app.loss_db)} of {db(app.loss_max_db)} at {nm(app.wavelength_nm)}: "
+        f"headroom {signed_db(app.loss_headroom_db)} {_ok(app.loss_pass, 'OVER')}"
+    )
+    if app.margin_db:
+        lines.append(
+            f"after the {db(app.margin_db)} design margin: "
+            f"{signed_db(app.margin_headroom_db)} {_ok(app.margin_pass, 'SHORT')}"
+        )
+    lines.append(
+        f"length {length(app.length_m)} of {length(app.reach_m)}: headroom "
+        f"{signed_length(app.length_headroom_m)} {_ok(app.length_pass, 'OVER')}"
+    )
+    if app.loss_min_db is not None:
+        lines.append(
+            f"lowest plausible {db(app.link_loss_min_db)}, class minimum "
+            f"{db(app.loss_min_db)} {_ok(app.min_pass, 'UNDER')}"
+        )
+    if app.verdict == "no-margin":
+        lines.append(NO_MARGIN_TEXT)
+    return lines
+
+
+def transceiver_lines(tx: TransceiverCheck) -> list[str]:
+    """The transceiver check: verdict, power budget, margin, received range, attenuator."""
+    where = "" if tx.wavelength_nm is None else f" at {nm(tx.wavelength_nm)}"
+    lines = [f"{tx.name}{where}: {'PASS' if tx.passed else 'FAIL'}"]
+    if tx.family is not None:
+        lines.append(f"levels for {tx.family} fibre")
+    lines += [
+        f"power budget {db(tx.power_budget_db)}",
+        f"margin {signed_db(tx.margin_db)} (needs {db(tx.required_margin_db)}) "
+        f"{_ok(tx.margin_pass, 'SHORT')}",
+        f"received {dbm(tx.received_min_dbm)} to {dbm(tx.received_max_dbm)}",
+    ]
+    if not tx.overload:
+        lines.append("no attenuator needed")
+    elif tx.attenuator_fits and tx.attenuator_db is not None:
+        lines.append(
+            f"overload: add {format_number(tx.attenuator_db)} dB attenuator (fits "
+            f"{tx.attenuator_min_db:.2f}–{tx.attenuator_max_db:.2f} dB)"
+        )
+    else:
+        lines.append(
+            minus(
+                f"overload: needs ≥ {tx.attenuator_min_db:.2f} dB but the margin allows "
+                f"{tx.attenuator_max_db:.2f} dB: no attenuator fits"
+            )
+        )
+    return lines
+
+
+# -- the whole report, as the CLI prints it ----------------------------------------------------
+
+
+def report_lines(report: BudgetReport, extra: dict[str, Any] | None = None) -> list[str]:
+    """The budget, its notes and its checks: what ``fieldkit budget`` prints."""
+    r = report.result
+    lines: list[str] = []
+    label = report.extra.get("label")
+    if label:
+        lines.append(str(label))
+    lines.append(f"Fibre length {length(r.length_m)}; design margin {db(r.margin_db)}")
+    lines.append("")
+    lines += breakdown_lines(report)[:-1]  # the length is in the first line already
+    if report.application is not None:
+        lines.append("")
+        lines.append("Application " + "\n  ".join(application_lines(report.application)))
+    if report.transceiver is not None:
+        lines.append("")
+        lines.append("Transceiver " + "\n  ".join(transceiver_lines(report.transceiver)))
+    return "\n".join(lines).split("\n")
