@@ -20,13 +20,24 @@ from __future__ import annotations
 
 import math
 import tomllib
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
-from typing import Any
+from typing import Annotated, Any, Literal, overload
 
-from fieldkit.calc.fibre import Fibre, check_wavelength_nm, rayleigh_scaled_db_per_km
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    ValidationError,
+    ValidationInfo,
+    model_validator,
+)
+
+from fieldkit.calc.fibre import Fibre, check_wavelength_nm, lookup, rayleigh_scaled_db_per_km
 from fieldkit.calc.units import InputError, format_number, parse_number
 
 KINDS: tuple[str, ...] = (
@@ -262,6 +273,21 @@ class ReflectancePreset:
     origin: str = ""
 
 
+#: Any one preset.
+Preset = (
+    FibrePreset
+    | ConnectorPreset
+    | SplicePreset
+    | ComponentPreset
+    | ApplicationPreset
+    | TransceiverPreset
+    | CablePreset
+    | ColourSequencePreset
+    | SplicePlanPreset
+    | ReflectancePreset
+)
+
+
 @dataclass
 class PresetLibrary:
     """Every loaded preset, by kind and name, and the problems met while loading."""
@@ -279,20 +305,41 @@ class PresetLibrary:
     problems: list[str] = field(default_factory=list)
 
     def of_kind(self, kind: str) -> dict[str, Any]:
+        """The table of one kind, by name (for listing every kind alike)."""
         if kind not in KINDS:
             raise InputError(f"unknown preset kind '{kind}' (kinds: {', '.join(KINDS)})")
         table: dict[str, Any] = getattr(self, kind)
         return table
 
-    def find(self, kind: str, name: str) -> Any:
-        """The preset of ``kind`` called ``name`` (case and spacing forgiven).
+    @overload
+    def find(self, kind: Literal["fibres"], name: str) -> FibrePreset: ...
+    @overload
+    def find(self, kind: Literal["connectors"], name: str) -> ConnectorPreset: ...
+    @overload
+    def find(self, kind: Literal["splices"], name: str) -> SplicePreset: ...
+    @overload
+    def find(self, kind: Literal["components"], name: str) -> ComponentPreset: ...
+    @overload
+    def find(self, kind: Literal["applications"], name: str) -> ApplicationPreset: ...
+    @overload
+    def find(self, kind: Literal["transceivers"], name: str) -> TransceiverPreset: ...
+    @overload
+    def find(self, kind: Literal["cables"], name: str) -> CablePreset: ...
+    @overload
+    def find(self, kind: Literal["colour_sequences"], name: str) -> ColourSequencePreset: ...
+    @overload
+    def find(self, kind: Literal["splice_plans"], name: str) -> SplicePlanPreset: ...
+    @overload
+    def find(self, kind: Literal["reflectance"], name: str) -> ReflectancePreset: ...
+    def find(self, kind: str, name: str) -> Preset:
+        """The preset of ``kind`` called ``name`` (case and spacing forgiven), typed by kind.
 
         Raises
         ------
         InputError
             Naming the unknown preset and the ones that exist.
         """
-        table = self.of_kind(kind)
+        table: Mapping[str, Preset] = self.of_kind(kind)
         if name in table:
             return table[name]
         wanted = _fold(name)
@@ -402,8 +449,542 @@ def load_file(path: Path) -> PresetLibrary:
 # -- parsing and validation --------------------------------------------------------------------
 
 
-class _EntryError(Exception):
+# -- the preset file format: one pydantic model per kind of entry ------------------------------
+#
+# The models check one entry of a file (types, ranges, the fields each kind allows) and turn it
+# into the typed preset the rest of fieldkit uses. A problem becomes one line naming the file,
+# the entry and the field (see _problem_text).
+
+
+class _EntryError(ValueError):
     pass
+
+
+def _reject_bool_and_nan(value: Any) -> Any:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise _EntryError(f"must be a number, not {value!r}")
+    if not math.isfinite(value):
+        raise _EntryError(f"must be a finite number, not {value!r}")
+    return float(value)
+
+
+def _range(low: float | None = None, high: float | None = None, positive: bool = False) -> Any:
+    def check(number: float) -> float:
+        if positive and number <= 0:
+            raise _EntryError(f"must be above zero, not {number:g}")
+        if low is not None and number < low:
+            raise _EntryError(f"must be at least {low:g}, not {number:g}")
+        if high is not None and number > high:
+            raise _EntryError(f"must be at most {high:g}, not {number:g}")
+        return number
+
+    return AfterValidator(check)
+
+
+Number = Annotated[float, BeforeValidator(_reject_bool_and_nan)]
+LossDb = Annotated[Number, _range(0.0, 10.0)]
+SpliceDb = Annotated[Number, _range(0.0, 5.0)]
+ComponentDb = Annotated[Number, _range(0.0, 60.0)]
+Wavelength = Annotated[Number, _range(200.0, 2000.0)]
+
+
+def _text_field(value: Any) -> str:
+    if not isinstance(value, str) or not value.strip():
+        raise _EntryError("must be text")
+    return value.strip()
+
+
+Text = Annotated[str, BeforeValidator(_text_field)]
+
+
+def _optional_text(value: Any) -> str:
+    if not isinstance(value, str):
+        raise _EntryError("must be text")
+    return value.strip()
+
+
+def _wavelength_table(low: float, high: float) -> Any:
+    def parse(raw: Any, info: ValidationInfo) -> dict[float, float]:
+        key = info.field_name
+        if not isinstance(raw, dict):
+            raise _EntryError(
+                f"'{key}' must be a table of wavelength = value, e.g. {{ 1310 = 0.4 }}"
+            )
+        out: dict[float, float] = {}
+        for k, v in raw.items():
+            try:
+                nm = check_wavelength_nm(parse_number(str(k), what=str(key)), f"'{key}'")
+            except InputError as exc:
+                raise _EntryError(f"'{key}': key '{k}' is not a wavelength in nm ({exc})") from None
+            try:
+                value = _reject_bool_and_nan(v)
+            except _EntryError as exc:
+                raise _EntryError(f"'{key}.{k}' {exc}") from None
+            if not low <= value <= high:
+                raise _EntryError(f"'{key}' at {nm:g} nm: {value:g} is outside {low:g}–{high:g}")
+            out[nm] = value
+        return out
+
+    return BeforeValidator(parse)
+
+
+def _ports_table(raw: Any, info: ValidationInfo) -> dict[int, float]:
+    key = info.field_name
+    if not isinstance(raw, dict):
+        raise _EntryError(f"'{key}' must be a table of output count = dB, e.g. {{ 32 = 2.0 }}")
+    out: dict[int, float] = {}
+    for k, v in raw.items():
+        try:
+            n = int(str(k))
+        except ValueError:
+            raise _EntryError(f"'{key}': key '{k}' is not an output count") from None
+        if n < 2:
+            raise _EntryError(f"'{key}': a splitter has at least 2 outputs, not {n}")
+        value = _reject_bool_and_nan(v)
+        if not 0 <= value <= 10:
+            raise _EntryError(f"'{key}' for {n} outputs: {value:g} dB is outside 0–10 dB")
+        out[n] = value
+    return out
+
+
+class _Entry(BaseModel):
+    """What every preset entry has: a name, the source of its values, optional notes."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    name: Text
+    source: Text
+    notes: Any = None
+
+    def preset(self, origin: str) -> Any:
+        """The typed preset of this entry (each kind gives its own)."""
+        raise NotImplementedError
+
+
+class FibreEntry(_Entry):
+    family: Literal["multimode", "singlemode"]
+    standard: Annotated[str, BeforeValidator(_optional_text)] = ""
+    default_wavelengths_nm: list[Number] = Field(default_factory=list)
+    core_diameter_um: Annotated[Number, _range(high=1000.0, positive=True)] | None = None
+    numerical_aperture: Annotated[Number, _range(high=1.0, positive=True)] | None = None
+    attenuation_max_db_per_km: Annotated[dict[float, float], _wavelength_table(0.0, 20.0)]
+    attenuation_typical_db_per_km: Annotated[dict[float, float], _wavelength_table(0.0, 20.0)] = (
+        Field(default_factory=dict)
+    )
+    group_index: Annotated[dict[float, float], _wavelength_table(1.0, 2.0)] = Field(
+        default_factory=dict
+    )
+    mode_field_diameter_um: Annotated[dict[float, float], _wavelength_table(1.0, 20.0)] = Field(
+        default_factory=dict
+    )
+    modal_bandwidth_mhz_km: Annotated[dict[float, float], _wavelength_table(1.0, 1e6)] = Field(
+        default_factory=dict
+    )
+    cable_cutoff_nm: Wavelength | None = None
+    zero_dispersion_nm: tuple[Wavelength, Wavelength] | None = None
+    dispersion_slope_ps_nm2_km: Annotated[Number, _range(high=1.0, positive=True)] | None = None
+    attenuation_estimated_nm: list[Wavelength] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _consistent(self) -> FibreEntry:
+        if not self.attenuation_max_db_per_km:
+            raise _EntryError("'attenuation_max_db_per_km' must not be empty")
+        for nm, typ in self.attenuation_typical_db_per_km.items():
+            top = self.attenuation_max_db_per_km.get(nm)
+            if top is not None and typ > top:
+                raise _EntryError(
+                    f"typical attenuation {typ:g} dB/km at {nm:g} nm is above the maximum "
+                    f"{top:g} dB/km"
+                )
+        if self.family == "multimode" and (
+            self.core_diameter_um is None or self.numerical_aperture is None
+        ):
+            raise _EntryError("a multimode fibre needs 'core_diameter_um' and 'numerical_aperture'")
+        if self.modal_bandwidth_mhz_km and self.family != "multimode":
+            raise _EntryError("'modal_bandwidth_mhz_km' is for multimode fibre")
+        if (self.zero_dispersion_nm is None) != (self.dispersion_slope_ps_nm2_km is None):
+            raise _EntryError("give 'zero_dispersion_nm' and 'dispersion_slope_ps_nm2_km' together")
+        if self.zero_dispersion_nm is not None and (
+            self.zero_dispersion_nm[0] > self.zero_dispersion_nm[1]
+        ):
+            raise _EntryError("'zero_dispersion_nm' must be [lowest, highest]")
+        for nm in self.default_wavelengths_nm:
+            if lookup(self.attenuation_max_db_per_km, nm) is None:
+                raise _EntryError(f"default wavelength {nm:g} nm has no maximum attenuation")
+        for nm in self.attenuation_estimated_nm:
+            if lookup(self.attenuation_max_db_per_km, nm) is not None:
+                raise _EntryError(
+                    f"'attenuation_estimated_nm': {nm:g} nm already has a maximum attenuation"
+                )
+        return self
+
+    def preset(self, origin: str) -> FibrePreset:
+        att_max = dict(self.attenuation_max_db_per_km)
+        att_typ = dict(self.attenuation_typical_db_per_km)
+        for nm in self.attenuation_estimated_nm:
+            # No standard gives a value here: scale the nearest tabulated one as Rayleigh
+            # scattering scales, and mark the wavelength so every budget says so.
+            base = min(att_max, key=lambda have: abs(have - nm))
+            att_max[nm] = rayleigh_scaled_db_per_km(att_max[base], base, nm)
+            if nm not in att_typ and base in att_typ:
+                att_typ[nm] = rayleigh_scaled_db_per_km(att_typ[base], base, nm)
+        return FibrePreset(
+            name=self.name,
+            family=self.family,
+            attenuation_max=att_max,
+            attenuation_typical=att_typ,
+            group_indices=dict(self.group_index),
+            core_diameter_um=self.core_diameter_um,
+            numerical_aperture=self.numerical_aperture,
+            mfd_um=dict(self.mode_field_diameter_um),
+            source=self.source,
+            standard=self.standard,
+            default_wavelengths_nm=tuple(self.default_wavelengths_nm),
+            modal_bandwidth_mhz_km=dict(self.modal_bandwidth_mhz_km),
+            cable_cutoff_nm=self.cable_cutoff_nm,
+            zero_dispersion_nm=self.zero_dispersion_nm,
+            dispersion_slope_ps_nm2_km=self.dispersion_slope_ps_nm2_km,
+            estimated_nm=tuple(self.attenuation_estimated_nm),
+            origin=origin,
+        )
+
+
+def _typical_not_above(max_db: float | None, typ_db: float | None) -> None:
+    if max_db is not None and typ_db is not None and typ_db > max_db:
+        raise _EntryError(f"typical loss {typ_db:g} dB is above the maximum {max_db:g} dB")
+
+
+class ConnectorEntry(_Entry):
+    loss_max_db: LossDb
+    loss_typical_db: LossDb | None = None
+
+    @model_validator(mode="after")
+    def _consistent(self) -> ConnectorEntry:
+        _typical_not_above(self.loss_max_db, self.loss_typical_db)
+        return self
+
+    def preset(self, origin: str) -> ConnectorPreset:
+        return ConnectorPreset(
+            self.name, self.loss_max_db, self.loss_typical_db, self.source, origin
+        )
+
+
+class SpliceEntry(_Entry):
+    method: Annotated[str, BeforeValidator(_optional_text)]
+    loss_max_db: SpliceDb
+    loss_typical_db: SpliceDb | None = None
+
+    @model_validator(mode="after")
+    def _consistent(self) -> SpliceEntry:
+        if self.method not in SPLICE_METHODS:
+            raise _EntryError(f"'method' must be fusion or mechanical, not '{self.method}'")
+        _typical_not_above(self.loss_max_db, self.loss_typical_db)
+        return self
+
+    def preset(self, origin: str) -> SplicePreset:
+        return SplicePreset(
+            self.name, self.method, self.loss_max_db, self.loss_typical_db, self.source, origin
+        )
+
+
+class ComponentEntry(_Entry):
+    kind: Annotated[str, BeforeValidator(_optional_text)]
+    loss_max_db: ComponentDb | None = None
+    loss_typical_db: ComponentDb | None = None
+    excess_max_db: Annotated[dict[int, float], BeforeValidator(_ports_table)] = Field(
+        default_factory=dict
+    )
+    excess_typical_db: Annotated[dict[int, float], BeforeValidator(_ports_table)] = Field(
+        default_factory=dict
+    )
+    inputs: Annotated[Number, _range(1.0, 2.0)] = 1.0
+
+    @model_validator(mode="after")
+    def _consistent(self) -> ComponentEntry:
+        if self.kind not in COMPONENT_KINDS:
+            raise _EntryError(
+                f"'kind' must be one of {', '.join(COMPONENT_KINDS)}, not '{self.kind}'"
+            )
+        _typical_not_above(self.loss_max_db, self.loss_typical_db)
+        for n, typ in self.excess_typical_db.items():
+            if n in self.excess_max_db and typ > self.excess_max_db[n]:
+                raise _EntryError(f"typical excess {typ:g} dB for {n} outputs is above the maximum")
+        if self.kind == "splitter":
+            if not self.excess_max_db:
+                raise _EntryError("a splitter needs 'excess_max_db' by output count")
+        elif self.loss_max_db is None:
+            raise _EntryError("'loss_max_db' is missing")
+        return self
+
+    def preset(self, origin: str) -> ComponentPreset:
+        return ComponentPreset(
+            self.name,
+            self.kind,
+            self.loss_max_db,
+            self.loss_typical_db,
+            dict(self.excess_max_db),
+            dict(self.excess_typical_db),
+            int(self.inputs),
+            self.source,
+            origin,
+        )
+
+
+class LimitEntry(BaseModel):
+    """An application's row for one fibre type or family."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    loss_max_db: ComponentDb
+    reach_m: Annotated[Number, _range(high=1e6, positive=True)]
+    loss_min_db: ComponentDb | None = None
+
+    @model_validator(mode="after")
+    def _consistent(self) -> LimitEntry:
+        if self.loss_min_db is not None and self.loss_min_db > self.loss_max_db:
+            raise _EntryError("loss_min_db is above loss_max_db")
+        return self
+
+
+class ApplicationEntry(_Entry):
+    kind: Annotated[str, BeforeValidator(_optional_text)] = "application"
+    wavelengths_nm: Annotated[list[Number], Field(min_length=1)]
+    limits: Annotated[dict[str, LimitEntry], Field(min_length=1)]
+    line_rate_gbd: Annotated[Number, _range(high=1e4, positive=True)] | None = None
+
+    def preset(self, origin: str) -> ApplicationPreset:
+        return ApplicationPreset(
+            self.name,
+            self.kind,
+            tuple(self.wavelengths_nm),
+            {
+                fibre: ApplicationFibreLimit(row.loss_max_db, row.reach_m, row.loss_min_db)
+                for fibre, row in self.limits.items()
+            },
+            self.source,
+            origin,
+            line_rate_gbd=self.line_rate_gbd,
+        )
+
+
+LaunchDbm = Annotated[Number, _range(-60.0, 30.0)]
+ReceiveDbm = Annotated[Number, _range(-80.0, 30.0)]
+
+
+def _check_levels(levels: TransceiverLevels) -> TransceiverLevels:
+    if levels.tx_min_dbm > levels.tx_max_dbm:
+        raise _EntryError("'tx_min_dbm' is above 'tx_max_dbm'")
+    if levels.rx_sensitivity_dbm >= levels.rx_overload_dbm:
+        raise _EntryError("'rx_sensitivity_dbm' must be below 'rx_overload_dbm'")
+    return levels
+
+
+class FamilyLevelsEntry(BaseModel):
+    """The levels that differ on one fibre family; the others are the entry's own."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+    tx_min_dbm: LaunchDbm | None = None
+    tx_max_dbm: LaunchDbm | None = None
+    rx_sensitivity_dbm: ReceiveDbm | None = None
+    rx_overload_dbm: ReceiveDbm | None = None
+
+
+class TransceiverEntry(_Entry):
+    wavelength_nm: Wavelength | None = None
+    tx_min_dbm: LaunchDbm
+    tx_max_dbm: LaunchDbm
+    rx_sensitivity_dbm: ReceiveDbm
+    rx_overload_dbm: ReceiveDbm
+    by_family: dict[Literal["multimode", "singlemode"], FamilyLevelsEntry] = Field(
+        default_factory=dict
+    )
+    dispersion_tolerance_ps_nm: Annotated[Number, _range(high=1e6, positive=True)] | None = None
+    line_rate_gbd: Annotated[Number, _range(high=1e4, positive=True)] | None = None
+
+    def levels(self) -> TransceiverLevels:
+        return TransceiverLevels(
+            self.tx_min_dbm, self.tx_max_dbm, self.rx_sensitivity_dbm, self.rx_overload_dbm
+        )
+
+    @model_validator(mode="after")
+    def _consistent(self) -> TransceiverEntry:
+        _check_levels(self.levels())
+        for family in self.by_family:
+            try:
+                self._family_levels(family)
+            except _EntryError as exc:
+                raise _EntryError(f"'by_family.{family}': {exc}") from None
+        return self
+
+    def _family_levels(self, family: str) -> TransceiverLevels:
+        over = self.by_family[family]  # type: ignore[index]
+        base = self.levels()
+        return _check_levels(
+            TransceiverLevels(
+                base.tx_min_dbm if over.tx_min_dbm is None else over.tx_min_dbm,
+                base.tx_max_dbm if over.tx_max_dbm is None else over.tx_max_dbm,
+                base.rx_sensitivity_dbm
+                if over.rx_sensitivity_dbm is None
+                else over.rx_sensitivity_dbm,
+                base.rx_overload_dbm if over.rx_overload_dbm is None else over.rx_overload_dbm,
+            )
+        )
+
+    def preset(self, origin: str) -> TransceiverPreset:
+        return TransceiverPreset(
+            self.name,
+            self.wavelength_nm,
+            self.tx_min_dbm,
+            self.tx_max_dbm,
+            self.rx_sensitivity_dbm,
+            self.rx_overload_dbm,
+            self.source,
+            origin,
+            by_family={f: self._family_levels(f) for f in self.by_family},
+            dispersion_tolerance_ps_nm=self.dispersion_tolerance_ps_nm,
+            line_rate_gbd=self.line_rate_gbd,
+        )
+
+
+Percent = Annotated[Number, _range(0.0, 20.0)]
+
+
+class CableEntry(_Entry):
+    construction: Text
+    helix_percent: Percent
+    helix_uncertainty_percent: Percent
+
+    def preset(self, origin: str) -> CablePreset:
+        return CablePreset(
+            self.name,
+            self.construction,
+            self.helix_percent,
+            self.helix_uncertainty_percent,
+            self.source,
+            origin,
+        )
+
+
+class ReflectanceEntry(_Entry):
+    reflectance_max_db: Annotated[Number, _range(-100.0, 0.0)]
+    orl_min_db: Annotated[Number, _range(0.0, 100.0)] | None = None
+
+    def preset(self, origin: str) -> ReflectancePreset:
+        return ReflectancePreset(
+            self.name, self.reflectance_max_db, self.orl_min_db, self.source, origin
+        )
+
+
+class ColourSequenceEntry(_Entry):
+    colours: list[Any]
+    tracer_colour: Annotated[str, BeforeValidator(_optional_text)] = "black"
+    tracer_on_tracer: Annotated[str, BeforeValidator(_optional_text)] = "yellow"
+
+    @model_validator(mode="after")
+    def _consistent(self) -> ColourSequenceEntry:
+        colours = self.colours
+        if not 2 <= len(colours) <= 48 or not all(
+            isinstance(c, str) and c.strip() for c in colours
+        ):
+            raise _EntryError("'colours' must be a list of 2 to 48 colour words")
+        words = [c.strip().lower() for c in colours]
+        if len(set(words)) != len(words):
+            raise _EntryError("'colours' names a colour twice")
+        return self
+
+    def preset(self, origin: str) -> ColourSequencePreset:
+        return ColourSequencePreset(
+            self.name,
+            tuple(c.strip().lower() for c in self.colours),
+            (self.tracer_colour or "black").lower(),
+            (self.tracer_on_tracer or "yellow").lower(),
+            self.source,
+            origin,
+        )
+
+
+class SplicePlanEntry(_Entry):
+    plan: Text
+
+    @model_validator(mode="after")
+    def _consistent(self) -> SplicePlanEntry:
+        from fieldkit.inputs import splice_plan
+
+        try:
+            # Checked with placeholder cables; "straight" takes the count when applied.
+            splice_plan(self.plan, "A", "B", count_a=1, what="plan")
+        except InputError as exc:
+            raise _EntryError(str(exc)) from None
+        return self
+
+    def preset(self, origin: str) -> SplicePlanPreset:
+        return SplicePlanPreset(self.name, self.plan, self.source, origin)
+
+
+_ENTRY_MODELS: dict[str, type[_Entry]] = {
+    "fibres": FibreEntry,
+    "connectors": ConnectorEntry,
+    "splices": SpliceEntry,
+    "components": ComponentEntry,
+    "applications": ApplicationEntry,
+    "transceivers": TransceiverEntry,
+    "cables": CableEntry,
+    "colour_sequences": ColourSequenceEntry,
+    "splice_plans": SplicePlanEntry,
+    "reflectance": ReflectanceEntry,
+}
+
+
+def _problem_text(error: ValidationError) -> str:
+    """The first problem of a validation error as one line: unknown fields together, a missing
+    field by name, a row of an application table by its fibre."""
+    errors = error.errors()
+    unknown = [str(e["loc"][-1]) for e in errors if e["type"] == "extra_forbidden"]
+    if unknown and all(len(e["loc"]) == 1 for e in errors if e["type"] == "extra_forbidden"):
+        return f"unknown field(s) {', '.join(sorted(unknown))}"
+    # the entry's own figures first, its source last (as a reader goes through the entry)
+    first = sorted(errors, key=lambda e: e["loc"][:1] == ("source",))[0]
+    loc = [str(part) for part in first["loc"]]
+    where = ""
+    if len(loc) >= 2 and loc[0] == "limits":
+        where = f"limits for '{loc[1]}': "
+        loc = loc[2:]
+    elif len(loc) >= 2 and loc[0] == "by_family":
+        where = f"'by_family.{loc[1]}': "
+        loc = loc[2:]
+    field = ".".join(loc)
+    kind = first["type"]
+    if kind == "missing":
+        return f"{where}'{field}' is missing"
+    if kind == "extra_forbidden":
+        return f"{where}unknown field(s) {field}"
+    ctx = first.get("ctx") or {}
+    inner = ctx.get("error")
+    if isinstance(inner, _EntryError):
+        message = str(inner)
+        if not field or message.startswith("'"):
+            return f"{where}{message}"
+        return f"{where}'{field}' {message}"
+    if kind == "literal_error":
+        return f"{where}'{field}' must be {ctx.get('expected', '')}, not {first['input']!r}"
+    message = first["msg"].removeprefix("Value error, ")
+    return f"{where}'{field}': {message}" if field else f"{where}{message}"
+
+
+def parse_entry(kind: str, entry: Mapping[str, Any], origin: str) -> Any:
+    """The typed preset of one entry of a preset file.
+
+    Raises
+    ------
+    InputError
+        One line naming the field and the problem.
+    """
+    model = _ENTRY_MODELS[kind]
+    try:
+        return model.model_validate(dict(entry)).preset(origin)
+    except ValidationError as exc:
+        raise InputError(_problem_text(exc)) from None
 
 
 def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
@@ -422,7 +1003,7 @@ def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
         library.problems.append(f"{label}: is not valid TOML (nested too deeply)")
         return
     for kind, entries in data.items():
-        if kind not in _PARSERS:
+        if kind not in _ENTRY_MODELS:
             library.problems.append(
                 f"{label}: unknown section '{kind}' (sections: {', '.join(KINDS)})"
             )
@@ -430,488 +1011,18 @@ def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
         if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
             library.problems.append(f"{label}: '{kind}' must be an array of tables ([[{kind}]])")
             continue
-        parser, allowed = _PARSERS[kind]
         table = library.of_kind(kind)
         for index, entry in enumerate(entries, start=1):
             name = entry.get("name")
             entry_label = f"'{name}'" if isinstance(name, str) and name.strip() else f"#{index}"
+            if not isinstance(name, str) or not name.strip():
+                library.problems.append(
+                    f"{label}: {kind} entry {entry_label}: 'name' is missing or not text"
+                )
+                continue
             try:
-                if not isinstance(name, str) or not name.strip():
-                    raise _EntryError("'name' is missing or not text")
-                unknown = sorted(set(entry) - allowed)
-                if unknown:
-                    raise _EntryError(f"unknown field(s) {', '.join(unknown)}")
-                preset = parser(entry, label)
-            except _EntryError as exc:
+                preset = parse_entry(kind, entry, label)
+            except InputError as exc:
                 library.problems.append(f"{label}: {kind} entry {entry_label}: {exc}")
                 continue
             table[preset.name] = preset
-
-
-def _text(entry: Mapping[str, Any], key: str, *, required: bool = True, default: str = "") -> str:
-    value = entry.get(key)
-    if value is None:
-        if required:
-            raise _EntryError(f"'{key}' is missing")
-        return default
-    if not isinstance(value, str) or (required and not value.strip()):
-        raise _EntryError(f"'{key}' must be text")
-    return value.strip()
-
-
-def _number(value: Any, key: str) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise _EntryError(f"'{key}' must be a number, not {value!r}")
-    number = float(value)
-    if not math.isfinite(number):
-        raise _EntryError(f"'{key}' must be a finite number, not {value!r}")
-    return number
-
-
-def _num(
-    entry: Mapping[str, Any],
-    key: str,
-    *,
-    required: bool = True,
-    low: float | None = None,
-    high: float | None = None,
-    positive: bool = False,
-) -> float | None:
-    if key not in entry:
-        if required:
-            raise _EntryError(f"'{key}' is missing")
-        return None
-    number = _number(entry[key], key)
-    if positive and number <= 0:
-        raise _EntryError(f"'{key}' must be above zero, not {number:g}")
-    if low is not None and number < low:
-        raise _EntryError(f"'{key}' must be at least {low:g}, not {number:g}")
-    if high is not None and number > high:
-        raise _EntryError(f"'{key}' must be at most {high:g}, not {number:g}")
-    return number
-
-
-def _req(entry: Mapping[str, Any], key: str, **kw: Any) -> float:
-    value = _num(entry, key, required=True, **kw)
-    assert value is not None
-    return value
-
-
-def _wavelength_key(key: str, table: str) -> float:
-    try:
-        nm = parse_number(str(key), what=table)
-    except InputError as exc:
-        raise _EntryError(f"'{table}': key '{key}' is not a wavelength in nm") from exc
-    try:
-        return check_wavelength_nm(nm, f"'{table}'")
-    except InputError as exc:
-        raise _EntryError(str(exc)) from None
-
-
-def _by_wavelength(
-    entry: Mapping[str, Any], key: str, *, low: float, high: float, required: bool = False
-) -> dict[float, float]:
-    raw = entry.get(key)
-    if raw is None:
-        if required:
-            raise _EntryError(f"'{key}' is missing")
-        return {}
-    if not isinstance(raw, dict) or (required and not raw):
-        raise _EntryError(f"'{key}' must be a table of wavelength = value, e.g. {{ 1310 = 0.4 }}")
-    out: dict[float, float] = {}
-    for k, v in raw.items():
-        nm = _wavelength_key(k, key)
-        value = _number(v, f"{key}.{k}")
-        if not low <= value <= high:
-            raise _EntryError(f"'{key}' at {nm:g} nm: {value:g} is outside {low:g}–{high:g}")
-        out[nm] = value
-    return out
-
-
-def _by_ports(entry: Mapping[str, Any], key: str) -> dict[int, float]:
-    raw = entry.get(key)
-    if raw is None:
-        return {}
-    if not isinstance(raw, dict):
-        raise _EntryError(f"'{key}' must be a table of output count = dB, e.g. {{ 32 = 2.0 }}")
-    out: dict[int, float] = {}
-    for k, v in raw.items():
-        try:
-            n = int(str(k))
-        except ValueError as exc:
-            raise _EntryError(f"'{key}': key '{k}' is not an output count") from exc
-        if n < 2:
-            raise _EntryError(f"'{key}': a splitter has at least 2 outputs, not {n}")
-        value = _number(v, f"{key}.{k}")
-        if not 0 <= value <= 10:
-            raise _EntryError(f"'{key}' for {n} outputs: {value:g} dB is outside 0–10 dB")
-        out[n] = value
-    return out
-
-
-def _fibre(entry: Mapping[str, Any], origin: str) -> FibrePreset:
-    family = _text(entry, "family")
-    if family not in ("multimode", "singlemode"):
-        raise _EntryError(f"'family' must be multimode or singlemode, not '{family}'")
-    att_max = _by_wavelength(entry, "attenuation_max_db_per_km", low=0.0, high=20.0, required=True)
-    att_typ = _by_wavelength(entry, "attenuation_typical_db_per_km", low=0.0, high=20.0)
-    for nm, typ in att_typ.items():
-        if nm in att_max and typ > att_max[nm]:
-            raise _EntryError(
-                f"typical attenuation {typ:g} dB/km at {nm:g} nm is above the maximum "
-                f"{att_max[nm]:g} dB/km"
-            )
-    group = _by_wavelength(entry, "group_index", low=1.0, high=2.0)
-    mfd = _by_wavelength(entry, "mode_field_diameter_um", low=1.0, high=20.0)
-    core = _num(entry, "core_diameter_um", required=False, positive=True, high=1000.0)
-    na = _num(entry, "numerical_aperture", required=False, positive=True, high=1.0)
-    if family == "multimode" and (core is None or na is None):
-        raise _EntryError("a multimode fibre needs 'core_diameter_um' and 'numerical_aperture'")
-    raw_defaults = entry.get("default_wavelengths_nm", [])
-    if not isinstance(raw_defaults, list):
-        raise _EntryError("'default_wavelengths_nm' must be a list of wavelengths")
-    defaults = tuple(_number(x, "default_wavelengths_nm") for x in raw_defaults)
-    for nm in defaults:
-        if not any(abs(nm - have) <= 0.5 for have in att_max):
-            raise _EntryError(f"default wavelength {nm:g} nm has no maximum attenuation")
-    bandwidth = _by_wavelength(entry, "modal_bandwidth_mhz_km", low=1.0, high=1e6)
-    if bandwidth and family != "multimode":
-        raise _EntryError("'modal_bandwidth_mhz_km' is for multimode fibre")
-    cutoff = _num(entry, "cable_cutoff_nm", required=False, low=200.0, high=2000.0)
-    slope = _num(entry, "dispersion_slope_ps_nm2_km", required=False, positive=True, high=1.0)
-    raw_zero = entry.get("zero_dispersion_nm")
-    zero: tuple[float, float] | None = None
-    if raw_zero is not None:
-        if not isinstance(raw_zero, list) or len(raw_zero) != 2:
-            raise _EntryError("'zero_dispersion_nm' must be [lowest, highest] in nm")
-        lo, hi = (_number(x, "zero_dispersion_nm") for x in raw_zero)
-        if not 200.0 <= lo <= hi <= 2000.0:
-            raise _EntryError("'zero_dispersion_nm' must be [lowest, highest], 200–2000 nm")
-        zero = (lo, hi)
-    if (zero is None) != (slope is None):
-        raise _EntryError("give 'zero_dispersion_nm' and 'dispersion_slope_ps_nm2_km' together")
-    estimated = _estimated(entry, att_max, att_typ)
-    return FibrePreset(
-        name=_text(entry, "name"),
-        family=family,  # type: ignore[arg-type]
-        attenuation_max=att_max,
-        attenuation_typical=att_typ,
-        group_indices=group,
-        core_diameter_um=core,
-        numerical_aperture=na,
-        mfd_um=mfd,
-        source=_text(entry, "source"),
-        standard=_text(entry, "standard", required=False),
-        default_wavelengths_nm=defaults,
-        modal_bandwidth_mhz_km=bandwidth,
-        cable_cutoff_nm=cutoff,
-        zero_dispersion_nm=zero,
-        dispersion_slope_ps_nm2_km=slope,
-        estimated_nm=estimated,
-        origin=origin,
-    )
-
-
-def _estimated(
-    entry: Mapping[str, Any], att_max: dict[float, float], att_typ: dict[float, float]
-) -> tuple[float, ...]:
-    """Wavelengths listed in ``attenuation_estimated_nm``: each gets a maximum scaled from the
-    nearest tabulated one as Rayleigh scattering scales (and a typical value likewise, unless one
-    is given). The tables are filled in place."""
-    raw = entry.get("attenuation_estimated_nm", [])
-    if not isinstance(raw, list):
-        raise _EntryError("'attenuation_estimated_nm' must be a list of wavelengths")
-    out: list[float] = []
-    for x in raw:
-        nm = _number(x, "attenuation_estimated_nm")
-        if not 200 <= nm <= 2000:
-            raise _EntryError(f"'attenuation_estimated_nm': {nm:g} nm is not an optical wavelength")
-        if any(abs(nm - have) <= 0.5 for have in att_max):
-            raise _EntryError(
-                f"'attenuation_estimated_nm': {nm:g} nm already has a maximum attenuation"
-            )
-        if not att_max:
-            raise _EntryError("'attenuation_estimated_nm' needs a tabulated maximum to scale")
-        base = min(att_max, key=lambda have: abs(have - nm))
-        att_max[nm] = rayleigh_scaled_db_per_km(att_max[base], base, nm)
-        if nm not in att_typ and base in att_typ:
-            att_typ[nm] = rayleigh_scaled_db_per_km(att_typ[base], base, nm)
-        out.append(nm)
-    return tuple(out)
-
-
-def _typical_not_above(max_db: float | None, typ_db: float | None) -> None:
-    if max_db is not None and typ_db is not None and typ_db > max_db:
-        raise _EntryError(f"typical loss {typ_db:g} dB is above the maximum {max_db:g} dB")
-
-
-def _connector(entry: Mapping[str, Any], origin: str) -> ConnectorPreset:
-    loss_max = _req(entry, "loss_max_db", low=0.0, high=10.0)
-    loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=10.0)
-    _typical_not_above(loss_max, loss_typ)
-    return ConnectorPreset(_text(entry, "name"), loss_max, loss_typ, _text(entry, "source"), origin)
-
-
-def _splice(entry: Mapping[str, Any], origin: str) -> SplicePreset:
-    method = _text(entry, "method")
-    if method not in SPLICE_METHODS:
-        raise _EntryError(f"'method' must be fusion or mechanical, not '{method}'")
-    loss_max = _req(entry, "loss_max_db", low=0.0, high=5.0)
-    loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=5.0)
-    _typical_not_above(loss_max, loss_typ)
-    return SplicePreset(
-        _text(entry, "name"), method, loss_max, loss_typ, _text(entry, "source"), origin
-    )
-
-
-def _component(entry: Mapping[str, Any], origin: str) -> ComponentPreset:
-    kind = _text(entry, "kind")
-    if kind not in COMPONENT_KINDS:
-        raise _EntryError(f"'kind' must be one of {', '.join(COMPONENT_KINDS)}, not '{kind}'")
-    loss_max = _num(entry, "loss_max_db", required=False, low=0.0, high=60.0)
-    loss_typ = _num(entry, "loss_typical_db", required=False, low=0.0, high=60.0)
-    _typical_not_above(loss_max, loss_typ)
-    excess_max = _by_ports(entry, "excess_max_db")
-    excess_typ = _by_ports(entry, "excess_typical_db")
-    for n, typ in excess_typ.items():
-        if n in excess_max and typ > excess_max[n]:
-            raise _EntryError(f"typical excess {typ:g} dB for {n} outputs is above the maximum")
-    inputs = int(_num(entry, "inputs", required=False, low=1, high=2) or 1)
-    if kind == "splitter":
-        if not excess_max:
-            raise _EntryError("a splitter needs 'excess_max_db' by output count")
-    elif loss_max is None:
-        raise _EntryError("'loss_max_db' is missing")
-    return ComponentPreset(
-        _text(entry, "name"),
-        kind,
-        loss_max,
-        loss_typ,
-        excess_max,
-        excess_typ,
-        inputs,
-        _text(entry, "source"),
-        origin,
-    )
-
-
-def _application(entry: Mapping[str, Any], origin: str) -> ApplicationPreset:
-    raw_nm = entry.get("wavelengths_nm")
-    if not isinstance(raw_nm, list) or not raw_nm:
-        raise _EntryError("'wavelengths_nm' must be a list of one or more wavelengths")
-    wavelengths = tuple(_number(x, "wavelengths_nm") for x in raw_nm)
-    raw_limits = entry.get("limits")
-    if not isinstance(raw_limits, dict) or not raw_limits:
-        raise _EntryError("'limits' must be a table of fibre type = { loss_max_db, reach_m }")
-    limits: dict[str, ApplicationFibreLimit] = {}
-    for fibre, raw in raw_limits.items():
-        if not isinstance(raw, dict):
-            raise _EntryError(f"limits for '{fibre}' must be a table {{ loss_max_db, reach_m }}")
-        unknown = sorted(set(raw) - {"loss_max_db", "reach_m", "loss_min_db"})
-        if unknown:
-            raise _EntryError(f"limits for '{fibre}': unknown field(s) {', '.join(unknown)}")
-        try:
-            loss_max = _req(raw, "loss_max_db", low=0.0, high=60.0)
-            reach = _req(raw, "reach_m", positive=True, high=1e6)
-            loss_min = _num(raw, "loss_min_db", required=False, low=0.0, high=60.0)
-        except _EntryError as exc:
-            raise _EntryError(f"limits for '{fibre}': {exc}") from None
-        if loss_min is not None and loss_min > loss_max:
-            raise _EntryError(f"limits for '{fibre}': loss_min_db is above loss_max_db")
-        limits[fibre] = ApplicationFibreLimit(loss_max, reach, loss_min)
-    return ApplicationPreset(
-        _text(entry, "name"),
-        _text(entry, "kind", required=False, default="application"),
-        wavelengths,
-        limits,
-        _text(entry, "source"),
-        origin,
-        line_rate_gbd=_num(entry, "line_rate_gbd", required=False, positive=True, high=1e4),
-    )
-
-
-def _levels(entry: Mapping[str, Any], base: TransceiverLevels | None = None) -> TransceiverLevels:
-    def get(key: str, low: float, fallback: float | None) -> float:
-        if key not in entry and fallback is not None:
-            return fallback
-        return _req(entry, key, low=low, high=30.0)
-
-    levels = TransceiverLevels(
-        get("tx_min_dbm", -60.0, None if base is None else base.tx_min_dbm),
-        get("tx_max_dbm", -60.0, None if base is None else base.tx_max_dbm),
-        get("rx_sensitivity_dbm", -80.0, None if base is None else base.rx_sensitivity_dbm),
-        get("rx_overload_dbm", -80.0, None if base is None else base.rx_overload_dbm),
-    )
-    if levels.tx_min_dbm > levels.tx_max_dbm:
-        raise _EntryError("'tx_min_dbm' is above 'tx_max_dbm'")
-    if levels.rx_sensitivity_dbm >= levels.rx_overload_dbm:
-        raise _EntryError("'rx_sensitivity_dbm' must be below 'rx_overload_dbm'")
-    return levels
-
-
-def _transceiver(entry: Mapping[str, Any], origin: str) -> TransceiverPreset:
-    levels = _levels(entry)
-    wavelength = _num(entry, "wavelength_nm", required=False, low=200.0, high=2000.0)
-    raw_family = entry.get("by_family", {})
-    if not isinstance(raw_family, dict):
-        raise _EntryError("'by_family' must be a table of family = { tx_min_dbm, ... }")
-    by_family: dict[str, TransceiverLevels] = {}
-    for family, raw in raw_family.items():
-        if family not in ("multimode", "singlemode") or not isinstance(raw, dict):
-            raise _EntryError(
-                f"'by_family': '{family}' must be multimode or singlemode with a table of levels"
-            )
-        unknown = sorted(set(raw) - set(_TX_LEVELS))
-        if unknown:
-            raise _EntryError(f"'by_family.{family}': unknown field(s) {', '.join(unknown)}")
-        try:
-            by_family[family] = _levels(raw, levels)
-        except _EntryError as exc:
-            raise _EntryError(f"'by_family.{family}': {exc}") from None
-    return TransceiverPreset(
-        _text(entry, "name"),
-        wavelength,
-        levels.tx_min_dbm,
-        levels.tx_max_dbm,
-        levels.rx_sensitivity_dbm,
-        levels.rx_overload_dbm,
-        _text(entry, "source"),
-        origin,
-        by_family=by_family,
-        dispersion_tolerance_ps_nm=_num(
-            entry, "dispersion_tolerance_ps_nm", required=False, positive=True, high=1e6
-        ),
-        line_rate_gbd=_num(entry, "line_rate_gbd", required=False, positive=True, high=1e4),
-    )
-
-
-_TX_LEVELS = ("tx_min_dbm", "tx_max_dbm", "rx_sensitivity_dbm", "rx_overload_dbm")
-
-
-def _cable(entry: Mapping[str, Any], origin: str) -> CablePreset:
-    return CablePreset(
-        name=_text(entry, "name"),
-        construction=_text(entry, "construction"),
-        helix_percent=_req(entry, "helix_percent", low=0.0, high=20.0),
-        helix_uncertainty_percent=_req(entry, "helix_uncertainty_percent", low=0.0, high=20.0),
-        source=_text(entry, "source"),
-        origin=origin,
-    )
-
-
-def _colour_sequence(entry: Mapping[str, Any], origin: str) -> ColourSequencePreset:
-    colours = entry.get("colours")
-    if (
-        not isinstance(colours, list)
-        or not 2 <= len(colours) <= 48
-        or not all(isinstance(c, str) and c.strip() for c in colours)
-    ):
-        raise _EntryError("'colours' must be a list of 2 to 48 colour words")
-    words = tuple(c.strip().lower() for c in colours)
-    if len(set(words)) != len(words):
-        raise _EntryError("'colours' names a colour twice")
-    return ColourSequencePreset(
-        _text(entry, "name"),
-        words,
-        _text(entry, "tracer_colour", required=False, default="black").lower(),
-        _text(entry, "tracer_on_tracer", required=False, default="yellow").lower(),
-        _text(entry, "source"),
-        origin,
-    )
-
-
-def _splice_plan(entry: Mapping[str, Any], origin: str) -> SplicePlanPreset:
-    from fieldkit.inputs import splice_plan
-
-    plan = _text(entry, "plan")
-    try:
-        # Checked with placeholder cables; "straight" takes the count when applied.
-        splice_plan(plan, "A", "B", count_a=1, what="plan")
-    except InputError as exc:
-        raise _EntryError(str(exc)) from None
-    return SplicePlanPreset(_text(entry, "name"), plan, _text(entry, "source"), origin)
-
-
-def _reflectance(entry: Mapping[str, Any], origin: str) -> ReflectancePreset:
-    return ReflectancePreset(
-        name=_text(entry, "name"),
-        reflectance_max_db=_req(entry, "reflectance_max_db", low=-100.0, high=0.0),
-        orl_min_db=_num(entry, "orl_min_db", required=False, low=0.0, high=100.0),
-        source=_text(entry, "source"),
-        origin=origin,
-    )
-
-
-_PARSERS: dict[str, tuple[Callable[[Mapping[str, Any], str], Any], set[str]]] = {
-    "fibres": (
-        _fibre,
-        {
-            "name",
-            "family",
-            "standard",
-            "source",
-            "default_wavelengths_nm",
-            "core_diameter_um",
-            "numerical_aperture",
-            "attenuation_max_db_per_km",
-            "attenuation_typical_db_per_km",
-            "group_index",
-            "mode_field_diameter_um",
-            "modal_bandwidth_mhz_km",
-            "cable_cutoff_nm",
-            "zero_dispersion_nm",
-            "dispersion_slope_ps_nm2_km",
-            "attenuation_estimated_nm",
-            "notes",
-        },
-    ),
-    "connectors": (_connector, {"name", "loss_max_db", "loss_typical_db", "source", "notes"}),
-    "splices": (_splice, {"name", "method", "loss_max_db", "loss_typical_db", "source", "notes"}),
-    "components": (
-        _component,
-        {
-            "name",
-            "kind",
-            "loss_max_db",
-            "loss_typical_db",
-            "excess_max_db",
-            "excess_typical_db",
-            "inputs",
-            "source",
-            "notes",
-        },
-    ),
-    "applications": (
-        _application,
-        {"name", "kind", "wavelengths_nm", "limits", "line_rate_gbd", "source", "notes"},
-    ),
-    "transceivers": (
-        _transceiver,
-        {
-            "name",
-            "wavelength_nm",
-            "tx_min_dbm",
-            "tx_max_dbm",
-            "rx_sensitivity_dbm",
-            "rx_overload_dbm",
-            "by_family",
-            "dispersion_tolerance_ps_nm",
-            "line_rate_gbd",
-            "source",
-            "notes",
-        },
-    ),
-    "cables": (
-        _cable,
-        {"name", "construction", "helix_percent", "helix_uncertainty_percent", "source", "notes"},
-    ),
-    "colour_sequences": (
-        _colour_sequence,
-        {"name", "colours", "tracer_colour", "tracer_on_tracer", "source", "notes"},
-    ),
-    "splice_plans": (_splice_plan, {"name", "plan", "source", "notes"}),
-    "reflectance": (
-        _reflectance,
-        {"name", "reflectance_max_db", "orl_min_db", "source", "notes"},
-    ),
-}

@@ -27,11 +27,14 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
-from typing import Any, Literal
+from typing import TYPE_CHECKING, Any, Literal
 
 from fieldkit.calc import coupling
 from fieldkit.calc.fibre import Fibre, check_wavelength_nm
 from fieldkit.calc.units import InputError, format_number
+
+if TYPE_CHECKING:
+    from fieldkit.calc.checks import LinkChecks
 
 #: An application or transceiver wavelength matches a budget wavelength in the same window
 #: (e.g. 1300 and 1310 nm, both "the 1310 nm window"), in nm.
@@ -663,6 +666,8 @@ class ApplicationLimits:
     wavelengths_nm: tuple[float, ...]
     loss_min_db: float | None = None
     source: str = ""
+    #: Line rate in GBd (None: not given); the checks beyond loss use it.
+    line_rate_gbd: float | None = None
     #: Why this row: e.g. "OM3, the lowest-grade fibre of OM3 + OM4" (empty for one fibre type).
     row_reason: str = ""
 
@@ -967,10 +972,13 @@ class BudgetReport:
     application: ApplicationCheck | None = None
     transceiver: TransceiverCheck | None = None
     extra: dict[str, Any] = field(default_factory=dict)
+    #: Dispersion, modal bandwidth and cut-off (:mod:`fieldkit.calc.checks`).
+    checks: LinkChecks | None = None
 
     def as_dict(self) -> dict[str, Any]:
         out = self.result.as_dict()
         out["application"] = None if self.application is None else self.application.as_dict()
         out["transceiver"] = None if self.transceiver is None else self.transceiver.as_dict()
+        out["checks"] = None if self.checks is None else self.checks.as_dict()
         out.update(self.extra)
         return out

@@ -224,6 +224,10 @@ def _overlay_checks(spec: dict[str, Any], args: argparse.Namespace) -> dict[str,
             )
     if application:
         spec["application"] = application
+    for option, key in (("bit_rate", "bit_rate"), ("spectral_width", "spectral_width")):
+        value = getattr(args, option, None)
+        if value is not None:
+            spec[key] = value
     levels = [getattr(args, k, None) for k in ("tx_min", "tx_max", "rx_sensitivity", "rx_overload")]
     named = getattr(args, "transceiver", None)
     if any(v is not None for v in levels):
@@ -330,6 +334,24 @@ def register(subparsers: Any) -> None:
     checks.add_argument("--tx-max", metavar="DBM", help="transmitter maximum launch power")
     checks.add_argument("--rx-sensitivity", metavar="DBM", help="receiver sensitivity")
     checks.add_argument("--rx-overload", metavar="DBM", help="receiver overload level")
+    checks.add_argument(
+        "--bit-rate",
+        metavar="GBD",
+        help="line rate for the dispersion and modal-bandwidth checks, e.g. 10.3125 "
+        "(default: the transceiver's or the application's)",
+    )
+    checks.add_argument(
+        "--spectral-width",
+        metavar="NM",
+        help="source RMS spectral width in nm, for the dispersion check without a "
+        "transceiver tolerance, e.g. 0.1",
+    )
+    checks.add_argument(
+        "--fibre-data",
+        action="store_true",
+        help="also print each fibre's data: NA, acceptance angle, V-number, modes, cut-off, "
+        "dispersion, at each wavelength",
+    )
     save = parser.add_argument_group("saving onto a job")
     save.add_argument("--job", metavar="ID", help="save the budget onto this job (id or prefix)")
     save.add_argument(
@@ -356,18 +378,38 @@ def run(args: argparse.Namespace) -> int:
     data = report.as_dict()
     data["description"] = resolved.spec
     data["saved"] = saved
+    fibre_data = _fibre_data(resolved, report) if args.fibre_data else []
+    if args.fibre_data:
+        data["fibre_data"] = [d.as_dict() for d in fibre_data]
     if args.json:
         print_json(data)
     else:
         _print_text(report, saved)
+        if fibre_data:
+            from fieldkit.text.budget import fibre_data_lines
+
+            print()
+            print("Fibre data:")
+            for item in fibre_data:
+                for i, line in enumerate(fibre_data_lines(item)):
+                    print(f"  {'' if i == 0 else '  '}{line}")
     return 0
+
+
+def _fibre_data(resolved: Any, report: Any) -> list[Any]:
+    from fieldkit.calc.checks import fibre_data
+
+    fibres = {s.fibre.name: s.fibre for s in resolved.link.segments}
+    return [
+        fibre_data(f, w.wavelength_nm) for f in fibres.values() for w in report.result.wavelengths
+    ]
 
 
 def _save(args: argparse.Namespace, resolved: Any, report: Any) -> dict[str, str]:
     from fieldkit import locations
+    from fieldkit.jobs.budget_records import budget_record
     from fieldkit.jobs.models import Job
     from fieldkit.jobs.store import JobStore, StoreError
-    from fieldkit.linkspec import budget_record
 
     plain_text(args.link, "link")
     plain_text(args.by or "", "by")

@@ -152,6 +152,8 @@ def run(args: argparse.Namespace) -> int:
         data["saved"] = saved
         print_json(data)
         return 0
+    from fieldkit.text.locate import report_lines
+
     for line in report_lines(location, unit=args.unit, notes=notes):
         print(line)
     if saved:
@@ -507,67 +509,6 @@ def result_json(location: Location, inputs: dict[str, Any], unit: str = "m") -> 
             "combined": _position_json(two.combined, unit),
         }
     return data
-
-
-def _position_lines(p: Any, unit: str) -> list[str]:
-    from fieldkit.calc.locate import describe_offset, format_distance
-
-    def f(x: float) -> str:
-        return format_distance(x, unit)
-
-    lines = [
-        f"  fibre distance  {f(p.fiber_distance_m)}  (± {f(p.fiber_uncertainty_m)})",
-        f"  sheath length   {f(p.sheath_distance_m)}  (± {f(p.sheath_uncertainty_m)})",
-        f"  route position  {f(p.route_distance_m)}  ± {f(p.uncertainty_m)}",
-        f"  look between    {f(p.low_m)} and {f(p.high_m)} from the start",
-    ]
-    if p.nearest_landmark is not None and p.offset_from_landmark_m is not None:
-        lines.append(
-            f"  nearest         "
-            f"{describe_offset(p.offset_from_landmark_m, p.nearest_landmark, unit)}"
-        )
-    if p.marking is not None:
-        lines.append(f"  sheath marking  {p.marking.describe()}")
-    basis = {
-        "model": "index and helix (no landmark)",
-        "interpolated": "interpolated between landmarks",
-        "extrapolated": "extrapolated from the landmarks",
-    }[p.basis]
-    if p.between and p.basis == "interpolated":
-        basis += f" {p.between[0]} and {p.between[1]}"
-    lines.append(f"  basis           {basis}")
-    return lines
-
-
-def report_lines(location: Location, unit: str = "m", notes: list[str] | None = None) -> list[str]:
-    """The result as text lines (without the cautions, which the caller prints)."""
-    from fieldkit.calc.locate import format_distance
-
-    p = location.position
-    lines = ["Fault from the start (end A):", *_position_lines(p, unit)]
-    lines.append(
-        f"Uncertainty: root-sum-square of the terms below (worst case, all adding: "
-        f"± {format_distance(p.worst_case_m, unit)}):"
-    )
-    for c in sorted(p.contributions, key=lambda c: -c.route_m):
-        if c.route_m >= 0.05:
-            lines.append(f"  {c.name:<32} ± {format_distance(c.route_m, unit)}")
-    two = location.two_ended
-    if two is not None:
-        verdict = "consistent" if two.consistent else "NOT consistent"
-        lines.append(
-            f"Two-ended check: from A {format_distance(two.from_a_m, unit)} + from B "
-            f"{format_distance(two.from_b_m, unit)} − total {format_distance(two.total_m, unit)}"
-            f" = {format_distance(two.discrepancy_m, unit)} (allowed ± "
-            f"{format_distance(two.tolerance_m, unit)}): {verdict}"
-        )
-        lines.append("Combined estimate from both ends:")
-        lines += _position_lines(two.combined, unit)
-    for note in notes or []:
-        lines.append(note)
-    for warning in location.warnings:
-        lines.append(f"Warning: {warning}")
-    return lines
 
 
 def fault_record(

@@ -79,7 +79,6 @@ def register(subparsers: Any) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from fieldkit.calc import reference as ref
-    from fieldkit.calc.units import Kind, parse
     from fieldkit.commands.meter_record import check_text
 
     check_text(args)
@@ -96,15 +95,9 @@ def run(args: argparse.Namespace) -> int:
     )
     if args.reference_back and reading_back_dbm is None:
         raise CommandError("--reference-back goes with --reading-back")
-    wavelength_nm = (
-        parse(args.wavelength, Kind.LENGTH, default_unit="nm", what="wavelength").to("nm")
-        if args.wavelength
-        else None
-    )
-    if wavelength_nm is not None and not 600 <= wavelength_nm <= 1700:
-        raise CommandError(
-            f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands (600-1700 nm)"
-        )
+    from fieldkit.inputs import wavelength_nm as parse_wavelength
+
+    wavelength_nm = parse_wavelength(args.wavelength) if args.wavelength else None
     source_dbm = ref.level_dbm(args.source_level, "source level") if args.source_level else None
 
     limit_db, limit_from = _limit(args, method, wavelength_nm)

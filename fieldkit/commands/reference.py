@@ -67,19 +67,14 @@ def register(subparsers: Any) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from fieldkit.calc import reference as ref
-    from fieldkit.calc.units import Kind, parse
     from fieldkit.commands import meter_record
     from fieldkit.commands.meter_record import check_text
 
     check_text(args)
     level_dbm = ref.level_dbm(args.level, "level")
-    wavelength_nm = parse(args.wavelength, Kind.LENGTH, default_unit="nm", what="wavelength").to(
-        "nm"
-    )
-    if not 600 <= wavelength_nm <= 1700:
-        raise CommandError(
-            f"wavelength: {wavelength_nm:g} nm is outside the fibre test bands (600-1700 nm)"
-        )
+    from fieldkit.inputs import wavelength_nm as parse_wavelength
+
+    wavelength_nm = parse_wavelength(args.wavelength)  # the one wavelength rule
     method = ref.parse_method(args.method)
     source_dbm = ref.level_dbm(args.source_level, "source level") if args.source_level else None
     tolerance_db = ref.loss_limit_db(args.tolerance, "tolerance") if args.tolerance else None

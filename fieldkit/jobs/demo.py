@@ -55,7 +55,8 @@ def _budget(
 ) -> BudgetRecord:
     """A budget computed the way the budget workspace computes it, from the shipped presets,
     so a demo budget opened in the workspace shows the same numbers."""
-    from fieldkit.linkspec import budget_record, resolve
+    from fieldkit.jobs.budget_records import budget_record
+    from fieldkit.linkspec import resolve
     from fieldkit.presets import load_presets
 
     spec: dict[str, object] = {

@@ -17,6 +17,7 @@ from fieldkit.calc.budget import (
     BudgetReport,
     TransceiverCheck,
 )
+from fieldkit.calc.checks import FibreData, LinkChecks
 from fieldkit.calc.units import format_number
 
 MINUS = "\u2212"
@@ -174,6 +175,96 @@ def transceiver_lines(tx: TransceiverCheck) -> list[str]:
     return lines
 
 
+def _ps(x: float) -> str:
+    return minus(f"{x:.1f} ps/nm")
+
+
+def check_lines(checks: LinkChecks) -> list[str]:
+    """The checks beyond loss: dispersion, modal bandwidth, cut-off, each with its formula."""
+    lines: list[str] = []
+    for c in checks.cutoff:
+        lines.append(
+            f"CUT-OFF: {c.fibre} at {nm(c.wavelength_nm)} is below its cable cut-off "
+            f"({nm(c.cable_cutoff_nm)}): it carries a few modes there, not one"
+        )
+    for d in checks.dispersion:
+        judged = "" if d.passed is None else f": {'ok' if d.passed else 'OVER'}"
+        lines.append(
+            f"Dispersion at {nm(d.wavelength_nm)}: {_ps(d.low_ps_nm)} to {_ps(d.high_ps_nm)} "
+            f"over {length(d.length_m)}{judged}"
+        )
+        if d.tolerance_ps_nm is not None:
+            lines.append(
+                f"  receiver tolerates {_ps(d.tolerance_ps_nm)}: {_ok(d.tolerance_pass, 'OVER')}"
+            )
+        if d.spread_ps is not None and d.spread_limit_ps is not None:
+            lines.append(
+                f"  spread {d.spread_ps:.1f} ps with {format_number(d.spectral_width_nm or 0)} "
+                f"nm at {format_number(d.bit_rate_gbd or 0)} GBd, limit "
+                f"{d.spread_limit_ps:.1f} ps (¼ bit): {_ok(d.spread_pass, 'OVER')}"
+            )
+        elif d.tolerance_ps_nm is None:
+            lines.append("  give a dispersion tolerance, or a spectral width and bit rate")
+        if d.unknown_fibres:
+            lines.append(f"  no dispersion data: {', '.join(d.unknown_fibres)} (not counted)")
+    if checks.dispersion:
+        lines.append("  formula: ITU-T G.652 D(λ) = S0/4·(λ − λ0⁴/λ³), λ0 and S0 over their limits")
+    for bw in checks.bandwidth:
+        text = (
+            f"Modal bandwidth at {nm(bw.wavelength_nm)}: "
+            f"{format_number(round(bw.bandwidth_length_mhz_km, 1))} MHz·km over "
+            f"{length(bw.length_m)}"
+        )
+        reach = bw.reach_m
+        if reach is not None:
+            text += (
+                f"; reach {length(round(reach))} at {format_number(bw.bit_rate_gbd or 0)} GBd: "
+                f"{_ok(bw.passed, 'OVER')}"
+            )
+        lines.append(text)
+        if bw.unknown_fibres:
+            lines.append(f"  no bandwidth data: {', '.join(bw.unknown_fibres)} (not counted)")
+    if checks.bandwidth:
+        lines.append("  formula: BL = L / Σ(Lᵢ/BLᵢ); reach = BL / (0.6 × line rate), an estimate")
+    return lines
+
+
+def fibre_data_lines(data: FibreData) -> list[str]:
+    """A fibre as a waveguide at one wavelength, each figure with its formula."""
+    lines = [f"{data.fibre} at {nm(data.wavelength_nm)} ({data.family or 'typed'})"]
+    if data.numerical_aperture is not None and data.acceptance_half_angle_deg is not None:
+        lines.append(
+            f"NA {format_number(data.numerical_aperture)}; acceptance half-angle "
+            f"{data.acceptance_half_angle_deg:.1f}° (θ = asin NA)"
+        )
+    if data.v_number is not None and data.guided_modes is not None:
+        profile = "graded index, V²/4" if data.graded_index else "step index, V²/2"
+        modes = (
+            "1 (single-mode, V < 2.405)"
+            if data.v_number < 2.405
+            else f"about {data.guided_modes:.0f} ({profile})"
+        )
+        lines.append(f"V {data.v_number:.2f} (V = π·d·NA/λ); modes {modes}")
+    if data.cutoff_nm is not None:
+        lines.append(f"single-mode above {data.cutoff_nm:.0f} nm (λc = π·d·NA/2.405)")
+    if data.cable_cutoff_nm is not None:
+        lines.append(f"cable cut-off ≤ {nm(data.cable_cutoff_nm)} (standard)")
+    if data.mode_field_diameter_um is not None:
+        lines.append(f"mode-field diameter {format_number(data.mode_field_diameter_um)} µm")
+    if data.dispersion_low_ps_nm_km is not None and data.dispersion_high_ps_nm_km is not None:
+        lines.append(
+            minus(
+                f"dispersion {data.dispersion_low_ps_nm_km:.2f} to "
+                f"{data.dispersion_high_ps_nm_km:.2f} ps/(nm·km) (G.652 D(λ))"
+            )
+        )
+    if data.modal_bandwidth_mhz_km is not None:
+        lines.append(f"modal bandwidth {format_number(data.modal_bandwidth_mhz_km)} MHz·km")
+    if len(lines) == 1:
+        lines.append("no core, NA, MFD or dispersion presets for this fibre")
+    return lines
+
+
 # -- the whole report, as the CLI prints it ----------------------------------------------------
 
 
@@ -193,4 +284,10 @@ def report_lines(report: BudgetReport, extra: dict[str, Any] | None = None) -> l
     if report.transceiver is not None:
         lines.append("")
         lines.append("Transceiver " + "\n  ".join(transceiver_lines(report.transceiver)))
+    if report.checks is not None:
+        beyond = check_lines(report.checks)
+        if beyond:
+            lines.append("")
+            lines.append("Beyond loss:")
+            lines += [f"  {line}" for line in beyond]
     return "\n".join(lines).split("\n")

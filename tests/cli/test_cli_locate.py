@@ -133,7 +133,8 @@ def test_text_output_in_feet_shows_range_and_cautions() -> None:
     assert result.returncode == 0, result.stderr
     # 3048 m / 0.3048 m per ft = 10 000 ft (international foot, NIST SP 811)
     assert "10000 ft" in result.stdout
-    assert "look between" in result.stdout
+    assert "look     " in result.stdout  # the workspace's own result lines
+    assert "route    10000 ft" in result.stdout
     assert safety.DIGGING in result.stdout
     assert safety.DEFER in result.stdout
 

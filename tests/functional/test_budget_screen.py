@@ -287,10 +287,10 @@ async def test_open_a_budget_saved_from_the_cli(tmp_path: Path):
         ]
     )
     args.config_dir = str(tmp_path / "c")
-    from fieldkit import linkspec
+    from fieldkit.jobs import budget_records
 
     resolved = budget_cmd.resolved_from_args(args)
-    record = linkspec.budget_record(resolved, resolved.evaluate())
+    record = budget_records.budget_record(resolved, resolved.evaluate())
 
     def put(j: Job) -> None:
         j.add_link("SR-3").budget = record
@@ -479,3 +479,36 @@ async def test_typed_transceiver_levels_are_asked_for_not_refused(tmp_path: Path
         assert text_of(app, "#transceiver-out") == (
             "Type Rx sensitivity, Rx overload to check the transceiver."
         )
+
+
+async def test_the_workspace_shows_the_checks_beyond_loss_and_the_fibre_data(tmp_path: Path):
+    # The same lines the CLI prints: the budget workspace and `fieldkit budget` share
+    # fieldkit.text.budget. OS2 (G.652.D fibre) 40 km at 1550 nm, 0.1 nm at 10 GBd:
+    # 40 × 18.0097 = 720.4 ps/nm (ITU-T G.652 D(λ) with λ0 1300 nm, S0 0.092, from memory),
+    # spread 72.0 ps against a quarter bit of 25 ps: OVER.
+    from fieldkit.text.budget import check_lines
+
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"40 km")
+        for field_id, value in (
+            ("wavelengths", "1550"),
+            ("bit-rate", "10"),
+            ("spectral-width", "0.1"),
+        ):
+            screen.query_one(f"#{field_id}", Input).value = value
+        await pilot.pause()
+        out = text_of(app, "#checks-out")
+        assert out == "\n".join(check_lines(screen.report.checks))
+        assert "Dispersion at 1550 nm: 0.0 ps/nm to 720.4 ps/nm over 40 km: OVER" in out
+        assert "spread 72.0 ps" in out
+        data = text_of(app, "#fibre-data-out")
+        assert "OS2 at 1550 nm (singlemode)" in data and "V = π·d·NA/λ" in data
+        # applications with a single-mode row are offered first, the others marked
+        options = [str(p) for p, _ in screen.query_one("#application", Select)._options][1:]
+        first_other = next(i for i, p in enumerate(options) if "no single-mode row" in p)
+        assert all("no single-mode row" in p for p in options[first_other:])
+        assert "10GBASE-LR" in options[:first_other]
+        assert any(p.startswith("10GBASE-SR (no single-mode row)") for p in options)

@@ -8,8 +8,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from fieldkit import linkspec
+from fieldkit import inputs, linkspec
 from fieldkit.calc.units import InputError
+from fieldkit.jobs import budget_records
 from fieldkit.presets import load_presets
 
 
@@ -34,7 +35,7 @@ def test_defaults_two_end_connections_at_the_tia_maximum(lib):
     ],
 )
 def test_lengths_in_any_unit(text, metres):
-    assert linkspec.length_m(text) == pytest.approx(metres, abs=1e-9)
+    assert inputs.length_m(text) == pytest.approx(metres, abs=1e-9)
 
 
 @pytest.mark.parametrize(
@@ -50,34 +51,34 @@ def test_lengths_in_any_unit(text, metres):
 )
 def test_bad_lengths(text, message):
     with pytest.raises(InputError, match=message):
-        linkspec.length_m(text)
+        inputs.length_m(text)
 
 
 def test_attenuation_needs_a_length_unit_and_converts():
     # 0.1 dB/kft = 0.1 / 0.3048 dB/km = 0.328084 dB/km (international foot)
-    assert linkspec.attenuation_db_per_km("0.1 dB/kft") == pytest.approx(0.1 / 0.3048, abs=1e-12)
+    assert inputs.attenuation_db_per_km("0.1 dB/kft") == pytest.approx(0.1 / 0.3048, abs=1e-12)
     with pytest.raises(InputError, match="no length unit"):
-        linkspec.attenuation_db_per_km("0.35")
+        inputs.attenuation_db_per_km("0.35")
     with pytest.raises(InputError, match="no length unit"):
-        linkspec.attenuation_db_per_km("0.35 dB")
+        inputs.attenuation_db_per_km("0.35 dB")
 
 
 def test_decimal_comma_loss_is_read_as_a_decimal():
-    assert linkspec.loss_db("0,5 dB") == pytest.approx(0.5, abs=1e-12)
+    assert inputs.loss_db("0,5 dB") == pytest.approx(0.5, abs=1e-12)
 
 
 def test_wavelength_lists_never_read_a_comma_as_a_decimal():
-    assert linkspec.wavelength_list("1310,1550") == [1310.0, 1550.0]
+    assert inputs.wavelength_list("1310,1550") == [1310.0, 1550.0]
     with pytest.raises(InputError, match="outside the fibre bands"):
-        linkspec.wavelength_list("1310,5")
+        inputs.wavelength_list("1310,5")
 
 
 def test_splitter_text():
-    assert linkspec.parse_splitter("1x32") == (1, 32)
-    assert linkspec.parse_splitter("2 × 8") == (2, 8)
+    assert inputs.splitter("1x32") == (1, 32)
+    assert inputs.splitter("2 × 8") == (2, 8)
     for bad in ("3x8", "1x", "x32", "1x1"):
         with pytest.raises(InputError):
-            linkspec.parse_splitter(bad)
+            inputs.splitter(bad)
 
 
 def test_splitter_preset_without_that_split_asks_for_the_excess(lib):
@@ -134,7 +135,7 @@ def test_record_description_round_trips(lib):
         "margin": "2 dB",
     }
     resolved = linkspec.resolve(spec, lib)
-    record = linkspec.budget_record(resolved, resolved.evaluate(), by="ana")
+    record = budget_records.budget_record(resolved, resolved.evaluate(), by="ana")
     assert record.description["connector_loss_db"] == 0.75
     again = linkspec.resolve(record.description, lib)
     assert again.evaluate().result.at(1310).loss_db == pytest.approx(7.0, abs=1e-9)
@@ -144,13 +145,13 @@ def test_record_description_round_trips(lib):
 @given(st.text(max_size=24))
 def test_typed_values_either_parse_to_finite_numbers_or_say_why(text):
     for parse in (
-        linkspec.length_m,
-        linkspec.loss_db,
-        linkspec.attenuation_db_per_km,
-        linkspec.level_dbm,
+        inputs.length_m,
+        inputs.loss_db,
+        inputs.attenuation_db_per_km,
+        inputs.level_dbm,
     ):
         try:
-            value = parse(text, "x") if parse is linkspec.level_dbm else parse(text)
+            value = parse(text, "x") if parse is inputs.level_dbm else parse(text)
         except InputError as exc:
             assert str(exc)
         else:

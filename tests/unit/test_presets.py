@@ -217,3 +217,47 @@ def test_budget_modules_import_without_the_ui_and_build_nothing():
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert run.returncode == 0, run.stderr
     assert run.stdout.split() == ["False", "False"]
+
+
+def test_new_fields_are_checked_like_the_others(tmp_path):
+    path = tmp_path / "x.toml"
+    path.write_text(
+        """
+[[transceivers]]
+name = "odd LX"
+tx_min_dbm = -11
+tx_max_dbm = -3
+rx_sensitivity_dbm = -19
+rx_overload_dbm = -3
+by_family.multimode = { tx_min_dbm = -2 }
+source = "test"
+
+[[fibres]]
+name = "half dispersion"
+family = "singlemode"
+attenuation_max_db_per_km = { 1310 = 0.4 }
+zero_dispersion_nm = [1300, 1324]
+source = "test"
+
+[[reflectance]]
+name = "positive"
+reflectance_max_db = 5
+source = "test"
+""",
+        encoding="utf-8",
+    )
+    lib = load_file(path)
+    assert lib.problems == [
+        f"{path}: transceivers entry 'odd LX': 'by_family.multimode': 'tx_min_dbm' is above "
+        "'tx_max_dbm'",
+        f"{path}: fibres entry 'half dispersion': give 'zero_dispersion_nm' and "
+        "'dispersion_slope_ps_nm2_km' together",
+        f"{path}: reflectance entry 'positive': 'reflectance_max_db' must be at most 0, not 5",
+    ]
+
+
+def test_find_is_typed_by_kind():
+    lib = load_presets()
+    fibre = lib.find("fibres", "os2")
+    assert fibre.family == "singlemode"  # a FibrePreset, not Any (mypy checks the attribute)
+    assert lib.find("reflectance", "gpon odn").orl_min_db == 32.0

@@ -323,6 +323,8 @@ def items_from_spec(spec: dict[str, Any]) -> tuple[list[dict[str, str]], dict[st
         "wavelengths": wavelengths,
         "margin": "" if margin in ("0 dB", "0") else margin,
         "application": _text(spec.get("application")),
+        "bit-rate": _text(spec.get("bit_rate")),
+        "spectral-width": _text(spec.get("spectral_width")),
     }
     tx = spec.get("transceiver")
     if isinstance(tx, str):
@@ -518,6 +520,20 @@ class BudgetScreen(Screen[None]):
                             "design margin, 3 dB",
                             tooltip="repairs and ageing; shown beside the link loss, not in it",
                         )
+                        yield from self._field(
+                            "Bit rate",
+                            "bit-rate",
+                            "GBd, for dispersion",
+                            tooltip="line rate in GBd for the dispersion and modal-bandwidth "
+                            "checks (blank: the transceiver's or the application's)",
+                        )
+                        yield from self._field(
+                            "Spectrum",
+                            "spectral-width",
+                            "RMS width, nm",
+                            tooltip="the source's RMS spectral width in nm, for the dispersion "
+                            "check when no transceiver tolerance is known",
+                        )
                         with Horizontal(classes="bf-row"):
                             yield Label("Application", classes="bf-label")
                             yield Select(
@@ -553,6 +569,12 @@ class BudgetScreen(Screen[None]):
                     with Vertical(id="transceiver-panel", classes="panel") as panel:
                         panel.border_title = "Transceiver"
                         yield Static("", id="transceiver-out", classes="result", markup=False)
+                    with Vertical(id="checks-panel", classes="panel") as panel:
+                        panel.border_title = "Beyond loss"
+                        yield Static("", id="checks-out", classes="result", markup=False)
+                    with Vertical(id="fibre-data-panel", classes="panel") as panel:
+                        panel.border_title = "Fibre data"
+                        yield Static("", id="fibre-data-out", classes="result", markup=False)
                     with Vertical(id="sources-panel", classes="panel") as panel:
                         panel.border_title = "Values used"
                         yield Static("", id="sources-out", classes="result", markup=False)
@@ -579,7 +601,8 @@ class BudgetScreen(Screen[None]):
             "application": list(lib.applications),
             "transceiver": [*lib.transceivers, TYPED],
         }
-        self.query_one("#application", Select).set_options([(n, n) for n in lib.applications])
+        self._application_order: tuple[str, ...] = ()
+        self._order_applications()
         self.query_one("#transceiver", Select).set_options(
             [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)]
         )
@@ -654,6 +677,7 @@ class BudgetScreen(Screen[None]):
             self.current = index
             self._load_item()
             self._check_item_fields()
+            self._show_fibre_data()
 
     @on(OptionList.OptionSelected, "#items")
     def _item_chosen(self, event: OptionList.OptionSelected) -> None:
@@ -687,7 +711,7 @@ class BudgetScreen(Screen[None]):
 
     def _check_item_fields(self) -> None:
         """Show the problem of the picked item's own fields beside them."""
-        from fieldkit import linkspec
+        from fieldkit import inputs, linkspec
 
         if not self.items:
             return
@@ -698,15 +722,15 @@ class BudgetScreen(Screen[None]):
             kind = item["kind"]
             if kind == "fibre":
                 if value.strip():
-                    linkspec.length_m(value, "length")
+                    inputs.length_m(value, "length")
             elif kind in ("connectors", "splices", "component"):
                 if value.strip():
-                    linkspec.item_count(value, KINDS[kind]["value"].lower())
+                    inputs.item_count(value, KINDS[kind]["value"].lower())
             elif kind == "splitter":
                 if value.strip():
-                    linkspec.parse_splitter(value)
+                    inputs.splitter(value)
             elif value.strip():
-                linkspec.loss_db(value, "loss")
+                inputs.loss_db(value, "loss")
         except InputError as exc:
             value_error = str(exc)
         try:
@@ -715,7 +739,7 @@ class BudgetScreen(Screen[None]):
                     entry = attenuation_entry(extra)
                     linkspec.custom_fibre(entry)
                 else:
-                    linkspec.loss_db(extra, KINDS[item["kind"]]["extra"].lower())
+                    inputs.loss_db(extra, KINDS[item["kind"]]["extra"].lower())
         except InputError as exc:
             extra_error = str(exc)
         self._error("item-value", value_error)
@@ -804,7 +828,10 @@ class BudgetScreen(Screen[None]):
         self.focus_next()
 
     # -- settings ------------------------------------------------------------------------
-    @on(Input.Changed, "#wavelengths, #margin, #tx-min, #tx-max, #rx-sens, #rx-over")
+    @on(
+        Input.Changed,
+        "#wavelengths, #margin, #bit-rate, #spectral-width, #tx-min, #tx-max, #rx-sens, #rx-over",
+    )
     def _setting_typed(self, event: Input.Changed) -> None:
         self.recompute()
 
@@ -815,14 +842,14 @@ class BudgetScreen(Screen[None]):
 
     def _settings(self) -> dict[str, Any]:
         """The typed settings, each checked beside its field; problems raise InputError."""
-        from fieldkit import linkspec
+        from fieldkit import inputs
 
         out: dict[str, Any] = {}
         problems: list[str] = []
         self._tx_problem = None
         text = self.query_one("#wavelengths", Input).value
         try:
-            out["wavelengths"] = linkspec.wavelength_list(text) if text.strip() else []
+            out["wavelengths"] = inputs.wavelength_list(text) if text.strip() else []
             self._error("wavelengths", "")
         except InputError as exc:
             self._error("wavelengths", str(exc))
@@ -830,12 +857,25 @@ class BudgetScreen(Screen[None]):
         margin = self.query_one("#margin", Input).value
         try:
             out["margin"] = (
-                f"{linkspec.loss_db(margin, 'design margin')} dB" if margin.strip() else ""
+                f"{inputs.loss_db(margin, 'design margin')} dB" if margin.strip() else ""
             )
             self._error("margin", "")
         except InputError as exc:
             self._error("margin", str(exc))
             problems.append(str(exc))
+        for field_id, key, parser in (
+            ("bit-rate", "bit_rate", inputs.bit_rate_gbd),
+            ("spectral-width", "spectral_width", inputs.spectral_width_nm),
+        ):
+            typed = self.query_one(f"#{field_id}", Input).value
+            try:
+                if typed.strip():
+                    parser(typed)
+                    out[key] = typed.strip()
+                self._error(field_id, "")
+            except InputError as exc:
+                self._error(field_id, str(exc))
+                problems.append(str(exc))
         application = self.query_one("#application", Select).value
         if application is not Select.NULL:
             out["application"] = application
@@ -856,7 +896,7 @@ class BudgetScreen(Screen[None]):
                     self._error(field_id, "")
                     continue
                 try:
-                    levels[key] = linkspec.level_dbm(typed, what)
+                    levels[key] = inputs.level_dbm(typed, what)
                     self._error(field_id, "")
                 except InputError as exc:
                     self._error(field_id, str(exc))
@@ -882,6 +922,7 @@ class BudgetScreen(Screen[None]):
     def recompute(self) -> None:
         from fieldkit import linkspec
 
+        self._order_applications()
         problem = self.query_one("#budget-problem", Static)
         waiting = self.query_one("#budget-waiting", Static)
         waiting.display = False
@@ -900,6 +941,8 @@ class BudgetScreen(Screen[None]):
                     "#sources-out",
                     "#application-out",
                     "#transceiver-out",
+                    "#checks-out",
+                    "#fibre-data-out",
                 ):
                     self.query_one(out_id, Static).update("")
                 summary = self.query_one("#budget-summary", Static)
@@ -920,12 +963,43 @@ class BudgetScreen(Screen[None]):
             summary = self.query_one("#budget-summary", Static)
             summary.update(self._explain(str(exc)))
             summary.set_class(False, "-waiting").set_class(True, "-problem")
-            self.query_one("#application-out", Static).update("")
-            self.query_one("#transceiver-out", Static).update("")
+            for out_id in (
+                "#application-out",
+                "#transceiver-out",
+                "#checks-out",
+                "#fibre-data-out",
+            ):
+                self.query_one(out_id, Static).update("")
             return
         self.report, self.resolved, self.problem = report, resolved, None
         problem.display = False
         self._show(report)
+
+    def _order_applications(self) -> None:
+        """Applications with a row for the link's fibre first; the others after, marked, so
+        choosing one is a deliberate act (its check then names the missing row)."""
+        lib = self.library
+        names = tuple(
+            dict.fromkeys(
+                it.get("preset", "")
+                for it in self.items
+                if it["kind"] == "fibre" and it.get("preset") in lib.fibres
+            )
+        )
+        families = {lib.fibres[n].family for n in names}
+        family = next(iter(families)) if len(families) == 1 else None
+        fits, others = lib.applications_by_fit(names, family)
+        order = (*fits, "|", *others)
+        if order == self._application_order:
+            return
+        self._application_order = order
+        word = {"singlemode": "single-mode", "multimode": "multimode"}.get(family or "", "")
+        mark = f" (no {word} row)" if word else ""
+        select = self.query_one("#application", Select)
+        current = select.value
+        select.set_options([(n, n) for n in fits] + [(f"{n}{mark}", n) for n in others])
+        if current is not Select.NULL and current in (*fits, *others):
+            select.value = current
 
     def _explain(self, message: str) -> str:
         # The description numbers segments; tell the user which list item that is.
@@ -959,6 +1033,31 @@ class BudgetScreen(Screen[None]):
             out.update(self._tx_problem or "Pick a transceiver to check.")
         else:
             out.update("\n".join(lines.transceiver_lines(tx)))
+        checks = [] if report.checks is None else lines.check_lines(report.checks)
+        self.query_one("#checks-out", Static).update(
+            "\n".join(checks) or "Nothing to check beyond loss for this link."
+        )
+        self._show_fibre_data()
+
+    def _show_fibre_data(self) -> None:
+        """The fibre data of the picked fibre item (else the first) at the first wavelength."""
+        from fieldkit.calc.checks import fibre_data
+        from fieldkit.text.budget import fibre_data_lines
+
+        out = self.query_one("#fibre-data-out", Static)
+        if self.resolved is None or self.report is None:
+            out.update("")
+            return
+        fibre_items = [i for i, it in enumerate(self.items) if it["kind"] == "fibre"]
+        index = fibre_items.index(self.current) if self.current in fibre_items else 0
+        segments = self.resolved.link.segments
+        fibre = segments[min(index, len(segments) - 1)].fibre
+        rows = [
+            line
+            for w in self.report.result.wavelengths
+            for line in fibre_data_lines(fibre_data(fibre, w.wavelength_nm))
+        ]
+        out.update("\n".join(rows))
 
     # -- opening a saved budget ---------------------------------------------------------
     def action_open_saved(self) -> None:
@@ -998,7 +1097,16 @@ class BudgetScreen(Screen[None]):
         """Replace the link and the settings (typed text is kept as typed)."""
         self.items = items
         self.current = 0
-        for field_id in ("wavelengths", "margin", "tx-min", "tx-max", "rx-sens", "rx-over"):
+        for field_id in (
+            "wavelengths",
+            "margin",
+            "bit-rate",
+            "spectral-width",
+            "tx-min",
+            "tx-max",
+            "rx-sens",
+            "rx-over",
+        ):
             self.query_one(f"#{field_id}", Input).value = fields.get(field_id, "")
         for select_id in ("application", "transceiver"):
             select = self.query_one(f"#{select_id}", Select)
@@ -1029,14 +1137,15 @@ class BudgetScreen(Screen[None]):
         )
 
     def _save_to(self, choice: tuple[str, str] | None, resolved: Any, report: Any) -> None:
-        from fieldkit import linkspec, settings
+        from fieldkit import settings
+        from fieldkit.jobs.budget_records import budget_record
         from fieldkit.jobs.store import StoreError
 
         if choice is None:
             return
         job_id, link_id = choice
         by = settings.load(self.app.config_dir).get("name", "")  # type: ignore[attr-defined]
-        record = linkspec.budget_record(resolved, report, by=by if isinstance(by, str) else "")
+        record = budget_record(resolved, report, by=by if isinstance(by, str) else "")
         names: dict[str, str] = {}
 
         def change(job: Any) -> None:

@@ -1,5 +1,5 @@
-"""Link descriptions as people write them (preset names, values with units) turned into the
-resolved :class:`fieldkit.calc.budget.LinkDescription` the calculation takes.
+"""A written link description resolved against the presets into the
+:class:`fieldkit.calc.budget.LinkDescription` the calculation takes.
 
 The written form is a plain dict, the same for a TOML or JSON file, the command line and the
 budget workspace, and it is what a job keeps as the budget's ``description``::
@@ -31,11 +31,8 @@ Every problem raises :class:`InputError` naming the place ("segment 2: length: .
 
 from __future__ import annotations
 
-import json
-import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Any
 
 from fieldkit.calc import budget as b
@@ -43,10 +40,12 @@ from fieldkit.calc.fibre import Fibre, lookup
 from fieldkit.calc.units import InputError, format_number
 from fieldkit.inputs import (
     attenuation_db_per_km,
+    bit_rate_gbd,
     item_count,
     length_m,
     level_dbm,
     loss_db,
+    spectral_width_nm,
     wavelength_list,
     wavelength_nm,
 )
@@ -70,8 +69,10 @@ _TOP_KEYS = {
     "wavelengths_nm",
     "application",
     "transceiver",
+    "bit_rate",
+    "spectral_width",
     "notes",
-    # written by record_description for the meter workspace; ignored on reading
+    # written by jobs.budget_records.record_description for the meter; ignored on reading
     "connector_count",
     "connector_loss_db",
     "length_m",
@@ -87,57 +88,50 @@ class ResolvedBudget:
     transceiver: b.Transceiver | None = None
     spec: dict[str, Any] = field(default_factory=dict)
 
+    bit_rate_gbd: float | None = None
+    spectral_width_nm: float | None = None
+
+    def line_rate(self) -> tuple[float | None, tuple[float, ...] | None]:
+        """The bit rate the checks beyond loss use, and the wavelengths it applies at: as typed
+        (at every wavelength), else the transceiver's (at its wavelength), else the
+        application's (at its wavelengths)."""
+        if self.bit_rate_gbd is not None:
+            return self.bit_rate_gbd, None
+        tx, app = self.transceiver, self.application
+        if tx is not None and tx.line_rate_gbd is not None:
+            return tx.line_rate_gbd, None if tx.wavelength_nm is None else (tx.wavelength_nm,)
+        if app is not None and app.line_rate_gbd is not None:
+            return app.line_rate_gbd, app.wavelengths_nm
+        return None, None
+
     def evaluate(self) -> b.BudgetReport:
-        """The budget and the checks asked for."""
+        """The budget, the checks asked for and the checks beyond loss."""
+        from fieldkit.calc.checks import check_beyond_loss
+
         result = b.compute_budget(self.link)
         app = None if self.application is None else b.check_application(result, self.application)
         tx = None if self.transceiver is None else b.check_transceiver(result, self.transceiver)
-        return b.BudgetReport(
-            result=result, application=app, transceiver=tx, extra={"label": self.link.label}
+        rate, rate_wavelengths = self.line_rate()
+        checks = check_beyond_loss(
+            self.link,
+            tuple(w.wavelength_nm for w in result.wavelengths),
+            bit_rate_gbd=rate,
+            rate_wavelengths_nm=rate_wavelengths,
+            spectral_width_nm=self.spectral_width_nm,
+            dispersion_tolerance_ps_nm=None
+            if self.transceiver is None
+            else self.transceiver.dispersion_tolerance_ps_nm,
+            tolerance_wavelength_nm=None
+            if self.transceiver is None
+            else self.transceiver.wavelength_nm,
         )
-
-
-# -- reading a file ----------------------------------------------------------------------------
-
-
-def load_spec_file(path: Path) -> dict[str, Any]:
-    """The link description in a TOML or JSON file (by suffix; other names try both).
-
-    Raises
-    ------
-    InputError
-        For a missing, unreadable or malformed file.
-    """
-    path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8-sig")  # an editor's byte-order mark is fine
-    except FileNotFoundError:
-        raise InputError(f"link file {path}: not found") from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"link file {path}: cannot be read ({exc})") from None
-    suffix = path.suffix.lower()
-    data: Any
-    if suffix == ".json" or (suffix != ".toml" and text.lstrip().startswith("{")):
-        try:
-            data = json.loads(text, parse_constant=_refuse_constant)
-        except ValueError as exc:
-            raise InputError(f"link file {path}: not valid JSON ({exc})") from None
-        except RecursionError:
-            raise InputError(f"link file {path}: not valid JSON (nested too deeply)") from None
-    else:
-        try:
-            data = tomllib.loads(text)
-        except tomllib.TOMLDecodeError as exc:
-            raise InputError(f"link file {path}: not valid TOML ({exc})") from None
-        except RecursionError:
-            raise InputError(f"link file {path}: not valid TOML (nested too deeply)") from None
-    if not isinstance(data, dict):
-        raise InputError(f"link file {path}: must hold one table (object) describing the link")
-    return data
-
-
-def _refuse_constant(name: str) -> Any:
-    raise ValueError(f"{name} is not a number")
+        return b.BudgetReport(
+            result=result,
+            application=app,
+            transceiver=tx,
+            extra={"label": self.link.label},
+            checks=checks,
+        )
 
 
 # -- value helpers -----------------------------------------------------------------------------
@@ -225,7 +219,13 @@ def resolve(spec: Mapping[str, Any], library: PresetLibrary) -> ResolvedBudget:
         transceiver = _transceiver(spec["transceiver"], library, link.family)
     if not wavelengths:
         link = _add_check_wavelengths(link, application, transceiver)
-    return ResolvedBudget(link, application, transceiver, dict(spec))
+    rate = None if spec.get("bit_rate") in (None, "") else bit_rate_gbd(spec["bit_rate"])
+    width = (
+        None
+        if spec.get("spectral_width") in (None, "")
+        else spectral_width_nm(spec["spectral_width"])
+    )
+    return ResolvedBudget(link, application, transceiver, dict(spec), rate, width)
 
 
 def _segment(raw: Any, library: PresetLibrary, index: int) -> b.Segment:
@@ -520,6 +520,7 @@ def application_limits(
         wavelengths_nm=preset.wavelengths_nm,
         loss_min_db=limit.loss_min_db,
         source=preset.source,
+        line_rate_gbd=preset.line_rate_gbd,
         row_reason=reason,
     )
 
@@ -609,41 +610,3 @@ def _add_check_wavelengths(
     from dataclasses import replace
 
     return replace(link, wavelengths_nm=tuple(sorted(dict.fromkeys(wanted))))
-
-
-# -- what a job keeps, and the text the CLI prints ---------------------------------------------
-
-
-def record_description(resolved: ResolvedBudget) -> dict[str, Any]:
-    """The description a job keeps: the link as written, plus the resolved connector figures
-    the meter workspace reads (``connector_count``, ``connector_loss_db`` per mated pair)."""
-    description = dict(resolved.spec)
-    connectors = resolved.link.connectors
-    description["connector_count"] = 0 if connectors is None else connectors.count
-    if connectors is not None:
-        description["connector_loss_db"] = connectors.loss_max_db
-    description["length_m"] = resolved.link.length_m
-    return description
-
-
-def budget_record(resolved: ResolvedBudget, report: b.BudgetReport, by: str = "") -> Any:
-    """A :class:`fieldkit.jobs.models.BudgetRecord` of a computed budget."""
-    from fieldkit.jobs.models import BudgetItem, BudgetRecord, BudgetWavelength
-
-    rows = [
-        BudgetWavelength(
-            wavelength_nm=w.wavelength_nm,
-            loss_db=w.loss_db,
-            typical_loss_db=w.typical_loss_db,
-            items=[BudgetItem(name=i.name, loss_db=i.loss_db, source=i.source) for i in w.items],
-        )
-        for w in report.result.wavelengths
-    ]
-    return BudgetRecord(
-        by=by,
-        description=record_description(resolved),
-        wavelengths=rows,
-        margin_db=report.result.margin_db,
-        application=None if report.application is None else report.application.as_dict(),
-        transceiver=None if report.transceiver is None else report.transceiver.as_dict(),
-    )
