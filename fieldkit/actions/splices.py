@@ -330,6 +330,8 @@ class Recorded:
     judgement: Judgement
     closure: Closure
     notices: list[str] = field(default_factory=list)
+    #: The link's splice limits after the change (a default one may have been added).
+    limits: list[SpliceLimit] = field(default_factory=list)
 
 
 def _default_cables(link: Link, closure: Closure, by: str) -> str | None:
@@ -491,7 +493,8 @@ def record_splice(
         if off_plan:
             notices.append(off_plan)
         judgement = judge_in(item, splice, target.splice_limits)
-        out.append(Recorded(splice, judgement, item.model_copy(deep=True), notices))
+        # The job object was loaded for this change and is not shared: no copy is needed.
+        out.append(Recorded(splice, judgement, item, notices, list(target.splice_limits)))
 
     _store_update(store, job_id, change)
     return out[0]
@@ -570,7 +573,7 @@ def set_plan(
         b = item.cables[1].name if len(item.cables) > 1 else a
         shown = plan_text([r.as_range() for r in rows], a, b)
         item.plan_source = shown if plan_source == "typed" else f"{plan_source}: {shown}"
-        made.append(item.model_copy(deep=True))
+        made.append(item)
 
     _store_update(store, job_id, change)
     return made[0]
@@ -634,7 +637,7 @@ def set_plan_rows(
         item = find_closure(find_link(job, link), closure)
         item.plan = check_plan(item, rows, "plan")
         item.plan_source = source
-        made.append(item.model_copy(deep=True))
+        made.append(item)
 
     _store_update(store, job_id, change)
     return made[0]

@@ -387,6 +387,7 @@ class SpliceSession:
                         "Esc keeps what is recorded",
                     )
                 splice, judgement, notices = update.splice, update.judgement, []
+                fresh = None
             else:
                 target_cable, target_fibre = self.target()
                 done = act.record_splice(
@@ -396,13 +397,17 @@ class SpliceSession:
                     loss_ab_db=values["loss_ab_db"], loss_ba_db=values["loss_ba_db"],
                 )  # fmt: skip
                 splice, judgement, notices = done.splice, done.judgement, done.notices
+                fresh = (done.closure, done.limits)
         except act.AlreadySpliced as exc:
             return Step(focus=focus, error=(focus, str(exc)))
         except InputError as exc:
             return Step(focus=focus, error=(focus, str(exc)))
         self._confirm = None
         self.texts = dict.fromkeys(FIELDS, "")
-        self.reload()
+        if fresh is not None:  # the closure as just saved: no second read of the file
+            self.closure, self.limits = fresh
+        else:
+            self.reload()
         assert splice is not None and judgement is not None
         line = splice_line(self.closure, splice, judgement, short=True)
         done_fibre = self.fibre

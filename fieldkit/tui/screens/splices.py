@@ -77,6 +77,7 @@ class SplicesScreen(Screen[None]):
         self.job_id: str | None = None
         self.link_id: str | None = None
         self._mode = "estimate"
+        self._rows: list[tuple[int, str, str]] = []  # what the splice list shows now
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
@@ -209,6 +210,8 @@ class SplicesScreen(Screen[None]):
             fieldkit_app(self).store, self.job_id, self.link_id, closure, by=self._operator()
         )
         self.session.set_entry(self._mode)
+        self.query_one("#sp-list", OptionList).clear_options()
+        self._rows = []
         self.query_one("#sp-setup").display = False
         self.query_one("#sp-entry").display = True
         narrow = self.size.width < 60
@@ -312,12 +315,32 @@ class SplicesScreen(Screen[None]):
         narrow = self.size.width < 60
         rows = session.rows(short=narrow)
         listing = self.query_one("#sp-list", OptionList)
-        highlighted = listing.highlighted
-        listing.clear_options()
         header = "Fib   Est   A→B   B→A   Avg" if narrow else session.summary()
         listing.border_title = escape.markup(header)
-        for fibre, line, mark in rows:
+        self._show_rows(listing, rows)
+
+    def _show_rows(self, listing: OptionList, rows: list[tuple[int, str, str]]) -> None:
+        """Change only the rows that changed: a new splice adds one row, a filled one
+        replaces its own (rebuilding 144 rows on every Enter would grow with the closure)."""
+
+        def prompt(line: str, mark: str) -> Text:
             style = "bold red" if mark == "fail" else "yellow" if mark == "warn" else ""
-            listing.add_option(Option(Text(line, style=style), id=str(fibre)))
-        if highlighted is not None and rows:
-            listing.highlighted = min(highlighted, len(rows) - 1)
+            return Text(line, style=style)
+
+        old = self._rows
+        if [r[0] for r in rows[: len(old)]] == [r[0] for r in old]:
+            for index, (row, before) in enumerate(zip(rows, old, strict=False)):
+                if row != before:
+                    listing.replace_option_prompt_at_index(index, prompt(row[1], row[2]))
+            listing.add_options(
+                Option(prompt(line, mark), id=str(fibre)) for fibre, line, mark in rows[len(old) :]
+            )
+        else:
+            highlighted = listing.highlighted
+            listing.clear_options()
+            listing.add_options(
+                Option(prompt(line, mark), id=str(fibre)) for fibre, line, mark in rows
+            )
+            if highlighted is not None and rows:
+                listing.highlighted = min(highlighted, len(rows) - 1)
+        self._rows = rows
