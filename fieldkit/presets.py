@@ -39,6 +39,7 @@ from pydantic import (
 
 from fieldkit.calc.fibre import Fibre, check_wavelength_nm, lookup, rayleigh_scaled_db_per_km
 from fieldkit.calc.units import InputError, format_number, parse_number
+from fieldkit.fsutil import read_regular
 
 KINDS: tuple[str, ...] = (
     "fibres",
@@ -447,6 +448,10 @@ def load_file(path: Path) -> PresetLibrary:
 
 
 # -- parsing and validation --------------------------------------------------------------------
+
+
+#: Largest preset file read (the shipped ones are a few KiB each).
+MAX_PRESET_FILE_BYTES = 1024 * 1024
 
 
 # -- the preset file format: one pydantic model per kind of entry ------------------------------
@@ -989,7 +994,10 @@ def parse_entry(kind: str, entry: Mapping[str, Any], origin: str) -> Any:
 
 def _load_file(library: PresetLibrary, path: Path, label: str) -> None:
     try:
-        data = tomllib.loads(path.read_text(encoding="utf-8-sig"))  # an editor's BOM is fine
+        # a regular file only, at most MAX_PRESET_FILE_BYTES: a FIFO or a link to /dev/zero
+        # in the presets folder is reported, never read
+        raw = read_regular(path, MAX_PRESET_FILE_BYTES)
+        data = tomllib.loads(raw.decode("utf-8-sig"))  # an editor's BOM is fine
     except OSError as exc:
         library.problems.append(f"{label}: cannot be read ({exc.strerror or exc})")
         return

@@ -6,7 +6,7 @@ import json
 from pathlib import Path
 from typing import Any
 
-from fieldkit.fsutil import atomic_write_bytes
+from fieldkit.fsutil import atomic_write_bytes, read_regular
 
 FILE_NAME = "settings.json"
 
@@ -14,8 +14,9 @@ FILE_NAME = "settings.json"
 def load(config: Path) -> dict[str, Any]:
     """The saved settings; an unreadable file gives the defaults (it is left in place)."""
     try:
-        data = json.loads((config / FILE_NAME).read_text(encoding="utf-8"))
-    except (OSError, ValueError):
+        # a regular file of at most 64 KiB: a FIFO or a device here must not hang the start
+        data = json.loads(read_regular(config / FILE_NAME, 64 * 1024).decode("utf-8"))
+    except (OSError, ValueError, RecursionError):
         return {}
     return data if isinstance(data, dict) else {}
 

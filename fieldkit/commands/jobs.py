@@ -365,8 +365,11 @@ def run_import(args: argparse.Namespace) -> int:
     from fieldkit.jobs.handoff import import_jobs, read_handoff
 
     store = store_of(args)
-    jobs = read_handoff(Path(args.file).expanduser())
-    report = import_jobs(store, jobs)
+    progress = _Progress("checked") if sys.stderr.isatty() else None
+    jobs = read_handoff(Path(args.file).expanduser(), progress)
+    if progress is not None:
+        progress = _Progress("imported")
+    report = import_jobs(store, jobs, progress)
     if args.json:
         print_json(report.as_dict())
     else:
@@ -377,6 +380,26 @@ def run_import(args: argparse.Namespace) -> int:
         for conflict in report.conflicts:
             print(f"conflict: {conflict}")
     return 0
+
+
+class _Progress:
+    """``import: 1,200 of 20,000 jobs checked`` on the terminal, redrawn at most 5 times a
+    second, then left as the last line (only on a terminal: a log or a pipe gets no noise)."""
+
+    def __init__(self, verb: str) -> None:
+        self.verb = verb
+        self.shown = 0.0
+
+    def __call__(self, done: int, total: int) -> None:
+        import time
+
+        moment = time.monotonic()
+        if done < total and moment - self.shown < 0.2:
+            return
+        self.shown = moment
+        end = "\n" if done >= total else ""
+        sys.stderr.write(f"\rimport: {done:,} of {total:,} jobs {self.verb}{end}")
+        sys.stderr.flush()
 
 
 def run_today(args: argparse.Namespace) -> int:

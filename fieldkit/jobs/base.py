@@ -18,6 +18,23 @@ from pydantic import BaseModel, ConfigDict, Field
 #: them; letters, digits, ``-`` and ``_`` only.
 RECORD_ID_RE = r"^[A-Za-z0-9_-]{1,64}$"
 
+# -- the size and shape policy: every save is checked against it before it is acknowledged,
+# -- every import and every read the same, so nothing acknowledged can be refused later
+# -- (checked in fieldkit.jobs.jobfile and by the models below).
+#: Names, labels, who (``by``), instrument and reference ids.
+MAX_SHORT_TEXT = 200
+#: A note, or any text inside a free-form part (a budget's link description, fault inputs).
+MAX_NOTE_TEXT = 20_000
+#: Nesting of the free-form parts: lists and tables inside each other (a link description is
+#: three or four deep; 32 leaves room and keeps every reader and writer far from recursion
+#: limits).
+MAX_NESTING_DEPTH = 32
+#: Notes, links and everything recorded on the links of one job, counted together (a 6,912
+#: fibre cable tested at two wavelengths both ways is 27,648 results).
+MAX_RECORDS_PER_JOB = 100_000
+#: Largest job file (as written, 1-space indented JSON) and largest file an import reads.
+MAX_FILE_BYTES = 20 * 1024 * 1024
+
 
 def new_id() -> str:
     """A new record or job id: 11 hex digits of milliseconds since 1970, then 8 random.
@@ -33,20 +50,32 @@ def now() -> datetime:
 
 
 def _check_finite(value: Any, where: str) -> None:
-    if isinstance(value, float) and not math.isfinite(value):
-        raise ValueError(f"{where} holds a number that is not finite")
-    if isinstance(value, dict):
-        for key, item in value.items():
-            _check_finite(item, f"{where}.{key}")
-    elif isinstance(value, list | tuple):
-        for item in value:
-            _check_finite(item, where)
+    """Refuse NaN and infinity anywhere in a free-form part, and (the size policy) nesting
+    deeper than MAX_NESTING_DEPTH or text longer than MAX_NOTE_TEXT. Walks without recursion,
+    so a hostile file nested thousands deep is refused, not a crash."""
+    stack: list[tuple[Any, str, int]] = [(value, where, 0)]
+    while stack:
+        item, at, depth = stack.pop()
+        if isinstance(item, float) and not math.isfinite(item):
+            raise ValueError(f"{at} holds a number that is not finite")
+        if isinstance(item, str) and len(item) > MAX_NOTE_TEXT:
+            raise ValueError(f"{at} holds a text longer than {MAX_NOTE_TEXT:,} characters")
+        if isinstance(item, dict | list | tuple):
+            if depth >= MAX_NESTING_DEPTH:
+                raise ValueError(f"{at} is nested more than {MAX_NESTING_DEPTH} levels deep")
+            if isinstance(item, dict):
+                stack.extend((v, f"{at}.{k}", depth + 1) for k, v in item.items())
+            else:
+                stack.extend((v, at, depth + 1) for v in item)
 
 
 class Record(BaseModel):
     """Base of every stored record: unknown fields refused, finite numbers only."""
 
-    model_config = ConfigDict(extra="forbid", allow_inf_nan=False, validate_default=False)
+    # str_max_length: the size policy's bound on every text without a tighter limit of its own
+    model_config = ConfigDict(
+        extra="forbid", allow_inf_nan=False, validate_default=False, str_max_length=MAX_NOTE_TEXT
+    )
 
 
 _Id = Field(default_factory=new_id, pattern=RECORD_ID_RE)

@@ -12,23 +12,31 @@ local record is kept and the conflict reported, never overwritten.
 
 from __future__ import annotations
 
+import hashlib
 import json
+import typing
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 from pydantic import BaseModel
 
-from fieldkit.jobs.models import JOB_ID_RE, Job, Link
+from fieldkit.fsutil import FileTooLargeError, NotRegularFileError, mib, read_regular
+from fieldkit.jobs.jobfile import check_before_save, loads_strict
+from fieldkit.jobs.migrations import MigrationError, migrate
+from fieldkit.jobs.models import JOB_ID_RE, MAX_FILE_BYTES, Job, Link
 from fieldkit.jobs.reports import HANDOFF_FORMAT
 from fieldkit.jobs.store import (
-    MAX_FILE_BYTES,
     ConflictError,
     JobStore,
     NewerSchemaError,
     StoreError,
     job_from_dict,
 )
+
+#: Called as ``progress(done, total)`` while jobs are read and while they are merged.
+Progress = Callable[[int, int], None]
 
 
 @dataclass
@@ -51,33 +59,30 @@ class ImportReport:
         }
 
 
-def read_handoff(path: Path) -> list[Job]:
-    """The jobs in a hand-off file or a single job file, all validated; StoreError if not."""
+def read_handoff(path: Path, progress: Progress | None = None) -> list[Job]:
+    """The jobs in a hand-off file or a single job file, all validated; StoreError if not.
+
+    The same rules as a job file in the store: a regular file only, at most the size limit,
+    no repeated keys, strict types, and each job within the size policy (as the store would
+    write it). Records without an id get one made from their content (see
+    :func:`assign_content_ids`), so importing the same file again merges instead of adding
+    copies.
+    """
     try:
-        size = path.stat().st_size
+        raw = read_regular(path, MAX_FILE_BYTES)
+    except FileTooLargeError:
+        raise StoreError(
+            f"{path.name} is larger than the {mib(MAX_FILE_BYTES)} import limit; nothing imported"
+        ) from None
+    except NotRegularFileError as exc:
+        raise StoreError(f"{path} is {exc.strerror}; nothing imported") from None
     except OSError as exc:
         raise StoreError(f"cannot read {path}: {exc.strerror or exc}") from None
-    if size > MAX_FILE_BYTES:
-        raise StoreError(
-            f"{path.name} is {size / 1e6:.1f} MB, larger than the "
-            f"{MAX_FILE_BYTES // (1024 * 1024)} MB import limit; nothing imported"
-        )
     try:
-        with open(path, "rb") as handle:
-            raw = handle.read(MAX_FILE_BYTES + 1)
-    except OSError as exc:
-        raise StoreError(f"cannot read {path}: {exc.strerror or exc}") from None
-    if len(raw) > MAX_FILE_BYTES:
-        raise StoreError(f"{path.name} is larger than the import limit; nothing imported")
-    try:
-        data = json.loads(raw)
-    except UnicodeDecodeError:
-        raise StoreError(f"{path.name} is not UTF-8 text; nothing imported") from None
-    except ValueError as exc:
-        raise StoreError(f"{path.name} is not valid JSON ({exc}); nothing imported") from None
-    except RecursionError:
+        data = loads_strict(raw)
+    except StoreError as exc:
         raise StoreError(
-            f"{path.name} is not valid JSON (nested too deeply); nothing imported"
+            f"{path.name}: {str(exc).removeprefix('the file ')}; nothing imported"
         ) from None
     if isinstance(data, dict) and data.get("format") == HANDOFF_FORMAT:
         items = data.get("jobs")
@@ -95,15 +100,20 @@ def read_handoff(path: Path) -> list[Job]:
         if not isinstance(item, dict):
             raise StoreError(f"{path.name}: job {number} is not an object; nothing imported")
         job_id = item.get("id")
-        if not isinstance(job_id, str) or not JOB_ID_RE.match(job_id):
+        if not isinstance(job_id, str) or not JOB_ID_RE.fullmatch(job_id):
             raise StoreError(
                 f"{path.name}: job {number} has an id that is not a fieldkit job "
                 f"id ({str(job_id)[:40]!r}); nothing imported"
             )
         try:
-            job = job_from_dict(item)
+            job = job_from_dict(assign_content_ids(migrate(item)))
+            check_before_save(job, job.model_dump_json(indent=1).encode())
         except NewerSchemaError as exc:
             raise StoreError(f"{path.name}: {exc}; nothing imported") from None
+        except MigrationError as exc:
+            raise StoreError(
+                f"{path.name}: job {number} ({job_id}): {exc}; nothing imported"
+            ) from None
         except StoreError as exc:
             raise StoreError(
                 f"{path.name}: job {number} ({job_id}): {exc}; nothing imported"
@@ -117,7 +127,71 @@ def read_handoff(path: Path) -> list[Job]:
             raise StoreError(f"{path.name}: job {job.id} holds {twice} twice; nothing imported")
         seen.add(job.id)
         jobs.append(job)
+        if progress is not None:
+            progress(number, len(items))
     return jobs
+
+
+def _id_lists(model: type[BaseModel]) -> dict[str, type[BaseModel]]:
+    """The fields of ``model`` that are lists of records carrying an ``id``, with the record's
+    model (read from the annotations, so lists added to the models later are covered)."""
+    out: dict[str, type[BaseModel]] = {}
+    for name, info in model.model_fields.items():
+        annotation = info.annotation
+        if typing.get_origin(annotation) is list:
+            (item,) = typing.get_args(annotation)
+            if isinstance(item, type) and issubclass(item, BaseModel) and "id" in item.model_fields:
+                out[name] = item
+    return out
+
+
+def _content_id(record: dict[str, Any], parent: str, nth: int) -> str:
+    """An id made from a record's content: the same record in the same place always gets the
+    same id (a SHA-256 of its canonical JSON, its parent's id and its repeat number)."""
+    canonical = json.dumps(
+        {"parent": parent, "nth": nth, "record": record},
+        sort_keys=True,
+        ensure_ascii=False,
+        separators=(",", ":"),
+        allow_nan=True,
+        default=str,
+    )
+    return "c" + hashlib.sha256(canonical.encode()).hexdigest()[:31]
+
+
+def assign_content_ids(data: dict[str, Any]) -> dict[str, Any]:
+    """A copy of a (migrated) job dict in which every record without an ``id`` has one made
+    from its content. A link's id comes from its own fields, not from the records it holds, so
+    the same link with more results in a later hand-off still merges. Anything that is not the
+    expected shape is left for validation to refuse.
+    """
+    out = dict(data)
+    parent = str(data.get("id"))
+    for name, model in _id_lists(Job).items():
+        out[name] = _with_ids(out.get(name), model, parent)
+    return out
+
+
+def _with_ids(items: Any, model: type[BaseModel], parent: str) -> Any:
+    if not isinstance(items, list):
+        return items
+    children = _id_lists(model)
+    repeats: dict[str, int] = {}
+    result = []
+    for item in items:
+        if not isinstance(item, dict):
+            result.append(item)
+            continue
+        item = dict(item)
+        if "id" not in item:
+            own = {k: v for k, v in item.items() if k not in children}
+            key = json.dumps(own, sort_keys=True, default=str, allow_nan=True)
+            nth = repeats[key] = repeats.get(key, 0) + 1
+            item["id"] = _content_id(own, parent, nth)
+        for name, child in children.items():
+            item[name] = _with_ids(item.get(name), child, str(item["id"]))
+        result.append(item)
+    return result
 
 
 def _repeated_record_id(job: Job) -> str | None:
@@ -255,10 +329,13 @@ def _merge_list(mine: list[Any], theirs: list[Any], where: str) -> tuple[int, li
     return added, conflicts
 
 
-def import_jobs(store: JobStore, jobs: list[Job]) -> ImportReport:
-    """Merge validated jobs into the store (see the module docstring)."""
+def import_jobs(store: JobStore, jobs: list[Job], progress: Progress | None = None) -> ImportReport:
+    """Merge validated jobs into the store (see the module docstring); ``progress(done,
+    total)`` is called after each job."""
     report = ImportReport()
-    for incoming in jobs:
+    for done, incoming in enumerate(jobs, start=1):
+        if progress is not None and done > 1:
+            progress(done - 1, len(jobs))
         path = store.path_of(incoming.id)
         if not path.exists():
             fresh = incoming.model_copy(deep=True)
@@ -291,4 +368,6 @@ def import_jobs(store: JobStore, jobs: list[Job]) -> ImportReport:
         report.merged_jobs.append(incoming.id)
         report.added_records += outcome["added"]
         report.conflicts += outcome["conflicts"]
+    if progress is not None and jobs:
+        progress(len(jobs), len(jobs))
     return report

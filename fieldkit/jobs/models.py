@@ -20,6 +20,13 @@ from typing import Any, Literal
 
 from pydantic import AwareDatetime, Field, PrivateAttr, field_validator
 
+# The size and shape policy lives in fieldkit.jobs.base beside the base record that applies it;
+# named here too, where the records are.
+from fieldkit.jobs.base import MAX_FILE_BYTES as MAX_FILE_BYTES
+from fieldkit.jobs.base import MAX_NESTING_DEPTH as MAX_NESTING_DEPTH
+from fieldkit.jobs.base import MAX_NOTE_TEXT as MAX_NOTE_TEXT
+from fieldkit.jobs.base import MAX_RECORDS_PER_JOB as MAX_RECORDS_PER_JOB
+from fieldkit.jobs.base import MAX_SHORT_TEXT as MAX_SHORT_TEXT
 from fieldkit.jobs.base import Record, _check_finite, _Id, new_id, now
 from fieldkit.jobs.splices import Closure, SpliceLimit
 
@@ -28,8 +35,10 @@ from fieldkit.jobs.splices import Closure, SpliceLimit
 SCHEMA_VERSION = 3
 
 #: Job ids: generated, lower-case hex, time-sortable (see :func:`new_id`). Anything else in a
-#: file name or an imported file is refused, so no id can name a path.
+#: file name or an imported file is refused, so no id can name a path. Match it with
+#: ``fullmatch``: ``$`` alone also matches before a trailing newline.
 JOB_ID_RE = re.compile(r"^[0-9a-f]{12,32}$")
+
 
 Method = Literal["one-cord", "two-cord", "three-cord"]
 Direction = Literal["A->B", "B->A"]

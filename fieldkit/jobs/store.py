@@ -5,45 +5,75 @@ Layout of the jobs folder::
     <id>.json        a job (ids are generated hex, never user text)
     <id>.json.bak    the version before the last save
     .index/          summaries for fast listing; a cache, rebuilt entry by entry when stale
-    .locks/<id>.lock lock files (``flock``) held around read-check-write
+    .locks/<id>.lock lock files held around read-check-write (``.locks/index.lock``: the index)
     quarantine/      files that did not parse or validate, each with a ``.reason.txt``
 
+The store is split by role: :mod:`fieldkit.jobs.jobfile` reads and checks one job file (the size
+and shape policy), :mod:`fieldkit.jobs.index` keeps the summaries, :mod:`fieldkit.jobs.search`
+filters them, :mod:`fieldkit.jobs.locking` holds the locks; this module puts them together.
+Every name other code used from here is still importable from here.
+
 Saves go through :func:`fieldkit.fsutil.atomic_write_bytes` (temp file, fsync, rename, fsync the
-folder), so a crash leaves the old or the new file. Every save checks the job's ``revision``
-against the file under an exclusive lock: :meth:`JobStore.save` refuses a stale copy with
-:class:`ConflictError`; :meth:`JobStore.update` reloads, applies a change and saves under the
-lock, which is how two running copies append results and notes without losing any.
+folder), so a crash leaves the old or the new file; temp files a killed program left behind are
+removed by the next program that holds the job's (or the index's) lock. Every save checks the
+job's ``revision`` against the file under an exclusive lock: :meth:`JobStore.save` refuses a
+stale copy with :class:`ConflictError`; :meth:`JobStore.update` reloads, applies a change and
+saves under the lock, which is how two running copies append results and notes without losing
+any. Every save is checked against the size policy before it is acknowledged.
+
+Reading opens regular files only: a FIFO, a device, a folder or a symlink named like a job is
+reported and skipped (never opened, so nothing hangs); an unreadable file is reported and the
+others still list; a broken file is moved to quarantine, and when that is impossible (a read-only
+folder) the problem is reported and the rest still list.
 """
 
 from __future__ import annotations
 
 import contextlib
+import errno
 import gc
-import json
 import os
 import re
+import stat
 import time
 from collections.abc import Callable, Iterator, Sequence
-from dataclasses import dataclass, field
-from datetime import UTC, date, datetime
+from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
 
 from pydantic import ValidationError
 
-from fieldkit.fsutil import atomic_write_bytes
-from fieldkit.jobs.migrations import MigrationError, migrate
-from fieldkit.jobs.models import JOB_ID_RE, SCHEMA_VERSION, Job, now
+from fieldkit.fsutil import (
+    FileTooLargeError,
+    NotRegularFileError,
+    atomic_write_bytes,
+    read_regular,
+    read_regular_head,
+)
+from fieldkit.jobs.errors import ConflictError, LockTimeoutError, ReadOnlyError, StoreError
+from fieldkit.jobs.index import (
+    INDEX_DIR,
+    INDEX_NAME,
+    INDEX_VERSION,
+    IndexEntries,
+    JobSummary,
+    entry_ok,
+    read_index,
+    row_ok,
+    write_index,
+)
+from fieldkit.jobs.jobfile import (
+    NewerSchemaError,
+    check_before_save,
+    explain,
+    job_from_dict,
+    parse_job,
+)
+from fieldkit.jobs.locking import LOCK_TIMEOUT_S, LOCKS_DIR, locked, locked_if_free
+from fieldkit.jobs.models import JOB_ID_RE, MAX_FILE_BYTES, SCHEMA_VERSION, Job, now
+from fieldkit.jobs.search import filter_summaries, local_date
 
-#: Largest job file the store reads or imports. A job with 1,000 results is about 0.5 MB.
-MAX_FILE_BYTES = 20 * 1024 * 1024
-#: How long a save waits for another program holding the job's lock.
-LOCK_TIMEOUT_S = 10.0
-INDEX_DIR = ".index"
-INDEX_NAME = "summaries.json"
 #: How long the jobs folder must have been unchanged before a scan trusts its mtime alone.
 SETTLE_NS = 2_000_000_000
-INDEX_VERSION = 3
 QUARANTINE = "quarantine"
 
 _HEAD_RE = re.compile(
@@ -51,207 +81,9 @@ _HEAD_RE = re.compile(
     rb'\s*"revision"\s*:\s*(\d+)'
 )
 _PREFIX_RE = re.compile(r"^[0-9a-f]{1,32}$")
-
-
-class StoreError(Exception):
-    """A job could not be read or written; the message names the job and the problem."""
-
-
-class ConflictError(StoreError):
-    """Another program saved the job since this copy was loaded; nothing was written."""
-
-
-class ReadOnlyError(StoreError):
-    """The job was written by a newer fieldkit and may only be read."""
-
-
-class LockTimeoutError(StoreError):
-    """Another program kept the job locked for too long."""
-
-
-def explain(exc: ValidationError) -> str:
-    """One line naming the first invalid field of a pydantic error, in plain words."""
-    errors = exc.errors()
-    first = errors[0]
-    where = ".".join(str(part) for part in first.get("loc", ())) or "the file"
-    more = f" (and {len(errors) - 1} more problems)" if len(errors) > 1 else ""
-    return f"{where}: {first.get('msg', 'invalid')}{more}"
-
-
-def _iso(moment: datetime) -> str:
-    """A time as fixed-width UTC ISO text, so that sorting the text sorts the times."""
-    return moment.astimezone(UTC).isoformat(timespec="microseconds")
-
-
-@dataclass(slots=True)
-class JobSummary:
-    """What the jobs list shows, kept in the index so listing does not parse every job.
-
-    Times are kept as fixed-width UTC ISO text (``created_iso``, ``updated_iso``), which sorts
-    like the times and costs nothing to load; ``created_at`` / ``updated_at`` parse them.
-    The fields are in the order of an index row, so a row loads as ``JobSummary(*row)``.
-    """
-
-    id: str
-    name: str
-    customer: str
-    site: str
-    crew: list[str]
-    status: str
-    created_iso: str
-    updated_iso: str
-    revision: int
-    link_count: int
-    result_count: int
-    failed_count: int
-    note_count: int
-    read_only: str | None = None
-    link_labels: list[str] = field(default_factory=list)
-    _search: str | None = field(default=None, init=False, repr=False, compare=False)
-
-    @property
-    def search_text(self) -> str:
-        """Id, name, customer, site, crew and link labels, case-folded (made on first use)."""
-        if self._search is None:
-            self._search = _haystack(
-                self.id, self.name, self.customer, self.site, self.crew, self.link_labels
-            )
-        return self._search
-
-    @property
-    def created_at(self) -> datetime:
-        return datetime.fromisoformat(self.created_iso)
-
-    @property
-    def updated_at(self) -> datetime:
-        return datetime.fromisoformat(self.updated_iso)
-
-    @classmethod
-    def of(cls, job: Job) -> JobSummary:
-        results = [r for link in job.links for r in link.results]
-        return cls(
-            id=job.id,
-            name=job.name,
-            customer=job.customer,
-            site=job.site,
-            crew=list(job.crew),
-            status=job.status,
-            created_iso=_iso(job.created_at),
-            updated_iso=_iso(job.updated_at),
-            revision=job.revision,
-            link_count=len(job.links),
-            result_count=len(results),
-            failed_count=sum(r.passed is False for r in results),
-            note_count=len(job.notes),
-            read_only=job.read_only,
-            link_labels=[link.label for link in job.links],
-        )
-
-    def to_json(self) -> list[Any]:
-        return [
-            self.id,
-            self.name,
-            self.customer,
-            self.site,
-            list(self.crew),
-            self.status,
-            self.created_iso,
-            self.updated_iso,
-            self.revision,
-            self.link_count,
-            self.result_count,
-            self.failed_count,
-            self.note_count,
-            self.read_only,
-            self.link_labels,
-        ]
-
-    @classmethod
-    def from_json(cls, row: list[Any]) -> JobSummary:
-        if len(row) != 15:
-            raise ValueError("index row of the wrong length")
-        return cls(*row)
-
-    def as_dict(self) -> dict[str, Any]:
-        """The summary as JSON-ready values (for ``jobs list --json``)."""
-        return {
-            "id": self.id,
-            "name": self.name,
-            "customer": self.customer,
-            "site": self.site,
-            "crew": list(self.crew),
-            "status": self.status,
-            "created_at": self.created_iso,
-            "updated_at": self.updated_iso,
-            "revision": self.revision,
-            "links": self.link_count,
-            "results": self.result_count,
-            "failed": self.failed_count,
-            "notes": self.note_count,
-            "read_only": self.read_only,
-        }
-
-
-def _haystack(*parts: Any) -> str:
-    words: list[str] = []
-    for part in parts:
-        if isinstance(part, list | tuple):
-            words.extend(str(p) for p in part)
-        else:
-            words.append(str(part))
-    return "\n".join(words).casefold()
-
-
-def filter_summaries(
-    summaries: list[JobSummary],
-    text: str = "",
-    status: str | None = None,
-    on_date: date | None = None,
-) -> list[JobSummary]:
-    """The summaries matching every given filter.
-
-    ``text``: every word must appear in the id, name, customer, site, crew or a link label
-    (case ignored); a word written YYYY-MM-DD is a date instead. ``status``: "open" or "done".
-    ``on_date``: created or updated on that local date.
-    """
-    words = []
-    for word in text.casefold().split():
-        day = _as_date(word)
-        if day is None:
-            words.append(word)
-        elif on_date is None:
-            on_date = day
-        elif on_date != day:
-            return []
-    out = summaries
-    if status:
-        out = [s for s in out if s.status == status]
-    if on_date is not None:
-        out = [
-            s
-            for s in out
-            if local_date(s.created_at) == on_date or local_date(s.updated_at) == on_date
-        ]
-    for word in words:
-        out = [s for s in out if word in s.search_text]
-    return out
-
-
-_DATE_RE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
-
-
-def _as_date(word: str) -> date | None:
-    if not _DATE_RE.match(word):
-        return None
-    try:
-        return date.fromisoformat(word)
-    except ValueError:
-        return None
-
-
-def local_date(moment: datetime) -> date:
-    """The date of a stored (UTC) time in this computer's time zone."""
-    return moment.astimezone().date()
+# Temp files of atomic_write_bytes: ".<name>.<random>.tmp", and the backup's ".<name>.bak.tmp".
+_TMP_RE = re.compile(r"^\.([0-9a-f]{12,32})\.json\..+\.tmp$")
+_DATA_DIR_HINT = "choose a usable folder with --data-dir or FIELDKIT_DATA_DIR"
 
 
 @dataclass(frozen=True, slots=True)
@@ -262,8 +94,21 @@ class QuarantinedFile:
     reason: str
 
 
+class _Unreadable(StoreError):
+    """A job entry that cannot be read (not a regular file, no permission): reported, skipped,
+    never moved."""
+
+
+class _Quarantined(StoreError):
+    """A broken job file, moved aside (``restored``: its backup took its place) or left where
+    it is when moving it failed."""
+
+    def __init__(self, message: str, restored: bool = False) -> None:
+        super().__init__(message)
+        self.restored = restored
+
+
 # Type aliases spelled outside the class, whose ``list`` method hides the builtin there.
-_IndexEntries = dict[str, list[Any]]
 _QuarantineList = list[QuarantinedFile]
 
 
@@ -278,63 +123,100 @@ class JobStore:
     # -- paths ---------------------------------------------------------------------------
     def path_of(self, job_id: str) -> Path:
         """The file of a job; refuses anything that is not a generated id."""
-        if not isinstance(job_id, str) or not JOB_ID_RE.match(job_id):
-            raise StoreError(f"{job_id!r} is not a job id")
+        if not isinstance(job_id, str) or not JOB_ID_RE.fullmatch(job_id):
+            raise StoreError(f"{str(job_id)[:40]!r} is not a job id")
         return self.jobs_dir / f"{job_id}.json"
 
     @property
     def quarantine_dir(self) -> Path:
         return self.jobs_dir / QUARANTINE
 
+    @property
+    def index_path(self) -> Path:
+        return self.jobs_dir / INDEX_DIR / INDEX_NAME
+
+    def _folder_problem(self, exc: OSError, doing: str) -> StoreError:
+        where = exc.filename or self.jobs_dir
+        return StoreError(f"cannot {doing} {where}: {exc.strerror or exc}; {_DATA_DIR_HINT}")
+
+    def _check_folder(self) -> bool:
+        """False when there is no jobs folder yet; StoreError when it cannot be one."""
+        try:
+            mode = os.stat(self.jobs_dir).st_mode
+        except FileNotFoundError:
+            return False
+        except OSError as exc:
+            raise self._folder_problem(exc, "use the jobs folder") from None
+        if not stat.S_ISDIR(mode):
+            raise StoreError(f"the jobs folder {self.jobs_dir} is not a folder; {_DATA_DIR_HINT}")
+        return True
+
     def _ids_on_disk(self) -> Iterator[os.DirEntry[str]]:
         try:
             entries = os.scandir(self.jobs_dir)
         except FileNotFoundError:
             return
+        except OSError as exc:
+            raise self._folder_problem(exc, "read the jobs folder") from None
+        stale: list[tuple[str, str]] = []
         with entries:
             for entry in entries:
                 name = entry.name
-                if name.endswith(".json") and JOB_ID_RE.match(name[:-5]):
+                if name.endswith(".json") and JOB_ID_RE.fullmatch(name[:-5]):
                     yield entry
+                elif name.startswith(".") and name.endswith(".tmp"):
+                    match = _TMP_RE.match(name)
+                    if match:
+                        stale.append((match.group(1), entry.path))
+        for job_id, path in stale:
+            self._remove_stale_temp(job_id, Path(path))
+
+    def _remove_stale_temp(self, job_id: str, path: Path) -> None:
+        """Remove a temp file a killed save left behind, if its job's lock is free (a save in
+        progress holds it, so its temp file is never touched)."""
+        with locked_if_free(self.jobs_dir / LOCKS_DIR / f"{job_id}.lock") as held:
+            if held:
+                with contextlib.suppress(OSError):
+                    path.unlink()
 
     # -- locking -------------------------------------------------------------------------
     @contextlib.contextmanager
     def _locked(self, job_id: str) -> Iterator[None]:
-        lock_dir = self.jobs_dir / ".locks"
-        lock_dir.mkdir(parents=True, exist_ok=True)
-        fd = os.open(lock_dir / f"{job_id}.lock", os.O_RDWR | os.O_CREAT, 0o644)
-        try:
-            deadline = time.monotonic() + LOCK_TIMEOUT_S
-            while not _try_lock(fd):
-                if time.monotonic() > deadline:
-                    raise LockTimeoutError(
-                        f"job {job_id} is being saved by another program; try again"
-                    )
-                time.sleep(0.005)
+        with contextlib.ExitStack() as stack:
             try:
-                yield
-            finally:
-                _unlock(fd)
-        finally:
-            os.close(fd)
+                stack.enter_context(
+                    locked(
+                        self.jobs_dir / LOCKS_DIR / f"{job_id}.lock",
+                        f"job {job_id} is being saved by another program; try again",
+                        LOCK_TIMEOUT_S,
+                    )
+                )
+            except OSError as exc:  # the folder cannot be made or written (read-only, no HOME)
+                raise self._folder_problem(exc, "write in") from None
+            yield
 
     # -- reading -------------------------------------------------------------------------
     def _read_job(self, path: Path) -> Job:
-        """Parse, migrate and validate one job file; quarantine it when it is broken."""
+        """Read, parse, migrate and validate one job file; quarantine it when it is broken.
+
+        Raises :class:`StoreError` (a subclass says what happened): the file is missing, is not
+        a regular file or cannot be read (reported, left alone), or is broken (quarantined, or
+        reported when it could not be moved).
+        """
         try:
-            size = path.stat().st_size
+            raw = read_regular(path, MAX_FILE_BYTES, follow_symlinks=False)
         except FileNotFoundError:
             raise StoreError(f"no job {path.stem} in {self.jobs_dir}") from None
-        if size > MAX_FILE_BYTES:
-            raise self._quarantine(
-                path,
-                f"the file is {size / 1e6:.1f} MB, larger than the "
-                f"{MAX_FILE_BYTES // (1024 * 1024)} MB limit",
-            )
-        try:
-            raw = path.read_bytes()
-        except FileNotFoundError:
-            raise StoreError(f"no job {path.stem} in {self.jobs_dir}") from None
+        except FileTooLargeError as exc:
+            raise self._quarantine(path, str(exc.strerror)) from None
+        except NotRegularFileError as exc:
+            message = f"{path.name} is {exc.strerror}; skipped (move it out of {self.jobs_dir})"
+            self.problems.append(message)
+            raise _Unreadable(message) from None
+        except OSError as exc:
+            message = f"{path.name} cannot be read ({exc.strerror or exc}); skipped"
+            self.problems.append(message)
+            raise _Unreadable(message) from None
         try:
             return parse_job(raw, expected_id=path.stem)
         except NewerSchemaError:
@@ -353,8 +235,10 @@ class JobStore:
     def resolve(self, prefix: str) -> str:
         """The one job id starting with ``prefix`` (case ignored); StoreError otherwise."""
         wanted = prefix.strip().lower()
-        if not _PREFIX_RE.match(wanted):
-            raise StoreError(f"{prefix!r} is not a job id (ids are hex digits; see 'jobs list')")
+        if not _PREFIX_RE.fullmatch(wanted):
+            raise StoreError(
+                f"{prefix[:40]!r} is not a job id (ids are hex digits; see 'jobs list')"
+            )
         matches = sorted(e.name[:-5] for e in self._ids_on_disk() if e.name.startswith(wanted))
         if not matches:
             raise StoreError(f"no job with an id starting {wanted!r}")
@@ -373,9 +257,12 @@ class JobStore:
         When the jobs folder itself has not changed since a scan that found it settled, the
         index is used without looking at each file: every save renames a file into the folder,
         which changes the folder's mtime. ``rescan`` checks every file anyway (for files edited
-        in place by hand).
+        in place by hand). An index row that does not fit is dropped and its job read again.
+
+        Raises :class:`StoreError` when the jobs folder exists but cannot be used (it is a
+        file, or may not be read); a missing folder lists no jobs.
         """
-        if not self.jobs_dir.is_dir():
+        if not self._check_folder():
             return []
         # Made before the folder's mtime is taken: making it later would change that mtime.
         with contextlib.suppress(OSError):
@@ -390,126 +277,116 @@ class JobStore:
         collecting = gc.isenabled()
         gc.disable()
         try:
-            index, settled_mtime_ns = self._read_index()
+            index, settled_mtime_ns = read_index(self.index_path)
             if not rescan and settled_mtime_ns == folder_mtime_ns:
-                try:
-                    summaries = [JobSummary(*row[3]) for row in index.values()]
-                except TypeError:
-                    pass
-                else:
+                rows = [entry[3] for entry in index.values() if type(entry) is list and entry]
+                if len(rows) == len(index) and all(map(row_ok, rows)):
+                    summaries = [JobSummary(*row) for row in rows]
                     summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
                     return summaries
+                settled_mtime_ns = None  # a damaged row: check every file below
         finally:
             if collecting:
                 gc.enable()
-        fresh: dict[str, list[Any]] = {}
+        fresh: IndexEntries = {}
         summaries = []
         changed = False
         for entry in self._ids_on_disk():
             job_id = entry.name[:-5]
             try:
-                st = entry.stat()
+                st = entry.stat(follow_symlinks=False)
             except FileNotFoundError:
+                continue
+            except OSError as exc:
+                self.problems.append(f"{entry.name} cannot be read ({exc.strerror}); skipped")
                 continue
             key = [st.st_ino, st.st_mtime_ns, st.st_size]
             cached = index.get(job_id)
-            if cached is not None and cached[:3] == key:
-                try:
-                    summary = JobSummary.from_json(cached[3])
-                except (TypeError, ValueError, IndexError):
-                    summary = None
-                if summary is not None:
-                    summaries.append(summary)
-                    fresh[job_id] = cached
-                    continue
+            if cached is not None and entry_ok(job_id, cached) and cached[:3] == key:
+                summaries.append(JobSummary(*cached[3]))
+                fresh[job_id] = cached
+                continue
             changed = True
+            summary = self._summary_of(Path(entry.path))
+            if summary is None:
+                continue
             try:
-                job = self._read_job(Path(entry.path))
-            except NewerSchemaError as exc:
-                summary = exc.summary
-            except StoreError:
-                # Quarantined; if its backup was restored in its place, list that version.
-                try:
-                    job = self._read_job(Path(entry.path))
-                    st = os.stat(entry.path)
-                except (StoreError, OSError):
-                    continue
-                key = [st.st_ino, st.st_mtime_ns, st.st_size]
-                summary = JobSummary.of(job)
-            else:
-                summary = JobSummary.of(job)
+                st = os.stat(entry.path, follow_symlinks=False)
+            except OSError:
+                continue
             summaries.append(summary)
-            fresh[job_id] = [*key, summary.to_json()]
+            fresh[job_id] = [st.st_ino, st.st_mtime_ns, st.st_size, summary.to_json()]
         # The folder counts as settled when nothing was renamed into it for a while before
         # this scan began, so no change can hide inside one tick of the file-system clock.
         settled = None
-        if (
-            scan_started_ns - folder_mtime_ns > SETTLE_NS
-            and os.stat(self.jobs_dir).st_mtime_ns == folder_mtime_ns
-        ):
-            settled = folder_mtime_ns
+        with contextlib.suppress(OSError):
+            if (
+                scan_started_ns - folder_mtime_ns > SETTLE_NS
+                and os.stat(self.jobs_dir).st_mtime_ns == folder_mtime_ns
+            ):
+                settled = folder_mtime_ns
         if changed or len(fresh) != len(index) or settled != settled_mtime_ns:
             self._write_index(fresh, settled)
         summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
         return summaries
 
-    @property
-    def index_path(self) -> Path:
-        return self.jobs_dir / INDEX_DIR / INDEX_NAME
-
-    def _read_index(self) -> tuple[_IndexEntries, int | None]:
+    def _summary_of(self, path: Path) -> JobSummary | None:
+        """The summary of one job file, or None (the problem is in :attr:`problems`)."""
         try:
-            data = json.loads(self.index_path.read_bytes())
-        except (OSError, ValueError):
-            return {}, None
-        if (
-            not isinstance(data, dict)
-            or data.get("index_version") != INDEX_VERSION
-            or data.get("schema_version") != SCHEMA_VERSION
-            or not isinstance(data.get("entries"), dict)
-        ):
-            return {}, None
-        entries: _IndexEntries = data["entries"]
-        settled = data.get("settled_folder_mtime_ns")
-        return entries, settled if isinstance(settled, int) else None
+            return JobSummary.of(self._read_job(path))
+        except NewerSchemaError as exc:
+            return exc.summary
+        except _Quarantined as exc:
+            if not exc.restored:
+                return None
+        except StoreError:
+            return None
+        # Quarantined and its backup restored in its place: list that version.
+        try:
+            return JobSummary.of(self._read_job(path))
+        except NewerSchemaError as exc:
+            return exc.summary
+        except StoreError:
+            return None
 
-    def _write_index(self, entries: _IndexEntries, settled: int | None) -> None:
+    def _write_index(self, entries: IndexEntries, settled: int | None) -> None:
         if not entries and not self.jobs_dir.exists():
             return
-        data = json.dumps(
-            {
-                "index_version": INDEX_VERSION,
-                "schema_version": SCHEMA_VERSION,
-                "settled_folder_mtime_ns": settled,
-                "entries": entries,
-            },
-            ensure_ascii=False,
-            separators=(",", ":"),
-        )
         # The index is a cache: a failed write costs a slower next listing, nothing else. It
         # lives in a sub-folder so that writing it does not change the jobs folder's mtime.
-        with contextlib.suppress(OSError):
-            self.index_path.parent.mkdir(exist_ok=True)
-            atomic_write_bytes(self.index_path, data.encode())
+        # Under its lock, temp files of a listing killed while writing it are removed first.
+        with locked_if_free(self.jobs_dir / LOCKS_DIR / "index.lock") as held:
+            if not held:
+                return  # another program is writing it; its version will do
+            with contextlib.suppress(OSError):
+                for stale in self.index_path.parent.glob(f".{INDEX_NAME}.*.tmp"):
+                    stale.unlink()
+            write_index(self.index_path, entries, settled)
 
     # -- quarantine ------------------------------------------------------------------------
     def _quarantine(self, path: Path, reason: str) -> StoreError:
-        """Move a broken file aside (never overwriting anything) and restore its backup."""
-        qdir = self.quarantine_dir
-        qdir.mkdir(parents=True, exist_ok=True)
-        stamp = now().strftime("%Y%m%dT%H%M%S")
-        target = qdir / f"{path.name}.{stamp}"
-        counter = 1
-        while target.exists() or target.with_name(target.name + ".reason.txt").exists():
-            counter += 1
-            target = qdir / f"{path.name}.{stamp}.{counter}"
+        """Move a broken file aside (never overwriting anything) and restore its backup.
+
+        Returns the error to raise; a folder where the file cannot be moved (read-only) is
+        reported in the message and :attr:`problems`, never raised from here.
+        """
         message = f"{path.name}: {reason}"
+        qdir = self.quarantine_dir
         try:
+            qdir.mkdir(parents=True, exist_ok=True)
+            stamp = now().strftime("%Y%m%dT%H%M%S")
+            target = qdir / f"{path.name}.{stamp}"
+            counter = 1
+            while target.exists() or target.with_name(target.name + ".reason.txt").exists():
+                counter += 1
+                target = qdir / f"{path.name}.{stamp}.{counter}"
             os.rename(path, target)
-        except FileNotFoundError:
-            return StoreError(f"job file {path.name} vanished while reading it")
+        except FileNotFoundError as exc:
+            if exc.filename and Path(exc.filename) == path:
+                return StoreError(f"job file {path.name} vanished while reading it")
+            return self._not_moved(message, exc)
         except OSError as exc:
-            return StoreError(f"{message}; it could not be moved to quarantine ({exc})")
+            return self._not_moved(message, exc)
         restored = self._restore_backup(path)
         note = "; the previous version was restored from its backup" if restored else ""
         with contextlib.suppress(OSError):
@@ -518,25 +395,31 @@ class JobStore:
             )
         message = f"{message}; moved to {target}{note}"
         self.problems.append(message)
-        return StoreError(message)
+        return _Quarantined(message, restored)
+
+    def _not_moved(self, message: str, exc: OSError) -> StoreError:
+        message = (
+            f"{message}; it could not be moved to quarantine ({exc.strerror or exc}), so it "
+            "stays where it is and is skipped"
+        )
+        self.problems.append(message)
+        return _Quarantined(message)
 
     def _restore_backup(self, path: Path) -> bool:
         backup = path.with_name(path.name + ".bak")
         try:
-            raw = backup.read_bytes()
-            if len(raw) > MAX_FILE_BYTES:
-                return False
+            raw = read_regular(backup, MAX_FILE_BYTES, follow_symlinks=False)
             parse_job(raw, expected_id=path.stem)
+            atomic_write_bytes(path, raw)
         except (OSError, StoreError):
             return False
-        atomic_write_bytes(path, raw)
         return True
 
     def quarantined(self) -> _QuarantineList:
         """Files in the quarantine folder with the reason each was moved there."""
         try:
             names = sorted(os.listdir(self.quarantine_dir))
-        except FileNotFoundError:
+        except OSError:
             return []
         out = []
         for name in names:
@@ -544,7 +427,8 @@ class JobStore:
                 continue
             path = self.quarantine_dir / name
             try:
-                reason = path.with_name(name + ".reason.txt").read_text(encoding="utf-8").strip()
+                reason_file = path.with_name(name + ".reason.txt")
+                reason = read_regular(reason_file, 64 * 1024).decode("utf-8", "replace").strip()
             except OSError:
                 reason = "no reason recorded"
             out.append(QuarantinedFile(path, reason))
@@ -553,10 +437,13 @@ class JobStore:
     # -- writing -----------------------------------------------------------------------------
     def _disk_revision(self, path: Path) -> int | None:
         try:
-            with open(path, "rb") as handle:
-                head = handle.read(512)
+            head = read_regular_head(path, 512, follow_symlinks=False)
         except FileNotFoundError:
             return None
+        except OSError as exc:
+            raise StoreError(
+                f"{path.name} is {exc.strerror or exc}; it cannot be saved over"
+            ) from None
         match = _HEAD_RE.match(head)
         if match:
             return int(match.group(3))
@@ -584,22 +471,27 @@ class JobStore:
         job.schema_version = SCHEMA_VERSION
         try:
             data = job.model_dump_json(indent=1).encode()
-            # Read back what is about to be written: a value set without validation (a wrong
-            # type, NaN) is refused here instead of landing in the file.
-            parse_job(data, expected_id=job.id)
-        except (ValueError, StoreError) as exc:
+            # Read back what is about to be written, with the rules of reading it later: a
+            # value set without validation (a wrong type, NaN, a text over its limit) and a
+            # job past the size policy are refused here, before the save is acknowledged.
+            Job.model_validate_json(data, strict=True)
+            check_before_save(job, data)
+        except (ValueError, StoreError, RecursionError) as exc:
             job.revision, job.updated_at, job.schema_version = previous
             detail = explain(exc) if isinstance(exc, ValidationError) else str(exc)
             raise StoreError(f"job {job.id} ({job.name}) was not saved: {detail}") from None
-        for stale in self.jobs_dir.glob(f".{job.id}.json.*.tmp"):
-            # Left by a program killed mid-save; under the lock, no save is in progress.
-            with contextlib.suppress(OSError):
+        with contextlib.suppress(OSError):
+            for stale in self.jobs_dir.glob(f".{job.id}.json.*.tmp"):
+                # Left by a program killed mid-save; under the lock, no save is in progress.
                 stale.unlink()
         try:
             atomic_write_bytes(path, data, keep_backup=True)
         except OSError as exc:
             job.revision, job.updated_at, job.schema_version = previous
-            raise StoreError(f"job {job.id} ({job.name}) was not saved: {exc}") from None
+            hint = f"; {_DATA_DIR_HINT}" if exc.errno in (errno.EACCES, errno.EROFS) else ""
+            raise StoreError(
+                f"job {job.id} ({job.name}) was not saved: {exc.strerror or exc}{hint}"
+            ) from None
         return job
 
     def save(self, job: Job) -> Job:
@@ -619,6 +511,8 @@ class JobStore:
         fault: two programs appending at once both keep their entries. ``change`` may run more
         than once (a retry after a concurrent change on a file system without working locks)
         and must not have other side effects; an exception from it leaves the file untouched.
+        A record that ``change`` builds with a value the models refuse (a note over its length
+        limit) becomes a :class:`StoreError` naming the field.
         """
         path = self.path_of(job_id)
         for attempt in range(attempts):
@@ -627,7 +521,12 @@ class JobStore:
                 if job.read_only:
                     raise ReadOnlyError(job.read_only)
                 revision = job.revision
-                change(job)
+                try:
+                    change(job)
+                except ValidationError as exc:
+                    raise StoreError(
+                        f"job {job.id} ({job.name}) was not changed: {explain(exc)}"
+                    ) from None
                 try:
                     return self._write(job, revision)
                 except ConflictError:
@@ -678,123 +577,12 @@ class JobStore:
                 self.problems.append(str(exc))
 
 
-class NewerSchemaError(StoreError):
-    """A file from a newer fieldkit that this version cannot even read; it stays untouched."""
-
-    def __init__(self, message: str, summary: JobSummary) -> None:
-        super().__init__(message)
-        self.summary = summary
-
-
-def parse_job(raw: bytes, *, expected_id: str | None = None) -> Job:
-    """Parse, migrate and validate one job from its file bytes.
-
-    Raises :class:`StoreError` with the reason for anything that is not a valid job, and
-    :class:`NewerSchemaError` for a newer layout whose fields this version does not know.
-    """
-    try:
-        data = json.loads(raw)
-    except UnicodeDecodeError:
-        raise StoreError("the file is not UTF-8 text") from None
-    except ValueError as exc:
-        raise StoreError(f"the file is not valid JSON ({exc})") from None
-    except RecursionError:
-        raise StoreError("the file is not valid JSON (nested too deeply)") from None
-    if not isinstance(data, dict):
-        raise StoreError("the file does not hold a job (not a JSON object)")
-    job = job_from_dict(data)
-    if expected_id is not None and job.id != expected_id:
-        raise StoreError(f"the file holds job id {job.id!r}, not {expected_id!r}")
-    return job
-
-
-def job_from_dict(data: dict[str, Any]) -> Job:
-    """Migrate and validate a parsed job; see :func:`parse_job`."""
-    try:
-        data = migrate(data)
-    except MigrationError as exc:
-        raise StoreError(str(exc)) from None
-    except (TypeError, AttributeError, KeyError) as exc:
-        raise StoreError(f"the file does not fit its schema version ({exc})") from None
-    version = data["schema_version"]
-    try:
-        job = Job.model_validate(data)
-    except ValidationError as exc:
-        if version > SCHEMA_VERSION:
-            raise NewerSchemaError(
-                f"job {data.get('id')!s} was written by a newer fieldkit (schema {version}; this "
-                f"one reads {SCHEMA_VERSION}); update fieldkit to open it",
-                _lenient_summary(data, version),
-            ) from None
-        raise StoreError(f"the file is not a valid job: {explain(exc)}") from None
-    if version > SCHEMA_VERSION:
-        job._read_only = (
-            f"job {job.id} ({job.name}) was written by a newer fieldkit (schema "
-            f"{version}); it is shown read-only: update fieldkit to change it"
-        )
-    return job
-
-
-def _lenient_summary(data: dict[str, Any], version: int) -> JobSummary:
-    def text(key: str) -> str:
-        value = data.get(key)
-        return value if isinstance(value, str) else ""
-
-    def moment(key: str) -> datetime:
-        try:
-            parsed = datetime.fromisoformat(text(key))
-        except ValueError:
-            return now()
-        return parsed if parsed.tzinfo else parsed.astimezone()
-
-    job_id = text("id")
-    return JobSummary(
-        id=job_id,
-        name=text("name") or "(newer file)",
-        customer=text("customer"),
-        site=text("site"),
-        crew=[],
-        status=text("status") or "open",
-        created_iso=_iso(moment("created_at")),
-        updated_iso=_iso(moment("updated_at")),
-        revision=revision if isinstance(revision := data.get("revision"), int) else 0,
-        link_count=0,
-        result_count=0,
-        failed_count=0,
-        note_count=0,
-        read_only=f"written by a newer fieldkit (schema {version}); update fieldkit to open it",
-    )
-
-
-try:
-    import fcntl
-
-    def _try_lock(fd: int) -> bool:
-        try:
-            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
-        except BlockingIOError:
-            return False
-        return True
-
-    def _unlock(fd: int) -> None:
-        fcntl.flock(fd, fcntl.LOCK_UN)
-
-except ImportError:  # Windows
-    import msvcrt
-
-    def _try_lock(fd: int) -> bool:
-        try:
-            msvcrt.locking(fd, msvcrt.LK_NBLCK, 1)  # type: ignore[attr-defined]
-        except OSError:
-            return False
-        return True
-
-    def _unlock(fd: int) -> None:
-        os.lseek(fd, 0, os.SEEK_SET)
-        msvcrt.locking(fd, msvcrt.LK_UNLCK, 1)  # type: ignore[attr-defined]
-
-
 __all__ = [
+    "INDEX_DIR",
+    "INDEX_NAME",
+    "INDEX_VERSION",
+    "LOCK_TIMEOUT_S",
+    "MAX_FILE_BYTES",
     "ConflictError",
     "JobStore",
     "JobSummary",
@@ -803,7 +591,9 @@ __all__ = [
     "QuarantinedFile",
     "ReadOnlyError",
     "StoreError",
+    "explain",
     "filter_summaries",
+    "job_from_dict",
     "local_date",
     "parse_job",
 ]

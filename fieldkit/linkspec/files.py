@@ -9,6 +9,7 @@ from pathlib import Path
 from typing import Any
 
 from fieldkit.calc.units import InputError
+from fieldkit.fsutil import MIB, read_regular
 
 
 def load_spec_file(path: Path) -> dict[str, Any]:
@@ -21,10 +22,13 @@ def load_spec_file(path: Path) -> dict[str, Any]:
     """
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8-sig")  # an editor's byte-order mark is fine
+        # a regular file only, at most 1 MiB: /dev/zero or a FIFO is refused, never read
+        text = read_regular(path, MIB).decode("utf-8-sig")  # an editor's BOM is fine
     except FileNotFoundError:
         raise InputError(f"link file {path}: not found") from None
-    except (OSError, UnicodeDecodeError) as exc:
+    except OSError as exc:
+        raise InputError(f"link file {path}: cannot be read ({exc.strerror or exc})") from None
+    except UnicodeDecodeError as exc:
         raise InputError(f"link file {path}: cannot be read ({exc})") from None
     suffix = path.suffix.lower()
     data: Any

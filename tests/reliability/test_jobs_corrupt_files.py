@@ -76,7 +76,7 @@ def test_fifty_megabyte_file_is_refused_without_reading_it(tmp_path: Path) -> No
     with pytest.raises(StoreError):
         fresh.load(huge_id)
     [moved] = fresh.quarantined()
-    assert "larger than the 20 MB limit" in moved.reason
+    assert "larger than the 20 MiB limit" in moved.reason  # 20 × 1,048,576 bytes
     assert moved.path.stat().st_size == 50 * 1024 * 1024
 
 

@@ -124,7 +124,7 @@ def test_huge_file_is_refused_before_reading(tmp_path: Path) -> None:
     path = tmp_path / "huge.json"
     with open(path, "wb") as handle:
         handle.truncate(25 * 1024 * 1024)  # sparse: 25 MB of zeros
-    with pytest.raises(StoreError, match="larger than the 20 MB import limit"):
+    with pytest.raises(StoreError, match="larger than the 20 MiB import limit"):
         read_handoff(path)
 
 

@@ -1,0 +1,234 @@
+"""The index: one summary per job, kept in ``.index/summaries.json`` so that listing does not
+parse every job file. It is a cache: a row that does not fit is dropped and its job parsed
+again, a file that does not parse is rebuilt, and a failed write only makes the next listing
+slower.
+
+Each entry is ``id -> [inode, mtime_ns, size, row]``; a row is the :class:`JobSummary` fields in
+order. Rows are checked field by field before use (a row of the right length but the wrong
+types used to crash every listing).
+"""
+
+from __future__ import annotations
+
+import contextlib
+import json
+import re
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from pathlib import Path
+from typing import Any
+
+from fieldkit.fsutil import MIB, atomic_write_bytes, read_regular
+from fieldkit.jobs.models import JOB_ID_RE, SCHEMA_VERSION, Job
+
+INDEX_DIR = ".index"
+INDEX_NAME = "summaries.json"
+INDEX_VERSION = 3
+#: About 300 bytes a job: room for a million jobs, and a bound on what a hostile index costs.
+MAX_INDEX_BYTES = 512 * MIB
+
+
+def _iso(moment: datetime) -> str:
+    """A time as fixed-width UTC ISO text, so that sorting the text sorts the times."""
+    return moment.astimezone(UTC).isoformat(timespec="microseconds")
+
+
+@dataclass(slots=True)
+class JobSummary:
+    """What the jobs list shows, kept in the index so listing does not parse every job.
+
+    Times are kept as fixed-width UTC ISO text (``created_iso``, ``updated_iso``), which sorts
+    like the times and costs nothing to load; ``created_at`` / ``updated_at`` parse them.
+    The fields are in the order of an index row, so a row loads as ``JobSummary(*row)``.
+    """
+
+    id: str
+    name: str
+    customer: str
+    site: str
+    crew: list[str]
+    status: str
+    created_iso: str
+    updated_iso: str
+    revision: int
+    link_count: int
+    result_count: int
+    failed_count: int
+    note_count: int
+    read_only: str | None = None
+    link_labels: list[str] = field(default_factory=list)
+    _search: str | None = field(default=None, init=False, repr=False, compare=False)
+
+    @property
+    def search_text(self) -> str:
+        """Id, name, customer, site, crew and link labels, case-folded (made on first use)."""
+        if self._search is None:
+            self._search = _haystack(
+                self.id, self.name, self.customer, self.site, self.crew, self.link_labels
+            )
+        return self._search
+
+    @property
+    def created_at(self) -> datetime:
+        return datetime.fromisoformat(self.created_iso)
+
+    @property
+    def updated_at(self) -> datetime:
+        return datetime.fromisoformat(self.updated_iso)
+
+    @classmethod
+    def of(cls, job: Job) -> JobSummary:
+        results = [r for link in job.links for r in link.results]
+        return cls(
+            id=job.id,
+            name=job.name,
+            customer=job.customer,
+            site=job.site,
+            crew=list(job.crew),
+            status=job.status,
+            created_iso=_iso(job.created_at),
+            updated_iso=_iso(job.updated_at),
+            revision=job.revision,
+            link_count=len(job.links),
+            result_count=len(results),
+            failed_count=sum(r.passed is False for r in results),
+            note_count=len(job.notes),
+            read_only=job.read_only,
+            link_labels=[link.label for link in job.links],
+        )
+
+    def to_json(self) -> list[Any]:
+        return [
+            self.id,
+            self.name,
+            self.customer,
+            self.site,
+            list(self.crew),
+            self.status,
+            self.created_iso,
+            self.updated_iso,
+            self.revision,
+            self.link_count,
+            self.result_count,
+            self.failed_count,
+            self.note_count,
+            self.read_only,
+            self.link_labels,
+        ]
+
+    @classmethod
+    def from_json(cls, row: Any) -> JobSummary:
+        """A summary from an index row; ValueError when the row does not fit (see row_ok)."""
+        if not row_ok(row):
+            raise ValueError("index row does not fit the summary")
+        return cls(*row)
+
+    def as_dict(self) -> dict[str, Any]:
+        """The summary as JSON-ready values (for ``jobs list --json``)."""
+        return {
+            "id": self.id,
+            "name": self.name,
+            "customer": self.customer,
+            "site": self.site,
+            "crew": list(self.crew),
+            "status": self.status,
+            "created_at": self.created_iso,
+            "updated_at": self.updated_iso,
+            "revision": self.revision,
+            "links": self.link_count,
+            "results": self.result_count,
+            "failed": self.failed_count,
+            "notes": self.note_count,
+            "read_only": self.read_only,
+        }
+
+
+def _haystack(*parts: Any) -> str:
+    words: list[str] = []
+    for part in parts:
+        if isinstance(part, list | tuple):
+            words.extend(str(p) for p in part)
+        else:
+            words.append(str(part))
+    return "\n".join(words).casefold()
+
+
+# What _iso writes: 2026-03-14T07:00:00.000000+00:00
+_ISO_RE = re.compile(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{6}\+00:00")
+
+
+def row_ok(row: Any) -> bool:
+    """True when an index row has the summary's fields with their types (checked in the order
+    that refuses typical damage soonest; costs about a microsecond a row)."""
+    if type(row) is not list or len(row) != 15:
+        return False
+    job_id, name, customer, site, crew, status, created, updated = row[:8]
+    counts, read_only, labels = row[8:13], row[13], row[14]
+    return (
+        type(job_id) is str
+        and JOB_ID_RE.fullmatch(job_id) is not None
+        and type(name) is str
+        and type(customer) is str
+        and type(site) is str
+        and status in ("open", "done")
+        and type(created) is str
+        and type(updated) is str
+        and _ISO_RE.fullmatch(created) is not None
+        and _ISO_RE.fullmatch(updated) is not None
+        and all(type(n) is int and n >= 0 for n in counts)
+        and (read_only is None or type(read_only) is str)
+        and type(crew) is list
+        and all(type(c) is str for c in crew)
+        and type(labels) is list
+        and all(type(label) is str for label in labels)
+    )
+
+
+def entry_ok(job_id: str, entry: Any) -> bool:
+    """True when an index entry is [inode, mtime_ns, size, row] with a fitting row for job_id."""
+    return (
+        type(entry) is list
+        and len(entry) == 4
+        and all(type(n) is int for n in entry[:3])
+        and row_ok(entry[3])
+        and entry[3][0] == job_id
+    )
+
+
+IndexEntries = dict[str, list[Any]]
+
+
+def read_index(path: Path) -> tuple[IndexEntries, int | None]:
+    """The entries of the index file and the folder mtime it was settled at; ``({}, None)`` for
+    a missing, unreadable, damaged or outdated index (rows are checked by the caller)."""
+    try:
+        data = json.loads(read_regular(path, MAX_INDEX_BYTES, follow_symlinks=False))
+    except (OSError, ValueError, RecursionError):
+        return {}, None
+    if (
+        not isinstance(data, dict)
+        or data.get("index_version") != INDEX_VERSION
+        or data.get("schema_version") != SCHEMA_VERSION
+        or not isinstance(data.get("entries"), dict)
+    ):
+        return {}, None
+    entries: IndexEntries = data["entries"]
+    settled = data.get("settled_folder_mtime_ns")
+    return entries, settled if type(settled) is int else None
+
+
+def write_index(path: Path, entries: IndexEntries, settled: int | None) -> None:
+    """Write the index atomically; a failure is ignored (the index is a cache)."""
+    data = json.dumps(
+        {
+            "index_version": INDEX_VERSION,
+            "schema_version": SCHEMA_VERSION,
+            "settled_folder_mtime_ns": settled,
+            "entries": entries,
+        },
+        ensure_ascii=False,
+        separators=(",", ":"),
+    )
+    with contextlib.suppress(OSError):
+        path.parent.mkdir(exist_ok=True)
+        atomic_write_bytes(path, data.encode())
