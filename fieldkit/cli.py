@@ -104,6 +104,8 @@ def _needed_modules(argv: Sequence[str]) -> tuple[tuple[str, ...], str | None]:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
+    from pydantic import ValidationError
+
     from fieldkit.calc.units import InputError
     from fieldkit.commands.common import CommandError
     from fieldkit.text.escape import terminal
@@ -125,6 +127,13 @@ def main(argv: Sequence[str] | None = None) -> int:
         # one line whatever the input: user text echoed in the message cannot break it or
         # send control sequences to the terminal
         print(f"fieldkit {args.command}: {terminal(exc)}", file=sys.stderr)
+        return 2
+    except ValidationError as exc:
+        # a record built from what was typed (a --by of 201 characters): the size policy's
+        # limits, named in one line like every other refusal
+        from fieldkit.jobs.jobfile import explain
+
+        print(f"fieldkit {args.command}: {terminal(explain(exc))}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         return 130

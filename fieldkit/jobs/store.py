@@ -267,6 +267,7 @@ class JobStore:
         # Made before the folder's mtime is taken: making it later would change that mtime.
         with contextlib.suppress(OSError):
             self.index_path.parent.mkdir(exist_ok=True)
+            (self.jobs_dir / LOCKS_DIR).mkdir(exist_ok=True)
         try:
             folder_mtime_ns = os.stat(self.jobs_dir).st_mtime_ns
         except FileNotFoundError:
@@ -291,6 +292,9 @@ class JobStore:
         fresh: IndexEntries = {}
         summaries = []
         changed = False
+        with locked_if_free(self.jobs_dir / LOCKS_DIR / "index.lock") as held:
+            if held:
+                self._remove_index_temps()
         for entry in self._ids_on_disk():
             job_id = entry.name[:-5]
             try:
@@ -358,10 +362,14 @@ class JobStore:
         with locked_if_free(self.jobs_dir / LOCKS_DIR / "index.lock") as held:
             if not held:
                 return  # another program is writing it; its version will do
-            with contextlib.suppress(OSError):
-                for stale in self.index_path.parent.glob(f".{INDEX_NAME}.*.tmp"):
-                    stale.unlink()
+            self._remove_index_temps()
             write_index(self.index_path, entries, settled)
+
+    def _remove_index_temps(self) -> None:
+        """Remove temp files of an index write that was killed (call holding the index lock)."""
+        with contextlib.suppress(OSError):
+            for stale in self.index_path.parent.glob(f".{INDEX_NAME}.*.tmp"):
+                stale.unlink()
 
     # -- quarantine ------------------------------------------------------------------------
     def _quarantine(self, path: Path, reason: str) -> StoreError:
