@@ -25,7 +25,9 @@ MIB = 1024 * 1024
 
 
 def mib(size_bytes: int) -> str:
-    """A size in MiB as people read it: ``20 MiB``, ``20.9 MiB``."""
+    """A size in MiB as people read it: ``20 MiB``, ``20.9 MiB`` (``16 KiB`` below 1 MiB)."""
+    if size_bytes < MIB:
+        return f"{size_bytes / 1024:.0f} KiB"
     value = size_bytes / MIB
     return f"{value:.0f} MiB" if value == int(value) else f"{value:.1f} MiB"
 

@@ -120,6 +120,8 @@ def job_from_dict(data: dict[str, Any], *, raw: bytes | None = None) -> Job:
             raw = json.dumps(migrated, ensure_ascii=False, allow_nan=False).encode()
         job = Job.model_validate_json(raw, strict=True)
     except ValidationError as exc:
+        if any("recursion limit" in str(e.get("msg", "")) for e in exc.errors()):
+            raise StoreError("the file is not a valid job (nested too deeply)") from None
         if version > SCHEMA_VERSION:
             raise NewerSchemaError(
                 f"job {str(migrated.get('id'))[:40]} was written by a newer fieldkit (schema "
