@@ -36,3 +36,28 @@ async def test_jobs_list_and_details_show_control_characters_visibly(
             assert not _RAW.search(shown), (name, shown)
         head = str(app.screen.query_one("#job-head", Static).render())
         assert "[link=https://x]c[/link]" in head  # shown as typed, not read as markup
+
+
+async def test_an_over_long_note_is_refused_beside_the_field_and_kept(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    from textual.widgets import Input
+
+    store = JobStore(isolated_dirs["data"] / "jobs")
+    job = store.create("Station Road")
+    app = make_app(
+        data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], start_mode="jobs"
+    )
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        field = app.screen.query_one("#job-note", Input)
+        long_note = "x" * 20_001  # one over the 20,000-character note limit (jobs/base.py)
+        field.value = long_note
+        await pilot.pause()
+        app.screen.query_one("#job-note-add").press()
+        await pilot.pause()
+        assert app.is_running
+        error = str(app.screen.query_one("#job-note-error", Static).render())
+        assert "20000" in error.replace(",", "")
+        assert field.value == long_note  # nothing typed is lost
+    assert store.load(job.id).notes == []

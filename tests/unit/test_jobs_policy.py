@@ -264,7 +264,7 @@ def test_content_ids_fit_the_record_id_rule() -> None:
     data = handoff.assign_content_ids({"id": "1a2b3c4d5e6f", "notes": [{"text": "x"}]})
     import re
 
-    from fieldkit.jobs.models import RECORD_ID_RE
+    from fieldkit.jobs.base import RECORD_ID_RE
 
     assert re.fullmatch(RECORD_ID_RE.strip("^$"), data["notes"][0]["id"])
 
