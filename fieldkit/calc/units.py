@@ -31,6 +31,16 @@ class InputError(ValueError):
 SMALLEST_NORMAL = sys.float_info.min
 
 
+# Control characters (C0, DEL, C1) as escapes when typed text is echoed in a message, so that a
+# refusal is one line and sends nothing to a terminal.
+_ECHO = str.maketrans({c: f"\\x{c:02x}" for c in [*range(0x20), *range(0x7F, 0xA0)]})
+
+
+def _echo(text: str) -> str:
+    """Typed text as a message may quote it: control characters written as ``\\xNN``."""
+    return text.translate(_ECHO)
+
+
 def _tiny(x: float) -> bool:
     """True for a non-zero result that fell below full float precision (or to zero)."""
     return abs(x) < SMALLEST_NORMAL
@@ -195,7 +205,9 @@ def parse_number(text: str, what: str = "value") -> float:
     """
     number, rest = _split_number(normalise_text(text), what)
     if rest:
-        raise InputError(f"{what}: '{rest}' after the number is not expected; type a number only")
+        raise InputError(
+            f"{what}: '{_echo(rest)}' after the number is not expected; type a number only"
+        )
     return number
 
 
@@ -210,7 +222,7 @@ def _split_number(text: str, what: str) -> tuple[float, str]:
     text = _fold_decimal_comma(text, what)
     match = _NUMBER.match(text)
     if not match:
-        raise InputError(f"{what}: '{text}' does not start with a number")
+        raise InputError(f"{what}: '{_echo(text)}' does not start with a number")
     number = float(match.group(0))
     if not math.isfinite(number):
         raise InputError(f"{what}: '{match.group(0)}' is too large to be a value")
@@ -273,7 +285,8 @@ def canonical_unit(unit_text: str, what: str = "value") -> tuple[Kind, str]:
         kind, length_unit = canonical_unit(length, what)
         if kind is not Kind.LENGTH:
             raise InputError(
-                f"{what}: an attenuation coefficient needs a length after 'dB/', not '{length}'"
+                f"{what}: an attenuation coefficient needs a length after 'dB/', not "
+                f"'{_echo(length)}'"
             )
         return Kind.ATTENUATION, f"dB/{length_unit}"
     if low in _UNIT_WORDS:
@@ -289,14 +302,14 @@ def canonical_unit(unit_text: str, what: str = "value") -> tuple[Kind, str]:
             and typed_first == _CASE_SENSITIVE_PREFIXES[canon_first]
         ):
             raise InputError(
-                f"{what}: '{unit}' would mean {'mega' if typed_first == 'M' else 'peta'}-; "
+                f"{what}: '{_echo(unit)}' would mean {'mega' if typed_first == 'M' else 'peta'}-; "
                 f"did you mean {display_unit(canonical)}? Type it with a lower-case "
                 f"'{canon_first}'"
             )
         return _LINEAR_UNITS[canonical][0], canonical
     if unit in ("MW", "Mw"):
         raise InputError(f"{what}: 'MW' is megawatts; for milliwatts type mW")
-    raise InputError(f"{what}: unknown unit '{unit_text.strip()}'")
+    raise InputError(f"{what}: unknown unit '{_echo(unit_text.strip())}'")
 
 
 def parse(
@@ -335,7 +348,8 @@ def parse(
     if expected is not None and kind not in expected:
         wanted = " or ".join(k.noun for k in expected)
         raise InputError(
-            f"{what}: '{text.strip()}' is {kind.noun.split(' (')[0]}; {wanted} is needed here"
+            f"{what}: '{_echo(text.strip())}' is {kind.noun.split(' (')[0]}; {wanted} is needed "
+            "here"
         )
     if kind is Kind.POWER and unit not in ("dBm", "dBW") and number <= 0:
         raise InputError(

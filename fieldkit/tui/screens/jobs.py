@@ -214,13 +214,15 @@ class JobsScreen(Screen[None]):
             self._summaries = self.store.list(rescan=rescan)
         except (StoreError, OSError) as exc:
             self._summaries = []
-            self.notify(f"The jobs could not be listed: {exc}", severity="error")
+            self.notify(
+                terminal(f"The jobs could not be listed: {exc}"), severity="error", markup=False
+            )
         try:
             self._quarantined = len(self.store.quarantined())
         except OSError:
             self._quarantined = 0
         for problem in self.store.problems:
-            self.notify(problem, severity="warning", timeout=10)
+            self.notify(terminal(problem), severity="warning", timeout=10, markup=False)
         self.store.problems.clear()
         self._refilter()
         if self._job is not None:
