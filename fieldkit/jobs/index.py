@@ -153,34 +153,54 @@ def _haystack(*parts: Any) -> str:
     return "\n".join(words).casefold()
 
 
-# What _iso writes: 2026-03-14T07:00:00.000000+00:00
-_ISO_RE = re.compile(r"\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{6}\+00:00")
+# What _iso writes, twice (created and updated): 2026-03-14T07:00:00.000000+00:00
+_TWO_ISO_RE = re.compile(r"(?:\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{6}\+00:00){2}")
+_STATUSES = frozenset(("open", "done"))
+
+
+def _all_text(items: list[Any]) -> bool:
+    for item in items:
+        if type(item) is not str:
+            return False
+    return True
 
 
 def row_ok(row: Any) -> bool:
-    """True when an index row has the summary's fields with their types (checked in the order
-    that refuses typical damage soonest; costs about a microsecond a row)."""
+    """True when an index row has the summary's fields with their types.
+
+    Written for speed (about 1 µs a row, unrolled, one regular expression for both times):
+    the fast listing checks every row of a 100,000-job index before it trusts it.
+    """
     if type(row) is not list or len(row) != 15:
         return False
     job_id, name, customer, site, crew, status, created, updated = row[:8]
-    counts, read_only, labels = row[8:13], row[13], row[14]
+    revision, links, results, failed, notes, read_only, labels = row[8:]
     return (
         type(job_id) is str
-        and JOB_ID_RE.fullmatch(job_id) is not None
         and type(name) is str
         and type(customer) is str
         and type(site) is str
-        and status in ("open", "done")
         and type(created) is str
         and type(updated) is str
-        and _ISO_RE.fullmatch(created) is not None
-        and _ISO_RE.fullmatch(updated) is not None
-        and all(type(n) is int and n >= 0 for n in counts)
+        and type(revision) is int
+        and type(links) is int
+        and type(results) is int
+        and type(failed) is int
+        and type(notes) is int
+        and revision >= 0
+        and links >= 0
+        and results >= 0
+        and failed >= 0
+        and notes >= 0
+        and type(status) is str
+        and status in _STATUSES
         and (read_only is None or type(read_only) is str)
         and type(crew) is list
-        and all(type(c) is str for c in crew)
         and type(labels) is list
-        and all(type(label) is str for label in labels)
+        and _all_text(crew)
+        and _all_text(labels)
+        and JOB_ID_RE.fullmatch(job_id) is not None
+        and _TWO_ISO_RE.fullmatch(created + updated) is not None
     )
 
 

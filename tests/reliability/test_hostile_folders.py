@@ -186,6 +186,8 @@ def test_a_read_only_jobs_folder_with_a_broken_file_still_lists(tmp_path: Path) 
         lambda row: row.__setitem__(0, "../../etc/passwd"),
         lambda row: row.__setitem__(6, "yesterday"),
         lambda row: row.__setitem__(5, None),
+        lambda row: row.__setitem__(5, ["open"]),  # unhashable where a status belongs
+        lambda row: row.__setitem__(14, [1, 2]),
     ],
 )
 def test_a_corrupt_index_row_is_dropped_and_rebuilt(tmp_path: Path, damage: object) -> None:
