@@ -168,7 +168,8 @@ def assign_content_ids(data: dict[str, Any]) -> dict[str, Any]:
     out = dict(data)
     parent = str(data.get("id"))
     for name, model in _id_lists(Job).items():
-        out[name] = _with_ids(out.get(name), model, parent)
+        if name in out:
+            out[name] = _with_ids(out[name], model, parent)
     return out
 
 
@@ -189,7 +190,8 @@ def _with_ids(items: Any, model: type[BaseModel], parent: str) -> Any:
             nth = repeats[key] = repeats.get(key, 0) + 1
             item["id"] = _content_id(own, parent, nth)
         for name, child in children.items():
-            item[name] = _with_ids(item.get(name), child, str(item["id"]))
+            if name in item:
+                item[name] = _with_ids(item[name], child, str(item["id"]))
         result.append(item)
     return result
 
