@@ -106,6 +106,7 @@ def _needed_modules(argv: Sequence[str]) -> tuple[tuple[str, ...], str | None]:
 def main(argv: Sequence[str] | None = None) -> int:
     from pydantic import ValidationError
 
+    from fieldkit.actions.errors import ActionError
     from fieldkit.calc.units import InputError
     from fieldkit.commands.common import CommandError
     from fieldkit.text.escape import terminal
@@ -119,11 +120,11 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         from fieldkit.tui.app import make_app
 
-        make_app(data_dir=args.data_dir, config_dir=args.config_dir).run()
+        make_app(data_dir=args.data_dir, config_dir=args.config_dir, welcome=True).run()
         return 0
     try:
         status = int(args.func(args) or 0)
-    except (CommandError, InputError) as exc:
+    except (CommandError, InputError, ActionError) as exc:
         # one line whatever the input: user text echoed in the message cannot break it or
         # send control sequences to the terminal
         print(f"fieldkit {args.command}: {terminal(exc)}", file=sys.stderr)

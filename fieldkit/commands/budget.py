@@ -359,7 +359,13 @@ def register(subparsers: Any) -> None:
         metavar="LINK",
         help="the job's link (label or id; a new link by that label is added)",
     )
-    save.add_argument("--by", default="", metavar="NAME", help="who computed the budget")
+    save.add_argument(
+        "--by",
+        default=None,
+        metavar="NAME",
+        help="who computed the budget (default: $FIELDKIT_OPERATOR, else the name set in the "
+        "terminal UI)",
+    )
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(parser)
     parser.set_defaults(func=run)
@@ -407,40 +413,34 @@ def _fibre_data(resolved: Any, report: Any) -> list[Any]:
 
 def _save(args: argparse.Namespace, resolved: Any, report: Any) -> dict[str, str]:
     from fieldkit import locations
+    from fieldkit.actions.saves import save_budget
+    from fieldkit.commands.common import operator
     from fieldkit.jobs.budget_records import budget_record
-    from fieldkit.jobs.models import Job
     from fieldkit.jobs.store import JobStore, StoreError
 
     plain_text(args.link, "link")
-    plain_text(args.by or "", "by")
     data = getattr(args, "data_dir", None)
     store = JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
-    record = budget_record(resolved, report, by=args.by)
-    found: dict[str, str] = {}
-
-    def change(job: Job) -> None:
-        target = None
-        for item in job.links:
-            if item.id == args.link:
-                target = item
-        target = (
-            target
-            or job.link_by_label(args.link)
-            or job.add_link(
-                args.link,
-                length_m=resolved.link.length_m,
-                fibre_type=", ".join(resolved.link.fibre_names),
-            )
-        )
-        target.budget = record
-        found.update(job_id=job.id, job=job.name, link_id=target.id, link=target.label)
-
+    record = budget_record(resolved, report, by=operator(args))
     try:
         job_id = store.resolve(args.job)
-        store.update(job_id, change)
+        saved = save_budget(
+            store,
+            job_id,
+            args.link,
+            record,
+            create=True,
+            length_m=resolved.link.length_m,
+            fibre_type=", ".join(resolved.link.fibre_names),
+        )
     except StoreError as exc:
         raise CommandError(str(exc)) from None
-    return found
+    return {
+        "job_id": saved.job_id,
+        "job": saved.job_name,
+        "link_id": saved.link_id,
+        "link": saved.link_label,
+    }
 
 
 def _print_text(report: Any, saved: dict[str, str] | None) -> None:

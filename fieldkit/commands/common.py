@@ -40,6 +40,30 @@ def add_data_dir(parser: argparse.ArgumentParser) -> None:
     )
 
 
+def operator(args: argparse.Namespace) -> str:
+    """Who does the work: ``--by``, else ``$FIELDKIT_OPERATOR``, else the name saved in the
+    settings (see :mod:`fieldkit.actions.operator`)."""
+    from fieldkit import locations
+    from fieldkit.actions.operator import resolve_operator
+
+    given = getattr(args, "by", None)
+    try:
+        config = locations.config_dir(getattr(args, "config_dir", None))
+    except OSError:
+        config = None
+    return resolve_operator(given, config)
+
+
+def add_by(parser: argparse.ArgumentParser, what: str = "who does it") -> None:
+    """``--by NAME``: the operator stamped on the record (default ``$FIELDKIT_OPERATOR``)."""
+    parser.add_argument(
+        "--by",
+        default=None,
+        metavar="NAME",
+        help=f"{what} (default: $FIELDKIT_OPERATOR, else the name set in the terminal UI)",
+    )
+
+
 def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:
     """One line on stderr when a preset file or entry was skipped, so that a user's own preset
     that did not load is never replaced by the shipped one without a word."""

@@ -1,17 +1,24 @@
 """``fieldkit jobs``: per-job logs from the command line.
 
     fieldkit jobs new NAME [--site S] [--customer C] [--crew NAME]... [--json]
+    fieldkit jobs edit ID [--name N] [--site S] [--customer C] [--crew NAME]...
     fieldkit jobs list [--status open|done] [--search TEXT] [--date YYYY-MM-DD|--today]
                        [--rescan] [--json]
     fieldkit jobs show ID [--json]
-    fieldkit jobs note ID TEXT [--by NAME]
-    fieldkit jobs done ID          /  fieldkit jobs reopen ID
-    fieldkit jobs export ID --format csv|md|html|json [-o FILE]
+    fieldkit jobs note ID TEXT
+    fieldkit jobs link-add ID LABEL [--end-a A] [--end-b B] [--fibre-type T] [--fibre-count N]
+                                    [--cable-id C] [--length L]
+    fieldkit jobs link-edit ID LINK [--label L] [--end-a A] ...
+    fieldkit jobs done ID [--yes] [--reason TEXT]   /  fieldkit jobs reopen ID
+    fieldkit jobs delete ID  /  fieldkit jobs restore ID  /  fieldkit jobs trash
+    fieldkit jobs export ID --format csv|md|html|json [-o FILE|-]
     fieldkit jobs import FILE [--json]
     fieldkit jobs today [--date YYYY-MM-DD] [--json]
     fieldkit jobs quarantine [--json]
 
-ID may be any unique prefix of a job id. Every subcommand accepts ``--data-dir``.
+ID may be any unique prefix of a job id. Every subcommand accepts ``--data-dir`` and every
+change ``--by NAME`` (default ``$FIELDKIT_OPERATOR``). The changes themselves are in
+:mod:`fieldkit.actions.jobs`, which the Jobs workspace calls too.
 """
 
 from __future__ import annotations
@@ -24,7 +31,13 @@ from datetime import date
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, plain_text, print_json
+from fieldkit.commands.common import (
+    CommandError,
+    add_by,
+    add_data_dir,
+    operator,
+    print_json,
+)
 from fieldkit.text.escape import terminal
 
 if TYPE_CHECKING:
@@ -68,9 +81,39 @@ def register(subparsers: Any) -> None:
     p.add_argument(
         "--crew", action="append", default=[], metavar="NAME", help="a crew member (repeatable)"
     )
-    p.add_argument("--by", default="", help="who creates the job (noted in its log)")
+    add_by(p, "who creates the job")
     p.add_argument("--json", action="store_true", help='print one JSON object with "id"')
     p.set_defaults(func=_guard(run_new))
+
+    p = sub.add_parser("edit", help="rename a job or change its site, customer or crew")
+    p.add_argument("id", help="job id or a unique prefix")
+    p.add_argument("--name", help="the new name")
+    p.add_argument("--site", help="where the work is")
+    p.add_argument("--customer", help="who it is for")
+    p.add_argument(
+        "--crew", action="append", metavar="NAME", help="the crew (repeat; replaces the list)"
+    )
+    add_by(p)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.set_defaults(func=_guard(run_edit))
+
+    for name, text in (("link-add", "add a link to a job"), ("link-edit", "change a link")):
+        p = sub.add_parser(name, help=text)
+        p.add_argument("id", help="job id or a unique prefix")
+        if name == "link-add":
+            p.add_argument("label", help="the link's label (e.g. 'Exchange to cabinet 4')")
+        else:
+            p.add_argument("link", help="the link's label or id")
+            p.add_argument("--label", help="a new label")
+        p.add_argument("--end-a", help="what end A is (a frame, a closure)")
+        p.add_argument("--end-b", help="what end B is")
+        p.add_argument("--fibre-type", help="the fibre type (e.g. OS2, OM4)")
+        p.add_argument("--fibre-count", metavar="N", help="how many fibres the link has")
+        p.add_argument("--cable-id", help="the cable's identifier")
+        p.add_argument("--length", metavar="LENGTH", help="the route length (1.2 km, 3900 ft)")
+        add_by(p)
+        p.add_argument("--json", action="store_true", help="print one JSON object")
+        p.set_defaults(func=_guard(run_link))
 
     p = sub.add_parser("list", help="list jobs, most recently updated first")
     p.add_argument("--status", choices=("open", "done"), help="only open or only done jobs")
@@ -99,18 +142,38 @@ def register(subparsers: Any) -> None:
     p = sub.add_parser("note", help="add a note to a job's log")
     p.add_argument("id", help="job id or a unique prefix")
     p.add_argument("text", help="the note")
-    p.add_argument("--by", default="", metavar="NAME", help="who writes it")
+    add_by(p, "who writes it")
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_note))
 
     for name, status, text in (
-        ("done", "done", "mark a job done"),
+        ("done", "done", "mark a job done (with open items: lists them; --yes to go ahead)"),
         ("reopen", "open", "mark a done job open again"),
     ):
         p = sub.add_parser(name, help=text)
         p.add_argument("id", help="job id or a unique prefix")
+        if name == "done":
+            p.add_argument("--yes", action="store_true", help="mark it done even with open items")
+        p.add_argument("--reason", default="", help="why (noted in the job's log)")
+        add_by(p)
         p.add_argument("--json", action="store_true", help="print one JSON object")
         p.set_defaults(func=_guard(run_status), status=status)
+
+    p = sub.add_parser("delete", help="move a job to the trash ('jobs restore' brings it back)")
+    p.add_argument("id", help="job id or a unique prefix")
+    add_by(p)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.set_defaults(func=_guard(run_delete))
+
+    p = sub.add_parser("restore", help="bring a job back from the trash")
+    p.add_argument("id", help="the id of the trashed job, or a unique prefix")
+    add_by(p)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.set_defaults(func=_guard(run_restore))
+
+    p = sub.add_parser("trash", help="the jobs in the trash")
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.set_defaults(func=_guard(run_trash))
 
     p = sub.add_parser("export", help="a report of a job as CSV, Markdown, HTML or JSON")
     p.add_argument("id", help="job id or a unique prefix")
@@ -121,7 +184,13 @@ def register(subparsers: Any) -> None:
         help="csv: one row per result; md/html: the customer report; json: a "
         "hand-off file for 'jobs import' on another laptop",
     )
-    p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of stdout")
+    p.add_argument(
+        "-o",
+        "--output",
+        metavar="FILE",
+        help="write to FILE (its folder must exist; never inside the data folder); "
+        "- or no -o: standard output",
+    )
     p.set_defaults(func=_guard(run_export))
 
     p = sub.add_parser("import", help="merge a hand-off or job file (same ids merge)")
@@ -185,18 +254,20 @@ def _warn_problems(store: JobStore) -> None:
 
 
 def run_new(args: argparse.Namespace) -> int:
-    for value, what in (
-        (args.name, "name"),
-        (args.site, "site"),
-        (args.customer, "customer"),
-        (args.by, "by"),
-        *((c, "crew") for c in args.crew or ()),
-    ):
-        plain_text(value or "", what)
+    from fieldkit.actions.jobs import create_job
+
     store = store_of(args)
-    job = store.create(
-        args.name, site=args.site, customer=args.customer, crew=args.crew, by=args.by
+    created = create_job(
+        store,
+        args.name,
+        site=args.site,
+        customer=args.customer,
+        crew=args.crew,
+        by=operator(args),
     )
+    job = created.job
+    for warning in created.warnings:
+        print(f"fieldkit jobs: warning: {warning}", file=sys.stderr)
     if args.json:
         print_json(
             {
@@ -205,10 +276,102 @@ def run_new(args: argparse.Namespace) -> int:
                 "site": job.site,
                 "customer": job.customer,
                 "crew": job.crew,
+                "warnings": created.warnings,
             }
         )
     else:
         print(job.id)
+    return 0
+
+
+def run_edit(args: argparse.Namespace) -> int:
+    from fieldkit.actions.jobs import edit_job
+
+    store = store_of(args)
+    job_id = store.resolve(args.id)
+    edited = edit_job(
+        store,
+        job_id,
+        name=args.name,
+        site=args.site,
+        customer=args.customer,
+        crew=args.crew,
+        by=operator(args),
+    )
+    for warning in edited.warnings:
+        print(f"fieldkit jobs: warning: {warning}", file=sys.stderr)
+    job = edited.job
+    if args.json:
+        print_json(
+            {
+                "id": job.id,
+                "name": job.name,
+                "site": job.site,
+                "customer": job.customer,
+                "crew": job.crew,
+                "warnings": edited.warnings,
+            }
+        )
+    else:
+        print(f"{job.name}: saved (revision {job.revision})")
+    return 0
+
+
+def run_link(args: argparse.Namespace) -> int:
+    from fieldkit.actions.jobs import add_link, edit_link, find_link, parse_link_text
+
+    store = store_of(args)
+    job_id = store.resolve(args.id)
+    adding = args.jobs_command == "link-add"
+    label = args.label
+    fields = parse_link_text(
+        label=label or "",
+        end_a=args.end_a or "",
+        end_b=args.end_b or "",
+        fibre_type=args.fibre_type or "",
+        fibre_count=args.fibre_count or "",
+        cable_id=args.cable_id or "",
+        length=args.length or "",
+    )
+    if adding:
+        job, link = add_link(store, job_id, fields, by=operator(args))
+    else:
+        # Only the options given change the link.
+        given = {
+            "label": args.label,
+            "end_a": args.end_a,
+            "end_b": args.end_b,
+            "fibre_type": args.fibre_type,
+            "fibre_count": fields.fibre_count if args.fibre_count else None,
+            "cable_id": args.cable_id,
+            "length_m": fields.length_m if args.length else None,
+        }
+        from fieldkit.actions.jobs import LinkFields
+
+        try:
+            link_id = find_link(store.load(job_id), args.link).id
+        except KeyError as exc:
+            raise CommandError(str(exc.args[0])) from None
+        job, link = edit_link(store, job_id, link_id, LinkFields(**given), by=operator(args))
+    if args.json:
+        print_json(
+            {
+                "id": job.id,
+                "link": link.model_dump(
+                    mode="json",
+                    exclude={
+                        "results",
+                        "references",
+                        "splices",
+                        "faults",
+                        "budget",
+                        "earlier_budgets",
+                    },
+                ),
+            }
+        )
+    else:
+        print(f"{job.name}: link {link.label} {'added' if adding else 'saved'} ({link.id})")
     return 0
 
 
@@ -246,6 +409,7 @@ def _job(args: argparse.Namespace) -> tuple[JobStore, Job]:
 
 
 def run_show(args: argparse.Namespace) -> int:
+    from fieldkit.jobs.counting import open_items
     from fieldkit.jobs.reports import fmt_time, job_summary
 
     _store, job = _job(args)
@@ -272,18 +436,24 @@ def run_show(args: argparse.Namespace) -> int:
             print(f"  {label:<9} {terminal(value)}")
     print(f"  created   {fmt_time(job.created_at)}")
     print(f"  updated   {fmt_time(job.updated_at)}  (revision {job.revision})")
+    if job.created_by:
+        print(f"  by        {job.created_by}")
     if not job.links:
         print("links: none yet")
     for link in job.links:
         ends = f"  {link.end_a} -> {link.end_b}" if link.end_a or link.end_b else ""
         print(f"link {terminal(link.label)}{terminal(ends)}")
+        facts = [
+            link.fibre_type,
+            f"{link.fibre_count} fibres" if link.fibre_count else "",
+            f"cable {link.cable_id}" if link.cable_id else "",
+            f"{link.length_m:g} m" if link.length_m is not None else "",
+        ]
+        if any(facts):
+            print("  " + ", ".join(terminal(f) for f in facts if f))
         rows = [r for r in summary if r.link_id == link.id]
         for r in rows:
-            print(
-                f"  {r.wavelength_nm:g} nm: {r.tested} fibres tested, {r.passed} passed, "
-                f"{r.failed} failed, {r.no_limit} without limit"
-                + (f", {r.in_doubt} in doubt" if r.in_doubt else "")
-            )
+            print(f"  {r.wavelength_nm:g} nm: {r.tested} fibres tested: {r.tally.words()}")
         extras = []
         if link.budget is not None:
             extras.append("budget")
@@ -296,6 +466,11 @@ def run_show(args: argparse.Namespace) -> int:
             extras.append(f"{len(link.references)} references")
         if extras:
             print("  " + ", ".join(extras))
+    items = open_items(job)
+    if items:
+        print("open items:")
+        for item in items:
+            print(f"  {item}")
     if job.notes:
         print("notes:")
         for note in job.notes:
@@ -305,33 +480,36 @@ def run_show(args: argparse.Namespace) -> int:
 
 
 def run_note(args: argparse.Namespace) -> int:
-    text = plain_text(args.text, "note", multiline=True).strip()
-    if not text:
-        raise CommandError("the note is empty")
-    plain_text(args.by or "", "by")
+    from fieldkit.actions.jobs import add_note
+
     store = store_of(args)
     job_id = store.resolve(args.id)
-    added: list[str] = []
-
-    def add(job: Job) -> None:
-        added[:] = [job.add_note(text, by=args.by.strip()).id]
-
-    job = store.update(job_id, add)
+    job, note = add_note(store, job_id, args.text, by=operator(args))
     if args.json:
-        print_json({"id": job.id, "note_id": added[0], "notes": len(job.notes)})
+        print_json({"id": job.id, "note_id": note.id, "notes": len(job.notes)})
     else:
         print(f"noted on {job.name} ({len(job.notes)} notes)")
     return 0
 
 
 def run_status(args: argparse.Namespace) -> int:
+    from fieldkit.actions.jobs import OpenItemsError, mark_done, reopen
+
     store = store_of(args)
     job_id = store.resolve(args.id)
-
-    def change(job: Job) -> None:
-        job.status = args.status
-
-    job = store.update(job_id, change)
+    by = operator(args)
+    if args.status == "done":
+        try:
+            job = mark_done(store, job_id, by=by, reason=args.reason, confirm=args.yes)
+        except OpenItemsError as exc:
+            for item in exc.items:
+                print(f"open: {item}", file=sys.stderr)
+            raise CommandError(
+                f"{len(exc.items)} open item(s) listed above; add --yes (and --reason TEXT) "
+                "to mark the job done anyway"
+            ) from None
+    else:
+        job = reopen(store, job_id, by=by, reason=args.reason)
     if args.json:
         print_json({"id": job.id, "status": job.status})
     else:
@@ -339,37 +517,68 @@ def run_status(args: argparse.Namespace) -> int:
     return 0
 
 
-def run_export(args: argparse.Namespace) -> int:
-    from fieldkit.fsutil import atomic_write_bytes
-    from fieldkit.jobs.reports import export
+def run_delete(args: argparse.Namespace) -> int:
+    from fieldkit.actions.jobs import delete_job
 
-    store, job = _job(args)
-    text = export(job, args.format)
-    if args.output:
-        target = Path(args.output).expanduser()
-        if target.is_dir():
-            raise CommandError(f"{target} is a folder; give a file name")
-        # The report must never replace a job file, the index or a backup in the jobs folder.
-        if target.resolve().parent.is_relative_to(store.jobs_dir.resolve()):
-            raise CommandError(f"{target} is inside the jobs folder; write the report elsewhere")
-        # A byte-order mark lets spreadsheets open the UTF-8 CSV with its accents intact.
-        data = ("\ufeff" + text if args.format == "csv" else text).encode("utf-8")
-        atomic_write_bytes(target, data)
-        print(f"wrote {target}")
+    store = store_of(args)
+    job_id = store.resolve(args.id)
+    where = delete_job(store, job_id, by=operator(args))
+    if args.json:
+        print_json({"id": job_id, "trash": str(where)})
     else:
-        sys.stdout.write(text)
+        print(f"moved {job_id} to the trash ({where.parent}); 'fieldkit jobs restore {job_id[:8]}'")
+    return 0
+
+
+def run_restore(args: argparse.Namespace) -> int:
+    from fieldkit.actions.jobs import restore_job
+
+    store = store_of(args)
+    job = restore_job(store, args.id, by=operator(args))
+    if args.json:
+        print_json({"id": job.id, "name": job.name})
+    else:
+        print(f"restored {job.name} ({job.id})")
+    return 0
+
+
+def run_trash(args: argparse.Namespace) -> int:
+    store = store_of(args)
+    jobs = store.trashed()
+    if args.json:
+        print_json({"jobs": [{"id": j.id, "name": j.name} for j in jobs]})
+        return 0
+    if not jobs:
+        print("the trash is empty")
+    for job in jobs:
+        print(f"{job.id}  {job.name}")
+    return 0
+
+
+def run_export(args: argparse.Namespace) -> int:
+    from fieldkit.actions.export import export_job
+
+    store = store_of(args)
+    job_id = store.resolve(args.id)
+    done = export_job(store, job_id, args.format, args.output)
+    if done.path is None:
+        sys.stdout.write(done.text)
+    else:
+        print(f"wrote {done.path}")
     return 0
 
 
 def run_import(args: argparse.Namespace) -> int:
-    from fieldkit.jobs.handoff import import_jobs, read_handoff
+    from fieldkit.actions.jobs import import_file
 
     store = store_of(args)
     progress = _Progress("checked") if sys.stderr.isatty() else None
-    jobs = read_handoff(Path(args.file).expanduser(), progress)
-    if progress is not None:
-        progress = _Progress("imported")
-    report = import_jobs(store, jobs, progress)
+    report = import_file(
+        store,
+        Path(args.file).expanduser(),
+        progress,
+        lambda: _Progress("imported") if progress is not None else None,
+    )
     if args.json:
         print_json(report.as_dict())
     else:
@@ -414,8 +623,9 @@ def run_today(args: argparse.Namespace) -> int:
     t = summary.totals()
     print(
         f"{summary.day.isoformat()}: {t['jobs']} jobs ({t['open_jobs']} open), "
-        f"{t['results_today']} results today; latest per fibre: {t['passed']} passed, "
-        f"{t['failed']} failed, {t['no_limit']} without limit, {t['in_doubt']} in doubt"
+        f"{t['results_today']} results today; fibres: {t['passed']} passed, "
+        f"{t['failed']} failed, {t['reference_problems']} reference problems, "
+        f"{t['no_limit']} without limit, {t['in_doubt']} in doubt"
     )
     for job in summary.jobs:
         print(f"\n{terminal(job.name)} ({job.status}) {job.id}")

@@ -129,7 +129,13 @@ def register(subparsers: Any) -> None:
     save = parser.add_argument_group("saving onto a job's link")
     save.add_argument("--job", metavar="ID", help="the job (its id or the start of it)")
     save.add_argument("--link", metavar="LINK", help="the link's id or label (created if new)")
-    save.add_argument("--by", default="", metavar="NAME", help="who located the fault")
+    save.add_argument(
+        "--by",
+        default=None,
+        metavar="NAME",
+        help="who located the fault (default: $FIELDKIT_OPERATOR, else the name set in the "
+        "terminal UI)",
+    )
     save.add_argument("--notes", default="", metavar="TEXT", help="a note to keep with it")
     add_data_dir(parser)
     parser.set_defaults(func=run)
@@ -377,54 +383,12 @@ def _list_cables(args: argparse.Namespace) -> int:
     return 0
 
 
-# -- shared with the fault workspace --------------------------------------------------------
+# -- shared with the fault workspace: the record is built in fieldkit.actions.saves ----------
 def input_record(inp: LocateInput, typed: dict[str, Any]) -> dict[str, Any]:
-    """What was given, as plain JSON, for the job record: the text typed and the numbers used."""
-    return {
-        "typed": typed,
-        "otdr_distance_m": inp.otdr_distance_m,
-        "round_trip_time_s": inp.round_trip_time_s,
-        "index_set": inp.index_set,
-        "group_index": inp.group_index,
-        "helix_percent": inp.helix_percent,
-        "slack": [
-            {
-                "route_position_m": s.route_position_m,
-                "cable_length_m": s.cable_length_m,
-                "label": s.label,
-            }
-            for s in inp.slack
-        ],
-        "landmarks": [
-            {
-                "name": m.name,
-                "otdr_distance_m": m.otdr_distance_m,
-                "route_distance_m": m.route_distance_m,
-            }
-            for m in inp.landmarks
-        ],
-        "marking": None
-        if inp.marking is None
-        else {
-            "start": inp.marking.start,
-            "unit": inp.marking.unit,
-            "direction": inp.marking.direction,
-        },
-        "two_ended": None
-        if inp.two_ended is None
-        else {
-            "from_b_otdr_m": inp.two_ended.from_b_otdr_m,
-            "total_otdr_m": inp.two_ended.total_otdr_m,
-        },
-        "errors": {
-            "offset_m": inp.errors.offset_m,
-            "scale_error_percent": inp.errors.scale_error_percent,
-            "sample_spacing_m": inp.errors.sample_spacing_m,
-            "group_index_uncertainty": inp.errors.group_index_uncertainty,
-            "helix_uncertainty_percent": inp.errors.helix_uncertainty_percent,
-            "landmark_route_uncertainty_m": inp.errors.landmark_route_uncertainty_m,
-        },
-    }
+    """See :func:`fieldkit.actions.saves.fault_inputs`."""
+    from fieldkit.actions.saves import fault_inputs
+
+    return fault_inputs(inp, typed)
 
 
 def _position_json(p: Any, unit: str) -> dict[str, Any]:
@@ -514,83 +478,33 @@ def result_json(location: Location, inputs: dict[str, Any], unit: str = "m") -> 
 def fault_record(
     location: Location, inputs: dict[str, Any], *, by: str = "", notes: str = ""
 ) -> Any:
-    """The job record of a located fault (the reading from A, or the combined estimate when a
-    consistent two-ended check was made)."""
-    from fieldkit.calc.locate import describe_offset
-    from fieldkit.jobs.models import FaultRecord
+    """See :func:`fieldkit.actions.saves.fault_record`."""
+    from fieldkit.actions.saves import fault_record as build
 
-    p = location.position
-    two = location.two_ended
-    extra: list[str] = []
-    if two is not None:
-        if two.consistent:
-            p = two.combined
-            extra.append("Combined estimate from both ends.")
-        else:
-            extra.append("Two-ended check failed; the reading from A is recorded.")
-    extra += [f"Warning: {w}" for w in location.warnings]
-    where = None
-    if (
-        p.nearest_landmark is not None
-        and p.offset_from_landmark_m is not None
-        and p.basis != "model"
-    ):  # with no landmark, "past start" only repeats the route
-        where = describe_offset(p.offset_from_landmark_m, p.nearest_landmark)
-    text = "\n".join(part for part in [notes.strip(), *extra, where and f"Look {where}."] if part)
-    return FaultRecord(
-        by=by,
-        inputs=inputs,
-        fiber_distance_m=p.fiber_distance_m,
-        sheath_distance_m=p.sheath_distance_m,
-        route_distance_m=p.route_distance_m,
-        low_m=p.low_m,
-        high_m=p.high_m,
-        nearest_landmark=p.nearest_landmark,
-        offset_from_landmark_m=p.offset_from_landmark_m,
-        marking=p.marking.describe() if p.marking is not None else None,
-        notes=text,
-    )
-
-
-def save_fault(store: Any, job_id: str, link_id: str, record: Any) -> Any:
-    """Append ``record`` to the link's faults through ``store.update`` (safe against a second
-    running copy); returns the saved job."""
-
-    def change(job: Any) -> None:
-        job.link(link_id).faults.append(record)
-
-    return store.update(job_id, change)
+    return build(location, inputs, by=by, notes=notes)
 
 
 def _save(args: argparse.Namespace, location: Location, inputs: dict[str, Any]) -> dict[str, Any]:
     from fieldkit import locations
+    from fieldkit.actions.saves import save_fault
+    from fieldkit.commands.common import operator
     from fieldkit.jobs.store import JobStore, StoreError
 
     if not (args.job and args.link):
         raise CommandError("saving onto a job needs both --job and --link")
     plain_text(args.link, "link")
-    plain_text(args.by or "", "by")
     plain_text(args.notes or "", "notes", multiline=True)
     data = getattr(args, "data_dir", None)
     store = JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
-    record = fault_record(location, inputs, by=args.by, notes=args.notes)
+    record = fault_record(location, inputs, by=operator(args), notes=args.notes)
     try:
         job_id = store.resolve(args.job)
-        found: dict[str, str] = {}
-
-        def change(job: Any) -> None:
-            link = next((item for item in job.links if item.id == args.link), None)
-            if link is None:
-                link = job.link_by_label(args.link) or job.add_link(args.link)
-            link.faults.append(record)
-            found.update(link_id=link.id, link_label=link.label)
-
-        job = store.update(job_id, change)
+        saved = save_fault(store, job_id, args.link, record, create=True)
     except StoreError as exc:
         raise CommandError(str(exc)) from None
     return {
-        "job_id": job.id,
-        "link_id": found["link_id"],
-        "link_label": found["link_label"],
+        "job_id": saved.job_id,
+        "link_id": saved.link_id,
+        "link_label": saved.link_label,
         "fault_id": record.id,
     }

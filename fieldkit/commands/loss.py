@@ -179,7 +179,7 @@ def _limit(
 ) -> tuple[float | None, str | None]:
     """The limit: typed (--limit), from the link options (the budget's), or from the budget
     saved on the job's link; None when there is none of these."""
-    from fieldkit import meter_log
+    from fieldkit.actions import meter as meter_log
     from fieldkit.calc import reference as ref
     from fieldkit.commands import budget, meter_record
 

@@ -2,7 +2,7 @@
 
 Shared by ``fieldkit loss`` (``--job``/``--link``/``--fibre``: save the reference, when new,
 and the result) and ``fieldkit reference`` (set or recheck a reference). The changes
-themselves are in :mod:`fieldkit.meter_log`, which the meter workspace calls too.
+themselves are in :mod:`fieldkit.actions.meter`, which the meter workspace calls too.
 """
 
 from __future__ import annotations
@@ -43,7 +43,13 @@ def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -
         metavar="TEXT",
         help="a reference cord used (repeat for each)",
     )
-    group.add_argument("--by", default="", metavar="NAME", help="who took the measurement")
+    group.add_argument(
+        "--by",
+        default=None,
+        metavar="NAME",
+        help="who took the measurement (default: $FIELDKIT_OPERATOR, else the name set in "
+        "the terminal UI)",
+    )
 
 
 def wants_record(args: argparse.Namespace) -> bool:
@@ -125,6 +131,20 @@ def run_update(store: Any, job_id: str, change: Any) -> Any:
         raise CommandError(str(exc.args[0]) if exc.args else "no such link") from None
 
 
+def details_of(args: argparse.Namespace) -> Any:
+    """The reference details the options give (source, meter, cords, launch, operator)."""
+    from fieldkit.actions.meter import ReferenceDetails
+    from fieldkit.commands.common import operator
+
+    return ReferenceDetails(
+        source_id=args.source,
+        meter_id=args.meter,
+        cords=tuple(args.cord),
+        launch_condition=getattr(args, "launch", None) or None,
+        by=operator(args),
+    )
+
+
 def record_readings(
     args: argparse.Namespace,
     *,
@@ -135,7 +155,8 @@ def record_readings(
     verdict: Any,
 ) -> dict[str, Any]:
     """Save the reference(s) and the result(s) of ``fieldkit loss`` into the job."""
-    from fieldkit import meter_log
+    from fieldkit.actions.meter import record_readings as record
+    from fieldkit.jobs.store import StoreError
 
     if not args.job or not args.link:
         raise CommandError("saving into a job needs both --job and --link")
@@ -144,58 +165,27 @@ def record_readings(
     fibre = parse_fibre(args.fibre)
     store = open_store(args)
     job_id = resolve_job(store, args)
-    limit_db = verdict.limit_db
-    out: dict[str, Any] = {}
-
-    def change(job: Any) -> None:
-        link = meter_log.find_link(job, args.link, create=True)
-        if link.fibre_count is not None and fibre > link.fibre_count:
-            raise CommandError(f"fibre: {fibre} is beyond the link's {link.fibre_count} fibres")
-        reference_ids: list[str] = []
-        result_ids: list[str] = []
-        warnings: list[str] = []
-        for direction in ("A->B", "B->A"):
-            reading_dbm = readings_dbm.get(direction)
-            if reading_dbm is None:
-                continue
-            record = meter_log.reuse_or_add_reference(
-                link,
-                wavelength_nm=wavelength_nm,
-                level_dbm=references_dbm[direction],
-                method=method,
-                source_id=args.source,
-                meter_id=args.meter,
-                cords=args.cord,
-                launch_condition=args.launch,
-                by=args.by,
-            )
-            if record.id not in reference_ids:
-                reference_ids.append(record.id)
-            result = meter_log.put_result(
-                link,
-                fibre=fibre,
-                wavelength_nm=wavelength_nm,
-                direction=direction,
-                reading_dbm=reading_dbm,
-                reference=record,
-                limit_db=limit_db,
-                by=args.by,
-            )
-            result_ids.append(result.id)
-            if "reference-in-doubt" in result.flags:
-                warnings.append(
-                    f"reference {record.id} is in doubt (its recheck drifted); set a "
-                    "new reference and retest"
-                )
-        out.update(
-            job_id=job.id,
-            link_id=link.id,
-            link_label=link.label,
+    try:
+        saved = record(
+            store,
+            job_id,
+            args.link,
             fibre=fibre,
-            reference_ids=reference_ids,
-            result_ids=result_ids,
-            warnings=warnings,
+            wavelength_nm=wavelength_nm,
+            method=method,
+            references_dbm=references_dbm,
+            readings_dbm=readings_dbm,
+            limit_db=verdict.limit_db,
+            details=details_of(args),
         )
-
-    run_update(store, job_id, change)
-    return out
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
+    return {
+        "job_id": saved.job_id,
+        "link_id": saved.link_id,
+        "link_label": saved.link_label,
+        "fibre": saved.fibre,
+        "reference_ids": saved.reference_ids,
+        "result_ids": saved.result_ids,
+        "warnings": saved.warnings,
+    }

@@ -130,54 +130,43 @@ def _save(
     method: Any,
     tolerance_db: float | None,
 ) -> dict[str, Any]:
-    from fieldkit import meter_log
+    from fieldkit.actions.meter import record_reference
     from fieldkit.commands import meter_record
+    from fieldkit.jobs.store import StoreError
 
     store = meter_record.open_store(args)
     job_id = meter_record.resolve_job(store, args)
+    try:
+        saved = record_reference(
+            store,
+            job_id,
+            args.link,
+            wavelength_nm=wavelength_nm,
+            level_dbm=level_dbm,
+            method=method,
+            details=meter_record.details_of(args),
+            recheck=args.recheck,
+            tolerance_db=tolerance_db,
+            of_reference=args.of_reference,
+        )
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
     out: dict[str, Any] = {}
-
-    def change(job: Any) -> None:
-        out.clear()
-        if args.recheck:
-            link = meter_log.find_link(job, args.link)
-            outcome = meter_log.recheck_reference(
-                link,
-                wavelength_nm=wavelength_nm,
-                level_dbm=level_dbm,
-                tolerance_db=tolerance_db,
-                by=args.by,
-                reference_id=args.of_reference,
-            )
-            out.update(
-                drift_db=outcome.drift.drift_db,
-                tolerance_db=outcome.drift.tolerance_db,
-                within_tolerance=outcome.drift.within,
-                drift_message=outcome.drift.message,
-                rechecked_reference_id=outcome.initial.id,
-                in_doubt_result_ids=outcome.in_doubt_ids,
-            )
-            record = outcome.recheck
-        else:
-            link = meter_log.find_link(job, args.link, create=True)
-            record = meter_log.add_reference(
-                link,
-                wavelength_nm=wavelength_nm,
-                level_dbm=level_dbm,
-                method=method,
-                source_id=args.source,
-                meter_id=args.meter,
-                cords=args.cord,
-                launch_condition=args.launch,
-                by=args.by,
-            )
-        out["saved"] = {
-            "job_id": job.id,
-            "link_id": link.id,
-            "link_label": link.label,
-            "reference_id": record.id,
-            "kind": record.kind,
-        }
-
-    meter_record.run_update(store, job_id, change)
+    if saved.recheck is not None:
+        outcome = saved.recheck
+        out.update(
+            drift_db=outcome.drift.drift_db,
+            tolerance_db=outcome.drift.tolerance_db,
+            within_tolerance=outcome.drift.within,
+            drift_message=outcome.drift.message,
+            rechecked_reference_id=outcome.initial.id,
+            in_doubt_result_ids=outcome.in_doubt_ids,
+        )
+    out["saved"] = {
+        "job_id": saved.job_id,
+        "link_id": saved.link_id,
+        "link_label": saved.link_label,
+        "reference_id": saved.record.id,
+        "kind": saved.record.kind,
+    }
     return out

@@ -44,6 +44,15 @@ def new_id() -> str:
     return f"{time.time_ns() // 1_000_000:011x}{secrets.token_hex(4)}"
 
 
+def new_job_id() -> str:
+    """A new job id: 8 random hex digits, then 11 of milliseconds since 1970.
+
+    People type the start of a job id; ids made seconds apart must differ there, so the random
+    part comes first (the store also refuses a new id whose first 8 digits are taken).
+    """
+    return f"{secrets.token_hex(4)}{time.time_ns() // 1_000_000:011x}"
+
+
 def now() -> datetime:
     """The current time, timezone-aware, in UTC (what every record stores)."""
     return datetime.now(UTC)

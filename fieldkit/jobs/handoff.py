@@ -25,7 +25,7 @@ from pydantic import BaseModel
 from fieldkit.fsutil import FileTooLargeError, NotRegularFileError, mib, read_regular
 from fieldkit.jobs.jobfile import check_before_save, loads_strict
 from fieldkit.jobs.migrations import MigrationError, migrate
-from fieldkit.jobs.models import JOB_ID_RE, MAX_FILE_BYTES, Job, Link
+from fieldkit.jobs.models import JOB_ID_RE, MAX_FILE_BYTES, Job, Link, LossResult, settle_history
 from fieldkit.jobs.reports import HANDOFF_FORMAT
 from fieldkit.jobs.store import (
     ConflictError,
@@ -313,7 +313,11 @@ def _merge_link(mine: Link, theirs: Link, where: str) -> tuple[int, list[str]]:
             r.model_dump() for r in closure.plan
         ]:
             conflicts.append(f"{inside}: the splice plan differs; kept this laptop's")
+    settle_history(mine)
     return added, conflicts
+
+
+_SUPERSEDED = ("superseded_at", "superseded_by", "superseded_note")
 
 
 def _merge_list(mine: list[Any], theirs: list[Any], where: str) -> tuple[int, list[str]]:
@@ -327,6 +331,14 @@ def _merge_list(mine: list[Any], theirs: list[Any], where: str) -> tuple[int, li
             by_id[item.id] = item
             added += 1
         elif not _same(have, item):
+            if isinstance(have, LossResult) and have.model_dump(
+                exclude=set(_SUPERSEDED)
+            ) == item.model_dump(exclude=set(_SUPERSEDED)):
+                # The same result; the other laptop retested it. Superseded stays superseded.
+                if have.current and not item.current:
+                    for name in _SUPERSEDED:
+                        setattr(have, name, getattr(item, name))
+                continue
             conflicts.append(f"{where} {item.id} differs; kept this laptop's")
     return added, conflicts
 

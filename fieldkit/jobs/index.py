@@ -78,7 +78,10 @@ class JobSummary:
 
     @classmethod
     def of(cls, job: Job) -> JobSummary:
-        results = [r for link in job.links for r in link.results]
+        from fieldkit.jobs.counting import Count, current_results, result_count
+
+        # Current results only: a retest supersedes (see fieldkit.jobs.counting).
+        current = [(link, r) for link in job.links for r in current_results(link)]
         return cls(
             id=job.id,
             name=job.name,
@@ -90,8 +93,8 @@ class JobSummary:
             updated_iso=_iso(job.updated_at),
             revision=job.revision,
             link_count=len(job.links),
-            result_count=len(results),
-            failed_count=sum(r.passed is False for r in results),
+            result_count=len(current),
+            failed_count=sum(result_count(link, r) is Count.FAIL for link, r in current),
             note_count=len(job.notes),
             read_only=job.read_only,
             link_labels=[link.label for link in job.links],

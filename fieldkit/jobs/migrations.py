@@ -135,8 +135,58 @@ def _v2_to_v3(data: dict[str, Any]) -> dict[str, Any]:
     return out
 
 
+def _v3_to_v4(data: dict[str, Any]) -> dict[str, Any]:
+    """Version 4 keeps history: a retest supersedes instead of replacing.
+
+    A version-3 file holds at most one result per fibre, wavelength and direction (a retest
+    replaced it), except where a hand-off merge brought two; of those the latest counts and the
+    earlier ones are marked superseded by it. Everything else (job events, cable ids, earlier
+    budgets) starts empty.
+    """
+    out = dict(data)
+    links = []
+    for link in out.get("links", []) or []:
+        if not isinstance(link, dict):
+            raise MigrationError("a link is not an object")
+        link = dict(link)
+        results = [dict(r) if isinstance(r, dict) else r for r in link.get("results", []) or []]
+        latest: dict[tuple[Any, Any, Any], dict[str, Any]] = {}
+        for result in results:
+            if not isinstance(result, dict):
+                raise MigrationError("a result is not an object")
+            wavelength = result.get("wavelength_nm")
+            key = (
+                result.get("fibre"),
+                round(wavelength, 1) if isinstance(wavelength, int | float) else wavelength,
+                result.get("direction", "A->B"),
+            )
+            best = latest.get(key)
+            if best is None or str(result.get("at", "")) >= str(best.get("at", "")):
+                latest[key] = result
+        for result in results:
+            wavelength = result.get("wavelength_nm")
+            key = (
+                result.get("fibre"),
+                round(wavelength, 1) if isinstance(wavelength, int | float) else wavelength,
+                result.get("direction", "A->B"),
+            )
+            newest = latest[key]
+            if newest is not result:
+                result["superseded_at"] = newest.get("at")
+                result["superseded_by"] = newest.get("id")
+        link["results"] = results
+        links.append(link)
+    out["links"] = links
+    out["schema_version"] = 4
+    return out
+
+
 #: MIGRATIONS[n] turns a version-n dict into a version-(n+1) dict.
-MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {1: _v1_to_v2, 2: _v2_to_v3}
+MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {
+    1: _v1_to_v2,
+    2: _v2_to_v3,
+    3: _v3_to_v4,
+}
 
 
 def migrate(data: dict[str, Any]) -> dict[str, Any]:

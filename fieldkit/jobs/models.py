@@ -27,12 +27,13 @@ from fieldkit.jobs.base import MAX_NESTING_DEPTH as MAX_NESTING_DEPTH
 from fieldkit.jobs.base import MAX_NOTE_TEXT as MAX_NOTE_TEXT
 from fieldkit.jobs.base import MAX_RECORDS_PER_JOB as MAX_RECORDS_PER_JOB
 from fieldkit.jobs.base import MAX_SHORT_TEXT as MAX_SHORT_TEXT
-from fieldkit.jobs.base import Record, _check_finite, _Id, new_id, now
+from fieldkit.jobs.base import RECORD_ID_RE, Record, _check_finite, _Id, new_job_id, now
+from fieldkit.jobs.base import new_id as new_id  # re-exported: older code imports it here
 from fieldkit.jobs.splices import Closure, SpliceLimit
 
 #: The version of the job-file layout this fieldkit writes. Older files are migrated on load;
 #: newer ones open read-only.
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
 
 #: Job ids: generated, lower-case hex, time-sortable (see :func:`new_id`). Anything else in a
 #: file name or an imported file is refused, so no id can name a path. Match it with
@@ -85,6 +86,11 @@ class LossResult(Record):
 
     ``loss_db`` = reference level − ``reading_dbm`` (IEC 61280-4-1 / -4-2). ``passed`` is None
     when there was no limit to compare against.
+
+    History, not overwrite: a retest of the same fibre, wavelength and direction appends a new
+    result and marks this one ``superseded_at`` with ``superseded_by`` naming the new result's
+    id (None when the reading was cleared, not retested). A superseded result stays in the file
+    and the exports; only the current one counts.
     """
 
     id: str = _Id
@@ -100,6 +106,15 @@ class LossResult(Record):
     flags: list[str] = Field(default_factory=list)
     by: str = Field(default="", max_length=200)
     at: AwareDatetime = Field(default_factory=now)
+    superseded_at: AwareDatetime | None = None
+    superseded_by: str | None = Field(default=None, pattern=RECORD_ID_RE)
+    #: Who cleared or retested it (the retest's own ``by`` says who took the new reading).
+    superseded_note: str = Field(default="", max_length=200)
+
+    @property
+    def current(self) -> bool:
+        """True while no retest or clearing has superseded this result."""
+        return self.superseded_at is None
 
 
 class BudgetItem(Record):
@@ -178,7 +193,10 @@ class Link(Record):
     fibre_type: str = Field(default="", max_length=200)
     length_m: float | None = Field(default=None, ge=0)
     fibre_count: int | None = Field(default=None, ge=1)
+    cable_id: str = Field(default="", max_length=200)
+    #: The budget in force; a new save moves the previous one to ``earlier_budgets``.
     budget: BudgetRecord | None = None
+    earlier_budgets: list[BudgetRecord] = Field(default_factory=list)
     references: list[ReferenceRecord] = Field(default_factory=list)
     results: list[LossResult] = Field(default_factory=list)
     #: The splice log (schema 3): closures with their cables, trays, splices and plan.
@@ -197,6 +215,14 @@ class Link(Record):
         return None
 
 
+class JobEvent(Record):
+    """One entry of a job's own history: created, edited, done, reopened, restored..."""
+
+    at: AwareDatetime = Field(default_factory=now)
+    by: str = Field(default="", max_length=200)
+    what: str = Field(min_length=1, max_length=2000)
+
+
 class Job(Record):
     """A job: who it is for, where, who worked on it, its notes and its links.
 
@@ -207,7 +233,7 @@ class Job(Record):
     # schema_version, id and revision come first in the file: the store reads them from the
     # head of a file without parsing the rest.
     schema_version: int = SCHEMA_VERSION
-    id: str = Field(default_factory=new_id, pattern=JOB_ID_RE.pattern)
+    id: str = Field(default_factory=new_job_id, pattern=JOB_ID_RE.pattern)
     revision: int = Field(default=0, ge=0)
     name: str = Field(min_length=1, max_length=200)
     customer: str = Field(default="", max_length=200)
@@ -216,8 +242,10 @@ class Job(Record):
     created_at: AwareDatetime = Field(default_factory=now)
     updated_at: AwareDatetime = Field(default_factory=now)
     status: Literal["open", "done"] = "open"
+    created_by: str = Field(default="", max_length=200)
     notes: list[Note] = Field(default_factory=list)
     links: list[Link] = Field(default_factory=list)
+    events: list[JobEvent] = Field(default_factory=list)
 
     #: Set by the store on a job read from a newer schema version: it may be read, not saved.
     _read_only: str | None = PrivateAttr(default=None)
@@ -254,8 +282,14 @@ class Job(Record):
         self.notes.append(note)
         return note
 
+    def add_event(self, what: str, by: str = "") -> JobEvent:
+        """Append an entry to the job's own history and return it."""
+        event = JobEvent(what=what, by=by)
+        self.events.append(event)
+        return event
+
     def results(self) -> list[tuple[Link, LossResult]]:
-        """Every loss result of the job with its link, in link order."""
+        """Every loss result of the job with its link, in link order (superseded ones too)."""
         return [(item, result) for item in self.links for result in item.results]
 
 
@@ -265,3 +299,24 @@ def result_in_doubt(link: Link, result: LossResult) -> bool:
         return True
     ref = link.reference(result.reference_id)
     return bool(ref and ref.in_doubt_since is not None and result.at >= ref.in_doubt_since)
+
+
+def settle_history(link: Link) -> int:
+    """Of two or more current results of one fibre, wavelength and direction (a hand-off merge
+    of two laptops' retests), keep the latest current and mark the others superseded by it.
+    Returns how many were marked."""
+    latest: dict[tuple[int, float, str], LossResult] = {}
+    for result in link.results:
+        if result.current:
+            key = (result.fibre, round(result.wavelength_nm, 1), result.direction)
+            if key not in latest or result.at >= latest[key].at:
+                latest[key] = result
+    marked = 0
+    for result in link.results:
+        key = (result.fibre, round(result.wavelength_nm, 1), result.direction)
+        newest = latest.get(key)
+        if result.current and newest is not None and newest is not result:
+            result.superseded_at = newest.at
+            result.superseded_by = newest.id
+            marked += 1
+    return marked

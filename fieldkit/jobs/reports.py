@@ -4,10 +4,9 @@ The Markdown and HTML reports are rendered from one :class:`Report` (sections of
 tables), so both say the same thing: a summary per link and wavelength, failures first, the
 results, references, budgets, splices, located faults, notes, and the safety lines.
 
-Counting rule: a retest supersedes. For each link, fibre, wavelength and direction the latest
-result counts in the summary; every result is still listed in the tables and the CSV. A fibre
-fails at a wavelength when its latest result in either direction fails, passes when every
-latest result has a limit and passes, and is "no limit" otherwise.
+Counting rule: :mod:`fieldkit.jobs.counting` (one rule for every face). A retest supersedes:
+for each link, fibre, wavelength and direction the current result counts in the summary; every
+result, superseded ones too (marked so), is still listed in the tables and the CSV.
 
 Times in reports are UTC, written ``2026-03-14 09:30 UTC``, so a report reads the same on any
 laptop.
@@ -24,6 +23,13 @@ from datetime import UTC, datetime
 from typing import Any
 
 from fieldkit import safety
+from fieldkit.jobs.counting import (
+    Count,
+    Tally,
+    current_results,
+    link_tallies,
+    result_count,
+)
 from fieldkit.jobs.models import (
     FLAG_NEGATIVE_LOSS,
     SCHEMA_VERSION,
@@ -84,91 +90,101 @@ def margin_db(result: LossResult) -> float | None:
 
 
 def verdict(result: LossResult) -> str:
+    """What a result says: pass, FAIL, reference problem or no limit; ", superseded" when a
+    retest (or clearing) replaced it."""
     # A negative loss is a reference problem, never a good fibre (and never "no limit").
     if FLAG_NEGATIVE_LOSS in result.flags:
-        return "reference problem"
-    if result.passed is None:
-        return "no limit"
-    return "pass" if result.passed else "FAIL"
+        word = "reference problem"
+    elif result.passed is None:
+        word = "no limit"
+    else:
+        word = "pass" if result.passed else "FAIL"
+    return word if result.current else f"{word}, superseded"
 
 
 # -- what the reports count -----------------------------------------------------------------
 def latest_results(link: Link) -> list[LossResult]:
-    """The latest result of each fibre, wavelength and direction (a retest supersedes)."""
-    latest: dict[tuple[int, float, str], LossResult] = {}
-    for result in link.results:
-        key = (result.fibre, round(result.wavelength_nm, 1), result.direction)
-        if key not in latest or result.at >= latest[key].at:
-            latest[key] = result
-    return sorted(latest.values(), key=lambda r: (r.wavelength_nm, r.fibre, r.direction))
+    """The current result of each fibre, wavelength and direction (a retest supersedes)."""
+    return current_results(link)
 
 
 @dataclass(frozen=True, slots=True)
 class WavelengthSummary:
+    """The fibres of a link at one wavelength, counted by :mod:`fieldkit.jobs.counting`."""
+
     link_id: str
     link_label: str
     wavelength_nm: float
-    tested: int
-    passed: int
-    failed: int
-    no_limit: int
-    in_doubt: int
+    tally: Tally
+
+    @property
+    def tested(self) -> int:
+        return self.tally.tested
+
+    @property
+    def passed(self) -> int:
+        return self.tally.passed
+
+    @property
+    def failed(self) -> int:
+        return self.tally.failed
+
+    @property
+    def reference_problems(self) -> int:
+        return self.tally.reference_problems
+
+    @property
+    def no_limit(self) -> int:
+        return self.tally.no_limit
+
+    @property
+    def in_doubt(self) -> int:
+        return self.tally.in_doubt
 
     def as_dict(self) -> dict[str, Any]:
         return {
             "link_id": self.link_id,
             "link": self.link_label,
             "wavelength_nm": self.wavelength_nm,
-            "fibres_tested": self.tested,
-            "passed": self.passed,
-            "failed": self.failed,
-            "no_limit": self.no_limit,
-            "in_doubt": self.in_doubt,
+            **self.tally.as_dict(),
         }
 
 
 def link_summary(link: Link) -> list[WavelengthSummary]:
-    """Fibres tested, passed, failed, without a limit, and in doubt, per wavelength."""
-    by_wavelength: dict[float, dict[int, list[LossResult]]] = {}
-    for result in latest_results(link):
-        by_wavelength.setdefault(result.wavelength_nm, {}).setdefault(result.fibre, []).append(
-            result
-        )
-    rows = []
-    for wavelength_nm in sorted(by_wavelength):
-        fibres = by_wavelength[wavelength_nm]
-        failed = sum(any(r.passed is False for r in rs) for rs in fibres.values())
-        passed = sum(all(r.passed is True for r in rs) for rs in fibres.values())
-        doubt = sum(any(result_in_doubt(link, r) for r in rs) for rs in fibres.values())
-        rows.append(
-            WavelengthSummary(
-                link.id,
-                link.label,
-                wavelength_nm,
-                len(fibres),
-                passed,
-                failed,
-                len(fibres) - passed - failed,
-                doubt,
-            )
-        )
-    return rows
+    """Fibres tested and their counts (pass, fail, reference problem, no limit, in doubt), per
+    wavelength."""
+    return [
+        WavelengthSummary(link.id, link.label, wavelength_nm, tally)
+        for wavelength_nm, tally in sorted(link_tallies(link).items())
+    ]
 
 
 def job_summary(job: Job) -> list[WavelengthSummary]:
     return [row for link in job.links for row in link_summary(link)]
 
 
+def _with(job: Job, count: Count) -> list[tuple[Link, LossResult]]:
+    return [
+        (link, r)
+        for link in job.links
+        for r in current_results(link)
+        if result_count(link, r) is count
+    ]
+
+
 def failures(job: Job) -> list[tuple[Link, LossResult]]:
-    """Latest results that fail their limit, link by link."""
-    return [(link, r) for link in job.links for r in latest_results(link) if r.passed is False]
+    """Current results that fail their limit (against a reference not in doubt), link by link."""
+    return _with(job, Count.FAIL)
+
+
+def reference_problems(job: Job) -> list[tuple[Link, LossResult]]:
+    """Current results with a negative loss: the reference was wrong."""
+    return _with(job, Count.REFERENCE_PROBLEM)
 
 
 def in_doubt(job: Job) -> list[tuple[Link, LossResult]]:
-    """Latest results taken against a reference that is in doubt."""
-    return [
-        (link, r) for link in job.links for r in latest_results(link) if result_in_doubt(link, r)
-    ]
+    """Current results taken against a reference that is in doubt."""
+    return _with(job, Count.IN_DOUBT)
 
 
 def safety_lines(job: Job) -> list[str]:
@@ -253,7 +269,9 @@ def _result_rows(link: Link, results: Iterable[LossResult]) -> Table:
                 fmt_time(r.at),
             ]
         )
-        table.marks.append("fail" if r.passed is False else "doubt" if doubt else "")
+        table.marks.append(
+            "" if not r.current else "fail" if r.passed is False else "doubt" if doubt else ""
+        )
     return table
 
 
@@ -272,9 +290,18 @@ def build_report(job: Job) -> Report:
     sections: list[Section] = []
 
     summary = Table(
-        ["Link", "λ nm", "Fibres tested", "Passed", "Failed", "No limit", "In doubt"],
+        [
+            "Link",
+            "λ nm",
+            "Fibres tested",
+            "Passed",
+            "Failed",
+            "Reference problem",
+            "No limit",
+            "In doubt",
+        ],
         [],
-        numeric={1, 2, 3, 4, 5, 6},
+        numeric={1, 2, 3, 4, 5, 6, 7},
     )
     for row in job_summary(job):
         summary.rows.append(
@@ -284,16 +311,23 @@ def build_report(job: Job) -> Report:
                 str(row.tested),
                 str(row.passed),
                 str(row.failed),
+                str(row.reference_problems),
                 str(row.no_limit),
                 str(row.in_doubt),
             ]
         )
-        summary.marks.append("fail" if row.failed else "doubt" if row.in_doubt else "")
+        summary.marks.append(
+            "fail" if row.failed else "doubt" if row.in_doubt or row.reference_problems else ""
+        )
     sec = Section("Summary", tables=[summary] if summary.rows else [])
     total = sum(len(link.results) for link in job.links)
+    superseded = sum(not r.current for link in job.links for r in link.results)
     sec.paragraphs.append(
-        f"{len(job.links)} links, {total} results recorded. Counts are per fibre, from the "
-        "latest result in each direction (a retest supersedes an earlier result)."
+        f"{len(job.links)} links, {total} results recorded"
+        + (f" ({superseded} superseded by a retest)" if superseded else "")
+        + ". Counts are per fibre, from the current result in each direction (a retest "
+        "supersedes an earlier result); a fibre counts once, under the worst of: failed, "
+        "reference problem, in doubt, no limit, passed."
     )
     sections.append(sec)
 
@@ -325,6 +359,35 @@ def build_report(job: Job) -> Report:
     else:
         sec.paragraphs.append("No result fails its limit.")
     sections.append(sec)
+
+    problems = reference_problems(job)
+    if problems:
+        sec = Section("Reference problems")
+        sec.paragraphs.append(
+            f"{len(problems)} {'result reads' if len(problems) == 1 else 'results read'} a "
+            "negative loss: the reference was wrong. Clean and inspect the cords, set the "
+            "reference again and retest."
+        )
+        table = Table(
+            ["Link", "Fibre", "λ nm", "Direction", "Loss dB", "Reference"],
+            [],
+            numeric={1, 2, 4},
+            nowrap={3},
+        )
+        for link, r in problems:
+            table.rows.append(
+                [
+                    link.label,
+                    str(r.fibre),
+                    fmt_nm(r.wavelength_nm),
+                    r.direction,
+                    fmt_db(r.loss_db),
+                    r.reference_id or "",
+                ]
+            )
+            table.marks.append("doubt")
+        sec.tables.append(table)
+        sections.append(sec)
 
     doubt = in_doubt(job)
     if doubt:
@@ -834,6 +897,8 @@ CSV_HEADERS = [
     "method",
     "by",
     "at_utc",
+    "superseded_at_utc",
+    "superseded_by",
 ]
 
 
@@ -871,6 +936,10 @@ def to_csv(job: Job) -> str:
                 r.method,
                 _text_cell(r.by),
                 r.at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ"),
+                r.superseded_at.astimezone(UTC).strftime("%Y-%m-%dT%H:%M:%SZ")
+                if r.superseded_at
+                else "",
+                r.superseded_by or (_text_cell(r.superseded_note) if r.superseded_at else ""),
             ]
             writer.writerow([escape.csv_cell(cell) for cell in row])
     _closure_csv(job, writer)

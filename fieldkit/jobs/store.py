@@ -75,6 +75,8 @@ from fieldkit.jobs.search import filter_summaries, local_date
 #: How long the jobs folder must have been unchanged before a scan trusts its mtime alone.
 SETTLE_NS = 2_000_000_000
 QUARANTINE = "quarantine"
+#: Deleted jobs wait here (file and backup) until restored; nothing is destroyed at once.
+TRASH = "trash"
 
 _HEAD_RE = re.compile(
     rb'^\s*\{\s*"schema_version"\s*:\s*(\d+)\s*,\s*"id"\s*:\s*"([0-9a-f]+)"\s*,'
@@ -110,6 +112,7 @@ class _Quarantined(StoreError):
 
 # Type aliases spelled outside the class, whose ``list`` method hides the builtin there.
 _QuarantineList = list[QuarantinedFile]
+_JobList = list[Job]
 
 
 class JobStore:
@@ -575,6 +578,67 @@ class JobStore:
             for item in (path, path.with_name(path.name + ".bak")):
                 with contextlib.suppress(FileNotFoundError):
                     item.unlink()
+
+    @property
+    def trash_dir(self) -> Path:
+        return self.jobs_dir / TRASH
+
+    def move_to_trash(self, job_id: str) -> Path:
+        """Move a job file and its backup into the trash folder; returns the file's new path.
+
+        A job already in the trash under that id is kept beside it with a numbered name, so no
+        deletion ever destroys an earlier one.
+        """
+        path = self.path_of(job_id)
+        with self._locked(job_id):
+            if not path.exists():
+                raise StoreError(f"no job {job_id} in {self.jobs_dir}")
+            self.trash_dir.mkdir(parents=True, exist_ok=True)
+            target = self.trash_dir / path.name
+            n = 1
+            while target.exists():
+                target = self.trash_dir / f"{job_id}.{n}.json"
+                n += 1
+            backup = path.with_name(path.name + ".bak")
+            if backup.exists():
+                os.replace(backup, target.with_name(target.name + ".bak"))
+            os.replace(path, target)
+            return target
+
+    def trashed(self) -> _JobList:
+        """The jobs in the trash folder (readable ones), most recently updated first."""
+        out = []
+        try:
+            entries = sorted(self.trash_dir.glob("*.json"))
+        except OSError:
+            return []
+        for entry in entries:
+            try:
+                out.append(parse_job(read_regular(entry, MAX_FILE_BYTES, follow_symlinks=False)))
+            except (OSError, StoreError, ValueError):
+                continue
+        out.sort(key=lambda job: job.updated_at, reverse=True)
+        return out
+
+    def restore_from_trash(self, job_id: str) -> Path:
+        """Move a trashed job (its latest deletion) back; refuses when the id is in use."""
+        path = self.path_of(job_id)
+        candidates = [self.trash_dir / path.name] + sorted(
+            self.trash_dir.glob(f"{job_id}.*.json"),
+            key=lambda p: int(p.name.split(".")[1]) if p.name.split(".")[1].isdigit() else 0,
+        )
+        found = [c for c in candidates if c.exists()]
+        if not found:
+            raise StoreError(f"no job {job_id} in the trash")
+        source = found[-1]
+        with self._locked(job_id):
+            if path.exists():
+                raise StoreError(f"job {job_id} is already in the jobs folder")
+            backup = source.with_name(source.name + ".bak")
+            if backup.exists():
+                os.replace(backup, path.with_name(path.name + ".bak"))
+            os.replace(source, path)
+        return path
 
     def load_all(self, ids: Sequence[str] | None = None) -> Iterator[Job]:
         """Load the given jobs (default: every listed job), skipping unreadable ones."""

@@ -6,8 +6,9 @@ from dataclasses import dataclass, field
 from datetime import date
 from typing import Any
 
+from fieldkit.jobs.counting import Tally, link_tallies, open_items
 from fieldkit.jobs.models import Job
-from fieldkit.jobs.reports import failures, fmt_db, fmt_m, fmt_nm, in_doubt, latest_results
+from fieldkit.jobs.reports import failures, fmt_db, fmt_m, fmt_nm
 from fieldkit.jobs.store import JobStore, filter_summaries, local_date
 
 
@@ -23,6 +24,7 @@ class JobDay:
     tested: int
     passed: int
     failed: int
+    reference_problems: int
     no_limit: int
     in_doubt: int
     failures: list[str] = field(default_factory=list)
@@ -38,6 +40,7 @@ class JobDay:
             "tested": self.tested,
             "passed": self.passed,
             "failed": self.failed,
+            "reference_problems": self.reference_problems,
             "no_limit": self.no_limit,
             "in_doubt": self.in_doubt,
             "failures": self.failures,
@@ -51,7 +54,15 @@ class DaySummary:
     jobs: list[JobDay]
 
     def totals(self) -> dict[str, int]:
-        keys = ("results_today", "tested", "passed", "failed", "no_limit", "in_doubt")
+        keys = (
+            "results_today",
+            "tested",
+            "passed",
+            "failed",
+            "reference_problems",
+            "no_limit",
+            "in_doubt",
+        )
         out = {k: sum(getattr(j, k) for j in self.jobs) for k in keys}
         out["jobs"] = len(self.jobs)
         out["open_jobs"] = sum(j.status == "open" for j in self.jobs)
@@ -75,9 +86,11 @@ def counted(count: int, one: str, many: str | None = None) -> str:
 
 
 def job_day(job: Job, day: date) -> JobDay:
-    """Counts over the latest result of each fibre, wavelength and direction (see reports)."""
-    latest = [(link, r) for link in job.links for r in latest_results(link)]
-    doubt = in_doubt(job)
+    """Counts per fibre and wavelength by the one counting rule (:mod:`fieldkit.jobs.counting`)."""
+    tally = Tally()
+    for link in job.links:
+        for row in link_tallies(link).values():
+            tally.merge(row)
     failed = failures(job)
     entry = JobDay(
         id=job.id,
@@ -85,11 +98,12 @@ def job_day(job: Job, day: date) -> JobDay:
         site=job.site,
         status=job.status,
         results_today=sum(local_date(r.at) == day for _, r in job.results()),
-        tested=len(latest),
-        passed=sum(r.passed is True for _, r in latest),
-        failed=len(failed),
-        no_limit=sum(r.passed is None for _, r in latest),
-        in_doubt=len(doubt),
+        tested=tally.tested,
+        passed=tally.passed,
+        failed=tally.failed,
+        reference_problems=tally.reference_problems,
+        no_limit=tally.no_limit,
+        in_doubt=tally.in_doubt,
     )
     for link, r in failed:
         limit = f" > {fmt_db(r.limit_db)} dB" if r.limit_db is not None else ""
@@ -100,16 +114,8 @@ def job_day(job: Job, day: date) -> JobDay:
     for link in job.links:
         if not link.results:
             entry.open_items.append(f"{link.label}: no results yet")
-        n_failed = sum(1 for lk, _ in failed if lk is link)
-        if n_failed:
-            entry.open_items.append(
-                f"{link.label}: {counted(n_failed, 'failed result')} to repair and retest"
-            )
-        n_doubt = sum(1 for lk, _ in doubt if lk is link)
-        if n_doubt:
-            entry.open_items.append(
-                f"{link.label}: {counted(n_doubt, 'result')} against a reference in doubt; retest"
-            )
+    entry.open_items += open_items(job)
+    for link in job.links:
         for fault in link.faults:
             entry.open_items.append(
                 f"{link.label}: fault located at {fmt_m(fault.route_distance_m)} m along the "

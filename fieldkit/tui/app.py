@@ -77,15 +77,25 @@ class FieldkitApp(App[None]):
         Binding("ctrl+q", "quit", "Quit", id="app.quit", priority=True, show=False),
     ]
 
-    def __init__(self, data_dir: Path, config_dir: Path, start_mode: str | None = None) -> None:
+    def __init__(
+        self,
+        data_dir: Path,
+        config_dir: Path,
+        start_mode: str | None = None,
+        welcome: bool = False,
+    ) -> None:
         self.data_dir = data_dir
         self.config_dir = config_dir
+        #: On a start by a person (not a test or a script): ask the operator's name once, and
+        #: on an empty data folder say where data lives and offer a new job.
+        self._welcome = welcome
         self._start_mode = start_mode or WORKSPACES[0].mode
         super().__init__()
         self.stylesheet = _OnceParsedStylesheet(variables=self.get_css_variables())
         register_themes(self)
         self._previous_theme = "textual-dark"
         self._store: JobStore | None = None
+        self._operator: str | None = None
 
     # -- services the screens use -------------------------------------------------------
     @property
@@ -97,6 +107,24 @@ class FieldkitApp(App[None]):
             self._store = JobStore(locations.jobs_dir(self.data_dir))
         return self._store
 
+    @property
+    def operator(self) -> str:
+        """Who is working: the name saved in the settings, else ``$FIELDKIT_OPERATOR``.
+
+        Stamped on every result, reference, budget, fault, splice and note saved from here."""
+        if self._operator is None:
+            from fieldkit.actions.operator import resolve_operator, saved_operator
+
+            self._operator = saved_operator(self.config_dir) or resolve_operator(None, None)
+        return self._operator
+
+    def set_operator(self, name: str) -> str:
+        """Save a new operator name in the settings; returns it as saved."""
+        from fieldkit.actions.operator import save_operator
+
+        self._operator = save_operator(self.config_dir, name)
+        return self._operator
+
     def on_mount(self) -> None:
         saved = settings.load(self.config_dir).get("theme")
         if isinstance(saved, str) and saved in self.available_themes:
@@ -105,6 +133,116 @@ class FieldkitApp(App[None]):
         # DEFAULT_MODE stays unset: a mode screen holding an Input crashes at start otherwise.
         self.switch_mode(self._start_mode)
         self.call_after_refresh(self._started)
+        if self._welcome:
+            self.call_after_refresh(self._first_start)
+
+    # -- first start: the operator, where data lives, a new job ----------------------------
+    def _first_start(self) -> None:
+        from fieldkit.actions.operator import operator_was_asked
+
+        if operator_was_asked(self.config_dir):
+            self._offer_new_job()
+        else:
+            self.action_set_operator(then_offer_job=True)
+
+    def action_set_operator(self, then_offer_job: bool = False) -> None:
+        """Ask for the operator's name (stamped on everything saved from here)."""
+        from fieldkit.tui.widgets.dialogs import NameDialog
+
+        def given(name: str | None) -> None:
+            if name is not None or then_offer_job:
+                try:
+                    # Asked once: even a blank answer is remembered, so it is not asked again.
+                    self.set_operator(name if name is not None else self.operator)
+                except (OSError, ValueError) as exc:
+                    self.notify(f"The name was not saved: {exc}", severity="warning")
+                else:
+                    if name:
+                        self.notify(f"Saving as {name}.")
+            if then_offer_job:
+                self._offer_new_job()
+
+        self.push_screen(
+            NameDialog(
+                "Who is working?",
+                "Your name goes on every result, reference, budget, fault, splice and note "
+                "you save (change it from the command palette, Ctrl+P).",
+                self.operator,
+            ),
+            given,
+        )
+
+    # -- quitting never drops unsaved work ---------------------------------------------------
+    def unsaved_workspaces(self) -> list[tuple[str, str]]:
+        """(mode, title) of each open workspace holding edits not saved onto a job."""
+        out = []
+        for ws in WORKSPACES:
+            for screen in getattr(self, "_screen_stacks", {}).get(ws.mode, []):
+                if getattr(screen, "unsaved_edits", False):
+                    out.append((ws.mode, ws.title))
+                    break
+        return out
+
+    async def action_quit(self) -> None:
+        from fieldkit.tui.widgets.dialogs import AskDialog
+
+        pending = self.unsaved_workspaces()
+        if not pending or isinstance(self.screen, AskDialog):
+            self.exit()
+            return
+        mode, title = pending[0]
+
+        def answered(answer: tuple[str, str] | None) -> None:
+            if answer is None:
+                return
+            if answer[0] == "quit":
+                self.exit()
+            else:
+                self.switch_mode(mode)
+
+        names = ", ".join(t for _, t in pending)
+        self.push_screen(
+            AskDialog(
+                "Unsaved work",
+                [f"{names}: changes not saved onto a job (Ctrl+S there saves them)."],
+                [("go", f"Go to {title}"), ("quit", "Quit without saving")],
+            ),
+            answered,
+        )
+
+    def _offer_new_job(self) -> None:
+        from fieldkit.tui.widgets.dialogs import AskDialog
+
+        try:
+            has_jobs = bool(self.store.list())
+        except OSError:
+            has_jobs = True
+        if has_jobs:
+            return
+
+        def answered(answer: tuple[str, str] | None) -> None:
+            if answer is not None and answer[0] == "new":
+                self.switch_mode("jobs")
+                self.call_after_refresh(self._new_job_in_jobs)
+
+        self.push_screen(
+            AskDialog(
+                "Welcome to fieldkit",
+                [
+                    f"Jobs are kept in {self.store.jobs_dir} (--data-dir or "
+                    "FIELDKIT_DATA_DIR points elsewhere); settings in "
+                    f"{self.config_dir}.",
+                    "Everything you save goes onto a job: start one now?",
+                ],
+                [("new", "New job")],
+            ),
+            answered,
+        )
+
+    def _new_job_in_jobs(self) -> None:
+        action = getattr(self.screen, "action_new_job", None)
+        if callable(action):
+            action()
 
     def run(self, *args: Any, **kwargs: Any) -> None:
         # Start-up makes tens of thousands of objects that live as long as the app; the
@@ -158,6 +296,11 @@ class FieldkitApp(App[None]):
         yield SystemCommand(
             "Sunlight theme", "High-contrast theme on or off (Ctrl+T)", self.action_toggle_sunlight
         )
+        yield SystemCommand(
+            "Operator name",
+            f"Who is working (now: {self.operator or 'not set'}); stamped on everything saved",
+            self.action_set_operator,
+        )
         yield from super().get_system_commands(screen)
 
 
@@ -165,10 +308,13 @@ def make_app(
     data_dir: str | Path | None = None,
     config_dir: str | Path | None = None,
     start_mode: str | None = None,
+    welcome: bool = False,
 ) -> FieldkitApp:
-    """The app factory used by the CLI and the tests."""
+    """The app factory used by the CLI and the tests (``welcome``: a start by a person, see
+    :class:`FieldkitApp`)."""
     return FieldkitApp(
         data_dir=locations.data_dir(data_dir),
         config_dir=locations.config_dir(config_dir),
         start_mode=start_mode,
+        welcome=welcome,
     )

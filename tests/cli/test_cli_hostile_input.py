@@ -301,10 +301,17 @@ def test_path_tricks_in_job_ids_are_refused(job_id: str) -> None:
     assert_refused(run("jobs", "show", "--", job_id), "not a job id")
 
 
-def test_a_prefix_of_two_jobs_is_refused_and_names_both() -> None:
-    first, second = _new_job("one"), _new_job("two")
+def test_a_prefix_of_two_jobs_is_refused_and_names_both(isolated_dirs: dict[str, Path]) -> None:
+    from fieldkit.jobs.models import Job
+    from fieldkit.jobs.store import JobStore
+
+    # New ids differ in their first 8 digits; files from elsewhere may still share a start.
+    store = JobStore(isolated_dirs["data"] / "jobs")
+    first, second = "abcdef0100000000001", "abcdef0200000000002"
+    for job_id, name in ((first, "one"), (second, "two")):
+        store.save(Job(id=job_id, name=name))
     common = os.path.commonprefix([first, second])
-    assert common  # ids are time-ordered hex: two made together share their start
+    assert common == "abcdef0"
     result = run("jobs", "note", common, "hello")
     assert_refused(result, "matches 2 jobs", first, second)
     # nothing was written: neither job has a note
@@ -319,14 +326,14 @@ def test_export_onto_the_jobs_own_file_is_refused(isolated_dirs: dict[str, Path]
     before = job_file.read_bytes()
     assert_refused(
         run("jobs", "export", job_id, "--format", "csv", "-o", str(job_file)),
-        "inside the jobs folder",
+        "inside the data folder",
     )
     assert job_file.read_bytes() == before
     assert_refused(
         run(
             "jobs", "export", job_id, "--format", "md", "-o", str(job_file.parent / "sub" / "r.md")
         ),
-        "inside the jobs folder",
+        "inside the data folder",
     )
     assert run("jobs", "show", job_id).returncode == 0
 
@@ -334,6 +341,12 @@ def test_export_onto_the_jobs_own_file_is_refused(isolated_dirs: dict[str, Path]
 def test_export_elsewhere_still_writes(tmp_path: Path) -> None:
     job_id = _new_job("report")
     target = tmp_path / "out" / "report.csv"
+    # A folder that does not exist is refused, not made (a typo must not scatter folders).
+    assert_refused(
+        run("jobs", "export", job_id, "--format", "csv", "-o", str(target)), "does not exist"
+    )
+    assert not target.parent.exists()
+    target.parent.mkdir()
     result = run("jobs", "export", job_id, "--format", "csv", "-o", str(target))
     assert result.returncode == 0, result.stderr
     assert target.read_text(encoding="utf-8-sig").startswith("job,")

@@ -192,7 +192,7 @@ def test_reference_and_results_recorded_into_a_job(isolated_dirs: dict[str, Path
     assert {r.reference_id for r in link.results} == {reference_id}
     assert all(r.fibre == 3 and r.wavelength_nm == 1310 and r.limit_db == 1.3 for r in link.results)
 
-    # A correction replaces the cell instead of adding a second result.
+    # History, not overwrite: a retest adds a result and supersedes the first of that cell.
     run_json(
         "loss",
         "--job",
@@ -211,8 +211,11 @@ def test_reference_and_results_recorded_into_a_job(isolated_dirs: dict[str, Path
         "two-cord",
     )
     link = JobStore(isolated_dirs["data"] / "jobs").load(job_id).links[0]
-    assert len(link.results) == 2
-    assert {r.direction: r.loss_db for r in link.results}["A->B"] == pytest.approx(1.1, abs=1e-9)
+    assert len(link.results) == 3
+    first, back, retest = link.results
+    assert retest.current and retest.loss_db == pytest.approx(1.1, abs=1e-9)
+    assert first.superseded_by == retest.id and first.loss_db == pytest.approx(1.2, abs=1e-9)
+    assert back.current  # the other direction was not retested
 
 
 def test_recheck_beyond_tolerance_puts_results_in_doubt(isolated_dirs: dict[str, Path]) -> None:

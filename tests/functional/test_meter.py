@@ -213,7 +213,12 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
         await pilot.press("up", "f9")  # fibre 2 again: clear it
         await _settle(pilot, screen)
         link = store.load(job_id).link(link_id)
-        assert sorted((r.fibre, round(r.loss_db, 6)) for r in link.results) == [(1, 1.0), (3, 1.2)]
+        current = sorted((r.fibre, round(r.loss_db, 6)) for r in link.results if r.current)
+        assert current == [(1, 1.0), (3, 1.2)]
+        # History, not overwrite: fibre 2's first reading (1.1 dB) and its correction (0.9 dB)
+        # stay in the file, superseded (the correction by the clearing).
+        assert sorted(round(r.loss_db, 6) for r in link.results if r.fibre == 2) == [0.9, 1.1]
+        assert all(not r.current for r in link.results if r.fibre == 2)
         # A click on a cell moves the entry there, ready to type. The grid's header is its
         # first line and the fibre column 7 cells wide, so (10, 9) is fibre 9 at 1310 nm.
         await pilot.click("#readings", offset=(10, 9))
@@ -223,7 +228,7 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
         await pilot.press(*"-8.5", "enter")
         await _settle(pilot, screen)
         link = store.load(job_id).link(link_id)
-        assert {r.fibre for r in link.results} == {1, 3, 9}
+        assert {r.fibre for r in link.results if r.current} == {1, 3, 9}
 
 
 async def test_recheck_beyond_tolerance_marks_results_in_doubt(

@@ -51,13 +51,17 @@ def test_summary_counts_by_hand() -> None:
     # Limit = 1.84 km × 0.3 dB/km + 2 × 0.75 + 4 × 0.3 = 0.552 + 1.5 + 1.2 = 3.252 -> 3.25 dB
     # (TIA-568.3-D connector and splice maxima; 0.3 dB/km cabled G.652 at 1550 nm, from
     # memory). Fibre 7 reads 3.91 dB: the one failure of 12.
-    assert (backbone_1550.tested, backbone_1550.passed, backbone_1550.failed) == (12, 11, 1)
+    # One counting rule (fieldkit.jobs.counting): each fibre in one count; the 5 in doubt
+    # (below) are not passes until retested: 12 = 6 passed + 1 failed + 5 in doubt.
+    assert (backbone_1550.tested, backbone_1550.passed, backbone_1550.failed) == (12, 6, 1)
     # The 1550 nm reference is in doubt from 10:00; fibre f was read at 09:15 + f × 6 min, so
     # fibres 8..12 (09:63 = 10:03 onwards) are in doubt: 5.
     assert backbone_1550.in_doubt == 5
     feed = rows[("RES-N-FEED", 1550.0)]
-    # 2.41, 2.52, 2.38, 2.47 <= 4.26 pass; 4.63 fails; -0.12 (negative loss) has no verdict.
-    assert (feed.tested, feed.passed, feed.failed, feed.no_limit) == (6, 4, 1, 1)
+    # 2.41, 2.52, 2.38, 2.47 <= 4.26 pass; 4.63 fails; -0.12 (negative loss) is a reference
+    # problem, its own count (never "no limit").
+    assert (feed.tested, feed.passed, feed.failed, feed.reference_problems) == (6, 4, 1, 1)
+    assert feed.no_limit == 0
     assert [(link.label, r.fibre) for link, r in failures(sample())] == [
         ("LIB-TH-01", 7),
         ("RES-N-FEED", 5),

@@ -20,7 +20,9 @@ def test_demo_day_counts(tmp_path: Path) -> None:
     # Backbone 12 fibres × 2 wavelengths, fit-out 24 × 2, feed 6 × 1: 24 + 48 + 6 = 78.
     assert totals["results_today"] == totals["tested"] == 78
     # Fails: backbone fibre 7 at 1550 nm, feed fibre 5; no limit: the feed's negative loss.
-    assert (totals["failed"], totals["no_limit"], totals["passed"]) == (2, 1, 78 - 3)
+    # The feed's negative loss is a reference problem (its own count, not "no limit").
+    assert (totals["failed"], totals["reference_problems"], totals["no_limit"]) == (2, 1, 0)
+    assert totals["passed"] + totals["in_doubt"] == 78 - 3
     # In doubt: backbone 1550 nm fibres 8..12 (read after the reference went into doubt).
     assert totals["in_doubt"] == 5
     assert (totals["jobs"], totals["open_jobs"]) == (4, 3)
@@ -50,7 +52,12 @@ def test_open_items_count_in_words_that_agree(tmp_path: Path) -> None:
     summary = day_summary(store, local_date(now()))
     # The demo feed repair has one failed fibre (fibre 5 at 1550 nm): one result, singular.
     feed = next(j for j in summary.jobs if j.name == "North Reservoir feed repair")
-    assert "RES-N-FEED: 1 failed result to repair and retest" in feed.open_items
-    # The backbone has five results against the reference that drifted: plural.
+    assert "RES-N-FEED: fibre 5 at 1550 nm A->B: failed, repair and retest" in feed.open_items
+    # The negative loss of fibre 6 is an open item too (a reference problem).
+    assert (
+        "RES-N-FEED: fibre 6 at 1550 nm A->B: reference problem, clean and re-reference"
+        in feed.open_items
+    )
+    # The backbone has five results against the reference that drifted: one item each.
     items = [item for j in summary.jobs for item in j.open_items]
-    assert any(": 5 results against a reference in doubt; retest" in item for item in items)
+    assert sum(item.endswith("reference in doubt, retest") for item in items) == 5

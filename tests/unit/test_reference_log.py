@@ -1,4 +1,4 @@
-"""Meter references and results on a job's link (fieldkit.meter_log)."""
+"""Meter references and results on a job's link (fieldkit.actions.meter)."""
 
 from __future__ import annotations
 
@@ -6,7 +6,7 @@ from datetime import UTC, datetime, timedelta
 
 import pytest
 
-from fieldkit import meter_log
+from fieldkit.actions import meter as meter_log
 from fieldkit.calc.reference import Method
 from fieldkit.calc.units import InputError
 from fieldkit.jobs.models import BudgetItem, BudgetRecord, BudgetWavelength, Job, result_in_doubt
@@ -38,7 +38,7 @@ def test_two_directions_keep_their_own_references() -> None:
     assert c.id not in (a.id, b.id)
 
 
-def test_put_result_computes_loss_flags_and_replaces_a_correction() -> None:
+def test_put_result_computes_loss_flags_and_a_retest_supersedes_keeping_the_first() -> None:
     link = _link()
     reference = meter_log.add_reference(
         link, wavelength_nm=1550, level_dbm=-7.0, method=Method.ONE_CORD, at=T0
@@ -65,8 +65,11 @@ def test_put_result_computes_loss_flags_and_replaces_a_correction() -> None:
         limit_db=1.5,
         at=T0,
     )
-    assert len(link.results) == 1 and fixed.id == first.id
-    assert fixed.loss_db == pytest.approx(1.0, abs=1e-12) and fixed.passed is True
+    # History, not overwrite: both stay; the first is superseded by the retest.
+    assert [r.id for r in link.results] == [first.id, fixed.id]
+    assert first.superseded_by == fixed.id and first.superseded_at is not None
+    assert first.passed is False and first.loss_db == pytest.approx(2.0, abs=1e-12)
+    assert fixed.current and fixed.loss_db == pytest.approx(1.0, abs=1e-12) and fixed.passed
     negative = meter_log.put_result(
         link,
         fibre=6,
@@ -78,8 +81,11 @@ def test_put_result_computes_loss_flags_and_replaces_a_correction() -> None:
         at=T0,
     )
     assert negative.flags == ["negative-loss"] and negative.passed is None
-    assert meter_log.remove_result(link, fibre=6, wavelength_nm=1550, direction="A->B")
-    assert not meter_log.remove_result(link, fibre=6, wavelength_nm=1550, direction="A->B")
+    assert meter_log.clear_result(link, fibre=6, wavelength_nm=1550, direction="A->B", by="A")
+    assert not meter_log.clear_result(link, fibre=6, wavelength_nm=1550, direction="A->B")
+    # Cleared, not deleted: it stays in the file, superseded by nothing.
+    assert negative in link.results and not negative.current
+    assert negative.superseded_by is None and negative.superseded_note == "cleared by A"
 
 
 def test_recheck_puts_results_since_the_last_good_check_in_doubt() -> None:

@@ -22,6 +22,7 @@ from textual.widgets import Button, Footer, Input, Label, OptionList, Select, St
 
 from fieldkit import safety
 from fieldkit.calc.units import InputError
+from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -923,6 +924,11 @@ class BudgetScreen(Screen[None]):
         from fieldkit import linkspec
 
         self._order_applications()
+        if getattr(self, "_clean_print", None) is None:
+            self.mark_clean()  # the first result: the blank start is nothing to lose
+        elif self.unsaved_edits:
+            # A "saved" or "opened" line says nothing about what was typed since.
+            self.query_one("#budget-saved", Static).update("")
         problem = self.query_one("#budget-problem", Static)
         waiting = self.query_one("#budget-waiting", Static)
         waiting.display = False
@@ -1059,8 +1065,55 @@ class BudgetScreen(Screen[None]):
         ]
         out.update("\n".join(rows))
 
+    # -- unsaved edits -------------------------------------------------------------------
+    def _fingerprint(self) -> str:
+        import json
+
+        fields = {
+            field_id: self.query_one(f"#{field_id}", Input).value
+            for field_id in ("wavelengths", "margin", "tx-min", "tx-max", "rx-sens", "rx-over")
+        }
+        selects = {
+            select_id: str(self.query_one(f"#{select_id}", Select).value)
+            for select_id in ("application", "transceiver")
+        }
+        return json.dumps([self.items, fields, selects], sort_keys=True, default=str)
+
+    def mark_clean(self) -> None:
+        """What is on screen now is saved (or opened, or the blank start)."""
+        self._clean_print = self._fingerprint()
+
+    @property
+    def unsaved_edits(self) -> bool:
+        """True when the budget was changed since it was last saved, opened or started."""
+        clean = getattr(self, "_clean_print", None)
+        return clean is not None and clean != self._fingerprint()
+
     # -- opening a saved budget ---------------------------------------------------------
     def action_open_saved(self) -> None:
+        from fieldkit.tui.widgets.dialogs import AskDialog
+
+        if self.unsaved_edits:
+            self.app.push_screen(
+                AskDialog(
+                    "The budget has unsaved changes",
+                    ["Opening a saved budget replaces what is on screen."],
+                    [("save", "Save first"), ("discard", "Discard and open")],
+                ),
+                self._open_answered,
+            )
+            return
+        self._pick_to_open()
+
+    def _open_answered(self, answer: tuple[str, str] | None) -> None:
+        if answer is None:
+            return
+        if answer[0] == "save":
+            self.action_save()
+        else:
+            self._pick_to_open()
+
+    def _pick_to_open(self) -> None:
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
         self.app.push_screen(
@@ -1089,6 +1142,7 @@ class BudgetScreen(Screen[None]):
             return
         self.load(items, fields)
         self._job_id = job_id
+        self.mark_clean()
         self.query_one("#budget-saved", Static).update(
             f"Opened the budget saved on link {link.label}."
         )
@@ -1137,34 +1191,30 @@ class BudgetScreen(Screen[None]):
         )
 
     def _save_to(self, choice: tuple[str, str] | None, resolved: Any, report: Any) -> None:
-        from fieldkit import settings
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.saves import save_budget
         from fieldkit.jobs.budget_records import budget_record
         from fieldkit.jobs.store import StoreError
 
         if choice is None:
             return
         job_id, link_id = choice
-        by = settings.load(self.app.config_dir).get("name", "")  # type: ignore[attr-defined]
-        record = budget_record(resolved, report, by=by if isinstance(by, str) else "")
-        names: dict[str, str] = {}
-
-        def change(job: Any) -> None:
-            link = job.link(link_id)
-            link.budget = record
-            if link.length_m is None:
-                link.length_m = resolved.link.length_m
-            if not link.fibre_type:
-                link.fibre_type = ", ".join(resolved.link.fibre_names)
-            names.update(job=job.name, link=link.label)
-
+        record = budget_record(resolved, report, by=fieldkit_app(self).operator)
         try:
-            self.app.store.update(job_id, change)  # type: ignore[attr-defined]
-        except (StoreError, KeyError) as exc:
-            message = str(exc.args[0]) if isinstance(exc, KeyError) and exc.args else str(exc)
-            self.notify(f"Not saved: {message}", severity="error")
-            self.query_one("#budget-saved", Static).update(f"Not saved: {message}")
+            saved = save_budget(
+                fieldkit_app(self).store,
+                job_id,
+                link_id,
+                record,
+                length_m=resolved.link.length_m,
+                fibre_type=", ".join(resolved.link.fibre_names),
+            )
+        except (StoreError, ActionError) as exc:
+            self.notify(f"Not saved: {exc}", severity="error")
+            self.query_one("#budget-saved", Static).update(f"Not saved: {exc}")
             return
         self._job_id = job_id
-        text = f"Budget saved onto job {names['job']}, link {names['link']}."
+        self.mark_clean()
+        text = f"Budget saved onto job {saved.job_name}, link {saved.link_label}."
         self.query_one("#budget-saved", Static).update(text)
         self.notify(text)

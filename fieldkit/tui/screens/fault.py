@@ -747,16 +747,32 @@ class FaultScreen(Screen[None]):
                 return "Fix the field marked in red: " + text
         return None
 
-    def recompute(self) -> None:
-        from fieldkit.commands.locate import input_record
+    def _fingerprint(self) -> str:
+        import json
 
+        return json.dumps(self._typed(), sort_keys=True, default=str)
+
+    @property
+    def unsaved_edits(self) -> bool:
+        """True when a located fault was changed since it was last saved (or the start)."""
+        clean = getattr(self, "_clean_print", None)
+        return self.location is not None and clean != self._fingerprint()
+
+    def recompute(self) -> None:
+        from fieldkit.actions.saves import fault_inputs
+
+        if getattr(self, "_clean_print", None) is None:
+            self._clean_print = self._fingerprint()
+        elif self._clean_print != self._fingerprint():
+            # A "saved" line says nothing about what was typed since.
+            self.query_one("#fault-saved", Static).update("")
         self.problem = None
         inp = self.build_input()
         self.location = None
         if inp is not None:
             try:
                 self.location = locate(inp)
-                self.inputs = input_record(inp, self._typed())
+                self.inputs = fault_inputs(inp, self._typed())
             except InputError as exc:
                 self.problem = str(exc)
         self._show()
@@ -856,26 +872,24 @@ class FaultScreen(Screen[None]):
     def _save_to(
         self, choice: tuple[str, str] | None, location: Location, inputs: dict[str, Any]
     ) -> None:
-        from fieldkit import settings
-        from fieldkit.commands.locate import fault_record, save_fault
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.saves import fault_record, save_fault
         from fieldkit.jobs.store import StoreError
 
         if choice is None:
             return
         job_id, link_id = choice
-        by = settings.load(self.app.config_dir).get("name", "")  # type: ignore[attr-defined]
-        record = fault_record(location, inputs, by=by if isinstance(by, str) else "")
+        record = fault_record(location, inputs, by=self.app.operator)  # type: ignore[attr-defined]
         try:
-            job = save_fault(self.app.store, job_id, link_id, record)  # type: ignore[attr-defined]
-        except (StoreError, KeyError) as exc:
-            message = str(exc.args[0]) if isinstance(exc, KeyError) and exc.args else str(exc)
-            self.notify(f"Not saved: {message}", severity="error")
-            self.query_one("#fault-saved", Static).update(f"Not saved: {message}")
+            saved = save_fault(self.app.store, job_id, link_id, record)  # type: ignore[attr-defined]
+        except (StoreError, ActionError) as exc:
+            self.notify(f"Not saved: {exc}", severity="error")
+            self.query_one("#fault-saved", Static).update(f"Not saved: {exc}")
             return
-        label = next((link.label for link in job.links if link.id == link_id), link_id)
         text = (
-            f"Saved onto {job.name} / {label}: "
+            f"Saved onto {saved.job_name} / {saved.link_label}: "
             f"{format_distance(record.route_distance_m, self.unit)} on the route."
         )
+        self._clean_print = self._fingerprint()
         self.query_one("#fault-saved", Static).update(text)
         self.notify(text)

@@ -4,14 +4,14 @@ export it; F7 opens the end-of-day view.
 Keys work while a field has focus: Ctrl+F find, Ctrl+N note, Ctrl+O done or open, F8 export,
 F7 end of day (Ctrl+D and Ctrl+E belong to the text fields).
 
-Every change goes through ``JobStore.update`` (reload, apply, save under the job's lock), so a
-note typed here and a result saved by another program at the same moment are both kept.
+Every change goes through :mod:`fieldkit.actions` (which saves with ``JobStore.update``: reload,
+apply, save under the job's lock), so a note typed here and a result saved by another program at
+the same moment are both kept, and the CLI writes the same records for the same work.
 """
 
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Literal
 
 from rich.console import Group, RenderableType
 from rich.table import Table
@@ -24,10 +24,10 @@ from textual.screen import ModalScreen, Screen
 from textual.widgets import Button, Footer, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
+from fieldkit.actions.errors import ActionError
 from fieldkit.jobs.models import Job, now
 from fieldkit.jobs.reports import (
     EXPORT_FORMATS,
-    export,
     failures,
     fmt_db,
     fmt_m,
@@ -42,6 +42,8 @@ from fieldkit.jobs.store import JobStore, JobSummary, StoreError, filter_summari
 from fieldkit.jobs.today import counted
 from fieldkit.text.escape import terminal
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.dialogs import AskDialog
+from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 #: How many matching jobs the list shows at once; typing in the filter narrows the rest.
@@ -116,6 +118,29 @@ class JobsScreen(Screen[None]):
             tooltip="Only jobs created or updated today, or every day",
         ),
         Binding(
+            "f9",
+            "new_job",
+            "New job",
+            id="jobs.new",
+            tooltip="Start a new job: name, customer, site, crew",
+        ),
+        Binding(
+            "ctrl+b",
+            "edit_job",
+            "Edit",
+            id="jobs.edit",
+            show=False,
+            tooltip="Rename the job or change its customer, site or crew",
+        ),
+        Binding(
+            "ctrl+l",
+            "link",
+            "Link",
+            id="jobs.link",
+            show=False,
+            tooltip="Add a link to the job, or edit one (ends, fibre type and count, cable)",
+        ),
+        Binding(
             "ctrl+r",
             "reload",
             "Reload",
@@ -182,13 +207,20 @@ class JobsScreen(Screen[None]):
                         compact=True,
                         tooltip="Today's jobs, counts, failures and open items",
                     )
+                with Horizontal(id="job-manage"):
+                    yield Button("New F9", id="job-new", compact=True, tooltip="Start a job")
+                    yield Button("Edit ^B", id="job-edit", compact=True, tooltip="Rename, edit")
+                    yield Button("Link ^L", id="job-link", compact=True, tooltip="Add/edit a link")
+                    yield Button(
+                        "Delete", id="job-delete", compact=True, tooltip="Move to the trash"
+                    )
                 yield Static("", id="job-summary")
                 yield Static("", id="job-failures")
                 yield Static("", id="job-links")
                 yield Static("", id="job-notes")
                 with Horizontal(id="job-note-row"):
                     yield Input(
-                        placeholder="a note, Enter saves (Ctrl+N)",
+                        placeholder="a note, Enter saves (^N)",
                         id="job-note",
                         type="text",
                         compact=True,
@@ -252,14 +284,37 @@ class JobsScreen(Screen[None]):
         ids = [s.id for s in shown]
         if keep in ids:
             options.highlighted = ids.index(keep)
-        elif keep is None and ids:
-            options.highlighted = 0  # opens the newest job, so the details are never empty
+        elif ids:
+            # The details always show a job of the visible list, so keys act on what is seen.
+            options.highlighted = 0
+            self._open(ids[0])
+        else:
+            self._clear_detail()
         self.query_one("#jobs-status", Button).label = {
             None: "All jobs",
             "open": "Open jobs",
             "done": "Done jobs",
         }[self._status]
         self.query_one("#jobs-day", Button).label = "Today" if self._today_only else "Any day"
+
+    def _clear_detail(self) -> None:
+        """No job in the list: the details say so and the job's keys do nothing."""
+        self._job = None
+        if not self._summaries:
+            where = self.store.jobs_dir
+            head = (
+                "No jobs yet. F9 (or New job) starts one: its name, customer, site and crew; "
+                f"then its links. Jobs are kept in {where}."
+            )
+        else:
+            head = "No job matches; clear the find field (Ctrl+F) to see them all."
+        self.query_one("#job-head", Static).update(_t(head))
+        for name in ("summary", "failures", "links", "notes"):
+            self.query_one(f"#job-{name}", Static).update("")
+        for wid in ("#job-note", "#job-note-add", "#job-done", "#job-export"):
+            self.query_one(wid).disabled = True
+        for wid in ("#job-edit", "#job-link", "#job-delete"):
+            self.query_one(wid).disabled = True
 
     def _open(self, job_id: str) -> None:
         try:
@@ -283,8 +338,10 @@ class JobsScreen(Screen[None]):
             "Reopen ^O" if job.status == "done" else "Done ^O"
         )
         read_only = bool(job.read_only)
-        for wid in ("#job-note", "#job-note-add", "#job-done"):
+        for wid in ("#job-note", "#job-note-add", "#job-done", "#job-edit", "#job-link"):
             self.query_one(wid).disabled = read_only
+        for wid in ("#job-export", "#job-delete"):
+            self.query_one(wid).disabled = False
 
     # -- events ------------------------------------------------------------------------------
     @on(Input.Changed, "#jobs-filter")
@@ -324,12 +381,12 @@ class JobsScreen(Screen[None]):
             error.update("Type the note first.")
             return
 
-        def add(job: Job) -> None:
-            job.add_note(text)
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.jobs import add_note
 
         try:
-            job = self.store.update(self._job.id, add)
-        except StoreError as exc:
+            job, _note = add_note(self.store, self._job.id, text, by=fieldkit_app(self).operator)
+        except (StoreError, ActionError) as exc:
             error.update(_t(f"Not saved: {exc}"))  # the typed text stays in the field
             return
         error.update("")
@@ -356,30 +413,143 @@ class JobsScreen(Screen[None]):
 
     @on(Button.Pressed, "#job-done")
     def action_toggle_done(self) -> None:
-        if self._job is None:
-            self.notify("Pick a job first.", severity="warning")
+        from fieldkit.actions.jobs import OpenItemsError, mark_done, reopen
+
+        job = self._job
+        if job is None:
+            self.notify("No job shown: pick one on the list.", severity="warning")
             return
-        status: Literal["open", "done"] = "open" if self._job.status == "done" else "done"
-
-        def change(job: Job) -> None:
-            job.status = status
-
+        by = fieldkit_app(self).operator
         try:
-            job = self.store.update(self._job.id, change)
-        except StoreError as exc:
+            if job.status == "done":
+                saved = reopen(self.store, job.id, by=by)
+            else:
+                saved = mark_done(self.store, job.id, by=by)
+        except OpenItemsError as exc:
+            self.app.push_screen(
+                AskDialog(
+                    f"{job.name} has {len(exc.items)} open item(s)",
+                    exc.items,
+                    [("done", "Mark done anyway")],
+                    reason="why (noted in the job's log)",
+                ),
+                lambda answer: self._done_anyway(job.id, answer),
+            )
+            return
+        except (StoreError, ActionError) as exc:
             self.notify(str(exc), severity="error")
             return
+        self._changed(saved)
+        self.notify(f"{saved.name}: {saved.status}")
+
+    def _done_anyway(self, job_id: str, answer: tuple[str, str] | None) -> None:
+        from fieldkit.actions.jobs import mark_done
+
+        if answer is None or answer[0] != "done":
+            return
+        try:
+            saved = mark_done(
+                self.store, job_id, by=fieldkit_app(self).operator, reason=answer[1], confirm=True
+            )
+        except (StoreError, ActionError) as exc:
+            self.notify(str(exc), severity="error")
+            return
+        self._changed(saved)
+        self.notify(f"{saved.name}: done")
+
+    def _changed(self, job: Job) -> None:
         self._job = job
         self._show(job)
         self._update_summary(job)
-        self.notify(f"{job.name}: {job.status}")
+
+    # -- start, edit, link, delete ---------------------------------------------------------
+    @on(Button.Pressed, "#job-new")
+    def action_new_job(self) -> None:
+        self.app.push_screen(JobForm(), self._job_saved)
+
+    @on(Button.Pressed, "#job-edit")
+    def action_edit_job(self) -> None:
+        if self._job is None or self._job.read_only:
+            return
+        self.app.push_screen(JobForm(self._job), self._job_saved)
+
+    def _job_saved(self, job_id: str | None) -> None:
+        if job_id is None:
+            return
+        self.reload()
+        self._open(job_id)
+        self._refilter()
+
+    @on(Button.Pressed, "#job-link")
+    def action_link(self) -> None:
+        job = self._job
+        if job is None or job.read_only:
+            return
+        if not job.links:
+            self.app.push_screen(LinkForm(job), self._link_saved)
+            return
+        answers = [("new", "New link")] + [(f"edit-{link.id}", link.label) for link in job.links]
+        self.app.push_screen(
+            AskDialog("Add a link, or edit one", [f"Links of {job.name}:"], answers),
+            self._link_chosen,
+        )
+
+    def _link_chosen(self, answer: tuple[str, str] | None) -> None:
+        job = self._job
+        if answer is None or job is None:
+            return
+        choice = answer[0]
+        if choice == "new":
+            self.app.push_screen(LinkForm(job), self._link_saved)
+            return
+        link_id = choice.removeprefix("edit-")
+        link = next((item for item in job.links if item.id == link_id), None)
+        if link is not None:
+            self.app.push_screen(LinkForm(job, link), self._link_saved)
+
+    def _link_saved(self, link_id: str | None) -> None:
+        if link_id is not None and self._job is not None:
+            self._open(self._job.id)
+            if self._job is not None:
+                self._update_summary(self._job)
+
+    @on(Button.Pressed, "#job-delete")
+    def action_delete_job(self) -> None:
+        job = self._job
+        if job is None:
+            return
+        self.app.push_screen(
+            AskDialog(
+                f"Delete {job.name}?",
+                [
+                    f"It moves to the trash folder ({self.store.trash_dir}); nothing is "
+                    f"destroyed. 'fieldkit jobs restore {job.id[:8]}' brings it back."
+                ],
+                [("delete", "Move to the trash")],
+            ),
+            lambda answer: self._delete(job.id, answer),
+        )
+
+    def _delete(self, job_id: str, answer: tuple[str, str] | None) -> None:
+        from fieldkit.actions.jobs import delete_job
+
+        if answer is None or answer[0] != "delete":
+            return
+        try:
+            delete_job(self.store, job_id, by=fieldkit_app(self).operator)
+        except (StoreError, ActionError) as exc:
+            self.notify(str(exc), severity="error")
+            return
+        self._job = None
+        self.notify(f"Moved to the trash; 'fieldkit jobs restore {job_id[:8]}' brings it back.")
+        self.reload()
 
     @on(Button.Pressed, "#job-export")
     def action_export(self) -> None:
         if self._job is None:
             self.notify("Pick a job first.", severity="warning")
             return
-        self.app.push_screen(ExportDialog(self._job, self.app.data_dir))  # type: ignore[attr-defined]
+        self.app.push_screen(ExportDialog(self._job, self.store))
 
     @on(Button.Pressed, "#job-today")
     def action_end_of_day(self) -> None:
@@ -542,10 +712,11 @@ class ExportDialog(ModalScreen[Path | None]):
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", id="jobs_export.cancel")]
 
-    def __init__(self, job: Job, data_dir: Path) -> None:
+    def __init__(self, job: Job, store: JobStore) -> None:
         super().__init__()
         self._job = job
-        self._folder = Path(data_dir) / "exports"
+        self._store = store
+        self._folder = default_export_folder()
 
     def compose(self) -> ComposeResult:
         with Vertical(id="export-dialog"):
@@ -581,32 +752,39 @@ class ExportDialog(ModalScreen[Path | None]):
     @on(Input.Submitted, "#export-path")
     @on(Button.Pressed, "#export-write")
     def _write(self) -> None:
-        from fieldkit.fsutil import atomic_write_bytes
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.export import export_job
 
         formats = self.query_one("#export-format", OptionList)
         fmt = EXPORT_FORMATS[formats.highlighted or 0]
         text = self.query_one("#export-path", Input).value.strip()
         error = self.query_one("#export-error", Static)
-        if not text:
+        if not text or text == "-":
             error.update("Type a file name.")
             return
-        target = Path(text).expanduser()
-        if target.is_dir():
-            error.update("That is a folder: give a file name.")
-            return
-        body = export(self._job, fmt)
-        data = ("\ufeff" + body if fmt == "csv" else body).encode("utf-8")
         try:
-            atomic_write_bytes(target, data)
+            done = export_job(self._store, self._job.id, fmt, text)
+        except (ActionError, StoreError) as exc:
+            error.update(_t(f"Not written: {exc}"))
+            return
         except OSError as exc:
             error.update(_t(f"Not written: {exc.strerror or exc}"))
             return
-        self.app.notify(f"Wrote {target}")
-        self.dismiss(target)
+        self.app.notify(f"Wrote {done.path}")
+        self.dismiss(done.path)
 
     @on(Button.Pressed, "#export-cancel")
     def action_cancel(self) -> None:
         self.dismiss(None)
+
+
+def default_export_folder() -> Path:
+    """Where reports go unless the user types another folder: Documents in the home folder
+    when there is one, else the home folder (never the data folder: a report must not land
+    beside the job files)."""
+    home = Path.home()
+    documents = home / "Documents"
+    return documents if documents.is_dir() else home
 
 
 _FORMAT_NAMES = {

@@ -10,7 +10,7 @@ background save after each Enter; entries made while a save runs go with the nex
 from __future__ import annotations
 
 import threading
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from datetime import datetime
 from typing import Any
 
@@ -24,8 +24,20 @@ from textual.timer import Timer
 from textual.widgets import Collapsible, DataTable, Footer, Input, Label, Static
 
 from fieldkit import safety
+from fieldkit.actions.meter import (
+    Applied,
+    ClearReading,
+    MeterChange,
+    PutReading,
+    Recheck,
+    ReferenceDetails,
+    SetLimit,
+    apply_changes,
+)
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError, Kind, parse, parse_number
+from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count
+from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.readings_grid import EntryInput, GridColumn, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
@@ -74,11 +86,23 @@ class ColumnReference:
     in_doubt: bool = False
 
 
-@dataclass(slots=True)
-class SaveOutcome:
-    reference_ids: dict[tuple[float, str, float], str] = field(default_factory=dict)
-    rechecks: list[tuple[str, ref.Drift, int]] = field(default_factory=list)
-    saved: int = 0
+def meter_tallies(
+    cells: dict[tuple[int, float, str], Cell],
+    limits_db: dict[float, float | None],
+    fibres: int,
+    directions: list[str],
+) -> dict[float, Tally]:
+    """The fibres of each wavelength counted by the one rule (:mod:`fieldkit.jobs.counting`)."""
+    per_fibre: dict[tuple[float, int], list[Count]] = {}
+    for (fibre, w, d), cell in cells.items():
+        if fibre > fibres or w not in limits_db or d not in directions:
+            continue
+        count = cell_count(cell.loss_db, limits_db[w], in_doubt=cell.in_doubt)
+        per_fibre.setdefault((w, fibre), []).append(count)
+    out = {w: Tally() for w in limits_db}
+    for (w, _fibre), counts in per_fibre.items():
+        out[w].add(fibre_count(counts))
+    return out
 
 
 def _fit(width: int, *choices: str) -> str:
@@ -128,6 +152,14 @@ class MeterScreen(Screen[None]):
             tooltip="Choose the job and link the results are saved into",
         ),
         Binding(
+            "ctrl+y",
+            "history",
+            "History",
+            id="meter.history",
+            show=False,
+            tooltip="Every reading of this fibre saved in the job, retests and cleared ones too",
+        ),
+        Binding(
             "ctrl+r",
             "recheck",
             "Recheck",
@@ -156,7 +188,7 @@ class MeterScreen(Screen[None]):
         self._link_id: str | None = None
         self._link_label = ""
         self._link: Any = None
-        self._pending: list[tuple[Any, ...]] = []
+        self._pending: list[MeterChange] = []
         self._lock = threading.Lock()
         self._saving = False
         self._save_error: str | None = None
@@ -372,7 +404,7 @@ class MeterScreen(Screen[None]):
         self._budget_limits.clear()
         if self._link is None:
             return
-        from fieldkit import meter_log
+        from fieldkit.actions import meter as meter_log
 
         for wavelength_nm in self._wavelengths:
             try:
@@ -542,7 +574,7 @@ class MeterScreen(Screen[None]):
         self._show_summary()
         self._show_limit_placeholder()
         for w in [wavelength_nm] if wavelength_nm is not None else self._wavelengths:
-            self._queue(("limit", w, self._limit_db(w), self._method))
+            self._queue(SetLimit(w, self._limit_db(w), self._method))
 
     def _show_limit_placeholder(self) -> None:
         budget = self._budget_limits.get(self.active_column.wavelength_nm)
@@ -700,8 +732,7 @@ class MeterScreen(Screen[None]):
             error=verdict.status is ref.Status.REFERENCE_PROBLEM,
         )
         self._queue(
-            (
-                "put",
+            PutReading(
                 self._fibre,
                 column.wavelength_nm,
                 direction,
@@ -710,10 +741,10 @@ class MeterScreen(Screen[None]):
                 self._method,
                 self._limit_db(column.wavelength_nm),
                 stamp,
-                {**self._details(), "at": current.set_at},
+                self._details(set_at=current.set_at),
             )
         )
-        self.action_move(1)
+        self.action_next_empty()
         self._summary_soon()
 
     @staticmethod
@@ -733,17 +764,19 @@ class MeterScreen(Screen[None]):
             return f"{head} {word} {verdict.margin_db:+.2f}"
         return f"{head} {word}, margin {verdict.margin_db:+.2f} dB"
 
-    def _details(self) -> dict[str, Any]:
+    def _details(self, set_at: datetime | None = None) -> ReferenceDetails:
         def text(field_id: str) -> str:
             return self.query_one(f"#{field_id}", Input).value.strip()
 
-        return {
-            "source_id": text("source"),
-            "meter_id": text("meter"),
-            "cords": [c.strip() for c in text("cords").split(",") if c.strip()],
-            "launch_condition": text("launch") or None,
-            "by": text("by"),
-        }
+        return ReferenceDetails(
+            source_id=text("source"),
+            meter_id=text("meter"),
+            cords=tuple(c.strip() for c in text("cords").split(",") if c.strip()),
+            launch_condition=text("launch") or None,
+            # The operator unless another name is typed for this session.
+            by=text("by") or self.app.operator,  # type: ignore[attr-defined]
+            set_at=set_at,
+        )
 
     def _show_entry_where(self) -> None:
         column = self.active_column
@@ -755,18 +788,38 @@ class MeterScreen(Screen[None]):
         replace = "" if self.narrow else "; type to replace"  # 21 columns at 44
         reading.placeholder = f"now {cell.reading_dbm:.2f} dBm{replace}" if cell else "reading, dBm"
 
+    def action_next_empty(self) -> None:
+        """After a reading: the next fibre down; past the last fibre, the first empty fibre of
+        this or a following column. When every cell is filled the cursor stays (it never wraps
+        onto a filled fibre, where the next number would be a retest)."""
+        if self._fibre < self._fibres:
+            self.action_move(1)
+            return
+        columns = self.measured_columns
+        for offset in range(len(columns)):
+            index = (self._column_index + offset) % len(columns)
+            column = columns[index]
+            key_d = column.direction or "A->B"
+            for fibre in range(1, self._fibres + 1):
+                if (fibre, column.wavelength_nm, key_d) not in self._cells:
+                    self._column_index = index
+                    self._sync_column_fields()
+                    self._fibre = fibre
+                    self.query_one(ReadingsGrid).point_at(self._fibre, self.active_column)
+                    self._show_entry_where()
+                    self._say(
+                        f"Last fibre done; on to the first empty one: fibre {fibre} "
+                        f"{column.heading}."
+                    )
+                    return
+        self._say(
+            f"Every fibre has a reading. The cursor stays on fibre {self._fibre}; a number typed "
+            "here is a retest (the earlier result is kept as superseded)."
+        )
+        self._show_entry_where()
+
     def action_move(self, step: int) -> None:
-        fibre = self._fibre + step
-        if fibre > self._fibres:
-            if step == 1:
-                # Past the last fibre: on to the first fibre of the next column.
-                self._column_index = (self._column_index + 1) % len(self.measured_columns)
-                self._sync_column_fields()
-                fibre = 1
-            else:
-                fibre = self._fibres
-        elif fibre < 1:
-            fibre = 1
+        fibre = min(max(self._fibre + step, 1), self._fibres)
         self._fibre = fibre
         self.query_one(ReadingsGrid).point_at(self._fibre, self.active_column)
         self._show_entry_where()
@@ -783,7 +836,11 @@ class MeterScreen(Screen[None]):
         if self._cells.pop((self._fibre, column.wavelength_nm, direction), None) is None:
             return
         self._refresh_cell(self._fibre, column.wavelength_nm, direction)
-        self._queue(("remove", self._fibre, column.wavelength_nm, direction))
+        self._queue(
+            ClearReading(
+                self._fibre, column.wavelength_nm, direction, by=self._details().by, at=_now()
+            )
+        )
         self._say(f"fibre {self._fibre} {column.heading}: reading removed")
         self._show_entry_where()
         self._show_summary()
@@ -840,6 +897,7 @@ class MeterScreen(Screen[None]):
         # words, fewer worst fibres) rather than wrapping, so both wavelengths' worst show.
         width = 42 if self.narrow else 0
         summaries = {s.wavelength_nm: s for s in ref.summarise(readings, limits, worst_count=3)}
+        tallies = meter_tallies(self._cells, limits, self._fibres, self._directions)
         for w in self._wavelengths:
             s = summaries.get(w)
             limit = limits[w]
@@ -847,9 +905,7 @@ class MeterScreen(Screen[None]):
             if s is None:
                 lines.append(f"{w:g} nm {limit_words}: no readings")
                 continue
-            counts = f"{s.passed} pass, {s.failed} fail"
-            if s.reference_problems:
-                counts += f", {s.reference_problems} ref?"
+            counts = tallies[w].words(short=True)
             tally = f"{s.fibres}/{self._fibres}, {counts}"
             lines.append(
                 _fit(
@@ -928,8 +984,7 @@ class MeterScreen(Screen[None]):
                 else cell.at
             )
             self._queue(
-                (
-                    "put",
+                PutReading(
                     fibre,
                     w,
                     d,
@@ -938,14 +993,14 @@ class MeterScreen(Screen[None]):
                     self._method,
                     self._limit_db(w),
                     cell.at,
-                    {**self._details(), "at": set_at},
+                    self._details(set_at=set_at),
                 )
             )
         self._rebuild_grid()
         self._sync_column_fields(force=True)
         self._show_entry_where()
         self._show_summary()
-        self._queue(("noop",))
+        self._queue(None)
 
     def _load_link(self, link: Any) -> None:
         from fieldkit.jobs.models import result_in_doubt
@@ -954,7 +1009,9 @@ class MeterScreen(Screen[None]):
             self._fibres = max(self._fibres, link.fibre_count) if self._cells else link.fibre_count
         wavelengths = sorted({round(r.wavelength_nm, 3) for r in link.results})
         directions = sorted({r.direction for r in link.results})
-        for r in sorted(link.results, key=lambda r: r.at):
+        for r in sorted(link.results, key=lambda r: r.at, reverse=True):
+            if not r.current:
+                continue  # a retest or a clearing superseded it; its history stays in the job
             reference = link.reference(r.reference_id)
             if r.reading_dbm is None or reference is None:
                 continue
@@ -963,7 +1020,8 @@ class MeterScreen(Screen[None]):
                 self._cells[key] = Cell(
                     r.reading_dbm, reference.level_dbm, r.at, in_doubt=result_in_doubt(link, r)
                 )
-        for reference in sorted(link.references, key=lambda x: x.at):
+        # The latest reference of each column is the one in use.
+        for reference in sorted(link.references, key=lambda x: x.at, reverse=True):
             if reference.kind != "initial":
                 continue
             used = [r.direction for r in link.results if r.reference_id == reference.id]
@@ -997,12 +1055,13 @@ class MeterScreen(Screen[None]):
         with self._lock:
             return len(self._pending) + (1 if self._saving else 0) if self._job_id else 0
 
-    def _queue(self, op: tuple[Any, ...]) -> None:
+    def _queue(self, change: MeterChange | None) -> None:
+        """Queue a change for the job (None: just save what is queued)."""
         if self._job_id is None:
             return
         with self._lock:
-            if op[0] != "noop":
-                self._pending.append(op)
+            if change is not None:
+                self._pending.append(change)
             start = not self._saving and bool(self._pending)
             if start:
                 self._saving = True
@@ -1030,76 +1089,11 @@ class MeterScreen(Screen[None]):
                 del self._pending[: len(ops)]
             self.app.call_from_thread(self._save_done, outcome)
 
-    def _save(self, ops: list[tuple[Any, ...]]) -> SaveOutcome:
-        from fieldkit import meter_log
-
+    def _save(self, ops: list[MeterChange]) -> Applied:
         assert self._job_id is not None and self._link_id is not None
-        link_id = self._link_id
-        outcome = SaveOutcome()
+        return apply_changes(self.app.store, self._job_id, self._link_id, ops)  # type: ignore[attr-defined]
 
-        def change(job: Any) -> None:
-            outcome.reference_ids.clear()
-            outcome.rechecks.clear()
-            link = job.link(link_id)
-            for op in ops:
-                kind = op[0]
-                if kind == "put":
-                    _, fibre, w, d, reading_dbm, reference_dbm, method, limit_db, at, details = op
-                    record = meter_log.reuse_or_add_reference(
-                        link, wavelength_nm=w, level_dbm=reference_dbm, method=method, **details
-                    )
-                    outcome.reference_ids[(w, d, reference_dbm)] = record.id
-                    meter_log.put_result(
-                        link,
-                        fibre=fibre,
-                        wavelength_nm=w,
-                        direction=d,
-                        reading_dbm=reading_dbm,
-                        reference=record,
-                        limit_db=limit_db,
-                        by=details["by"],
-                        at=at,
-                    )
-                elif kind == "remove":
-                    _, fibre, w, d = op
-                    meter_log.remove_result(link, fibre=fibre, wavelength_nm=w, direction=d)
-                elif kind == "limit":
-                    # A stored result keeps the limit of its own method: only results taken
-                    # with the method in use get the new limit.
-                    _, w, limit_db, method = op
-                    for result in link.results:
-                        if abs(result.wavelength_nm - w) <= 0.5 and result.method == method.value:
-                            result.limit_db = limit_db
-                            result.passed = ref.judge(result.loss_db, limit_db).passed
-                elif kind == "recheck":
-                    _, w, d, reference_dbm, method, level_dbm, tolerance_db, at, by = op
-                    matching = [
-                        r
-                        for r in link.references
-                        if r.kind == "initial"
-                        and abs(r.wavelength_nm - w) <= 0.5
-                        and abs(r.level_dbm - reference_dbm) < 1e-9
-                        and r.method == method.value
-                    ]
-                    if not matching:
-                        continue
-                    initial = max(matching, key=lambda r: r.at)
-                    result = meter_log.recheck_reference(
-                        link,
-                        wavelength_nm=w,
-                        level_dbm=level_dbm,
-                        tolerance_db=tolerance_db,
-                        by=by,
-                        at=at,
-                        reference_id=initial.id,
-                    )
-                    outcome.rechecks.append((f"{w:g} {d}", result.drift, len(result.in_doubt_ids)))
-            outcome.saved = len(link.results)
-
-        self.app.store.update(self._job_id, change)  # type: ignore[attr-defined]
-        return outcome
-
-    def _save_done(self, outcome: SaveOutcome) -> None:
+    def _save_done(self, outcome: Applied) -> None:
         self._save_error = None
         self._saved_at = _now()
         for (w, d, level), reference_id in outcome.reference_ids.items():
@@ -1160,6 +1154,30 @@ class MeterScreen(Screen[None]):
         )
         self._show_summary()
 
+    # -- history ------------------------------------------------------------------------
+    def action_history(self) -> None:
+        """The fibre's history in the job: every result, the superseded ones marked."""
+        from fieldkit.actions.meter import fibre_history
+        from fieldkit.jobs.reports import fmt_time, verdict
+        from fieldkit.jobs.store import StoreError
+        from fieldkit.tui.widgets.dialogs import AskDialog
+
+        if self._job_id is None or self._link_id is None:
+            self._say("Ctrl+O: choose a job first; the history is the one saved in the job.")
+            return
+        self.flush_saves()
+        try:
+            link = fieldkit_app(self).store.load(self._job_id).link(self._link_id)
+        except (StoreError, KeyError) as exc:
+            self._say(f"The history could not be read: {exc}", error=True)
+            return
+        lines = [
+            f"{fmt_time(r.at)} {r.wavelength_nm:g} nm {r.direction}: {r.loss_db:.2f} dB "
+            f"{verdict(r)}" + (f" ({r.by})" if r.by else "")
+            for r in fibre_history(link, self._fibre)
+        ] or ["No reading of this fibre is saved in the job yet."]
+        self.app.push_screen(AskDialog(f"Fibre {self._fibre} on {link.label}", lines, []))
+
     # -- recheck ------------------------------------------------------------------------
     def action_recheck(self) -> None:
         from fieldkit.tui.widgets.recheck_dialog import RecheckDialog
@@ -1199,8 +1217,7 @@ class MeterScreen(Screen[None]):
                     self._refresh_cell(fibre, w, d)
         self._say(f"{column.heading}: {drift.message}", error=not drift.within)
         self._queue(
-            (
-                "recheck",
+            Recheck(
                 column.wavelength_nm,
                 direction,
                 current.level_dbm,
@@ -1208,7 +1225,7 @@ class MeterScreen(Screen[None]):
                 level_dbm,
                 tolerance_db,
                 stamp,
-                self._details()["by"],
+                by=self._details().by,
             )
         )
         self._show_reference_note()

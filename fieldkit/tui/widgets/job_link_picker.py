@@ -10,7 +10,8 @@ Pushed by the workspaces for "save onto a job's link"::
     self.app.push_screen(JobLinkPicker(), picked)
 
 Dismisses with ``(job_id, link_id)``, or None when cancelled. A new link (by label) or a new
-job (by name) can be made from the dialog; both are saved at once.
+job (by name) can be made from the dialog, through :mod:`fieldkit.actions.jobs`; a new job is
+made only when its first link is chosen, so cancelling creates nothing.
 """
 
 from __future__ import annotations
@@ -26,6 +27,7 @@ from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from fieldkit.text.escape import terminal
+from fieldkit.tui.typed import fieldkit_app
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job
@@ -96,6 +98,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         self._title = title
         self._jobs: dict[str, Job] = {}
         self._job_id: str | None = None
+        self._pending_job = ""  # a new job's name, made with its first link
 
     @property
     def store(self) -> JobStore:
@@ -150,6 +153,8 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         from fieldkit.jobs.store import StoreError
 
         self._job_id = job_id
+        if job_id is not None:
+            self._pending_job = ""
         links = self.query_one("#jlp-links", OptionList)
         links.clear_options()
         if job_id is None:
@@ -196,19 +201,21 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
 
     @on(Input.Submitted, "#jlp-new-job")
     def _new_job(self, event: Input.Submitted) -> None:
-        from fieldkit.jobs.store import StoreError
+        from fieldkit.actions.errors import ActionError, check_text
 
-        name = event.value.strip()
+        try:
+            name = check_text(event.value, "job name")
+        except ActionError as exc:
+            self._say(str(exc))
+            return
         if not name:
             self._say("Type a name for the new job.")
             return
-        try:
-            job = self.store.create(name)
-        except StoreError as exc:
-            self._say(str(exc))
-            return
-        event.input.value = ""
-        self._reload_jobs(select=job.id)
+        # Made with its first link (Enter there, or Save here); Cancel leaves nothing behind.
+        self._pending_job = name
+        self._job_id = None
+        self.query_one("#jlp-links", OptionList).clear_options()
+        self._say(f"New job {name!r}: type its first link's label and press Enter.")
         self.query_one("#jlp-new-link", Input).focus()
 
     @on(Input.Submitted, "#jlp-new-link")
@@ -218,28 +225,35 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
             self.dismiss(choice)
 
     def _make_link(self, text: str) -> tuple[str, str] | None:
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.jobs import LinkFields, add_link, create_job
         from fieldkit.jobs.store import StoreError
 
         label = text.strip()
-        if self._job_id is None:
+        if self._job_id is None and not self._pending_job:
             self._say("Pick a job first (or type a new job name).")
             return None
         if not label:
             self._say("Type a label for the new link (e.g. the two ends).")
             return None
-        made: list[str] = []
-
-        def add(job: Job) -> None:
-            made.clear()
-            existing = job.link_by_label(label)
-            made.append(existing.id if existing else job.add_link(label).id)
-
+        by = fieldkit_app(self).operator
         try:
-            self.store.update(self._job_id, add)
-        except (StoreError, ValueError) as exc:
+            if self._job_id is None:
+                created = create_job(self.store, self._pending_job, by=by)
+                for warning in created.warnings:
+                    self.app.notify(warning, severity="warning")
+                self._job_id = created.job.id
+                self._pending_job = ""
+                existing = None
+            else:
+                existing = self.store.load(self._job_id).link_by_label(label)
+            if existing is not None:
+                return (self._job_id, existing.id)
+            _job, link = add_link(self.store, self._job_id, LinkFields(label=label), by=by)
+        except (StoreError, ActionError) as exc:
             self._say(str(exc))
             return None
-        return (self._job_id, made[0])
+        return (self._job_id, link.id)
 
     @on(Button.Pressed, "#jlp-ok")
     def _ok(self) -> None:
