@@ -63,9 +63,11 @@ class JobSummary:
     def search_text(self) -> str:
         """Id, name, customer, site, crew and link labels, case-folded (made on first use)."""
         if self._search is None:
-            self._search = _haystack(
-                self.id, self.name, self.customer, self.site, self.crew, self.link_labels
-            )
+            # One join of the row's strings (checked str by row_ok or JobSummary.of): the
+            # first filter keystroke makes one of these per job.
+            self._search = "\n".join(
+                [self.id, self.name, self.customer, self.site, *self.crew, *self.link_labels]
+            ).casefold()
         return self._search
 
     @property
@@ -221,32 +223,41 @@ def entry_ok(job_id: str, entry: Any) -> bool:
 IndexEntries = dict[str, list[Any]]
 
 
-def read_index(path: Path) -> tuple[IndexEntries, int | None]:
-    """The entries of the index file and the folder mtime it was settled at; ``({}, None)`` for
-    a missing, unreadable, damaged or outdated index (rows are checked by the caller)."""
+def read_index(path: Path) -> tuple[IndexEntries, int | None, bool]:
+    """The entries of the index file, the folder mtime it was settled at, and whether its
+    entries are newest first; ``({}, None, False)`` for a missing, unreadable, damaged or
+    outdated index (rows are checked by the caller)."""
     try:
         data = json.loads(read_regular(path, MAX_INDEX_BYTES, follow_symlinks=False))
     except (OSError, ValueError, RecursionError):
-        return {}, None
+        return {}, None, False
     if (
         not isinstance(data, dict)
         or data.get("index_version") != INDEX_VERSION
         or data.get("schema_version") != SCHEMA_VERSION
         or not isinstance(data.get("entries"), dict)
     ):
-        return {}, None
+        return {}, None, False
     entries: IndexEntries = data["entries"]
     settled = data.get("settled_folder_mtime_ns")
-    return entries, settled if type(settled) is int else None
+    return entries, settled if type(settled) is int else None, data.get("order") == NEWEST_FIRST
 
 
-def write_index(path: Path, entries: IndexEntries, settled: int | None) -> None:
+#: The ``order`` of an index whose entries are in the jobs list's order (newest update first,
+#: then id): a listing from it needs no sort.
+NEWEST_FIRST = "updated desc, id desc"
+
+
+def write_index(
+    path: Path, entries: IndexEntries, settled: int | None, newest_first: bool = False
+) -> None:
     """Write the index atomically; a failure is ignored (the index is a cache)."""
     data = json.dumps(
         {
             "index_version": INDEX_VERSION,
             "schema_version": SCHEMA_VERSION,
             "settled_folder_mtime_ns": settled,
+            "order": NEWEST_FIRST if newest_first else None,
             "entries": entries,
         },
         ensure_ascii=False,

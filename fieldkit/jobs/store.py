@@ -115,6 +115,11 @@ _QuarantineList = list[QuarantinedFile]
 _JobList = list[Job]
 
 
+def _newest_first(summary: JobSummary) -> tuple[str, str]:
+    """The jobs list's order, reversed: by last update, then id."""
+    return (summary.updated_iso, summary.id)
+
+
 class JobStore:
     """The jobs of one data folder. Nothing is created until the first write."""
 
@@ -122,6 +127,10 @@ class JobStore:
         self.jobs_dir = Path(jobs_dir)
         #: Messages about files quarantined or skipped during this store's life (newest last).
         self.problems: list[str] = []
+        # The last listing of a settled folder, with the folder's mtime and the index's stamp
+        # it was made at (see list()).
+        self._listed: tuple[tuple[int, tuple[int, int, int] | None], list[JobSummary]] | None
+        self._listed = None
 
     # -- paths ---------------------------------------------------------------------------
     def path_of(self, job_id: str) -> Path:
@@ -276,18 +285,29 @@ class JobStore:
         except FileNotFoundError:
             return []
         scan_started_ns = time.time_ns()
+        # Neither the folder nor its index changed since the last listing of the settled folder
+        # (the Jobs workspace lists on every visit): that listing holds, without reading the
+        # index again. The index's stamp is taken before it is read, so a rewrite meanwhile
+        # shows as a change next time.
+        index_stamp = self._index_stamp()
+        if not rescan and self._listed is not None:
+            if self._listed[0] == (folder_mtime_ns, index_stamp):
+                return list(self._listed[1])
+        self._listed = None
         # Loading the index makes ~100,000 small objects and no cycles: pausing the cyclic
         # garbage collector meanwhile keeps it from walking every live object several times.
         collecting = gc.isenabled()
         gc.disable()
         try:
-            index, settled_mtime_ns = read_index(self.index_path)
+            index, settled_mtime_ns, newest_first = read_index(self.index_path)
             if not rescan and settled_mtime_ns == folder_mtime_ns:
                 rows = [entry[3] for entry in index.values() if type(entry) is list and entry]
                 if len(rows) == len(index) and all(map(row_ok, rows)):
                     summaries = [JobSummary(*row) for row in rows]
-                    summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
-                    return summaries
+                    if not newest_first:  # written by an older fieldkit
+                        summaries.sort(key=_newest_first, reverse=True)
+                    self._listed = ((folder_mtime_ns, index_stamp), summaries)
+                    return list(summaries)
                 settled_mtime_ns = None  # a damaged row: check every file below
         finally:
             if collecting:
@@ -332,10 +352,23 @@ class JobStore:
                 and os.stat(self.jobs_dir).st_mtime_ns == folder_mtime_ns
             ):
                 settled = folder_mtime_ns
-        if changed or len(fresh) != len(index) or settled != settled_mtime_ns:
-            self._write_index(fresh, settled)
-        summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)
+        summaries.sort(key=_newest_first, reverse=True)
+        if changed or len(fresh) != len(index) or settled != settled_mtime_ns or not newest_first:
+            # In the list's order, so that the next listing needs no sort.
+            ordered = {s.id: fresh[s.id] for s in summaries if s.id in fresh}
+            in_order = len(ordered) == len(fresh)
+            self._write_index(ordered if in_order else fresh, settled, newest_first=in_order)
+        if settled == folder_mtime_ns:
+            self._listed = ((folder_mtime_ns, self._index_stamp()), summaries)
+            return list(summaries)
         return summaries
+
+    def _index_stamp(self) -> tuple[int, int, int] | None:
+        try:
+            st = os.stat(self.index_path)
+        except OSError:
+            return None
+        return (st.st_ino, st.st_mtime_ns, st.st_size)
 
     def _summary_of(self, path: Path) -> JobSummary | None:
         """The summary of one job file, or None (the problem is in :attr:`problems`)."""
@@ -356,7 +389,9 @@ class JobStore:
         except StoreError:
             return None
 
-    def _write_index(self, entries: IndexEntries, settled: int | None) -> None:
+    def _write_index(
+        self, entries: IndexEntries, settled: int | None, *, newest_first: bool = False
+    ) -> None:
         if not entries and not self.jobs_dir.exists():
             return
         # The index is a cache: a failed write costs a slower next listing, nothing else. It
@@ -366,7 +401,7 @@ class JobStore:
             if not held:
                 return  # another program is writing it; its version will do
             self._remove_index_temps()
-            write_index(self.index_path, entries, settled)
+            write_index(self.index_path, entries, settled, newest_first=newest_first)
 
     def _remove_index_temps(self) -> None:
         """Remove temp files of an index write that was killed (call holding the index lock)."""

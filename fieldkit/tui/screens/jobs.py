@@ -37,8 +37,9 @@ from fieldkit.jobs.reports import (
     result_in_doubt,
     verdict,
 )
+from fieldkit.jobs.search import JobFinder
 from fieldkit.jobs.splices import closure_summary
-from fieldkit.jobs.store import JobStore, JobSummary, StoreError, filter_summaries, local_date
+from fieldkit.jobs.store import JobStore, JobSummary, StoreError, local_date
 from fieldkit.jobs.today import counted
 from fieldkit.text.escape import terminal
 from fieldkit.tui.typed import fieldkit_app
@@ -153,6 +154,7 @@ class JobsScreen(Screen[None]):
     def __init__(self) -> None:
         super().__init__()
         self._summaries: list[JobSummary] = []
+        self._finder: JobFinder | None = None
         self._status: str | None = None
         self._today_only = False
         self._job: Job | None = None
@@ -261,9 +263,11 @@ class JobsScreen(Screen[None]):
             self._open(self._job.id)
 
     def _matching(self) -> list[JobSummary]:
+        if self._finder is None or self._finder.summaries is not self._summaries:
+            self._finder = JobFinder(self._summaries)  # answers as the filter is typed
         text = self.query_one("#jobs-filter", Input).value
         day = local_date(now()) if self._today_only else None
-        return filter_summaries(self._summaries, text=text, status=self._status, on_date=day)
+        return self._finder.find(text, self._status, day)
 
     def _refilter(self) -> None:
         matches = self._matching()
