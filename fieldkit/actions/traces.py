@@ -1,4 +1,5 @@
-"""OTDR results into a job: splice losses into a closure's splice log, closures as landmarks.
+"""OTDR results into a job: splice losses into a closure's splice log, closures as landmarks,
+and the verdict limits a link's presets give.
 
 The splice log is written only through :func:`fieldkit.actions.splices.record_otdr_losses`
 (one change through the job store, under its lock). A splice that already holds a different
@@ -14,14 +15,18 @@ pairing tolerance plus 3 % of the route distance and 20 m (common practice for c
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 from fieldkit.actions.splices import OtdrFill, OtdrLoss, find_closure, find_link, record_otdr_losses
 from fieldkit.calc.units import InputError
+from fieldkit.jobs.models import Link
+from fieldkit.jobs.splices import current_limit
+from fieldkit.presets import PresetLibrary
 from fieldkit.traces.analysis import TraceResult
 from fieldkit.traces.pairing import PairResult, default_tolerance_m
 from fieldkit.traces.session import Closure as Landmark
+from fieldkit.traces.verdicts import Limits
 
 
 class TraceJobError(InputError):
@@ -153,3 +158,184 @@ def closure_landmarks(store: Any, job_id: str, link: str) -> list[Landmark]:
         for c in target.closures
         if c.route_distance_m is not None
     ]
+
+
+# -- verdict limits from presets and a link ----------------------------------------------------
+#: The presets the limits come from when neither the link nor the user names one: the shipped
+#: splice and connector grades the budget uses by default, G.652.D, and the IEC 61753-1 return
+#: loss grade of each polish (UPC: grade 2, -45 dB; APC: grade 1, -60 dB; from memory).
+DEFAULT_FIBRE = "G.652.D"
+DEFAULT_SPLICE = "fusion"
+DEFAULT_CONNECTOR = "TIA-568.3-D"
+REFLECTANCE_BY_POLISH = {
+    "UPC": "IEC 61753-1 return loss grade 2",
+    "APC": "IEC 61753-1 return loss grade 1",
+}
+
+
+def _description(link: Link | None) -> dict[str, Any]:
+    if link is None or link.budget is None:
+        return {}
+    return dict(link.budget.description)
+
+
+def _fibre_names(link: Link | None) -> tuple[list[str], str]:
+    """The link's fibre type(s) and where they were read: its fibre type, else its budget's
+    segments."""
+    if link is None:
+        return [], ""
+    if link.fibre_type.strip():
+        return [link.fibre_type.strip()], "the link's fibre type"
+    names = []
+    for seg in _description(link).get("segments") or []:
+        if isinstance(seg, dict) and isinstance(seg.get("fibre"), str):
+            if seg["fibre"] not in names:
+                names.append(seg["fibre"])
+    return names, "the link's budget"
+
+
+def _grade(table: Any) -> str | None:
+    if isinstance(table, dict) and isinstance(table.get("grade"), str):
+        return str(table["grade"])
+    return None
+
+
+def trace_limits(
+    library: PresetLibrary,
+    link: Link | None = None,
+    *,
+    origin: str = "",
+    fibre_type: str | None = None,
+    polish: str | None = None,
+    reflectance: str | None = None,
+    splice_max_db: float | None = None,
+    connector_max_db: float | None = None,
+) -> Limits:
+    """The limits a trace's events and sections are judged against, each with its source.
+
+    In order, the first that gives a value wins: what the user typed (the keyword arguments),
+    the link (its splice limit, its fibre type, its budget's fibre, connector and splice grades
+    and its application, whose first word names a reflectance preset: ``10GBASE-LR`` takes
+    "10GBASE-LR channel", ``GPON Class B+`` takes "GPON ODN"), then the defaults above. A
+    fibre type that is no preset is said, not guessed: the default fibre judges, and its
+    source says why.
+
+    Raises
+    ------
+    InputError
+        A typed preset name (``fibre_type``, ``reflectance``) that does not exist.
+    """
+    desc = _description(link)
+    default_origin = "the link's presets" if link is not None else "the shipped presets"
+    lim = Limits(origin=origin or default_origin)
+    notes: dict[str, str] = {}
+
+    # fibre: attenuation maximum per wavelength (the highest of a mixed link's fibres, so a
+    # section of the weaker fibre is not failed against the stronger one's maximum)
+    names, where = ([fibre_type], "typed") if fibre_type else _fibre_names(link)
+    fibres = []
+    for name in names:
+        try:
+            fibres.append(library.find("fibres", name))
+        except InputError:
+            if fibre_type:
+                raise
+            notes["fibre"] = f"{where} {name!r} is no fibre preset"
+    if not fibres:
+        fibres = [library.find("fibres", DEFAULT_FIBRE)]
+        where = "default" + (f"; {notes['fibre']}" if "fibre" in notes else "")
+    table: dict[float, float] = {}
+    for f in fibres:
+        for nm, value in f.attenuation_max.items():
+            if float(nm) in f.estimated_nm:
+                continue  # no standard gives a maximum there: not judged against an estimate
+            table[float(nm)] = max(table.get(float(nm), value), value)
+    label = " / ".join(f.name for f in fibres)
+    lim = replace(
+        lim,
+        attenuation_max_db_per_km=table,
+        attenuation_source=f"{label} preset ({where})",
+    )
+
+    # splices: the link's own limit, else its budget's splice grade, else the default preset
+    if splice_max_db is not None:
+        lim = replace(lim, splice_max_db=splice_max_db, splice_source="typed")
+    else:
+        own = current_limit(link.splice_limits, "fusion") if link is not None else None
+        grades = [g for t in (desc.get("splices") or []) if (g := _grade(t)) is not None]
+        if own is not None:
+            what = f"{own.preset} preset" if own.preset else "typed"
+            lim = replace(
+                lim,
+                splice_max_db=own.loss_max_db,
+                splice_source=f"{what} (the link's fusion splice limit)",
+            )
+        else:
+            grade_s, why = (
+                (grades[0], "the link's budget") if grades else (DEFAULT_SPLICE, "default")
+            )
+            found = library.find("splices", grade_s)
+            lim = replace(
+                lim, splice_max_db=found.loss_max_db, splice_source=f"{found.name} preset ({why})"
+            )
+
+    # connectors: the budget's grade, or the loss it was given, else the default grade
+    if connector_max_db is not None:
+        lim = replace(lim, connector_max_db=connector_max_db, connector_source="typed")
+    else:
+        grade = _grade(desc.get("connectors"))
+        loss = desc.get("connector_loss_db")
+        if grade is None and isinstance(loss, int | float) and not isinstance(loss, bool):
+            lim = replace(
+                lim,
+                connector_max_db=float(loss),
+                connector_source="the link's budget (a loss per mated pair, no grade)",
+            )
+        else:
+            name, why = (grade, "the link's budget") if grade else (DEFAULT_CONNECTOR, "default")
+            found_c = library.find("connectors", name)
+            lim = replace(
+                lim,
+                connector_max_db=found_c.loss_max_db,
+                connector_source=f"{found_c.name} preset ({why})",
+            )
+
+    # reflectance: a typed preset, else the link's application's, else the polish's grade
+    chosen_polish = polish or "UPC"
+    lim = replace(lim, polish="APC" if chosen_polish == "APC" else "UPC")
+    preset = None
+    why = "typed"
+    if reflectance:
+        preset = library.find("reflectance", reflectance)
+    else:
+        app = desc.get("application")
+        if isinstance(app, str) and app.split():
+            first = app.split()[0].casefold()
+            for candidate in library.reflectance.values():
+                if candidate.name.split()[0].casefold() == first:
+                    preset, why = candidate, f"the link's application {app}"
+                    break
+        if preset is None:
+            try:
+                preset = library.find("reflectance", REFLECTANCE_BY_POLISH[lim.polish])
+                why = f"{lim.polish} connectors" + (", default" if polish is None else "")
+            except InputError:
+                preset = None  # the user's presets replaced the kind: keep the built-in figure
+    if preset is not None:
+        lim = replace(
+            lim,
+            reflectance_max_db=preset.reflectance_max_db,
+            reflectance_source=f"{preset.name} preset ({why})",
+            orl_min_db=preset.orl_min_db,
+            orl_source=f"{preset.name} preset" if preset.orl_min_db is not None else "",
+        )
+    return lim
+
+
+def link_limits(store: Any, library: PresetLibrary, job_id: str, link: str, **typed: Any) -> Limits:
+    """:func:`trace_limits` of a job's link (by label or id), its origin naming both."""
+    job = store.load(job_id)
+    target = find_link(job, link)
+    return trace_limits(
+        library, target, origin=f"link {target.label!r} of job {job.name!r}", **typed
+    )

@@ -44,6 +44,7 @@ def register(subparsers: Any) -> None:
         "--html", metavar="OUT", help="also write a self-contained HTML page (trace as SVG)"
     )
     _common(show)
+    _job_options(show)
     show.set_defaults(func=run_show)
 
     pair = sub.add_parser(
@@ -65,6 +66,7 @@ def register(subparsers: Any) -> None:
         "larger of 5 m, four samples and one pulse)",
     )
     _common(pair)
+    _job_options(pair)
     pair.set_defaults(func=run_pair)
 
     folder = sub.add_parser(
@@ -83,6 +85,7 @@ def register(subparsers: Any) -> None:
         help="also write the table as CSV (one row per fibre and wavelength)",
     )
     _common(folder)
+    _job_options(folder)
     folder.set_defaults(func=run_folder)
 
     fill = sub.add_parser(
@@ -156,7 +159,18 @@ def _common(p: argparse.ArgumentParser) -> None:
     )
     # the spelling other commands took first; hidden so that --fibre can mean a fibre number
     lim.add_argument("--fiber", dest="fibre_type", help=argparse.SUPPRESS)
-    lim.add_argument("--polish", choices=("UPC", "APC"), default="UPC", help="connector polish")
+    lim.add_argument(
+        "--polish",
+        choices=("UPC", "APC"),
+        default=None,
+        help="connector polish: its IEC 61753-1 return-loss grade limits reflectance (UPC)",
+    )
+    lim.add_argument(
+        "--reflectance",
+        metavar="NAME",
+        help="a reflectance preset limiting reflective events and ORL (e.g. 'GPON ODN'; "
+        "`fieldkit presets reflectance` lists them)",
+    )
     lim.add_argument("--splice-max", metavar="DB", help="splice loss maximum (0.3 dB)")
     lim.add_argument("--connector-max", metavar="DB", help="connector loss maximum (0.75 dB)")
     txt = p.add_argument_group("text traces and files")
@@ -172,6 +186,12 @@ def _common(p: argparse.ArgumentParser) -> None:
         "--no-checksum", action="store_true", help="read a record whose checksum does not match"
     )
     add_data_dir(p)
+
+
+def _job_options(p: argparse.ArgumentParser) -> None:
+    g = p.add_argument_group("a job's link (its presets give the verdict limits)")
+    g.add_argument("--job", metavar="ID", help="the job (id or its start)")
+    g.add_argument("--link", metavar="LINK", help="the link's label or id")
 
 
 def _num(text: str | None, what: str, lo: float, hi: float) -> float | None:
@@ -192,7 +212,6 @@ def settings_from(args: argparse.Namespace) -> tuple[Settings, ReadOptions]:
     from fieldkit.calc.otdr import Thresholds
     from fieldkit.traces.analysis import Settings
     from fieldkit.traces.files import ReadOptions
-    from fieldkit.traces.verdicts import Limits
 
     th = Thresholds()
     splice = _num(args.splice_threshold, "--splice-threshold", 0.001, 2.0)
@@ -206,15 +225,7 @@ def settings_from(args: argparse.Namespace) -> tuple[Settings, ReadOptions]:
     )
     if th.end_of_fibre_db <= th.splice_loss_db:
         raise CommandError("--end-threshold must be larger than --splice-threshold")
-    limits = Limits(polish=args.polish)
-    if args.fibre_type:
-        limits = _fibre_limits(args, limits)
-    smax = _num(args.splice_max, "--splice-max", 0.0, 10.0)
-    cmax = _num(args.connector_max, "--connector-max", 0.0, 10.0)
-    if smax is not None:
-        limits = replace(limits, splice_max_db=smax, splice_source="typed")
-    if cmax is not None:
-        limits = replace(limits, connector_max_db=cmax, connector_source="typed")
+    limits = limits_from(args)
     settings = Settings(
         thresholds=th,
         loss_method=args.loss_method,
@@ -233,23 +244,58 @@ def settings_from(args: argparse.Namespace) -> tuple[Settings, ReadOptions]:
     return settings, options
 
 
-def _fibre_limits(args: argparse.Namespace, limits: Any) -> Any:
-    from dataclasses import replace
-
+def limits_from(args: argparse.Namespace) -> Any:
+    """The verdict limits: typed options first, then the presets of ``--job``/``--link``, then
+    the default presets (fieldkit.actions.traces.trace_limits says which wins)."""
     from fieldkit import locations
+    from fieldkit.actions.traces import trace_limits
+    from fieldkit.calc.units import InputError
     from fieldkit.commands.common import warn_preset_problems
     from fieldkit.presets import load_presets
 
     library = load_presets(locations.config_dir(getattr(args, "config_dir", None)))
     warn_preset_problems(args, library.problems)
-    fibre = library.fibres.get(args.fibre_type)
-    if fibre is None:
-        names = ", ".join(sorted(library.fibres))
-        raise CommandError(f"--fibre-type: no fibre preset {args.fibre_type!r} (presets: {names})")
-    table = {float(k): float(v) for k, v in fibre.attenuation_max.items()}
-    return replace(
-        limits, attenuation_max_db_per_km=table, attenuation_source=f"{fibre.name} preset"
-    )
+    typed = {
+        "fibre_type": args.fibre_type,
+        "polish": args.polish,
+        "reflectance": args.reflectance,
+        "splice_max_db": _num(args.splice_max, "--splice-max", 0.0, 10.0),
+        "connector_max_db": _num(args.connector_max, "--connector-max", 0.0, 10.0),
+    }
+    try:
+        if args.fibre_type:
+            library.find("fibres", args.fibre_type)
+    except InputError as exc:
+        raise CommandError(f"--fibre-type: {exc}") from None
+    try:
+        if args.reflectance:
+            library.find("reflectance", args.reflectance)
+    except InputError as exc:
+        raise CommandError(f"--reflectance: {exc}") from None
+    link, origin = None, ""
+    if getattr(args, "job", None) or getattr(args, "link", None):
+        link, origin = _job_link(args)
+    return trace_limits(library, link, origin=origin, **typed)
+
+
+def _job_link(args: argparse.Namespace) -> tuple[Any, str]:
+    """The link named by --job and --link, and the words naming it."""
+    from fieldkit.actions.splices import find_link
+    from fieldkit.calc.units import InputError
+    from fieldkit.commands.common import plain_text
+    from fieldkit.commands.meter_record import open_store
+    from fieldkit.jobs.store import StoreError
+
+    if not args.job or not args.link:
+        raise CommandError("a job's link needs both --job and --link")
+    plain_text(args.link, "--link")
+    store = open_store(args)
+    try:
+        job = store.load(store.resolve(args.job))
+        link = find_link(job, args.link)
+    except (StoreError, InputError) as exc:
+        raise CommandError(str(exc)) from None
+    return link, f"link {link.label!r} of job {job.name!r}"
 
 
 def _analyse(path: str, args: argparse.Namespace) -> Any:

@@ -9,12 +9,12 @@ log, reports). Kinds: ``splice`` (non-reflective loss: a fusion splice, a bend),
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 from fieldkit.calc import otdr
 from fieldkit.traces.model import Trace, TraceFileError
-from fieldkit.traces.verdicts import Limits, event_verdict, section_verdict
+from fieldkit.traces.verdicts import Limits, event_verdict, orl_verdict, section_verdict
 
 #: Group index assumed when neither the file nor the user gives one (G.652 at 1550 nm,
 #: typical, from memory); said in the results.
@@ -93,6 +93,16 @@ class TraceResult:
         return self.analysis.length_m
 
     @property
+    def limits(self) -> Limits:
+        """The limits the verdicts used, at this trace's wavelength."""
+        return self.settings.limits.for_wavelength(self.trace.wavelength_nm)
+
+    @property
+    def orl_verdict(self) -> tuple[str, str]:
+        """The whole trace's optical return loss against the limits' minimum."""
+        return orl_verdict(self.analysis.orl_db, self.limits)
+
+    @property
     def end_event(self) -> TraceEvent | None:
         return self.events[-1] if self.events and self.events[-1].kind == "end" else None
 
@@ -114,6 +124,7 @@ class TraceResult:
             "length_m": a.length_m,
             "total_loss_db": a.total_loss_db,
             "orl_db": a.orl_db,
+            "orl_verdict": self.orl_verdict[0],
             "noise_floor_db": a.noise_floor_db,
             "front_dead_zone_m": a.front_dead_zone_m,
             "backscatter_db": self.backscatter_db,
@@ -165,6 +176,7 @@ class TraceResult:
                 }
                 for e in t.instrument_events
             ],
+            "limits": self.limits.to_json(),
             "notes": list(self.notes),
         }
 
@@ -216,6 +228,25 @@ def analyse_trace(trace: Trace, settings: Settings | None = None) -> TraceResult
             f"no end of fibre found (no loss of {s.thresholds.end_of_fibre_db:g} dB or more): "
             "the fibre may be longer than the trace"
         )
+    events, sections = _judged(trace, a, s)
+    return TraceResult(
+        trace=trace,
+        analysis=a,
+        events=events,
+        sections=sections,
+        settings=s,
+        backscatter_db=bsc,
+        backscatter_source=bsc_source,
+        group_index=n_g,
+        resolution_m=resolution,
+        notes=tuple(notes),
+    )
+
+
+def _judged(
+    trace: Trace, a: otdr.Analysis, s: Settings
+) -> tuple[tuple[TraceEvent, ...], tuple[SectionResult, ...]]:
+    """Events and sections of an analysis with their verdicts against ``s.limits``."""
     limits = s.limits.for_wavelength(trace.wavelength_nm)
     events = []
     for k, e in enumerate(a.events, start=1):
@@ -251,15 +282,11 @@ def analyse_trace(trace: Trace, settings: Settings | None = None) -> TraceResult
                 k, sec.from_m, sec.to_m, sec.attenuation_db_per_km, sec.loss_db, verdict, reason
             )
         )
-    return TraceResult(
-        trace=trace,
-        analysis=a,
-        events=tuple(events),
-        sections=tuple(sections),
-        settings=s,
-        backscatter_db=bsc,
-        backscatter_source=bsc_source,
-        group_index=n_g,
-        resolution_m=resolution,
-        notes=tuple(notes),
-    )
+    return tuple(events), tuple(sections)
+
+
+def rejudge(result: TraceResult, limits: Limits) -> TraceResult:
+    """The same analysis judged against other limits (no signal work is repeated)."""
+    settings = replace(result.settings, limits=limits)
+    events, sections = _judged(result.trace, result.analysis, settings)
+    return replace(result, settings=settings, events=events, sections=sections)

@@ -20,10 +20,11 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace
+from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace, rejudge
 from fieldkit.traces.files import TRACE_SUFFIXES, ReadOptions, read_trace
 from fieldkit.traces.model import Trace, TraceFileError
 from fieldkit.traces.pairing import PairResult, pair
+from fieldkit.traces.verdicts import Limits
 
 WAVELENGTHS_NM = {850, 1300, 1310, 1383, 1490, 1550, 1577, 1625, 1650}
 _DIRECTION = re.compile(r"(?i)(?:^|[^a-z])(a-?b|b-?a|a-?to-?b|b-?to-?a)(?:[^a-z]|$)")
@@ -209,6 +210,20 @@ def analyse_folder(
                 row.problems.append(str(exc))
     ordered = sorted(rows.values(), key=lambda r: (_natural(r.fibre), r.wavelength_nm or 0.0))
     return FolderResult(str(folder), ordered, unread, len(files))
+
+
+def rejudge_folder(result: FolderResult, limits: Limits) -> FolderResult:
+    """The same folder judged against other limits: verdicts again, no trace read or analysed
+    again."""
+    rows = []
+    for row in result.rows:
+        a = rejudge(row.a_to_b, limits) if row.a_to_b is not None else None
+        b = rejudge(row.b_to_a, limits) if row.b_to_a is not None else None
+        paired = None
+        if row.paired is not None and a is not None and b is not None:
+            paired = pair(a, b, tolerance_m=row.paired.tolerance_m)
+        rows.append(FibreRow(row.fibre, row.wavelength_nm, a, b, paired, list(row.problems)))
+    return FolderResult(result.folder, rows, list(result.unread), result.files)
 
 
 def _natural(label: str) -> tuple[int, str]:

@@ -9,6 +9,7 @@ from __future__ import annotations
 from fieldkit.traces.analysis import TraceResult
 from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.pairing import PairResult
+from fieldkit.traces.verdicts import Limits
 
 MINUS = "-"  # the project prints ASCII minus signs in tables so they paste into spreadsheets
 
@@ -109,8 +110,19 @@ def trace_lines(r: TraceResult, width: int = 80) -> list[str]:
         *event_lines(r, width),
         "",
         *section_lines(r),
+        *orl_lines(r),
+        "",
+        *limits_lines(r.limits),
         *([""] + instrument_lines(r) if r.trace.instrument_events else []),
     ]
+
+
+def orl_lines(r: TraceResult) -> list[str]:
+    """The ORL verdict, where a minimum was given."""
+    verdict, reason = r.orl_verdict
+    if r.limits.orl_min_db is None:
+        return []
+    return [f"ORL: {verdict} ({reason})"]
 
 
 def pair_lines(p: PairResult, width: int = 80) -> list[str]:
@@ -144,6 +156,7 @@ def pair_lines(p: PairResult, width: int = 80) -> list[str]:
                 f"   A→B {fmt(e.loss_ab_db, 3)} B→A {fmt(e.loss_ba_db, 3)} {e.verdict}"[:width]
             )
     lines.extend(f"note: {n}" for n in p.notes)
+    lines.extend(["", *limits_lines(p.limits)])
     return lines
 
 
@@ -172,4 +185,48 @@ def folder_lines(result: FolderResult, width: int = 80) -> list[str]:
             lines.append(f"   {problem}"[: max(width, 20)])
     for _name, problem in result.unread:
         lines.append(f"unread: {problem}")
+    seen: set[float | None] = set()
+    for row in result.rows:
+        one = row.a_to_b or row.b_to_a
+        if one is None or row.wavelength_nm in seen:
+            continue
+        seen.add(row.wavelength_nm)
+        lines.extend(["", *limits_lines(one.limits, row.wavelength_nm)])
     return lines
+
+
+def limits_lines(limits: Limits, wavelength_nm: float | None = None) -> list[str]:
+    """Which limits the verdicts used and where each came from (one line per limit)."""
+    at = f" at {wavelength_nm:g} nm" if wavelength_nm else ""
+
+    def value(v: float | None, unit: str) -> str:
+        return "none" if v is None else f"{v:g} {unit}"
+
+    return [
+        f"limits{at} from {limits.origin}:",
+        f"  splice max {value(limits.splice_max_db, 'dB')}: {limits.splice_source}",
+        f"  connector max {value(limits.connector_max_db, 'dB')}: {limits.connector_source}",
+        f"  reflectance max {value(limits.reflectance_limit_db, 'dB')}: "
+        f"{limits.reflectance_source}",
+        f"  attenuation max {value(limits.attenuation_here_db_per_km, 'dB/km')}: "
+        f"{limits.attenuation_source}",
+        *(
+            [f"  ORL min {value(limits.orl_min_db, 'dB')}: {limits.orl_source}"]
+            if limits.orl_min_db is not None
+            else []
+        ),
+    ]
+
+
+def limits_summary(limits: Limits) -> str:
+    """The limits in one short line, for a status line: ``limits (link L1): splice 0.3 ...``."""
+
+    def value(v: float | None) -> str:
+        return "-" if v is None else f"{v:g}"
+
+    return (
+        f"limits ({limits.origin}): splice {value(limits.splice_max_db)}, connector "
+        f"{value(limits.connector_max_db)}, reflectance {value(limits.reflectance_limit_db)} dB, "
+        f"{value(limits.attenuation_here_db_per_km)} dB/km"
+        + (f", ORL {value(limits.orl_min_db)} dB" if limits.orl_min_db is not None else "")
+    )

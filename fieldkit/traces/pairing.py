@@ -53,6 +53,8 @@ class PairResult:
     tolerance_m: float
     events: tuple[PairedEvent, ...]
     notes: tuple[str, ...]
+    #: The limits the verdicts used, at the pair's wavelength.
+    limits: Limits = Limits()
 
     @property
     def total_loss_db(self) -> float | None:
@@ -92,6 +94,7 @@ class PairResult:
                 }
                 for e in self.events
             ],
+            "limits": self.limits.to_json(),
             "notes": list(self.notes),
         }
 
@@ -256,6 +259,7 @@ def pair(
         tolerance_m=tol,
         events=tuple(events),
         notes=tuple(notes),
+        limits=lim,
     )
 
 

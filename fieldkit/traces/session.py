@@ -4,18 +4,19 @@ the hand-off of an event to the fault workspace. Plain state, tested without a t
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
 import numpy.typing as npt
 
-from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace
+from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace, rejudge
 from fieldkit.traces.files import ReadOptions, read_trace
-from fieldkit.traces.folder import FibreRow, FolderResult, Progress, analyse_folder
-from fieldkit.traces.lines import KIND_LABELS, fmt
+from fieldkit.traces.folder import FibreRow, FolderResult, Progress, analyse_folder, rejudge_folder
+from fieldkit.traces.lines import KIND_LABELS, fmt, limits_summary
 from fieldkit.traces.model import TraceFileError
 from fieldkit.traces.pairing import PairResult, pair
+from fieldkit.traces.verdicts import Limits
 
 
 @dataclass(frozen=True, slots=True)
@@ -105,6 +106,25 @@ class TraceSession:
         self.paired = row.paired
         self.shown = "AB"
         return self.summary()
+
+    def set_limits(self, limits: Limits) -> None:
+        """Judge what is open (and whatever is opened next) against ``limits`` (a job link's
+        presets): verdicts again, no trace read or analysed again."""
+        self.settings = replace(self.settings, limits=limits)
+        if self.folder is not None:
+            self.folder = rejudge_folder(self.folder, limits)
+        if self.a is not None:
+            self.a = rejudge(self.a, limits)
+        if self.b is not None:
+            self.b = rejudge(self.b, limits)
+        if self.paired is not None and self.a is not None and self.b is not None:
+            self.paired = pair(self.a, self.b, tolerance_m=self.paired.tolerance_m)
+
+    def limits_summary(self) -> str:
+        """Which limits judge the shown trace, in one line."""
+        r = self.current
+        limits = r.limits if r is not None else self.settings.limits
+        return limits_summary(limits)
 
     # -- what is shown ---------------------------------------------------------------------
     @property

@@ -9,7 +9,7 @@ the shipped presets use. Verdict words follow the project's counting rule: ``pas
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import Literal
+from typing import Any, Literal
 
 Polish = Literal["UPC", "APC"]
 
@@ -43,6 +43,28 @@ class Limits:
     attenuation_source: str = "ITU-T G.652.D cabled maximum (from memory)"
     # the one value for the wavelength at hand, set by for_wavelength()
     attenuation_here_db_per_km: float | None = None
+    #: The lowest optical return loss of the whole trace, dB (None: not judged).
+    orl_min_db: float | None = None
+    orl_source: str = ""
+    #: Where the set as a whole came from: "defaults", or the job and link it was taken from.
+    origin: str = "defaults"
+
+    def to_json(self) -> dict[str, Any]:
+        """The limits as used (at the wavelength set by :meth:`for_wavelength`), with sources."""
+        return {
+            "origin": self.origin,
+            "splice_max_db": self.splice_max_db,
+            "splice_source": self.splice_source,
+            "connector_max_db": self.connector_max_db,
+            "connector_source": self.connector_source,
+            "polish": self.polish,
+            "reflectance_max_db": self.reflectance_limit_db,
+            "reflectance_source": self.reflectance_source,
+            "attenuation_max_db_per_km": self.attenuation_here_db_per_km,
+            "attenuation_source": self.attenuation_source,
+            "orl_min_db": self.orl_min_db,
+            "orl_source": self.orl_source,
+        }
 
     @property
     def reflectance_limit_db(self) -> float | None:
@@ -123,3 +145,15 @@ def section_verdict(
             f"{attenuation_db_per_km:.3f} > {limit:g} dB/km ({limits.attenuation_source})"
         )
     return "pass", f"within {limit:g} dB/km"
+
+
+def orl_verdict(orl_db: float | None, limits: Limits) -> tuple[str, str]:
+    """The whole trace's optical return loss against the lowest one allowed (a larger return
+    loss reflects less)."""
+    if limits.orl_min_db is None:
+        return "no limit", "no return loss minimum"
+    if orl_db is None:
+        return "no limit", "return loss not measurable on this trace"
+    if orl_db < limits.orl_min_db:
+        return "fail", f"ORL {orl_db:.1f} < {limits.orl_min_db:g} dB ({limits.orl_source})"
+    return "pass", f"ORL within {limits.orl_min_db:g} dB minimum"

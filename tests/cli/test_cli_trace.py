@@ -75,7 +75,7 @@ def test_folder_table_and_json(cable: Path):
         (("show", "missing.sor"), "no such file"),
         (("show", "{cable}/F001_1550_AB.sor", "--splice-threshold", "nan"), "splice-threshold"),
         (("show", "{cable}/F001_1550_AB.sor", "--end-threshold", "0,1"), "outside"),
-        (("show", "{cable}/F001_1550_AB.sor", "--fibre-type", "nonesuch"), "no fibre preset"),
+        (("show", "{cable}/F001_1550_AB.sor", "--fibre-type", "nonesuch"), "unknown fibre"),
         (("pair", "{cable}/F001_1550_AB.sor", "{cable}/broken.sor"), "broken.sor"),
         (("folder", "{cable}/F001_1550_AB.sor"), "not a folder"),
         (("folder", "{empty}"), "no trace files"),

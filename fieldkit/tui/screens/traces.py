@@ -7,6 +7,8 @@ numbers come from :mod:`fieldkit.traces`, the same as ``fieldkit trace``.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -146,6 +148,7 @@ class TracesScreen(Screen[None]):
 
         path_a = self.query_one("#traces-a", Input).value
         path_b = self.query_one("#traces-b", Input).value
+        self._shipped_limits()
         if path_a.strip() and Path(path_a.strip()).expanduser().is_dir():
             self._open_folder(path_a)
             return
@@ -158,7 +161,20 @@ class TracesScreen(Screen[None]):
         self.selected = None
         self._say(summary)
         self._show()
+        self.query_one("#traces-note", Static).update(terminal(self.session.limits_summary()))
         self.query_one("#traces-table", DataTable).focus()
+
+    def _shipped_limits(self) -> None:
+        """Before the first open, the shipped presets (and the user's own) give the limits."""
+        from fieldkit.actions.traces import trace_limits
+        from fieldkit.presets import load_presets
+
+        if self.session.settings.limits.origin == "defaults":
+            try:
+                library = load_presets(fieldkit_app(self).config_dir)
+                self.session.settings = replace(self.session.settings, limits=trace_limits(library))
+            except Exception:  # noqa: BLE001 - presets replaced by the user's: keep built-ins
+                return
 
     def _open_folder(self, path: str) -> None:
         bar = self.query_one("#traces-progress", ProgressBar)
@@ -318,6 +334,7 @@ class TracesScreen(Screen[None]):
         except Exception as exc:  # noqa: BLE001 - a store or lookup problem, shown as one line
             self._say(str(exc), True)
             return
+        self._judge_by_link(choice)
         closures = [(c.name, c.route_distance_m) for c in link.closures]
         if not closures:
             self._say(f"link {link.label}: no closures yet; add them in the splice log", True)
@@ -386,6 +403,21 @@ class TracesScreen(Screen[None]):
             f"Splice log of {closure}: {len(done.fill.written)} one-way losses written "
             f"({len(done.matched)} fibres{missing})"
         )
+
+    def _judge_by_link(self, choice: tuple[str, str]) -> None:
+        """The chosen link's presets judge the open traces from now on; say which limits."""
+        from fieldkit.actions.traces import link_limits
+        from fieldkit.presets import load_presets
+
+        app = fieldkit_app(self)
+        try:
+            limits = link_limits(app.store, load_presets(app.config_dir), *choice)
+        except Exception as exc:  # noqa: BLE001 - a store or preset problem, shown as one line
+            self._say(str(exc), True)
+            return
+        self.session.set_limits(limits)
+        self._show()
+        self.query_one("#traces-note", Static).update(terminal(self.session.limits_summary()))
 
     def action_back(self) -> None:
         s = self.session
