@@ -13,11 +13,11 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from textual.app import App, SystemCommand
-from textual.binding import Binding
 from textual.css.stylesheet import Stylesheet
 from textual.screen import Screen
 
 from fieldkit import __version__, locations, settings
+from fieldkit.tui import keys
 from fieldkit.tui.themes import HIGH_CONTRAST, register_themes
 from fieldkit.tui.workspaces import WORKSPACES
 
@@ -50,32 +50,9 @@ class FieldkitApp(App[None]):
     CSS_PATH = "app.tcss"
     HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (72, "-wide")]
     MODES = {ws.mode: ws.make_screen for ws in WORKSPACES}
-    BINDINGS = [
-        Binding(
-            "f1", "show_help", "Help", id="app.help", tooltip="Keys and safety cautions", show=False
-        ),
-        *[
-            Binding(
-                ws.key,
-                f"workspace('{ws.mode}')",
-                ws.title,
-                id=f"workspace.{ws.mode}",
-                tooltip=ws.help,
-                # The workspace bar at the top shows these keys, and takes clicks.
-                show=False,
-            )
-            for ws in WORKSPACES
-        ],
-        Binding(
-            "ctrl+t",
-            "toggle_sunlight",
-            "Sunlight",
-            id="app.sunlight",
-            tooltip="Switch to the high-contrast theme for direct sunlight, and back",
-        ),
-        # Quit is in the help page and the palette; the footer's room goes to the workspaces.
-        Binding("ctrl+q", "quit", "Quit", id="app.quit", priority=True, show=False),
-    ]
+    # From the key table: Help, a function key per workspace, sunlight, quit (every screen's
+    # footer shows Quit first; see fieldkit.tui.keys).
+    BINDINGS = keys.app_bindings(WORKSPACES)
 
     def __init__(
         self,
@@ -287,7 +264,7 @@ class FieldkitApp(App[None]):
         for ws in WORKSPACES:
             yield SystemCommand(
                 f"Open {ws.title}",
-                f"{ws.help} ({ws.key.upper()})",
+                f"{ws.help} ({keys.display(ws.key)})",
                 partial(self.action_workspace, ws.mode),
             )
         yield SystemCommand(

@@ -1,7 +1,8 @@
 """The workspaces of the app: one row each. A new workspace adds its row here.
 
-The app builds its modes, its footer keys and its command-palette entries from this table, so a
-workspace is reachable by one key and from the palette as soon as it is listed.
+The app builds its modes, its keys and its command-palette entries from this table, so a
+workspace is reachable by one key and from the palette as soon as it is listed. Its key comes from
+the key table (``fieldkit.tui.keys.PLACES``), which reserves one for each workspace being built.
 """
 
 from __future__ import annotations
@@ -11,15 +12,21 @@ from dataclasses import dataclass
 
 from textual.screen import Screen
 
+from fieldkit.tui import keys
+
 
 @dataclass(frozen=True, slots=True)
 class Workspace:
     mode: str  # the mode name, also the command-palette id
-    key: str  # the one key that opens it (shown in the footer)
     title: str  # the footer label and the palette title
     help: str  # the palette help line
     module: str  # module of the screen class
     screen_class: str
+
+    @property
+    def key(self) -> str:
+        """The one key that opens it, from the key table (fieldkit.tui.keys.PLACES)."""
+        return keys.place_key(self.mode)
 
     def make_screen(self) -> Screen:
         cls = getattr(importlib.import_module(self.module), self.screen_class)
@@ -40,7 +47,6 @@ class Workspace:
 WORKSPACES: tuple[Workspace, ...] = (
     Workspace(
         "convert",
-        "f2",
         "Convert",
         "Levels, power units, attenuation, wavelength and grid",
         "fieldkit.tui.screens.convert",
@@ -48,7 +54,6 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "budget",
-        "f3",
         "Budget",
         "Loss budget per wavelength, application and transceiver",
         "fieldkit.tui.screens.budget",
@@ -56,7 +61,6 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "meter",
-        "f4",
         "Meter",
         "Meter reference, readings to insertion loss, pass/fail",
         "fieldkit.tui.screens.meter",
@@ -64,7 +68,6 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "fault",
-        "f5",
         "Fault",
         "Fault location: OTDR distance to a place on the route",
         "fieldkit.tui.screens.fault",
@@ -72,7 +75,6 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "jobs",
-        "f6",
         "Jobs",
         "Per-job logs: find, read, note, finish, export; end of day",
         "fieldkit.tui.screens.jobs",
@@ -80,7 +82,6 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "splices",
-        "f7",
         "Splices",
         "Splice log: closures, trays, every splice by number and colour, both directions",
         "fieldkit.tui.screens.splices",
@@ -88,7 +89,6 @@ WORKSPACES: tuple[Workspace, ...] = (
     ),
     Workspace(
         "traces",
-        "f8",
         "Traces",
         "OTDR traces: events, both directions averaged, the trace drawn",
         "fieldkit.tui.screens.traces",

@@ -90,8 +90,8 @@ async def prepare_meter(app: Any, pilot: Any) -> Any:
     for level in ("-7.20", "-7.00"):
         screen.query_one("#reference", Input).value = level
         await pilot.pause()
-        await pilot.press("f8")
-    await pilot.press("f7", "f7")
+        await pilot.press("ctrl+right")
+    await pilot.press("ctrl+left", "ctrl+left")
     screen.query_one("#reading", Input).focus()
     await pilot.pause()
     return screen

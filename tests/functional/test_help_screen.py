@@ -7,8 +7,9 @@ from pathlib import Path
 import pytest
 from textual.containers import VerticalScroll
 
+from fieldkit.tui import keys
 from fieldkit.tui.app import make_app
-from fieldkit.tui.screens.help import GENERAL_KEYS, HelpScreen, help_markdown
+from fieldkit.tui.screens.help import HelpScreen, help_markdown
 
 SIZES = [(80, 24), (44, 22)]
 
@@ -17,9 +18,22 @@ def test_keys_are_a_list_not_a_table() -> None:
     # A Markdown table cuts its key column to "Ctrl…" at 44 columns; a list wraps instead.
     text = help_markdown()
     assert "|" not in text
-    for key, _ in GENERAL_KEYS:
-        assert f"- **{key}**:" in text
+    for _, key, _what in keys.GENERAL:
+        assert f"- **{keys.display(key)}**:" in text
     assert "- **F2 Convert**:" in text and "- **F6 Jobs**:" in text
+
+
+def test_help_lists_the_key_table_with_each_workspace_use() -> None:
+    # The same source as the footers: each key a workspace uses is listed under it, and the
+    # common meaning of each used key once (our mapping, explained).
+    text = help_markdown()
+    assert "Function keys go to a place" in text
+    assert "- **Ctrl+Q Quit**:" in text and "- **Ctrl+S Save**: save onto a job's link" in text
+    budget = text.split("## Budget (F3)")[1].split("## ")[0]
+    assert "- **Ctrl+A**: add an item of the kind chosen beside Add" in budget
+    assert "- **Ctrl+R**" not in budget  # Ctrl+R is recheck/reload; the budget has none
+    meter = text.split("## Meter (F4)")[1].split("## ")[0]
+    assert "- **Ctrl+R**: recheck" in meter
 
 
 @pytest.mark.parametrize("size", SIZES)
@@ -33,13 +47,19 @@ async def test_every_key_name_shows_whole(tmp_path: Path, size) -> None:
         body = app.screen.query_one("#help-body", VerticalScroll)
         if size[0] < 72:
             assert body.region.width == size[0]  # the whole width on a phone terminal
-        await pilot.press("end")  # the keyboard scrolls the page
-        await pilot.pause()
-        assert body.scroll_y > 0
-        shot = app.export_screenshot()
-        for key in ("Ctrl+P", "Ctrl+T", "Ctrl+Q"):
-            assert key in shot, key
-        assert "Ctrl…" not in shot
+        shots = [app.export_screenshot()]
+        while True:  # page through with the keyboard, to the end
+            before = body.scroll_y
+            await pilot.press("pagedown")
+            await pilot.pause()
+            if body.scroll_y == before:
+                break
+            shots.append(app.export_screenshot())
+        assert len(shots) > 1 and body.scroll_y > 0
+        seen = "".join(shots)
+        for key in ("Ctrl+P", "Ctrl+T", "Ctrl+Q", "Ctrl+S", "Ctrl+X", "Ctrl+R"):
+            assert key in seen, key
+        assert "Ctrl…" not in seen
         await pilot.press("escape")
         await pilot.pause()
         assert not isinstance(app.screen, HelpScreen)

@@ -66,7 +66,7 @@ async def test_crew_lead_starts_runs_and_closes_a_job(
         jobs = app.screen
         assert "Station Road" in _text(jobs, "#job-head")
         # A link with its fibre count.
-        await pilot.press("ctrl+l")
+        await pilot.press("ctrl+a")
         await pilot.pause()
         assert isinstance(app.screen, LinkForm)
         app.screen.query_one("#link-label", Input).value = "Exch-Cab4"
@@ -112,7 +112,7 @@ async def test_crew_lead_starts_runs_and_closes_a_job(
         # Done with an open item (fibre 3 still fails): listed, asked, the reason noted.
         await pilot.press("f6")
         await pilot.pause()
-        await pilot.press("ctrl+o")
+        await pilot.press("ctrl+d")
         await pilot.pause()
         assert isinstance(app.screen, AskDialog)
         listed = str(app.screen.query_one("#ask-text", Static).render())
@@ -124,7 +124,7 @@ async def test_crew_lead_starts_runs_and_closes_a_job(
         assert saved.status == "done" and saved.notes[-1].text == "Marked done: repair booked"
 
         # Export through the dialog.
-        await pilot.press("f8")
+        await pilot.press("ctrl+w")
         await pilot.pause()
         assert isinstance(app.screen, ExportDialog)
         target = Path.home() / "station.json"
@@ -134,7 +134,7 @@ async def test_crew_lead_starts_runs_and_closes_a_job(
         await pilot.click("#export-write")
         await pilot.pause()
         md_target = Path.home() / "station.md"
-        await pilot.press("f8")
+        await pilot.press("ctrl+w")
         await pilot.pause()
         app.screen.query_one("#export-format", OptionList).highlighted = 1  # Markdown
         await pilot.pause()
@@ -174,7 +174,7 @@ async def test_the_details_always_show_a_job_of_the_visible_list(
         await pilot.press(*"zzzz-no-such-job")
         await pilot.pause()
         assert screen._job is None  # noqa: SLF001
-        await pilot.press("ctrl+o")
+        await pilot.press("ctrl+d")
         await pilot.pause()
         assert not isinstance(app.screen, AskDialog)
         assert store.load(shown_first.id).status == shown_first.status

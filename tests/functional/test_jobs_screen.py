@@ -46,9 +46,9 @@ async def test_filter_open_note_and_done_by_keyboard(tmp_path: Path, size: tuple
         await pilot.pause()
         assert "North Reservoir feed repair" in _text(screen, "#job-head")
         assert "RES-N-FEED fibre 5 1550 nm A->B: 4.63 dB" in _text(screen, "#job-failures")
-        await pilot.press("ctrl+n", *"Marks confirmed", "enter")  # a note in two keystrokes
+        await pilot.press("ctrl+l", *"Marks confirmed", "enter")  # a note in two keystrokes
         await pilot.pause()
-        await pilot.press("ctrl+o")
+        await pilot.press("ctrl+d")
         await pilot.pause()
         # Open items (fibre 5 fails, fibre 6 a reference problem): listed, the reason noted.
         await pilot.press(*"retest booked")
@@ -71,7 +71,7 @@ async def test_note_keeps_an_entry_saved_meanwhile_by_another_program(tmp_path: 
         JobStore(locations.jobs_dir(tmp_path / "d")).update(
             shown.id, lambda j: j.add_note("from the CLI") and None
         )
-        await pilot.press("ctrl+n", *"from the screen", "enter")
+        await pilot.press("ctrl+l", *"from the screen", "enter")
         await pilot.pause()
     texts = [n.text for n in store.load(shown.id).notes]
     assert texts[-2:] == ["from the CLI", "from the screen"]
@@ -105,7 +105,7 @@ async def test_end_of_day_view_counts_and_opens_a_job(
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
-        await pilot.press("f7")
+        await pilot.press("ctrl+g")
         await pilot.pause()
         day = app.screen
         assert isinstance(day, EndOfDayScreen)
@@ -126,7 +126,7 @@ async def test_export_dialog_writes_the_report(tmp_path: Path) -> None:
     async with app.run_test(size=(44, 22)) as pilot:
         await pilot.pause()
         job_id = app.screen._job.id  # type: ignore[attr-defined]
-        await pilot.press("f8")
+        await pilot.press("ctrl+w")
         await pilot.pause()
         assert isinstance(app.screen, ExportDialog)
         await pilot.press("up", "enter")  # from HTML up to Markdown
@@ -146,7 +146,7 @@ async def test_export_dialog_refuses_the_jobs_own_file_and_keeps_the_job(tmp_pat
         job_id = app.screen._job.id  # type: ignore[attr-defined]
         job_file = tmp_path / "d" / "jobs" / f"{job_id}.json"
         before = job_file.read_bytes()
-        await pilot.press("f8")
+        await pilot.press("ctrl+w")
         await pilot.pause()
         app.screen.query_one("#export-path", Input).value = str(job_file)
         await pilot.click("#export-write")
@@ -164,7 +164,7 @@ async def test_empty_store_says_so(tmp_path: Path) -> None:
         # The issue: live Done/Export/Note controls beside "0 of 0 jobs". Now the details say
         # where jobs are kept and how to start one; the job's controls are off.
         head = _text(app.screen, "#job-head")
-        assert "No jobs yet" in head and "F9" in head
+        assert "No jobs yet" in head and "Ctrl+N" in head
         assert str(tmp_path / "d" / "jobs") in head.replace("\n", "")
         for wid in ("#job-done", "#job-export", "#job-note", "#job-delete"):
             assert app.screen.query_one(wid).disabled, wid
@@ -194,9 +194,9 @@ async def test_footer_fits_and_job_actions_are_buttons(
         await pilot.pause()
         # The job's actions sit right under its name, with their keys, whole and on screen.
         for selector, label in (
-            ("#job-done", "Done ^O"),
-            ("#job-export", "Export F8"),
-            ("#job-today", "End of day F7"),
+            ("#job-done", "Done ^D"),
+            ("#job-export", "Export ^W"),
+            ("#job-today", "End of day ^G"),
         ):
             button = screen.query_one(selector, Button)
             assert str(button.label) == label
@@ -211,8 +211,8 @@ async def test_footer_fits_and_job_actions_are_buttons(
         assert isinstance(app.screen, AskDialog)
         await pilot.click("#ask-done")
         await pilot.pause()
-        assert str(screen.query_one("#job-done", Button).label) == "Reopen ^O"
-        await pilot.press("f8")  # the keys still work with the footer not showing them
+        assert str(screen.query_one("#job-done", Button).label) == "Reopen ^D"
+        await pilot.press("ctrl+w")  # the keys still work with the footer not showing them
         await pilot.pause()
         assert isinstance(app.screen, ExportDialog)
         await pilot.press("escape")

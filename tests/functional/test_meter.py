@@ -84,12 +84,12 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
         await pilot.press(*"-7.20")
         screen.query_one("#limit", Input).focus()
         await pilot.press(*"2.0")
-        await pilot.press("f8")
+        await pilot.press("ctrl+right")
         screen.query_one("#reference", Input).focus()
         await pilot.press(*"-7.00")
         screen.query_one("#limit", Input).focus()
         await pilot.press(*"2,0")  # a decimal comma is a decimal point here
-        await pilot.press("f7")
+        await pilot.press("ctrl+left")
         screen.query_one("#reading", Input).focus()
         await pilot.pause()
 
@@ -210,7 +210,7 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
             await pilot.press(*text, "enter")
         await pilot.press("up", "up")  # back to fibre 2
         await pilot.press(*"-7.9", "enter")  # corrected: 0.90 dB
-        await pilot.press("up", "f9")  # fibre 2 again: clear it
+        await pilot.press("up", "ctrl+x")  # fibre 2 again: remove its reading
         await _settle(pilot, screen)
         link = store.load(job_id).link(link_id)
         current = sorted((r.fibre, round(r.loss_db, 6)) for r in link.results if r.current)
@@ -341,7 +341,7 @@ async def test_budget_limit_by_method_and_both_directions(isolated_dirs: dict[st
         await pilot.pause()
         screen.query_one("#reading", Input).focus()
         await pilot.press(*"-8.40", "enter", *"-11.30", "enter")  # A->B: 1.20, 4.10 dB
-        await pilot.press("f8")
+        await pilot.press("ctrl+right")
         screen.query_one("#reference", Input).value = "-6.90"
         await pilot.pause()
         screen.query_one("#reading", Input).focus()

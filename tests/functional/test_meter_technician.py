@@ -134,14 +134,14 @@ async def test_every_hint_key_and_a_click_at_44_columns(isolated_dirs: dict[str,
         await pilot.press(*"-7.6", "enter")
         cell = screen._cells[(1, 1310.0, "A->B")]
         assert cell.loss_db == pytest.approx(0.6, abs=1e-9)  # -7.0 − (-7.6)
-        await pilot.press("up", "f9")  # F9 clears fibre 1
+        await pilot.press("up", "ctrl+x")  # Ctrl+X removes fibre 1's reading
         assert (1, 1310.0, "A->B") not in screen._cells
         assert "reading removed" in _text(screen, "#entry-message")
-        await pilot.press("f8")  # next column: 1310 B→A, its own reference
+        await pilot.press("ctrl+right")  # next column: 1310 B→A, its own reference
         assert "fibre 1 1310 B→A" in str(where.render())
         assert str(screen.query_one("#reference-box Label", Label).render()) == "Ref 1310 ←"
         assert screen.query_one("#reference", Input).value == ""
-        await pilot.press("f7")
+        await pilot.press("ctrl+left")
         assert "fibre 1 1310 A→B" in str(where.render())
         # A click on a cell goes there: row 3 below the header is fibre 3; the fibre column is
         # 7 cells wide and 1310 A→B the next 11, so x=20 is in 1310 B→A.

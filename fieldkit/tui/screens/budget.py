@@ -15,14 +15,15 @@ from typing import Any
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Button, Footer, Input, Label, OptionList, Select, Static
+from textual.widgets import Button, Input, Label, OptionList, Select, Static
 
 from fieldkit import safety
 from fieldkit.calc.units import InputError
+from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -342,62 +343,37 @@ def items_from_spec(spec: dict[str, Any]) -> tuple[list[dict[str, str]], dict[st
     return items, settings
 
 
+def _starting_items() -> list[dict[str, str]]:
+    """A new budget: one single-mode fibre segment and the two end connections."""
+    return [
+        {"kind": "fibre", "preset": "OS2", "value": "", "extra": ""},
+        {"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""},
+    ]
+
+
+_SETTING_FIELDS = (
+    "wavelengths",
+    "margin",
+    "bit-rate",
+    "spectral-width",
+    "tx-min",
+    "tx-max",
+    "rx-sens",
+    "rx-over",
+)
+
+
 class BudgetScreen(Screen[None]):
     """Build a link, read its budget per wavelength, check an application or a transceiver."""
 
     CSS_PATH = "budget.tcss"
     AUTO_FOCUS = "#item-value"
-    BINDINGS = [
-        Binding(
-            "ctrl+n",
-            "add_item",
-            "Add",
-            id="budget.add",
-            tooltip="Add an item of the kind chosen beside the Add button",
-        ),
-        Binding(
-            "ctrl+r",
-            "remove_item",
-            "Del",
-            id="budget.remove",
-            show=False,
-            tooltip="Remove the item picked in the list",
-        ),
-        Binding(
-            "ctrl+up,f7",
-            "move_item(-1)",
-            "Up",
-            id="budget.up",
-            show=False,
-            tooltip="Move the picked item towards end A",
-        ),
-        Binding(
-            "ctrl+down,f8",
-            "move_item(1)",
-            "Down",
-            id="budget.down",
-            show=False,
-            tooltip="Move the picked item towards end B",
-        ),
-        Binding(
-            "ctrl+s", "save", "Save", id="budget.save", tooltip="Save this budget onto a job's link"
-        ),
-        Binding(
-            "ctrl+o",
-            "open_saved",
-            "Open",
-            id="budget.open",
-            show=False,
-            tooltip="Open the budget saved on a job's link, to check or change it",
-        ),
-    ]
+    BINDINGS = keys.bindings("budget")
 
     def __init__(self) -> None:
         super().__init__()
-        self.items: list[dict[str, str]] = [
-            {"kind": "fibre", "preset": "OS2", "value": "", "extra": ""},
-            {"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""},
-        ]
+        self.items: list[dict[str, str]] = _starting_items()
+        self._clear_asked = False
         self.current = 0
         self.report: Any = None
         self.resolved: Any = None
@@ -474,19 +450,22 @@ class BudgetScreen(Screen[None]):
                                 tooltip="Kind of item to add",
                             )
                             yield Button(
-                                "Add", id="add", compact=True, tooltip="Add an item (Ctrl+N)"
+                                "Add", id="add", compact=True, tooltip=keys.tip("budget", "add")
                             )
                             yield Button(
                                 "Remove",
                                 id="remove",
                                 compact=True,
-                                tooltip="Remove the picked item (Ctrl+R)",
+                                tooltip=keys.tip("budget", "remove"),
                             )
                             yield Button(
-                                "↑", id="up", compact=True, tooltip="Move up (Ctrl+Up or F7)"
+                                "↑", id="up", compact=True, tooltip=keys.tip("budget", "move_up")
                             )
                             yield Button(
-                                "↓", id="down", compact=True, tooltip="Move down (Ctrl+Down or F8)"
+                                "↓",
+                                id="down",
+                                compact=True,
+                                tooltip=keys.tip("budget", "move_down"),
                             )
                     with Vertical(id="item-panel", classes="panel") as panel:
                         panel.border_title = "Item"
@@ -582,19 +561,19 @@ class BudgetScreen(Screen[None]):
                     yield Static("", id="budget-saved", classes="field-note", markup=False)
                     with Horizontal(id="job-buttons"):
                         yield Button(
-                            "Save to job ^S",
+                            f"Save to job {keys.hint('save')}",
                             id="save",
                             compact=True,
-                            tooltip="Save this budget onto a job's link (Ctrl+S)",
+                            tooltip=keys.tip("budget", "save"),
                         )
                         yield Button(
-                            "Open saved ^O",
+                            f"Open saved {keys.hint('open')}",
                             id="open",
                             compact=True,
-                            tooltip="Open the budget saved on a job's link (Ctrl+O)",
+                            tooltip=keys.tip("budget", "open"),
                         )
                     yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         lib = self.library
@@ -617,6 +596,7 @@ class BudgetScreen(Screen[None]):
         self._refresh_list()
         self._load_item()
         self.recompute()
+        self._mark_clean()
 
     # -- the item list -------------------------------------------------------------------
     def _refresh_list(self) -> None:
@@ -1070,8 +1050,7 @@ class BudgetScreen(Screen[None]):
         import json
 
         fields = {
-            field_id: self.query_one(f"#{field_id}", Input).value
-            for field_id in ("wavelengths", "margin", "tx-min", "tx-max", "rx-sens", "rx-over")
+            field_id: self.query_one(f"#{field_id}", Input).value for field_id in _SETTING_FIELDS
         }
         selects = {
             select_id: str(self.query_one(f"#{select_id}", Select).value)
@@ -1088,6 +1067,30 @@ class BudgetScreen(Screen[None]):
         """True when the budget was changed since it was last saved, opened or started."""
         clean = getattr(self, "_clean_print", None)
         return clean is not None and clean != self._fingerprint()
+
+    # -- new, and going to the result ----------------------------------------------------
+    def _mark_clean(self) -> None:
+        self.mark_clean()
+        self._clear_asked = False
+
+    def action_new_budget(self) -> None:
+        """An empty budget; unsaved changes are cleared only on a second Ctrl+N."""
+        saved = self.query_one("#budget-saved", Static)
+        if self.unsaved_edits and not getattr(self, "_clear_asked", False):
+            self._clear_asked = True
+            saved.update(
+                f"This budget has changes not saved: {keys.hint('new')} again clears them, "
+                f"{keys.hint('save')} saves them."
+            )
+            return
+        self.load(_starting_items(), {})
+        self.query_one("#add-kind", Select).value = "fibre"
+        self._mark_clean()
+        saved.update("A new, empty budget.")
+        self.query_one("#item-value", Input).focus()
+
+    def action_focus_result(self) -> None:
+        self.query_one("#result-panel").scroll_visible(top=True, animate=False)
 
     # -- opening a saved budget ---------------------------------------------------------
     def action_open_saved(self) -> None:
@@ -1128,7 +1131,7 @@ class BudgetScreen(Screen[None]):
             return
         job_id, link_id = choice
         try:
-            link = self.app.store.load(job_id).link(link_id)  # type: ignore[attr-defined]
+            link = fieldkit_app(self).store.load(job_id).link(link_id)
         except (StoreError, KeyError) as exc:
             message = str(exc.args[0]) if isinstance(exc, KeyError) and exc.args else str(exc)
             self.notify(f"Not opened: {message}", severity="error")
@@ -1142,7 +1145,7 @@ class BudgetScreen(Screen[None]):
             return
         self.load(items, fields)
         self._job_id = job_id
-        self.mark_clean()
+        self._mark_clean()
         self.query_one("#budget-saved", Static).update(
             f"Opened the budget saved on link {link.label}."
         )
@@ -1151,16 +1154,7 @@ class BudgetScreen(Screen[None]):
         """Replace the link and the settings (typed text is kept as typed)."""
         self.items = items
         self.current = 0
-        for field_id in (
-            "wavelengths",
-            "margin",
-            "bit-rate",
-            "spectral-width",
-            "tx-min",
-            "tx-max",
-            "rx-sens",
-            "rx-over",
-        ):
+        for field_id in _SETTING_FIELDS:
             self.query_one(f"#{field_id}", Input).value = fields.get(field_id, "")
         for select_id in ("application", "transceiver"):
             select = self.query_one(f"#{select_id}", Select)
@@ -1214,7 +1208,7 @@ class BudgetScreen(Screen[None]):
             self.query_one("#budget-saved", Static).update(f"Not saved: {exc}")
             return
         self._job_id = job_id
-        self.mark_clean()
+        self._mark_clean()
         text = f"Budget saved onto job {saved.job_name}, link {saved.link_label}."
         self.query_one("#budget-saved", Static).update(text)
         self.notify(text)

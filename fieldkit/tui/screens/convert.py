@@ -7,11 +7,13 @@ from collections.abc import Callable
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Input, Static
+from textual.widgets import Input, Static
 
 from fieldkit.calc import power
 from fieldkit.calc.conversions import grid_report, related_values
 from fieldkit.calc.units import InputError, Kind, Value, display_unit, format_number
+from fieldkit.tui import keys
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -26,6 +28,7 @@ class ConvertScreen(Screen[None]):
 
     CSS_PATH = "convert.tcss"
     AUTO_FOCUS = "#value"
+    BINDINGS = keys.bindings("convert")
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
@@ -88,7 +91,7 @@ class ConvertScreen(Screen[None]):
                             placeholder="1550.12 nm or 193.4 THz",
                         )
                         yield Static("", id="grid-out", classes="result")
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         for field in self.query(QuantityField):

@@ -17,7 +17,7 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.screen import Screen
-from textual.widgets import Button, Footer, Input, Label, OptionList, Select, Static
+from textual.widgets import Button, Input, Label, OptionList, Select, Static
 from textual.widgets.option_list import Option
 
 from fieldkit import safety
@@ -50,6 +50,8 @@ from fieldkit.calc.units import (
 )
 from fieldkit.inputs import otdr_distance_m
 from fieldkit.text.locate import result_lines, summary_line
+from fieldkit.tui import keys
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QuantityField, field_name
 from fieldkit.tui.widgets.route_diagram import FaultMark, RouteDiagram, RoutePoint
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
@@ -151,7 +153,7 @@ class PointList(Vertical):
     PointList .pl-empty { color: $text-muted; }
     """
 
-    BINDINGS = [Binding("delete", "remove", "Remove row", show=False)]
+    BINDINGS = [Binding(keys.key_of("delete").key, "remove", "Remove row", show=False)]
 
     class Changed(Message):
         def __init__(self, point_list: PointList) -> None:
@@ -185,7 +187,8 @@ class PointList(Vertical):
         with Horizontal(classes="pl-buttons"):
             yield Button("Add", id=f"{self.id}-add", compact=True, variant="primary")
             yield Button("Remove", id=f"{self.id}-remove", compact=True)
-            yield Button("New", id=f"{self.id}-new", compact=True)
+            # Empties the row editor only; Ctrl+N (new) starts the whole fault again.
+            yield Button("Clear", id=f"{self.id}-new", compact=True)
 
     def on_mount(self) -> None:
         self._refresh()
@@ -318,33 +321,29 @@ SLACK_COLUMNS = (
 )
 
 
+_NEW_CLEARS = (
+    "fault-distance",
+    "fault-time",
+    "fault-ior-set",
+    "fault-marking",
+    "fault-from-b",
+    "fault-total",
+)
+
+
 class FaultScreen(Screen[None]):
     """Where is the fault? Type the reading; landmarks and slack refine it."""
 
     CSS_PATH = "fault.tcss"
     AUTO_FOCUS = "#fault-distance"
-    BINDINGS = [
-        Binding(
-            "ctrl+s",
-            "save",
-            "Save",
-            id="fault.save",
-            tooltip="Save this located fault onto a job's link",
-        ),
-        Binding(
-            "ctrl+r",
-            "focus_result",
-            "Result",
-            id="fault.result",
-            tooltip="Scroll to the result and the route diagram",
-        ),
-    ]
+    BINDINGS = keys.bindings("fault")
 
     def __init__(self) -> None:
         super().__init__()
         self.location: Location | None = None
         self.inputs: dict[str, Any] = {}
         self.problem: str | None = None
+        self._clear_asked = False
 
     # -- layout -----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -548,13 +547,13 @@ class FaultScreen(Screen[None]):
                 with Vertical(classes="panel", id="fault-save-panel") as panel:
                     panel.border_title = "Job"
                     yield Button(
-                        "Save onto a job's link (Ctrl+S)",
+                        f"Save onto a job's link ({keys.display('save')})",
                         id="fault-save",
                         compact=True,
                         variant="primary",
                     )
                     yield Static("", id="fault-saved", classes="field-note")
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         for field in self.query(QuantityField):
@@ -849,6 +848,40 @@ class FaultScreen(Screen[None]):
         if note:
             self.notify(note, timeout=6)
         self.recompute()
+
+    def _point_list(self) -> PointList:
+        """The landmark or slack list holding the focus (the landmarks if neither does)."""
+        focused = self.focused
+        for point_list in self.query(PointList):
+            if focused is not None and point_list in focused.ancestors_with_self:
+                return point_list
+        return self.query_one("#fault-landmarks", PointList)
+
+    def action_add_point(self) -> None:
+        self._point_list().commit()
+
+    def action_remove_point(self) -> None:
+        self._point_list().action_remove()
+
+    def action_new_fault(self) -> None:
+        """Empty the reading, landmark, slack, marking and two-ended fields; the fibre, cable and
+        error settings stay. Typed values are cleared only on a second Ctrl+N."""
+        typed = [self.query_one(f"#{f}", Input) for f in _NEW_CLEARS]
+        lists = list(self.query(PointList))
+        anything = any(i.value.strip() for i in typed) or any(p.rows for p in lists)
+        note = self.query_one("#fault-saved", Static)
+        if anything and not self._clear_asked:
+            self._clear_asked = True
+            note.update(f"{keys.hint('new')} again empties the reading and the rows.")
+            self.notify(f"{keys.hint('new')} again empties the reading and the rows.")
+            return
+        self._clear_asked = False
+        for field in typed:
+            field.value = ""
+        for point_list in lists:
+            point_list.set_rows([])
+        note.update("")
+        self.query_one("#fault-distance", Input).focus()
 
     def action_focus_result(self) -> None:
         panel = self.query_one("#fault-result-panel")

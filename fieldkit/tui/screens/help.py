@@ -1,4 +1,4 @@
-"""Help: the keys of each workspace and the safety cautions."""
+"""Help: the safety cautions and the key table (fieldkit.tui.keys), our own mapping explained."""
 
 from __future__ import annotations
 
@@ -9,22 +9,10 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Markdown
 
 from fieldkit import safety
-from fieldkit.tui.workspaces import WORKSPACES
-
-#: The app-wide keys after the workspaces: (key, what it does).
-GENERAL_KEYS: tuple[tuple[str, str], ...] = (
-    ("F1", "Help: this page (Esc closes it)"),
-    ("Ctrl+P", "Commands: search every command and workspace"),
-    ("Ctrl+T", "Sunlight: high-contrast theme on or off (the choice is remembered)"),
-    ("Tab / Shift+Tab", "next / previous field"),
-    ("Ctrl+Q", "quit"),
-)
+from fieldkit.tui import keys
 
 
 def help_markdown() -> str:
-    # A list rather than a table: a table's key column is cut to "Ctrl…" on a phone terminal.
-    keys = "\n".join(f"- **{ws.key.upper()} {ws.title}**: {ws.help}" for ws in WORKSPACES)
-    general = "\n".join(f"- **{key}**: {what}" for key, what in GENERAL_KEYS)
     cautions = "\n".join(f"- {line}" for line in safety.ALL)
     return f"""\
 # Safety first
@@ -33,9 +21,7 @@ def help_markdown() -> str:
 
 # Keys
 
-{keys}
-{general}
-
+{keys.help_markdown()}
 Results update as you type. A field with a problem says why beside it; nothing you typed is
 thrown away. Numbers accept a decimal point, or a decimal comma where it cannot be a thousands
 separator (`-7,5 dBm`).

@@ -1,8 +1,8 @@
 """The jobs workspace: find a job, read its links, results and notes, add a note, finish it,
-export it; F7 opens the end-of-day view.
+export it; Ctrl+G opens the end-of-day view.
 
-Keys work while a field has focus: Ctrl+F find, Ctrl+N note, Ctrl+O done or open, F8 export,
-F7 end of day (Ctrl+D and Ctrl+E belong to the text fields).
+Keys come from the key table (fieldkit.tui.keys) and work while a field has focus: Ctrl+F find,
+Ctrl+L note, Ctrl+D done or open, Ctrl+W export, Ctrl+G end of day.
 
 Every change goes through :mod:`fieldkit.actions` (which saves with ``JobStore.update``: reload,
 apply, save under the job's lock), so a note typed here and a result saved by another program at
@@ -21,7 +21,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen, Screen
-from textual.widgets import Button, Footer, Input, Label, OptionList, Static
+from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from fieldkit.actions.errors import ActionError
@@ -42,9 +42,11 @@ from fieldkit.jobs.splices import closure_summary
 from fieldkit.jobs.store import JobStore, JobSummary, StoreError, local_date
 from fieldkit.jobs.today import counted
 from fieldkit.text.escape import terminal
+from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.dialogs import AskDialog
 from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 #: How many matching jobs the list shows at once; typing in the filter narrows the rest.
@@ -63,93 +65,7 @@ class JobsScreen(Screen[None]):
 
     CSS_PATH = "jobs.tcss"
     AUTO_FOCUS = "#jobs-filter"
-    BINDINGS = [
-        Binding(
-            "ctrl+f",
-            "focus_filter",
-            "Find",
-            id="jobs.find",
-            tooltip="Type words to find jobs by name, customer, site, crew or link",
-        ),
-        Binding(
-            "ctrl+n",
-            "focus_note",
-            "Note",
-            id="jobs.note",
-            tooltip="Type a note for this job, Enter saves it",
-        ),
-        Binding(
-            "ctrl+o",
-            "toggle_done",
-            "Done/open",
-            id="jobs.done",
-            show=False,  # a button in the job detail carries it (the footer fits 44 columns)
-            tooltip="Mark the job done, or open again",
-        ),
-        Binding(
-            "f8",
-            "export",
-            "Export",
-            id="jobs.export",
-            show=False,  # a button in the job detail carries it (the footer fits 44 columns)
-            tooltip="Write the job report as CSV, Markdown, HTML or a JSON hand-off",
-        ),
-        Binding(
-            "f7",
-            "end_of_day",
-            "End of day",
-            id="jobs.today",
-            show=False,  # a button in the job detail carries it (the footer fits 44 columns)
-            tooltip="Today's jobs, result counts, failures and open items",
-        ),
-        Binding(
-            "ctrl+s",
-            "cycle_status",
-            "Status",
-            id="jobs.status",
-            show=False,
-            tooltip="Show all jobs, only open ones, or only done ones",
-        ),
-        Binding(
-            "ctrl+g",
-            "toggle_today",
-            "Today",
-            id="jobs.only_today",
-            show=False,
-            tooltip="Only jobs created or updated today, or every day",
-        ),
-        Binding(
-            "f9",
-            "new_job",
-            "New job",
-            id="jobs.new",
-            tooltip="Start a new job: name, customer, site, crew",
-        ),
-        Binding(
-            "ctrl+b",
-            "edit_job",
-            "Edit",
-            id="jobs.edit",
-            show=False,
-            tooltip="Rename the job or change its customer, site or crew",
-        ),
-        Binding(
-            "ctrl+l",
-            "link",
-            "Link",
-            id="jobs.link",
-            show=False,
-            tooltip="Add a link to the job, or edit one (ends, fibre type and count, cable)",
-        ),
-        Binding(
-            "ctrl+r",
-            "reload",
-            "Reload",
-            id="jobs.reload",
-            show=False,
-            tooltip="Read the jobs again (changes made by another program)",
-        ),
-    ]
+    BINDINGS = keys.bindings("jobs")
 
     def __init__(self) -> None:
         super().__init__()
@@ -167,7 +83,7 @@ class JobsScreen(Screen[None]):
                 yield Input(
                     placeholder="find: name, site, crew, date",
                     tooltip="Words from the name, customer, site, crew or a link; a day "
-                    "as YYYY-MM-DD (Ctrl+F)",
+                    f"as YYYY-MM-DD ({keys.display('find')})",
                     id="jobs-filter",
                     type="text",
                     compact=True,
@@ -177,13 +93,13 @@ class JobsScreen(Screen[None]):
                         "All jobs",
                         id="jobs-status",
                         compact=True,
-                        tooltip="All, open or done jobs (Ctrl+S)",
+                        tooltip=keys.tip("jobs", "filter"),
                     )
                     yield Button(
                         "Any day",
                         id="jobs-day",
                         compact=True,
-                        tooltip="Only today's jobs, or every day (Ctrl+G)",
+                        tooltip="Only today's jobs, or every day",
                     )
                 yield Static("", id="jobs-count", classes="field-note")
                 yield OptionList(id="jobs-list", markup=False)
@@ -192,29 +108,47 @@ class JobsScreen(Screen[None]):
                 # At hand without scrolling: on a phone terminal the footer has no room for them.
                 with Horizontal(id="job-actions"):
                     yield Button(
-                        "Done ^O",
+                        f"Done {keys.hint('done')}",
                         id="job-done",
                         compact=True,
-                        tooltip="Mark the job done, or open it again (Ctrl+O)",
+                        tooltip=keys.tip("jobs", "done"),
                     )
                     yield Button(
-                        "Export F8",
+                        f"Export {keys.hint('export')}",
                         id="job-export",
                         compact=True,
-                        tooltip="Write the job report: CSV, Markdown, HTML, JSON",
+                        tooltip=keys.tip("jobs", "export"),
                     )
                     yield Button(
-                        "End of day F7",
+                        f"End of day {keys.hint('result')}",
                         id="job-today",
                         compact=True,
-                        tooltip="Today's jobs, counts, failures and open items",
+                        tooltip=keys.tip("jobs", "result"),
                     )
                 with Horizontal(id="job-manage"):
-                    yield Button("New F9", id="job-new", compact=True, tooltip="Start a job")
-                    yield Button("Edit ^B", id="job-edit", compact=True, tooltip="Rename, edit")
-                    yield Button("Link ^L", id="job-link", compact=True, tooltip="Add/edit a link")
                     yield Button(
-                        "Delete", id="job-delete", compact=True, tooltip="Move to the trash"
+                        f"New {keys.hint('new')}",
+                        id="job-new",
+                        compact=True,
+                        tooltip=keys.tip("jobs", "new"),
+                    )
+                    yield Button(
+                        f"Edit {keys.hint('edit')}",
+                        id="job-edit",
+                        compact=True,
+                        tooltip=keys.tip("jobs", "edit"),
+                    )
+                    yield Button(
+                        f"Link {keys.hint('add')}",
+                        id="job-link",
+                        compact=True,
+                        tooltip=keys.tip("jobs", "add"),
+                    )
+                    yield Button(
+                        f"Delete {keys.hint('remove')}",
+                        id="job-delete",
+                        compact=True,
+                        tooltip=keys.tip("jobs", "remove"),
                     )
                 yield Static("", id="job-summary")
                 yield Static("", id="job-failures")
@@ -222,14 +156,14 @@ class JobsScreen(Screen[None]):
                 yield Static("", id="job-notes")
                 with Horizontal(id="job-note-row"):
                     yield Input(
-                        placeholder="a note, Enter saves (^N)",
+                        placeholder=f"a note, Enter saves ({keys.hint('note')})",
                         id="job-note",
                         type="text",
                         compact=True,
                     )
                     yield Button("Add note", id="job-note-add", compact=True)
                 yield Static("", id="job-note-error", classes="field-error", markup=False)
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         self.reload()
@@ -307,8 +241,8 @@ class JobsScreen(Screen[None]):
         if not self._summaries:
             where = self.store.jobs_dir
             head = (
-                "No jobs yet. F9 (or New job) starts one: its name, customer, site and crew; "
-                f"then its links. Jobs are kept in {where}."
+                f"No jobs yet. {keys.display('new')} (or New) starts one: its name, customer, "
+                f"site and crew; then its links. Jobs are kept in {where}."
             )
         else:
             head = "No job matches; clear the find field (Ctrl+F) to see them all."
@@ -339,7 +273,7 @@ class JobsScreen(Screen[None]):
         self.query_one("#job-links", Static).update(_links(job))
         self.query_one("#job-notes", Static).update(_notes(job))
         self.query_one("#job-done", Button).label = (
-            "Reopen ^O" if job.status == "done" else "Done ^O"
+            f"Reopen {keys.hint('done')}" if job.status == "done" else f"Done {keys.hint('done')}"
         )
         read_only = bool(job.read_only)
         for wid in ("#job-note", "#job-note-add", "#job-done", "#job-edit", "#job-link"):
@@ -568,6 +502,9 @@ class JobsScreen(Screen[None]):
 
     def action_focus_filter(self) -> None:
         self.query_one("#jobs-filter", Input).focus()
+
+    def action_focus_list(self) -> None:
+        self.query_one("#jobs-list", OptionList).focus()
 
     def action_focus_note(self) -> None:
         self.query_one("#job-note", Input).focus()

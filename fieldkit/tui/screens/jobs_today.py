@@ -1,7 +1,7 @@
 """The end-of-day view: today's jobs, result counts, failures, doubts and open items.
 
-Pushed from the jobs workspace (F7). Enter on a job closes the view and opens that job;
-Ctrl+Left / Ctrl+Right step to the day before or after.
+Pushed from the jobs workspace (Ctrl+G, which also closes it). Enter on a job closes the view
+and opens that job; Ctrl+Left / Ctrl+Right step to the day before or after.
 """
 
 from __future__ import annotations
@@ -11,7 +11,6 @@ from datetime import date, timedelta
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Label, OptionList, Static
@@ -21,17 +20,14 @@ from fieldkit.jobs.models import now
 from fieldkit.jobs.store import StoreError, local_date
 from fieldkit.jobs.today import DaySummary, counted, day_summary
 from fieldkit.text.escape import terminal
+from fieldkit.tui import keys
 
 
 class EndOfDayScreen(ModalScreen[str | None]):
     """Dismisses with the id of a job to open, or None."""
 
     CSS_PATH = "jobs_today.tcss"
-    BINDINGS = [
-        Binding("escape,f7", "close", "Close", id="jobs_today.close"),
-        Binding("ctrl+left", "day(-1)", "Day before", id="jobs_today.before"),
-        Binding("ctrl+right", "day(1)", "Day after", id="jobs_today.after"),
-    ]
+    BINDINGS = keys.bindings("jobs_today")
 
     def __init__(self, day: date | None = None) -> None:
         super().__init__()
@@ -42,8 +38,15 @@ class EndOfDayScreen(ModalScreen[str | None]):
         with Vertical(id="eod-panel"):
             with Horizontal(id="eod-top"):
                 yield Label("", id="eod-title")
-                yield Button("◀", id="eod-before", compact=True, tooltip="Day before (Ctrl+←)")
-                yield Button("▶", id="eod-after", compact=True, tooltip="Day after (Ctrl+→)")
+                yield Button(
+                    "◀",
+                    id="eod-before",
+                    compact=True,
+                    tooltip=keys.tip("jobs_today", "column_previous"),
+                )
+                yield Button(
+                    "▶", id="eod-after", compact=True, tooltip=keys.tip("jobs_today", "column_next")
+                )
                 yield Button("Close", id="eod-close", compact=True, tooltip="Escape")
             yield Static("", id="eod-totals")
             yield OptionList(id="eod-jobs", markup=False)

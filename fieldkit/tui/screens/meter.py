@@ -1,7 +1,7 @@
 """The meter workspace: a reference by method, a whole cable's readings, pass/fail at once.
 
 Typing goes into one entry field; the grid (a DataTable) shows the losses. Type a reading,
-Enter, and the cursor moves on to the next fibre; Up/Down move between fibres, F7/F8 between
+Enter, and the cursor moves on to the next fibre; Up/Down move between fibres, Ctrl+←/→ between
 columns, and a click on a cell goes there. A plain number is a level in dBm; a unit (µW, nW,
 mW, dBW) may follow it. Results are saved into the chosen job's link as they are entered (a
 background save after each Enter; entries made while a save runs go with the next one).
@@ -17,11 +17,10 @@ from typing import Any
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Grid, Horizontal, Vertical
 from textual.screen import Screen
 from textual.timer import Timer
-from textual.widgets import Collapsible, DataTable, Footer, Input, Label, Static
+from textual.widgets import Collapsible, DataTable, Input, Label, Static
 
 from fieldkit import safety
 from fieldkit.actions.meter import (
@@ -37,14 +36,20 @@ from fieldkit.actions.meter import (
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError, Kind, parse, parse_number
 from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count
+from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.readings_grid import EntryInput, GridColumn, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
-KEYS_HINT = "Enter: next fibre · ↑↓ PgUp PgDn: fibres · F7/F8: columns · F9: clear · click a cell"
+_COLUMNS = f"{keys.display('column_previous')}/{keys.display('column_next')[5:]}"
+KEYS_HINT = (
+    f"Enter: next fibre · ↑↓ PgUp PgDn: fibres · {_COLUMNS}: columns · "
+    f"{keys.hint('remove')}: remove · click a cell"
+)
 #: The same keys in one line of a phone terminal, where rows go to the grid.
-KEYS_HINT_NARROW = "Enter/↑↓ fibre · F7/F8 column · F9 clear"
+KEYS_HINT_NARROW = f"Enter/↑↓ fibre · {_COLUMNS} col · {keys.hint('remove')} remove"
 DIRECTION_WORDS = {"1": "A→B", "2": "both"}
 MAX_FIBRES = 6912  # the largest ribbon cables made; anything above is a typing mistake
 
@@ -115,58 +120,7 @@ class MeterScreen(Screen[None]):
 
     CSS_PATH = "meter.tcss"
     AUTO_FOCUS = "#reading"
-    BINDINGS = [
-        Binding("down", "move(1)", "Next fibre", show=False, id="meter.next"),
-        Binding("up", "move(-1)", "Prev fibre", show=False, id="meter.prev"),
-        Binding("pagedown", "move(12)", "+12", show=False, id="meter.page_down"),
-        Binding("pageup", "move(-12)", "-12", show=False, id="meter.page_up"),
-        Binding(
-            "f7",
-            "column(-1)",
-            "Prev col",
-            show=False,
-            id="meter.prev_column",
-            tooltip="Previous wavelength/direction column",
-        ),
-        Binding(
-            "f8",
-            "column(1)",
-            "Next col",
-            show=False,
-            id="meter.next_column",
-            tooltip="Next wavelength/direction column",
-        ),
-        Binding(
-            "f9",
-            "clear_cell",
-            "Clear",
-            show=False,
-            id="meter.clear",
-            tooltip="Remove the reading of the cell under the cursor",
-        ),
-        Binding(
-            "ctrl+o",
-            "pick_job",
-            "Job",
-            id="meter.job",
-            tooltip="Choose the job and link the results are saved into",
-        ),
-        Binding(
-            "ctrl+y",
-            "history",
-            "History",
-            id="meter.history",
-            show=False,
-            tooltip="Every reading of this fibre saved in the job, retests and cleared ones too",
-        ),
-        Binding(
-            "ctrl+r",
-            "recheck",
-            "Recheck",
-            id="meter.recheck",
-            tooltip="Recheck the reference of this column at the end of the session",
-        ),
-    ]
+    BINDINGS = keys.bindings("meter")
 
     def __init__(self) -> None:
         super().__init__()
@@ -266,13 +220,13 @@ class MeterScreen(Screen[None]):
                     id="reading",
                     check=self._reading_acceptable,
                     tooltip="Type the reading and press Enter; Up/Down move "
-                    "between fibres, F7/F8 between columns",
+                    f"between fibres, {_COLUMNS} between columns",
                 )
             yield Static("", id="entry-message", classes="field-note")
             with Horizontal(id="meter-main"):
                 yield ReadingsGrid(id="readings")
                 yield Static("", id="meter-summary")
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def _field(
         self,
@@ -524,7 +478,7 @@ class MeterScreen(Screen[None]):
         column = self.active_column
         key = (column.wavelength_nm, column.direction or "A->B")
         if text == self._ref_text.get(key, "") and (key in self._refs) == bool(text.strip()):
-            return  # the field shown again for this column (F7/F8), nothing typed
+            return  # the field shown again for this column (Ctrl+←/→), nothing typed
         self._ref_text[key] = text
         if not text.strip():
             self._show_error("reference", "")
@@ -555,7 +509,7 @@ class MeterScreen(Screen[None]):
     def _limit_changed(self, text: str) -> None:
         wavelength_nm = self.active_column.wavelength_nm
         if text == self._limit_text.get(wavelength_nm, ""):
-            return  # the field shown again for this wavelength (F7/F8), nothing typed
+            return  # the field shown again for this wavelength (Ctrl+←/→), nothing typed
         self._limit_text[wavelength_nm] = text
         if not text.strip():
             self._show_error("limit", "")
@@ -937,7 +891,7 @@ class MeterScreen(Screen[None]):
 
     def _save_words(self) -> str:
         if self._job_id is None:
-            return "Ctrl+O: choose a job to save into"
+            return f"{keys.display('open')}: choose a job to save into"
         pending = len(self._pending)
         if self._save_error:
             return f"NOT SAVED ({pending} waiting): {self._save_error}"

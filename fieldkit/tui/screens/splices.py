@@ -12,16 +12,16 @@ import os
 from rich.text import Text
 from textual import events, on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
-from textual.widgets import Button, Footer, Input, Label, OptionList, Static
+from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from fieldkit import safety
 from fieldkit.calc.units import InputError
 from fieldkit.presets import load_presets
 from fieldkit.text import escape
+from fieldkit.tui import keys
 from fieldkit.tui.splice_session import (
     ENTRY_MODES,
     LABELS,
@@ -32,6 +32,7 @@ from fieldkit.tui.splice_session import (
     Step,
 )
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.readings_grid import EntryInput
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -58,18 +59,7 @@ class SplicesScreen(Screen[None]):
     """Closures, cables, trays and every splice of a link."""
 
     CSS_PATH = "splices.tcss"
-    BINDINGS = [
-        Binding("ctrl+o", "pick_job", "Open", id="splices.open", tooltip="Choose the job and link"),
-        Binding("ctrl+n", "new_closure", "New", id="splices.new", tooltip="Set up a new closure"),
-        Binding("ctrl+s", "start_closure", "Save", id="splices.save", show=False),
-        Binding("ctrl+e", "resplice", "Re-splice", id="splices.resplice"),
-        Binding("ctrl+y", "cycle_entry", "Fields", id="splices.fields"),
-        Binding("down", "move(1)", "Next", show=False),
-        Binding("up", "move(-1)", "Prev", show=False),
-        Binding("pagedown", "move(12)", "+12", show=False),
-        Binding("pageup", "move(-12)", "-12", show=False),
-        Binding("escape", "keep", "Keep", show=False),
-    ]
+    BINDINGS = keys.bindings("splices")
 
     def __init__(self) -> None:
         super().__init__()
@@ -111,7 +101,7 @@ class SplicesScreen(Screen[None]):
             yield Static("", id="sp-result")
             yield OptionList(id="sp-list")
         yield Static(SAFETY_SHORT, id="sp-safety")
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         defaults = ClosureSetup()

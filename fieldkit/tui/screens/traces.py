@@ -17,7 +17,6 @@ from textual.screen import ModalScreen, Screen
 from textual.widgets import (
     Button,
     DataTable,
-    Footer,
     Input,
     Label,
     OptionList,
@@ -31,7 +30,9 @@ from fieldkit.text.escape import terminal
 from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.model import TraceFileError
 from fieldkit.traces.session import TraceSession
+from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.trace_plot import Mark, TracePlot
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
@@ -44,33 +45,7 @@ class TracesScreen(Screen[None]):
     # Keys follow the project's key table: Ctrl+O open, Ctrl+S save onto a job's link (here:
     # into a closure's splice log), Ctrl+G go to the result (here: the break, in Fault),
     # Ctrl+Y cycle what the list shows, Esc close (back to the folder's fibres).
-    BINDINGS = [
-        Binding("ctrl+o", "open", "Open", id="traces.open", tooltip="Open the files typed above"),
-        Binding(
-            "ctrl+g",
-            "send_fault",
-            "To fault",
-            id="traces.fault",
-            tooltip="Send the selected event (or the end: the break) to the fault workspace",
-        ),
-        Binding(
-            "ctrl+s",
-            "fill_splices",
-            "Splice log",
-            id="traces.splices",
-            tooltip="Fill a closure's splice log on a job's link with these traces' losses",
-        ),
-        Binding(
-            "ctrl+y",
-            "cycle_view",
-            "Show",
-            id="traces.show",
-            tooltip="Cycle: A→B, B→A, the instrument's own events",
-        ),
-        Binding(
-            "escape", "back", "Fibres", id="traces.back", tooltip="Back to the folder's fibres"
-        ),
-    ]
+    BINDINGS = keys.bindings("traces")
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         if action == "back":
@@ -108,7 +83,7 @@ class TracesScreen(Screen[None]):
         yield table
         yield Static("", id="traces-note", markup=False)
         yield Static(safety.OTDR_LIVE_FIBRE, id="traces-caution", markup=False)
-        yield Footer(compact=True)
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         self.query_one("#traces-progress").display = False
@@ -317,7 +292,10 @@ class TracesScreen(Screen[None]):
 
         s = self.session
         if s.a is None and s.folder is None:
-            self._say("Open traces first, then Ctrl+L fills a closure's splice log.", True)
+            self._say(
+                f"Open traces first, then {keys.display('save')} fills a closure's splice log.",
+                True,
+            )
             return
         self.app.push_screen(JobLinkPicker(), self._link_chosen)
 

@@ -17,6 +17,7 @@ from rich.text import Text
 from textual.events import Click, MouseEvent, MouseMove
 from textual.widget import Widget
 
+from fieldkit.tui import keys
 from fieldkit.tui.workspaces import WORKSPACES
 
 
@@ -30,8 +31,8 @@ class Tab(NamedTuple):
 
 
 TABS: tuple[Tab, ...] = (
-    *(Tab(ws.mode, f"workspace('{ws.mode}')", ws.key.upper(), ws.title) for ws in WORKSPACES),
-    Tab("help", "show_help", "F1", "Help"),
+    *(Tab(ws.mode, f"workspace('{ws.mode}')", keys.display(ws.key), ws.title) for ws in WORKSPACES),
+    Tab("help", "show_help", keys.display(keys.place_key("help")), "Help"),
 )
 
 

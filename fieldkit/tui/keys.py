@@ -1,0 +1,502 @@
+"""One table of keys: it builds every footer's bindings, the Help page and the README key table.
+
+Our mapping, in two rules a crew learns once:
+
+- **Function keys go to a place.** F1 Help, then one key per workspace (F2 Convert ... F9).
+- **Ctrl+letter keys act where you are, with the same meaning in every workspace.** Ctrl+N is
+  always *new*, Ctrl+O *open*, Ctrl+S *save*, Ctrl+A *add*, Ctrl+X *remove*, Ctrl+R
+  *recheck / reload*, and so on (`COMMON` below). A workspace that has nothing for a key leaves
+  it unused rather than giving it another meaning. They work while a field has focus, so
+  Ctrl+A, Ctrl+E and Ctrl+D do not move or delete in a text field: Home, End and Delete do.
+- Ctrl+Q quits and shows first in every footer.
+
+A screen takes its bindings from here (``BINDINGS = keys.bindings("budget")``) and its button
+hints from ``keys.hint(...)``; the app takes its own from ``keys.app_bindings()``; the Help page
+renders ``keys.help_markdown()``; the README's key tables are ``keys.readme_tables()``, and a test
+checks that README.md holds exactly that (``python -m fieldkit.tui.keys README.md`` rewrites it).
+
+A new workspace gets its function key from ``PLACES`` and lists what it does with the common keys
+in ``USES``; a key of its own goes in ``LOCAL`` (named by the workspace, so Help shows it beside
+that workspace only). No import of Textual at module level beyond ``Binding``: it is cheap.
+"""
+
+from __future__ import annotations
+
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, Protocol
+
+from textual.binding import Binding, BindingType
+
+if TYPE_CHECKING:
+    from collections.abc import Iterable
+
+
+class _Workspace(Protocol):
+    @property
+    def mode(self) -> str: ...
+    @property
+    def title(self) -> str: ...
+    @property
+    def help(self) -> str: ...
+
+
+__all__ = [
+    "COMMON",
+    "LOCAL",
+    "PLACES",
+    "USES",
+    "Key",
+    "Use",
+    "app_bindings",
+    "bindings",
+    "display",
+    "help_markdown",
+    "hint",
+    "place_key",
+    "readme_tables",
+]
+
+
+@dataclass(frozen=True, slots=True)
+class Key:
+    """A key and the one thing it means wherever it is used."""
+
+    name: str  # our id: "new", "open", ...
+    key: str  # Textual's key name(s): "ctrl+n"; the first one is shown
+    label: str  # the footer word
+    meaning: str  # what it means in every workspace (Help, README)
+
+
+@dataclass(frozen=True, slots=True)
+class Use:
+    """What a key does in one workspace."""
+
+    name: str  # a Key.name from COMMON or LOCAL
+    action: str | None  # the screen's Textual action; None: a widget handles it (documented only)
+    does: str  # what it does here (Help, README, the footer tooltip)
+    show: bool = True  # shown in the footer (a button or the hint line may carry it instead)
+    label: str | None = None  # a footer word of its own, where the common one reads wrong
+
+
+#: The keys that mean the same everywhere. Order: the order Help and the README list them.
+COMMON: tuple[Key, ...] = (
+    Key("quit", "ctrl+q", "Quit", "quit fieldkit (every footer shows it first)"),
+    Key("new", "ctrl+n", "New", "start a new, empty one: a budget, a fault, a job"),
+    Key("open", "ctrl+o", "Open", "choose what to work on: a saved budget, a job and link"),
+    Key("save", "ctrl+s", "Save", "save onto a job's link"),
+    Key("add", "ctrl+a", "Add", "add an item, a row, a link"),
+    Key("remove", "ctrl+x", "Remove", "remove the picked item, row or reading (a job asks first)"),
+    Key("edit", "ctrl+e", "Edit", "edit or redo the picked job, link or splice"),
+    Key("recheck", "ctrl+r", "Recheck", "recheck or reload: the reference, the list"),
+    Key("find", "ctrl+f", "Find", "jump to the find field"),
+    Key(
+        "result",
+        "ctrl+g",
+        "Result",
+        "go to the result: the position, the totals, the day, a break sent to Fault",
+    ),
+    Key("done", "ctrl+d", "Done", "mark done, or open again"),
+    Key("export", "ctrl+w", "Export", "write a report: CSV, Markdown, HTML, hand-off"),
+    Key("note", "ctrl+l", "Note", "log a note"),
+    Key("filter", "ctrl+y", "Show", "cycle what the list or the entry shows"),
+)
+
+#: Keys that belong to a kind of work rather than to every workspace (moving in a list or a
+#: grid, taking an entry). They still mean one thing wherever they appear.
+LOCAL: tuple[Key, ...] = (
+    Key("enter", "enter", "Enter", "take what you typed and go on"),
+    Key("next", "down", "Next", "next fibre, row or job"),
+    Key("previous", "up", "Prev", "previous fibre, row or job"),
+    Key("page_down", "pagedown", "+12", "12 fibres on"),
+    Key("page_up", "pageup", "-12", "12 fibres back"),
+    Key("column_next", "ctrl+right", "Next col", "next column or day"),
+    Key("column_previous", "ctrl+left", "Prev col", "previous column or day"),
+    Key("move_up", "ctrl+up", "Up", "move the picked item up the list"),
+    Key("move_down", "ctrl+down", "Down", "move the picked item down the list"),
+    Key("delete", "delete", "Delete", "in a list: remove the picked row"),
+    Key("close", "escape", "Close", "close a dialog or page, keep what was typed"),
+    Key("today", "ctrl+k", "Today", "only today's jobs, or every day again"),
+)
+
+#: The function key of each workspace (mode name -> key). F1 is Help. Modes listed here but
+#: not (yet) in fieldkit.tui.workspaces.WORKSPACES are reserved for workspaces being built.
+PLACES: dict[str, str] = {
+    "help": "f1",
+    "convert": "f2",
+    "budget": "f3",
+    "meter": "f4",
+    "fault": "f5",
+    "jobs": "f6",
+    "splices": "f7",
+    "traces": "f8",
+    "fibre": "f9",  # reserved: the fibre data view, if it becomes a workspace (issue 13)
+}
+
+#: App-wide keys besides the workspaces (Help and README list them after the places).
+GENERAL: tuple[tuple[str, str, str], ...] = (
+    ("palette", "ctrl+p", "the command palette: every command and workspace by name"),
+    ("sunlight", "ctrl+t", "the high-contrast theme for direct sunlight, on or off (remembered)"),
+    ("focus", "tab", "the next field; Shift+Tab the previous one"),
+)
+
+#: What each workspace does with the keys. Reserved entries for workspaces being built say what
+#: they are expected to do; a workspace adopts its row when it lands (or changes it here).
+USES: dict[str, tuple[Use, ...]] = {
+    "convert": (Use("enter", None, "next field", show=False),),
+    "budget": (
+        Use("add", "add_item", "add an item of the kind chosen beside Add"),
+        Use(
+            "new",
+            "new_budget",
+            "start an empty budget (press twice if this one has unsaved changes)",
+        ),
+        Use("save", "save", "save this budget onto a job's link"),
+        Use("open", "open_saved", "open the budget saved on a job's link"),
+        Use("remove", "remove_item", "remove the picked item", show=False),
+        Use("result", "focus_result", "go to the per-wavelength totals", show=False),
+        Use("move_up", "move_item(-1)", "move the picked item towards end A", show=False),
+        Use("move_down", "move_item(1)", "move the picked item towards end B", show=False),
+    ),
+    "meter": (
+        Use("open", "pick_job", "choose the job and link the results go into"),
+        Use("recheck", "recheck", "recheck this column's reference at the end of the session"),
+        Use(
+            "filter",
+            "history",
+            "every reading of this fibre saved in the job, retests and cleared ones too",
+            show=False,
+            label="History",
+        ),
+        Use("remove", "clear_cell", "remove the reading under the cursor", show=False),
+        Use("enter", None, "take the reading, go to the next fibre", show=False),
+        Use("next", "move(1)", "next fibre", show=False),
+        Use("previous", "move(-1)", "previous fibre", show=False),
+        Use("page_down", "move(12)", "12 fibres on", show=False),
+        Use("page_up", "move(-12)", "12 fibres back", show=False),
+        Use("column_next", "column(1)", "next wavelength / direction column", show=False),
+        Use("column_previous", "column(-1)", "previous wavelength / direction column", show=False),
+    ),
+    "fault": (
+        Use(
+            "new", "new_fault", "empty the reading and the rows; the set-up stays (twice if typed)"
+        ),
+        Use("save", "save", "save this located fault onto a job's link"),
+        Use("result", "focus_result", "go to the result and the route diagram"),
+        Use("add", "add_point", "add the landmark or slack row being typed", show=False),
+        Use("remove", "remove_point", "remove the picked landmark or slack row", show=False),
+        Use("enter", None, "in a landmark or slack row: add it", show=False),
+        Use("delete", None, "in the landmark or slack list: remove the picked row", show=False),
+    ),
+    "jobs": (
+        Use("find", "focus_filter", "find jobs by name, customer, site, crew, link or day"),
+        Use("note", "focus_note", "type a note for this job; Enter saves it"),
+        Use("open", "focus_list", "go to the job list (arrows move it)", show=False),
+        Use("done", "toggle_done", "mark the job done, or open it again", show=False),
+        Use("export", "export", "write the job's report", show=False),
+        Use(
+            "result",
+            "end_of_day",
+            "the end-of-day view: today's counts and open items",
+            show=False,  # a button under the job's name carries it
+            label="End of day",
+        ),
+        Use("filter", "cycle_status", "all, open or done jobs", show=False),
+        Use("recheck", "reload", "read the jobs again (changes by another program)", show=False),
+        Use("new", "new_job", "start a job: name, customer, site, crew"),
+        Use("edit", "edit_job", "edit the job: name, customer, site, crew", show=False),
+        Use("add", "link", "add a link to the job, or edit one", show=False, label="Link"),
+        Use("remove", "delete_job", "delete the job into the trash (asks first)", show=False),
+        Use("today", "toggle_today", "only today's jobs, or every day again", show=False),
+    ),
+    "jobs_today": (
+        Use("column_previous", "day(-1)", "the day before", label="Day before"),
+        Use("column_next", "day(1)", "the day after", label="Day after"),
+        Use("close", "close", "close the view", label="Close"),
+        Use("result", "close", "close the view", show=False),
+    ),
+    "splices": (
+        Use("open", "pick_job", "choose the job and link"),
+        Use("new", "new_closure", "set up a new closure"),
+        Use("save", "start_closure", "start the closure set up above", show=False),
+        Use("edit", "resplice", "re-splice the fibre under the cursor (the old one kept)"),
+        Use("filter", "cycle_entry", "which values Enter takes", label="Fields"),
+        Use("enter", None, "take the value, go to the next splice", show=False),
+        Use("next", "move(1)", "next fibre", show=False),
+        Use("previous", "move(-1)", "previous fibre", show=False),
+        Use("page_down", "move(12)", "12 fibres on", show=False),
+        Use("page_up", "move(-12)", "12 fibres back", show=False),
+        Use("close", "keep", "keep what is there, do not replace it", show=False),
+    ),
+    "traces": (
+        Use("open", "open", "open the files typed above"),
+        Use(
+            "result",
+            "send_fault",
+            "send the picked event (or the end: the break) to Fault",
+            label="To fault",
+        ),
+        Use(
+            "save",
+            "fill_splices",
+            "fill a closure's splice log on a job's link with these losses",
+            label="Splice log",
+        ),
+        Use("filter", "cycle_view", "cycle A→B, B→A, the instrument's own events"),
+        Use("close", "back", "back to the folder's fibres", label="Fibres"),
+    ),
+    # Reserved: "fibre" (issue 13), if the fibre data view becomes a workspace of its own.
+}
+
+#: The titles used in Help and the README for entries of USES that are not workspaces.
+_SUB_TITLES = {"jobs_today": "End of day (in Jobs)"}
+
+_BY_NAME: dict[str, Key] = {k.name: k for k in (*COMMON, *LOCAL)}
+
+_KEY_WORDS = {
+    "ctrl": "Ctrl",
+    "shift": "Shift",
+    "up": "↑",
+    "down": "↓",
+    "left": "←",
+    "right": "→",
+    "pageup": "PgUp",
+    "pagedown": "PgDn",
+    "escape": "Esc",
+    "enter": "Enter",
+    "delete": "Delete",
+    "tab": "Tab",
+    "home": "Home",
+    "end": "End",
+}
+
+
+def key_of(name: str) -> Key:
+    """The key called ``name`` in COMMON or LOCAL (KeyError if there is none)."""
+    return _BY_NAME[name]
+
+
+def display(key: str) -> str:
+    """A Textual key name as people write it: ``ctrl+n`` -> ``Ctrl+N``, ``pagedown`` -> ``PgDn``.
+
+    A name of COMMON or LOCAL (``"save"``) is looked up first.
+    """
+    if key in _BY_NAME:
+        key = _BY_NAME[key].key
+    first = key.split(",")[0]
+    parts = first.split("+")
+    shown = [_KEY_WORDS.get(p, p.upper() if len(p) <= 3 else p.capitalize()) for p in parts]
+    return "+".join(shown)
+
+
+def hint(name: str) -> str:
+    """The short form for a button label: ``^S`` for Ctrl+S, ``F7`` for a function key."""
+    shown = display(name)
+    return "^" + shown[5:] if shown.startswith("Ctrl+") and len(shown) == 6 else shown
+
+
+def place_key(mode: str) -> str:
+    """The function key of a workspace (``"f3"``)."""
+    return PLACES[mode]
+
+
+def uses(mode: str) -> tuple[Use, ...]:
+    return USES.get(mode, ())
+
+
+def does(mode: str, name: str) -> str:
+    """What key ``name`` does in workspace ``mode`` (for tooltips)."""
+    for use in uses(mode):
+        if use.name == name:
+            return use.does
+    raise KeyError((mode, name))
+
+
+def tip(mode: str, name: str) -> str:
+    """A tooltip: what the key does here, and the key: ``Save onto a job's link (Ctrl+S)``."""
+    text = does(mode, name)
+    return f"{text[:1].upper()}{text[1:]} ({display(name)})"
+
+
+def _quit_binding() -> Binding:
+    # Priority, so no field can swallow it; first in the footer, so it is never cut off.
+    return Binding("ctrl+q", "app.quit", "Quit", id="app.quit", priority=True, tooltip="Quit")
+
+
+def bindings(mode: str) -> list[BindingType]:
+    """The Textual bindings of a screen: Quit first, then its uses of the table, in order.
+
+    Ctrl keys are priority bindings, so they act while a text field has focus. Uses with no
+    action are documentation only (a widget handles the key).
+    """
+    result: list[BindingType] = [_quit_binding()]
+    for use in uses(mode):
+        if use.action is None:
+            continue
+        key = _BY_NAME[use.name]
+        result.append(
+            Binding(
+                key.key,
+                use.action,
+                use.label or key.label,
+                show=use.show,
+                id=f"{mode}.{use.name}",
+                tooltip=f"{use.does[:1].upper()}{use.does[1:]}",
+                priority=key.key.startswith("ctrl+"),
+            )
+        )
+    return result
+
+
+def app_bindings(workspaces: Iterable[_Workspace]) -> list[BindingType]:
+    """The app's own bindings: Help, a function key per workspace, sunlight, quit.
+
+    ``workspaces`` is fieldkit.tui.workspaces.WORKSPACES (passed in: that module imports this).
+    """
+    result: list[BindingType] = [
+        Binding(
+            PLACES["help"],
+            "show_help",
+            "Help",
+            id="app.help",
+            tooltip="Keys and safety cautions",
+            show=False,
+        )
+    ]
+    for ws in workspaces:
+        result.append(
+            Binding(
+                place_key(ws.mode),
+                f"workspace('{ws.mode}')",
+                ws.title,
+                id=f"workspace.{ws.mode}",
+                tooltip=ws.help,
+                show=False,  # the workspace bar at the top shows these keys, and takes clicks
+            )
+        )
+    result.append(
+        Binding(
+            "ctrl+t",
+            "toggle_sunlight",
+            "Sunlight",
+            id="app.sunlight",
+            tooltip="Switch to the high-contrast theme for direct sunlight, and back",
+            show=False,  # the footer's room goes to Quit and the workspace's keys; Help lists it
+        )
+    )
+    result.append(_quit_binding())
+    return result
+
+
+# -- Help and README ------------------------------------------------------------------------
+def _workspaces() -> tuple[_Workspace, ...]:
+    from fieldkit.tui.workspaces import WORKSPACES
+
+    return WORKSPACES
+
+
+def _sentence(text: str) -> str:
+    return f"{text[:1].upper()}{text[1:]}"
+
+
+def help_markdown() -> str:
+    """The Keys part of the Help page, as Markdown lists (a table's key column is cut to
+    "Ctrl…" on a phone terminal, so lists, which wrap)."""
+    lines = [
+        "Function keys go to a place; Ctrl+letter keys act where you are and mean the same in "
+        "every workspace. A workspace with nothing for a key leaves it unused. Ctrl keys work "
+        "while you type, so in a text field use Home, End and Delete rather than Ctrl+A, "
+        "Ctrl+E and Ctrl+D.",
+        "",
+        "## Places",
+        "",
+        f"- **{display(PLACES['help'])} Help**: this page (Esc closes it)",
+    ]
+    for ws in _workspaces():
+        lines.append(f"- **{display(place_key(ws.mode))} {ws.title}**: {ws.help}")
+    lines += ["", "## The same everywhere", ""]
+    lines += [f"- **{display(k.key)} {k.label}**: {k.meaning}" for k in COMMON if _used(k)]
+    lines += [f"- **{display(key)}**: {what}" for _, key, what in GENERAL]
+    for mode, title in _used_places():
+        lines += ["", f"## {title}", ""]
+        lines += [f"- **{display(u.name)}**: {u.does}" for u in uses(mode)]
+    return "\n".join(lines) + "\n"
+
+
+def _used(key: Key) -> bool:
+    """Quit, or a key some workspace uses (a key kept for a workspace being built is not shown)."""
+    return key.name == "quit" or any(u.name == key.name for us in USES.values() for u in us)
+
+
+def _used_places() -> list[tuple[str, str]]:
+    places: list[tuple[str, str]] = []
+    for ws in _workspaces():
+        mode, title = ws.mode, ws.title
+        places.append((mode, f"{title} ({display(place_key(mode))})"))
+        places += [(sub, t) for sub, t in _SUB_TITLES.items() if sub.startswith(mode + "_")]
+    return [(m, t) for m, t in places if uses(m)]
+
+
+def _cell(text: str) -> str:
+    return text.replace("|", "\\|")
+
+
+def readme_tables() -> str:
+    """The README's key tables: the places, then each key by workspace (— where unused)."""
+    workspaces = _workspaces()
+    lines = [
+        "| key | workspace | what it is for |",
+        "|---|---|---|",
+        f"| {display(PLACES['help'])} | Help | keys and the safety cautions; Esc closes |",
+    ]
+    for ws in workspaces:
+        key = display(place_key(ws.mode))
+        lines.append(f"| {key} | {ws.title} | {_cell(ws.help)} |")
+    modes = [ws.mode for ws in workspaces]
+    titles = [ws.title for ws in workspaces]
+    lines += [
+        "",
+        "| key | means | " + " | ".join(titles) + " |",
+        "|---|---|" + "---|" * len(titles),
+    ]
+    for entry in (*COMMON, *LOCAL):
+        cells = []
+        for mode in modes:
+            here = [u.does for u in uses(mode) if u.name == entry.name]
+            if entry.name == "quit":
+                here = ["quit"]
+            cells.append(_cell("; ".join(here)) if here else "—")
+        if all(c == "—" for c in cells):
+            continue
+        lines.append(
+            f"| {display(entry.key)} | {_cell(entry.meaning)} | " + " | ".join(cells) + " |"
+        )
+    general = "; ".join(f"{display(key)} {what}" for _, key, what in GENERAL)
+    lines += ["", f"Everywhere: {general}."]
+    return "\n".join(lines) + "\n"
+
+
+README_START = "<!-- keys: generated by fieldkit/tui/keys.py; do not edit by hand -->"
+README_END = "<!-- keys: end -->"
+
+
+def readme_with_tables(readme: str) -> str:
+    """README text with the block between the markers replaced by ``readme_tables()``."""
+    start = readme.index(README_START) + len(README_START)
+    end = readme.index(README_END)
+    return readme[:start] + "\n" + readme_tables() + readme[end:]
+
+
+def main(argv: list[str]) -> int:
+    """``python -m fieldkit.tui.keys README.md`` rewrites the README's key tables."""
+    if len(argv) != 1:
+        print("usage: python -m fieldkit.tui.keys README.md", file=sys.stderr)
+        return 2
+    path = Path(argv[0])
+    path.write_text(readme_with_tables(path.read_text(encoding="utf-8")), encoding="utf-8")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main(sys.argv[1:]))

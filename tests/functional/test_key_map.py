@@ -1,0 +1,111 @@
+"""One key map: every workspace's footer comes from the key table, shows Quit first and fits
+80x24 and 44x22; a key does the same kind of thing in every workspace."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import Footer, Input, OptionList
+from textual.widgets._footer import FooterKey
+
+from fieldkit.tui import keys
+from fieldkit.tui.app import make_app
+from fieldkit.tui.workspaces import WORKSPACES
+
+SIZES = [(80, 24), (44, 22)]
+
+
+def _app(tmp_path: Path, mode: str):
+    return make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode=mode)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_every_footer_shows_quit_first_and_nothing_cut(tmp_path: Path, size) -> None:
+    app = _app(tmp_path, WORKSPACES[0].mode)
+    async with app.run_test(size=size) as pilot:
+        for ws in WORKSPACES:
+            await pilot.press(ws.key)
+            shown: list[FooterKey] = []
+            for _ in range(50):  # the footer recomposes after the bindings settle (a loaded CI)
+                await pilot.pause()
+                footer = app.screen.query_one(Footer)
+                keys_now = footer.query(FooterKey)
+                shown = [k for k in keys_now if not k.has_class("-command-palette")]
+                if app.current_mode == ws.mode and shown and all(k.region.width for k in shown):
+                    break
+            assert app.current_mode == ws.mode
+            assert shown and shown[0].description == "Quit", ws.mode
+            assert shown[0].key == "ctrl+q"
+            right = size[0]
+            palettes = footer.query(".-command-palette")
+            if palettes:
+                right = palettes.first(FooterKey).region.x
+            for key in shown:  # each key ends before the palette key starts: nothing cut off
+                assert key.region.right <= right, (ws.mode, key.description)
+            # The footer shows the table's shown uses of this workspace, in its order: all of
+            # them at 80 columns; at 44 those that fit, the last ones left out (Help lists all).
+            wanted = ["Quit"] + [
+                u.label or keys.key_of(u.name).label
+                for u in keys.uses(ws.mode)
+                if u.show
+                and u.action is not None
+                # a key the screen turns off for now (Esc back to a folder, with none open)
+                and app.screen.check_action(u.action.split("(")[0], ()) is not False
+            ]
+            got = [k.description for k in shown]
+            if size[0] >= 80:
+                assert got == wanted, ws.mode
+            else:
+                assert got == [w for w in wanted if w in got], ws.mode
+                assert len(got) >= min(3, len(wanted)), ws.mode
+
+
+async def test_ctrl_keys_act_while_typing(tmp_path: Path) -> None:
+    # Ctrl+A is "home" to a bare text field; in our map it adds, even with the cursor in a field.
+    app = _app(tmp_path, "budget")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert isinstance(app.screen.focused, Input)
+        before = len(app.screen.items)
+        await pilot.press("ctrl+a")
+        await pilot.pause()
+        assert len(app.screen.items) == before + 1
+        await pilot.press("ctrl+x")
+        await pilot.pause()
+        assert len(app.screen.items) == before
+
+
+async def test_ctrl_o_opens_in_every_workspace_that_has_it(tmp_path: Path) -> None:
+    # Ctrl+O means "choose what to work on": a picker in budget and meter, the list in jobs;
+    # before the key map it marked a job done in Jobs.
+    from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+    app = _app(tmp_path, "budget")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        for mode in ("budget", "meter"):
+            await pilot.press(keys.place_key(mode))
+            await pilot.pause()
+            await pilot.press("ctrl+o")
+            await pilot.pause()
+            assert isinstance(app.screen, JobLinkPicker), mode
+            await pilot.press("escape")
+            await pilot.pause()
+        await pilot.press(keys.place_key("jobs"))
+        await pilot.pause()
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        assert isinstance(app.screen.focused, OptionList)
+        assert app.screen.focused.id == "jobs-list"
+
+
+async def test_quit_works_from_a_dialog(tmp_path: Path) -> None:
+    app = _app(tmp_path, "meter")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+    assert app.return_code == 0
