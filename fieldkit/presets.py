@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import math
 import tomllib
+from abc import ABC, abstractmethod
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
@@ -552,7 +553,7 @@ def _ports_table(raw: Any, info: ValidationInfo) -> dict[int, float]:
     return out
 
 
-class _Entry(BaseModel):
+class _Entry(BaseModel, ABC):
     """What every preset entry has: a name, the source of its values, optional notes."""
 
     model_config = ConfigDict(extra="forbid", frozen=True)
@@ -561,9 +562,9 @@ class _Entry(BaseModel):
     source: Text
     notes: Any = None
 
+    @abstractmethod
     def preset(self, origin: str) -> Any:
         """The typed preset of this entry (each kind gives its own)."""
-        raise NotImplementedError
 
 
 class FibreEntry(_Entry):

@@ -25,7 +25,7 @@ import re
 _PICTURES = {code: chr(0x2400 + code) for code in range(0x20)} | {0x7F: "\u2421"}
 #: C1 controls (a terminal may read U+009B as CSI) and the invisible characters that reorder
 #: or hide text (bidirectional overrides and isolates, zero-width joiners, BOM, line and
-#: paragraph separators) are written as <U+XXXX>.
+#: paragraph separators) are written as <U+hex code>, e.g. <U+202E>.
 _INVISIBLE = (
     [*range(0x80, 0xA0)]
     + [0x061C, 0x200B, 0x200C, 0x200D, 0x200E, 0x200F, 0x2028, 0x2029]
