@@ -221,13 +221,14 @@ class FieldkitApp(App[None]):
         if callable(action):
             action()
 
-    def run(self, *args: Any, **kwargs: Any) -> None:
+    def run(self, *args: Any, **kwargs: Any) -> Any:
         # Start-up makes tens of thousands of objects that live as long as the app; the
         # collector walking them while they are made costs a tenth of the first frame.
         # It runs again once the first workspace is on screen (see _started).
         gc.disable()
         try:
-            super().run(*args, **kwargs)
+            # The app's return value (a headless run's screenshot, for one) is passed on.
+            return super().run(*args, **kwargs)
         finally:
             gc.enable()
 
