@@ -10,6 +10,7 @@ columns; the CLI prints the same lines).
 from __future__ import annotations
 
 import re
+import textwrap
 from typing import Any
 
 from fieldkit.calc.budget import (
@@ -61,6 +62,32 @@ def signed_length(x_m: float) -> str:
     return sign + length(abs(x_m))
 
 
+#: A space between a number and its unit, or after "×": a line is never broken there.
+_UNIT_GAP = re.compile(r"(?<=\d) (?=(?:dBm|dB|nm|km|m|ps|GBd|MHz|µm|%)(?![A-Za-z]))|(?<=×) ")
+NBSP = "\u00a0"
+
+
+def keep_units(text: str) -> str:
+    """``text`` with a no-break space between each number and its unit (``0.30\u00a0dB``) and
+    after ``×``, so a display that wraps never leaves a unit alone on the next line."""
+    return _UNIT_GAP.sub(NBSP, text)
+
+
+def wrap(line: str, width: int | None, indent: int) -> list[str]:
+    """``line`` broken into lines of at most ``width`` (None: as it is), continuation lines
+    indented by ``indent`` spaces, never between a number and its unit."""
+    if width is None or len(line) <= width:
+        return [line]
+    parts = textwrap.wrap(
+        keep_units(line),
+        width=max(width, indent + 8),
+        subsequent_indent=" " * indent,
+        break_long_words=False,
+        break_on_hyphens=False,
+    )
+    return [p.replace(NBSP, " ") for p in parts] or [line]
+
+
 def verdict_word(verdict: str) -> str:
     return VERDICT_WORD.get(verdict, verdict.upper())
 
@@ -72,17 +99,23 @@ def _ok(flag: bool | None, bad: str) -> str:
 # -- the loss budget ---------------------------------------------------------------------------
 
 
-def breakdown_lines(report: BudgetReport) -> list[str]:
-    """Per wavelength: the maximum and typical totals, the total with the margin, the items."""
+def breakdown_lines(report: BudgetReport, width: int | None = None) -> list[str]:
+    """Per wavelength: the maximum and typical totals, the total with the margin, the items.
+
+    With a ``width`` (a workspace panel), longer lines wrap under their own text (an item's
+    name under the name, not under its loss), never between a number and its unit.
+    """
     r = report.result
-    lines: list[str] = [f"Note: {n}" for n in r.notes]
+    lines: list[str] = []
+    for n in r.notes:
+        lines += wrap(f"Note: {n}", width, 2)
     for w in r.wavelengths:
         typical = "—" if w.typical_loss_db is None else f"{w.typical_loss_db:.2f}"
-        lines.append(f"{nm(w.wavelength_nm)}  max {db(w.loss_db)}  typ {typical} dB")
+        lines += wrap(f"{nm(w.wavelength_nm)}  max {db(w.loss_db)}  typ {typical} dB", width, 2)
         if r.margin_db:
-            lines.append(f"  with {db(r.margin_db)} margin: {db(w.loss_with_margin_db)}")
+            lines += wrap(f"  with {db(r.margin_db)} margin: {db(w.loss_with_margin_db)}", width, 4)
         for item in w.items:
-            lines.append(f"  {item.loss_db:6.2f}  {item.name}")
+            lines += wrap(f"  {item.loss_db:6.2f}  {item.name}", width, 10)
     lines.append(f"Fibre length {length(r.length_m)}")
     return lines
 

@@ -1,15 +1,13 @@
 """The budget workspace: build a link item by item and read its loss at each wavelength.
 
-The link is a list of items (fibre segments in order from end A, mated connector pairs, splices,
-splitters and other components). Pick one in the list to edit it below; the totals, the
-breakdown and the application and transceiver checks update on every keystroke. The same
-written description goes through :mod:`fieldkit.linkspec` as ``fieldkit budget`` uses, so the
-screen and the CLI always agree.
+Layout and wiring only: the items, the settings and what they give live in
+:mod:`fieldkit.tui.budget_model` (tested without a terminal); the lines shown come from
+:mod:`fieldkit.text.budget`, the ones ``fieldkit budget`` prints. Pick an item in the list to
+edit it below; the totals, the breakdown and the checks update on every keystroke.
 """
 
 from __future__ import annotations
 
-import re
 from typing import Any
 
 from rich.text import Text
@@ -20,347 +18,46 @@ from textual.screen import Screen
 from textual.widgets import Button, Input, Label, OptionList, Select, Static
 
 from fieldkit import safety
-from fieldkit.calc.units import InputError
+from fieldkit.text import budget as lines
 from fieldkit.tui import keys
+from fieldkit.tui.budget_model import (
+    ADD_KINDS,
+    DEFAULT_ADD_KIND,
+    KINDS,
+    SETTING_FIELDS,
+    TYPED,
+    BudgetModel,
+    Item,
+    Outcome,
+    extra_shown,
+    item_errors,
+    item_text,
+    items_from_spec,
+)
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
-TYPED = "__typed__"
 #: The second item field also takes ``1310=0.35 dB/km; 1550=0.22 dB/km`` and names.
 EXTRA_CHARS = QUANTITY_CHARS[:-2] + "=;:()]*"
-
-#: Item kinds: what the list shows and what each field of the editor means for it.
-KINDS: dict[str, dict[str, str]] = {
-    "fibre": {
-        "title": "Fibre",
-        "preset": "Fibre",
-        "value": "Length",
-        "extra": "dB/km",
-        "value_hint": "1.2 km, 3900 ft",
-        "extra_hint": "0.35 dB/km or 1310=0.35 dB/km; 1550=0.22 dB/km",
-    },
-    "connectors": {
-        "title": "Connectors",
-        "preset": "Grade",
-        "value": "Pairs",
-        "extra": "Each",
-        "value_hint": "mated pairs incl. both ends",
-        "extra_hint": "0.5 dB",
-    },
-    "splices": {
-        "title": "Splices",
-        "preset": "Grade",
-        "value": "Count",
-        "extra": "Each",
-        "value_hint": "6",
-        "extra_hint": "0.1 dB",
-    },
-    "splitter": {
-        "title": "Splitter",
-        "preset": "Preset",
-        "value": "Split",
-        "extra": "Excess",
-        "value_hint": "1x32",
-        "extra_hint": "2.0 dB",
-    },
-    "component": {
-        "title": "Component",
-        "preset": "Preset",
-        "value": "Count",
-        "extra": "",
-        "value_hint": "1",
-        "extra_hint": "",
-    },
-    "attenuator": {
-        "title": "Attenuator",
-        "preset": "",
-        "value": "Loss",
-        "extra": "",
-        "value_hint": "5 dB",
-        "extra_hint": "",
-    },
-    "other": {
-        "title": "Other loss",
-        "preset": "",
-        "value": "Loss",
-        "extra": "Name",
-        "value_hint": "0.5 dB",
-        "extra_hint": "patch cord, closure ...",
-    },
-}
-ADD_KINDS = ("fibre", "splices", "splitter", "component", "attenuator", "other", "connectors")
-
-
-def _keep_indent(line: str) -> str:
-    """Leading spaces as no-break spaces, so the text layout keeps the indent."""
-    stripped = line.lstrip(" ")
-    return "\u00a0" * (len(line) - len(stripped)) + stripped
-
-
-def attenuation_entry(text: str) -> Any:
-    """A typed attenuation as the link description takes it (see
-    :func:`fieldkit.inputs.attenuation_entry`: the CLI's rule too)."""
-    from fieldkit.inputs import attenuation_entry as entry
-
-    return entry(text)
-
-
-def item_entry(item: dict[str, str]) -> tuple[str, Any]:
-    """Where an item goes in the link description, and its entry there."""
-    kind, preset, value, extra = (
-        item["kind"],
-        item.get("preset") or "",
-        item.get("value", ""),
-        item.get("extra", ""),
-    )
-    if kind == "fibre":
-        seg: dict[str, Any] = {"length": value}
-        if preset == TYPED:
-            seg["attenuation"] = attenuation_entry(extra)
-        else:
-            seg["fibre"] = preset
-        return "segments", seg
-    if kind in ("connectors", "splices"):
-        entry: dict[str, Any] = {"count": value or ("2" if kind == "connectors" else "0")}
-        if preset == TYPED:
-            entry["loss"] = extra
-            if kind == "splices":
-                entry["method"] = "fusion"
-        else:
-            entry["grade"] = preset
-        return kind, entry
-    if kind == "splitter":
-        split: dict[str, Any] = {"splitter": value}
-        if preset == TYPED:
-            split["excess"] = extra
-        elif preset:
-            split["preset"] = preset
-        return "components", split
-    if kind == "component":
-        return "components", {"preset": preset, "count": value or "1"}
-    if kind == "attenuator":
-        return "components", {"kind": "attenuator", "loss": value}
-    return "components", {"kind": "other", "name": extra.strip() or "other loss", "loss": value}
-
-
-#: What a count means when it is left empty (the link description's own defaults).
-_EMPTY_COUNT = {"connectors": "2", "splices": "0", "component": "1"}
-#: What each item's second field is called in a prompt.
-_EXTRA_WORD = {
-    "fibre": "attenuation",
-    "connectors": "loss each",
-    "splices": "loss each",
-    "splitter": "excess loss",
-}
-
-
-def missing_entry(items: list[dict[str, str]]) -> str | None:
-    """A calm prompt for the first item still waiting for a value, or None when every item has
-    what the budget needs. Nothing typed yet is not an error: wrong text is."""
-    for index, item in enumerate(items, start=1):
-        kind = item["kind"]
-        title = KINDS[kind]["title"]
-        if not item.get("value", "").strip() and kind not in _EMPTY_COUNT:
-            return (
-                f"Type the {KINDS[kind]['value'].lower()} of item {index} ({title}) to see "
-                "the budget."
-            )
-        if (
-            item.get("preset") == TYPED
-            and kind in _EXTRA_WORD
-            and not item.get("extra", "").strip()
-        ):
-            return f"Type the {_EXTRA_WORD[kind]} of item {index} ({title}) to see the budget."
-    return None
-
-
-def item_text(index: int, item: dict[str, str]) -> str:
-    """One line of the item list."""
-    kind = item["kind"]
-    preset = item.get("preset") or ""
-    value = (
-        item.get("value", "").strip()
-        or _EMPTY_COUNT.get(kind, "")
-        or f"{KINDS[kind]['value'].lower()} not typed"
-    )
-    extra = item.get("extra", "").strip()
-    if kind == "fibre":
-        what = f"typed {extra or 'dB/km not typed'}" if preset == TYPED else preset
-        return f"{index}. Fibre {what}, {value}"
-    if kind == "connectors":
-        each = extra if preset == TYPED else preset
-        return f"{index}. {value} mated pairs, {each}"
-    if kind == "splices":
-        each = extra if preset == TYPED else preset
-        return f"{index}. {value} splices, {each}"
-    if kind == "splitter":
-        return f"{index}. Splitter {value}" + (f", excess {extra}" if preset == TYPED else "")
-    if kind == "component":
-        return f"{index}. {value} × {preset}"
-    if kind == "attenuator":
-        return f"{index}. Attenuator {value}"
-    return (
-        f"{index}. {extra or 'Other loss'}{',' if not item.get('value', '').strip() else ''} "
-        f"{value}"
-    )
-
-
-def spec_from_items(items: list[dict[str, str]], settings: dict[str, Any]) -> dict[str, Any]:
-    """The written link description of the workspace's items and settings."""
-    spec: dict[str, Any] = {"segments": [], "splices": [], "components": []}
-    connectors = 0
-    for item in items:
-        where, entry = item_entry(item)
-        if where == "connectors":
-            connectors += 1
-            spec["connectors"] = entry
-        else:
-            spec[where].append(entry)
-    if connectors == 0:
-        spec["connectors"] = {"count": 0, "loss": "0 dB"}
-    spec.update({k: v for k, v in settings.items() if v not in (None, "", [])})
-    return spec
-
-
-def _text(value: Any, unit: str = "") -> str:
-    if isinstance(value, bool) or value is None:
-        return ""
-    if isinstance(value, (int, float)):
-        return f"{value:g}{' ' + unit if unit else ''}"
-    return str(value)
-
-
-def items_from_spec(spec: dict[str, Any]) -> tuple[list[dict[str, str]], dict[str, str]]:
-    """The workspace's items and settings fields of a written link description (the reverse
-    of :func:`spec_from_items`, for a budget saved on a job)."""
-    items: list[dict[str, str]] = []
-    for seg in spec.get("segments") or []:
-        if not isinstance(seg, dict):
-            continue
-        length = _text(seg.get("length")) or _text(seg.get("length_m"), "m")
-        att = seg.get("attenuation")
-        if att is not None:
-            extra = (
-                "; ".join(f"{k}={v}" for k, v in att.items())
-                if isinstance(att, dict)
-                else _text(att)
-            )
-            items.append({"kind": "fibre", "preset": TYPED, "value": length, "extra": extra})
-        else:
-            items.append(
-                {
-                    "kind": "fibre",
-                    "preset": _text(seg.get("fibre") or seg.get("fiber")),
-                    "value": length,
-                    "extra": "",
-                }
-            )
-    for kind in ("components",):
-        for comp in spec.get(kind) or []:
-            if not isinstance(comp, dict):
-                continue
-            count = _text(comp.get("count")) or "1"
-            loss = _text(comp.get("loss")) or _text(comp.get("loss_db"), "dB")
-            if "splitter" in comp:
-                excess = _text(comp.get("excess"))
-                items.append(
-                    {
-                        "kind": "splitter",
-                        "preset": TYPED
-                        if excess
-                        else _text(comp.get("preset")) or f"{str(comp['splitter'])[:1]}xN splitter",
-                        "value": _text(comp["splitter"]),
-                        "extra": excess,
-                    }
-                )
-            elif comp.get("preset") and not loss:
-                items.append(
-                    {
-                        "kind": "component",
-                        "preset": _text(comp["preset"]),
-                        "value": count,
-                        "extra": "",
-                    }
-                )
-            elif comp.get("kind") == "attenuator":
-                items.append({"kind": "attenuator", "preset": "", "value": loss, "extra": ""})
-            else:
-                items.append(
-                    {"kind": "other", "preset": "", "value": loss, "extra": _text(comp.get("name"))}
-                )
-    splices = spec.get("splices") or []
-    for sp in [splices] if isinstance(splices, dict) else splices:
-        if not isinstance(sp, dict):
-            continue
-        loss = _text(sp.get("loss")) or _text(sp.get("loss_db"), "dB")
-        items.append(
-            {
-                "kind": "splices",
-                "preset": TYPED if loss else _text(sp.get("grade") or sp.get("method") or "fusion"),
-                "value": _text(sp.get("count")) or "0",
-                "extra": loss,
-            }
-        )
-    conn = spec.get("connectors")
-    if isinstance(conn, dict):
-        loss = _text(conn.get("loss")) or _text(conn.get("loss_db"), "dB")
-        count = _text(conn.get("count")) or "2"
-        if not (count == "0" and loss in ("0 dB", "0")):
-            items.append(
-                {
-                    "kind": "connectors",
-                    "preset": TYPED if loss else _text(conn.get("grade") or "TIA-568.3-D"),
-                    "value": count,
-                    "extra": loss,
-                }
-            )
-    else:
-        items.append({"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""})
-    raw_nm = spec.get("wavelengths", spec.get("wavelengths_nm", []))
-    wavelengths = ", ".join(_text(v) for v in (raw_nm if isinstance(raw_nm, list) else [raw_nm]))
-    margin = _text(spec.get("margin")) or _text(spec.get("margin_db"), "dB")
-    settings = {
-        "wavelengths": wavelengths,
-        "margin": "" if margin in ("0 dB", "0") else margin,
-        "application": _text(spec.get("application")),
-        "bit-rate": _text(spec.get("bit_rate")),
-        "spectral-width": _text(spec.get("spectral_width")),
-    }
-    tx = spec.get("transceiver")
-    if isinstance(tx, str):
-        settings["transceiver"] = tx
-    elif isinstance(tx, dict):
-        settings["transceiver"] = TYPED
-        for field_id, key in (
-            ("tx-min", "tx_min_dbm"),
-            ("tx-max", "tx_max_dbm"),
-            ("rx-sens", "rx_sensitivity_dbm"),
-            ("rx-over", "rx_overload_dbm"),
-        ):
-            settings[field_id] = _text(tx.get(key), "dBm")
-    return items, settings
-
-
-def _starting_items() -> list[dict[str, str]]:
-    """A new budget: one single-mode fibre segment and the two end connections."""
-    return [
-        {"kind": "fibre", "preset": "OS2", "value": "", "extra": ""},
-        {"kind": "connectors", "preset": "TIA-568.3-D", "value": "2", "extra": ""},
-    ]
-
-
-_SETTING_FIELDS = (
-    "wavelengths",
-    "margin",
-    "bit-rate",
-    "spectral-width",
-    "tx-min",
-    "tx-max",
-    "rx-sens",
-    "rx-over",
+_OUTPUTS = (
+    "#budget-out",
+    "#sources-out",
+    "#application-out",
+    "#transceiver-out",
+    "#checks-out",
+    "#fibre-data-out",
 )
+
+
+def _shown(text: str) -> Text:
+    """Lines as a panel shows them: indents kept, a number never parted from its unit."""
+    kept = []
+    for line in text.split("\n"):
+        stripped = line.lstrip(" ")
+        kept.append("\u00a0" * (len(line) - len(stripped)) + lines.keep_units(stripped))
+    return Text("\n".join(kept))
 
 
 class BudgetScreen(Screen[None]):
@@ -372,42 +69,37 @@ class BudgetScreen(Screen[None]):
 
     def __init__(self) -> None:
         super().__init__()
-        self.items: list[dict[str, str]] = _starting_items()
+        self.model = BudgetModel()
+        self.outcome = Outcome()
         self._clear_asked = False
-        self.current = 0
-        self.report: Any = None
-        self.resolved: Any = None
-        self.problem: str | None = None
-        self._tx_problem: str | None = None
         self._job_id: str | None = None  # the job last opened or saved to, picked first next time
-        self._check_options: dict[str, list[str]] = {"application": [], "transceiver": []}
+        self._application_choices: list[tuple[str, str]] = []
+        self._loading = False
 
-    # -- presets -------------------------------------------------------------------------
+    # The last result, as tests and the save read it.
     @property
-    def library(self) -> Any:
-        from fieldkit.presets import load_presets
+    def report(self) -> Any:
+        return self.outcome.report
 
-        return load_presets(self.app.config_dir)  # type: ignore[attr-defined]
+    @property
+    def resolved(self) -> Any:
+        return self.outcome.resolved
 
-    def _preset_options(self, kind: str) -> list[tuple[str, str]]:
-        lib = self.library
-        if kind == "fibre":
-            return [(n, n) for n in lib.fibres] + [("typed attenuation", TYPED)]
-        if kind == "connectors":
-            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.connectors.items()] + [
-                ("typed loss", TYPED)
-            ]
-        if kind == "splices":
-            return [(f"{n} ({p.loss_max_db:g} dB)", n) for n, p in lib.splices.items()] + [
-                ("typed loss", TYPED)
-            ]
-        if kind == "splitter":
-            return [(n, n) for n, p in lib.components.items() if p.kind == "splitter"] + [
-                ("typed excess", TYPED)
-            ]
-        if kind == "component":
-            return [(n, n) for n, p in lib.components.items() if p.kind != "splitter"]
-        return []
+    @property
+    def problem(self) -> str | None:
+        return self.outcome.message
+
+    @property
+    def items(self) -> list[Item]:
+        return self.model.items
+
+    @property
+    def current(self) -> int:
+        return self.model.current
+
+    @current.setter
+    def current(self, index: int) -> None:
+        self.model.current = index
 
     # -- layout --------------------------------------------------------------------------
     @staticmethod
@@ -442,8 +134,8 @@ class BudgetScreen(Screen[None]):
                         yield OptionList(id="items")
                         with Horizontal(id="item-buttons"):
                             yield Select(
-                                [(KINDS[k]["title"], k) for k in ADD_KINDS],
-                                value="fibre",
+                                [(KINDS[k].title, k) for k in ADD_KINDS],
+                                value=DEFAULT_ADD_KIND,
                                 allow_blank=False,
                                 compact=True,
                                 id="add-kind",
@@ -576,13 +268,8 @@ class BudgetScreen(Screen[None]):
         yield KeyFooter()
 
     def on_mount(self) -> None:
-        lib = self.library
-        self._check_options = {
-            "application": list(lib.applications),
-            "transceiver": [*lib.transceivers, TYPED],
-        }
-        self._application_order: tuple[str, ...] = ()
-        self._order_applications()
+        self.model.config_dir = fieldkit_app(self).config_dir
+        lib = self.model.library
         self.query_one("#transceiver", Select).set_options(
             [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)]
         )
@@ -601,61 +288,53 @@ class BudgetScreen(Screen[None]):
     # -- the item list -------------------------------------------------------------------
     def _refresh_list(self) -> None:
         items = self.query_one("#items", OptionList)
-        items.set_options([item_text(i + 1, it) for i, it in enumerate(self.items)])
-        if self.items:
-            items.highlighted = min(self.current, len(self.items) - 1)
+        items.set_options([item_text(i + 1, it) for i, it in enumerate(self.model.items)])
+        if self.model.items:
+            items.highlighted = min(self.model.current, len(self.model.items) - 1)
 
     def _update_list_line(self) -> None:
-        items = self.query_one("#items", OptionList)
-        if 0 <= self.current < len(self.items):
-            items.replace_option_prompt_at_index(
-                self.current, item_text(self.current + 1, self.items[self.current])
+        item = self.model.item
+        if item is not None:
+            self.query_one("#items", OptionList).replace_option_prompt_at_index(
+                self.model.current, item_text(self.model.current + 1, item)
             )
 
     def _load_item(self) -> None:
         """Show the picked item in the editor."""
         panel = self.query_one("#item-panel")
-        if not self.items:
-            panel.display = False
+        item = self.model.item
+        panel.display = item is not None
+        if item is None:
             return
-        panel.display = True
-        item = self.items[self.current]
-        kind = KINDS[item["kind"]]
-        panel.border_title = f"Item {self.current + 1}: {kind['title']}"
-        preset_row = self.query_one("#item-preset-row")
+        kind = KINDS[item.kind]
+        panel.border_title = f"Item {self.model.current + 1}: {kind.title}"
         preset = self.query_one("#item-preset", Select)
-        if kind["preset"]:
-            preset_row.display = True
-            self.query_one("#item-preset-label", Label).update(kind["preset"])
-            options = self._preset_options(item["kind"])
+        self.query_one("#item-preset-row").display = bool(kind.preset)
+        if kind.preset:
+            self.query_one("#item-preset-label", Label).update(kind.preset)
+            options = self.model.preset_options(item.kind)
             preset.set_options(options)
-            values = [v for _, v in options]
-            if item.get("preset") in values:
-                preset.value = item["preset"]
-        else:
-            preset_row.display = False
-        self.query_one("#item-value-label", Label).update(kind["value"])
+            if item.preset in [v for _, v in options]:
+                preset.value = item.preset
+        self.query_one("#item-value-label", Label).update(kind.value)
         value = self.query_one("#item-value", Input)
-        value.placeholder = kind["value_hint"]
-        value.value = item.get("value", "")
+        value.placeholder = kind.value_hint
+        value.value = item.value
         self._show_extra()
         extra = self.query_one("#item-extra", Input)
-        extra.placeholder = kind["extra_hint"]
-        extra.value = item.get("extra", "")
+        extra.placeholder = kind.extra_hint
+        extra.value = item.extra
 
     def _show_extra(self) -> None:
-        item = self.items[self.current]
-        kind = KINDS[item["kind"]]
-        typed = item.get("preset") == TYPED
-        wanted = bool(kind["extra"]) and (item["kind"] == "other" or typed)
-        self.query_one("#item-extra-field").display = wanted
-        self.query_one("#item-extra-label", Label).update(kind["extra"])
+        item = self.model.item
+        if item is not None:
+            self.query_one("#item-extra-field").display = extra_shown(item)
+            self.query_one("#item-extra-label", Label).update(KINDS[item.kind].extra)
 
     @on(OptionList.OptionHighlighted, "#items")
     def _picked(self, event: OptionList.OptionHighlighted) -> None:
         index = event.option_index
-        if index != self.current and 0 <= index < len(self.items):
-            self.current = index
+        if 0 <= index < len(self.model.items) and self.model.pick(index):
             self._load_item()
             self._check_item_fields()
             self._show_fibre_data()
@@ -667,64 +346,36 @@ class BudgetScreen(Screen[None]):
 
     @on(Select.Changed, "#item-preset")
     def _preset_changed(self, event: Select.Changed) -> None:
-        if not self.items or event.value is Select.NULL:
+        item = self.model.item
+        if item is None or event.value is Select.NULL:
             return
-        item = self.items[self.current]
-        if event.value not in [v for _, v in self._preset_options(item["kind"])]:
+        if event.value not in [v for _, v in self.model.preset_options(item.kind)]:
             return
-        if item.get("preset") != event.value:
-            item["preset"] = str(event.value)
+        if item.preset != event.value:
+            item.preset = str(event.value)
             self._show_extra()
             self._update_list_line()
             self.recompute()
 
     @on(Input.Changed, "#item-value, #item-extra")
     def _item_typed(self, event: Input.Changed) -> None:
-        if not self.items:
+        item = self.model.item
+        if item is None:
             return
         key = "value" if event.input.id == "item-value" else "extra"
-        item = self.items[self.current]
-        if item.get(key, "") != event.value:
-            item[key] = event.value
+        if getattr(item, key) != event.value:
+            setattr(item, key, event.value)
             self._update_list_line()
         self._check_item_fields()
         self.recompute()
 
     def _check_item_fields(self) -> None:
         """Show the problem of the picked item's own fields beside them."""
-        from fieldkit import inputs, linkspec
-
-        if not self.items:
-            return
-        item = self.items[self.current]
-        value, extra = item.get("value", ""), item.get("extra", "")
-        value_error = extra_error = ""
-        try:
-            kind = item["kind"]
-            if kind == "fibre":
-                if value.strip():
-                    inputs.length_m(value, "length")
-            elif kind in ("connectors", "splices", "component"):
-                if value.strip():
-                    inputs.item_count(value, KINDS[kind]["value"].lower())
-            elif kind == "splitter":
-                if value.strip():
-                    inputs.splitter(value)
-            elif value.strip():
-                inputs.loss_db(value, "loss")
-        except InputError as exc:
-            value_error = str(exc)
-        try:
-            if item.get("preset") == TYPED and extra.strip():
-                if item["kind"] == "fibre":
-                    entry = attenuation_entry(extra)
-                    linkspec.custom_fibre(entry)
-                else:
-                    inputs.loss_db(extra, KINDS[item["kind"]]["extra"].lower())
-        except InputError as exc:
-            extra_error = str(exc)
-        self._error("item-value", value_error)
-        self._error("item-extra", extra_error)
+        item = self.model.item
+        if item is not None:
+            value_error, extra_error = item_errors(item)
+            self._error("item-value", value_error)
+            self._error("item-extra", extra_error)
 
     def _error(self, field_id: str, message: str) -> None:
         error = self.query_one(f"#{field_id}-error", Static)
@@ -734,59 +385,28 @@ class BudgetScreen(Screen[None]):
     # -- item actions --------------------------------------------------------------------
     def action_add_item(self) -> None:
         kind = str(self.query_one("#add-kind", Select).value)
-        if kind == "connectors" and any(i["kind"] == "connectors" for i in self.items):
-            self.notify(
-                "The link has one connectors line: edit its number of mated pairs.",
-                severity="warning",
-            )
-            self.current = next(i for i, it in enumerate(self.items) if it["kind"] == "connectors")
-            self._refresh_list()
-            self._load_item()
-            return
-        options = self._preset_options(kind)
-        preset = ""
-        if kind == "splices":
-            preset = "fusion" if "fusion" in self.library.splices else options[0][1]
-        elif kind == "connectors":
-            preset = "TIA-568.3-D" if "TIA-568.3-D" in self.library.connectors else options[0][1]
-        elif kind == "fibre" and self.items:
-            fibres = [i.get("preset", "") for i in self.items if i["kind"] == "fibre"]
-            preset = fibres[-1] if fibres else options[0][1]
-        elif options:
-            preset = options[0][1]
-        defaults = {"splitter": "1x32", "component": "1", "connectors": "2"}
-        item = {"kind": kind, "preset": preset, "value": defaults.get(kind, ""), "extra": ""}
-        at = self.current + 1 if self.items else 0
-        self.items.insert(at, item)
-        self.current = at
+        refusal = self.model.add(kind)
         self._refresh_list()
         self._load_item()
+        if refusal:
+            self.notify(refusal, severity="warning")
+            return
         self.query_one("#item-value", Input).focus()
         self.recompute()
 
     def action_remove_item(self) -> None:
-        if not self.items:
+        refusal = self.model.remove()
+        if refusal:
+            self.notify(refusal, severity="warning")
             return
-        if (
-            sum(1 for i in self.items if i["kind"] == "fibre") == 1
-            and self.items[self.current]["kind"] == "fibre"
-        ):
-            self.notify("A link needs at least one fibre segment.", severity="warning")
-            return
-        del self.items[self.current]
-        self.current = max(0, min(self.current, len(self.items) - 1))
         self._refresh_list()
         self._load_item()
         self.recompute()
 
     def action_move_item(self, step: int) -> None:
-        target = self.current + step
-        if not self.items or not 0 <= target < len(self.items):
-            return
-        self.items[self.current], self.items[target] = self.items[target], self.items[self.current]
-        self.current = target
-        self._refresh_list()
-        self.recompute()
+        if self.model.move(step):
+            self._refresh_list()
+            self.recompute()
 
     @on(Button.Pressed)
     def _button(self, event: Button.Pressed) -> None:
@@ -809,282 +429,120 @@ class BudgetScreen(Screen[None]):
         self.focus_next()
 
     # -- settings ------------------------------------------------------------------------
-    @on(
-        Input.Changed,
-        "#wavelengths, #margin, #bit-rate, #spectral-width, #tx-min, #tx-max, #rx-sens, #rx-over",
-    )
+    @on(Input.Changed, ", ".join(f"#{f}" for f in SETTING_FIELDS))
     def _setting_typed(self, event: Input.Changed) -> None:
+        self.model.fields[event.input.id or ""] = event.value
         self.recompute()
 
     @on(Select.Changed, "#application, #transceiver")
     def _check_changed(self, event: Select.Changed) -> None:
-        self.query_one("#tx-levels").display = self.query_one("#transceiver", Select).value == TYPED
+        value = None if event.value is Select.NULL else str(event.value)
+        setattr(self.model, event.select.id or "", value)
+        self.query_one("#tx-levels").display = self.model.transceiver == TYPED
         self.recompute()
-
-    def _settings(self) -> dict[str, Any]:
-        """The typed settings, each checked beside its field; problems raise InputError."""
-        from fieldkit import inputs
-
-        out: dict[str, Any] = {}
-        problems: list[str] = []
-        self._tx_problem = None
-        text = self.query_one("#wavelengths", Input).value
-        try:
-            out["wavelengths"] = inputs.wavelength_list(text) if text.strip() else []
-            self._error("wavelengths", "")
-        except InputError as exc:
-            self._error("wavelengths", str(exc))
-            problems.append(str(exc))
-        margin = self.query_one("#margin", Input).value
-        try:
-            out["margin"] = (
-                f"{inputs.loss_db(margin, 'design margin')} dB" if margin.strip() else ""
-            )
-            self._error("margin", "")
-        except InputError as exc:
-            self._error("margin", str(exc))
-            problems.append(str(exc))
-        for field_id, key, parser in (
-            ("bit-rate", "bit_rate", inputs.bit_rate_gbd),
-            ("spectral-width", "spectral_width", inputs.spectral_width_nm),
-        ):
-            typed = self.query_one(f"#{field_id}", Input).value
-            try:
-                if typed.strip():
-                    parser(typed)
-                    out[key] = typed.strip()
-                self._error(field_id, "")
-            except InputError as exc:
-                self._error(field_id, str(exc))
-                problems.append(str(exc))
-        application = self.query_one("#application", Select).value
-        if application is not Select.NULL:
-            out["application"] = application
-        transceiver = self.query_one("#transceiver", Select).value
-        if transceiver == TYPED:
-            levels: dict[str, Any] = {}
-            level_problems: list[str] = []
-            untyped: list[str] = []
-            for field_id, key, what in (
-                ("tx-min", "tx_min_dbm", "Tx minimum"),
-                ("tx-max", "tx_max_dbm", "Tx maximum"),
-                ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
-                ("rx-over", "rx_overload_dbm", "Rx overload"),
-            ):
-                typed = self.query_one(f"#{field_id}", Input).value
-                if not typed.strip():
-                    untyped.append(what)
-                    self._error(field_id, "")
-                    continue
-                try:
-                    levels[key] = inputs.level_dbm(typed, what)
-                    self._error(field_id, "")
-                except InputError as exc:
-                    self._error(field_id, str(exc))
-                    level_problems.append(str(exc))
-            if level_problems or untyped:
-                # The budget still shows; only the transceiver check waits for its levels:
-                # wrong text is named, levels not typed yet are asked for.
-                self._tx_problem = (
-                    f"Type the four levels to check: {level_problems[0]}"
-                    if level_problems
-                    else "Type " + ", ".join(untyped) + " to check the transceiver."
-                )
-            else:
-                levels["name"] = "typed levels"
-                out["transceiver"] = levels
-        elif transceiver is not Select.NULL:
-            out["transceiver"] = transceiver
-        if problems:
-            raise InputError(problems[0])
-        return out
 
     # -- the result ----------------------------------------------------------------------
     def recompute(self) -> None:
-        from fieldkit import linkspec
-
         self._order_applications()
-        if getattr(self, "_clean_print", None) is None:
-            self.mark_clean()  # the first result: the blank start is nothing to lose
-        elif self.unsaved_edits:
+        if self.model.unsaved_edits:
             # A "saved" or "opened" line says nothing about what was typed since.
             self.query_one("#budget-saved", Static).update("")
+        self.outcome = outcome = self.model.evaluate()
+        for field_id, message in outcome.field_errors.items():
+            self._error(field_id, message)
         problem = self.query_one("#budget-problem", Static)
         waiting = self.query_one("#budget-waiting", Static)
-        waiting.display = False
-        try:
-            settings = self._settings()
-            prompt = missing_entry(self.items)
-            if prompt is not None:
-                # Not an error yet: say what to type, calmly, and show no result.
-                self.report = self.resolved = None
-                self.problem = prompt
-                problem.display = False
-                waiting.update(prompt)
-                waiting.display = True
-                for out_id in (
-                    "#budget-out",
-                    "#sources-out",
-                    "#application-out",
-                    "#transceiver-out",
-                    "#checks-out",
-                    "#fibre-data-out",
-                ):
-                    self.query_one(out_id, Static).update("")
-                summary = self.query_one("#budget-summary", Static)
-                summary.update(prompt)
-                summary.set_class(True, "-waiting").set_class(False, "-problem")
-                return
-            spec = spec_from_items(self.items, settings)
-            resolved = linkspec.resolve(spec, self.library)
-            report = resolved.evaluate()
-        except (InputError, ValueError, ArithmeticError) as exc:
-            # A problem in what was typed: say so and keep every field as it is.
-            self.report = self.resolved = None
-            self.problem = str(exc)
-            problem.update(self._explain(str(exc)))
-            problem.display = True
-            self.query_one("#budget-out", Static).update("")
-            self.query_one("#sources-out", Static).update("")
-            summary = self.query_one("#budget-summary", Static)
-            summary.update(self._explain(str(exc)))
-            summary.set_class(False, "-waiting").set_class(True, "-problem")
-            for out_id in (
-                "#application-out",
-                "#transceiver-out",
-                "#checks-out",
-                "#fibre-data-out",
-            ):
+        summary = self.query_one("#budget-summary", Static)
+        problem.display = outcome.problem is not None
+        waiting.display = outcome.prompt is not None
+        if outcome.report is None:
+            # Say what to type (calmly) or what is wrong; keep every field as it is.
+            waiting.update(outcome.prompt or "")
+            problem.update(outcome.problem or "")
+            for out_id in _OUTPUTS:
                 self.query_one(out_id, Static).update("")
+            summary.update(outcome.message or "")
+            summary.set_class(outcome.prompt is not None, "-waiting")
+            summary.set_class(outcome.problem is not None, "-problem")
             return
-        self.report, self.resolved, self.problem = report, resolved, None
-        problem.display = False
-        self._show(report)
+        self._show(outcome)
 
     def _order_applications(self) -> None:
-        """Applications with a row for the link's fibre first; the others after, marked, so
-        choosing one is a deliberate act (its check then names the missing row)."""
-        lib = self.library
-        names = tuple(
-            dict.fromkeys(
-                it.get("preset", "")
-                for it in self.items
-                if it["kind"] == "fibre" and it.get("preset") in lib.fibres
-            )
-        )
-        families = {lib.fibres[n].family for n in names}
-        family = next(iter(families)) if len(families) == 1 else None
-        fits, others = lib.applications_by_fit(names, family)
-        order = (*fits, "|", *others)
-        if order == self._application_order:
+        choices = self.model.application_choices()
+        if choices == self._application_choices:
             return
-        self._application_order = order
-        word = {"singlemode": "single-mode", "multimode": "multimode"}.get(family or "", "")
-        mark = f" (no {word} row)" if word else ""
+        self._application_choices = choices
         select = self.query_one("#application", Select)
         current = select.value
-        select.set_options([(n, n) for n in fits] + [(f"{n}{mark}", n) for n in others])
-        if current is not Select.NULL and current in (*fits, *others):
+        select.set_options(choices)
+        if current is not Select.NULL and current in [v for _, v in choices]:
             select.value = current
 
-    def _explain(self, message: str) -> str:
-        # The description numbers segments; tell the user which list item that is.
-        match = re.match(r"segment (\d+): (.*)", message)
-        if match:
-            n = int(match.group(1))
-            fibres = [i for i, it in enumerate(self.items) if it["kind"] == "fibre"]
-            if 0 < n <= len(fibres):
-                return f"item {fibres[n - 1] + 1}: {match.group(2)}"
-        return message
-
-    def _show(self, report: Any) -> None:
-        from fieldkit.text import budget as lines
-
-        self.query_one("#budget-out", Static).update(
-            Text("\n".join(_keep_indent(line) for line in lines.breakdown_lines(report)))
-        )
-        summary_out = self.query_one("#budget-summary", Static)
-        summary_out.update(lines.summary_text(report))
-        summary_out.set_class(False, "-waiting").set_class(False, "-problem")
-        self.query_one("#sources-out", Static).update("\n".join(lines.source_lines(report)))
+    def _show(self, outcome: Outcome) -> None:
+        report = outcome.report
+        assert report is not None
+        out = self.query_one("#budget-out", Static)
+        width = out.content_size.width or None
+        out.update(_shown("\n".join(lines.breakdown_lines(report, width))))
+        summary = self.query_one("#budget-summary", Static)
+        summary.update(_shown(lines.summary_text(report)))
+        summary.set_class(False, "-waiting").set_class(False, "-problem")
+        self.query_one("#sources-out", Static).update(_shown("\n".join(lines.source_lines(report))))
         app = report.application
         self.query_one("#application-out", Static).update(
             "Pick an application to check."
             if app is None
-            else "\n".join(lines.application_lines(app))
+            else _shown("\n".join(lines.application_lines(app)))
         )
         tx = report.transceiver
-        out = self.query_one("#transceiver-out", Static)
-        if tx is None:
-            out.update(self._tx_problem or "Pick a transceiver to check.")
-        else:
-            out.update("\n".join(lines.transceiver_lines(tx)))
+        self.query_one("#transceiver-out", Static).update(
+            (outcome.tx_problem or "Pick a transceiver to check.")
+            if tx is None
+            else _shown("\n".join(lines.transceiver_lines(tx)))
+        )
         checks = [] if report.checks is None else lines.check_lines(report.checks)
         self.query_one("#checks-out", Static).update(
-            "\n".join(checks) or "Nothing to check beyond loss for this link."
+            _shown("\n".join(checks)) if checks else "Nothing to check beyond loss for this link."
         )
         self._show_fibre_data()
 
     def _show_fibre_data(self) -> None:
-        """The fibre data of the picked fibre item (else the first) at the first wavelength."""
-        from fieldkit.calc.checks import fibre_data
-        from fieldkit.text.budget import fibre_data_lines
+        """The fibre data of the picked fibre item (else the first) at each wavelength."""
+        self.query_one("#fibre-data-out", Static).update(
+            _shown("\n".join(self.model.fibre_data_lines(self.outcome)))
+        )
 
-        out = self.query_one("#fibre-data-out", Static)
-        if self.resolved is None or self.report is None:
-            out.update("")
-            return
-        fibre_items = [i for i, it in enumerate(self.items) if it["kind"] == "fibre"]
-        index = fibre_items.index(self.current) if self.current in fibre_items else 0
-        segments = self.resolved.link.segments
-        fibre = segments[min(index, len(segments) - 1)].fibre
-        rows = [
-            line
-            for w in self.report.result.wavelengths
-            for line in fibre_data_lines(fibre_data(fibre, w.wavelength_nm))
-        ]
-        out.update("\n".join(rows))
+    def on_resize(self) -> None:
+        # The breakdown wraps to its panel's width: draw it again once the layout has settled.
+        self.call_after_refresh(self._reshow)
+
+    def _reshow(self) -> None:
+        if self.outcome.report is not None:
+            self._show(self.outcome)
 
     # -- unsaved edits -------------------------------------------------------------------
-    def _fingerprint(self) -> str:
-        import json
-
-        fields = {
-            field_id: self.query_one(f"#{field_id}", Input).value for field_id in _SETTING_FIELDS
-        }
-        selects = {
-            select_id: str(self.query_one(f"#{select_id}", Select).value)
-            for select_id in ("application", "transceiver")
-        }
-        return json.dumps([self.items, fields, selects], sort_keys=True, default=str)
-
-    def mark_clean(self) -> None:
-        """What is on screen now is saved (or opened, or the blank start)."""
-        self._clean_print = self._fingerprint()
-
     @property
     def unsaved_edits(self) -> bool:
         """True when the budget was changed since it was last saved, opened or started."""
-        clean = getattr(self, "_clean_print", None)
-        return clean is not None and clean != self._fingerprint()
+        return self.model.unsaved_edits
 
-    # -- new, and going to the result ----------------------------------------------------
     def _mark_clean(self) -> None:
-        self.mark_clean()
+        self.model.mark_clean()
         self._clear_asked = False
 
+    # -- new, and going to the result ----------------------------------------------------
     def action_new_budget(self) -> None:
         """An empty budget; unsaved changes are cleared only on a second Ctrl+N."""
         saved = self.query_one("#budget-saved", Static)
-        if self.unsaved_edits and not getattr(self, "_clear_asked", False):
+        if self.unsaved_edits and not self._clear_asked:
             self._clear_asked = True
             saved.update(
                 f"This budget has changes not saved: {keys.hint('new')} again clears them, "
                 f"{keys.hint('save')} saves them."
             )
             return
-        self.load(_starting_items(), {})
-        self.query_one("#add-kind", Select).value = "fibre"
+        self.load([], {})
+        self.query_one("#add-kind", Select).value = DEFAULT_ADD_KIND
         self._mark_clean()
         saved.update("A new, empty budget.")
         self.query_one("#item-value", Input).focus()
@@ -1140,7 +598,7 @@ class BudgetScreen(Screen[None]):
             self.notify(f"Link {link.label} has no saved budget to open.", severity="warning")
             return
         items, fields = items_from_spec(link.budget.description)
-        if not any(i["kind"] == "fibre" for i in items):
+        if not any(i.kind == "fibre" for i in items):
             self.notify(f"The budget on {link.label} has no fibre segment.", severity="warning")
             return
         self.load(items, fields)
@@ -1150,23 +608,27 @@ class BudgetScreen(Screen[None]):
             f"Opened the budget saved on link {link.label}."
         )
 
-    def load(self, items: list[dict[str, str]], fields: dict[str, str]) -> None:
-        """Replace the link and the settings (typed text is kept as typed)."""
-        self.items = items
-        self.current = 0
-        for field_id in _SETTING_FIELDS:
-            self.query_one(f"#{field_id}", Input).value = fields.get(field_id, "")
+    def load(self, items: list[Item], fields: dict[str, str]) -> None:
+        """Replace the link and the settings (typed text is kept as typed); no items: a new
+        budget."""
+        if items:
+            warnings = self.model.load(items, fields)
+        else:
+            self.model.new()
+            warnings = []
+        for warning in warnings:
+            self.notify(warning, severity="warning")
+        for field_id in SETTING_FIELDS:
+            self.query_one(f"#{field_id}", Input).value = self.model.fields[field_id]
         for select_id in ("application", "transceiver"):
             select = self.query_one(f"#{select_id}", Select)
-            wanted = fields.get(select_id) or ""
-            if wanted and wanted in self._check_options[select_id]:
-                select.value = wanted
-            else:
+            wanted = getattr(self.model, select_id)
+            if wanted is None:
                 select.clear()
-                if wanted:
-                    self.notify(
-                        f"{select_id}: '{wanted}' is not among the presets now", severity="warning"
-                    )
+            else:
+                if select_id == "application":
+                    self._order_applications()
+                select.value = wanted
         self._refresh_list()
         self._load_item()
         self.recompute()
