@@ -214,7 +214,7 @@ def fault_record(
     return FaultRecord(
         by=by,
         inputs=inputs,
-        fiber_distance_m=p.fiber_distance_m,
+        fibre_distance_m=p.fibre_distance_m,
         sheath_distance_m=p.sheath_distance_m,
         route_distance_m=p.route_distance_m,
         low_m=p.low_m,

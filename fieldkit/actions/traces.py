@@ -1,5 +1,11 @@
-"""OTDR results into a job: splice losses into a closure's splice log, closures as landmarks,
-and the verdict limits a link's presets give.
+"""OTDR results into a job: traces kept on a link, splice losses into a closure's splice log,
+closures as landmarks, and the verdict limits a link's presets give.
+
+A trace or a pair is kept as a :class:`~fieldkit.jobs.models.TraceRecord` (built by
+:func:`trace_record` / :func:`pair_record`, saved by :func:`save_traces`): the event table
+with its verdicts and the limits used, the sections, the ORL and a drawing's worth of points.
+History, not overwrite: saving the same fibre, wavelength and direction again marks the
+earlier record superseded; it stays.
 
 The splice log is written only through :func:`fieldkit.actions.splices.record_otdr_losses`
 (one change through the job store, under its lock). A splice that already holds a different
@@ -14,18 +20,31 @@ pairing tolerance plus 3 % of the route distance and 20 m (common practice for c
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any
 
+from fieldkit.actions.errors import check_text
 from fieldkit.actions.splices import OtdrFill, OtdrLoss, find_closure, find_link, record_otdr_losses
 from fieldkit.calc.units import InputError
-from fieldkit.jobs.models import Link
+from fieldkit.jobs.models import (
+    MAX_TRACE_POINTS,
+    Job,
+    Link,
+    TraceCurve,
+    TraceEventRow,
+    TraceRecord,
+    TraceSectionRow,
+    encode_points,
+)
 from fieldkit.jobs.splices import current_limit
+from fieldkit.jobs.store import JobStore
 from fieldkit.presets import PresetLibrary
 from fieldkit.traces.analysis import TraceResult
+from fieldkit.traces.lines import limits_lines
 from fieldkit.traces.pairing import PairResult, default_tolerance_m
 from fieldkit.traces.session import Closure as Landmark
+from fieldkit.traces.svg import plot_points
 from fieldkit.traces.verdicts import Limits
 
 
@@ -339,3 +358,228 @@ def link_limits(store: Any, library: PresetLibrary, job_id: str, link: str, **ty
     return trace_limits(
         library, target, origin=f"link {target.label!r} of job {job.name!r}", **typed
     )
+
+
+# -- traces kept on a link (schema 5) ----------------------------------------------------------
+def _curve(result: TraceResult, direction: str) -> TraceCurve:
+    t = result.trace
+    points = plot_points(t.distance_m, t.level_db, result.length_m, MAX_TRACE_POINTS)
+    return TraceCurve(
+        direction="B->A" if direction == "B->A" else "A->B",
+        source=t.source,
+        points=encode_points(points),
+        decimated_from=t.points,
+    )
+
+
+def _limit_of(kind: str, limits: Limits) -> float | None:
+    if kind == "end":
+        return None
+    return limits.connector_max_db if kind == "reflective" else limits.splice_max_db
+
+
+def _sections(result: TraceResult, direction: str) -> list[TraceSectionRow]:
+    limit = result.limits.attenuation_here_db_per_km
+    return [
+        TraceSectionRow(
+            direction="B->A" if direction == "B->A" else "A->B",
+            number=sec.number,
+            from_m=sec.from_m,
+            to_m=sec.to_m,
+            attenuation_db_per_km=sec.attenuation_db_per_km,
+            loss_db=sec.loss_db,
+            verdict=sec.verdict,  # type: ignore[arg-type]
+            limit_db_per_km=limit,
+            verdict_reason=sec.verdict_reason,
+        )
+        for sec in result.sections
+    ]
+
+
+def _limits_text(limits: Limits, wavelength_nm: float | None) -> str:
+    return "\n".join(limits_lines(limits, wavelength_nm))
+
+
+def trace_record(
+    result: TraceResult, *, fibre: int, direction: str = "A->B", by: str = ""
+) -> TraceRecord:
+    """The record a job keeps of one trace, one way (distances from that trace's start)."""
+    t, lim = result.trace, result.limits
+    events = [
+        TraceEventRow(
+            number=e.number,
+            distance_m=e.distance_m,
+            kind=e.kind,  # type: ignore[arg-type]
+            loss_db=e.loss_db,
+            reflectance_db=e.reflectance_db,
+            cumulative_db=e.cumulative_loss_db,
+            verdict=e.verdict,  # type: ignore[arg-type]
+            limit_db=_limit_of(e.kind, lim),
+            verdict_reason=e.verdict_reason,
+            note="saturated: the peak is clipped" if e.saturated else "",
+        )
+        for e in result.events
+    ]
+    return TraceRecord(
+        by=by,
+        fibre=fibre,
+        wavelength_nm=t.wavelength_nm,
+        direction="B->A" if direction == "B->A" else "A->B",
+        sources=[t.source],
+        pulse_width_ns=t.pulse_width_ns or result.settings.pulse_width_ns,
+        group_index=result.group_index,
+        length_m=result.length_m,
+        total_loss_db=result.analysis.total_loss_db,
+        loss_method=result.settings.loss_method,
+        events=events,
+        sections=_sections(result, direction),
+        orl_db=result.analysis.orl_db,
+        orl_verdict=result.orl_verdict[0],  # type: ignore[arg-type]
+        limits=_limits_text(lim, t.wavelength_nm),
+        curves=[_curve(result, direction)],
+        notes=list(result.notes),
+    )
+
+
+def pair_record(pair: PairResult, *, fibre: int, by: str = "") -> TraceRecord:
+    """The record a job keeps of both directions averaged ("A<->B"): distances from end A;
+    ``cumulative_db`` is the sum of the averaged losses up to and including the event."""
+    a, b, lim = pair.a_to_b, pair.b_to_a, pair.limits
+    events = []
+    total = 0.0
+    for e in pair.events:
+        if e.average_db is not None:
+            total += e.average_db
+        reflectances = [r for r in (e.reflectance_ab_db, e.reflectance_ba_db) if r is not None]
+        events.append(
+            TraceEventRow(
+                number=e.number,
+                distance_m=e.distance_m,
+                kind=e.kind,  # type: ignore[arg-type]
+                loss_ab_db=e.loss_ab_db,
+                loss_ba_db=e.loss_ba_db,
+                average_db=e.average_db,
+                reflectance_db=max(reflectances) if reflectances else None,
+                cumulative_db=total,
+                verdict=e.verdict,  # type: ignore[arg-type]
+                limit_db=_limit_of(e.kind, lim),
+                verdict_reason=e.verdict_reason,
+                note=e.note,
+            )
+        )
+    notes = list(pair.notes)
+    orl = a.analysis.orl_db
+    if orl is not None:
+        notes.append("ORL as measured from end A")
+    wavelength = a.trace.wavelength_nm or b.trace.wavelength_nm
+    return TraceRecord(
+        by=by,
+        fibre=fibre,
+        wavelength_nm=wavelength,
+        direction="A<->B",
+        sources=[a.trace.source, b.trace.source],
+        pulse_width_ns=a.trace.pulse_width_ns or a.settings.pulse_width_ns,
+        group_index=a.group_index,
+        length_m=pair.length_m,
+        total_loss_db=pair.total_loss_db,
+        loss_method=a.settings.loss_method,
+        events=events,
+        sections=_sections(a, "A->B") + _sections(b, "B->A"),
+        orl_db=orl,
+        orl_verdict=a.orl_verdict[0],  # type: ignore[arg-type]
+        limits=_limits_text(lim, wavelength),
+        curves=[_curve(a, "A->B"), _curve(b, "B->A")],
+        notes=notes,
+    )
+
+
+def fibre_record(ft: FibreTraces, by: str = "") -> TraceRecord:
+    """The record of one fibre's traces: the pair when both directions are there."""
+    if ft.paired is not None:
+        return pair_record(ft.paired, fibre=ft.fibre, by=by)
+    if ft.one_way is None:
+        raise TraceJobError(f"fibre {ft.fibre}: no trace to save")
+    return trace_record(ft.one_way, fibre=ft.fibre, direction=ft.direction, by=by)
+
+
+@dataclass(frozen=True)
+class SavedTraces:
+    """Where traces were saved, what was saved, and how many earlier ones they superseded."""
+
+    job_id: str
+    job_name: str
+    link_id: str
+    link_label: str
+    records: tuple[TraceRecord, ...]
+    superseded: int
+
+    def summary(self) -> str:
+        """One line: "saved 2 traces (fibre 1 A<->B 1550 nm, ...) onto job J, link L"."""
+        shown = ", ".join(
+            f"fibre {r.fibre} {r.direction}"
+            + ("" if r.wavelength_nm is None else f" {r.wavelength_nm:g} nm")
+            for r in self.records[:3]
+        )
+        more = f" and {len(self.records) - 3} more" if len(self.records) > 3 else ""
+        earlier = f"; {self.superseded} earlier kept as superseded" if self.superseded else ""
+        noun = "trace" if len(self.records) == 1 else "traces"
+        return (
+            f"saved {len(self.records)} {noun} ({shown}{more}) onto job {self.job_name}, "
+            f"link {self.link_label}{earlier}"
+        )
+
+
+#: Called as ``progress(done, total)`` while records are put onto the link.
+SaveProgress = Callable[[int, int], None]
+
+
+def save_traces(
+    store: JobStore,
+    job_id: str,
+    link: str,
+    records: Sequence[TraceRecord],
+    *,
+    by: str = "",
+    create: bool = False,
+    progress: SaveProgress | None = None,
+) -> SavedTraces:
+    """Add ``records`` to the link (id or label; added by label with ``create``) in one save,
+    stamped with ``by`` (the operator); each supersedes the current record of the same fibre,
+    wavelength and direction, which stays in the file.
+
+    Raises
+    ------
+    TraceJobError
+        No records, or a ``by`` that is not plain text; no such link (nothing written).
+    """
+    if not records:
+        raise TraceJobError("no traces to save")
+    by = check_text(by, "by")
+    stamped = [r.model_copy(update={"by": by}) if by else r for r in records]
+    keys = [r.key for r in stamped]
+    if len(set(keys)) != len(keys):
+        repeated = next(k for k in keys if keys.count(k) > 1)
+        raise TraceJobError(
+            f"fibre {repeated[0]} {repeated[2]} is given twice at one wavelength: save one"
+        )
+    out: list[SavedTraces] = []
+
+    def change(job: Job) -> None:
+        target = find_link(job, link, create=create)
+        current = {t.key: t for t in target.traces if t.current}
+        superseded = 0
+        for number, record in enumerate(stamped, start=1):
+            old = current.get(record.key)
+            if old is not None:
+                old.superseded_at = record.at
+                old.superseded_by = record.id
+                superseded += 1
+            target.traces.append(record)
+            if progress is not None:
+                progress(number, len(stamped))
+        out[:] = [
+            SavedTraces(job.id, job.name, target.id, target.label, tuple(stamped), superseded)
+        ]
+
+    store.update(job_id, change)
+    return out[0]

@@ -199,7 +199,7 @@ class Contribution:
 
     name: str
     route_m: float
-    fiber_m: float
+    fibre_m: float
 
 
 @dataclass(frozen=True, slots=True)
@@ -224,12 +224,12 @@ class MarkingResult:
 class Position:
     """One located fault: fibre, sheath and route positions with their uncertainties."""
 
-    fiber_distance_m: float
+    fibre_distance_m: float
     sheath_distance_m: float
     route_distance_m: float
     uncertainty_m: float  # half-width of the route range (root-sum-square)
     worst_case_m: float  # the linear sum of the terms
-    fiber_uncertainty_m: float
+    fibre_uncertainty_m: float
     sheath_uncertainty_m: float
     basis: Literal["model", "interpolated", "extrapolated"]
     between: tuple[str, str] | None
@@ -275,7 +275,7 @@ class Location:
 
 
 # -- the basic formulas ---------------------------------------------------------------------
-def fiber_distance_from_time(round_trip_time_s: float, group_index: float) -> float:
+def fibre_distance_from_time(round_trip_time_s: float, group_index: float) -> float:
     """Fibre distance in m of an event whose echo returns after ``round_trip_time_s``.
 
     .. math:: d = \\frac{c\\,t}{2\\,n}
@@ -301,14 +301,14 @@ def rescale_distance(shown_m: float, index_set: float, group_index: float) -> fl
     return shown_m * index_set / group_index
 
 
-def sheath_length(fiber_m: float, helix_percent: float) -> float:
-    """Cable sheath length in m holding ``fiber_m`` of fibre with a helix of ``helix_percent``.
+def sheath_length(fibre_m: float, helix_percent: float) -> float:
+    """Cable sheath length in m holding ``fibre_m`` of fibre with a helix of ``helix_percent``.
 
     .. math:: L_{sheath} = \\frac{d}{1 + h/100}
     """
     _check_helix(helix_percent)
-    _finite(fiber_m, "fibre distance")
-    return fiber_m / (1.0 + helix_percent / 100.0)
+    _finite(fibre_m, "fibre distance")
+    return fibre_m / (1.0 + helix_percent / 100.0)
 
 
 def cable_at_route(route_m: float, slack: Sequence[SlackLoop]) -> float:
@@ -540,23 +540,23 @@ class _Chain:
     # (percentage points) to say how far it may not.
     extrapolation_helix_delta: float = 0.0
 
-    def fiber(self, shown_m: float, offset_m: float) -> float:
+    def fibre(self, shown_m: float, offset_m: float) -> float:
         return (shown_m * self.scale + offset_m) * self.index_set / self.group_index
 
-    def fault_fiber(self) -> float:
-        from_a = self.fiber(self.fault_shown_m, self.offset_m)
+    def fault_fibre(self) -> float:
+        from_a = self.fibre(self.fault_shown_m, self.offset_m)
         if self.weight_a >= 1.0 or self.b_shown_m is None or self.total_shown_m is None:
             return from_a
-        total = self.fiber(self.total_shown_m, self.offset_m)
-        from_b = self.fiber(self.b_shown_m, self.offset_b_m)
+        total = self.fibre(self.total_shown_m, self.offset_m)
+        from_b = self.fibre(self.b_shown_m, self.offset_b_m)
         return self.weight_a * from_a + (1.0 - self.weight_a) * (total - from_b)
 
     def discrepancy(self) -> float:
         assert self.b_shown_m is not None and self.total_shown_m is not None
         return (
-            self.fiber(self.fault_shown_m, self.offset_m)
-            + self.fiber(self.b_shown_m, self.offset_b_m)
-            - self.fiber(self.total_shown_m, self.offset_m)
+            self.fibre(self.fault_shown_m, self.offset_m)
+            + self.fibre(self.b_shown_m, self.offset_b_m)
+            - self.fibre(self.total_shown_m, self.offset_m)
         )
 
     def anchors(self) -> list[tuple[str, float, float]]:
@@ -569,38 +569,38 @@ class _Chain:
         if not marks or marks[0][2] > 0:
             out.append(("start", 0.0, 0.0))  # not a reading: no offset, no sampling error
         for name, shown, route in marks:
-            out.append((name, self.fiber(shown, self.offset_m), cable_at_route(route, self.slack)))
+            out.append((name, self.fibre(shown, self.offset_m), cable_at_route(route, self.slack)))
         return out
 
     def solve(self) -> tuple[float, float, float, SlackLoop | None, str, tuple[str, str] | None]:
         """(fibre, sheath, route, loop, basis, between) of the fault."""
-        fiber_m = self.fault_fiber()
+        fibre_m = self.fault_fibre()
         anchors = self.anchors() if self.landmark_names else []
         if len(anchors) < 2:
-            sheath_m = sheath_length(fiber_m, self.helix_percent)
+            sheath_m = sheath_length(fibre_m, self.helix_percent)
             route_m, loop = route_from_cable(sheath_m, self.slack)
-            return fiber_m, sheath_m, route_m, loop, "model", None
+            return fibre_m, sheath_m, route_m, loop, "model", None
         basis = "interpolated"
         for a, b in zip(anchors, anchors[1:], strict=False):
-            if fiber_m <= b[1]:
+            if fibre_m <= b[1]:
                 lo, hi = a, b
-                if fiber_m < a[1]:
+                if fibre_m < a[1]:
                     basis = "extrapolated"  # before the first landmark
                 break
         else:
             lo, hi = anchors[0], anchors[-1]
             basis = "extrapolated"
-        fiber_per_sheath = (hi[1] - lo[1]) / (hi[2] - lo[2])
+        fibre_per_sheath = (hi[1] - lo[1]) / (hi[2] - lo[2])
         if basis == "extrapolated":
-            fiber_per_sheath *= 1.0 + self.extrapolation_helix_delta / 100.0
-        if basis == "extrapolated" and fiber_m > anchors[-1][1]:
-            sheath_m = anchors[-1][2] + (fiber_m - anchors[-1][1]) / fiber_per_sheath
+            fibre_per_sheath *= 1.0 + self.extrapolation_helix_delta / 100.0
+        if basis == "extrapolated" and fibre_m > anchors[-1][1]:
+            sheath_m = anchors[-1][2] + (fibre_m - anchors[-1][1]) / fibre_per_sheath
             between = (anchors[-1][0], anchors[-1][0])
         else:
-            sheath_m = lo[2] + (fiber_m - lo[1]) / fiber_per_sheath
+            sheath_m = lo[2] + (fibre_m - lo[1]) / fibre_per_sheath
             between = (lo[0], hi[0])
         route_m, loop = route_from_cable(max(sheath_m, 0.0), self.slack)
-        return fiber_m, sheath_m, route_m, loop, basis, between
+        return fibre_m, sheath_m, route_m, loop, basis, between
 
 
 _Move = Callable[[float], "_Chain"]
@@ -693,21 +693,21 @@ def _ordered_chain_valid(chain: _Chain) -> bool:
 
 
 def _position(chain: _Chain, inp: LocateInput, two_ended: bool) -> Position:
-    fiber_m, sheath_m, route_m, loop, basis, between = chain.solve()
+    fibre_m, sheath_m, route_m, loop, basis, between = chain.solve()
     contributions: list[Contribution] = []
     sheath_parts: list[float] = []
     for name, move in _terms(chain, inp, two_ended):
-        d_route = d_fiber = d_sheath = 0.0
+        d_route = d_fibre = d_sheath = 0.0
         for k in (1.0, -1.0):
             moved = move(k)
             if moved.landmark_names and not _ordered_chain_valid(moved):
                 continue  # a landmark moved past its neighbour: the term is not meaningful there
             f, s, r, _, _, _ = moved.solve()
             d_route = max(d_route, abs(r - route_m))
-            d_fiber = max(d_fiber, abs(f - fiber_m))
+            d_fibre = max(d_fibre, abs(f - fibre_m))
             d_sheath = max(d_sheath, abs(s - sheath_m))
-        if d_route > 0 or d_fiber > 0:
-            contributions.append(Contribution(name, d_route, d_fiber))
+        if d_route > 0 or d_fibre > 0:
+            contributions.append(Contribution(name, d_route, d_fibre))
         sheath_parts.append(d_sheath)
     uncertainty_m = math.sqrt(sum(c.route_m**2 for c in contributions))
     nearest, offset = _nearest(chain, route_m)
@@ -725,12 +725,12 @@ def _position(chain: _Chain, inp: LocateInput, two_ended: bool) -> Position:
             direction=inp.marking.direction,
         )
     return Position(
-        fiber_distance_m=fiber_m,
+        fibre_distance_m=fibre_m,
         sheath_distance_m=sheath_m,
         route_distance_m=route_m,
         uncertainty_m=uncertainty_m,
         worst_case_m=sum(c.route_m for c in contributions),
-        fiber_uncertainty_m=math.sqrt(sum(c.fiber_m**2 for c in contributions)),
+        fibre_uncertainty_m=math.sqrt(sum(c.fibre_m**2 for c in contributions)),
         sheath_uncertainty_m=math.sqrt(sum(x * x for x in sheath_parts)),
         basis=basis,  # type: ignore[arg-type]
         between=between,
@@ -785,7 +785,7 @@ def locate(inp: LocateInput) -> Location:
         fault_shown_m = inp.otdr_distance_m
     else:
         assert inp.round_trip_time_s is not None
-        fault_shown_m = fiber_distance_from_time(inp.round_trip_time_s, index_set)
+        fault_shown_m = fibre_distance_from_time(inp.round_trip_time_s, index_set)
     helix = inp.helix_percent if inp.helix_percent is not None else 0.0
     if inp.helix_percent is None and not inp.landmarks:
         helix = UNKNOWN_HELIX_ESTIMATE_PERCENT
@@ -865,12 +865,12 @@ def locate(inp: LocateInput) -> Location:
 def _plausible(p: Position) -> bool:
     """True when every distance of a position is a number within reach of a real span."""
     values = (
-        p.fiber_distance_m,
+        p.fibre_distance_m,
         p.sheath_distance_m,
         p.route_distance_m,
         p.uncertainty_m,
         p.worst_case_m,
-        p.fiber_uncertainty_m,
+        p.fibre_uncertainty_m,
         p.sheath_uncertainty_m,
     )
     return all(math.isfinite(v) and abs(v) <= 10 * MAX_DISTANCE_M for v in values)
@@ -898,9 +898,9 @@ def _two_ended(chain: _Chain, inp: LocateInput) -> TwoEndedResult:
     err = inp.errors
     assert chain.b_shown_m is not None and chain.total_shown_m is not None
     ratio = chain.index_set / chain.group_index
-    from_a = chain.fiber(chain.fault_shown_m, 0.0)
-    from_b = chain.fiber(chain.b_shown_m, 0.0)
-    total = chain.fiber(chain.total_shown_m, 0.0)
+    from_a = chain.fibre(chain.fault_shown_m, 0.0)
+    from_b = chain.fibre(chain.b_shown_m, 0.0)
+    total = chain.fibre(chain.total_shown_m, 0.0)
     scale = err.scale_error_percent / 100
 
     def var(*distances: float, readings: int) -> float:

@@ -395,14 +395,14 @@ def _position_json(p: Any, unit: str) -> dict[str, Any]:
     from fieldkit.calc.locate import describe_offset, in_unit
 
     return {
-        "fiber_distance_m": p.fiber_distance_m,
+        "fiber_distance_m": p.fibre_distance_m,
         "sheath_distance_m": p.sheath_distance_m,
         "route_distance_m": p.route_distance_m,
         "uncertainty_m": p.uncertainty_m,
         "low_m": p.low_m,
         "high_m": p.high_m,
         "worst_case_m": p.worst_case_m,
-        "fiber_uncertainty_m": p.fiber_uncertainty_m,
+        "fiber_uncertainty_m": p.fibre_uncertainty_m,
         "sheath_uncertainty_m": p.sheath_uncertainty_m,
         "basis": p.basis,
         "between": list(p.between) if p.between else None,
@@ -431,7 +431,7 @@ def _position_json(p: Any, unit: str) -> dict[str, Any]:
             "text": p.marking.describe(),
         },
         "terms": [
-            {"name": c.name, "route_m": c.route_m, "fiber_m": c.fiber_m} for c in p.contributions
+            {"name": c.name, "route_m": c.route_m, "fiber_m": c.fibre_m} for c in p.contributions
         ],
         "in_unit": {
             "unit": unit,

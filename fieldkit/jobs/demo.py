@@ -318,7 +318,7 @@ def _reservoir(at: _At) -> Job:
                 "helix_percent": 1.5,
                 "slack_loops_m": [{"at_m": 1500.0, "length_m": 30.0}],
             },
-            fiber_distance_m=2963.0,
+            fibre_distance_m=2963.0,
             sheath_distance_m=2919.2,
             route_distance_m=2889.2,
             low_m=2876.0,

@@ -5,9 +5,9 @@ big, is not JSON, holds an id that is not a generated id (a path trick), or has 
 wrong type is refused with a message and the store is left as it was.
 
 Merging is by id, so importing the same file twice changes nothing: a job not in the store is
-added; for a job already there, notes, links and each link's references, results, splices and
-faults are added when their id is new. The same id with different content is a conflict: the
-local record is kept and the conflict reported, never overwritten.
+added; for a job already there, notes, links and each link's references, results, splices,
+faults and traces are added when their id is new. The same id with different content is a
+conflict: the local record is kept and the conflict reported, never overwritten.
 """
 
 from __future__ import annotations
@@ -25,7 +25,15 @@ from pydantic import BaseModel
 from fieldkit.fsutil import FileTooLargeError, NotRegularFileError, mib, read_regular
 from fieldkit.jobs.jobfile import check_before_save, loads_strict
 from fieldkit.jobs.migrations import MigrationError, migrate
-from fieldkit.jobs.models import JOB_ID_RE, MAX_FILE_BYTES, Job, Link, LossResult, settle_history
+from fieldkit.jobs.models import (
+    JOB_ID_RE,
+    MAX_FILE_BYTES,
+    Job,
+    Link,
+    LossResult,
+    TraceRecord,
+    settle_history,
+)
 from fieldkit.jobs.reports import HANDOFF_FORMAT
 from fieldkit.jobs.store import (
     ConflictError,
@@ -209,6 +217,7 @@ def _repeated_record_id(job: Job) -> str | None:
             ("closure", list(link.closures)),
             ("splice limit", list(link.splice_limits)),
             ("fault", list(link.faults)),
+            ("trace", list(link.traces)),
         ]
         for closure in link.closures:
             groups += [
@@ -261,6 +270,7 @@ def merge_job(local: Job, incoming: Job) -> tuple[int, list[str]]:
                 + len(link.references)
                 + sum(1 + len(c.splices) for c in link.closures)
                 + len(link.faults)
+                + len(link.traces)
             )
             continue
         n, c = _merge_link(links[link.id], link, f"{where}, link {links[link.id].label}")
@@ -290,6 +300,7 @@ def _merge_link(mine: Link, theirs: Link, where: str) -> tuple[int, list[str]]:
         ("results", "result"),
         ("splice_limits", "splice limit"),
         ("faults", "located fault"),
+        ("traces", "trace"),
     ):
         n, c = _merge_list(getattr(mine, attr), getattr(theirs, attr), f"{where}: {noun}")
         added += n
@@ -331,13 +342,14 @@ def _merge_list(mine: list[Any], theirs: list[Any], where: str) -> tuple[int, li
             by_id[item.id] = item
             added += 1
         elif not _same(have, item):
-            if isinstance(have, LossResult) and have.model_dump(
+            if isinstance(have, LossResult | TraceRecord) and have.model_dump(
                 exclude=set(_SUPERSEDED)
             ) == item.model_dump(exclude=set(_SUPERSEDED)):
                 # The same result; the other laptop retested it. Superseded stays superseded.
                 if have.current and not item.current:
                     for name in _SUPERSEDED:
-                        setattr(have, name, getattr(item, name))
+                        if name in type(have).model_fields:
+                            setattr(have, name, getattr(item, name))
                 continue
             conflicts.append(f"{where} {item.id} differs; kept this laptop's")
     return added, conflicts

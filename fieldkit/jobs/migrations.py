@@ -14,6 +14,10 @@ count and tube size were not recorded, each splice joining the same fibre number
 A loss estimated by the splicer becomes ``estimate_db``, an OTDR one-way value
 ``loss_ab_db`` / ``loss_ba_db``, a bidirectional one ``average_only_db``. A second splice of the
 same fibre becomes a re-splice of the first (``replaces``).
+
+Version 4 (before traces were kept): located faults named their fibre distance
+``fiber_distance_m``; version 5 spells it ``fibre_distance_m`` like every other field, and adds
+a link's ``traces`` and a budget's ``checks`` (both start empty).
 """
 
 from __future__ import annotations
@@ -181,11 +185,39 @@ def _v3_to_v4(data: dict[str, Any]) -> dict[str, Any]:
     return out
 
 
+def _v4_to_v5(data: dict[str, Any]) -> dict[str, Any]:
+    """Version 5: ``fiber_distance_m`` becomes ``fibre_distance_m``; traces and budget checks
+    start empty (the models' defaults), so nothing else changes."""
+    out = dict(data)
+    links = []
+    for link in out.get("links", []) or []:
+        if not isinstance(link, dict):
+            raise MigrationError("a link is not an object")
+        link = dict(link)
+        faults = []
+        for fault in link.get("faults", []) or []:
+            if not isinstance(fault, dict):
+                raise MigrationError("a located fault is not an object")
+            fault = dict(fault)
+            if "fiber_distance_m" in fault:
+                if "fibre_distance_m" in fault:
+                    raise MigrationError("a located fault has both fiber_ and fibre_distance_m")
+                fault["fibre_distance_m"] = fault.pop("fiber_distance_m")
+            faults.append(fault)
+        if "faults" in link:
+            link["faults"] = faults
+        links.append(link)
+    out["links"] = links
+    out["schema_version"] = 5
+    return out
+
+
 #: MIGRATIONS[n] turns a version-n dict into a version-(n+1) dict.
 MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {
     1: _v1_to_v2,
     2: _v2_to_v3,
     3: _v3_to_v4,
+    4: _v4_to_v5,
 }
 
 

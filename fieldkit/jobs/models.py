@@ -15,7 +15,9 @@ dict before validation; nothing here rewrites input (no ``mode="before"`` valida
 
 from __future__ import annotations
 
+import math
 import re
+from collections.abc import Sequence
 from typing import Any, Literal
 
 from pydantic import AwareDatetime, Field, PrivateAttr, field_validator
@@ -33,7 +35,7 @@ from fieldkit.jobs.splices import Closure, SpliceLimit
 
 #: The version of the job-file layout this fieldkit writes. Older files are migrated on load;
 #: newer ones open read-only.
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 
 #: Job ids: generated, lower-case hex, time-sortable (see :func:`new_id`). Anything else in a
 #: file name or an imported file is refused, so no id can name a path. Match it with
@@ -134,8 +136,38 @@ class BudgetWavelength(Record):
     items: list[BudgetItem] = Field(default_factory=list)
 
 
+CheckKind = Literal["dispersion", "dispersion spread", "modal bandwidth", "cut-off"]
+#: A check's verdict: the counting rule's words, and ``warning`` for a single-mode fibre used
+#: below its cut-off (it counts as a failed check, as ``LinkChecks.passed`` has it).
+CheckVerdict = Literal["pass", "fail", "no limit", "warning"]
+
+
+class BudgetCheck(Record):
+    """One check beyond loss of a saved budget (schema 5), from :mod:`fieldkit.calc.checks`.
+
+    ``value`` and ``limit`` share ``unit``: the accumulated dispersion against a receiver's
+    tolerance (ps/nm), the pulse spread against a quarter bit (ps), the link's length against
+    its modal-bandwidth reach (m), a wavelength against the fibre's cable cut-off (nm).
+    """
+
+    kind: CheckKind
+    wavelength_nm: float = Field(gt=0)
+    value: float | None = None
+    unit: str = Field(default="", max_length=20)
+    limit: float | None = None
+    verdict: CheckVerdict = "no limit"
+    #: One plain sentence: what was found, as the budget's text says it.
+    detail: str = Field(default="", max_length=MAX_SHORT_TEXT * 5)
+    #: The formula or preset the figure comes from.
+    source: str = Field(default="", max_length=MAX_SHORT_TEXT)
+
+
 class BudgetRecord(Record):
-    """A loss budget computed for a link, with the link description as it was given."""
+    """A loss budget computed for a link, with the link description as it was given.
+
+    ``checks`` (schema 5): the checks beyond loss computed with it (dispersion, modal
+    bandwidth, cut-off); empty for a budget saved before schema 5 or with none that apply.
+    """
 
     computed_at: AwareDatetime = Field(default_factory=now)
     by: str = ""
@@ -144,6 +176,7 @@ class BudgetRecord(Record):
     margin_db: float = 0.0
     application: dict[str, Any] | None = None
     transceiver: dict[str, Any] | None = None
+    checks: list[BudgetCheck] = Field(default_factory=list)
 
     @field_validator("description", "application", "transceiver")
     @classmethod
@@ -166,7 +199,7 @@ class FaultRecord(Record):
     by: str = Field(default="", max_length=200)
     at: AwareDatetime = Field(default_factory=now)
     inputs: dict[str, Any] = Field(default_factory=dict)
-    fiber_distance_m: float
+    fibre_distance_m: float
     sheath_distance_m: float
     route_distance_m: float
     low_m: float
@@ -181,6 +214,162 @@ class FaultRecord(Record):
     def _finite(cls, value: dict[str, Any]) -> dict[str, Any]:
         _check_finite(value, "fault inputs")
         return value
+
+
+# -- OTDR traces kept on a link (schema 5) -------------------------------------------------------
+#: A trace's direction: one way from end A or from end B, or both averaged ("A<->B").
+TraceDirection = Literal["A->B", "B->A", "A<->B"]
+EventKind = Literal["splice", "reflective", "gainer", "end"]
+Verdict = Literal["pass", "fail", "no limit", "in doubt"]
+#: Points kept per direction for drawing: the lowest and highest level of each of 300 columns
+#: (a 760-pixel drawing has about 700, so a reflection's peak still shows as a spike). Fewer
+#: than the 1,000 first planned: at 600, 144 fibres at two wavelengths, both directions
+#: averaged, take about 5.5 MB of the 20 MiB a job file may hold (about 19 kB a fibre), so a
+#: full retest kept as history still fits (measured in tests/unit/test_trace_records.py).
+MAX_TRACE_POINTS = 600
+#: A file name, never a path: no folder separators.
+_FILE_NAME = r"^[^/\\\x00]{1,200}$"
+#: The kept points as one text: ``distance,level`` pairs (m with up to 3 decimals, dB with up
+#: to 3) separated by single spaces. One string, not a JSON list, because a job file is
+#: written indented and a list of 1,200 numbers would take four times the room.
+_POINTS = r"^(?:-?[0-9]{1,7}(?:\.[0-9]{1,3})?,-?[0-9]{1,3}(?:\.[0-9]{1,3})?(?: |$))*$"
+
+
+def encode_points(points: Sequence[tuple[float, float]]) -> str:
+    """Points as the text :class:`TraceCurve` keeps: distance to 0.1 m, level to 0.01 dB
+    (finer than a drawing shows, far coarser than the trace: for drawing, never for measuring
+    again)."""
+
+    def num(value: float, digits: int) -> str:
+        text = f"{value:.{digits}f}".rstrip("0").rstrip(".")
+        return "0" if text in ("-0", "") else text
+
+    return " ".join(
+        f"{num(d, 1)},{num(v, 2)}"
+        for d, v in points
+        if math.isfinite(d) and math.isfinite(v)  # a dropout is left out of a drawing
+    )
+
+
+def decode_points(text: str) -> list[tuple[float, float]]:
+    """The (distance m, level dB) pairs of :func:`encode_points` text."""
+    out = []
+    for item in text.split():
+        d, v = item.split(",")
+        out.append((float(d), float(v)))
+    return out
+
+
+class TraceEventRow(Record):
+    """One row of a saved event table; distances from end A (from the trace's own start for a
+    one-way B->A record). One-way records fill ``loss_db``; pairs fill ``loss_ab_db``,
+    ``loss_ba_db`` and ``average_db`` (ITU-T G.650.3 bidirectional average)."""
+
+    number: int = Field(ge=1)
+    distance_m: float
+    kind: EventKind
+    loss_db: float | None = None
+    loss_ab_db: float | None = None
+    loss_ba_db: float | None = None
+    average_db: float | None = None
+    reflectance_db: float | None = None
+    cumulative_db: float | None = None
+    verdict: Verdict = "no limit"
+    #: The loss maximum the event was judged against (a splice's or a connector's) and why.
+    limit_db: float | None = None
+    verdict_reason: str = Field(default="", max_length=MAX_SHORT_TEXT * 2)
+    note: str = Field(default="", max_length=MAX_SHORT_TEXT * 2)
+
+
+class TraceSectionRow(Record):
+    """A section between events: its fitted attenuation (least squares, G.650.3)."""
+
+    direction: Direction = "A->B"
+    number: int = Field(ge=1)
+    from_m: float
+    to_m: float
+    attenuation_db_per_km: float
+    loss_db: float
+    verdict: Verdict = "no limit"
+    limit_db_per_km: float | None = None
+    verdict_reason: str = Field(default="", max_length=MAX_SHORT_TEXT * 2)
+
+
+class TraceCurve(Record):
+    """One direction's trace, decimated for drawing: at most :data:`MAX_TRACE_POINTS`
+    (distance m, level dB) pairs in distance order, distance from that direction's own start,
+    kept as :func:`encode_points` text; :meth:`pairs` gives them back."""
+
+    direction: Direction
+    source: str = Field(pattern=_FILE_NAME)
+    points: str = Field(default="", pattern=_POINTS, max_length=MAX_TRACE_POINTS * 20)
+    #: How many points the trace had before decimation.
+    decimated_from: int = Field(default=0, ge=0)
+
+    @field_validator("points")
+    @classmethod
+    def _at_most(cls, value: str) -> str:
+        if value.count(" ") + 1 > MAX_TRACE_POINTS:
+            raise ValueError(f"a trace curve keeps at most {MAX_TRACE_POINTS} points")
+        return value
+
+    def pairs(self) -> list[tuple[float, float]]:
+        """The kept points as (distance m, level dB) pairs, for drawing
+        (:func:`fieldkit.traces.svg.draw_trace`)."""
+        return decode_points(self.points)
+
+
+class TraceRecord(Record):
+    """An OTDR trace (one way) or a pair (both ways averaged) analysed and kept on a link.
+
+    What a customer report and a re-check need: the event table with verdicts and the limits
+    used, the sections, the ORL, and the curves to draw; source files by name only.
+
+    History, not overwrite: a new save of the same fibre, wavelength and direction marks this
+    one ``superseded_at`` / ``superseded_by``; it stays in the file and the exports.
+    """
+
+    id: str = _Id
+    by: str = Field(default="", max_length=200)
+    at: AwareDatetime = Field(default_factory=now)
+    fibre: int = Field(ge=1)
+    wavelength_nm: float | None = Field(default=None, gt=0)
+    direction: TraceDirection = "A->B"
+    sources: list[str] = Field(default_factory=list, max_length=2)
+    pulse_width_ns: float | None = Field(default=None, gt=0)
+    group_index: float | None = Field(default=None, gt=1)
+    length_m: float | None = Field(default=None, ge=0)
+    total_loss_db: float | None = None
+    loss_method: Literal["two-line", "five-point"] = "two-line"
+    events: list[TraceEventRow] = Field(default_factory=list)
+    sections: list[TraceSectionRow] = Field(default_factory=list)
+    orl_db: float | None = None
+    orl_verdict: Verdict = "no limit"
+    #: The limits summary as the analysis printed it (what was judged against, with sources).
+    limits: str = Field(default="", max_length=MAX_NOTE_TEXT)
+    curves: list[TraceCurve] = Field(default_factory=list, max_length=2)
+    notes: list[str] = Field(default_factory=list)
+    superseded_at: AwareDatetime | None = None
+    superseded_by: str | None = Field(default=None, pattern=RECORD_ID_RE)
+
+    @field_validator("sources")
+    @classmethod
+    def _names_only(cls, value: list[str]) -> list[str]:
+        for name in value:
+            if not re.fullmatch(_FILE_NAME, name):
+                raise ValueError(f"a trace source must be a file name, not a path: {name!r}")
+        return value
+
+    @property
+    def current(self) -> bool:
+        """True while no later save of the same fibre, wavelength and direction supersedes it."""
+        return self.superseded_at is None
+
+    @property
+    def key(self) -> tuple[int, float | None, str]:
+        """What a retest must match to supersede it: fibre, wavelength (0.1 nm), direction."""
+        wl = None if self.wavelength_nm is None else round(self.wavelength_nm, 1)
+        return (self.fibre, wl, self.direction)
 
 
 class Link(Record):
@@ -204,6 +393,8 @@ class Link(Record):
     #: Splice loss limits by method; the newest per method counts.
     splice_limits: list[SpliceLimit] = Field(default_factory=list)
     faults: list[FaultRecord] = Field(default_factory=list)
+    #: OTDR traces analysed and saved (schema 5); history kept, see :class:`TraceRecord`.
+    traces: list[TraceRecord] = Field(default_factory=list)
 
     def reference(self, reference_id: str | None) -> ReferenceRecord | None:
         """The reference record of this link with that id, if any."""
@@ -318,5 +509,22 @@ def settle_history(link: Link) -> int:
         if result.current and newest is not None and newest is not result:
             result.superseded_at = newest.at
             result.superseded_by = newest.id
+            marked += 1
+    return marked + settle_traces(link)
+
+
+def settle_traces(link: Link) -> int:
+    """:func:`settle_history` for a link's traces: of two or more current traces of one fibre,
+    wavelength and direction, the latest stays current. Returns how many were marked."""
+    latest: dict[tuple[int, float | None, str], TraceRecord] = {}
+    for trace in link.traces:
+        if trace.current and (trace.key not in latest or trace.at >= latest[trace.key].at):
+            latest[trace.key] = trace
+    marked = 0
+    for trace in link.traces:
+        newest = latest.get(trace.key)
+        if trace.current and newest is not None and newest is not trace:
+            trace.superseded_at = newest.at
+            trace.superseded_by = newest.id
             marked += 1
     return marked

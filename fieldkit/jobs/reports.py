@@ -540,7 +540,7 @@ def _link_sections(link: Link) -> list[Section]:
         for f in link.faults:
             table.rows.append(
                 [
-                    fmt_m(f.fiber_distance_m),
+                    fmt_m(f.fibre_distance_m),
                     fmt_m(f.sheath_distance_m),
                     fmt_m(f.route_distance_m),
                     fmt_m(f.low_m),

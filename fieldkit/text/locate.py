@@ -56,7 +56,7 @@ def position_rows(p: Position, unit: str) -> list[str]:
         lo, hi = sorted((p.marking.low, p.marking.high))
         rows.append(f"marking  {p.marking.value:.0f} {p.marking.unit} ({lo:.0f}–{hi:.0f})")
     rows += [
-        f"fibre    {f(p.fiber_distance_m)} ± {f(p.fiber_uncertainty_m)}",
+        f"fibre    {f(p.fibre_distance_m)} ± {f(p.fibre_uncertainty_m)}",
         f"sheath   {f(p.sheath_distance_m)} ± {f(p.sheath_uncertainty_m)}",
     ]
     basis = _BASIS[p.basis]

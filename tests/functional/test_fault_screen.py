@@ -54,7 +54,7 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(
         assert "Fault 2009.9 m ±" in _text(screen, "#fault-summary")
         assert "route    2009.9 m" in _text(screen, "#fault-result")
         p = screen.location.position  # the range tops out at the fibre distance, within its ±
-        assert p.high_m <= 2040.0 + p.fiber_uncertainty_m
+        assert p.high_m <= 2040.0 + p.fibre_uncertainty_m
         assert any("the estimate takes 1.5 %" in w for w in screen.location.warnings)
         cautions = _text(screen, "#fault-cautions")
         assert safety.DIGGING in cautions and safety.DEFER in cautions
@@ -254,7 +254,7 @@ async def test_round_trip_time_in_the_workspace(tmp_path: Path) -> None:
         await pilot.pause()
         # c·t/2n = 299 792 458 × 10e-6 / 3 = 999.3082 m (c exact, BIPM SI)
         assert screen.location is not None
-        assert screen.location.position.fiber_distance_m == pytest.approx(999.3082, abs=1e-4)
+        assert screen.location.position.fibre_distance_m == pytest.approx(999.3082, abs=1e-4)
         # a distance as well is refused, and both texts are kept
         screen.query_one("#fault-distance", Input).value = "1000 m"
         await pilot.pause()

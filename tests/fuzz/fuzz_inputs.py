@@ -132,7 +132,7 @@ def fuzz_calc_floats(rng: random.Random, n: int) -> None:
         coupling.mfd_mismatch_loss_db,
         reference.insertion_loss_db,
         reference.bidirectional_average_db,
-        locate.fiber_distance_from_time,
+        locate.fibre_distance_from_time,
         lambda a, b: power.sum_levels_dbm([a, b]),
     ]
 

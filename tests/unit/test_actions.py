@@ -178,7 +178,7 @@ def test_an_old_file_migrates_with_earlier_duplicates_superseded() -> None:
         ],
     }
     data = migrate(json.loads(json.dumps(old)))
-    assert data["schema_version"] == SCHEMA_VERSION == 4
+    assert data["schema_version"] == SCHEMA_VERSION == 5
     job = Job.model_validate(data)
     r1, r2, r3 = job.links[0].results
     assert (r1.superseded_by, r2.current, r3.current) == ("r2", True, True)

@@ -61,7 +61,7 @@ _TWO_ARGS: list[Callable[[float, float], float]] = [
     coupling.mfd_mismatch_loss_db,
     reference.insertion_loss_db,
     reference.bidirectional_average_db,
-    locate.fiber_distance_from_time,
+    locate.fibre_distance_from_time,
     locate.sheath_length,
     lambda a, b: reference.reference_drift(a, b, 0.1).drift_db,
 ]

@@ -130,7 +130,7 @@ faults = st.builds(
     by=words,
     at=moments,
     inputs=st.dictionaries(st.text(max_size=8), finite | words, max_size=3),
-    fiber_distance_m=finite,
+    fibre_distance_m=finite,
     sheath_distance_m=finite,
     route_distance_m=finite,
     low_m=finite,

@@ -127,7 +127,7 @@ def test_deep_nesting_in_free_form_parts_is_refused_on_import(tmp_path: Path, de
     data = _job_dict()
     data["links"][0]["faults"] = [
         {
-            "fiber_distance_m": 1.0,
+            "fibre_distance_m": 1.0,
             "sheath_distance_m": 1.0,
             "route_distance_m": 1.0,
             "low_m": 0.0,

@@ -17,7 +17,7 @@ from fieldkit.calc.locate import (
     TwoEnded,
     cable_at_route,
     describe_offset,
-    fiber_distance_from_time,
+    fibre_distance_from_time,
     format_distance,
     in_unit,
     locate,
@@ -41,16 +41,16 @@ def test_speed_of_light_is_the_si_definition() -> None:
 
 def test_distance_from_round_trip_time() -> None:
     # d = c·t / 2n = 299 792 458 × 10e-6 / (2 × 1.5) = 2997.92458 / 3 = 999.30819333 m
-    assert fiber_distance_from_time(10e-6, 1.5) == pytest.approx(999.3081933, abs=1e-6)
+    assert fibre_distance_from_time(10e-6, 1.5) == pytest.approx(999.3081933, abs=1e-6)
     # 50 µs at 1.4677: 14 989.6229 / 2.9354 = 5106.50 m
-    assert fiber_distance_from_time(50e-6, 1.4677) == pytest.approx(5106.5010, abs=1e-3)
+    assert fibre_distance_from_time(50e-6, 1.4677) == pytest.approx(5106.5010, abs=1e-3)
 
 
 def test_time_reading_through_locate_matches_the_formula() -> None:
     result = locate(
         LocateInput(round_trip_time_s=10e-6, group_index=1.5, helix_percent=0.0, errors=NO_ERRORS)
     )
-    assert result.position.fiber_distance_m == pytest.approx(999.3081933, abs=1e-6)
+    assert result.position.fibre_distance_m == pytest.approx(999.3081933, abs=1e-6)
 
 
 def test_rescaling_from_the_index_set_on_the_instrument() -> None:
@@ -66,7 +66,7 @@ def test_rescaling_from_the_index_set_on_the_instrument() -> None:
             errors=NO_ERRORS,
         )
     )
-    assert result.position.fiber_distance_m == pytest.approx(3417.3469, abs=1e-3)
+    assert result.position.fibre_distance_m == pytest.approx(3417.3469, abs=1e-3)
 
 
 def test_helix_shortens_the_sheath() -> None:
@@ -319,9 +319,9 @@ def test_two_ended_consistent_and_combined() -> None:
     # + (1e-4 × 5000)² = 4.27528; w_A = 4.27528 / 6.39170 = 0.66888;
     # combined = 0.66888 × 3412 + 0.33112 × (5000 − 1590) = 3410 + 2 × 0.66888 = 3411.3378 m
     assert two.weight_a == pytest.approx(0.66888, abs=1e-4)
-    assert two.combined.fiber_distance_m == pytest.approx(3411.3378, abs=1e-3)
+    assert two.combined.fibre_distance_m == pytest.approx(3411.3378, abs=1e-3)
     # combining two readings narrows the fibre-distance range
-    assert two.combined.fiber_uncertainty_m < result.position.fiber_uncertainty_m
+    assert two.combined.fibre_uncertainty_m < result.position.fibre_uncertainty_m
 
 
 def test_two_ended_inconsistent_is_flagged() -> None:
@@ -357,7 +357,7 @@ def test_uncertainty_is_the_root_sum_square_of_the_terms() -> None:
     assert p.high_m == pytest.approx(5000 + 3.72379, abs=1e-4)
     # the docstring's first-order form √(o² + (e·d)² + s² + (d·δn/n)²) agrees to 3 mm (2.1 mm here)
     first_order = math.sqrt(1 + 0.25 + 1 + (5000 * 0.001 / 1.468) ** 2)
-    assert p.fiber_uncertainty_m == pytest.approx(first_order, abs=3e-3)
+    assert p.fibre_uncertainty_m == pytest.approx(first_order, abs=3e-3)
 
 
 def test_helix_uncertainty_dominates_a_long_bare_reading() -> None:

@@ -284,7 +284,7 @@ def test_repair_closure_goes_where_the_fault_was_located(tmp_path: Path) -> None
         link = j.add_link("FEED")  # type: ignore[attr-defined]
         link.faults.append(
             FaultRecord(
-                fiber_distance_m=2963.0,
+                fibre_distance_m=2963.0,
                 sheath_distance_m=2919.2,
                 route_distance_m=2889.2,
                 low_m=2876.0,
