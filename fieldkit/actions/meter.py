@@ -209,6 +209,29 @@ class RecheckOutcome:
     in_doubt_ids: list[str]
 
 
+def last_good_check(
+    link: Link, initial: ReferenceRecord, until: datetime | None = None
+) -> datetime:
+    """When ``initial`` was last known good (up to ``until``): its own time, or its latest
+    recheck within tolerance.
+
+    A recheck record does not name its reference; it belongs to the initial one with the same
+    wavelength, source, meter and method set before it.
+    """
+    good_checks = [
+        r.at
+        for r in link.references
+        if r.kind == "recheck"
+        and abs(r.wavelength_nm - initial.wavelength_nm) <= 0.5
+        and (r.source_id, r.meter_id, r.method)
+        == (initial.source_id, initial.meter_id, initial.method)
+        and initial.at <= r.at
+        and (until is None or r.at <= until)
+        and r.in_doubt_since is None
+    ]
+    return max([initial.at, *good_checks])
+
+
 def recheck_reference(
     link: Link,
     *,
@@ -246,19 +269,7 @@ def recheck_reference(
         ref.default_drift_tolerance_db(wavelength_nm) if tolerance_db is None else tolerance_db
     )
     drift = ref.reference_drift(initial.level_dbm, level_dbm, tolerance)
-    # A recheck record does not name its reference; it belongs to the initial one with the same
-    # wavelength, source, meter and method set before it.
-    good_checks = [
-        r.at
-        for r in link.references
-        if r.kind == "recheck"
-        and abs(r.wavelength_nm - wavelength_nm) <= 0.5
-        and (r.source_id, r.meter_id, r.method)
-        == (initial.source_id, initial.meter_id, initial.method)
-        and initial.at <= r.at <= stamp
-        and r.in_doubt_since is None
-    ]
-    last_good_at = max([initial.at, *good_checks])
+    last_good_at = last_good_check(link, initial, stamp)
     recheck = ReferenceRecord(
         source_id=initial.source_id,
         meter_id=initial.meter_id,

@@ -117,8 +117,8 @@ class Tally:
         ``short``: the meter's line, where "no limit" is said beside the wavelength)."""
         parts = [f"{self.passed} pass", f"{self.failed} fail"]
         names = (
-            (self.reference_problems, "ref?" if short else "reference problem", "problems"),
-            (self.in_doubt, "doubt" if short else "in doubt", None),
+            (self.reference_problems, "bad ref" if short else "reference problem", "problems"),
+            (self.in_doubt, "in doubt", None),
             (0 if short else self.no_limit, "no limit", None),
         )
         for n, one, plural in names:

@@ -249,7 +249,7 @@ def bench_jobs(root: Path, sizes: list[int]) -> list[Path]:
 
 def job_with_results(store: JobStore, fibres: int) -> tuple[str, str]:
     """A job whose link of ``fibres`` fibres holds a 1310 nm result for every fibre."""
-    from fieldkit import meter_log
+    from fieldkit.actions import meter as meter_log
     from fieldkit.calc.reference import Method
 
     job = store.create(f"Cable of {fibres}")
@@ -278,7 +278,7 @@ def job_with_results(store: JobStore, fibres: int) -> tuple[str, str]:
 
 def save_one_reading(store: JobStore, job_id: str, link_id: str, repeat: int = 5) -> float:
     """One reading put into the job (reload, change, validate, write under the lock)."""
-    from fieldkit import meter_log
+    from fieldkit.actions import meter as meter_log
 
     state = {"n": 0}
 
@@ -318,7 +318,7 @@ async def meter_keystrokes(root: Path, fibres: int, readings: int = 24) -> float
             await pilot.press("enter")
             await pilot.pause()
             took.append(time.perf_counter() - start)
-        while not entry.meter_done(screen, readings):
+        while not await entry.meter_done(screen, readings):
             await pilot.pause(0.01)
     return statistics.median(took)
 

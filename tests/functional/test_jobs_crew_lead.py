@@ -96,7 +96,7 @@ async def test_crew_lead_starts_runs_and_closes_a_job(
         for text in ("-8.0", "-9.0", "-9.5"):
             await pilot.press(*text, "enter")
         # Past the last fibre the cursor stays: every fibre is filled, it never wraps to 1.
-        assert meter._fibre == 3  # noqa: SLF001
+        assert meter.session.fibre == 3
         await pilot.press("up")  # fibre 2: a retest, -8.2 is 1.2 dB, a pass
         await pilot.press(*"-8.2", "enter")
         await _settle(pilot, meter)

@@ -7,7 +7,6 @@ the workspace's single entry field, and the grid only shows values and where the
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
 
 from rich.text import Text
 from textual import events
@@ -17,22 +16,9 @@ from textual.message import Message
 from textual.reactive import Reactive
 from textual.widgets import DataTable, Input
 
+from fieldkit.tui.meter_session import GridColumn
 
-@dataclass(frozen=True, slots=True)
-class GridColumn:
-    """A column of the grid: a measured direction at a wavelength, or their average."""
-
-    wavelength_nm: float
-    direction: str | None  # "A->B" / "B->A"; None for the bidirectional average
-
-    @property
-    def key(self) -> str:
-        return f"{self.wavelength_nm:g}:{self.direction or 'avg'}"
-
-    @property
-    def heading(self) -> str:
-        arrow = {"A->B": "A→B", "B->A": "B→A", None: "avg"}[self.direction]
-        return f"{self.wavelength_nm:g} {arrow}"
+__all__ = ["EntryInput", "GridColumn", "ReadingsGrid"]
 
 
 class ReadingsGrid(DataTable[Text]):

@@ -1,0 +1,879 @@
+"""The meter workspace's state as a plain model: the grid, where the cursor is, what was typed,
+the references in use, the results and their marks, and the summary. No Textual here; the
+screen (:mod:`fieldkit.tui.screens.meter`) lays it out and wires keys to it, and it is tested
+at unit speed (``tests/unit/test_meter_session.py``).
+
+The rules that change a job are not repeated here: a reading, a clearing, a limit and a recheck
+become typed changes (:class:`~fieldkit.actions.meter.PutReading` and the others) that the
+:class:`SaveQueue` holds until :func:`fieldkit.actions.meter.apply_changes` saves them. Marking
+results in doubt after a drifted recheck uses the same rule as
+:func:`fieldkit.actions.meter.recheck_reference` (:func:`fieldkit.calc.reference.results_in_doubt`
+since the last good check), and counting uses :mod:`fieldkit.jobs.counting`.
+"""
+
+from __future__ import annotations
+
+import threading
+from dataclasses import dataclass, field, replace
+from datetime import datetime
+from itertools import count as _counter
+from typing import TYPE_CHECKING
+
+from fieldkit import inputs, safety
+from fieldkit.actions import meter as meter_log
+from fieldkit.actions.meter import (
+    ClearReading,
+    MeterChange,
+    PutReading,
+    Recheck,
+    ReferenceDetails,
+    SetLimit,
+)
+from fieldkit.calc import reference as ref
+from fieldkit.calc.units import InputError
+from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count
+from fieldkit.jobs.models import now, result_in_doubt
+from fieldkit.jobs.today import counted
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.models import Link
+
+CellKey = tuple[int, float, str]  # (fibre, wavelength nm, direction)
+ColumnKey = tuple[float, str]  # (wavelength nm, direction)
+
+DIRECTION_WORDS = {"1": "A→B", "2": "both"}
+#: How many wavelengths one session measures at a time.
+MAX_WAVELENGTHS = 4
+
+_ids = _counter(1)
+
+
+@dataclass(frozen=True, slots=True)
+class GridColumn:
+    """A column of the grid: a measured direction at a wavelength, or their average."""
+
+    wavelength_nm: float
+    direction: str | None  # "A->B" / "B->A"; None for the bidirectional average
+
+    @property
+    def key(self) -> str:
+        return f"{self.wavelength_nm:g}:{self.direction or 'avg'}"
+
+    @property
+    def heading(self) -> str:
+        arrow = {"A->B": "A→B", "B->A": "B→A", None: "avg"}[self.direction]
+        return f"{self.wavelength_nm:g} {arrow}"
+
+    @property
+    def measured(self) -> ColumnKey:
+        """The (wavelength, direction) whose reference and readings this column uses."""
+        return (self.wavelength_nm, self.direction or "A->B")
+
+
+@dataclass(slots=True)
+class Cell:
+    """One reading as entered, with the reference it was taken against."""
+
+    reading_dbm: float
+    reference_dbm: float
+    at: datetime
+    in_doubt: bool = False
+    #: The session's id of the column reference it was taken against (see ColumnReference).
+    reference_id: str = ""
+    id: str = ""
+
+    @property
+    def loss_db(self) -> float:
+        return ref.insertion_loss_db(self.reference_dbm, self.reading_dbm)
+
+
+@dataclass(slots=True)
+class ColumnReference:
+    """The reference in use for one column (wavelength and direction)."""
+
+    level_dbm: float
+    set_at: datetime
+    last_good_at: datetime
+    reference_id: str | None = None  # once saved into the job
+    in_doubt: bool = False
+    #: This session's id of the reference (cells name it; the job's id comes later).
+    local_id: str = field(default_factory=lambda: f"r{next(_ids)}")
+
+
+def meter_tallies(
+    cells: dict[CellKey, Cell],
+    limits_db: dict[float, float | None],
+    fibres: int,
+    directions: list[str],
+) -> dict[float, Tally]:
+    """The fibres of each wavelength counted by the one rule (:mod:`fieldkit.jobs.counting`)."""
+    per_fibre: dict[tuple[float, int], list[Count]] = {}
+    for (fibre, w, d), cell in cells.items():
+        if fibre > fibres or w not in limits_db or d not in directions:
+            continue
+        count = cell_count(cell.loss_db, limits_db[w], in_doubt=cell.in_doubt)
+        per_fibre.setdefault((w, fibre), []).append(count)
+    out = {w: Tally() for w in limits_db}
+    for (w, _fibre), counts in per_fibre.items():
+        out[w].add(fibre_count(counts))
+    return out
+
+
+def fit(width: int, *choices: str) -> str:
+    """The first of ``choices`` no wider than ``width`` (0: no limit); else the last."""
+    return next((c for c in choices if not width or len(c) <= width), choices[-1])
+
+
+#: The mark beside a loss and its colour, by verdict: the verdict reads without colour too.
+MARKS: dict[ref.Status, tuple[str, str]] = {
+    ref.Status.PASS: (" ", "green"),
+    ref.Status.FAIL: ("✗", "bold red"),
+    ref.Status.REFERENCE_PROBLEM: ("!", "bold yellow"),
+    ref.Status.NO_LIMIT: (" ", ""),
+}
+#: Beside the verdict's mark when the reference of the reading drifted at its recheck.
+DOUBT_MARK = "?"
+
+
+def cell_mark(loss_db: float, status: ref.Status, in_doubt: bool) -> tuple[str, str]:
+    """A grid cell's text and style: the loss, the verdict's mark, and "?" when in doubt.
+
+    In doubt keeps the verdict's mark beside the "?" (``3.50✗?``): a failing fibre measured
+    against a drifted reference still shows that it failed.
+    """
+    mark, style = MARKS[status]
+    if in_doubt:
+        mark += DOUBT_MARK
+        style = style if status in (ref.Status.FAIL, ref.Status.REFERENCE_PROBLEM) else "yellow"
+    return f"{loss_db:6.2f}{mark:<2}", style
+
+
+def verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict, *, short: bool) -> str:
+    """What the reading came to; ``short``: in one line of 42 columns (a phone terminal)."""
+    head = f"fibre {fibre} {column.heading}: {verdict.loss_db:.2f} dB"
+    if verdict.status is ref.Status.REFERENCE_PROBLEM:
+        if short:
+            return f"{head} negative: bad reference? Clean, re-reference."
+        return f"{head} — negative: a reference problem, not a good fibre. Clean, re-reference."
+    if verdict.margin_db is None:
+        return f"{head} (no limit)"
+    word = "pass" if verdict.status is ref.Status.PASS else "FAIL"
+    if short:
+        return f"{head} {word} {verdict.margin_db:+.2f}"
+    return f"{head} {word}, margin {verdict.margin_db:+.2f} dB"
+
+
+def parse_wavelengths(text: str) -> list[float]:
+    """The wavelengths field: one to four, in the fibre bands
+    (:func:`fieldkit.inputs.wavelength_list`), none twice; "/" separates like a comma."""
+    if not text.replace("/", " ").strip():
+        raise InputError("wavelengths: type at least one, e.g. 1310 1550")
+    out: list[float] = []
+    for nm in inputs.wavelength_list(text.replace("/", " "), "wavelength"):
+        if any(abs(nm - w) <= 0.5 for w in out):
+            raise InputError(f"wavelength: {nm:g} nm is listed twice")
+        out.append(round(nm, 3))
+    if len(out) > MAX_WAVELENGTHS:
+        raise InputError(f"wavelengths: at most {MAX_WAVELENGTHS} at a time")
+    return out
+
+
+def parse_directions(text: str) -> list[str]:
+    value = text.strip()
+    if value not in DIRECTION_WORDS:
+        raise InputError("directions: 1 (A->B only) or 2 (both directions)")
+    return ["A->B"] if value == "1" else ["A->B", "B->A"]
+
+
+# -- the save queue ----------------------------------------------------------------------------
+@dataclass
+class SaveQueue:
+    """Typed changes waiting to go into the job, and how the last save went.
+
+    One saver at a time: :meth:`put` says when a saver should start (none is running);
+    the saver takes batches (:meth:`take`), saves each in one job update, reports it
+    (:meth:`done`) and ends when :meth:`take` finds nothing left. A failed save leaves its
+    batch queued (nothing typed is lost); it goes again with the next entry. Thread-safe: the
+    screen's saver is a thread worker.
+    """
+
+    pending: list[MeterChange] = field(default_factory=list)
+    running: bool = False
+    error: str | None = None
+    saved_at: datetime | None = None
+    _lock: threading.Lock = field(default_factory=threading.Lock, repr=False)
+
+    def put(self, change: MeterChange | None) -> bool:
+        """Queue ``change`` (None: nothing new). True when a saver should start now."""
+        with self._lock:
+            if change is not None:
+                self.pending.append(change)
+            if self.running or not self.pending:
+                return False
+            self.running = True
+            return True
+
+    def claim(self) -> bool:
+        """Become the saver (for a save here and now); False while another one runs."""
+        with self._lock:
+            if self.running:
+                return False
+            self.running = True
+            return True
+
+    def take(self) -> list[MeterChange]:
+        """The saver's next batch: everything queued. Empty: nothing left, the saver ends."""
+        with self._lock:
+            batch = list(self.pending)
+            if not batch:
+                self.running = False
+            return batch
+
+    def done(self, batch: list[MeterChange], at: datetime) -> None:
+        with self._lock:
+            del self.pending[: len(batch)]
+            self.error = None
+            self.saved_at = at
+
+    def failed(self, message: str) -> None:
+        """The batch stays queued and the saver ends."""
+        with self._lock:
+            self.running = False
+            self.error = message
+
+    @property
+    def unsaved(self) -> int:
+        with self._lock:
+            return len(self.pending)
+
+    @property
+    def busy(self) -> bool:
+        with self._lock:
+            return self.running
+
+
+# -- what the screen does after an entry -------------------------------------------------------
+@dataclass
+class Entered:
+    """What Enter in the reading field came to."""
+
+    message: str
+    error: bool = False
+    cell: CellKey | None = None  # the cell recorded (its text changes)
+    change: PutReading | None = None
+
+
+@dataclass
+class Moved:
+    """After a reading: where the cursor went and what to say about it."""
+
+    message: str | None = None
+    column_changed: bool = False
+
+
+@dataclass
+class RecheckDone:
+    drift: ref.Drift
+    change: Recheck
+    doubted: list[CellKey]
+
+
+# -- the session -----------------------------------------------------------------------------
+class MeterSession:
+    """One meter session: set-up, references, readings, and where the cursor is."""
+
+    def __init__(self) -> None:
+        self.method = ref.Method.ONE_CORD
+        self.wavelengths: list[float] = [1310.0, 1550.0]
+        self.directions: list[str] = ["A->B"]
+        self.fibres = 12
+        self.cells: dict[CellKey, Cell] = {}
+        self.refs: dict[ColumnKey, ColumnReference] = {}
+        self.ref_text: dict[ColumnKey, str] = {}
+        self.limit_text: dict[float, str] = {}
+        self.typed_limits: dict[float, float] = {}
+        self.budget_limits: dict[float, tuple[float, str]] = {}
+        self.fibre = 1
+        self.column_index = 0
+        self.job_id: str | None = None
+        self.link_id: str | None = None
+        self.link_label = ""
+        self.link: Link | None = None
+        #: Cells whose loss came out negative, not yet retested, removed or re-referenced: the
+        #: entry line keeps saying so until they are dealt with.
+        self.problems: list[CellKey] = []
+        self.saves = SaveQueue()
+
+    # -- columns -----------------------------------------------------------------------------
+    @property
+    def measured_columns(self) -> list[GridColumn]:
+        return [GridColumn(w, d) for w in self.wavelengths for d in self.directions]
+
+    def grid_columns(self) -> list[GridColumn]:
+        out: list[GridColumn] = []
+        for w in self.wavelengths:
+            out += [GridColumn(w, d) for d in self.directions]
+            if len(self.directions) == 2:
+                out.append(GridColumn(w, None))
+        return out
+
+    @property
+    def active_column(self) -> GridColumn:
+        return self.measured_columns[self.column_index]
+
+    @property
+    def current_reference(self) -> ColumnReference | None:
+        return self.refs.get(self.active_column.measured)
+
+    def clamp(self) -> None:
+        """Keep the cursor inside the grid after the set-up changed."""
+        self.column_index = min(self.column_index, len(self.measured_columns) - 1)
+        self.fibre = min(self.fibre, self.fibres)
+
+    # -- limits ------------------------------------------------------------------------------
+    def limit_db(self, wavelength_nm: float) -> float | None:
+        if wavelength_nm in self.typed_limits:
+            return self.typed_limits[wavelength_nm]
+        budget = self.budget_limits.get(wavelength_nm)
+        return budget[0] if budget else None
+
+    def recompute_budget_limits(self) -> None:
+        self.budget_limits.clear()
+        if self.link is None:
+            return
+        for wavelength_nm in self.wavelengths:
+            try:
+                found = meter_log.budget_limit_db(self.link, wavelength_nm, self.method)
+            except InputError:
+                found = None
+            if found is not None:
+                self.budget_limits[wavelength_nm] = found
+
+    def limit_changes(self, wavelength_nm: float | None = None) -> list[SetLimit]:
+        """The stored results to judge again after a limit (or the method) changed."""
+        targets = [wavelength_nm] if wavelength_nm is not None else self.wavelengths
+        return [SetLimit(w, self.limit_db(w), self.method) for w in targets]
+
+    def limit_placeholder(self, narrow: bool) -> str:
+        budget = self.budget_limits.get(self.active_column.wavelength_nm)
+        # The note above says the limit is the budget's; 44 columns leave 10 for the field.
+        if not budget:
+            return "dB"
+        return f"{budget[0]:.2f} dB" if narrow else f"{budget[0]:.2f} budget"
+
+    # -- the set-up fields (each raises InputError naming the problem) -----------------------
+    def set_method(self, text: str) -> None:
+        self.method = ref.parse_method(text)
+        self.recompute_budget_limits()
+
+    def set_wavelengths(self, text: str) -> bool:
+        """True when the wavelengths changed (the grid is rebuilt)."""
+        wavelengths = parse_wavelengths(text)
+        if wavelengths == self.wavelengths:
+            return False
+        active = self.active_column
+        self.wavelengths = wavelengths
+        columns = self.measured_columns
+        self.column_index = columns.index(active) if active in columns else 0
+        self.recompute_budget_limits()
+        return True
+
+    def set_fibres(self, text: str) -> bool:
+        number = inputs.count(text, "fibres")
+        if number == self.fibres:
+            return False
+        self.fibres = number
+        self.clamp()
+        return True
+
+    def set_directions(self, text: str) -> bool:
+        directions = parse_directions(text)
+        if directions == self.directions:
+            return False
+        active = self.active_column
+        self.directions = directions
+        columns = self.measured_columns
+        self.column_index = columns.index(active) if active in columns else 0
+        return True
+
+    def set_reference(self, text: str) -> bool:
+        """The Ref field of the active column. False when nothing changed (the field shown
+        again for this column). A reference the field cannot read is dropped, so no reading
+        is taken against a level the field no longer shows; the InputError says why."""
+        key = self.active_column.measured
+        if text == self.ref_text.get(key, "") and (key in self.refs) == bool(text.strip()):
+            return False
+        self.ref_text[key] = text
+        if not text.strip():
+            self.refs.pop(key, None)
+            return True
+        try:
+            level = ref.level_dbm(text, "reference")
+        except InputError:
+            self.refs.pop(key, None)
+            raise
+        current = self.refs.get(key)
+        if current is None or abs(current.level_dbm - level) > 1e-9:
+            stamp = now()
+            self.refs[key] = ColumnReference(level, stamp, stamp)
+            # A new reference is the advice for a negative loss: its message has done its work.
+            self.problems = [p for p in self.problems if (p[1], p[2]) != key]
+        return True
+
+    def set_limit(self, text: str) -> float | None:
+        """The Limit field of the active wavelength: the wavelength whose limit changed, or
+        None when nothing did (the field shown again for it)."""
+        wavelength_nm = self.active_column.wavelength_nm
+        if text == self.limit_text.get(wavelength_nm, ""):
+            return None
+        self.limit_text[wavelength_nm] = text
+        if not text.strip():
+            self.typed_limits.pop(wavelength_nm, None)
+        else:
+            self.typed_limits[wavelength_nm] = ref.loss_limit_db(text)
+        return wavelength_nm
+
+    # -- readings ------------------------------------------------------------------------------
+    def reading_acceptable(self, text: str) -> bool:
+        """Whether Enter may take this text (a reading, with a reference set, or nothing)."""
+        if not text.strip():
+            return True
+        if self.current_reference is None:
+            return False
+        try:
+            ref.level_dbm(text, "reading")
+        except InputError:
+            return False
+        return True
+
+    def enter(self, text: str, details: ReferenceDetails, *, short: bool = False) -> Entered:
+        """A reading typed into the active cell (the text is not empty)."""
+        column = self.active_column
+        current = self.current_reference
+        try:
+            reading_dbm = ref.level_dbm(text, "reading")
+        except InputError as exc:
+            return Entered(str(exc), error=True)
+        if current is None:
+            return Entered(
+                f"Set the reference for {column.heading} first (the Ref field); "
+                "the reading is kept here.",
+                error=True,
+            )
+        stamp = now()
+        key = (self.fibre, *column.measured)
+        cell = Cell(
+            reading_dbm,
+            current.level_dbm,
+            stamp,
+            in_doubt=current.in_doubt,
+            reference_id=current.local_id,
+            id=f"c{next(_ids)}",
+        )
+        self.cells[key] = cell
+        limit_db = self.limit_db(column.wavelength_nm)
+        verdict = ref.judge(cell.loss_db, limit_db)
+        if key in self.problems:
+            self.problems.remove(key)
+        negative = verdict.status is ref.Status.REFERENCE_PROBLEM
+        if negative:
+            self.problems.append(key)
+        change = PutReading(
+            self.fibre,
+            column.wavelength_nm,
+            column.measured[1],
+            reading_dbm,
+            current.level_dbm,
+            self.method,
+            limit_db,
+            stamp,
+            replace(details, set_at=current.set_at),
+        )
+        return Entered(
+            verdict_words(self.fibre, column, verdict, short=short), negative, key, change
+        )
+
+    def problem_words(self, *, short: bool = False) -> str | None:
+        """The standing word about negative losses not yet dealt with (None: none)."""
+        if not self.problems:
+            return None
+        fibre, w, d = self.problems[-1]
+        column = GridColumn(w, d)
+        cell = self.cells.get(self.problems[-1])
+        loss = f" {cell.loss_db:.2f} dB" if cell else ""
+        more = f" (+{len(self.problems) - 1} more)" if len(self.problems) > 1 else ""
+        if short:
+            return f"⚠ fibre {fibre} {column.heading}{loss} negative{more}: retest"
+        return (
+            f"⚠ fibre {fibre} {column.heading}{loss}: negative loss{more}. Clean, "
+            "re-reference and retest it (Ctrl+X removes it)."
+        )
+
+    def clear_cell(self, by: str) -> ClearReading | None:
+        """Remove the reading under the cursor (None: there was none)."""
+        key = (self.fibre, *self.active_column.measured)
+        if self.cells.pop(key, None) is None:
+            return None
+        if key in self.problems:
+            self.problems.remove(key)
+        return ClearReading(key[0], key[1], key[2], by=by, at=now())
+
+    def move(self, step: int) -> None:
+        self.fibre = min(max(self.fibre + step, 1), self.fibres)
+
+    def column(self, step: int) -> None:
+        self.column_index = (self.column_index + step) % len(self.measured_columns)
+
+    def go_to(self, fibre: int, column: GridColumn) -> bool:
+        """The cursor to a cell (a click); True when the active column changed."""
+        changed = False
+        if column.direction is not None and column in self.measured_columns:
+            index = self.measured_columns.index(column)
+            changed = index != self.column_index
+            self.column_index = index
+        self.fibre = min(max(fibre, 1), self.fibres)
+        return changed
+
+    def next_empty(self) -> Moved:
+        """After a reading: the next fibre down; past the last fibre, the first empty fibre of
+        this or a following column. When every cell is filled the cursor stays (it never wraps
+        onto a filled fibre, where the next number would be a retest)."""
+        if self.fibre < self.fibres:
+            self.move(1)
+            return Moved()
+        columns = self.measured_columns
+        for offset in range(len(columns)):
+            index = (self.column_index + offset) % len(columns)
+            column = columns[index]
+            for fibre in range(1, self.fibres + 1):
+                if (fibre, *column.measured) not in self.cells:
+                    changed = index != self.column_index
+                    self.column_index = index
+                    self.fibre = fibre
+                    return Moved(
+                        f"Last fibre done; on to the first empty one: fibre {fibre} "
+                        f"{column.heading}.",
+                        changed,
+                    )
+        return Moved(
+            f"Every fibre has a reading. The cursor stays on fibre {self.fibre}; a number typed "
+            "here is a retest (the earlier result is kept as superseded)."
+        )
+
+    # -- what cells show -----------------------------------------------------------------------
+    def cell_text(self, fibre: int, column: GridColumn) -> tuple[str, str] | None:
+        """The text and style of a grid cell (None: empty)."""
+        limit_db = self.limit_db(column.wavelength_nm)
+        if column.direction is None:
+            a = self.cells.get((fibre, column.wavelength_nm, "A->B"))
+            b = self.cells.get((fibre, column.wavelength_nm, "B->A"))
+            if a is None or b is None:
+                return None
+            verdict = ref.judge_fibre({"A->B": a.loss_db, "B->A": b.loss_db}, limit_db)
+            average_db = verdict.average_db if verdict.average_db is not None else 0.0
+            return cell_mark(average_db, verdict.status, a.in_doubt or b.in_doubt)
+        cell = self.cells.get((fibre, column.wavelength_nm, column.direction))
+        if cell is None:
+            return None
+        return cell_mark(cell.loss_db, ref.judge(cell.loss_db, limit_db).status, cell.in_doubt)
+
+    def cells_of(self, fibre: int, wavelength_nm: float) -> list[GridColumn]:
+        """The grid columns one reading shows in: its own, and the average with two directions."""
+        del fibre
+        out = [GridColumn(wavelength_nm, d) for d in self.directions]
+        if len(self.directions) == 2:
+            out.append(GridColumn(wavelength_nm, None))
+        return out
+
+    def entry_where(self, narrow: bool) -> tuple[str, str]:
+        """The entry line's label and the reading field's placeholder."""
+        column = self.active_column
+        cell = self.cells.get((self.fibre, *column.measured))
+        replace_words = "" if narrow else "; type to replace"  # 21 columns at 44
+        placeholder = f"now {cell.reading_dbm:.2f} dBm{replace_words}" if cell else "reading, dBm"
+        return f"fibre {self.fibre} {column.heading}", placeholder
+
+    def reference_label(self) -> str:
+        column = self.active_column
+        arrow = "" if len(self.directions) == 1 else " →" if column.direction == "A->B" else " ←"
+        return f"Ref {column.wavelength_nm:g}{arrow}"
+
+    # -- the reference note --------------------------------------------------------------------
+    def reference_note(
+        self, *, narrow: bool, source_text: str = "", launch: str = ""
+    ) -> tuple[str, str | None]:
+        """The note under the set-up and the source-output field's error (None: no error)."""
+        column = self.active_column
+        current = self.current_reference
+        if current is None:
+            # Setting a reference means handling live cords: the caution goes with the prompt.
+            if narrow:
+                return (
+                    f"Set Ref {column.heading}, then type readings.\n"
+                    f"⚠ {safety.INVISIBLE_LIGHT_SHORT}",
+                    None,
+                )
+            return (
+                f"Set the reference for {column.heading} (Ref), then type readings.\n"
+                f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)",
+                None,
+            )
+        source_dbm = None
+        source_error: str | None = None
+        if source_text.strip():
+            try:
+                source_dbm = ref.level_dbm(source_text, "source output")
+                source_error = ""
+            except InputError as exc:
+                source_error = str(exc)
+        else:
+            source_error = ""
+        warnings = ref.reference_warnings(
+            current.level_dbm,
+            source_dbm=source_dbm,
+            wavelength_nm=column.wavelength_nm,
+            launch_condition=launch,
+        )
+        method = self.method
+        budget = self.budget_limits.get(column.wavelength_nm)
+        # The method's TIA letter is in the Method field's tooltip; a phone has one line here.
+        name = method.value if narrow else method.label
+        line = f"{name}: {method.end_connections} of 2 end connections counted"
+        if budget and column.wavelength_nm not in self.typed_limits:
+            left_out = 2 - method.end_connections
+            # On a phone terminal the limit goes on its own line (each fits 42 columns).
+            line += "\n" if narrow else "; "
+            line += f"limit {budget[0]:.2f} dB"
+            if left_out:
+                # "end" on a phone: the line above says which connections.
+                what = "connection" if narrow else "end connection"
+                line += f": budget less {counted(left_out, what)}"
+            else:
+                line += " from the budget"
+        # The note has two or three rows: a drifted reference and the warnings about this one
+        # come first, so they are never the part cut off.
+        lines = []
+        if current.in_doubt:
+            lines.append("This reference drifted at its recheck: set a new one and retest.")
+        lines += [f"⚠ {w}" for w in warnings]
+        lines.append(line)
+        return "\n".join(lines), source_error
+
+    # -- recheck -------------------------------------------------------------------------------
+    def apply_recheck(
+        self, column: GridColumn, level_dbm: float, tolerance_db: float, by: str
+    ) -> RecheckDone:
+        """Compare a recheck with the column's reference; beyond tolerance, mark in doubt the
+        readings taken against it since its last good check (the rule of
+        :func:`fieldkit.actions.meter.recheck_reference`, through
+        :func:`fieldkit.calc.reference.results_in_doubt`)."""
+        key = column.measured
+        current = self.refs[key]
+        drift = ref.reference_drift(current.level_dbm, level_dbm, tolerance_db)
+        stamp = now()
+        doubted: list[CellKey] = []
+        if drift.within:
+            current.last_good_at = stamp
+        else:
+            current.in_doubt = True
+            by_id = {cell.id: k for k, cell in self.cells.items() if (k[1], k[2]) == key}
+            ids = ref.results_in_doubt(
+                [self.cells[k] for k in by_id.values()], [current.local_id], current.last_good_at
+            )
+            for cell_id in ids:
+                self.cells[by_id[cell_id]].in_doubt = True
+                doubted.append(by_id[cell_id])
+        change = Recheck(
+            column.wavelength_nm,
+            key[1],
+            current.level_dbm,
+            self.method,
+            level_dbm,
+            tolerance_db,
+            stamp,
+            by=by,
+        )
+        return RecheckDone(drift, change, doubted)
+
+    # -- the job -------------------------------------------------------------------------------
+    def attach(
+        self, job_id: str, link: Link, details: ReferenceDetails
+    ) -> tuple[list[MeterChange], dict[str, str]]:
+        """Save into this job's link from now on; load what it already holds. Returns the
+        readings typed before a job was chosen, as changes to save into it now (they win over
+        the link's), and the set-up fields' new texts."""
+        self.job_id, self.link_id, self.link_label = job_id, link.id, link.label
+        self.link = link
+        typed_before = dict(self.cells)
+        fields = self.load_link(link)
+        self.recompute_budget_limits()
+        changes: list[MeterChange] = []
+        for (fibre, w, d), cell in typed_before.items():
+            column_ref = self.refs.get((w, d))
+            set_at = (
+                column_ref.set_at
+                if column_ref is not None and abs(column_ref.level_dbm - cell.reference_dbm) < 1e-9
+                else cell.at
+            )
+            changes.append(
+                PutReading(
+                    fibre,
+                    w,
+                    d,
+                    cell.reading_dbm,
+                    cell.reference_dbm,
+                    self.method,
+                    self.limit_db(w),
+                    cell.at,
+                    replace(details, set_at=set_at),
+                )
+            )
+        self.clamp()
+        return changes, fields
+
+    def load_link(self, link: Link) -> dict[str, str]:
+        """The link's current results and latest references into the grid (cells typed in
+        this session win); returns the set-up fields' new texts."""
+        if link.fibre_count:
+            self.fibres = max(self.fibres, link.fibre_count) if self.cells else link.fibre_count
+        wavelengths = sorted({round(r.wavelength_nm, 3) for r in link.results})
+        directions = sorted({r.direction for r in link.results})
+        # The latest reference of each column is the one in use.
+        local_ids: dict[str, str] = {}
+        for reference in sorted(link.references, key=lambda x: x.at, reverse=True):
+            if reference.kind != "initial":
+                continue
+            used = [r.direction for r in link.results if r.reference_id == reference.id]
+            direction = used[-1] if used else "A->B"
+            column_key = (round(reference.wavelength_nm, 3), direction)
+            if column_key not in self.refs:
+                column_ref = ColumnReference(
+                    reference.level_dbm,
+                    reference.at,
+                    meter_log.last_good_check(link, reference),
+                    reference.id,
+                    reference.in_doubt_since is not None,
+                )
+                self.refs[column_key] = column_ref
+                local_ids[reference.id] = column_ref.local_id
+                self.ref_text[column_key] = f"{reference.level_dbm:g}"
+        for r in sorted(link.results, key=lambda r: r.at, reverse=True):
+            if not r.current:
+                continue  # a retest or a clearing superseded it; its history stays in the job
+            against = link.reference(r.reference_id)
+            if r.reading_dbm is None or against is None:
+                continue
+            key = (r.fibre, round(r.wavelength_nm, 3), r.direction)
+            if key not in self.cells:
+                self.cells[key] = Cell(
+                    r.reading_dbm,
+                    against.level_dbm,
+                    r.at,
+                    in_doubt=result_in_doubt(link, r),
+                    reference_id=local_ids.get(against.id, against.id),
+                    id=r.id,
+                )
+        for w in wavelengths:
+            if w not in self.wavelengths:
+                self.wavelengths.append(w)
+        if "B->A" in directions and len(self.directions) == 1:
+            self.directions = ["A->B", "B->A"]
+        return {
+            "wavelengths": " ".join(f"{w:g}" for w in self.wavelengths),
+            "fibres": str(self.fibres),
+            "directions": str(len(self.directions)),
+        }
+
+    def saved(self, outcome: meter_log.Applied) -> list[str]:
+        """A save went through: note the job's reference ids; the warnings to show."""
+        for (w, d, level), reference_id in outcome.reference_ids.items():
+            current = self.refs.get((w, d))
+            if current is not None and abs(current.level_dbm - level) < 1e-9:
+                current.reference_id = reference_id
+        return [
+            f"{column}: {drift.message} ({counted(doubted, 'result')} marked in doubt)"
+            for column, drift, doubted in outcome.rechecks
+            if not drift.within
+        ]
+
+    # -- the summary ---------------------------------------------------------------------------
+    def save_words(self, open_key: str) -> str:
+        if self.job_id is None:
+            return f"{open_key}: choose a job to save into"
+        pending = self.saves.unsaved
+        if self.saves.error:
+            return f"NOT SAVED ({pending} waiting): {self.saves.error}"
+        where = f"Saving into {self.link_label}"
+        if pending:
+            return f"{where}: {pending} waiting"
+        if self.saves.saved_at is None:
+            return where  # nothing new typed yet
+        return f"{where}: saved {self.saves.saved_at.strftime('%H:%M:%S')}"
+
+    def summary_lines(self, *, width: int, open_key: str, at: datetime | None = None) -> list[str]:
+        """The summary: per wavelength the tally and the worst fibres, whether the readings are
+        saved, the references in use. ``width``: the lines fit it (0: no limit)."""
+        readings = [
+            (fibre, w, d, cell.loss_db)
+            for (fibre, w, d), cell in self.cells.items()
+            if fibre <= self.fibres and w in self.wavelengths and d in self.directions
+        ]
+        limits = {w: self.limit_db(w) for w in self.wavelengths}
+        lines: list[str] = []
+        summaries = {s.wavelength_nm: s for s in ref.summarise(readings, limits, worst_count=3)}
+        tallies = meter_tallies(self.cells, limits, self.fibres, self.directions)
+        for w in self.wavelengths:
+            s = summaries.get(w)
+            limit = limits[w]
+            limit_words = f"≤{limit:.2f}" if limit is not None else "(no limit)"
+            if s is None:
+                lines.append(f"{w:g} nm {limit_words}: no readings")
+                continue
+            counts = tallies[w].words(short=True)
+            tally = f"{s.fibres}/{self.fibres}, {counts}"
+            lines.append(
+                fit(
+                    width,
+                    f"{w:g} nm {limit_words}: {tally}",
+                    f"{w:g} {limit_words}: {tally}",
+                    f"{w:g} {limit_words} {s.fibres}/{self.fibres}: " + counts.replace(",", ""),
+                    f"{w:g} {s.fibres}/{self.fibres}: " + counts.replace(",", ""),
+                    f"{w:g}: {tally}",
+                )
+            )
+            worst = [f"{f} {loss:.2f}" for f, loss in s.worst]
+            while len(worst) > 1 and width and len("  worst fibre " + ", ".join(worst)) > width:
+                worst.pop()
+            lines.append("  worst fibre " + ", ".join(worst))
+        # Whether the readings are safe in a job matters more than the reference list.
+        lines.append(self.save_words(open_key))
+        stamp = at or now()
+        refs = []
+        for (w, d), current in sorted(self.refs.items()):
+            if w not in self.wavelengths or d not in self.directions:
+                continue
+            minutes = int((stamp - current.set_at).total_seconds() // 60)
+            arrow = "" if len(self.directions) == 1 else (" →" if d == "A->B" else " ←")
+            doubt = " DRIFTED" if current.in_doubt else ""
+            refs.append(f"  {w:g}{arrow} {current.level_dbm:.2f} dBm, {minutes} min{doubt}")
+        lines.append("References:" if refs else "References: none set")
+        lines += refs
+        return lines
+
+
+__all__ = [
+    "DIRECTION_WORDS",
+    "Cell",
+    "ColumnReference",
+    "Entered",
+    "GridColumn",
+    "MeterSession",
+    "Moved",
+    "RecheckDone",
+    "SaveQueue",
+    "cell_mark",
+    "fit",
+    "meter_tallies",
+    "parse_wavelengths",
+    "verdict_words",
+]

@@ -1,0 +1,290 @@
+"""The meter session as a plain model (no Textual): set-up, readings, marks, rechecks, the
+summary's wording and the save queue.
+
+Losses are worked by hand from the definition of insertion loss by the power-meter method
+(loss = reference level − reading, both in dBm; TIA-526-14 / IEC 61280-4-1, from memory).
+"""
+
+from __future__ import annotations
+
+from datetime import timedelta
+
+import pytest
+
+from fieldkit.actions.meter import (
+    Applied,
+    ClearReading,
+    PutReading,
+    ReferenceDetails,
+    SetLimit,
+    add_reference,
+    put_result,
+    recheck_reference,
+)
+from fieldkit.calc import reference as ref
+from fieldkit.calc.units import InputError
+from fieldkit.jobs.models import Job, now
+from fieldkit.tui.meter_session import (
+    GridColumn,
+    MeterSession,
+    SaveQueue,
+    cell_mark,
+    parse_wavelengths,
+)
+
+DETAILS = ReferenceDetails(by="Tester")
+
+
+def _session(fibres: int = 24, wavelengths: str = "1310 1550") -> MeterSession:
+    s = MeterSession()
+    s.set_fibres(str(fibres))
+    s.set_wavelengths(wavelengths)
+    return s
+
+
+def _type_column(s: MeterSession, column_index: int, losses: list[float], ref_dbm: float) -> None:
+    s.column_index = column_index
+    s.set_reference(f"{ref_dbm}")
+    for fibre, loss in enumerate(losses, start=1):
+        s.fibre = fibre
+        entered = s.enter(f"{ref_dbm - loss:.2f}", DETAILS)
+        assert entered.cell == (fibre, *s.active_column.measured)
+
+
+def test_summary_of_two_wavelengths_fits_a_phone_terminal() -> None:
+    # Was a Pilot test typing 48 readings key by key: the wording is the model's.
+    s = _session()
+    _type_column(s, 0, [f / 10 for f in range(1, 25)], -7.0)  # 0.10 .. 2.40 dB
+    _type_column(s, 1, [f / 10 for f in range(1, 24)] + [-0.2], -7.0)  # fibre 24 negative
+    lines = s.summary_lines(width=42, open_key="Ctrl+O")
+    assert all(len(line) <= 42 for line in lines), lines
+    # No limit typed: every fibre is tested, none passes or fails; the negative one at 1550 nm
+    # is counted as a reference problem ("bad ref"), never a pass.
+    assert lines[0] == "1310 nm (no limit): 24/24, 0 pass, 0 fail"
+    assert lines[1] == "  worst fibre 24 2.40, 23 2.30, 22 2.20"
+    assert lines[2].startswith("1550") and "24/24" in lines[2] and "1 bad ref" in lines[2]
+    assert lines[3] == "  worst fibre 23 2.30, 22 2.20, 21 2.10"
+    assert lines[4] == "Ctrl+O: choose a job to save into"
+    assert lines[5] == "References:"
+
+
+def test_summary_counts_against_a_typed_limit() -> None:
+    s = _session(fibres=4, wavelengths="1310")
+    s.set_limit("1.5")
+    _type_column(s, 0, [0.4, 1.6, -0.1, 1.5], -7.2)
+    # 0.4 and 1.5 are within 1.5 dB (at the limit passes); 1.6 fails; -0.1 is a bad reference.
+    lines = s.summary_lines(width=0, open_key="Ctrl+O")
+    assert lines[0] == "1310 nm ≤1.50: 4/4, 2 pass, 1 fail, 1 bad ref"
+    assert lines[1] == "  worst fibre 2 1.60, 4 1.50, 1 0.40"
+    narrow = s.summary_lines(width=42, open_key="Ctrl+O")
+    assert narrow[0] == "1310 ≤1.50: 4/4, 2 pass, 1 fail, 1 bad ref"  # 42 columns: no "nm"
+
+
+def test_a_reading_needs_a_reference_and_keeps_nothing_half_done() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    assert s.reading_acceptable("")  # Enter on an empty field moves on
+    assert not s.reading_acceptable("-8.0")  # no reference yet: the text stays in the field
+    entered = s.enter("-8.0", DETAILS)
+    assert entered.error and "Set the reference" in entered.message and not s.cells
+    s.set_reference("-7.2")
+    assert not s.reading_acceptable("5 km")
+    assert s.enter("5 km", DETAILS).error
+    # ITU-R V.574 (from memory): 50 µW = 10·log10(0.05 mW) = -13.0103 dBm.
+    entered = s.enter("50 uW", DETAILS)
+    assert entered.cell == (1, 1310.0, "A->B")
+    assert s.cells[entered.cell].loss_db == pytest.approx(-7.2 + 13.0103, abs=1e-4)
+    assert isinstance(entered.change, PutReading)
+    assert entered.change.reference_dbm == -7.2 and entered.change.details.by == "Tester"
+    # The reference's set time goes with the reading, so a new reference record is stamped
+    # when the reference was set, not when the reading was saved.
+    assert entered.change.details.set_at == s.refs[(1310.0, "A->B")].set_at
+
+
+def test_a_reference_the_field_cannot_read_is_not_used() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    s.set_reference("-7.2")
+    with pytest.raises(InputError):
+        s.set_reference("-7.2 dbx")
+    assert s.current_reference is None
+    assert s.set_reference("")  # emptied: still none
+    assert s.current_reference is None
+
+
+def test_set_up_fields_refuse_nonsense_naming_the_field() -> None:
+    with pytest.raises(InputError, match="twice"):
+        parse_wavelengths("1310 1310")
+    with pytest.raises(InputError, match="fibre bands"):
+        parse_wavelengths("1.31")  # a slipped unit: 1.31 nm
+    with pytest.raises(InputError, match="at most 4"):
+        parse_wavelengths("850 1300 1310 1490 1550")
+    assert parse_wavelengths("1310/1550") == [1310.0, 1550.0]
+    s = MeterSession()
+    with pytest.raises(InputError, match="fibres"):
+        s.set_fibres("6913")  # more than the largest cables made (6,912; common practice)
+    with pytest.raises(InputError, match="1 \\(A->B only\\) or 2"):
+        s.set_directions("3")
+    with pytest.raises(InputError, match="three-cord"):
+        s.set_method("four-cord")
+
+
+def test_enter_walks_down_then_to_the_first_empty_fibre_of_the_next_column() -> None:
+    s = _session(fibres=3)
+    s.set_reference("-7.0")
+    s.fibre = 3
+    s.enter("-7.5", DETAILS)
+    moved = s.next_empty()
+    assert (s.fibre, s.active_column) == (1, GridColumn(1310.0, "A->B"))
+    assert "first empty one: fibre 1 1310 A→B" in (moved.message or "")
+    for fibre in (1, 2):
+        s.fibre = fibre
+        s.enter("-7.5", DETAILS)
+    s.fibre = 3
+    moved = s.next_empty()
+    assert moved.column_changed and s.active_column == GridColumn(1550.0, "A->B")
+    s.set_reference("-7.0")
+    for fibre in (1, 2, 3):
+        s.fibre = fibre
+        s.enter("-7.5", DETAILS)
+    moved = s.next_empty()  # every cell filled: the cursor stays (a number now is a retest)
+    assert s.fibre == 3 and "Every fibre has a reading" in (moved.message or "")
+
+
+def test_both_directions_show_an_average_judged_by_the_worse_direction() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    s.set_directions("2")
+    s.set_limit("3.85")
+    _type_column(s, 0, [1.20, 4.10], -7.20)
+    _type_column(s, 1, [1.30, 3.50], -6.90)
+    average = GridColumn(1310.0, None)
+    # (1.20 + 1.30) / 2 = 1.25 dB; (4.10 + 3.50) / 2 = 3.80 dB, failing: A->B is over 3.85.
+    assert s.cell_text(1, average) == ("  1.25  ", "green")
+    assert s.cell_text(2, average) == ("  3.80✗ ", "bold red")
+
+
+def test_in_doubt_keeps_the_verdict_mark_beside_it() -> None:
+    assert cell_mark(3.5, ref.Status.FAIL, in_doubt=True) == ("  3.50✗?", "bold red")
+    assert cell_mark(-0.2, ref.Status.REFERENCE_PROBLEM, in_doubt=True)[0] == " -0.20!?"
+    assert cell_mark(1.1, ref.Status.PASS, in_doubt=True) == ("  1.10 ?", "yellow")
+    assert cell_mark(1.1, ref.Status.PASS, in_doubt=False) == ("  1.10  ", "green")
+
+
+def test_a_drifted_recheck_marks_the_readings_since_the_last_good_check() -> None:
+    s = _session(fibres=4, wavelengths="1550")
+    s.set_limit("2.0")
+    _type_column(s, 0, [1.0, 3.0], -7.0)
+    column = s.active_column
+    # Single-mode drift tolerance 0.10 dB (common practice): -7.05 is within.
+    good = s.apply_recheck(column, -7.05, 0.10, by="Tester")
+    assert good.drift.within and not good.doubted
+    later = s.refs[column.measured].last_good_at
+    s.fibre = 3
+    s.enter("-8.0", DETAILS)
+    s.cells[(3, 1550.0, "A->B")].at = later + timedelta(seconds=1)
+    for key in ((1, 1550.0, "A->B"), (2, 1550.0, "A->B")):
+        s.cells[key].at = later - timedelta(seconds=1)  # before the good recheck
+    # -7.25 − (-7.00) = -0.25 dB: beyond ±0.10 dB.
+    bad = s.apply_recheck(column, -7.25, 0.10, by="Tester")
+    assert not bad.drift.within
+    assert bad.doubted == [(3, 1550.0, "A->B")]  # only what came after the last good check
+    assert s.refs[column.measured].in_doubt
+    assert bad.change.level_dbm == -7.25 and bad.change.reference_dbm == -7.0
+    # Fibre 2 failed (3.0 > 2.0) before the good check: its mark stays a plain fail.
+    assert s.cell_text(2, column) == ("  3.00✗ ", "bold red")
+    assert s.cell_text(3, column) == ("  1.00 ?", "yellow")
+
+
+def test_the_screen_marks_the_same_readings_as_the_job() -> None:
+    # The session and fieldkit.actions.meter.recheck_reference put the same results in doubt,
+    # also for a reference loaded from a job with a good recheck in its history (the screen's
+    # old copy of the rule counted only the reference's own time as its last good check).
+    job = Job(name="Campus")
+    link = job.add_link("B1 to B2", fibre_count=3)
+    start = now() - timedelta(hours=2)
+    reference = add_reference(
+        link, wavelength_nm=1310, level_dbm=-7.0, method=ref.Method.ONE_CORD, at=start
+    )
+    for fibre, minutes in ((1, 10), (2, 70)):
+        put_result(
+            link,
+            fibre=fibre,
+            wavelength_nm=1310,
+            direction="A->B",
+            reading_dbm=-8.0,
+            reference=reference,
+            limit_db=2.0,
+            at=start + timedelta(minutes=minutes),
+        )
+    recheck_reference(
+        link, wavelength_nm=1310, level_dbm=-7.02, tolerance_db=0.1, at=start + timedelta(hours=1)
+    )
+    s = MeterSession()
+    s.attach("job", link, DETAILS)
+    s.set_wavelengths("1310")
+    column = GridColumn(1310.0, "A->B")
+    done = s.apply_recheck(column, -7.3, 0.1, by="Tester")
+    stored = recheck_reference(link, wavelength_nm=1310, level_dbm=-7.3, tolerance_db=0.1)
+    in_doubt = {r.fibre for r in link.results if r.id in stored.in_doubt_ids}
+    assert in_doubt == {2}
+    assert {fibre for fibre, _w, _d in done.doubted} == in_doubt
+
+
+def test_a_negative_loss_stands_until_it_is_dealt_with() -> None:
+    s = _session(fibres=4, wavelengths="1310")
+    s.set_reference("-7.2")
+    entered = s.enter("-7.05", DETAILS)  # -7.20 − (-7.05) = -0.15 dB
+    assert entered.error and "negative" in entered.message
+    assert "fibre 1 1310 A→B -0.15 dB" in (s.problem_words() or "")
+    s.next_empty()
+    s.enter("-8.0", DETAILS)  # the next reading does not take the word away
+    assert s.problem_words() is not None
+    s.fibre = 1
+    s.enter("-8.1", DETAILS)  # retested: dealt with
+    assert s.problem_words() is None
+    s.fibre = 3
+    s.enter("-7.0", DETAILS)
+    assert s.clear_cell(by="Tester") is not None  # removed: dealt with
+    assert s.problem_words() is None
+    s.enter("-7.0", DETAILS)
+    s.set_reference("-6.9")  # a new reference, as the advice says: dealt with
+    assert s.problem_words() is None
+
+
+def test_clearing_and_limits_become_typed_changes() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    s.set_reference("-7.0")
+    s.enter("-8.0", DETAILS)
+    change = s.clear_cell(by="Tester")
+    assert isinstance(change, ClearReading) and change.fibre == 1 and change.by == "Tester"
+    assert s.clear_cell(by="Tester") is None  # nothing left to remove
+    assert s.set_limit("1.5") == 1310.0
+    assert s.set_limit("1.5") is None  # shown again: no change
+    assert s.limit_changes(1310.0) == [SetLimit(1310.0, 1.5, ref.Method.ONE_CORD)]
+
+
+def test_save_queue_one_saver_and_nothing_lost_on_failure() -> None:
+    q = SaveQueue()
+    first = ClearReading(1, 1310.0, "A->B")
+    second = ClearReading(2, 1310.0, "A->B")
+    assert q.put(first)  # start a saver
+    assert not q.put(second)  # one is running: it takes this with its next batch
+    assert not q.claim()
+    batch = q.take()
+    assert batch == [first, second] and q.unsaved == 2
+    q.failed("disk full")
+    assert q.unsaved == 2 and q.error == "disk full" and not q.busy  # kept
+    assert q.put(None)  # the next entry starts a saver again
+    batch = q.take()
+    q.done(batch, now())
+    assert q.unsaved == 0 and q.error is None and q.take() == [] and not q.busy
+
+
+def test_a_save_gives_the_session_the_jobs_reference_ids() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    s.set_reference("-7.0")
+    s.enter("-8.0", DETAILS)
+    drift = ref.reference_drift(-7.0, -7.3, 0.1)
+    warnings = s.saved(
+        Applied(reference_ids={(1310.0, "A->B", -7.0): "R1"}, rechecks=[("1310 A->B", drift, 1)])
+    )
+    assert s.refs[(1310.0, "A->B")].reference_id == "R1"
+    assert warnings == [f"1310 A->B: {drift.message} (1 result marked in doubt)"]
