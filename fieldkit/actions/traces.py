@@ -41,6 +41,7 @@ from fieldkit.jobs.splices import current_limit
 from fieldkit.jobs.store import JobStore
 from fieldkit.presets import PresetLibrary
 from fieldkit.traces.analysis import TraceResult
+from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.lines import limits_lines
 from fieldkit.traces.pairing import PairResult, default_tolerance_m
 from fieldkit.traces.session import Closure as Landmark
@@ -491,6 +492,38 @@ def pair_record(pair: PairResult, *, fibre: int, by: str = "") -> TraceRecord:
         curves=[_curve(a, "A->B"), _curve(b, "B->A")],
         notes=notes,
     )
+
+
+def folder_fibres(result: FolderResult) -> list[FibreTraces]:
+    """Every fibre of an analysed folder as :class:`FibreTraces`: paired where both directions
+    paired, else each direction alone.
+
+    Raises
+    ------
+    TraceJobError
+        A fibre label that is no fibre number (nothing is saved then: name the files
+        ``F012_1550_AB.sor`` or give the records a fibre ID).
+    """
+    out: list[FibreTraces] = []
+    for row in result.rows:
+        if not (row.a_to_b or row.b_to_a):
+            continue
+        if not row.fibre.isdigit() or not 1 <= int(row.fibre) <= 10_000:
+            raise TraceJobError(
+                f"{row.fibre}: the record and the file name give no fibre number "
+                "(e.g. F012_1550_AB.sor); nothing saved"
+            )
+        number = int(row.fibre)
+        if row.paired is not None:
+            out.append(FibreTraces(number, paired=row.paired))
+            continue
+        if row.a_to_b is not None:
+            out.append(FibreTraces(number, one_way=row.a_to_b, direction="A->B"))
+        if row.b_to_a is not None:
+            out.append(FibreTraces(number, one_way=row.b_to_a, direction="B->A"))
+    if not out:
+        raise TraceJobError("no trace in the folder could be read: nothing to save")
+    return out
 
 
 def fibre_record(ft: FibreTraces, by: str = "") -> TraceRecord:

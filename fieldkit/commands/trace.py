@@ -2,7 +2,10 @@
 
 ``show FILE`` analyses one trace, ``pair A_TO_B B_TO_A`` averages the two directions of one
 fibre, ``folder DIR`` analyses a folder into one table per fibre, ``example DIR`` writes an
-invented cable's traces as standard records to try the others on.
+invented cable's traces as standard records to try the others on. ``--job ID --link L`` judges
+by the link's presets; with ``--save`` the analysis is also kept on that link (a
+:class:`~fieldkit.jobs.models.TraceRecord` per fibre, through
+:func:`fieldkit.actions.traces.save_traces`).
 """
 
 from __future__ import annotations
@@ -13,7 +16,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from fieldkit import safety
-from fieldkit.commands.common import CommandError, add_data_dir, print_json
+from fieldkit.commands.common import CommandError, add_by, add_data_dir, print_json
 
 if TYPE_CHECKING:
     from fieldkit.traces.analysis import Settings
@@ -43,8 +46,15 @@ def register(subparsers: Any) -> None:
     show.add_argument(
         "--html", metavar="OUT", help="also write a self-contained HTML page (trace as SVG)"
     )
+    show.add_argument(
+        "--direction",
+        choices=("ab", "ba"),
+        default=None,
+        help="with --save: the trace was taken from end A (ab) or B (ba); default: AB/BA in "
+        "the file name, else ab",
+    )
     _common(show)
-    _job_options(show)
+    _job_options(show, fibre=True)
     show.set_defaults(func=run_show)
 
     pair = sub.add_parser(
@@ -66,7 +76,7 @@ def register(subparsers: Any) -> None:
         "larger of 5 m, four samples and one pulse)",
     )
     _common(pair)
-    _job_options(pair)
+    _job_options(pair, fibre=True)
     pair.set_defaults(func=run_pair)
 
     folder = sub.add_parser(
@@ -188,10 +198,24 @@ def _common(p: argparse.ArgumentParser) -> None:
     add_data_dir(p)
 
 
-def _job_options(p: argparse.ArgumentParser) -> None:
+def _job_options(p: argparse.ArgumentParser, *, fibre: bool = False) -> None:
     g = p.add_argument_group("a job's link (its presets give the verdict limits)")
     g.add_argument("--job", metavar="ID", help="the job (id or its start)")
     g.add_argument("--link", metavar="LINK", help="the link's label or id")
+    g.add_argument(
+        "--save",
+        action="store_true",
+        help="also keep the analysis on the link (a retest of the same fibre, wavelength "
+        "and direction supersedes the earlier one, which stays)",
+    )
+    if fibre:
+        g.add_argument(
+            "--fibre",
+            metavar="N",
+            help="with --save: the fibre number (default: the record's fibre ID, else the "
+            "first number in the file name)",
+        )
+    add_by(p, "who did the work, with --save")
 
 
 def _num(text: str | None, what: str, lo: float, hi: float) -> float | None:
@@ -317,26 +341,41 @@ def _width() -> int:
 
 
 def run_show(args: argparse.Namespace) -> int:
+    from fieldkit.actions.traces import FibreTraces
     from fieldkit.traces import lines
+    from fieldkit.traces.folder import direction_token
 
+    _check_save(args)
     result = _analyse(args.file, args)
     if args.html:
         _write_html(Path(args.html), html_page([result], None))
+    saved = None
+    if args.save:
+        token = args.direction or (direction_token(result.trace.source) or "AB").lower()
+        direction = "B->A" if token == "ba" else "A->B"
+        number = _fibre_number(args, result.trace)
+        saved = _save(args, [FibreTraces(number, one_way=result, direction=direction)])
     if args.json:
         data = result.to_json()
         data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
+        if saved is not None:
+            data["saved"] = saved
         print_json(data)
         return 0
     for line in lines.trace_lines(result, _width()):
         print(line)
+    if saved is not None:
+        print(saved["summary"])
     return 0
 
 
 def run_pair(args: argparse.Namespace) -> int:
+    from fieldkit.actions.traces import FibreTraces
     from fieldkit.traces import lines
     from fieldkit.traces.model import TraceFileError
     from fieldkit.traces.pairing import pair
 
+    _check_save(args)
     a = _analyse(args.a_to_b, args)
     b = _analyse(args.b_to_a, args)
     tol = _num(args.tolerance, "--tolerance", 0.1, 1000.0)
@@ -346,13 +385,20 @@ def run_pair(args: argparse.Namespace) -> int:
         raise CommandError(str(exc)) from None
     if args.html:
         _write_html(Path(args.html), html_page([a, b], result))
+    saved = None
+    if args.save:
+        saved = _save(args, [FibreTraces(_fibre_number(args, a.trace), paired=result)])
     if args.json:
         data = result.to_json()
         data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
+        if saved is not None:
+            data["saved"] = saved
         print_json(data)
         return 0
     for line in lines.pair_lines(result, _width()):
         print(line)
+    if saved is not None:
+        print(saved["summary"])
     return 0
 
 
@@ -367,10 +413,12 @@ def _progress_bar(done: int, total: int, name: str) -> None:
 
 
 def run_folder(args: argparse.Namespace) -> int:
+    from fieldkit.actions.traces import folder_fibres
     from fieldkit.traces import lines
     from fieldkit.traces.folder import analyse_folder
     from fieldkit.traces.model import TraceFileError
 
+    _check_save(args)
     settings, options = settings_from(args)
     show_bar = not args.quiet and sys.stderr.isatty()
     try:
@@ -384,14 +432,87 @@ def run_folder(args: argparse.Namespace) -> int:
         raise CommandError(str(exc)) from None
     if result.files == 0:
         raise CommandError(f"{args.folder}: no trace files (.sor, .csv, .txt, .tsv, .dat)")
+    saved = None
+    if args.save:
+        saved = _save(args, folder_fibres(result), progress=not args.quiet)
     if args.csv:
         _write_html(Path(args.csv), folder_csv(result))
     if args.json:
-        print_json(result.to_json())
+        data = result.to_json()
+        if saved is not None:
+            data["saved"] = saved
+        print_json(data)
         return 0
     for line in lines.folder_lines(result, _width()):
         print(line)
+    if saved is not None:
+        print(saved["summary"])
     return 0
+
+
+def _check_save(args: argparse.Namespace) -> None:
+    """Refuse --save without a job's link, and its own options without --save, before any
+    trace is read."""
+    if args.save and not (args.job and args.link):
+        raise CommandError("--save keeps the traces on a job's link: give --job and --link")
+    if not args.save and getattr(args, "fibre", None) is not None:
+        raise CommandError("--fibre goes with --save (the fibre the traces are kept as)")
+
+
+def _fibre_number(args: argparse.Namespace, trace: Any) -> int:
+    """The fibre a saved trace is kept as: --fibre, else the record's fibre ID or the file
+    name's first number (as ``trace folder`` reads them)."""
+    from fieldkit.traces.folder import fibre_label
+
+    if args.fibre is not None:
+        number = _num(args.fibre, "--fibre", 1, 10_000)
+        if number is None or number != int(number):
+            raise CommandError("--fibre: give a whole fibre number, e.g. 12")
+        return int(number)
+    label = fibre_label(trace, trace.source)
+    if label.isdigit() and 1 <= int(label) <= 10_000:
+        return int(label)
+    raise CommandError(
+        f"{trace.source}: neither the record nor the file name gives a fibre number; give --fibre N"
+    )
+
+
+def _save(args: argparse.Namespace, fibres: list[Any], *, progress: bool = False) -> dict[str, Any]:
+    """Keep the fibres' traces on --job/--link; what was saved, for the output."""
+    from fieldkit.actions.traces import fibre_record, save_traces
+    from fieldkit.commands.common import operator
+    from fieldkit.commands.meter_record import open_store
+    from fieldkit.jobs.store import StoreError
+
+    by = operator(args)
+    show = progress and sys.stderr.isatty()
+    records = []
+    for k, ft in enumerate(fibres, start=1):
+        records.append(fibre_record(ft, by=by))
+        if show:
+            _progress_bar(k, len(fibres), f"fibre {ft.fibre}")
+    store = open_store(args)
+    try:
+        saved = save_traces(store, store.resolve(args.job), args.link, records, by=by)
+    except StoreError as exc:
+        raise CommandError(str(exc)) from None
+    return {
+        "job_id": saved.job_id,
+        "job": saved.job_name,
+        "link_id": saved.link_id,
+        "link": saved.link_label,
+        "records": [
+            {
+                "id": r.id,
+                "fibre": r.fibre,
+                "wavelength_nm": r.wavelength_nm,
+                "direction": r.direction,
+            }
+            for r in saved.records
+        ],
+        "superseded": saved.superseded,
+        "summary": saved.summary(),
+    }
 
 
 def run_example(args: argparse.Namespace) -> int:
