@@ -210,6 +210,15 @@ USES: dict[str, tuple[Use, ...]] = {
         Use("remove", "delete_job", "delete the job into the trash (asks first)", show=False),
         Use("today", "toggle_today", "only today's jobs, or every day again", show=False),
     ),
+    "jobs_picker": (
+        Use(
+            "filter",
+            "toggle_done",
+            "show done jobs too (after the open ones), or open jobs only",
+            label="Done jobs",
+        ),
+        Use("close", "cancel", "close it, nothing saved", label="Cancel"),
+    ),
     "jobs_today": (
         Use("column_previous", "day(-1)", "the day before", label="Day before"),
         Use("column_next", "day(1)", "the day after", label="Day after"),
@@ -250,7 +259,10 @@ USES: dict[str, tuple[Use, ...]] = {
 }
 
 #: The titles used in Help and the README for entries of USES that are not workspaces.
-_SUB_TITLES = {"jobs_today": "End of day (in Jobs)"}
+_SUB_TITLES = {
+    "jobs_picker": "Choosing a job and link (Save and Open in every workspace)",
+    "jobs_today": "End of day (in Jobs)",
+}
 
 _BY_NAME: dict[str, Key] = {k.name: k for k in (*COMMON, *LOCAL)}
 

@@ -151,8 +151,12 @@ async def test_workspace_bar_shows_keys_and_takes_clicks(tmp_path: Path, size) -
         bar = app.screen.query_one(WorkspaceBar)
         line = str(bar.render())
         assert "F2 Convert" in line
-        for tab in TABS:
-            assert tab.key_label in line  # every key visible, even at 44 columns
+        # Every entry shown is a key and its word (issue 14: bare "F2 F3 F4" at 44 columns);
+        # at 80 columns all of them, at 44 a window with "›" where more lie beyond.
+        shown = [tab for tab in TABS if f"{tab.key_label} {tab.title}" in line]
+        bare = [tab for tab in TABS if tab.key_label in line and tab not in shown]
+        assert not bare
+        assert len(shown) == len(TABS) if size[0] >= 80 else len(shown) >= 4 and "›" in line
         assert len(line) <= size[0]
         current = bar.tab_style(TABS[0])
         assert all(bar.tab_style(tab) != current for tab in TABS[1:])  # only Convert is lit
@@ -160,6 +164,10 @@ async def test_workspace_bar_shows_keys_and_takes_clicks(tmp_path: Path, size) -
         await pilot.pause()
         assert app.current_mode == "meter"
         line = str(app.screen.query_one(WorkspaceBar).render())
+        while "F1" not in line:  # the marker goes on to the hidden workspaces
+            await pilot.click(WorkspaceBar, offset=(line.index("›"), 0))
+            await pilot.pause()
+            line = str(app.screen.query_one(WorkspaceBar).render())
         await pilot.click(WorkspaceBar, offset=(line.rindex("F1") + 1, 0))
         await pilot.pause()
         assert isinstance(app.screen, HelpScreen)

@@ -112,7 +112,8 @@ async def test_end_of_day_view_counts_and_opens_a_job(
         totals = _text(day, "#eod-totals")
         # The demo day: 78 results, 2 failures, 5 in doubt (see tests/unit/test_jobs_today.py).
         assert "78 results today" in totals and "2 fail" in totals and "5 in doubt" in totals
-        assert "SR-SPUR: no results yet" in _text(day, "#eod-detail")
+        details = " ".join(str(w.render()) for w in day.query(".eod-job"))
+        assert "SR-SPUR: no results yet" in details
         wanted = day.query_one("#eod-jobs", OptionList).get_option_at_index(1).id
         await pilot.press("down", "enter")
         await pilot.pause()

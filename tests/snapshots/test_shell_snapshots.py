@@ -33,3 +33,21 @@ def test_jobs_on_demo(workspace_snap: Snap, size: tuple[int, int]) -> None:
 def test_help(workspace_snap: Snap, size: tuple[int, int]) -> None:
     """Help (F1) over Convert: the safety cautions first."""
     assert workspace_snap("convert", size, press=["f1"], demo=False)
+
+
+@pytest.mark.parametrize("size", SIZES, ids=["80x24", "44x22"])
+def test_jobs_end_of_day(workspace_snap: Snap, size: tuple[int, int]) -> None:
+    """End of day (Ctrl+G) on the demo day: totals, the day's jobs, their items."""
+    assert workspace_snap("jobs", size, press=["ctrl+g"])
+
+
+@pytest.mark.parametrize("size", SIZES, ids=["80x24", "44x22"])
+def test_job_picker_with_done_jobs(workspace_snap: Snap, size: tuple[int, int]) -> None:
+    """The job picker of every workspace, done jobs listed too (Ctrl+Y), open ones first."""
+
+    def open_picker(pilot: object) -> None:
+        from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+        pilot.app.push_screen(JobLinkPicker())  # type: ignore[attr-defined]
+
+    assert workspace_snap("convert", size, press=["ctrl+y"], run_before=open_picker)

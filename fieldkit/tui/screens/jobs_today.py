@@ -1,7 +1,10 @@
 """The end-of-day view: today's jobs, result counts, failures, doubts and open items.
 
 Pushed from the jobs workspace (Ctrl+G, which also closes it). Enter on a job closes the view
-and opens that job; Ctrl+Left / Ctrl+Right step to the day before or after.
+and opens that job; Ctrl+Left / Ctrl+Right step to the day before or after. Up and Down move
+the job list and bring that job's failures and open items into view; past the last job, Down
+goes on scrolling them, and PgDn / PgUp scroll them a page. The toasts of the jobs workspace are
+cleared when the view opens, so none covers it.
 """
 
 from __future__ import annotations
@@ -11,6 +14,7 @@ from datetime import date, timedelta
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
+from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Label, OptionList, Static
@@ -21,6 +25,42 @@ from fieldkit.jobs.store import StoreError, local_date
 from fieldkit.jobs.today import DaySummary, counted, day_summary
 from fieldkit.text.escape import terminal
 from fieldkit.tui import keys
+
+
+class DayJobs(OptionList):
+    """The day's jobs; Down past the last one and PgDn / PgUp scroll the details below."""
+
+    BINDINGS = [
+        Binding("pagedown", "page_details(1)", "Page down", show=False),
+        Binding("pageup", "page_details(-1)", "Page up", show=False),
+    ]
+
+    @property
+    def details(self) -> VerticalScroll:
+        return self.screen.query_one("#eod-items", VerticalScroll)
+
+    def _at_last(self) -> bool:
+        return self.highlighted is not None and self.highlighted >= self.option_count - 1
+
+    def action_cursor_down(self) -> None:
+        if self._at_last() or not self.option_count:
+            self.details.scroll_down(animate=False)
+        else:
+            super().action_cursor_down()
+
+    def action_cursor_up(self) -> None:
+        screen = self.screen
+        top = screen.section_top(self.highlighted) if isinstance(screen, EndOfDayScreen) else 0
+        if self._at_last() and self.details.scroll_y > top:
+            self.details.scroll_up(animate=False)  # back up through the last job's items
+        else:
+            super().action_cursor_up()
+
+    def action_page_details(self, step: int) -> None:
+        if step > 0:
+            self.details.scroll_page_down(animate=False)
+        else:
+            self.details.scroll_page_up(animate=False)
 
 
 class EndOfDayScreen(ModalScreen[str | None]):
@@ -49,14 +89,21 @@ class EndOfDayScreen(ModalScreen[str | None]):
                 )
                 yield Button("Close", id="eod-close", compact=True, tooltip="Escape")
             yield Static("", id="eod-totals")
-            yield OptionList(id="eod-jobs", markup=False)
-            with VerticalScroll(id="eod-items"):
-                yield Static("", id="eod-detail")
+            yield DayJobs(id="eod-jobs", markup=False)
+            yield VerticalScroll(id="eod-items")
 
-    def on_mount(self) -> None:
-        self.refresh_day()
+    async def on_mount(self) -> None:
+        self.app.clear_notifications()  # a toast from the jobs workspace would cover the view
+        await self.refresh_day()
 
-    def refresh_day(self) -> None:
+    def section_top(self, index: int | None) -> int:
+        """Where the details of the job at ``index`` start, in the scrolled view's rows."""
+        sections = self.query(".eod-job")
+        if index is None or not 0 <= index < len(sections):
+            return 0
+        return sections[index].virtual_region.y
+
+    async def refresh_day(self) -> None:
         store = self.app.store  # type: ignore[attr-defined]
         try:
             summary = day_summary(store, self._day)
@@ -85,35 +132,49 @@ class EndOfDayScreen(ModalScreen[str | None]):
             fail = f", {job.failed} FAIL" if job.failed else ""
             results = counted(job.results_today, "result")
             jobs.add_option(Option(f"{mark} {terminal(job.name)}: {results}{fail}", id=job.id))
-        detail = Text()
+        items = self.query_one("#eod-items", VerticalScroll)
+        await items.remove_children()
+        sections: list[Static] = []
         if not summary.jobs:
-            detail.append("No job was created or updated on this day.", "dim")
+            sections.append(
+                Static(Text("No job was created or updated on this day.", "dim"), id="eod-none")
+            )
         for job in summary.jobs:
-            detail.append(f"{terminal(job.name)}\n", "bold")
+            detail = Text(f"{terminal(job.name)}", "bold")
             for failure in job.failures:
-                detail.append(f"  ✗ {terminal(failure)}\n", "red")
+                detail.append(f"\n  ✗ {terminal(failure)}", "red")
             for item in job.open_items:
-                detail.append(f"  • {terminal(item)}\n")
-        self.query_one("#eod-detail", Static).update(detail)
+                detail.append(f"\n  • {terminal(item)}")
+            sections.append(Static(detail, classes="eod-job"))
+        await items.mount_all(sections)
+        items.scroll_home(animate=False)
+        jobs.focus()  # Down and PgDn scroll the details even on a day without jobs
         if summary.jobs:
             jobs.highlighted = 0
-            jobs.focus()
+
+    @on(OptionList.OptionHighlighted, "#eod-jobs")
+    def _job_highlighted(self, event: OptionList.OptionHighlighted) -> None:
+        sections = self.query(".eod-job")
+        if 0 <= event.option_index < len(sections):
+            self.query_one("#eod-items", VerticalScroll).scroll_to_widget(
+                sections[event.option_index], top=True, animate=False
+            )
 
     @on(OptionList.OptionSelected, "#eod-jobs")
     def _open_job(self, event: OptionList.OptionSelected) -> None:
         self.dismiss(event.option_id)
 
-    def action_day(self, step: int) -> None:
+    async def action_day(self, step: int) -> None:
         self._day += timedelta(days=step)
-        self.refresh_day()
+        await self.refresh_day()
 
     @on(Button.Pressed, "#eod-before")
-    def _before(self) -> None:
-        self.action_day(-1)
+    async def _before(self) -> None:
+        await self.action_day(-1)
 
     @on(Button.Pressed, "#eod-after")
-    def _after(self) -> None:
-        self.action_day(1)
+    async def _after(self) -> None:
+        await self.action_day(1)
 
     @on(Button.Pressed, "#eod-close")
     def action_close(self) -> None:

@@ -9,7 +9,9 @@ Pushed by the workspaces for "save onto a job's link"::
 
     self.app.push_screen(JobLinkPicker(), picked)
 
-Dismisses with ``(job_id, link_id)``, or None when cancelled. A new link (by label) or a new
+Open jobs are listed; Ctrl+Y (or the "Done jobs" button) lists the done ones too, after them
+(a retest onto a finished job, or a budget saved on one). Dismisses with ``(job_id, link_id)``,
+or None when cancelled. A new link (by label) or a new
 job (by name) can be made from the dialog, through :mod:`fieldkit.actions.jobs`; a new job is
 made only when its first link is chosen, so cancelling creates nothing.
 """
@@ -20,13 +22,13 @@ from typing import TYPE_CHECKING
 
 from textual import on
 from textual.app import ComposeResult
-from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
 from fieldkit.text.escape import terminal
+from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
 
 if TYPE_CHECKING:
@@ -58,6 +60,14 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         color: $text-muted;
         margin-top: 1;
     }
+    JobLinkPicker #jlp-jobs-row {
+        height: 1;
+        margin-top: 1;
+    }
+    JobLinkPicker #jlp-jobs-row .jlp-heading {
+        margin-top: 0;
+        width: 1fr;
+    }
     JobLinkPicker OptionList {
         height: auto;
         max-height: 6;
@@ -81,9 +91,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
     }
     """
 
-    BINDINGS = [
-        Binding("escape", "cancel", "Cancel", id="job_link_picker.cancel"),
-    ]
+    BINDINGS = keys.bindings("jobs_picker")
 
     def __init__(
         self,
@@ -99,6 +107,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         self._jobs: dict[str, Job] = {}
         self._job_id: str | None = None
         self._pending_job = ""  # a new job's name, made with its first link
+        self.show_done = False  # done jobs listed too (after the open ones)
 
     @property
     def store(self) -> JobStore:
@@ -109,7 +118,14 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
     def compose(self) -> ComposeResult:
         with Vertical(id="jlp-dialog"):
             yield Label(self._title, id="jlp-title")
-            yield Label("Open job", classes="jlp-heading")
+            with Horizontal(id="jlp-jobs-row"):
+                yield Label("Open jobs", classes="jlp-heading", id="jlp-jobs-heading")
+                yield Button(
+                    f"Done jobs {keys.hint('filter')}",
+                    id="jlp-done",
+                    compact=True,
+                    tooltip=keys.tip("jobs_picker", "filter"),
+                )
             yield OptionList(id="jlp-jobs", compact=True, markup=False)
             yield Input(placeholder="or a new job name, Enter", id="jlp-new-job", compact=True)
             yield Label("Link", classes="jlp-heading", id="jlp-links-heading")
@@ -130,16 +146,30 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         jobs_list = self.query_one("#jlp-jobs", OptionList)
         jobs_list.clear_options()
         self._jobs.clear()
+        wanted = ("open", "done") if self.show_done else ("open",)
         try:
-            summaries = [s for s in self.store.list() if s.status == "open" and not s.read_only]
+            listed = [s for s in self.store.list() if s.status in wanted and not s.read_only]
         except (StoreError, OSError) as exc:
             self._say(f"The jobs could not be listed: {exc}")
-            summaries = []
+            listed = []
+        # Open jobs first, each group newest first (the listing's order).
+        summaries = sorted(listed, key=lambda s: s.status != "open")
+        self.query_one("#jlp-jobs-heading", Label).update(
+            "Open and done jobs" if self.show_done else "Open jobs"
+        )
+        self.query_one(
+            "#jlp-done", Button
+        ).label = f"{'Hide' if self.show_done else 'Show'} done {keys.hint('filter')}"
         for summary in summaries:
             where = f" · {summary.site}" if summary.site else ""
-            jobs_list.add_option(Option(terminal(f"{summary.name}{where}"), id=summary.id))
+            mark = "✓ " if summary.status == "done" else ""
+            done = " (done)" if summary.status == "done" else ""
+            jobs_list.add_option(
+                Option(terminal(f"{mark}{summary.name}{where}{done}"), id=summary.id)
+            )
         if not summaries:
-            self._say("No open job yet: type a job name and press Enter.")
+            none = "No job yet" if self.show_done else "No open job yet"
+            self._say(f"{none}: type a job name and press Enter.")
             self.query_one("#jlp-new-job", Input).focus()
             self._show_links(None)
             return
@@ -168,12 +198,13 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         for link in job.links:
             ends = f" ({link.end_a} – {link.end_b})" if link.end_a or link.end_b else ""
             links.add_option(Option(terminal(f"{link.label}{ends}"), id=link.id))
+        done = " It is marked done; what you save is added to it." if job.status == "done" else ""
         if job.links:
             ids = [link.id for link in job.links]
             links.highlighted = ids.index(select) if select in ids else 0
-            self._say("")
+            self._say(done.strip())
         else:
-            self._say("This job has no link yet: type a label and press Enter.")
+            self._say(f"This job has no link yet: type a label and press Enter.{done}")
 
     def _say(self, text: str) -> None:
         self.query_one("#jlp-message", Static).update(text)
@@ -270,6 +301,12 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         option = links.get_option_at_index(links.highlighted)
         if option.id:
             self.dismiss((self._job_id, option.id))
+
+    @on(Button.Pressed, "#jlp-done")
+    def action_toggle_done(self) -> None:
+        """List the done jobs too, or open jobs only; the job picked stays picked if listed."""
+        self.show_done = not self.show_done
+        self._reload_jobs(select=self._job_id)
 
     @on(Button.Pressed, "#jlp-cancel")
     def action_cancel(self) -> None:

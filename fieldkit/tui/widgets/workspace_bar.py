@@ -1,8 +1,11 @@
 """The top line of every workspace: the app's name, and each workspace with its key.
 
 It takes the place of a title bar. The current workspace is highlighted; every entry can be
-clicked or tapped. On a narrow terminal the other workspaces shrink to their keys, so the line
-fits 40 columns. The footer below keeps its room for the current screen's own keys.
+clicked or tapped. Every entry is its key and its word ("F6 Jobs"): a bare "F3" says nothing to
+someone new. Where not all of them fit (a phone terminal), the line shows the current one and
+as many of its neighbours as fit, with "‹" or "›" where more lie beyond (a click there goes to
+the nearest hidden one); Help (F1) and the palette (Ctrl+P) list them all. The footer below
+keeps its room for the current screen's own keys.
 
 One widget draws the whole line (each entry a clickable span), not a widget per entry: every
 workspace mounts and styles this bar before its first frame.
@@ -74,10 +77,10 @@ class WorkspaceBar(Widget):
         super().__init__()
         self._hovered: str | None = None
 
-    def tab_text(self, tab: Tab, narrow: bool) -> str:
-        """What the bar shows for ``tab``: narrow, only the key unless it is the current one."""
-        current = tab.mode == self.app.current_mode
-        return tab.key_label if narrow and not current else f"{tab.key_label} {tab.title}"
+    @staticmethod
+    def tab_text(tab: Tab) -> str:
+        """What the bar shows for ``tab``: its key and its word."""
+        return f"{tab.key_label} {tab.title}"
 
     def tab_style(self, tab: Tab) -> Style:
         """The colours of ``tab``: current, under the pointer, or plain."""
@@ -89,18 +92,54 @@ class WorkspaceBar(Widget):
             name = "workspace-bar--tab"
         return self.get_component_rich_style(name)
 
+    def window(self, width: int) -> tuple[int, int]:
+        """The tabs shown at ``width`` cells, ``TABS[lo:hi]``: all when they fit, else the
+        current one and its neighbours, the next ones first, with room for the markers."""
+        cells = [len(self.tab_text(tab)) + 1 for tab in TABS]  # a space before each
+        current = next((i for i, tab in enumerate(TABS) if tab.mode == self.app.current_mode), None)
+        if sum(cells) + 2 <= width or current is None:
+            return 0, len(TABS)
+        lo, hi = current, current + 1
+        used = cells[current] + 2  # the current one is padded on both sides
+
+        def room(lo: int, hi: int) -> int:
+            return width - (2 if lo > 0 else 0) - (2 if hi < len(TABS) else 0)
+
+        grew = True
+        while grew:
+            grew = False
+            if hi < len(TABS) and used + cells[hi] <= room(lo, hi + 1):
+                used += cells[hi]
+                hi += 1
+                grew = True
+            if lo > 0 and used + cells[lo - 1] <= room(lo - 1, hi):
+                used += cells[lo - 1]
+                lo -= 1
+                grew = True
+        return lo, hi
+
     def render(self) -> Text:
-        # The app's name and every title when they fit, then every title, then keys only.
+        # The app's name and every entry when they fit, else a window around the current one.
         width = self.size.width or self.app.size.width
-        full = sum(len(self.tab_text(tab, False)) + 2 for tab in TABS)
-        narrow = full > width
+        lo, hi = self.window(width)
         line = Text(no_wrap=True, overflow="crop")
-        if full + len(" fieldkit ") <= width:
-            line.append(" fieldkit ", self.get_component_rich_style("workspace-bar--name"))
-        for tab in TABS:
+        muted = self.get_component_rich_style("workspace-bar--tab")
+        entries = sum(len(self.tab_text(tab)) + 1 for tab in TABS[lo:hi]) + 2
+        if lo == 0 and hi == len(TABS) and entries + len(" fieldkit") <= width:
+            line.append(" fieldkit", self.get_component_rich_style("workspace-bar--name"))
+        if lo > 0:
+            line.append("‹", muted + Style.from_meta({"tab": TABS[lo - 1].mode}))
+        for tab in TABS[lo:hi]:
             # Each entry carries its mode, so a click or the pointer finds its tab.
             meta = Style.from_meta({"tab": tab.mode})
-            line.append(f" {self.tab_text(tab, narrow)} ", self.tab_style(tab) + meta)
+            if tab.mode == self.app.current_mode:
+                line.append(f" {self.tab_text(tab)} ", self.tab_style(tab) + meta)
+            else:
+                line.append(" ")
+                line.append(self.tab_text(tab), self.tab_style(tab) + meta)
+        if hi < len(TABS):
+            line.append(" ")
+            line.append("›", muted + Style.from_meta({"tab": TABS[hi].mode}))
         return line
 
     def tab_at(self, event: MouseEvent) -> Tab | None:

@@ -1,0 +1,185 @@
+"""What the Jobs workspace prints: a job's list row, its head, counts, failures, links and notes.
+
+Rich text built from a job record, no Textual: the screen (``fieldkit.tui.screens.jobs``) puts
+these into its Statics. Every piece of user text goes through ``terminal`` and plain ``Text``, so
+a "[" in a job name is never read as markup and control characters show as escapes.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from rich.console import Group, RenderableType
+from rich.table import Table
+from rich.text import Text
+
+from fieldkit.jobs.reports import (
+    failures,
+    fmt_db,
+    fmt_m,
+    fmt_nm,
+    fmt_time,
+    job_summary,
+    result_in_doubt,
+    verdict,
+)
+from fieldkit.jobs.splices import closure_summary
+from fieldkit.jobs.today import counted
+from fieldkit.text.escape import terminal
+from fieldkit.tui import keys
+
+if TYPE_CHECKING:
+    from pathlib import Path
+
+    from fieldkit.jobs.index import JobSummary
+    from fieldkit.jobs.models import Job
+
+
+def plain(text: str, style: str = "") -> Text:
+    """User text as plain text: a "[" in a job name must not be read as markup."""
+    return Text(terminal(text, multiline=True), style=style)
+
+
+def no_job_head(any_jobs: bool, jobs_dir: Path) -> Text:
+    """What the details say when the list shows no job."""
+    if not any_jobs:
+        return plain(
+            f"No jobs yet. {keys.display('new')} (or New) starts one: its name, customer, "
+            f"site and crew; then its links. Jobs are kept in {jobs_dir}."
+        )
+    return plain("No job matches; clear the find field (Ctrl+F) to see them all.")
+
+
+def prompt(s: JobSummary) -> str:
+    mark = "✓" if s.status == "done" else "•"
+    failed = f", {s.failed_count} failed" if s.failed_count else ""
+    site = f"{terminal(s.site)} · " if s.site else ""
+    return f"{mark} {terminal(s.name)}\n  {site}{counted(s.result_count, 'result')}{failed}"
+
+
+def head(job: Job) -> RenderableType:
+    text = Text()
+    text.append(terminal(job.name), style="bold")
+    text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
+    for label, value in (
+        ("Customer", job.customer),
+        ("Site", job.site),
+        ("Crew", ", ".join(job.crew)),
+    ):
+        if value:
+            text.append(f"\n{label}: ", style="dim")
+            text.append(terminal(value))
+    text.append(f"\nId {job.id} · updated {fmt_time(job.updated_at)}", style="dim")
+    if job.read_only:
+        text.append(f"\n{job.read_only}", style="bold yellow")
+    return text
+
+
+def summary_table(job: Job) -> RenderableType:
+    """Per link and wavelength, in lines that wrap at 44 columns instead of a wide table."""
+    rows = job_summary(job)
+    if not rows:
+        return plain("No results yet.", "dim")
+    text = Text("Fibres per link and wavelength", style="bold")
+    for r in rows:
+        text.append(f"\n{terminal(r.link_label)} {fmt_nm(r.wavelength_nm)} nm: ")
+        text.append(f"{r.tested} tested, {r.passed} pass")
+        text.append(f", {r.failed} fail", style="bold red" if r.failed else "")
+        if r.no_limit:
+            text.append(f", {r.no_limit} no limit")
+        if r.in_doubt:
+            text.append(f", {r.in_doubt} in doubt", style="yellow")
+    return text
+
+
+def failures_text(job: Job) -> RenderableType:
+    failed = failures(job)
+    if not failed:
+        return plain("No failures.", "green") if job.results() else ""
+    text = Text("Failures", style="bold red")
+    for link, r in failed:
+        limit = f" (limit {fmt_db(r.limit_db)} dB)" if r.limit_db is not None else ""
+        text.append(
+            f"\n✗ {terminal(link.label)} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
+            f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}",
+            style="red",
+        )
+    return text
+
+
+def links_text(job: Job) -> RenderableType:
+    parts: list[RenderableType] = []
+    for link in job.links:
+        head = Text(f"\nLink {terminal(link.label)}", style="bold")
+        details = [
+            d
+            for d in (
+                f"{link.end_a} → {link.end_b}" if link.end_a or link.end_b else "",
+                link.fibre_type,
+                f"{fmt_m(link.length_m)} m" if link.length_m is not None else "",
+                f"{link.fibre_count} fibres" if link.fibre_count else "",
+            )
+            if d
+        ]
+        if details:
+            head.append("\n" + terminal(" · ".join(details)), style="dim")
+        parts.append(head)
+        if link.budget is not None:
+            b = link.budget
+            line = "; ".join(
+                f"{fmt_nm(w.wavelength_nm)} nm {fmt_db(w.loss_db)} dB" for w in b.wavelengths
+            )
+            parts.append(plain(f"Budget (max): {line}; margin {fmt_db(b.margin_db)} dB"))
+        for f in link.faults:
+            parts.append(
+                plain(
+                    f"Fault: route {fmt_m(f.route_distance_m)} m (search "
+                    f"{fmt_m(f.low_m)}–{fmt_m(f.high_m)} m)"
+                    + (f", near {f.nearest_landmark}" if f.nearest_landmark else ""),
+                    "bold magenta",
+                )
+            )
+        for closure in link.closures:
+            parts.append(plain("Closure " + closure_summary(closure, link.splice_limits)))
+        if link.results:
+            table = Table(box=None, padding=(0, 1), show_edge=False, expand=False)
+            for name in ("Fib", "nm", "Dir", "Loss dB", "Limit", "Result"):
+                table.add_column(name, justify="left" if name in ("Dir", "Result") else "right")
+            ordered = sorted(link.results, key=lambda r: (r.wavelength_nm, r.fibre, r.at))
+            for r in ordered:
+                doubt = result_in_doubt(link, r)
+                flag = " ?" if doubt else ""
+                if "negative-loss" in r.flags:
+                    flag += " neg"
+                style = "bold red" if r.passed is False else "yellow" if doubt else ""
+                table.add_row(
+                    str(r.fibre),
+                    fmt_nm(r.wavelength_nm),
+                    r.direction,
+                    fmt_db(r.loss_db),
+                    fmt_db(r.limit_db),
+                    verdict(r) + flag,
+                    style=style,
+                )
+            parts.append(table)
+        elif not link.faults:
+            parts.append(plain("no results yet", "dim"))
+    if not parts:
+        return plain(
+            "\nNo links yet: the budget, meter and fault workspaces add them when "
+            "they save onto this job.",
+            "dim",
+        )
+    return Group(*parts)
+
+
+def notes_text(job: Job) -> RenderableType:
+    text = Text("\nNotes", style="bold")
+    if not job.notes:
+        text.append("\nnone yet", style="dim")
+    for note in job.notes:
+        text.append(f"\n{fmt_time(note.at)}", style="dim")
+        if note.by:
+            text.append(f" {terminal(note.by)}", style="dim")
+        text.append(f"\n  {terminal(note.text, multiline=True)}")
+    return text

@@ -1,0 +1,116 @@
+"""The export dialog of the Jobs workspace: choose a format and a file; the report is written
+there through :func:`fieldkit.actions.export.export_job` (never inside the data folder)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from rich.text import Text
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
+
+from fieldkit.jobs.reports import EXPORT_FORMATS
+from fieldkit.jobs.store import StoreError
+from fieldkit.text.escape import terminal
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.models import Job
+    from fieldkit.jobs.store import JobStore
+
+
+def _t(text: str, style: str = "") -> Text:
+    return Text(terminal(text, multiline=True), style=style)
+
+
+class ExportDialog(ModalScreen[Path | None]):
+    """Choose a format and a file; the report is written there."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="jobs_export.cancel")]
+
+    def __init__(self, job: Job, store: JobStore) -> None:
+        super().__init__()
+        self._job = job
+        self._store = store
+        self._folder = default_export_folder()
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="export-dialog"):
+            yield Label(Text(f"Export {terminal(self._job.name)}"), id="export-title")
+            yield OptionList(
+                *[Option(_FORMAT_NAMES[f], id=f) for f in EXPORT_FORMATS],
+                id="export-format",
+                markup=False,
+            )
+            yield Label("File", classes="field-note")
+            yield Input(str(self._path("html")), id="export-path", type="text", compact=True)
+            yield Static("", id="export-error", classes="field-error", markup=False)
+            with Horizontal(id="export-buttons"):
+                yield Button("Cancel", id="export-cancel", compact=True)
+                yield Button("Write", id="export-write", variant="primary", compact=True)
+
+    def on_mount(self) -> None:
+        formats = self.query_one("#export-format", OptionList)
+        formats.highlighted = EXPORT_FORMATS.index("html")
+        formats.focus()
+
+    def _path(self, fmt: str) -> Path:
+        return self._folder / f"{self._job.id}.{fmt}"
+
+    @on(OptionList.OptionHighlighted, "#export-format")
+    def _format_changed(self, event: OptionList.OptionHighlighted) -> None:
+        field = self.query_one("#export-path", Input)
+        current = Path(field.value)
+        if event.option_id and current.parent == self._folder:
+            field.value = str(self._path(event.option_id))
+
+    @on(OptionList.OptionSelected, "#export-format")
+    @on(Input.Submitted, "#export-path")
+    @on(Button.Pressed, "#export-write")
+    def _write(self) -> None:
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.export import export_job
+
+        formats = self.query_one("#export-format", OptionList)
+        fmt = EXPORT_FORMATS[formats.highlighted or 0]
+        text = self.query_one("#export-path", Input).value.strip()
+        error = self.query_one("#export-error", Static)
+        if not text or text == "-":
+            error.update("Type a file name.")
+            return
+        try:
+            done = export_job(self._store, self._job.id, fmt, text)
+        except (ActionError, StoreError) as exc:
+            error.update(_t(f"Not written: {exc}"))
+            return
+        except OSError as exc:
+            error.update(_t(f"Not written: {exc.strerror or exc}"))
+            return
+        self.app.notify(f"Wrote {done.path}")
+        self.dismiss(done.path)
+
+    @on(Button.Pressed, "#export-cancel")
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+def default_export_folder() -> Path:
+    """Where reports go unless the user types another folder: Documents in the home folder
+    when there is one, else the home folder (never the data folder: a report must not land
+    beside the job files)."""
+    home = Path.home()
+    documents = home / "Documents"
+    return documents if documents.is_dir() else home
+
+
+_FORMAT_NAMES = {
+    "csv": "CSV: one row per result (spreadsheet)",
+    "md": "Markdown report",
+    "html": "HTML report (prints on A4 / Letter)",
+    "json": "JSON hand-off (jobs import on another laptop)",
+}
