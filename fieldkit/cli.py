@@ -29,6 +29,7 @@ COMMAND_MODULES: tuple[str, ...] = (
     "fieldkit.commands.splice",
     "fieldkit.commands.trace",
     "fieldkit.commands.jobs",
+    "fieldkit.commands.settings_cmd",
     "fieldkit.commands.demo",
 )
 

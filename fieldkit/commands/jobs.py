@@ -11,7 +11,8 @@
     fieldkit jobs link-edit ID LINK [--label L] [--end-a A] ...
     fieldkit jobs done ID [--yes] [--reason TEXT]   /  fieldkit jobs reopen ID
     fieldkit jobs delete ID  /  fieldkit jobs restore ID  /  fieldkit jobs trash
-    fieldkit jobs export ID --format csv|md|html|json [-o FILE|-]
+    fieldkit jobs export ID --format csv|md|html|json [-o FILE|FOLDER|-] [--csv-style S]
+    fieldkit jobs export --day YYYY-MM-DD | --from YYYY-MM-DD --to YYYY-MM-DD --format ...
     fieldkit jobs import FILE [--json]
     fieldkit jobs today [--date YYYY-MM-DD] [--json]
     fieldkit jobs quarantine [--json]
@@ -175,8 +176,12 @@ def register(subparsers: Any) -> None:
     p.add_argument("--json", action="store_true", help="print one JSON object")
     p.set_defaults(func=_guard(run_trash))
 
-    p = sub.add_parser("export", help="a report of a job as CSV, Markdown, HTML or JSON")
-    p.add_argument("id", help="job id or a unique prefix")
+    p = sub.add_parser(
+        "export",
+        help="a report of a job, or of every job of a day or date range, as CSV, Markdown, "
+        "HTML or JSON",
+    )
+    p.add_argument("id", nargs="?", help="job id or a unique prefix (or --day / --from)")
     p.add_argument(
         "--format",
         required=True,
@@ -188,8 +193,22 @@ def register(subparsers: Any) -> None:
         "-o",
         "--output",
         metavar="FILE",
-        help="write to FILE (its folder must exist; never inside the data folder); "
+        help="write to FILE (its folder must exist; never inside the data folder), or into "
+        "an existing FOLDER under a name built from the job's name and date; "
         "- or no -o: standard output",
+    )
+    p.add_argument(
+        "--day",
+        metavar="YYYY-MM-DD",
+        help="every job worked on that local date (or 'today'), in one report",
+    )
+    p.add_argument("--from", dest="date_from", metavar="YYYY-MM-DD", help="range start")
+    p.add_argument("--to", dest="date_to", metavar="YYYY-MM-DD", help="range end (included)")
+    p.add_argument(
+        "--csv-style",
+        choices=("comma", "semicolon"),
+        help="comma: ',' and a decimal point; semicolon: ';' and a decimal comma "
+        "(default: the csv setting, see 'fieldkit settings csv')",
     )
     p.set_defaults(func=_guard(run_export))
 
@@ -555,16 +574,52 @@ def run_trash(args: argparse.Namespace) -> int:
     return 0
 
 
+def _export_day(text: str, what: str) -> date:
+    if text.strip().casefold() == "today":
+        return date.today()
+    try:
+        return date.fromisoformat(text.strip())
+    except ValueError:
+        raise CommandError(f"{what}: {text!r} is not a date; write it as YYYY-MM-DD") from None
+
+
 def run_export(args: argparse.Namespace) -> int:
-    from fieldkit.actions.export import export_job
+    from fieldkit import locations
+    from fieldkit.actions.export import export_job, export_range
 
     store = store_of(args)
-    job_id = store.resolve(args.id)
-    done = export_job(store, job_id, args.format, args.output)
+    config = locations.config_dir(getattr(args, "config_dir", None))
+    ranged = args.day is not None or args.date_from is not None or args.date_to is not None
+    if ranged:
+        if args.id is not None:
+            raise CommandError("export: give a job id or --day / --from and --to, not both")
+        if args.day is not None and (args.date_from or args.date_to):
+            raise CommandError("export: give --day or --from and --to, not both")
+        if args.day is not None:
+            start = end = _export_day(args.day, "--day")
+        else:
+            if args.date_from is None or args.date_to is None:
+                raise CommandError("export: a range needs both --from and --to")
+            start = _export_day(args.date_from, "--from")
+            end = _export_day(args.date_to, "--to")
+        done, jobs = export_range(
+            store, start, end, args.format, args.output, config=config, csv_style=args.csv_style
+        )
+        if done.path is not None:
+            print(f"wrote {done.path} ({len(jobs)} jobs)")
+        elif not jobs:
+            print("fieldkit jobs: no job was worked on in those dates", file=sys.stderr)
+    else:
+        if args.id is None:
+            raise CommandError("export: give a job id, or --day DATE, or --from DATE --to DATE")
+        job_id = store.resolve(args.id)
+        done = export_job(
+            store, job_id, args.format, args.output, config=config, csv_style=args.csv_style
+        )
+        if done.path is not None:
+            print(f"wrote {done.path}")
     if done.path is None:
         sys.stdout.write(done.text)
-    else:
-        print(f"wrote {done.path}")
     return 0
 
 

@@ -45,7 +45,7 @@ from bench_jobs import make_job  # the same jobs as the store benchmark (tests/b
 from textual.app import App, ComposeResult
 from textual.widgets import Input, OptionList
 
-from fieldkit.jobs import reports
+from fieldkit import reports
 from fieldkit.jobs.store import JobStore, filter_summaries
 
 PAGE = 200

@@ -127,7 +127,7 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
     failing = by_cell[(100, 1550, "A->B")]
     assert failing.loss_db == pytest.approx(3.50, abs=1e-9) and failing.passed is False
 
-    from fieldkit.jobs.reports import to_csv
+    from fieldkit.reports import to_csv
 
     rows = list(csv.DictReader(io.StringIO(to_csv(job))))
     assert len(rows) == 288

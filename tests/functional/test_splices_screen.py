@@ -9,8 +9,8 @@ import pytest
 from textual.widgets import Input, OptionList, Static
 
 from fieldkit import locations
-from fieldkit.jobs.reports import export
 from fieldkit.jobs.store import JobStore
+from fieldkit.reports import export
 from fieldkit.tui.app import make_app
 from fieldkit.tui.screens.splices import SplicesScreen
 

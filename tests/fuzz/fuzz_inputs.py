@@ -26,8 +26,9 @@ from fieldkit.calc import coupling, locate, optics, power, reference
 from fieldkit.calc.units import InputError, convert, parse, units_of
 from fieldkit.jobs.handoff import read_handoff
 from fieldkit.jobs.models import Job, LossResult
-from fieldkit.jobs.reports import EXPORT_FORMATS, HANDOFF_FORMAT, export
+from fieldkit.jobs.reports import EXPORT_FORMATS, HANDOFF_FORMAT
 from fieldkit.jobs.store import StoreError, parse_job
+from fieldkit.reports import export
 from fieldkit.text.escape import csv_cell, html, markdown, terminal
 
 RAW = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")

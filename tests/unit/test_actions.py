@@ -18,8 +18,9 @@ from fieldkit.calc.reference import Method
 from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count, open_items
 from fieldkit.jobs.migrations import migrate
 from fieldkit.jobs.models import SCHEMA_VERSION, Job
-from fieldkit.jobs.reports import export, job_summary
+from fieldkit.jobs.reports import job_summary
 from fieldkit.jobs.store import JobStore
+from fieldkit.reports import export
 
 T0 = datetime(2026, 3, 14, 9, 0, tzinfo=UTC)
 
@@ -124,7 +125,7 @@ def test_a_retest_keeps_the_failed_result_in_the_file_and_the_export(store: JobS
     csv_text = export(store.load(job.id), "csv")
     assert "fail" in csv_text and retest.id in csv_text  # the superseded fail names its retest
     md = export(store.load(job.id), "md")
-    assert "FAIL, superseded" in md and "1 superseded by a retest" in md
+    assert "FAIL, superseded" in md and "1 earlier result was superseded by a retest" in md
 
 
 def test_clearing_a_reading_supersedes_it_and_keeps_it(store: JobStore) -> None:

@@ -17,8 +17,8 @@ from hypothesis import strategies as st
 
 from fieldkit.jobs.handoff import read_handoff
 from fieldkit.jobs.models import Job, LossResult
-from fieldkit.jobs.reports import EXPORT_FORMATS, export
 from fieldkit.jobs.store import JobStore, StoreError, parse_job
+from fieldkit.reports import EXPORT_FORMATS, export
 
 _RAW = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
 

@@ -13,21 +13,22 @@ import os
 import re
 from datetime import UTC, datetime, timedelta
 from pathlib import Path
+from zoneinfo import ZoneInfo
 
 import pytest
 
 from fieldkit import safety
 from fieldkit.jobs.models import Job, Link, LossResult
 from fieldkit.jobs.reports import (
-    CSV_HEADERS,
-    export,
     failures,
     in_doubt,
     job_summary,
     latest_results,
-    to_csv,
     to_handoff,
 )
+from fieldkit.reports import ReportContext, export, to_csv
+from fieldkit.reports.spreadsheet import CSV_HEADERS
+from fieldkit.settings import make_equipment
 
 GOLDEN = Path(__file__).parent.parent / "golden"
 
@@ -36,9 +37,22 @@ def sample() -> Job:
     return Job.model_validate_json((GOLDEN / "sample_job.json").read_text(encoding="utf-8"))
 
 
+def golden_context() -> ReportContext:
+    """The letterhead and equipment of the golden files, in a fixed zone (CET in March)."""
+    return ReportContext(
+        contractor="Northline Fibre Works",
+        crew="Splice crew 2",
+        equipment=(
+            make_equipment("meter", "PM-4", "2026-01-10", "2027-01-10", "power meter, InGaAs"),
+            make_equipment("source", "SRC-2", "2025-11-02", "2026-03-01", "LED/laser source"),
+        ),
+        tz=ZoneInfo("Europe/Berlin"),
+    )
+
+
 @pytest.mark.parametrize("fmt", ["csv", "md", "html"])
 def test_export_matches_golden_file(fmt: str) -> None:
-    produced = export(sample(), fmt)
+    produced = export(sample(), fmt, golden_context())
     golden = GOLDEN / f"sample_job.{fmt}"
     if os.environ.get("FIELDKIT_UPDATE_GOLDEN"):
         golden.write_bytes(produced.encode("utf-8"))
@@ -139,16 +153,20 @@ def test_csv_keeps_formula_looking_text_as_text() -> None:
 
 def test_html_is_self_contained_and_escapes_user_text() -> None:
     page = export(sample(), "html")
-    assert not re.search(r"https?://|src=|<script|<link|@import|url\(", page)
+    assert not re.search(
+        r"https?://(?!www\.w3\.org/2000/svg)|src=|<script|<link|@import|url\(", page
+    )
     assert "&lt;basement&gt;" in page and "<basement>" not in page
     assert "@page" in page  # print rules for paper (A4 and Letter both fit these margins)
-    for line in (safety.INVISIBLE_LIGHT, safety.DIGGING, safety.GLASS_SHARDS, safety.DEFER):
-        assert line.replace("'", "&#x27;") in page
+    # the short cautions of a test report (fieldkit.reports.build._safety_lines)
+    assert safety.INVISIBLE_LIGHT_SHORT in page and safety.DEFER.replace("'", "&#x27;") in page
+    assert "utility-locate" in page  # the sample has a located fault
+    assert "glass shards" in page  # and a splice log
 
 
-def test_markdown_failures_come_before_results_and_tables_stay_intact() -> None:
+def test_markdown_link_pages_come_before_the_appendix_and_tables_stay_intact() -> None:
     text = export(sample(), "md")
-    assert text.index("## Failures") < text.index("### LIB-TH-01: results")
+    assert text.index("## Summary") < text.index("## Link LIB-TH-01") < text.index("## Appendix A")
     assert "&lt;basement> \\| " in text
     columns = None
     for line in text.splitlines():

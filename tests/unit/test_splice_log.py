@@ -14,7 +14,6 @@ from fieldkit.calc.units import InputError
 from fieldkit.inputs import plan_text, splice_loss_db, splice_plan
 from fieldkit.jobs.migrations import MIGRATED_CLOSURE
 from fieldkit.jobs.models import SCHEMA_VERSION
-from fieldkit.jobs.reports import to_csv, to_html, to_markdown
 from fieldkit.jobs.splices import (
     GAINER,
     ONE_DIRECTION,
@@ -27,6 +26,7 @@ from fieldkit.jobs.splices import (
     judge_in,
 )
 from fieldkit.jobs.store import JobStore
+from fieldkit.reports import to_csv, to_html, to_markdown
 
 GOLDEN = Path(__file__).parent.parent / "golden"
 # ANSI/TIA-568.3-D (2016): 0.3 dB per splice (from memory)
@@ -250,7 +250,8 @@ def test_a_logged_closure_is_in_every_export(logged: tuple[JobStore, str]) -> No
     assert section.index("| C1 2 blue/orange") < section.index("| C1 1 blue/blue")  # fail first
     assert "Tray map: tray 1 (2/12): C1 1-2; tray 2 (0/12): empty." in md
     assert "| 0.10 | pass |" in md  # (−0.05 + 0.25) / 2
-    assert "heat-shrink oven" in md and "glass shards" in md
+    # a test report keeps its cautions short: the shards line, not the splicer's bench rules
+    assert "glass shards" in md
     assert "FAIL" in to_html(job)
     csv_text = to_csv(job)
     assert f"closure,{job_id},L1,JC-1" in csv_text

@@ -18,7 +18,7 @@ from hypothesis import example, given
 from hypothesis import strategies as st
 
 from fieldkit.jobs.models import Job, LossResult, ReferenceRecord
-from fieldkit.jobs.reports import to_csv, to_html, to_markdown
+from fieldkit.reports import to_csv, to_html, to_markdown
 from fieldkit.text.escape import csv_cell, html, markdown, markup, terminal
 
 _CONTROLS = re.compile("[\x00-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")

@@ -60,7 +60,11 @@ class ExportDialog(ModalScreen[Path | None]):
         formats.focus()
 
     def _path(self, fmt: str) -> Path:
-        return self._folder / f"{self._job.id}.{fmt}"
+        from fieldkit.actions.export import job_file_name
+        from fieldkit.reports.names import free_name
+
+        # the job's name and date, never its id; a name already taken gets -2, -3 ...
+        return free_name(self._folder, job_file_name(self._job, fmt))
 
     @on(OptionList.OptionHighlighted, "#export-format")
     def _format_changed(self, event: OptionList.OptionHighlighted) -> None:
@@ -84,7 +88,8 @@ class ExportDialog(ModalScreen[Path | None]):
             error.update("Type a file name.")
             return
         try:
-            done = export_job(self._store, self._job.id, fmt, text)
+            config = getattr(self.app, "config_dir", None)
+            done = export_job(self._store, self._job.id, fmt, text, config=config)
         except (ActionError, StoreError) as exc:
             error.update(_t(f"Not written: {exc}"))
             return
