@@ -4,8 +4,9 @@
 A report must never land on a job: the target is refused when it is inside the data folder, or
 resolves (after following symlinks, or through a hard link) onto a job file or its backup; a
 symlink, a FIFO, a device or a folder at the target is refused; a folder that does not exist is
-refused rather than created. ``-`` means standard output. A folder written with a trailing ``/``
-(``-o ~/reports/``) gets a file named from the job's name and date (:mod:`fieldkit.reports.names`), never from its id.
+refused rather than created. ``-`` means standard output. A folder written with a trailing
+``/`` (``-o ~/reports/``) gets a file named from the job's name and date
+(:mod:`fieldkit.reports.names`), never from its id.
 
 Day and range exports (:func:`export_range`) put every job worked on in those local dates in
 one report or one CSV, through the same checks.

@@ -903,8 +903,8 @@ def build_document(job: Job, ctx: ReportContext | None = None) -> Document:
         )
     )
     summary.blocks.append(_legend(used))
-    for line in _safety_lines(job):
-        summary.para(line, "small")
+    for n, line in enumerate(_safety_lines(job)):
+        summary.para(("Safety and disclaimer: " if n == 0 else "") + line, "small")
     summary.blocks.append(Signature(_testers(job.links), test_dates(job, ctx), SIGN_STATEMENT))
     subtitle = "Fibre test report" + (f" — {ctx.crew}" if ctx.crew else "")
     return Document(

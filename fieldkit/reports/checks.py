@@ -267,7 +267,7 @@ def transceiver_text(data: dict[str, Any]) -> CheckText:
         f"Transceiver {name}{at}" + (f" ({family} levels)" if family else "") + f": {word}."
     ]
     budget = _num(data, "power_budget_db")
-    loss_max, loss_min = _num(data, "loss_max_db"), _num(data, "loss_min_db")
+    loss_max = _num(data, "loss_max_db")
     margin, required = _num(data, "margin_db"), _num(data, "required_margin_db")
     if budget is not None and loss_max is not None and margin is not None:
         enough = required is None or margin >= required

@@ -126,16 +126,21 @@ async def test_export_dialog_writes_the_report(tmp_path: Path) -> None:
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
     async with app.run_test(size=(44, 22)) as pilot:
         await pilot.pause()
-        job_id = app.screen._job.id  # type: ignore[attr-defined]
+        job = app.screen._job  # type: ignore[attr-defined]
         await pilot.press("ctrl+w")
         await pilot.pause()
         assert isinstance(app.screen, ExportDialog)
         await pilot.press("up", "enter")  # from HTML up to Markdown
         await pilot.pause()
         assert isinstance(app.screen, JobsScreen)
-    # Reports go to the home folder by default, never into the data folder.
-    report = Path.home() / f"{job_id}.md"
-    assert "## Safety and disclaimer" in report.read_text(encoding="utf-8")
+    # Reports go to the home folder by default, never into the data folder, under a name
+    # built from the job's name and the date of its last result, not its hex id.
+    from fieldkit.actions.export import job_file_name
+
+    name = job_file_name(job, "md")
+    assert job.id not in name and name.endswith(".md")
+    report = Path.home() / name
+    assert "Safety and disclaimer" in report.read_text(encoding="utf-8")
 
 
 async def test_export_dialog_refuses_the_jobs_own_file_and_keeps_the_job(tmp_path: Path) -> None:

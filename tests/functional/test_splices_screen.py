@@ -68,7 +68,7 @@ async def test_log_a_24_fibre_closure_and_find_it_in_the_export(
     [closure] = saved.links[0].closures
     assert len(closure.current_splices()) == 24 and closure.splices[0].estimate_db == 0.02
     md = export(saved, "md")
-    assert "Q-1: closure JC-9" in md
+    assert "Q-1, closure JC-9" in md  # the splice log, in the appendix
     assert "| C1 14 orange/orange" not in md  # cables default to A and B
     assert "| A 14 orange/orange | B 14 orange/orange | 2/2 |" in md
     assert "glass shards" in md
