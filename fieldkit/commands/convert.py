@@ -34,7 +34,8 @@ def register(subparsers: Any) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from fieldkit.calc.conversions import convert_to, grid_report, related_values
-    from fieldkit.calc.units import display_unit, format_number, parse
+    from fieldkit.calc.units import display_unit, parse
+    from fieldkit.text.convert import converted, related_lines
 
     value = parse(args.quantity, what="quantity")
     if args.grid:
@@ -60,7 +61,7 @@ def run(args: argparse.Namespace) -> int:
                 }
             )
         else:
-            print(f"{format_number(number, 8)} {display_unit(unit)}")
+            print(converted(number, unit))  # the workspace's figures (fieldkit.text.convert)
         return 0
     rows = related_values(value)
     if args.json:
@@ -77,14 +78,11 @@ def run(args: argparse.Namespace) -> int:
             }
         )
     else:
-        for unit, number in rows:
-            print(f"{format_number(number, 8):>16} {display_unit(unit)}")
+        print("\n".join(related_lines(value, rows)))
     return 0
 
 
 def _print_grid(report: Any, as_json: bool) -> None:
-    from fieldkit.calc.units import format_number
-
     if as_json:
         print_json(
             {
@@ -112,17 +110,7 @@ def _print_grid(report: Any, as_json: bool) -> None:
             }
         )
         return
-    wavelength, frequency = (
-        format_number(x, 8) for x in (report.wavelength_nm, report.frequency_thz)
-    )
-    print(f"{wavelength} nm = {frequency} THz")
-    for c in report.dwdm:
-        print(
-            f"DWDM {c.spacing_ghz:g} GHz grid (G.694.1): n = {c.n:+d}, "
-            f"{c.frequency_thz:.4f} THz / {c.wavelength_nm:.3f} nm, offset {c.offset_ghz:+.1f} GHz"
-        )
-    if report.cwdm is not None:
-        print(
-            f"CWDM grid (G.694.2): {report.cwdm.wavelength_nm:.0f} nm, offset "
-            f"{report.cwdm.offset_nm:+.1f} nm"
-        )
+    from fieldkit.text.convert import GRID_SOURCES, grid_rows, rows_text
+
+    print(rows_text(grid_rows(report)))
+    print(GRID_SOURCES)

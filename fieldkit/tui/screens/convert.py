@@ -12,15 +12,13 @@ from textual.widgets import Input, Static
 from fieldkit.calc import power
 from fieldkit.calc.conversions import grid_report, related_values
 from fieldkit.calc.units import InputError, Kind, Value, display_unit, format_number
+from fieldkit.text import convert as lines_of
 from fieldkit.tui import keys
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
-
-def _rows(rows: list[tuple[str, str]]) -> str:
-    width = max(len(label) for label, _ in rows)
-    return "\n".join(f"{label:>{width}}  {text}" for label, text in rows)
+_rows = lines_of.rows_text
 
 
 class ConvertScreen(Screen[None]):
@@ -138,14 +136,8 @@ class ConvertScreen(Screen[None]):
                 "value-out", "Type a value and its unit: dBm, mW, µW, dB, dB/km, km, ft, nm or THz."
             )
             return
-        rows = [
-            (format_number(number), display_unit(unit)) for unit, number in related_values(value)
-        ]
-        width = max(len(number) for number, _ in rows)
-        lines = [f"{number:>{width}} {unit}" for number, unit in rows]
-        if value.kind is Kind.RATIO:
-            lines.append(f"passes {format_number(value.to('%'))} % of the power")
-        self._out("value-out", "\n".join(lines))
+        # The same lines as ``fieldkit convert`` prints (fieldkit.text.convert).
+        self._out("value-out", "\n".join(lines_of.related_lines(value, related_values(value))))
 
     def _show_loss(self) -> None:
         level = self._field("loss-level").value_or_none()
@@ -195,27 +187,7 @@ class ConvertScreen(Screen[None]):
             field.show_error(str(exc))
             self._out("grid-out", "")
             return
-        rows = [("λ", f"{report.wavelength_nm:.3f} nm"), ("f", f"{report.frequency_thz:.4f} THz")]
-        for channel in report.dwdm:
-            rows.append(
-                (
-                    # the grid by its spacing, not "DWDM 100" (read as 100G optics)
-                    f"{channel.spacing_ghz:g} GHz",
-                    f"n={channel.n:+d} {channel.frequency_thz:.3f} THz",
-                )
-            )
-            rows.append(
-                ("", f"{channel.wavelength_nm:.3f} nm, Δf {_signed(channel.offset_ghz, 1)} GHz")
-            )
-        if report.cwdm is not None:
-            note = "" if report.cwdm.within_band else " (outside band)"
-            rows.append(
-                (
-                    "CWDM",
-                    f"{report.cwdm.wavelength_nm:.0f} nm, Δλ "
-                    f"{_signed(report.cwdm.offset_nm, 1)} nm{note}",
-                )
-            )
+        rows = lines_of.grid_rows(report)
         self._out("grid-out", _rows(rows))
 
 
@@ -224,8 +196,3 @@ def _linear(level_dbm: float) -> str:
     mw = value.to("mW")
     unit = "mW" if mw >= 0.1 else "uW" if mw >= 1e-4 else "nW"
     return f"{format_number(value.to(unit), 4)} {display_unit(unit)}"
-
-
-def _signed(number: float, decimals: int) -> str:
-    text = f"{number:+.{decimals}f}"
-    return text.replace("-", "\u2212")
