@@ -41,7 +41,8 @@ from fieldkit.jobs.splices import current_limit
 from fieldkit.jobs.store import JobStore
 from fieldkit.presets import PresetLibrary
 from fieldkit.traces.analysis import TraceResult
-from fieldkit.traces.folder import FolderResult
+from fieldkit.traces.folder import FibreTraces as FibreTraces
+from fieldkit.traces.folder import folder_fibres as folder_fibres
 from fieldkit.traces.lines import limits_lines
 from fieldkit.traces.pairing import PairResult, default_tolerance_m
 from fieldkit.traces.session import Closure as Landmark
@@ -51,16 +52,6 @@ from fieldkit.traces.verdicts import Limits
 
 class TraceJobError(InputError):
     """A trace that cannot go into the job as asked: one line naming the problem."""
-
-
-@dataclass(frozen=True, slots=True)
-class FibreTraces:
-    """One fibre's traces: both directions paired, or one direction alone."""
-
-    fibre: int
-    paired: PairResult | None = None
-    one_way: TraceResult | None = None
-    direction: str = "A->B"  # of ``one_way``
 
 
 @dataclass
@@ -74,6 +65,14 @@ class SpliceFill:
     @property
     def would_overwrite(self) -> list[tuple[OtdrLoss, float]]:
         return self.fill.would_overwrite
+
+    def summary(self, closure: str) -> str:
+        """One line: how many losses went into the closure, for how many fibres."""
+        missing = f", {len(self.unmatched)} fibres without an event there" if self.unmatched else ""
+        return (
+            f"Splice log of {closure}: {len(self.fill.written)} one-way losses written "
+            f"({len(self.matched)} fibres{missing})"
+        )
 
 
 def match_tolerance_m(route_m: float, base_m: float) -> float:
@@ -494,38 +493,6 @@ def pair_record(pair: PairResult, *, fibre: int, by: str = "") -> TraceRecord:
     )
 
 
-def folder_fibres(result: FolderResult) -> list[FibreTraces]:
-    """Every fibre of an analysed folder as :class:`FibreTraces`: paired where both directions
-    paired, else each direction alone.
-
-    Raises
-    ------
-    TraceJobError
-        A fibre label that is no fibre number (nothing is saved then: name the files
-        ``F012_1550_AB.sor`` or give the records a fibre ID).
-    """
-    out: list[FibreTraces] = []
-    for row in result.rows:
-        if not (row.a_to_b or row.b_to_a):
-            continue
-        if not row.fibre.isdigit() or not 1 <= int(row.fibre) <= 10_000:
-            raise TraceJobError(
-                f"{row.fibre}: the record and the file name give no fibre number "
-                "(e.g. F012_1550_AB.sor); nothing saved"
-            )
-        number = int(row.fibre)
-        if row.paired is not None:
-            out.append(FibreTraces(number, paired=row.paired))
-            continue
-        if row.a_to_b is not None:
-            out.append(FibreTraces(number, one_way=row.a_to_b, direction="A->B"))
-        if row.b_to_a is not None:
-            out.append(FibreTraces(number, one_way=row.b_to_a, direction="B->A"))
-    if not out:
-        raise TraceJobError("no trace in the folder could be read: nothing to save")
-    return out
-
-
 def fibre_record(ft: FibreTraces, by: str = "") -> TraceRecord:
     """The record of one fibre's traces: the pair when both directions are there."""
     if ft.paired is not None:
@@ -616,3 +583,22 @@ def save_traces(
 
     store.update(job_id, change)
     return out[0]
+
+
+def save_fibres(
+    store: JobStore,
+    job_id: str,
+    link: str,
+    fibres: Sequence[FibreTraces],
+    *,
+    by: str = "",
+    progress: SaveProgress | None = None,
+) -> SavedTraces:
+    """:func:`fibre_record` of each fibre, then :func:`save_traces` of them all in one save;
+    ``progress(done, total)`` after each record is built (the long part of a folder)."""
+    records = []
+    for done, ft in enumerate(fibres, start=1):
+        records.append(fibre_record(ft, by=by))
+        if progress is not None:
+            progress(done, len(fibres))
+    return save_traces(store, job_id, link, records, by=by)

@@ -20,6 +20,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from fieldkit.calc.units import InputError
 from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace, rejudge
 from fieldkit.traces.files import TRACE_SUFFIXES, ReadOptions, read_trace
 from fieldkit.traces.model import Trace, TraceFileError
@@ -136,6 +137,71 @@ class FolderResult:
             "fibres": [r.to_json() for r in self.rows],
             "unread": [{"file": n, "problem": p} for n, p in self.unread],
         }
+
+
+@dataclass(frozen=True, slots=True)
+class FibreTraces:
+    """One fibre's traces: both directions paired, or one direction alone."""
+
+    fibre: int
+    paired: PairResult | None = None
+    one_way: TraceResult | None = None
+    direction: str = "A->B"  # of ``one_way``
+
+    @property
+    def kept_direction(self) -> str:
+        """The direction a job keeps them as: ``A<->B`` for a pair."""
+        return "A<->B" if self.paired is not None else self.direction
+
+    @property
+    def wavelength_nm(self) -> float | None:
+        first = self.paired.a_to_b if self.paired is not None else self.one_way
+        return first.trace.wavelength_nm if first is not None else None
+
+    @property
+    def key(self) -> tuple[int, float | None, str]:
+        """Fibre, wavelength (0.1 nm) and direction: what a later save of them supersedes
+        (as :attr:`fieldkit.jobs.models.TraceRecord.key`)."""
+        wl = self.wavelength_nm
+        return (self.fibre, None if wl is None else round(wl, 1), self.kept_direction)
+
+    @property
+    def files(self) -> list[str]:
+        if self.paired is not None:
+            return [self.paired.a_to_b.trace.source, self.paired.b_to_a.trace.source]
+        return [self.one_way.trace.source] if self.one_way is not None else []
+
+
+def folder_fibres(result: FolderResult) -> list[FibreTraces]:
+    """Every fibre of an analysed folder as :class:`FibreTraces`: paired where both directions
+    paired, else each direction alone.
+
+    Raises
+    ------
+    InputError
+        A fibre label that is no fibre number (nothing is saved then: name the files
+        ``F012_1550_AB.sor`` or give the records a fibre ID).
+    """
+    out: list[FibreTraces] = []
+    for row in result.rows:
+        if not (row.a_to_b or row.b_to_a):
+            continue
+        if not row.fibre.isdigit() or not 1 <= int(row.fibre) <= 10_000:
+            raise InputError(
+                f"{row.fibre}: the record and the file name give no fibre number "
+                "(e.g. F012_1550_AB.sor); nothing saved"
+            )
+        number = int(row.fibre)
+        if row.paired is not None:
+            out.append(FibreTraces(number, paired=row.paired))
+            continue
+        if row.a_to_b is not None:
+            out.append(FibreTraces(number, one_way=row.a_to_b, direction="A->B"))
+        if row.b_to_a is not None:
+            out.append(FibreTraces(number, one_way=row.b_to_a, direction="B->A"))
+    if not out:
+        raise InputError("no trace in the folder could be read: nothing to save")
+    return out
 
 
 def trace_files(folder: Path) -> list[Path]:

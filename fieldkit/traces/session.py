@@ -12,7 +12,16 @@ import numpy.typing as npt
 
 from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace, rejudge
 from fieldkit.traces.files import ReadOptions, read_trace
-from fieldkit.traces.folder import FibreRow, FolderResult, Progress, analyse_folder, rejudge_folder
+from fieldkit.traces.folder import (
+    FibreRow,
+    FibreTraces,
+    FolderResult,
+    Progress,
+    analyse_folder,
+    fibre_label,
+    folder_fibres,
+    rejudge_folder,
+)
 from fieldkit.traces.lines import KIND_LABELS, fmt, limits_summary
 from fieldkit.traces.model import TraceFileError
 from fieldkit.traces.pairing import PairResult, pair
@@ -56,6 +65,7 @@ class TraceSession:
     folder: FolderResult | None = None
     shown: str = "AB"  # which direction the plot shows
     instrument_table: bool = False  # the instrument's own events instead of ours
+    a_direction: str = "A->B"  # of ``a``: a folder's fibre with only its B→A trace opens B→A
 
     # -- opening ---------------------------------------------------------------------------
     def open(self, path_a: str, path_b: str = "") -> str:
@@ -80,6 +90,8 @@ class TraceSession:
             paired = pair(a, b)
         self.a, self.b, self.paired = a, b, paired
         self.shown = "AB"
+        self.a_direction = "A->B"
+        self.folder = None
         return self.summary()
 
     def open_folder(self, path: str, progress: Progress | None = None) -> FolderResult:
@@ -95,6 +107,7 @@ class TraceSession:
                 f"{Path(path).name}: no trace files (.sor, .csv, .txt, .tsv, .dat)"
             )
         self.folder = result
+        self.a = self.b = self.paired = None  # the folder's table shows
         return result
 
     def open_row(self, row: FibreRow) -> str:
@@ -105,6 +118,7 @@ class TraceSession:
         self.b = row.b_to_a if row.a_to_b is not None else None
         self.paired = row.paired
         self.shown = "AB"
+        self.a_direction = "A->B" if row.a_to_b is not None else "B->A"
         return self.summary()
 
     def set_limits(self, limits: Limits) -> None:
@@ -254,6 +268,122 @@ class TraceSession:
                 if ev.number == number:
                     return ev.verdict_reason
         return ""
+
+    def folder_counts(self) -> str:
+        """ "12 files, 6 fibres" of the open folder."""
+        if self.folder is None:
+            return ""
+        files, rows = self.folder.files, len(self.folder.rows)
+        fails = sum(1 for r in self.folder.rows if r.verdict == "fail")
+        return (
+            f"{files} file{'s' if files != 1 else ''}, {rows} fibre{'s' if rows != 1 else ''}, "
+            f"{fails} failed"
+        )
+
+    def close_fibre(self) -> bool:
+        """Back from one of a folder's fibres to the folder's table (False: no folder open)."""
+        if self.folder is None:
+            return False
+        self.a = self.b = self.paired = None
+        return True
+
+    def cycle_view(self) -> str | None:
+        """Show the next of A→B, B→A (when both are open), then the instrument's own events of
+        each; the words saying what is shown now (None: nothing open)."""
+        if self.current is None:
+            return None
+        views = [("AB", False)]
+        if self.b is not None:
+            views.append(("BA", False))
+        for direction, result in (("AB", self.a), ("BA", self.b)):
+            if result is not None and result.trace.instrument_events:
+                views.append((direction, True))
+        now = (self.shown, self.instrument_table)
+        k = views.index(now) if now in views else 0
+        self.shown, self.instrument_table = views[(k + 1) % len(views)]
+        which = "B→A" if self.shown == "BA" else "A→B"
+        return f"{which}: " + (
+            "the instrument's own events" if self.instrument_table else "our events"
+        )
+
+    # -- into a job ------------------------------------------------------------------------
+    @property
+    def whole_folder(self) -> bool:
+        """True while the folder's table shows (saving and filling take every fibre)."""
+        return self.a is None and self.folder is not None
+
+    def fibre_number(self) -> int | None:
+        """The open trace's fibre number from its record or file name, if it gives one."""
+        if self.a is None:
+            return None
+        label = fibre_label(self.a.trace, self.a.trace.source)
+        return int(label) if label.isdigit() and 1 <= int(label) <= 10_000 else None
+
+    def fibres(self, fibre: int | None) -> list[FibreTraces]:
+        """What goes into a job: the folder's fibres (its table showing), else the open pair
+        or trace as fibre ``fibre``.
+
+        Raises
+        ------
+        InputError
+            A folder's fibre with no number, or no fibre number for what is open.
+        """
+        if self.whole_folder:
+            assert self.folder is not None
+            return folder_fibres(self.folder)
+        if self.a is None:
+            raise TraceFileError("open traces first")
+        if fibre is None:
+            raise TraceFileError("type the fibre number these traces hold")
+        if self.paired is not None:
+            return [FibreTraces(fibre, paired=self.paired)]
+        return [FibreTraces(fibre, one_way=self.a, direction=self.a_direction)]
+
+    def save_lines(self, current: set[tuple[int, float | None, str]]) -> list[str]:
+        """What a save keeps, for the dialog before it: which traces, the limits that judged
+        them, how many earlier saves of the same it supersedes (``current``: the keys of the
+        link's current traces).
+
+        Raises
+        ------
+        InputError
+            A folder's fibre with no number (nothing can be saved then).
+        """
+        if self.whole_folder:
+            fibres = self.fibres(None)
+            lines = [f"every fibre of the folder: {len(fibres)} fibre(s) and direction(s)"]
+        else:
+            fibres = self.fibres(self.fibre_number() or 1)
+            what = "both directions averaged" if self.paired is not None else self.a_direction
+            names = ", ".join(fibres[0].files)
+            lines = [f"this fibre, {what}: {names}"]
+        lines.append(f"judged by {self.limits_summary()}")
+        known = sum(1 for f in fibres if f.key in current)
+        if known:
+            lines.append(f"{known} earlier save(s) of the same stay, marked superseded")
+        return lines
+
+    # -- the folder's table ----------------------------------------------------------------
+    def folder_columns(self, wide: bool) -> tuple[str, ...]:
+        if wide:
+            return ("fibre", "nm", "dirs", "ev", "worst dB", "total", "verdict")
+        return ("fibre", "nm", "worst dB", "verdict")
+
+    def folder_rows(self, wide: bool) -> list[tuple[str, ...]]:
+        """One row of cells per fibre of the open folder, in :meth:`folder_columns` order."""
+        out: list[tuple[str, ...]] = []
+        for row in self.folder.rows if self.folder is not None else ():
+            worst = row.worst()
+            wl = f"{row.wavelength_nm:g}" if row.wavelength_nm else "?"
+            worst_db = f"{worst[1]:.3f}" if worst else "-"
+            total = f"{row.total_loss_db:.2f}" if row.total_loss_db is not None else "-"
+            cells: tuple[str, ...]
+            if wide:
+                cells = (row.fibre, wl, row.directions, str(row.event_count), worst_db, total)
+            else:
+                cells = (row.fibre, wl, worst_db)
+            out.append((*cells, row.verdict))
+        return out
 
     # -- hand-offs -------------------------------------------------------------------------
     def fault_handoff(

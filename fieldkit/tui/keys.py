@@ -248,8 +248,13 @@ USES: dict[str, tuple[Use, ...]] = {
         ),
         Use(
             "save",
+            "save_traces",
+            "keep these traces on a job's link: pick the link, see what is kept, save",
+        ),
+        Use(
+            "add",
             "fill_splices",
-            "fill a closure's splice log on a job's link with these losses",
+            "add these losses to a closure's splice log on a job's link",
             label="Splice log",
         ),
         Use("filter", "cycle_view", "cycle A→B, B→A, the instrument's own events"),

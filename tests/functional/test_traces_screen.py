@@ -135,7 +135,7 @@ async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
     from fieldkit import locations
     from fieldkit.actions import splices as act
     from fieldkit.jobs.store import JobStore
-    from fieldkit.tui.screens.traces import OverwriteDialog
+    from fieldkit.tui.widgets.trace_dialogs import OverwriteDialog
 
     store = JobStore(locations.jobs_dir(tmp_path / "d"))
     job = store.create("Mill Lane")
@@ -149,7 +149,7 @@ async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
         await pilot.press("enter")
         await pilot.pause()
         for _round in range(2):
-            await pilot.press("ctrl+s")
+            await pilot.press("ctrl+a")  # add the losses to a closure's splice log
             await pilot.pause()
             await pilot.press("enter")  # the job
             await pilot.press("enter")  # its link
@@ -172,3 +172,65 @@ async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
         assert "Nothing written" in str(screen.query_one("#traces-status", Static).render())
         kept = next(s for s in store.load(job.id).links[0].closures[0].splices if s.fibre_a == 1)
         assert kept.loss_ab_db == 0.9
+
+
+async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
+    tmp_path: Path, pair_files: tuple[Path, Path]
+) -> None:
+    # pick the link, see what is kept, save; the second save supersedes the first (history)
+    from fieldkit import locations
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.widgets.trace_dialogs import SaveTracesDialog
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Mill Lane")
+    store.update(job.id, lambda j: j.add_link("L1") and None)
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, TracesScreen)
+        screen.query_one("#traces-a", Input).value = str(pair_files[0])
+        screen.query_one("#traces-b", Input).value = str(pair_files[1])
+        await pilot.press("enter")
+        await pilot.pause()
+        opened = screen.session.paired
+        assert opened is not None
+        for number in (1, 2):
+            await pilot.press("ctrl+s")
+            await pilot.pause()
+            await pilot.press("enter")  # the job
+            await pilot.press("enter")  # its link
+            await pilot.pause()
+            dialog = app.screen
+            assert isinstance(dialog, SaveTracesDialog)
+            what = str(dialog.query_one("#st-what", Static).render())
+            assert "both directions averaged" in what and "F001_1550_AB.sor" in what
+            assert "onto job Mill Lane, link L1" in str(dialog.query_one("#st-where").render())
+            if number == 2:
+                assert "1 earlier save(s) of the same stay, marked superseded" in what
+            # the fibre comes from the file name (F001): Enter saves it
+            assert dialog.query_one("#st-fibre", Input).value == "1"
+            await pilot.press("enter")
+            await app.workers.wait_for_complete()
+            await pilot.pause()
+            status = str(screen.query_one("#traces-status", Static).render())
+            assert status.startswith("Saved 1 trace (fibre 1 A<->B 1550 nm) onto job Mill Lane")
+            traces = store.load(job.id).links[0].traces
+            assert len(traces) == number and traces[-1].current
+        first, second = store.load(job.id).links[0].traces
+        assert first.superseded_by == second.id  # the first stays, superseded
+        # the splice at 1500 m is 0.25 dB from both ends (FIBRE above), kept averaged
+        splice = min(second.events, key=lambda e: abs(e.distance_m - 1500.0))
+        assert splice.average_db == pytest.approx(0.25, abs=0.02)
+        # what was open is still open, and Esc in the dialog saves nothing
+        assert screen.session.paired is not None
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        await pilot.press("enter", "enter")
+        await pilot.pause()
+        await pilot.press("escape")
+        await pilot.pause()
+        assert "Nothing saved" in str(screen.query_one("#traces-status", Static).render())
+        assert len(store.load(job.id).links[0].traces) == 2
+        assert screen.query_one("#traces-a", Input).value == str(pair_files[0])
