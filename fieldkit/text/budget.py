@@ -10,7 +10,6 @@ columns; the CLI prints the same lines).
 from __future__ import annotations
 
 import re
-import textwrap
 from typing import Any
 
 from fieldkit.calc.budget import (
@@ -20,6 +19,7 @@ from fieldkit.calc.budget import (
 )
 from fieldkit.calc.checks import FibreData, LinkChecks
 from fieldkit.calc.units import format_number
+from fieldkit.text.layout import wrap
 
 MINUS = "\u2212"
 
@@ -60,32 +60,6 @@ def length(x_m: float) -> str:
 def signed_length(x_m: float) -> str:
     sign = "+" if x_m >= 0 else MINUS
     return sign + length(abs(x_m))
-
-
-#: A space between a number and its unit, or after "×": a line is never broken there.
-_UNIT_GAP = re.compile(r"(?<=\d) (?=(?:dBm|dB|nm|km|m|ps|GBd|MHz|µm|%)(?![A-Za-z]))|(?<=×) ")
-NBSP = "\u00a0"
-
-
-def keep_units(text: str) -> str:
-    """``text`` with a no-break space between each number and its unit (``0.30\u00a0dB``) and
-    after ``×``, so a display that wraps never leaves a unit alone on the next line."""
-    return _UNIT_GAP.sub(NBSP, text)
-
-
-def wrap(line: str, width: int | None, indent: int) -> list[str]:
-    """``line`` broken into lines of at most ``width`` (None: as it is), continuation lines
-    indented by ``indent`` spaces, never between a number and its unit."""
-    if width is None or len(line) <= width:
-        return [line]
-    parts = textwrap.wrap(
-        keep_units(line),
-        width=max(width, indent + 8),
-        subsequent_indent=" " * indent,
-        break_long_words=False,
-        break_on_hyphens=False,
-    )
-    return [p.replace(NBSP, " ") for p in parts] or [line]
 
 
 def verdict_word(verdict: str) -> str:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from fieldkit.tui.widgets.route_diagram import FaultMark, RoutePoint, render_route
+from fieldkit.text.route import FaultMark, RoutePoint, render_route
 
 POINTS = [
     RoutePoint("landmark", "closure 6", 1950.0),
@@ -31,7 +31,8 @@ def test_strip_to_scale_and_legend_in_route_order() -> None:
     assert strip[27] == "X"
     assert strip.index("∞") == round(2500 / 4305 * 43)
     assert lines[1].endswith("4305.0 m")
-    legend = lines[2:]
+    # each entry starts with its distance; a continuation starts under the label
+    legend = [line for line in lines[2:] if not line.startswith(" " * 11)]
     assert [line.split()[2] for line in legend] == ["├", "1", "∞", "X", "2", "3"]
     assert [line.split()[3] for line in legend] == [
         "start",
@@ -42,7 +43,21 @@ def test_strip_to_scale_and_legend_in_route_order() -> None:
         "handhole",
     ]
     assert "fault, look 2700.0 m–2777.2 m" in legend[3]
-    assert legend[-1].endswith("…")  # a long name is cut, never wrapped
+    # a long name goes on under its label, never cut: "4100.0 m 3 " is 11 columns
+    assert lines[-2] == "4100.0 m 3 handhole 12 by the long bridge"
+    assert lines[-1] == " " * 11 + "over the river"
+    assert not any("…" in line for line in lines)
+
+
+@pytest.mark.parametrize("width", [34, 38])
+def test_the_fault_range_is_never_cut(width: int) -> None:
+    # The fault's key line at the fault panel's width at 80 and 44 columns: the range goes on
+    # the next line under "fault" instead of being cut with "…".
+    lines = render_route([], FaultMark(2009.85, 1979.6, 2040.1), width)
+    text = " ".join(line.strip() for line in lines[2:])
+    assert "fault, look 1979.6 m–2040.1 m" in text
+    assert not any("…" in line for line in lines)
+    assert all(len(line) <= width for line in lines)
 
 
 def test_range_brackets_when_wide_enough_and_feet() -> None:

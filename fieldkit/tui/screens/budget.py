@@ -19,6 +19,7 @@ from textual.widgets import Button, Input, Label, OptionList, Select, Static
 
 from fieldkit import safety
 from fieldkit.text import budget as lines
+from fieldkit.text.layout import keep_units
 from fieldkit.tui import keys
 from fieldkit.tui.budget_model import (
     ADD_KINDS,
@@ -56,7 +57,7 @@ def _shown(text: str) -> Text:
     kept = []
     for line in text.split("\n"):
         stripped = line.lstrip(" ")
-        kept.append("\u00a0" * (len(line) - len(stripped)) + lines.keep_units(stripped))
+        kept.append("\u00a0" * (len(line) - len(stripped)) + keep_units(stripped))
     return Text("\n".join(kept))
 
 

@@ -9,18 +9,12 @@ from textual.widget import Widget
 from textual.widgets import Input, Label, Static
 
 from fieldkit.calc.units import InputError, Kind, Value, parse
+from fieldkit.tui.form_fields import field_name
 
 #: What a quantity field lets through: digits, signs, separators, letters for units, µ/μ, %, /.
 QUANTITY_CHARS = r"[0-9A-Za-z .,+\-\u2212\u00b5\u03bc/%']*"
 
-
-def field_name(label: str) -> str:
-    """A field's label as a problem message names it: the first word in lower case unless it
-    is an abbreviation, so "Level A" reads "level A" and "OTDR dist" stays "OTDR dist"."""
-    first, _, rest = label.partition(" ")
-    if not (len(first) > 1 and first.isupper()):
-        first = first[:1].lower() + first[1:]
-    return f"{first} {rest}" if rest else first
+__all__ = ["QUANTITY_CHARS", "QuantityField", "field_name"]
 
 
 class QuantityField(Widget):
