@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any, Literal
+from typing import Any, Literal, Required, TypedDict, Unpack
 
 from fieldkit.calc import splicing
 from fieldkit.calc.units import InputError
@@ -227,30 +227,24 @@ def make_cable(
     )
 
 
+class CableOptions(TypedDict, total=False):
+    """The keywords of :func:`make_cable` (its defaults apply), which :func:`add_cable` passes
+    on."""
+
+    fibre_count: Required[int | None]
+    per_tube: int | None
+    colour_sequence: str
+    fibre_type: str
+    library: PresetLibrary | None
+    by: str
+
+
 def add_cable(
-    store: Any,
-    job_id: str,
-    link: str,
-    closure: str,
-    name: str,
-    *,
-    fibre_count: int | None,
-    per_tube: int | None = 12,
-    colour_sequence: str = "TIA-598",
-    fibre_type: str = "",
-    library: PresetLibrary | None = None,
-    by: str = "",
+    store: Any, job_id: str, link: str, closure: str, name: str, **options: Unpack[CableOptions]
 ) -> SpliceCable:
-    """Add a cable entering a closure (a cable of that name already there is refused)."""
-    cable = make_cable(
-        name,
-        fibre_count=fibre_count,
-        per_tube=per_tube,
-        colour_sequence=colour_sequence,
-        fibre_type=fibre_type,
-        library=library,
-        by=by,
-    )
+    """Add a cable entering a closure (a cable of that name already there is refused); the
+    cable is :func:`make_cable` of ``name`` and ``options``."""
+    cable = make_cable(name, **options)
 
     def change(job: Job) -> None:
         item = find_closure(find_link(job, link), closure)

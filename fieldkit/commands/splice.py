@@ -39,6 +39,40 @@ def _job_options(parser: argparse.ArgumentParser, *, closure: bool = True) -> No
     add_data_dir(parser)
 
 
+def _sub(
+    sub: Any, name: str, help_text: str, func: Any, *, job: str | None = "closure"
+) -> argparse.ArgumentParser:
+    """A sub-command's parser with what every one takes: the job options (``job``:
+    ``"closure"`` with ``--closure``, ``"link"`` without, None for none), ``--json``, and the
+    function that runs it."""
+    p: argparse.ArgumentParser = sub.add_parser(name, help=help_text)
+    if job is not None:
+        _job_options(p, closure=job == "closure")
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.set_defaults(func=func)
+    return p
+
+
+def _colour_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--per-tube", default="12", metavar="K", help="fibres per tube or ribbon (default 12)"
+    )
+    p.add_argument("--sequence", default="TIA-598", help="colour sequence preset (TIA-598)")
+
+
+def _method_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--method", default="fusion", choices=("fusion", "mechanical"))
+
+
+def _print(args: argparse.Namespace, data: Any, line: str) -> int:
+    """``data`` as JSON with ``--json``, else ``line``; the exit status 0."""
+    if args.json:
+        print_json(data)
+    else:
+        _say(line)
+    return 0
+
+
 def register(subparsers: Any) -> None:
     parser: argparse.ArgumentParser = subparsers.add_parser(
         "splice",
@@ -51,16 +85,12 @@ def register(subparsers: Any) -> None:
     )
     sub = parser.add_subparsers(dest="splice_command", metavar="SUBCOMMAND", required=True)
 
-    p = sub.add_parser("colour", help="a fibre number's tube and fibre colours")
+    p = _sub(sub, "colour", "a fibre number's tube and fibre colours", run_colour, job=None)
     p.add_argument("fibre", metavar="N", help="the fibre number")
-    p.add_argument("--per-tube", default="12", metavar="K", help="fibres per tube (default 12)")
-    p.add_argument("--sequence", default="TIA-598", help="colour sequence preset (TIA-598)")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
+    _colour_options(p)
     add_data_dir(p)
-    p.set_defaults(func=run_colour)
 
-    p = sub.add_parser("closure", help="add a closure to a link")
-    _job_options(p, closure=False)
+    p = _sub(sub, "closure", "add a closure to a link", run_closure, job="link")
     p.add_argument("name", metavar="NAME", help="the closure's name, e.g. 'JC-3 Market St'")
     p.add_argument("--route-distance", metavar="DIST", help="its route position, e.g. 2.1km")
     p.add_argument(
@@ -70,45 +100,32 @@ def register(subparsers: Any) -> None:
     )
     p.add_argument("--landmark", default="", help="where it is, e.g. 'chamber by the bridge'")
     p.add_argument("--notes", default="", help="free notes")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_closure)
 
-    p = sub.add_parser("cable", help="add a cable entering a closure")
-    _job_options(p)
+    p = _sub(sub, "cable", "add a cable entering a closure", run_cable)
     p.add_argument("name", metavar="NAME", help="the cable's name at this closure, e.g. C1")
     p.add_argument("--fibres", required=True, metavar="N", help="its fibre count")
-    p.add_argument("--per-tube", default="12", metavar="K", help="fibres per tube or ribbon")
-    p.add_argument("--sequence", default="TIA-598", help="colour sequence preset (TIA-598)")
+    _colour_options(p)
     p.add_argument("--fibre-type", default="", help="a fibre preset, e.g. G.652.D or G.657.A2")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_cable)
 
-    p = sub.add_parser("tray", help="add splice trays to a closure")
-    _job_options(p)
+    p = _sub(sub, "tray", "add splice trays to a closure", run_tray)
     p.add_argument("numbers", metavar="N[-M]", help="a tray number or a range, e.g. 1-6")
     p.add_argument("--capacity", required=True, metavar="K", help="splices per tray")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_tray)
 
-    p = sub.add_parser("limit", help="set the link's splice loss limit")
-    _job_options(p, closure=False)
-    p.add_argument("--method", default="fusion", choices=("fusion", "mechanical"))
+    p = _sub(sub, "limit", "set the link's splice loss limit", run_limit, job="link")
+    _method_option(p)
     group = p.add_mutually_exclusive_group(required=True)
     group.add_argument("--preset", metavar="NAME", help="a splice preset (yours or shipped)")
     group.add_argument("--max", metavar="DB", help="a figure of your own, in dB")
     p.add_argument("--source", default="", help="where your own figure comes from")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_limit)
 
-    p = sub.add_parser("add", help="record a splice (and its losses)")
-    _job_options(p)
+    p = _sub(sub, "add", "record a splice (and its losses)", run_add)
     p.add_argument("--fibre", required=True, metavar="N", help="the fibre of cable A")
     p.add_argument("--to-fibre", metavar="M", help="the fibre of cable B (default: plan or N)")
     p.add_argument("--cable-a", metavar="NAME", help="default: the closure's first cable")
     p.add_argument("--cable-b", metavar="NAME", help="default: the closure's second cable")
     p.add_argument("--tray", metavar="T", help="the tray (default: the next free slot)")
     p.add_argument("--slot", metavar="S", help="the slot in the tray")
-    p.add_argument("--method", default="fusion", choices=("fusion", "mechanical"))
+    _method_option(p)
     p.add_argument("--estimate", metavar="DB", help="the splicer's estimated loss")
     p.add_argument("--loss-ab", metavar="DB", help="OTDR loss measured from end A")
     p.add_argument("--loss-ba", metavar="DB", help="OTDR loss measured from end B")
@@ -119,11 +136,8 @@ def register(subparsers: Any) -> None:
         action="store_true",
         help="a re-splice of a fibre already spliced (the earlier one is kept as history)",
     )
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_add)
 
-    p = sub.add_parser("plan", help="set a closure's splice plan, or write it as CSV")
-    _job_options(p)
+    p = _sub(sub, "plan", "set a closure's splice plan, or write it as CSV", run_plan)
     p.add_argument(
         "plan",
         nargs="?",
@@ -133,11 +147,8 @@ def register(subparsers: Any) -> None:
     )
     p.add_argument("--from-csv", metavar="FILE", help="read the plan from a CSV file")
     p.add_argument("--to-csv", metavar="FILE", help="write the plan as CSV ('-': stdout)")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_plan)
 
-    p = sub.add_parser("otdr", help="fill one-way OTDR losses (asks before overwriting)")
-    _job_options(p)
+    p = _sub(sub, "otdr", "fill one-way OTDR losses (asks before overwriting)", run_otdr)
     p.add_argument(
         "losses",
         nargs="+",
@@ -145,16 +156,12 @@ def register(subparsers: Any) -> None:
         help="e.g. 5:ab:0.04 7:ba:-0.02 (ab = from end A, ba = from end B)",
     )
     p.add_argument("--overwrite", action="store_true", help="replace values already recorded")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
-    p.set_defaults(func=run_otdr)
 
-    p = sub.add_parser("list", help="a link's closures and splices")
+    p = _sub(sub, "list", "a link's closures and splices", run_list, job=None)
     p.add_argument("--job", required=True, metavar="ID", help="the job (id or its start)")
     p.add_argument("--link", metavar="LINK", help="only this link")
     p.add_argument("--closure", metavar="NAME", help="only this closure")
-    p.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(p)
-    p.set_defaults(func=run_list)
 
 
 # -- helpers -----------------------------------------------------------------------------------
@@ -275,12 +282,9 @@ def run_closure(args: argparse.Namespace) -> int:
             notes=args.notes,
             by=by,
         )
-    if args.json:
-        print_json(closure.model_dump(mode="json"))
-    else:
-        where = f" at route {distance:.1f} m" if distance is not None else ""
-        _say(f"closure {closure.name} added to link {args.link}{where}")
-    return 0
+    where = f" at route {distance:.1f} m" if distance is not None else ""
+    line = f"closure {closure.name} added to link {args.link}{where}"
+    return _print(args, closure.model_dump(mode="json"), line)
 
 
 def run_cable(args: argparse.Namespace) -> int:
@@ -305,15 +309,12 @@ def run_cable(args: argparse.Namespace) -> int:
         library=library,
         by=by,
     )
-    if args.json:
-        print_json(cable.model_dump(mode="json"))
-    else:
-        kind = f", {cable.fibre_type}" if cable.fibre_type else ""
-        _say(
-            f"cable {cable.name}: {cable.fibre_count} fibres, {cable.per_tube} a tube, "
-            f"{cable.colour_sequence}{kind}"
-        )
-    return 0
+    kind = f", {cable.fibre_type}" if cable.fibre_type else ""
+    line = (
+        f"cable {cable.name}: {cable.fibre_count} fibres, {cable.per_tube} a tube, "
+        f"{cable.colour_sequence}{kind}"
+    )
+    return _print(args, cable.model_dump(mode="json"), line)
 
 
 def run_tray(args: argparse.Namespace) -> int:
@@ -338,11 +339,8 @@ def run_tray(args: argparse.Namespace) -> int:
         capacity,
         by=by,
     )
-    if args.json:
-        print_json({"trays": [t.model_dump(mode="json") for t in trays]})
-    else:
-        _say(f"{len(trays)} trays of {capacity} added to closure {args.closure}")
-    return 0
+    line = f"{len(trays)} trays of {capacity} added to closure {args.closure}"
+    return _print(args, {"trays": [t.model_dump(mode="json") for t in trays]}, line)
 
 
 def run_limit(args: argparse.Namespace) -> int:
@@ -366,11 +364,8 @@ def run_limit(args: argparse.Namespace) -> int:
         )
     store, job_id = _store_and_job(args)
     _call(act.set_splice_limit, store, job_id, args.link, limit)
-    if args.json:
-        print_json(limit.model_dump(mode="json"))
-    else:
-        _say(f"{args.method} splices on {args.link}: at most {limit.loss_max_db:.2f} dB")
-    return 0
+    line = f"{args.method} splices on {args.link}: at most {limit.loss_max_db:.2f} dB"
+    return _print(args, limit.model_dump(mode="json"), line)
 
 
 def run_add(args: argparse.Namespace) -> int:
@@ -503,17 +498,12 @@ def run_plan(args: argparse.Namespace) -> int:
             sys.stdout.write(text)
             return 0
         Path(args.to_csv).write_text(text, encoding="utf-8", newline="")
-    if args.json:
-        print_json(
-            {
-                "closure": closure.name,
-                "plan_source": closure.plan_source,
-                "plan": [r.model_dump(mode="json") for r in closure.plan],
-            }
-        )
-    else:
-        _say(f"closure {closure.name}: plan {closure.plan_source or 'none'}")
-    return 0
+    data = {
+        "closure": closure.name,
+        "plan_source": closure.plan_source,
+        "plan": [r.model_dump(mode="json") for r in closure.plan],
+    }
+    return _print(args, data, f"closure {closure.name}: plan {closure.plan_source or 'none'}")
 
 
 def run_otdr(args: argparse.Namespace) -> int:
