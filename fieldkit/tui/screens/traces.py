@@ -29,8 +29,6 @@ from fieldkit.tui.widgets.trace_plot import Mark, TracePlot
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 if TYPE_CHECKING:
-    from collections.abc import Callable
-
     from fieldkit.jobs.models import Job, Link
     from fieldkit.traces.folder import FibreTraces
 
@@ -256,19 +254,16 @@ class TracesScreen(Screen[None]):
             self._highlight(event.mark.number)
 
     # -- onto a job's link: the traces themselves, and the splice log ------------------------
-    def _pick_link(self, title: str, then: Callable[[tuple[str, str] | None], None]) -> None:
-        """Ask for the job's link (the last one's job first); ``then(choice)`` follows."""
-        if self.session.a is None and self.session.folder is None:
-            self._say("Open traces first.", True)
-            return
-        job = self.job_link[0] if self.job_link else None
-        self.app.push_screen(JobLinkPicker(job_id=job, title=title), then)
-
-    def _use_link(self, choice: tuple[str, str] | None) -> tuple[Job, Link] | None:
-        """Remember the chosen link, and judge the open traces by its presets from now on
-        (the line under the table says which limits); None, said, when it cannot be read."""
+    async def _choose_link(self, title: str) -> tuple[tuple[str, str], Job, Link] | None:
+        """Ask for the job's link (the last one's job first), remember it and judge the open
+        traces by its presets from now on; None (said) when nothing is open or it is not read."""
         from fieldkit.actions.splices import find_link
 
+        if self.session.a is None and self.session.folder is None:
+            self._say("Open traces first.", True)
+            return None
+        job_id = self.job_link[0] if self.job_link else None
+        choice = await self.app.push_screen_wait(JobLinkPicker(job_id=job_id, title=title))
         if choice is None:
             return None
         self.job_link = choice
@@ -282,38 +277,30 @@ class TracesScreen(Screen[None]):
             return None
         self._show()
         self.query_one("#traces-note", Static).update(terminal(self.session.limits_summary()))
-        return job, link
+        return choice, job, link
 
-    def action_save_traces(self) -> None:
-        self._pick_link("Keep these traces on which job's link?", self._save_link_chosen)
-
-    def _save_link_chosen(self, choice: tuple[str, str] | None) -> None:
-        """Then a dialog says what is kept where, and asks the fibre of one pair or trace."""
-        found = self._use_link(choice)
-        if found is None or choice is None:
+    @work(exclusive=True, group="traces-job", exit_on_error=False)
+    async def action_save_traces(self) -> None:
+        """Pick the link, read what is kept there (and give the fibre of one pair or trace),
+        save; what is open stays open whatever the answer."""
+        chosen = await self._choose_link("Keep these traces on which job's link?")
+        if chosen is None:
             return
-        job, link = found
+        where, job, link = chosen
         s = self.session
         try:
             lines = s.save_lines({t.key for t in link.traces if t.current})
         except (InputError, TraceFileError) as exc:
             self._say(str(exc), True)
             return
-        where = f"onto job {job.name}, link {link.label}"
-        self.app.push_screen(
-            SaveTracesDialog(where, lines, s.fibre_number(), not s.whole_folder),
-            lambda number: self._save_confirmed(choice, number),
+        dialog = SaveTracesDialog(
+            f"onto job {job.name}, link {link.label}", lines, s.fibre_number(), not s.whole_folder
         )
-
-    def _save_confirmed(self, where: tuple[str, str], number: int | None) -> None:
+        number = await self.app.push_screen_wait(dialog)
         if number is None:
             self._say("Nothing saved; the traces stay open.")
             return
-        try:
-            fibres = self.session.fibres(number or None)
-        except (InputError, TraceFileError) as exc:
-            self._say(str(exc), True)
-            return
+        fibres = s.fibres(number or None)
         bar = self.query_one("#traces-progress", ProgressBar)
         bar.display = len(fibres) > 1
         bar.update(total=len(fibres), progress=0)
@@ -331,75 +318,52 @@ class TracesScreen(Screen[None]):
 
         try:
             saved = save_fibres(fieldkit_app(self).store, *where, fibres, by=by, progress=progress)
+            text, problem = saved.summary(), False
         except Exception as exc:  # noqa: BLE001 - a store or input problem, shown as one line
-            self.app.call_from_thread(self._saved, f"Not saved: {exc}", True)
-            return
-        text = saved.summary()
-        self.app.call_from_thread(self._saved, text[:1].upper() + text[1:])
+            text, problem = f"not saved: {exc}", True
+        self.app.call_from_thread(self._saved, text[:1].upper() + text[1:], problem)
 
-    def _saved(self, text: str, problem: bool = False) -> None:
+    def _saved(self, text: str, problem: bool) -> None:
         self.query_one("#traces-progress").display = False
         self._say(text, problem)
         self.notify(terminal(text), severity="error" if problem else "information")
 
-    def action_fill_splices(self) -> None:
-        self._pick_link("Fill a closure's splice log on which job's link?", self._link_chosen)
-
-    def _link_chosen(self, choice: tuple[str, str] | None) -> None:
-        found = self._use_link(choice)
-        if found is None or choice is None:
-            return
-        closures = [(c.name, c.route_distance_m) for c in found[1].closures]
-        if not closures:
-            self._say(f"link {found[1].label}: no closures yet; add them in the splice log", True)
-            return
-        s = self.session
-        self.app.push_screen(
-            ClosurePicker(closures, s.fibre_number(), not s.whole_folder),
-            lambda c: self._closure_chosen(choice, c),
-        )
-
-    def _closure_chosen(
-        self, where: tuple[str, str], choice: tuple[str, int | None] | None
-    ) -> None:
-        """A dry run first: losses already recorded are replaced only when the user says so."""
+    @work(exclusive=True, group="traces-job", exit_on_error=False)
+    async def action_fill_splices(self) -> None:
+        """Pick the link and the closure; a dry run first, so losses already recorded are
+        replaced only when the user says so."""
         from fieldkit.actions.traces import fill_splice_log
 
-        if choice is None:
+        chosen = await self._choose_link("Fill a closure's splice log on which job's link?")
+        if chosen is None:
             return
-        closure, fibre = choice
-        by = fieldkit_app(self).operator
+        where, _job, link = chosen
+        closures = [(c.name, c.route_distance_m) for c in link.closures]
+        if not closures:
+            self._say(f"link {link.label}: no closures yet; add them in the splice log", True)
+            return
+        s = self.session
+        picked = await self.app.push_screen_wait(
+            ClosurePicker(closures, s.fibre_number(), not s.whole_folder)
+        )
+        if picked is None:
+            return
+        closure, fibre = picked
+        store, by = fieldkit_app(self).store, fieldkit_app(self).operator
         try:
-            fibres = self.session.fibres(fibre)
-            trial = fill_splice_log(
-                fieldkit_app(self).store, *where, closure, fibres, dry_run=True, by=by
-            )
+            fibres = s.fibres(fibre)
+            trial = fill_splice_log(store, *where, closure, fibres, dry_run=True, by=by)
+            overwrite = bool(trial.would_overwrite)
+            if overwrite:
+                asked = OverwriteDialog.for_losses(trial.would_overwrite)
+                if not await self.app.push_screen_wait(asked):
+                    self._say("Nothing written: the recorded losses stay.")
+                    return
+            done = fill_splice_log(store, *where, closure, fibres, overwrite=overwrite, by=by)
         except (InputError, TraceFileError) as exc:
             self._say(str(exc), True)
             return
-
-        def write(overwrite: bool | None) -> None:
-            if trial.would_overwrite and not overwrite:
-                self._say("Nothing written: the recorded losses stay.")
-                return
-            try:
-                done = fill_splice_log(
-                    fieldkit_app(self).store,
-                    *where,
-                    closure,
-                    fibres,
-                    overwrite=bool(overwrite),
-                    by=by,
-                )
-            except InputError as exc:
-                self._say(str(exc), True)
-                return
-            self._say(done.summary(closure))
-
-        if trial.would_overwrite:
-            self.app.push_screen(OverwriteDialog.for_losses(trial.would_overwrite), write)
-        else:
-            write(False)
+        self._say(done.summary(closure))
 
     def action_back(self) -> None:
         if not self.session.close_fibre():
