@@ -144,9 +144,11 @@ def range_file_name(start: date, end: date, fmt: str) -> str:
     """``jobs_2026-12-02.html`` for a day, ``jobs_2026-12-01_to_2026-12-05.html`` for a range."""
     from fieldkit.reports.names import file_name
 
+    day = file_name("jobs", start, fmt)
     if start == end:
-        return file_name("jobs", start, fmt)
-    return file_name(f"jobs_{start.isoformat()}_to", end, fmt)
+        return day
+    stem, _, suffix = day.rpartition(".")
+    return f"{stem}_to_{end.isoformat()}.{suffix}"
 
 
 def export_job(

@@ -28,7 +28,14 @@ from fieldkit.jobs.counting import (
     link_tallies,
     open_items,
 )
-from fieldkit.jobs.models import FLAG_NEGATIVE_LOSS, FLAG_REFERENCE_IN_DOUBT, Job, Link
+from fieldkit.jobs.models import (
+    FLAG_NEGATIVE_LOSS,
+    FLAG_REFERENCE_IN_DOUBT,
+    Job,
+    Link,
+    LossResult,
+    TraceRecord,
+)
 from fieldkit.jobs.reports import (
     closure_rows,
     fmt_db,
@@ -56,9 +63,11 @@ from fieldkit.reports.common import (
     zone_words,
 )
 from fieldkit.reports.document import (
+    Block,
     Chart,
     ChartPoint,
     Document,
+    Drawing,
     Facts,
     Legend,
     Paragraph,
@@ -119,6 +128,7 @@ class _Used:
         self.no_margin = False
         self.calibration_late = False
         self.unlisted_equipment = False
+        self.traces = False
         self.sources: dict[str, list[str]] = {}
 
     def source(self, text: str, where: str) -> None:
@@ -415,7 +425,7 @@ def _results_table(link: Link, labels: ReferenceLabels, ctx: ReportContext, used
         ],
         numeric={0, 1, 3, 4, 5},
         nowrap={2, 10},
-        caption=f"{link.label}: results (current; a retest supersedes)",
+        caption=f"{link.label}: every current result, with who and when",
     )
     for r in current_results(link):
         count = result_count(link, r)
@@ -447,6 +457,76 @@ def _results_table(link: Link, labels: ReferenceLabels, ctx: ReportContext, used
     return table
 
 
+def _count_word(count: Count) -> str:
+    return "FAIL" if count is Count.FAIL else VERDICT_WORD[count].lower()
+
+
+def _results_matrix(link: Link, labels: ReferenceLabels, used: _Used) -> Table:
+    """The link's current results as one row per fibre and direction, the wavelengths side by
+    side (loss, margin, result): a 12-fibre link at two wavelengths takes 12 rows, not 24.
+    Who and when are in Appendix A."""
+    from fieldkit.jobs.counting import current_results, result_count
+
+    results = current_results(link)
+    wavelengths = sorted({round(r.wavelength_nm, 1) for r in results})
+    limits: dict[float, set[float | None]] = {}
+    for each in results:
+        limits.setdefault(round(each.wavelength_nm, 1), set()).add(each.limit_db)
+    headers = ["Fibre", "Dir"]
+    numeric = {0}
+    for nm in wavelengths:
+        only = limits[nm]
+        limit = next(iter(only)) if len(only) == 1 else None
+        head = f"{fmt_nm(nm)} nm"
+        at = len(headers)
+        if limit is not None:
+            headers += [f"{head} loss dB (limit {fmt_db(limit)})", "Margin dB", "Result"]
+            numeric |= {at, at + 1}
+        else:
+            headers += [f"{head} loss dB", "Limit dB", "Margin dB", "Result"]
+            numeric |= {at, at + 1, at + 2}
+    headers.append("Ref")
+    table = Table(headers, numeric=numeric, nowrap={1}, caption=f"{link.label}: results")
+    rows: dict[tuple[int, str], dict[float, LossResult]] = {}
+    for one in results:
+        rows.setdefault((one.fibre, one.direction), {})[round(one.wavelength_nm, 1)] = one
+    for (fibre, direction), by_nm in sorted(rows.items()):
+        cells = [str(fibre), direction]
+        worst: list[Count] = []
+        refs: list[str] = []
+        for nm in wavelengths:
+            r = by_nm.get(nm)
+            uniform = len(limits[nm]) == 1 and next(iter(limits[nm])) is not None
+            if r is None:
+                cells += ["", "", "not tested"] if uniform else ["", "", "", "not tested"]
+                continue
+            count = result_count(link, r)
+            used.counts.add(count)
+            flags = list(r.flags)
+            if result_in_doubt(link, r) and FLAG_REFERENCE_IN_DOUBT not in flags:
+                flags.append(FLAG_REFERENCE_IN_DOUBT)
+            used.flags.update(flags)
+            # the verdict word already says a negative loss and a doubt; other flags follow it
+            extra = [_flag_words(f) for f in flags if f not in FLAG_WORDS]
+            word = ", ".join([_count_word(count), *extra])
+            worst.append(count)
+            label = labels(r.reference_id)
+            if label and label not in refs:
+                refs.append(label)
+            if uniform:
+                cells += [fmt_db(r.loss_db), fmt_db(margin_db(r)), word]
+            else:
+                cells += [fmt_db(r.loss_db), fmt_db(r.limit_db), fmt_db(margin_db(r)), word]
+        cells.append(", ".join(refs))
+        mark = ""
+        if Count.FAIL in worst:
+            mark = "fail"
+        elif Count.IN_DOUBT in worst or Count.REFERENCE_PROBLEM in worst:
+            mark = "doubt"
+        table.add(cells, mark)
+    return table
+
+
 def _budget_blocks(link: Link, ctx: ReportContext, used: _Used) -> list[Paragraph | Table]:
     b = link.budget
     if b is None:
@@ -472,7 +552,49 @@ def _budget_blocks(link: Link, ctx: ReportContext, used: _Used) -> list[Paragrap
         check = transceiver_text(b.transceiver)
         out += check.blocks
         used.source(check.source, f"{link.label}: transceiver check")
+    if b.checks:
+        out.append(_checks_table(link, used))
     return out
+
+
+#: What each check beyond loss compares, for the table's first column.
+CHECK_WORDS = {
+    "dispersion": "Chromatic dispersion against the receiver's tolerance",
+    "dispersion spread": "Pulse spread from dispersion against a quarter bit",
+    "modal bandwidth": "Length against the modal-bandwidth reach",
+    "cut-off": "Wavelength against the fibre's cable cut-off",
+}
+
+
+def _figure(value: float | None, unit: str) -> str:
+    if value is None:
+        return ""
+    return f"{value:.4g} {unit}".strip()
+
+
+def _checks_table(link: Link, used: _Used) -> Table:
+    """The budget's checks beyond loss (schema 5): one row per check and wavelength."""
+    b = link.budget
+    table = Table(
+        ["Check", "λ nm", "Value", "Limit", "Result", "What it says"],
+        numeric={1, 2, 3},
+        caption=f"{link.label}: checks beyond loss",
+    )
+    for c in b.checks if b is not None else []:
+        word = "FAIL" if c.verdict == "fail" else c.verdict
+        table.add(
+            [
+                CHECK_WORDS.get(c.kind, c.kind),
+                fmt_nm(c.wavelength_nm),
+                _figure(c.value, c.unit),
+                _figure(c.limit, c.unit),
+                word,
+                c.detail,
+            ],
+            "fail" if c.verdict == "fail" else "doubt" if c.verdict == "warning" else "",
+        )
+        used.source(c.source, f"{link.label}: {c.kind} check")
+    return table
 
 
 def _link_section(
@@ -494,7 +616,7 @@ def _link_section(
     charts = _charts(link)
     sec.blocks.extend(charts)
     if link.results:
-        sec.blocks.append(_results_table(link, labels, ctx, used))
+        sec.blocks.append(_results_matrix(link, labels, used))
         if any(not r.current for r in link.results):
             used.superseded = True
             n = sum(not r.current for r in link.results)
@@ -535,6 +657,121 @@ def _link_section(
     sec.blocks.append(Paragraph(_equipment_line(link, ctx.equipment), "small"))
     days = sorted({local_day(r.at, ctx).isoformat() for r in link.results})
     sec.blocks.append(Signature(_testers([link]), ", ".join(days), SIGN_STATEMENT))
+    return sec
+
+
+TRACE_VERDICT = {"pass": "pass", "fail": "FAIL", "no limit": "no limit", "in doubt": "in doubt"}
+
+
+def _trace_caption(t: TraceRecord, ctx: ReportContext) -> str:
+    nm = f" at {fmt_nm(t.wavelength_nm)} nm" if t.wavelength_nm is not None else ""
+    way = "both directions averaged" if t.direction == "A<->B" else t.direction
+    return f"Fibre {t.fibre}{nm}, {way}"
+
+
+def _trace_blocks(link: Link, t: TraceRecord, ctx: ReportContext, used: _Used) -> list[Block]:
+    """One stored trace: its drawing, a sentence of its figures and its event table."""
+    from fieldkit.traces.svg import draw_trace
+
+    out: list[Block] = []
+    caption = _trace_caption(t, ctx)
+    if t.curves:
+        curve = t.curves[0]  # a pair: A->B, with the events' distances from A
+        try:
+            drawing = draw_trace(
+                curve.pairs(),
+                [(e.number, e.distance_m, e.kind) for e in t.events],
+                length_m=t.length_m,
+            )
+        except (ValueError, IndexError):
+            drawing = ""
+        if drawing:
+            out.append(Drawing(drawing, caption))
+    facts = []
+    if t.length_m is not None:
+        facts.append(f"length {fmt_m(t.length_m)} m")
+    if t.total_loss_db is not None:
+        facts.append(f"end-to-end loss {fmt_db(t.total_loss_db)} dB")
+    if t.orl_db is not None:
+        facts.append(
+            f"optical return loss {fmt_db(t.orl_db)} dB "
+            f"({TRACE_VERDICT.get(t.orl_verdict, t.orl_verdict)})"
+        )
+    if t.pulse_width_ns is not None:
+        facts.append(f"pulse {t.pulse_width_ns:g} ns")
+    if t.group_index is not None:
+        facts.append(f"group index {t.group_index:.4f}")
+    facts.append(f"event loss by the {t.loss_method} method")
+    who = f"; by {t.by}" if t.by else ""
+    out.append(
+        Paragraph(
+            (caption if not out else "Measured")
+            + f" {fmt_local(t.at, ctx)}{who}: "
+            + "; ".join(facts)
+            + "."
+        )
+    )
+    pair = t.direction == "A<->B"
+    headers = ["No.", "At m", "Kind"]
+    headers += ["A→B", "B→A", "Average"] if pair else ["Loss"]
+    headers += ["Reflect.", "Cumul.", "Limit", "Result", "Why"]
+    n = len(headers)
+    table = Table(
+        headers,
+        numeric={0, 1, *range(3, n - 2)},
+        caption=f"{caption}: events (losses, reflectance and limits in dB)",
+    )
+    for e in t.events:
+        losses = (
+            [fmt_db(e.loss_ab_db), fmt_db(e.loss_ba_db), fmt_db(e.average_db)]
+            if pair
+            else [fmt_db(e.loss_db)]
+        )
+        why = "; ".join(x for x in (e.verdict_reason, e.note) if x)
+        table.add(
+            [
+                str(e.number),
+                fmt_m(e.distance_m),
+                e.kind,
+                *losses,
+                fmt_db(e.reflectance_db),
+                fmt_db(e.cumulative_db),
+                fmt_db(e.limit_db),
+                TRACE_VERDICT.get(e.verdict, e.verdict),
+                why,
+            ],
+            "fail" if e.verdict == "fail" else "doubt" if e.verdict == "in doubt" else "",
+        )
+    if table.rows:
+        out.append(table)
+    for line in t.limits.splitlines():
+        used.source(line, f"{link.label}: OTDR limits")
+    return out
+
+
+def _trace_section(job: Job, link: Link, ctx: ReportContext, used: _Used) -> Section | None:
+    current = sorted(
+        (t for t in link.traces if t.current),
+        key=lambda t: (t.wavelength_nm or 0.0, t.fibre, t.direction),
+    )
+    if not current:
+        return None
+    sec = Section(
+        f"Link {link.label}: OTDR traces",
+        page_break=True,
+        running_header=_running_header(job, ctx),
+        css_class="link traces",
+    )
+    fails = sum(any(e.verdict == "fail" for e in t.events) for t in current)
+    sec.para(
+        f"{len(current)} {'trace' if len(current) == 1 else 'traces'} kept on this link"
+        + (f"; {fails} with an event over its limit" if fails else "; no event over its limit")
+        + ". Distances from end A (a one-way B->A trace: from end B). Limits and their sources "
+        "in Appendix B."
+    )
+    used.traces = True
+    for t in current:
+        sec.blocks.extend(_trace_blocks(link, t, ctx, used))
     return sec
 
 
@@ -610,6 +847,9 @@ def _appendix(job: Job, ctx: ReportContext, labels: ReferenceLabels, used: _Used
     if refs.rows:
         refs.marks = ["doubt" if row[12] else "" for row in refs.rows]
         sec.blocks.append(refs)
+    for link in job.links:
+        if link.results:
+            sec.blocks.append(_results_table(link, labels, ctx, used))
     old = Table(
         [
             "Link",
@@ -716,6 +956,31 @@ def _appendix(job: Job, ctx: ReportContext, labels: ReferenceLabels, used: _Used
                     ]
                 )
             sec.blocks.append(faults)
+    old_traces = Table(
+        ["Link", "Fibre", "λ nm", "Direction", "Measured", "By", "Superseded", "Files", "Id"],
+        numeric={1, 2},
+        nowrap={3, 4, 6},
+        caption="Superseded OTDR traces (a later save of the same fibre replaced them)",
+    )
+    for link in job.links:
+        for t in link.traces:
+            if not t.current:
+                old_traces.add(
+                    [
+                        link.label,
+                        str(t.fibre),
+                        fmt_nm(t.wavelength_nm) if t.wavelength_nm is not None else "",
+                        t.direction,
+                        fmt_local(t.at, ctx),
+                        t.by,
+                        fmt_local(t.superseded_at, ctx),
+                        ", ".join(t.sources),
+                        t.id,
+                    ],
+                    "old",
+                )
+    if old_traces.rows:
+        sec.blocks.append(old_traces)
     if job.notes:
         notes = Table(["When", "By", "Note"], nowrap={0}, caption="Notes")
         for note in job.notes:
@@ -875,6 +1140,15 @@ def _legend(used: _Used) -> Legend:
                 "a reference names equipment the equipment list does not hold",
             )
         )
+    if used.traces:
+        entries.append(
+            (
+                "OTDR events",
+                "splice (non-reflective), reflective (a connector or a break), gainer (a splice "
+                "reading a gain one way: judge it on the average of both directions), end (the "
+                "fibre's end); A<->B: both directions averaged (ITU-T G.650.3)",
+            )
+        )
     entries.append(
         (
             "chart",
@@ -891,7 +1165,12 @@ def build_document(job: Job, ctx: ReportContext | None = None) -> Document:
     used = _Used()
     labels = ReferenceLabels(job)
     summary = _summary_section(job, ctx, used)
-    links = [_link_section(job, link, ctx, labels, used) for link in job.links]
+    links: list[Section] = []
+    for link in job.links:
+        links.append(_link_section(job, link, ctx, labels, used))
+        traces = _trace_section(job, link, ctx, used)
+        if traces is not None:
+            links.append(traces)
     appendix = _appendix(job, ctx, labels, used)
     first = min((r.at for link in job.links for r in link.results), default=None)
     summary.blocks.append(

@@ -92,7 +92,16 @@ class Legend:
     chart_marks: bool = True
 
 
-Block = Paragraph | Table | Facts | Verdict | Chart | Signature | Legend
+@dataclass
+class Drawing:
+    """A drawing made by the program (an OTDR trace), as one trusted ``<svg>`` element that
+    holds no user text; Markdown shows its caption only."""
+
+    svg: str
+    caption: str
+
+
+Block = Paragraph | Table | Facts | Verdict | Chart | Signature | Legend | Drawing
 
 
 @dataclass

@@ -11,6 +11,7 @@ from fieldkit.reports.document import (
     Block,
     Chart,
     Document,
+    Drawing,
     Facts,
     Legend,
     Paragraph,
@@ -46,7 +47,7 @@ table { border-collapse: collapse; width: 100%; margin: .2em 0 .4em; font-size: 
 caption { text-align: left; font-weight: bold; font-size: 8.5pt; padding: .1em 0; }
 th, td { border: 1px solid #999; padding: 0 .3em; text-align: left; vertical-align: top;
          overflow-wrap: anywhere; }
-th { background: #eee; }
+th { background: #eee; overflow-wrap: normal; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 td.nowrap { white-space: nowrap; }
 tr.fail td { background: #fde2e2; font-weight: bold; }
@@ -74,6 +75,10 @@ dl.legend dt { font-weight: bold; white-space: nowrap; } dl.legend dd { margin: 
 .signature td.label { border: none; font-weight: bold; width: 6.5em; }
 .signature td.label.wide { width: 10em; }
 section.page { break-before: page; page-break-before: always; }
+figure.trace { margin: .4em 0 0; break-inside: avoid; }
+figure.trace svg { display: block; width: 100%; height: auto; max-height: 52mm; }
+figure.trace figcaption { font-size: 8pt; font-weight: bold; }
+.trace-block { break-inside: avoid; }
 @media print {
   body { max-width: none; padding: 0; }
   tr.fail td, tr.doubt td, th, .verdict { -webkit-print-color-adjust: exact;
@@ -174,6 +179,11 @@ def _block(block: Block) -> str:
         )
     if isinstance(block, Legend):
         return _legend(block)
+    if isinstance(block, Drawing):
+        # drawn by fieldkit.traces.svg from numbers only: no user text inside
+        return (
+            f'<figure class="trace">{block.svg}<figcaption>{e(block.caption)}</figcaption></figure>'
+        )
     return _signature(block)
 
 

@@ -12,6 +12,7 @@ from fieldkit.reports.document import (
     Block,
     Chart,
     Document,
+    Drawing,
     Facts,
     Legend,
     Paragraph,
@@ -55,6 +56,8 @@ def _block(block: Block) -> list[str]:
         return [f"Chart, {m(chart.caption(block))}", ""]
     if isinstance(block, Legend):
         return ["**Legend**", "", *(f"- **{m(k)}**: {m(v)}" for k, v in block.entries), ""]
+    if isinstance(block, Drawing):
+        return [f"Trace drawing (in the HTML report): {m(block.caption)}", ""]
     return _signature(block)
 
 
