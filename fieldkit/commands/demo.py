@@ -50,7 +50,7 @@ def write_demo(folder: Path) -> list[str]:
     """Write (or regenerate) the demo jobs into ``folder``; returns their ids."""
     from fieldkit import locations
     from fieldkit.fsutil import atomic_write_bytes
-    from fieldkit.jobs.demo import DEMO_IDS, build, local_day_start
+    from fieldkit.jobs.demo import DEMO_IDS, build_for
     from fieldkit.jobs.models import now
     from fieldkit.jobs.store import JobStore, StoreError
 
@@ -66,7 +66,7 @@ def write_demo(folder: Path) -> list[str]:
     folder.mkdir(parents=True, exist_ok=True)
     atomic_write_bytes(marker, MARKER_TEXT.encode())
     ids = []
-    for job in build(local_day_start(now())):
+    for job in build_for(now()):
         try:
             store.delete(job.id)
             store.save(job)

@@ -459,3 +459,36 @@ def local_day_start(moment: datetime) -> datetime:
     """Midnight of the local day of ``moment``, timezone-aware."""
     local = moment.astimezone()
     return datetime.combine(local.date(), time(0, 0), tzinfo=local.tzinfo)
+
+
+#: The demo's last record is stamped at least this long before the moment it is written.
+DEMO_SETTLED = timedelta(minutes=5)
+
+
+def last_stamp(jobs: list[Job]) -> datetime:
+    """The latest time stamped anywhere in ``jobs`` (a job, note, event or any link record)."""
+
+    def stamps(value: object) -> list[datetime]:
+        if isinstance(value, datetime):
+            return [value]
+        if isinstance(value, dict):
+            return [t for item in value.values() for t in stamps(item)]
+        if isinstance(value, list):
+            return [t for item in value for t in stamps(item)]
+        return []
+
+    return max(t for job in jobs for t in stamps(job.model_dump()))
+
+
+def build_for(moment: datetime) -> list[Job]:
+    """The demo jobs as a day of work that is over by ``moment``: on the local day of
+    ``moment`` when its last record (mid-afternoon) is already past, otherwise the same day's
+    work moved earlier, so that no record is stamped in the future and every record keeps its
+    order (a recheck after the results it puts in doubt, an update after the job's creation).
+    """
+    start = local_day_start(moment)
+    jobs = build(start)
+    late = last_stamp(jobs) - (moment - DEMO_SETTLED)
+    if late > timedelta(0):
+        jobs = build(start - late)
+    return jobs

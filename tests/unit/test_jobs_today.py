@@ -5,6 +5,8 @@ from __future__ import annotations
 from datetime import timedelta
 from pathlib import Path
 
+import pytest
+
 from fieldkit.jobs.demo import build, local_day_start
 from fieldkit.jobs.models import now
 from fieldkit.jobs.store import JobStore, local_date
@@ -61,3 +63,17 @@ def test_open_items_count_in_words_that_agree(tmp_path: Path) -> None:
     # The backbone has five results against the reference that drifted: one item each.
     items = [item for j in summary.jobs for item in j.open_items]
     assert sum(item.endswith("reference in doubt, retest") for item in items) == 5
+
+
+@pytest.mark.parametrize("hour", [0, 8, 13, 15, 16, 23])
+def test_the_demo_never_stamps_a_record_in_the_future(hour: int) -> None:
+    # the demo is a day of work that is over: written at any hour, no record lies after the
+    # moment it is written, and the day's order is kept (created before every later stamp)
+    from fieldkit.jobs.demo import build_for, last_stamp
+
+    moment = local_day_start(now()) + timedelta(hours=hour, minutes=7)
+    jobs = build_for(moment)
+    assert last_stamp(jobs) <= moment
+    for job in jobs:
+        assert job.created_at <= job.updated_at
+        assert all(note.at >= job.created_at for note in job.notes)
