@@ -349,15 +349,19 @@ class TraceSession:
         InputError
             A folder's fibre with no number (nothing can be saved then).
         """
+        limits = self.limits_summary()
         if self.whole_folder:
             fibres = self.fibres(None)
             lines = [f"every fibre of the folder: {len(fibres)} fibre(s) and direction(s)"]
+            wavelengths = sorted({f.wavelength_nm for f in fibres if f.wavelength_nm})
+            if len(wavelengths) == 1:  # the attenuation maximum of that wavelength
+                limits = limits_summary(self.settings.limits.for_wavelength(wavelengths[0]))
         else:
             fibres = self.fibres(self.fibre_number() or 1)
             what = "both directions averaged" if self.paired is not None else self.a_direction
             names = ", ".join(fibres[0].files)
             lines = [f"this fibre, {what}: {names}"]
-        lines.append(f"judged by {self.limits_summary()}")
+        lines.append(f"judged by {limits}")
         known = sum(1 for f in fibres if f.key in current)
         if known:
             lines.append(f"{known} earlier save(s) of the same stay, marked superseded")

@@ -234,3 +234,38 @@ async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
         assert "Nothing saved" in str(screen.query_one("#traces-status", Static).render())
         assert len(store.load(job.id).links[0].traces) == 2
         assert screen.query_one("#traces-a", Input).value == str(pair_files[0])
+
+
+async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Path, Path]) -> None:
+    # the folder's table showing: every fibre is kept, no fibre number asked (the files give
+    # theirs); the dialog and its Save button fit the small terminal
+    from fieldkit import locations
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.widgets.trace_dialogs import SaveTracesDialog
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Mill Lane")
+    store.update(job.id, lambda j: j.add_link("L1") and None)
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        screen.query_one("#traces-a", Input).value = str(pair_files[0].parent)
+        await pilot.press("enter")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        await pilot.press("enter", "enter")
+        await pilot.pause()
+        dialog = app.screen
+        assert isinstance(dialog, SaveTracesDialog) and not dialog.query("#st-fibre")
+        assert "every fibre of the folder: 1" in str(dialog.query_one("#st-what").render())
+        save = dialog.query_one("#st-save")
+        assert save.region.bottom <= 22 and save.region.right <= 44 and save.has_focus
+        await pilot.press("enter")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        [kept] = store.load(job.id).links[0].traces
+        assert kept.fibre == 1 and kept.direction == "A<->B" and len(kept.curves) == 2
+        assert "Saved 1 trace" in str(screen.query_one("#traces-status", Static).render())

@@ -155,7 +155,9 @@ class SaveTracesDialog(ModalScreen[int | None]):
         with Vertical() as box:
             box.border_title = "Keep these traces on the link?"
             yield Static(terminal(self.where), markup=False, id="st-where")
-            yield Static(terminal("\n".join(self.lines)), markup=False, id="st-what")
+            yield Static(
+                "\n".join(terminal(line) for line in self.lines), markup=False, id="st-what"
+            )
             if self.ask_fibre:
                 with Horizontal():
                     yield Label("Fibre")
@@ -169,7 +171,7 @@ class SaveTracesDialog(ModalScreen[int | None]):
             yield Static("", id="st-error", markup=False)
             with Horizontal():
                 yield Button("Save", id="st-save", variant="primary", compact=True)
-                yield Button("Cancel (save nothing)", id="st-cancel", compact=True)
+                yield Button("Cancel", id="st-cancel", compact=True)
 
     def on_mount(self) -> None:
         if self.ask_fibre:
