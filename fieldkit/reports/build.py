@@ -87,6 +87,8 @@ VERDICT_WORD = {
     Count.PASS: "PASS",
 }
 NOT_TESTED = "NOT TESTED"
+#: Open items listed on the summary page; the rest are counted.
+MAX_OPEN_ITEMS = 12
 
 #: What each verdict means, for the legend.
 VERDICT_MEANING = {
@@ -371,7 +373,13 @@ def _summary_section(job: Job, ctx: ReportContext, used: _Used) -> Section:
     items = open_items(job)
     items = [f"{link.label}: no results yet" for link in job.links if not link.results] + items
     if items:
-        sec.blocks.append(Paragraph("Open items: " + "; ".join(items) + "."))
+        # a summary page, not a list of 144 fibres: the link pages name every one
+        shown = items[:MAX_OPEN_ITEMS]
+        more = len(items) - len(shown)
+        text = "Open items: " + "; ".join(shown)
+        if more:
+            text += f"; and {more} more (each link's page names its fibres)"
+        sec.blocks.append(Paragraph(text + "."))
     elif job.links:
         sec.blocks.append(Paragraph("Open items: none."))
     return sec
@@ -744,8 +752,14 @@ def _trace_blocks(link: Link, t: TraceRecord, ctx: ReportContext, used: _Used) -
         )
     if table.rows:
         out.append(table)
+    # "limits at 1310 nm from defaults:" heads the lines under it; each line is one source
+    head = "OTDR limits"
     for line in t.limits.splitlines():
-        used.source(line, f"{link.label}: OTDR limits")
+        line = line.strip()
+        if line.endswith(":"):
+            head = "OTDR " + line.rstrip(":")
+        elif line:
+            used.source(line, f"{link.label}: {head}")
     return out
 
 
@@ -999,7 +1013,9 @@ def _appendix(job: Job, ctx: ReportContext, labels: ReferenceLabels, used: _Used
         "method named with each reference",
         "results",
     )
-    table = Table(["Source", "Used for"], caption="Sources of the limits and figures")
+    table = Table(
+        ["Source", "Used for"], caption="Sources of the limits and figures", css_class="sources"
+    )
     for text, places in used.sources.items():
         table.add([text, "; ".join(places)])
     src.blocks.append(table)

@@ -32,6 +32,8 @@ class Table:
     #: Columns kept on one line (directions such as "A->B", times).
     nowrap: set[int] = field(default_factory=set)
     caption: str = ""
+    #: A class for the HTML table (column widths of a known table).
+    css_class: str = ""
 
     def add(self, row: list[str], mark: str = "") -> None:
         self.rows.append(row)

@@ -74,7 +74,8 @@ dl.legend dt { font-weight: bold; white-space: nowrap; } dl.legend dd { margin: 
                 vertical-align: bottom; }
 .signature td.label { border: none; font-weight: bold; width: 6.5em; }
 .signature td.label.wide { width: 10em; }
-section.page { break-before: page; page-break-before: always; }
+section.page, article.page { break-before: page; page-break-before: always; }
+table.sources td:first-child { width: 64%; }
 figure.trace { margin: .4em 0 0; break-inside: avoid; }
 figure.trace svg { display: block; width: 100%; height: auto; max-height: 52mm; }
 figure.trace figcaption { font-size: 8pt; font-weight: bold; }
@@ -96,7 +97,7 @@ _VERDICT_CLASS = {
 
 
 def _table(table: Table) -> str:
-    out = ["<table>"]
+    out = [f'<table class="{table.css_class}">' if table.css_class else "<table>"]
     if table.caption:
         out.append(f"<caption>{e(table.caption)}</caption>")
     out.append("<thead><tr>" + "".join(f"<th>{e(h)}</th>" for h in table.headers) + "</tr></thead>")

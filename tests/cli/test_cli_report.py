@@ -142,6 +142,7 @@ def test_a_day_export_holds_every_job_worked_on_that_day(
 ) -> None:
     html = ok("jobs", "export", "--day", "2025-06-01", "--format", "html")
     assert html.count("<article") == 3  # the cover page and two jobs
+    assert html.count('<article class="page">') == 2  # each job starts a printed page
     assert "<h1>Fibre test report: Alpha</h1>" in html and "Charlie" in html
     assert "Bravo" not in html
     assert html.count('<div class="signature">') == 2 * 2  # each job: summary + its link

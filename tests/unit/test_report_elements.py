@@ -394,7 +394,7 @@ def test_each_link_page_has_a_chart_per_wavelength_with_failures_in_words() -> N
 
 def test_each_link_starts_a_printed_page() -> None:
     html = export(sample(), "html", ctx())
-    assert "section.page { break-before: page;" in html
+    assert "section.page, article.page { break-before: page;" in html
     assert html.count('<section class="link page">') == len(sample().links)
 
 
@@ -523,3 +523,20 @@ def test_a_links_stored_traces_are_drawn_with_their_event_table() -> None:
     assert "Superseded OTDR traces" in appendix and "0" * 19 + "1" in appendix
     md = export(job, "md", ctx())
     assert "Trace drawing (in the HTML report): Fibre 3 at 1550 nm, A->B" in md
+
+
+def test_the_summary_lists_at_most_twelve_open_items_and_counts_the_rest() -> None:
+    link = Link(label="A", results=[result(n, 3.5) for n in range(1, 21)])  # 20 fail 3.0 dB
+    md = export(Job(name="J", links=[link]), "md", ctx())
+    line = next(x for x in md.splitlines() if x.startswith("Open items:"))
+    assert line.count("failed, repair and retest") == 12
+    assert line.endswith("and 8 more (each link's page names its fibres).")
+
+
+def test_sources_are_one_per_row_with_where_they_were_used() -> None:
+    job = _traced_job()
+    md = export(job, "md", ctx())
+    sources = md[md.index("## Appendix B") :]
+    rows = [line for line in sources.splitlines() if line.startswith("| ")][2:]
+    assert rows and not any(row.split(" | ")[0].endswith(":") for row in rows)  # no headings
+    assert re.search(r"\| A: OTDR limits at 1550 nm from \w+ \|", sources)
