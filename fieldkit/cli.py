@@ -105,13 +105,6 @@ def _needed_modules(argv: Sequence[str]) -> tuple[tuple[str, ...], str | None]:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    from pydantic import ValidationError
-
-    from fieldkit.actions.errors import ActionError
-    from fieldkit.calc.units import InputError
-    from fieldkit.commands.common import CommandError
-    from fieldkit.text.escape import terminal
-
     arguments = sys.argv[1:] if argv is None else list(argv)
     modules, command = _needed_modules(arguments)
     parser, commands = _build(modules)
@@ -123,6 +116,14 @@ def main(argv: Sequence[str] | None = None) -> int:
 
         make_app(data_dir=args.data_dir, config_dir=args.config_dir, welcome=True).run()
         return 0
+    # Imported here, not before the UI starts: pydantic alone is a tenth of its first frame.
+    from pydantic import ValidationError
+
+    from fieldkit.actions.errors import ActionError
+    from fieldkit.calc.units import InputError
+    from fieldkit.commands.common import CommandError
+    from fieldkit.text.escape import terminal
+
     try:
         status = int(args.func(args) or 0)
     except (CommandError, InputError, ActionError) as exc:

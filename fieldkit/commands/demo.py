@@ -4,11 +4,20 @@ The demo folder is ``<data folder>/demo`` unless ``--data-dir`` names another. T
 ever writes its own four jobs (fixed ids) there, so running it again regenerates them and
 leaves anything else alone; a folder that already holds jobs but no demo marker is refused, so
 the demo never mixes into a user's real jobs.
+
+The marker also keeps a fingerprint of what the demo was written from (the day, the code and
+presets it is built with) and of the four files as written. When nothing of it changed, the
+jobs on disk are already what regenerating would write, so they are left as they are: building
+and saving them again was a third of ``fieldkit demo``'s start. A demo job changed in the app,
+a removed file, another day or another fieldkit regenerates them all.
 """
 
 from __future__ import annotations
 
 import argparse
+import hashlib
+import os
+from datetime import datetime
 from pathlib import Path
 from typing import Any
 
@@ -17,7 +26,8 @@ from fieldkit.commands.common import CommandError, StartUi, add_data_dir
 MARKER = "fieldkit-demo.txt"
 MARKER_TEXT = (
     "This folder holds the invented demo scenario of 'fieldkit demo' (the fictional town of "
-    "Wrenfield).\nRunning 'fieldkit demo' again regenerates the demo jobs here.\n"
+    "Wrenfield).\nRunning 'fieldkit demo' again regenerates the demo jobs here when they "
+    "were changed.\n"
 )
 
 
@@ -46,8 +56,57 @@ def demo_folder(args: argparse.Namespace) -> Path:
     return locations.data_dir(None) / "demo"
 
 
+#: The demo's job ids (as in fieldkit.jobs.demo.DEMO_IDS, which a test keeps equal): known
+#: here without importing the records.
+DEMO_JOB_IDS = ("de30000000000001", "de30000000000002", "de30000000000003", "de30000000000004")
+_STATE = "state "
+
+
+def _sources() -> list[Path]:
+    """What the demo jobs are built from: fieldkit's code and the shipped presets."""
+    package = Path(__file__).resolve().parent.parent
+    presets = package / "_presets"
+    return [package, presets if presets.is_dir() else package.parent / "presets"]
+
+
+def demo_state(folder: Path) -> str | None:
+    """A fingerprint of the day, of what the demo is built from and of the demo job files in
+    ``folder`` now; None when one of the files is missing."""
+    from fieldkit import __version__, locations
+
+    digest = hashlib.sha256(f"{__version__} {datetime.now().astimezone().date()}".encode())
+    for top in _sources():
+        for root, dirs, files in os.walk(top):
+            dirs[:] = sorted(d for d in dirs if d != "__pycache__")
+            for name in sorted(files):
+                if name.endswith((".py", ".toml")):
+                    info = os.stat(os.path.join(root, name))
+                    digest.update(f"{root}/{name} {info.st_size} {info.st_mtime_ns}\n".encode())
+    jobs = locations.jobs_dir(folder)
+    for job_id in DEMO_JOB_IDS:
+        try:
+            info = os.stat(jobs / f"{job_id}.json")
+        except OSError:
+            return None
+        digest.update(f"{job_id} {info.st_size} {info.st_mtime_ns}\n".encode())
+    return digest.hexdigest()
+
+
+def _unchanged(folder: Path) -> bool:
+    """The demo jobs in ``folder`` are as the demo wrote them, on this day, by this code."""
+    try:
+        lines = (folder / MARKER).read_text(encoding="utf-8").splitlines()
+    except (OSError, UnicodeDecodeError):
+        return False
+    saved = next((line[len(_STATE) :] for line in lines if line.startswith(_STATE)), None)
+    return saved is not None and saved == demo_state(folder)
+
+
 def write_demo(folder: Path) -> list[str]:
-    """Write (or regenerate) the demo jobs into ``folder``; returns their ids."""
+    """Write (or regenerate) the demo jobs into ``folder``; returns their ids. Jobs that are
+    still as the demo wrote them today are left alone (see the module's note)."""
+    if _unchanged(folder):
+        return list(DEMO_JOB_IDS)
     from fieldkit import locations
     from fieldkit.fsutil import atomic_write_bytes
     from fieldkit.jobs.demo import DEMO_IDS, build_for
@@ -73,6 +132,9 @@ def write_demo(folder: Path) -> list[str]:
         except StoreError as exc:
             raise CommandError(f"the demo could not be written: {exc}") from None
         ids.append(job.id)
+    state = demo_state(folder)
+    if state is not None:
+        atomic_write_bytes(marker, f"{MARKER_TEXT}{_STATE}{state}\n".encode())
     return ids
 
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 import importlib
 from dataclasses import dataclass
 
+from textual import events
 from textual.screen import Screen
 
 from fieldkit.tui import keys
@@ -42,6 +43,29 @@ class Workspace:
                 screen.add_class(name)
                 break
         return screen
+
+
+class WorkspaceScreen(Screen[None]):
+    """A workspace screen styled once before its first frame, not twice.
+
+    Textual restyles every widget of a screen when it is resumed (a screen coming back may have
+    missed a theme or CSS change). A new mode's screen is resumed twice right after it was
+    mounted, and mounting has just styled each widget with the CSS in force: restyling it all
+    again was a sixth of the first workspace's start-up. Until the screen's first frame, a
+    resume skips the restyle (its layout and focus still happen); after it, resumes are as
+    Textual makes them. A theme or CSS change in between restyles everything as always.
+    """
+
+    _before_first_frame = True
+
+    def _on_screen_resume(self, event: events.ScreenResume) -> None:
+        # Textual calls the handler of each class on the way up, this one before Screen's.
+        if self._before_first_frame and event.refresh_styles:
+            self.call_after_refresh(self._first_frame_shown)
+            event.refresh_styles = False
+
+    def _first_frame_shown(self) -> None:
+        self._before_first_frame = False
 
 
 WORKSPACES: tuple[Workspace, ...] = (

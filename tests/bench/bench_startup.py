@@ -113,10 +113,16 @@ def main() -> None:
         tmp = Path(name)
         env = {
             **os.environ,
+            # Compiled bytecode, as an installed copy has (pip writes it): with
+            # PYTHONDONTWRITEBYTECODE set, every fieldkit module would be compiled from source
+            # at each start while Textual's came compiled, a third of fieldkit's start-up.
+            # The warm-up round writes it here, outside the checkout.
+            "PYTHONPYCACHEPREFIX": str(tmp / "pycache"),
             "TEXTUAL_DRIVER": "textual.drivers.headless_driver:HeadlessDriver",
             "FIELDKIT_DATA_DIR": str(tmp / "data"),
             "FIELDKIT_CONFIG_DIR": str(tmp / "config"),
         }
+        env.pop("PYTHONDONTWRITEBYTECODE", None)
         pythons = {"": sys.executable}
         if options.also:
             pythons["other "] = options.also

@@ -6,7 +6,6 @@ from collections.abc import Callable
 
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
-from textual.screen import Screen
 from textual.widgets import Input, Static
 
 from fieldkit.calc import power
@@ -17,11 +16,12 @@ from fieldkit.tui import keys
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+from fieldkit.tui.workspaces import WorkspaceScreen
 
 _rows = lines_of.rows_text
 
 
-class ConvertScreen(Screen[None]):
+class ConvertScreen(WorkspaceScreen):
     """Type once, read every unit. Everything updates on each keystroke."""
 
     CSS_PATH = "convert.tcss"

@@ -15,7 +15,6 @@ from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.events import Key
-from textual.screen import Screen
 from textual.widgets import Button, Input, OptionList, Static
 from textual.widgets.option_list import Option
 
@@ -32,6 +31,7 @@ from fieldkit.tui.widgets.export_dialog import ExportDialog
 from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+from fieldkit.tui.workspaces import WorkspaceScreen
 
 __all__ = ["ExportDialog", "JobsScreen"]
 
@@ -62,7 +62,7 @@ _DETAILS = ("summary", "failures", "links", "notes")
 _JOB_WIDGETS = ("#job-note", "#job-note-add", "#job-done", "#job-edit", "#job-link")
 
 
-class JobsScreen(Screen[None]):
+class JobsScreen(WorkspaceScreen):
     """List and filter jobs; the chosen job's details beside (wide) or below (narrow).
 
     Focus opens on the job list: arrows move it, Enter opens the job's details, and typing
