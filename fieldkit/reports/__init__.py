@@ -19,7 +19,7 @@ from collections.abc import Sequence
 from fieldkit.jobs.models import Job
 from fieldkit.jobs.reports import EXPORT_FORMATS, to_handoff
 from fieldkit.reports import html, markdown
-from fieldkit.reports.build import build_document, job_verdict, verdict_word
+from fieldkit.reports.build import JOB_ORDER, build_document, job_verdict, verdict_word
 from fieldkit.reports.common import ReportContext
 from fieldkit.reports.document import Document, Facts, Paragraph, Section, Table, Verdict
 from fieldkit.reports.spreadsheet import to_csv, to_csv_many
@@ -80,8 +80,6 @@ def cover(jobs: Sequence[Job], title: str, ctx: ReportContext) -> Document:
         numeric={3, 5, 6, 7, 8},
         caption="Jobs",
     )
-    from fieldkit.reports.build import _JOB_ORDER
-
     verdicts = []
     for job in jobs:
         count, tally, _ = job_verdict(job)
@@ -104,7 +102,7 @@ def cover(jobs: Sequence[Job], title: str, ctx: ReportContext) -> Document:
             if tally.in_doubt or tally.reference_problems
             else "",
         )
-    for count in _JOB_ORDER:
+    for count in JOB_ORDER:
         if count in verdicts:
             worst = count
             break

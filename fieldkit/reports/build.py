@@ -19,14 +19,18 @@ worst of its links', with "not tested" for a link without results ranked above "
 
 from __future__ import annotations
 
+from datetime import date
+
 from fieldkit import safety
 from fieldkit.jobs.counting import (
     PRECEDENCE,
     Count,
     Tally,
+    current_results,
     fibre_outcomes,
     link_tallies,
     open_items,
+    result_count,
 )
 from fieldkit.jobs.models import (
     FLAG_NEGATIVE_LOSS,
@@ -154,7 +158,7 @@ def link_verdict(link: Link) -> tuple[Count | None, Tally]:
 
 
 #: The job's order of verdicts: None (a link not tested) between "in doubt" and "no limit".
-_JOB_ORDER: tuple[Count | None, ...] = (
+JOB_ORDER: tuple[Count | None, ...] = (
     Count.FAIL,
     Count.REFERENCE_PROBLEM,
     Count.IN_DOUBT,
@@ -177,7 +181,7 @@ def job_verdict(job: Job) -> tuple[Count | None, Tally, int]:
     untested = sum(v is None for v in verdicts)
     if not verdicts:
         return None, tally, 0
-    for count in _JOB_ORDER:
+    for count in JOB_ORDER:
         if count in verdicts:
             return count, tally, untested
     return None, tally, untested
@@ -219,7 +223,7 @@ def _running_header(job: Job, ctx: ReportContext) -> str:
 
 
 def _equipment_table(
-    kit: tuple[Equipment, ...], named: dict[str, str], first_test: object, used: _Used
+    kit: tuple[Equipment, ...], named: dict[str, str], first_test: date | None, used: _Used
 ) -> Table:
     """The test equipment: the settings' list, plus ids the references name that it lacks."""
     table = Table(
@@ -230,7 +234,7 @@ def _equipment_table(
     listed = {e.id.casefold() for e in kit}
     for e in kit:
         remark = ""
-        if e.due is not None and first_test is not None and e.due < first_test:  # type: ignore[operator]
+        if e.due is not None and first_test is not None and e.due < first_test:
             remark = "calibration was due before the tests"
             used.calibration_late = True
         table.add(
@@ -403,8 +407,6 @@ def _safety_lines(job: Job) -> list[str]:
 def _charts(link: Link) -> list[Chart]:
     out = []
     by_nm: dict[float, list[ChartPoint]] = {}
-    from fieldkit.jobs.counting import current_results, result_count
-
     for r in current_results(link):
         by_nm.setdefault(round(r.wavelength_nm, 1), []).append(
             ChartPoint(r.fibre, r.direction, r.loss_db, r.limit_db, result_count(link, r))
@@ -415,8 +417,6 @@ def _charts(link: Link) -> list[Chart]:
 
 
 def _results_table(link: Link, labels: ReferenceLabels, ctx: ReportContext, used: _Used) -> Table:
-    from fieldkit.jobs.counting import current_results, result_count
-
     table = Table(
         [
             "Fibre",
@@ -473,8 +473,6 @@ def _results_matrix(link: Link, labels: ReferenceLabels, used: _Used) -> Table:
     """The link's current results as one row per fibre and direction, the wavelengths side by
     side (loss, margin, result): a 12-fibre link at two wavelengths takes 12 rows, not 24.
     Who and when are in Appendix A."""
-    from fieldkit.jobs.counting import current_results, result_count
-
     results = current_results(link)
     wavelengths = sorted({round(r.wavelength_nm, 1) for r in results})
     limits: dict[float, set[float | None]] = {}
