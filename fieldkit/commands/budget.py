@@ -13,6 +13,7 @@ from typing import Any
 
 from fieldkit.commands.common import (
     CommandError,
+    RenamedOption,
     add_data_dir,
     plain_text,
     print_json,
@@ -26,24 +27,26 @@ def add_link_options(parser: argparse.ArgumentParser, *, fibre_alias: bool = Fal
     """The options that describe a link (fibre, length, connections, splices, components,
     margin). Wavelengths are left to the command (``--wavelength``).
 
-    The fibre type is ``--fiber`` or ``--fibre-type`` (``dest="fibre_type"``), so a command
-    with its own ``--fibre N`` (a fibre number) can take these options too; ``fibre_alias``
-    also accepts ``--fibre TYPE`` where no such clash exists.
+    The fibre type is ``--fibre-type`` (``dest="fibre_type"``) in every command: ``--fibre``
+    is a fibre number wherever it appears. The old spelling ``--fiber`` (and, in a command with
+    no fibre number, ``--fibre TYPE`` when ``fibre_alias`` is set) stops with a message naming
+    ``--fibre-type``.
     """
     group = parser.add_argument_group("the link")
-    names = ("--fiber", "--fibre-type", "--fibre") if fibre_alias else ("--fiber", "--fibre-type")
     group.add_argument(
-        *names,
+        "--fibre-type",
         dest="fibre_type",
         metavar="TYPE",
         help="fibre type from the presets, e.g. OS2, OM4, G.652.D "
         "('fieldkit presets fibres' lists them)",
     )
+    old = ("--fiber", "--fibre") if fibre_alias else ("--fiber",)
+    group.add_argument(*old, dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type")
     group.add_argument(
         "--attenuation",
         action="append",
         metavar="COEF",
-        help="instead of --fiber: attenuation with its length unit, e.g. "
+        help="instead of --fibre-type: attenuation with its length unit, e.g. "
         "'0.35 dB/km' (every wavelength) or '1310=0.35 dB/km' (repeat per "
         "wavelength)",
     )
@@ -127,7 +130,7 @@ def spec_from_args(args: argparse.Namespace) -> dict[str, Any]:
         used = [
             flag
             for flag, d in (
-                ("--fiber", "fibre_type"),
+                ("--fibre-type", "fibre_type"),
                 ("--attenuation", "attenuation"),
                 ("--length", "length"),
             )
@@ -144,9 +147,9 @@ def spec_from_args(args: argparse.Namespace) -> dict[str, Any]:
     fibre = getattr(args, "fibre_type", None)
     attenuation: list[str] = getattr(args, "attenuation", None) or []
     if fibre and attenuation:
-        raise CommandError("give --fiber or --attenuation, not both")
+        raise CommandError("give --fibre-type or --attenuation, not both")
     if not fibre and not attenuation:
-        raise CommandError("give --fiber TYPE or --attenuation COEF")
+        raise CommandError("give --fibre-type TYPE or --attenuation COEF")
     segment: dict[str, Any] = {"length": args.length}
     if fibre:
         segment["fibre"] = fibre

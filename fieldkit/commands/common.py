@@ -28,6 +28,32 @@ class StartUi:
     start_mode: str | None = None
 
 
+class RenamedOption(argparse.Action):
+    """An option whose name changed: using the old name stops with one line naming the new one.
+
+    ``--fibre`` is a fibre number in every command; a fibre type is ``--fibre-type``. The old
+    spellings of the type option (``--fiber``, and ``--fibre TYPE`` in ``budget`` and
+    ``locate``) are refused with this message rather than guessed.
+    """
+
+    def __init__(self, option_strings: list[str], dest: str, *, new: str, **kwargs: Any) -> None:
+        kwargs.setdefault("help", argparse.SUPPRESS)
+        super().__init__(option_strings, dest, nargs="?", **kwargs)
+        self.new = new
+
+    def __call__(
+        self,
+        parser: argparse.ArgumentParser,
+        namespace: argparse.Namespace,
+        values: Any,
+        option_string: str | None = None,
+    ) -> None:
+        parser.error(
+            f"{option_string} is now {self.new} (a fibre type, e.g. {self.new} OS2); "
+            "--fibre is a fibre number"
+        )
+
+
 def add_data_dir(parser: argparse.ArgumentParser) -> None:
     """``--data-dir`` on a subcommand too, so it may follow the command name."""
     parser.add_argument(

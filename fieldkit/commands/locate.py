@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING, Any
 
 from fieldkit.commands.common import (
     CommandError,
+    RenamedOption,
     add_data_dir,
     plain_text,
     print_json,
@@ -45,14 +46,16 @@ def register(subparsers: Any) -> None:
     )
     index.add_argument("--ior", metavar="N", help="the fibre's group index, typed")
     index.add_argument(
-        "--fiber",
-        "--fibre",
-        dest="fiber",
+        "--fibre-type",
+        dest="fibre_type",
         metavar="TYPE",
         help="a fibre preset (e.g. G.652.D, OS2, OM3) giving the group index",
     )
     index.add_argument(
-        "--wavelength", metavar="NM", help="the OTDR wavelength for --fiber, e.g. 1550"
+        "--fiber", "--fibre", dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type"
+    )
+    index.add_argument(
+        "--wavelength", metavar="NM", help="the OTDR wavelength for --fibre-type, e.g. 1550"
     )
     route = parser.add_argument_group("cable and route")
     route.add_argument("--helix", metavar="PCT", help="helix / excess fibre length, percent")
@@ -241,17 +244,17 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
 
         distance_m = otdr_distance_m(args.distance, "distance")
     time_s = parse(args.time, Kind.TIME, what="time").to("s") if args.time else None
-    if args.ior and args.fiber:
-        raise CommandError("give either --ior or --fiber, not both")
+    if args.ior and args.fibre_type:
+        raise CommandError("give either --ior or --fibre-type, not both")
     group_index: float | None = None
     library = None
     if args.ior:
         group_index = _number(args.ior, "ior")
-    elif args.fiber:
+    elif args.fibre_type:
         if not args.wavelength:
-            raise CommandError("--fiber needs --wavelength (the OTDR's wavelength in nm)")
+            raise CommandError("--fibre-type needs --wavelength (the OTDR's wavelength in nm)")
         library = _presets(args)
-        fibre = library.find("fibres", args.fiber)
+        fibre = library.find("fibres", args.fibre_type)
         wavelength_nm = parse(
             args.wavelength, Kind.LENGTH, default_unit="nm", what="wavelength"
         ).to("nm")
@@ -261,7 +264,7 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
             "typical (fibre preset)."
         )
     elif args.wavelength:
-        raise CommandError("--wavelength goes with --fiber")
+        raise CommandError("--wavelength goes with --fibre-type")
     index_set = _number(args.ior_set, "ior-set") if args.ior_set else None
     if args.helix and args.cable:
         raise CommandError("give either --helix or --cable, not both")
@@ -331,7 +334,7 @@ def build_input(args: argparse.Namespace) -> tuple[LocateInput, dict[str, Any], 
         "time": args.time,
         "ior_set": args.ior_set,
         "ior": args.ior,
-        "fiber": args.fiber,
+        "fibre": args.fibre_type,
         "wavelength": args.wavelength,
         "helix": args.helix,
         "cable": args.cable,

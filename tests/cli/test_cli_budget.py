@@ -25,7 +25,7 @@ def test_json_contract_and_worked_example():
     # TIA-568.3-D 0.75 dB, 6 fusion splices at 0.3 dB:
     # 4.0 + 3.0 + 1.8 = 8.8 dB at 1310 and at 1550 nm; margin 3 dB -> 11.8 dB
     data = budget_json(
-        "--fiber",
+        "--fibre-type",
         "OS2",
         "--length",
         "10 km",
@@ -50,7 +50,7 @@ def test_application_and_transceiver_in_json():
     # OS2 8 km: 3.2 + 1.5 (2 pairs) = 4.7 dB; headroom 1.5 dB; 2000 m of reach left.
     # Typed levels Tx −8.2..+0.5, Rx −14.4 / +0.5: margin −8.2 − 4.7 + 14.4 = 1.5 dB.
     data = budget_json(
-        "--fiber",
+        "--fibre-type",
         "OS2",
         "--length",
         "8km",
@@ -77,7 +77,7 @@ def test_application_and_transceiver_in_json():
 def test_pon_budget_adds_the_application_wavelengths():
     # GPON (ITU-T G.984.2) works at 1310 and 1490 nm: both are in the result.
     data = budget_json(
-        "--fiber",
+        "--fibre-type",
         "G.652.D",
         "--length",
         "12 km",
@@ -164,7 +164,9 @@ def test_link_file_json(tmp_path: Path):
 
 
 def test_text_output_has_the_breakdown():
-    result = run("budget", "--fiber", "OM4", "--length", "100m", "--application", "40GBASE-SR4")
+    result = run(
+        "budget", "--fibre-type", "OM4", "--length", "100m", "--application", "40GBASE-SR4"
+    )
     assert result.returncode == 0, result.stderr
     # OM4 100 m × 3.0 dB/km (ANSI/TIA-568.3-D, from memory) = 0.30 dB + 2 × 0.75 = 1.80 dB, over
     # the 40GBASE-SR4 OM4 row's 1.5 dB (IEEE 802.3 Clause 86, from memory) by 0.30 dB
@@ -182,7 +184,7 @@ def test_cli_and_workspace_print_the_same_check_lines():
 
     result = run(
         "budget",
-        "--fiber",
+        "--fibre-type",
         "OS2",
         "--length",
         "10km",
@@ -209,26 +211,29 @@ def test_cli_and_workspace_print_the_same_check_lines():
 @pytest.mark.parametrize(
     ("args", "message"),
     [
-        (("--fiber", "OS2", "--length=-5km"), "negative"),
+        (("--fibre-type", "OS2", "--length=-5km"), "negative"),
         (("--attenuation", "0.35", "--length", "5km", "--wavelength", "1310"), "no length unit"),
-        (("--fiber", "OM9", "--length", "5km"), "unknown fibre 'OM9'"),
+        (("--fibre-type", "OM9", "--length", "5km"), "unknown fibre 'OM9'"),
         (
-            ("--fiber", "OS2", "--length", "5km", "--application", "100BASE-Q"),
+            ("--fibre-type", "OS2", "--length", "5km", "--application", "100BASE-Q"),
             "unknown application",
         ),
-        (("--fiber", "OS2", "--length", "NaN km"), "not a number"),
-        (("--fiber", "OS2", "--length", "500"), "needs a unit"),
-        (("--fiber", "OM3", "--length", "1km", "--wavelength", "1550"), "no maximum attenuation"),
-        (("--fiber", "OS2", "--length", "1km", "--tx-min", "-3"), "needs all four"),
-        (("--fiber", "OS2", "--length", "1km", "--connectors", "2.5"), "not a whole number"),
-        (("--fiber", "OS2", "--length", "1km", "--splitter", "1x1"), "fewer than 2 outputs"),
-        (("--fiber", "OS2", "--length", "1km", "--margin", "inf"), "infinity"),
+        (("--fibre-type", "OS2", "--length", "NaN km"), "not a number"),
+        (("--fibre-type", "OS2", "--length", "500"), "needs a unit"),
+        (
+            ("--fibre-type", "OM3", "--length", "1km", "--wavelength", "1550"),
+            "no maximum attenuation",
+        ),
+        (("--fibre-type", "OS2", "--length", "1km", "--tx-min", "-3"), "needs all four"),
+        (("--fibre-type", "OS2", "--length", "1km", "--connectors", "2.5"), "not a whole number"),
+        (("--fibre-type", "OS2", "--length", "1km", "--splitter", "1x1"), "fewer than 2 outputs"),
+        (("--fibre-type", "OS2", "--length", "1km", "--margin", "inf"), "infinity"),
         (
             (
                 "--length",
                 "1km",
             ),
-            "--fiber TYPE or --attenuation",
+            "--fibre-type TYPE or --attenuation",
         ),
     ],
 )
@@ -258,7 +263,7 @@ def test_budget_saved_onto_a_job_shows_in_its_export(tmp_path: Path):
     job_id = json.loads(made.stdout)["id"]
     saved = run(
         "budget",
-        "--fiber",
+        "--fibre-type",
         "OS2",
         "--length",
         "10km",
@@ -286,7 +291,7 @@ def test_budget_saved_onto_a_job_shows_in_its_export(tmp_path: Path):
     assert budget["by"] == "ana"
     export = run("jobs", "export", job_id, "--format", "md", "--data-dir", data_dir)
     assert export.returncode == 0, export.stderr
-    assert "loss budget" in export.stdout
+    assert "loss budget" in export.stdout.lower()
     assert "4 mated connector pairs × 0.75 dB" in export.stdout
 
 
@@ -332,3 +337,23 @@ def test_presets_check_a_file_before_use(tmp_path: Path):
     assert result.returncode == 2
     assert "'method' must be fusion or mechanical, not 'laser'" in result.stdout
     assert len(result.stderr.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize(
+    "argv",
+    [
+        ("budget", "--fiber", "OS2", "--length", "1km"),
+        ("budget", "--fibre", "OS2", "--length", "1km"),
+        ("locate", "--distance", "3.4 km", "--fiber", "G.652.D", "--wavelength", "1550"),
+        ("locate", "--distance", "3.4 km", "--fibre", "G.652.D", "--wavelength", "1550"),
+    ],
+)
+def test_a_fibre_type_is_fibre_type_and_the_old_spellings_say_so(argv):
+    # --fibre is a fibre number wherever it appears (loss, meter record, splice, trace); a
+    # fibre type is --fibre-type: the old spellings stop with one line naming the new option
+    result = run(*argv)
+    assert result.returncode == 2
+    assert "is now --fibre-type" in result.stderr
+    assert "--fibre is a fibre number" in result.stderr
+    fixed = ["--fibre-type" if a in ("--fiber", "--fibre") else a for a in argv]
+    assert run(*fixed).returncode == 0

@@ -55,13 +55,13 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (("levels", "1e308", "1e308"), ("too large",)),
         (("levels", "5 dBm", "--gain", "1e308"), ("too large",)),
         (("levels", "5 dBm", "--loss", "3 km"), ("length",)),
-        (("budget", "--fiber", "OS2", "--length", "-5km"), ("negative",)),
-        (("budget", "--fiber", "OS2", "--length", "5 dBm"), ("power",)),
-        (("budget", "--fiber", "NOPE", "--length", "5km"), ("NOPE",)),
-        (("budget", "--fiber", "../../etc/passwd", "--length", "5km"), ("unknown fibre",)),
-        (("budget", "--fiber", "OS2", "--length", "5km", "--connectors", "2.5"), ("whole",)),
-        (("budget", "--fiber", "OS2", "--length", "5km", "--splitter", "1x0"), ("outputs",)),
-        (("budget", "--fiber", "OS2", "--length", "5km", "--wavelength", "1311"), ("1311",)),
+        (("budget", "--fibre-type", "OS2", "--length", "-5km"), ("negative",)),
+        (("budget", "--fibre-type", "OS2", "--length", "5 dBm"), ("power",)),
+        (("budget", "--fibre-type", "NOPE", "--length", "5km"), ("NOPE",)),
+        (("budget", "--fibre-type", "../../etc/passwd", "--length", "5km"), ("unknown fibre",)),
+        (("budget", "--fibre-type", "OS2", "--length", "5km", "--connectors", "2.5"), ("whole",)),
+        (("budget", "--fibre-type", "OS2", "--length", "5km", "--splitter", "1x0"), ("outputs",)),
+        (("budget", "--fibre-type", "OS2", "--length", "5km", "--wavelength", "1311"), ("1311",)),
         (("budget", "--attenuation", "0.35", "--length", "5km"), ("length unit",)),
         (("loss", "--reference", "-7", "--reading", "0 mW"), ("logarithm",)),
         (("loss", "--reference", "-7", "--reading", "-9", "--method", "bogus"), ("method",)),
@@ -102,7 +102,7 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         (
             (
                 "budget",
-                "--fiber",
+                "--fibre-type",
                 "OS2",
                 "--length",
                 "1km",
@@ -126,11 +126,11 @@ def assert_refused(result: subprocess.CompletedProcess[str], *words: str) -> Non
         # an empty option (an unset shell variable) used to be dropped: all units, no check
         (("convert", "5 dBm", "--to", ""), ("no unit",)),
         (
-            ("budget", "--fiber", "OS2", "--length", "1km", "--application", ""),
+            ("budget", "--fibre-type", "OS2", "--length", "1km", "--application", ""),
             ("--application", "empty"),
         ),
         (
-            ("budget", "--fiber", "OS2", "--length", "1km", "--transceiver", " "),
+            ("budget", "--fibre-type", "OS2", "--length", "1km", "--transceiver", " "),
             ("--transceiver", "empty"),
         ),
     ],
@@ -170,7 +170,7 @@ def test_values_starting_with_a_minus_are_values(
 
 
 def test_a_negative_length_typed_without_a_space_is_refused_as_negative() -> None:
-    assert_refused(run("budget", "--fiber", "OS2", "--length", "-5km"), "negative")
+    assert_refused(run("budget", "--fibre-type", "OS2", "--length", "-5km"), "negative")
 
 
 # -- link description files for `fieldkit budget FILE` ---------------------------------------
@@ -270,7 +270,7 @@ def test_a_deeply_nested_user_preset_file_is_a_problem_not_a_crash(
     assert "folder.toml: cannot be read" in listing.stdout
     assert "nonutf8.toml: is not UTF-8 text" in listing.stdout
     # the shipped presets still load and a budget still computes
-    result = run("budget", "--fiber", "OS2", "--length", "5km", "--json")
+    result = run("budget", "--fibre-type", "OS2", "--length", "5km", "--json")
     assert result.returncode == 0, result.stderr
     check = run("presets", "--check", str(presets / "deep.toml"))
     assert_refused(check, "1 problem")
@@ -405,7 +405,7 @@ def test_a_deeply_nested_job_file_is_quarantined_and_the_rest_list(
 @pytest.mark.parametrize(
     "args",
     [
-        ("budget", "--fiber", "OS2", "--length", "5km", "--job", "1a", "--link", "L"),
+        ("budget", "--fibre-type", "OS2", "--length", "5km", "--job", "1a", "--link", "L"),
         ("locate", "--distance", "1km", "--ior", "1.468", "--job", "1a", "--link", "L"),
         ("reference", "--level", "-7", "--wavelength", "1310", "--job", "1a", "--link", "L"),
         ("jobs", "new", "x"),
@@ -461,7 +461,7 @@ def read_only_jobs(isolated_dirs: dict[str, Path]) -> Iterator[tuple[str, Path]]
         ("jobs", "note", "{id}", "hello"),
         ("jobs", "done", "{id}"),
         ("jobs", "new", "another"),
-        ("budget", "--fiber", "OS2", "--length", "5km", "--job", "{id}", "--link", "L"),
+        ("budget", "--fibre-type", "OS2", "--length", "5km", "--job", "{id}", "--link", "L"),
         ("reference", "--level", "-7", "--wavelength", "1310", "--job", "{id}", "--link", "L"),
         ("locate", "--distance", "1km", "--ior", "1.468", "--job", "{id}", "--link", "L"),
     ],
@@ -492,7 +492,9 @@ def test_a_broken_user_override_is_named_when_the_shipped_preset_is_used(
         'source = "datasheet"\n',
         encoding="utf-8",
     )
-    result = run("budget", "--fiber", "OS2", "--length", "5km", "--wavelength", "1310", "--json")
+    result = run(
+        "budget", "--fibre-type", "OS2", "--length", "5km", "--wavelength", "1310", "--json"
+    )
     assert result.returncode == 0, result.stderr
     lines = result.stderr.strip().splitlines()
     assert len(lines) == 1, result.stderr
@@ -500,13 +502,13 @@ def test_a_broken_user_override_is_named_when_the_shipped_preset_is_used(
     # the shipped OS2 was used: 0.4 dB/km max at 1310 nm (presets/fibres.toml) × 5 km = 2.0 dB
     items = json.loads(result.stdout)["wavelengths"][0]["items"]
     assert items[0]["loss_db"] == pytest.approx(2.0, abs=1e-9)
-    located = run("locate", "--distance", "1 km", "--fiber", "OS2", "--wavelength", "1310")
+    located = run("locate", "--distance", "1 km", "--fibre-type", "OS2", "--wavelength", "1310")
     assert located.returncode == 0, located.stderr
     assert "my-fibres.toml" in located.stderr
 
 
 def test_good_presets_give_no_warning() -> None:
-    result = run("budget", "--fiber", "OS2", "--length", "5km")
+    result = run("budget", "--fibre-type", "OS2", "--length", "5km")
     assert result.returncode == 0
     assert result.stderr == ""
 
@@ -527,7 +529,7 @@ _NOT_UTF8 = os.fsdecode(b"\xff")
         (("jobs", "new", "ok", "--site", "x\ty"), ("site", "U+0009")),
         (("jobs", "new", "ok", "--by", "\x1b[2J"), ("by", "U+001B")),
         (
-            ("budget", "--fiber", "OS2", "--length", "1km", "--job", "{id}", "--link", "a\nb"),
+            ("budget", "--fibre-type", "OS2", "--length", "1km", "--job", "{id}", "--link", "a\nb"),
             ("link", "U+000A"),
         ),
         (

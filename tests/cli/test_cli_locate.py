@@ -57,7 +57,7 @@ def test_rescale_helix_and_fibre_preset() -> None:
         "3.412 km",
         "--ior-set",
         "1.47",
-        "--fiber",
+        "--fibre-type",
         "G.652.D",
         "--wavelength",
         "1550",
@@ -159,7 +159,10 @@ def test_list_cables() -> None:
         (("--ior", "1.468"), "either --distance or --time"),
         (("--distance", "100 m", "--ior", "1.468", "--landmark", "x:3"), "NAME:OTDR_DISTANCE"),
         (("--distance", "100 m", "--ior", "1.468", "--from-b", "50"), "both --from-b and --total"),
-        (("--distance", "100 m", "--fiber", "OS2", "--wavelength", "850"), "no group index at 850"),
+        (
+            ("--distance", "100 m", "--fibre-type", "OS2", "--wavelength", "850"),
+            "no group index at 850",
+        ),
         (("--distance", "100 m", "--ior", "1.468", "--cable", "none such"), "unknown cable"),
     ],
 )

@@ -124,7 +124,7 @@ def test_budget_saved_onto_a_link_keeps_its_checks(job) -> None:
     # 1600 ps/nm (common practice).
     store, job_id, data = job
     saved = run(
-        "budget", "--fiber", "G.652.D", "--length", "40km", "--wavelength", "1550",
+        "budget", "--fibre-type", "G.652.D", "--length", "40km", "--wavelength", "1550",
         "--transceiver", "generic 1550 nm 80 km", "--job", job_id, "--link", "FEED",
         "--data-dir", data,
     )  # fmt: skip

@@ -273,7 +273,7 @@ async def test_open_a_budget_saved_from_the_cli(tmp_path: Path):
         parser.add_argument(flag)
     args = parser.parse_args(
         [
-            "--fiber",
+            "--fibre-type",
             "G.652.D",
             "--length",
             "12 km",

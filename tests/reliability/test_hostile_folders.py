@@ -320,7 +320,7 @@ def test_special_files_in_the_user_presets_folder_are_reported(tmp_path: Path, k
     shown = result.stdout + result.stderr
     assert "mine.toml" in shown and "not a regular file" in shown
     result = fieldkit(
-        "budget", "--fiber", "OS2", "--length", "1km", data=tmp_path / "data", config=config
+        "budget", "--fibre-type", "OS2", "--length", "1km", data=tmp_path / "data", config=config
     )
     assert result.returncode == 0, result.stderr
 

@@ -193,7 +193,7 @@ def test_link_options_fit_beside_a_meter_command(isolated_dirs):
             "span 1",
             "--wavelength",
             "1310",
-            "--fiber",
+            "--fibre-type",
             "OS2",
             "--length",
             "10 km",
