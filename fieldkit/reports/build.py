@@ -1160,7 +1160,7 @@ def _legend(used: _Used) -> Legend:
                 "OTDR events",
                 "splice (non-reflective), reflective (a connector or a break), gainer (a splice "
                 "reading a gain one way: judge it on the average of both directions), end (the "
-                "fibre's end); A<->B: both directions averaged (ITU-T G.650.3)",
+                "fibre's end); A<->B: both directions averaged",
             )
         )
     entries.append(

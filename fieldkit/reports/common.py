@@ -72,7 +72,10 @@ def zone_words(job_times: list[datetime], ctx: ReportContext) -> str:
     if not seen:
         now = local(datetime.now().astimezone(), ctx)
         seen[zone_name(now)] = ""
-    parts = [f"{name} ({off})" if off and off != name else name for name, off in seen.items()]
+    parts = [
+        f"{name} ({off})" if off and off != name and name != "UTC" else name
+        for name, off in seen.items()
+    ]
     return "local time, " + " and ".join(parts)
 
 

@@ -540,3 +540,10 @@ def test_sources_are_one_per_row_with_where_they_were_used() -> None:
     rows = [line for line in sources.splitlines() if line.startswith("| ")][2:]
     assert rows and not any(row.split(" | ")[0].endswith(":") for row in rows)  # no headings
     assert re.search(r"\| A: OTDR limits at 1550 nm from \w+ \|", sources)
+
+
+@pytest.mark.parametrize("made", [sample, _traced_job], ids=["sample", "traced"])
+def test_no_standard_is_cited_in_the_body(made) -> None:
+    body = body_of(export(made(), "md", ctx()))
+    for cited in ("ITU-T", "IEC ", "IEEE", "TIA-", "(from memory)", "common practice"):
+        assert cited not in body, cited
