@@ -265,3 +265,25 @@ def test_a_saved_budget_keeps_bandwidth_and_cut_off_rows() -> None:
     [at850] = [c for c in rows if c.kind == "modal bandwidth" and c.wavelength_nm == 850.0]
     assert at850.value == 350.0 and at850.limit == pytest.approx(323.23, abs=0.01)
     assert at850.verdict == "fail" and at850.unit == "m"
+
+
+def test_two_laptops_hand_off_their_traces_and_the_latest_counts(traced) -> None:
+    # merging is by id (jobs/handoff.py): each laptop's save of fibre 1 is kept; of two
+    # current saves of the same fibre, wavelength and direction the later one counts
+    from fieldkit.jobs.handoff import merge_job
+
+    _a, _b, p = traced
+    job = Job(name="Hand-off")
+    job.add_link("FEED")
+    mine, theirs = job.model_copy(deep=True), job.model_copy(deep=True)
+    early = pair_record(p, fibre=1, by="Ana")
+    late = pair_record(p, fibre=1, by="Jon").model_copy(
+        update={"at": early.at.replace(year=early.at.year + 1)}
+    )
+    mine.links[0].traces.append(early)
+    theirs.links[0].traces.append(late)
+    added, conflicts = merge_job(mine, theirs)
+    assert (added, conflicts) == (1, [])
+    kept_early, kept_late = mine.links[0].traces
+    assert kept_early.superseded_by == late.id and kept_late.current
+    assert merge_job(mine, theirs) == (0, [])  # a second import adds nothing
