@@ -16,7 +16,13 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from fieldkit import safety
-from fieldkit.commands.common import CommandError, add_by, add_data_dir, print_json
+from fieldkit.commands.common import (
+    CommandError,
+    RenamedOption,
+    add_by,
+    add_data_dir,
+    print_json,
+)
 
 if TYPE_CHECKING:
     from fieldkit.traces.analysis import Settings
@@ -167,8 +173,8 @@ def _common(p: argparse.ArgumentParser) -> None:
         metavar="TYPE",
         help="fibre preset giving the attenuation maximum (default G.652.D)",
     )
-    # the spelling other commands took first; hidden so that --fibre can mean a fibre number
-    lim.add_argument("--fiber", dest="fibre_type", help=argparse.SUPPRESS)
+    # the old spelling stops with one line naming --fibre-type, as in every command
+    lim.add_argument("--fiber", dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type")
     lim.add_argument(
         "--polish",
         choices=("UPC", "APC"),

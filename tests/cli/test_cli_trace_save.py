@@ -92,6 +92,7 @@ def test_folder_save_keeps_every_fibre(cable: Path, job) -> None:
     [
         (("--save",), "give --job and --link"),
         (("--fibre", "3"), "--fibre goes with --save"),
+        (("--fiber", "OS2"), "--fiber is now --fibre-type"),  # a fibre type's new name
     ],
 )
 def test_save_refusals_are_one_line_and_write_nothing(cable: Path, job, extra, message) -> None:
