@@ -4,7 +4,9 @@ Above :mod:`fieldkit.jobs` in the layer contract (pyproject.toml): it reads jobs
 drawing and the text escaping, and changes nothing. :mod:`fieldkit.actions.export` calls it
 (with the settings and the target checks).
 
-- :mod:`.build`: what a report says (summary page, one page per link, appendix);
+- :mod:`.build`: what a report says (summary page, one page per link), with :mod:`.appendix`
+  (traceability and sources), :mod:`.traces_page` (a link's OTDR traces) and :mod:`.parts`
+  (verdict and flag words, the verdict of a link and a job);
 - :mod:`.document`: the blocks it is made of; :mod:`.html`, :mod:`.markdown`: how they look;
 - :mod:`.chart`: loss per fibre against the limit as inline SVG;
 - :mod:`.checks`: stored application and transceiver checks as sentences and tables;

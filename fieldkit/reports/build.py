@@ -25,37 +25,29 @@ from fieldkit import safety
 from fieldkit.jobs.counting import (
     PRECEDENCE,
     Count,
-    Tally,
     current_results,
-    fibre_outcomes,
     link_tallies,
     open_items,
     result_count,
 )
 from fieldkit.jobs.models import (
-    FLAG_NEGATIVE_LOSS,
     FLAG_REFERENCE_IN_DOUBT,
     Job,
     Link,
     LossResult,
-    TraceRecord,
 )
 from fieldkit.jobs.reports import (
-    closure_rows,
     fmt_db,
     fmt_m,
     fmt_nm,
     margin_db,
     result_in_doubt,
-    verdict,
 )
 from fieldkit.jobs.splices import (
     closure_summary,
     current_limit,
-    fibre_words,
-    tray_map,
-    verdict_words,
 )
+from fieldkit.reports.appendix import appendix_sections
 from fieldkit.reports.checks import application_text, transceiver_text
 from fieldkit.reports.common import (
     ReferenceLabels,
@@ -67,11 +59,9 @@ from fieldkit.reports.common import (
     zone_words,
 )
 from fieldkit.reports.document import (
-    Block,
     Chart,
     ChartPoint,
     Document,
-    Drawing,
     Facts,
     Legend,
     Paragraph,
@@ -80,150 +70,32 @@ from fieldkit.reports.document import (
     Table,
     Verdict,
 )
+from fieldkit.reports.parts import (
+    FLAG_WORDS,
+    JOB_ORDER,
+    MAX_OPEN_ITEMS,
+    NOT_TESTED,
+    SIGN_STATEMENT,
+    VERDICT_MEANING,
+    VERDICT_WORD,
+    Used,
+    count_word,
+    flag_words,
+    job_verdict,
+    link_verdict,
+    running_header,
+    tally_reasons,
+    verdict_word,
+)
+from fieldkit.reports.traces_page import trace_section
 from fieldkit.settings import EQUIPMENT_WORDS, Equipment
 
-#: Verdict words, worst first (the job's order: a link not tested ranks above "no limit").
-VERDICT_WORD = {
-    Count.FAIL: "FAIL",
-    Count.REFERENCE_PROBLEM: "REFERENCE PROBLEM",
-    Count.IN_DOUBT: "IN DOUBT",
-    Count.NO_LIMIT: "NO LIMIT",
-    Count.PASS: "PASS",
-}
-NOT_TESTED = "NOT TESTED"
-#: Open items listed on the summary page; the rest are counted.
-MAX_OPEN_ITEMS = 12
-
-#: What each verdict means, for the legend.
-VERDICT_MEANING = {
-    Count.PASS: "the loss is within its limit, against a trusted reference",
-    Count.FAIL: "the loss is over its limit: repair and retest",
-    Count.REFERENCE_PROBLEM: "a negative loss (more light than at the reference): the "
-    "reference was wrong; clean, re-reference and retest",
-    Count.IN_DOUBT: "taken against a reference whose re-check drifted beyond the tolerance: "
-    "retest against a fresh reference",
-    Count.NO_LIMIT: "no limit to judge against (no budget or limit was set)",
-}
-#: Flags a result may carry, in words, and what each means.
-FLAG_WORDS = {
-    FLAG_NEGATIVE_LOSS: ("negative loss", "the reading was above the reference level"),
-    FLAG_REFERENCE_IN_DOUBT: (
-        "reference in doubt",
-        "the reference's re-check drifted beyond the tolerance before this reading",
-    ),
-}
-
-SIGN_STATEMENT = (
-    "The customer accepts the links as tested and reported above, subject to the open items "
-    "listed on the summary page."
-)
-
-
-def _flag_words(flag: str) -> str:
-    return FLAG_WORDS.get(flag, (flag.replace("-", " "), ""))[0]
-
-
-class _Used:
-    """What the report shows, so the legend lists every mark and flag used and only those."""
-
-    def __init__(self) -> None:
-        self.counts: set[Count] = set()
-        self.flags: set[str] = set()
-        self.superseded = False
-        self.not_tested = False
-        self.no_margin = False
-        self.calibration_late = False
-        self.unlisted_equipment = False
-        self.traces = False
-        self.sources: dict[str, list[str]] = {}
-
-    def source(self, text: str, where: str) -> None:
-        text = text.strip()
-        if text:
-            places = self.sources.setdefault(text, [])
-            if where not in places:
-                places.append(where)
-
-
-def link_verdict(link: Link) -> tuple[Count | None, Tally]:
-    """The worst count of the link's fibres (None: no results), and its tally."""
-    tally = Tally()
-    for row in link_tallies(link).values():
-        tally.merge(row)
-    present = {o.count for o in fibre_outcomes(link)}
-    for count in PRECEDENCE:
-        if count in present:
-            return count, tally
-    return None, tally
-
-
-#: The job's order of verdicts: None (a link not tested) between "in doubt" and "no limit".
-JOB_ORDER: tuple[Count | None, ...] = (
-    Count.FAIL,
-    Count.REFERENCE_PROBLEM,
-    Count.IN_DOUBT,
-    None,
-    Count.NO_LIMIT,
-    Count.PASS,
-)
-
-
-def job_verdict(job: Job) -> tuple[Count | None, Tally, int]:
-    """The worst of the links' verdicts, the job's tally, and how many links have no results.
-
-    A job without links or results is "not tested" (None)."""
-    tally = Tally()
-    verdicts = []
-    for link in job.links:
-        v, t = link_verdict(link)
-        verdicts.append(v)
-        tally.merge(t)
-    untested = sum(v is None for v in verdicts)
-    if not verdicts:
-        return None, tally, 0
-    for count in JOB_ORDER:
-        if count in verdicts:
-            return count, tally, untested
-    return None, tally, untested
-
-
-def verdict_word(count: Count | None) -> str:
-    return NOT_TESTED if count is None else VERDICT_WORD[count]
-
-
-def _tally_reasons(tally: Tally) -> list[str]:
-    """``1 fibre test fails``, ``5 in doubt`` ... (fibre tests: a fibre at a wavelength)."""
-
-    def n(count: int, one: str, many: str) -> str:
-        return f"{count} {one if count == 1 else many}"
-
-    out = []
-    if tally.tested:
-        out.append(
-            n(tally.tested, "fibre test counted", "fibre tests counted")
-            + " (a fibre at a wavelength)"
-        )
-    if tally.failed:
-        out.append(n(tally.failed, "fails its limit", "fail their limits"))
-    if tally.reference_problems:
-        out.append(n(tally.reference_problems, "reference problem", "reference problems"))
-    if tally.in_doubt:
-        out.append(n(tally.in_doubt, "in doubt", "in doubt"))
-    if tally.no_limit:
-        out.append(n(tally.no_limit, "without a limit", "without a limit"))
-    if tally.passed:
-        out.append(n(tally.passed, "passes", "pass"))
-    return out
+__all__ = ["JOB_ORDER", "build_document", "job_verdict", "link_verdict", "verdict_word"]
 
 
 # -- the summary page ---------------------------------------------------------------------------
-def _running_header(job: Job, ctx: ReportContext) -> str:
-    parts = [ctx.contractor, job.name, job.customer, job.site]
-    return " · ".join(p for p in parts if p)
-
-
 def _equipment_table(
-    kit: tuple[Equipment, ...], named: dict[str, str], first_test: date | None, used: _Used
+    kit: tuple[Equipment, ...], named: dict[str, str], first_test: date | None, used: Used
 ) -> Table:
     """The test equipment: the settings' list, plus ids the references name that it lacks."""
     table = Table(
@@ -300,7 +172,7 @@ def _testers(links: list[Link]) -> str:
     return ", ".join(names)
 
 
-def _summary_section(job: Job, ctx: ReportContext, used: _Used) -> Section:
+def _summary_section(job: Job, ctx: ReportContext, used: Used) -> Section:
     sec = Section("Summary", level=2, css_class="summary")
     crew = ", ".join(c for c in job.crew if c.strip())
     facts = [
@@ -315,7 +187,7 @@ def _summary_section(job: Job, ctx: ReportContext, used: _Used) -> Section:
     ]
     sec.blocks.append(Facts([(k, v) for k, v in facts if v]))
     count, tally, untested = job_verdict(job)
-    reasons = _tally_reasons(tally)
+    reasons = tally_reasons(tally)
     if untested:
         reasons.append(f"{untested} {'link has' if untested == 1 else 'links have'} no results")
     sec.blocks.append(Verdict("Job verdict", verdict_word(count), count, reasons))
@@ -416,60 +288,7 @@ def _charts(link: Link) -> list[Chart]:
     return out
 
 
-def _results_table(link: Link, labels: ReferenceLabels, ctx: ReportContext, used: _Used) -> Table:
-    table = Table(
-        [
-            "Fibre",
-            "λ nm",
-            "Dir",
-            "Loss dB",
-            "Limit dB",
-            "Margin dB",
-            "Result",
-            "Flags",
-            "Ref",
-            "By",
-            "When",
-        ],
-        numeric={0, 1, 3, 4, 5},
-        nowrap={2, 10},
-        caption=f"{link.label}: every current result, with who and when",
-    )
-    for r in current_results(link):
-        count = result_count(link, r)
-        used.counts.add(count)
-        flags = list(r.flags)
-        if result_in_doubt(link, r) and FLAG_REFERENCE_IN_DOUBT not in flags:
-            flags.append(FLAG_REFERENCE_IN_DOUBT)
-        used.flags.update(flags)
-        table.add(
-            [
-                str(r.fibre),
-                fmt_nm(r.wavelength_nm),
-                r.direction,
-                fmt_db(r.loss_db),
-                fmt_db(r.limit_db),
-                fmt_db(margin_db(r)),
-                VERDICT_WORD[count].lower() if count is not Count.FAIL else "FAIL",
-                ", ".join(_flag_words(f) for f in flags),
-                labels(r.reference_id),
-                r.by,
-                fmt_local(r.at, ctx),
-            ],
-            "fail"
-            if count is Count.FAIL
-            else "doubt"
-            if count in (Count.IN_DOUBT, Count.REFERENCE_PROBLEM)
-            else "",
-        )
-    return table
-
-
-def _count_word(count: Count) -> str:
-    return "FAIL" if count is Count.FAIL else VERDICT_WORD[count].lower()
-
-
-def _results_matrix(link: Link, labels: ReferenceLabels, used: _Used) -> Table:
+def _results_matrix(link: Link, labels: ReferenceLabels, used: Used) -> Table:
     """The link's current results as one row per fibre and direction, the wavelengths side by
     side (loss, margin, result): a 12-fibre link at two wavelengths takes 12 rows, not 24.
     Who and when are in Appendix A."""
@@ -513,8 +332,8 @@ def _results_matrix(link: Link, labels: ReferenceLabels, used: _Used) -> Table:
                 flags.append(FLAG_REFERENCE_IN_DOUBT)
             used.flags.update(flags)
             # the verdict word already says a negative loss and a doubt; other flags follow it
-            extra = [_flag_words(f) for f in flags if f not in FLAG_WORDS]
-            word = ", ".join([_count_word(count), *extra])
+            extra = [flag_words(f) for f in flags if f not in FLAG_WORDS]
+            word = ", ".join([count_word(count), *extra])
             worst.append(count)
             label = labels(r.reference_id)
             if label and label not in refs:
@@ -533,7 +352,7 @@ def _results_matrix(link: Link, labels: ReferenceLabels, used: _Used) -> Table:
     return table
 
 
-def _budget_blocks(link: Link, ctx: ReportContext, used: _Used) -> list[Paragraph | Table]:
+def _budget_blocks(link: Link, ctx: ReportContext, used: Used) -> list[Paragraph | Table]:
     b = link.budget
     if b is None:
         return []
@@ -578,7 +397,7 @@ def _figure(value: float | None, unit: str) -> str:
     return f"{value:.4g} {unit}".strip()
 
 
-def _checks_table(link: Link, used: _Used) -> Table:
+def _checks_table(link: Link, used: Used) -> Table:
     """The budget's checks beyond loss (schema 5): one row per check and wavelength."""
     b = link.budget
     table = Table(
@@ -604,12 +423,12 @@ def _checks_table(link: Link, used: _Used) -> Table:
 
 
 def _link_section(
-    job: Job, link: Link, ctx: ReportContext, labels: ReferenceLabels, used: _Used
+    job: Job, link: Link, ctx: ReportContext, labels: ReferenceLabels, used: Used
 ) -> Section:
     sec = Section(
         f"Link {link.label}",
         page_break=True,
-        running_header=_running_header(job, ctx),
+        running_header=running_header(job, ctx),
         css_class="link",
     )
     sec.blocks.append(Paragraph(_link_line(link)))
@@ -617,7 +436,7 @@ def _link_section(
     if count is None:
         used.not_tested = True
     sec.blocks.append(
-        Verdict(f"Link {link.label}", verdict_word(count), count, _tally_reasons(tally))
+        Verdict(f"Link {link.label}", verdict_word(count), count, tally_reasons(tally))
     )
     charts = _charts(link)
     sec.blocks.extend(charts)
@@ -666,127 +485,6 @@ def _link_section(
     return sec
 
 
-TRACE_VERDICT = {"pass": "pass", "fail": "FAIL", "no limit": "no limit", "in doubt": "in doubt"}
-
-
-def _trace_caption(t: TraceRecord, ctx: ReportContext) -> str:
-    nm = f" at {fmt_nm(t.wavelength_nm)} nm" if t.wavelength_nm is not None else ""
-    way = "both directions averaged" if t.direction == "A<->B" else t.direction
-    return f"Fibre {t.fibre}{nm}, {way}"
-
-
-def _trace_blocks(link: Link, t: TraceRecord, ctx: ReportContext, used: _Used) -> list[Block]:
-    """One stored trace: its drawing, a sentence of its figures and its event table."""
-    from fieldkit.traces.svg import draw_trace
-
-    out: list[Block] = []
-    caption = _trace_caption(t, ctx)
-    if t.curves:
-        curve = t.curves[0]  # a pair: A->B, with the events' distances from A
-        try:
-            drawing = draw_trace(
-                curve.pairs(),
-                [(e.number, e.distance_m, e.kind) for e in t.events],
-                length_m=t.length_m,
-            )
-        except (ValueError, IndexError):
-            drawing = ""
-        if drawing:
-            out.append(Drawing(drawing, caption))
-    facts = []
-    if t.length_m is not None:
-        facts.append(f"length {fmt_m(t.length_m)} m")
-    if t.total_loss_db is not None:
-        facts.append(f"end-to-end loss {fmt_db(t.total_loss_db)} dB")
-    if t.orl_db is not None:
-        facts.append(
-            f"optical return loss {fmt_db(t.orl_db)} dB "
-            f"({TRACE_VERDICT.get(t.orl_verdict, t.orl_verdict)})"
-        )
-    if t.pulse_width_ns is not None:
-        facts.append(f"pulse {t.pulse_width_ns:g} ns")
-    if t.group_index is not None:
-        facts.append(f"group index {t.group_index:.4f}")
-    facts.append(f"event loss by the {t.loss_method} method")
-    who = f"; by {t.by}" if t.by else ""
-    out.append(
-        Paragraph(
-            (caption if not out else "Measured")
-            + f" {fmt_local(t.at, ctx)}{who}: "
-            + "; ".join(facts)
-            + "."
-        )
-    )
-    pair = t.direction == "A<->B"
-    headers = ["No.", "At m", "Kind"]
-    headers += ["A→B", "B→A", "Average"] if pair else ["Loss"]
-    headers += ["Reflect.", "Cumul.", "Limit", "Result", "Why"]
-    n = len(headers)
-    table = Table(
-        headers,
-        numeric={0, 1, *range(3, n - 2)},
-        caption=f"{caption}: events (losses, reflectance and limits in dB)",
-    )
-    for e in t.events:
-        losses = (
-            [fmt_db(e.loss_ab_db), fmt_db(e.loss_ba_db), fmt_db(e.average_db)]
-            if pair
-            else [fmt_db(e.loss_db)]
-        )
-        why = "; ".join(x for x in (e.verdict_reason, e.note) if x)
-        table.add(
-            [
-                str(e.number),
-                fmt_m(e.distance_m),
-                e.kind,
-                *losses,
-                fmt_db(e.reflectance_db),
-                fmt_db(e.cumulative_db),
-                fmt_db(e.limit_db),
-                TRACE_VERDICT.get(e.verdict, e.verdict),
-                why,
-            ],
-            "fail" if e.verdict == "fail" else "doubt" if e.verdict == "in doubt" else "",
-        )
-    if table.rows:
-        out.append(table)
-    # "limits at 1310 nm from defaults:" heads the lines under it; each line is one source
-    head = "OTDR limits"
-    for line in t.limits.splitlines():
-        line = line.strip()
-        if line.endswith(":"):
-            head = "OTDR " + line.rstrip(":")
-        elif line:
-            used.source(line, f"{link.label}: {head}")
-    return out
-
-
-def _trace_section(job: Job, link: Link, ctx: ReportContext, used: _Used) -> Section | None:
-    current = sorted(
-        (t for t in link.traces if t.current),
-        key=lambda t: (t.wavelength_nm or 0.0, t.fibre, t.direction),
-    )
-    if not current:
-        return None
-    sec = Section(
-        f"Link {link.label}: OTDR traces",
-        page_break=True,
-        running_header=_running_header(job, ctx),
-        css_class="link traces",
-    )
-    fails = sum(any(e.verdict == "fail" for e in t.events) for t in current)
-    sec.para(
-        f"{len(current)} {'trace' if len(current) == 1 else 'traces'} kept on this link"
-        + (f"; {fails} with an event over its limit" if fails else "; no event over its limit")
-        + ". Distances from end A (a one-way B->A trace: from end B). Limits and their sources "
-        "in Appendix B."
-    )
-    used.traces = True
-    for t in current:
-        sec.blocks.extend(_trace_blocks(link, t, ctx, used))
-    return sec
-
-
 def _link_line(link: Link) -> str:
     parts = []
     if link.end_a or link.end_b:
@@ -803,307 +501,7 @@ def _link_line(link: Link) -> str:
     return text[0].upper() + text[1:] + "."
 
 
-# -- the appendix -------------------------------------------------------------------------------
-def _appendix(job: Job, ctx: ReportContext, labels: ReferenceLabels, used: _Used) -> list[Section]:
-    sec = Section(
-        "Appendix A: traceability",
-        page_break=True,
-        running_header=_running_header(job, ctx),
-        css_class="appendix",
-    )
-    ids = [("Job id", job.id)] + [(f"Link {link.label}", link.id) for link in job.links]
-    sec.blocks.append(Facts(ids))
-    refs = Table(
-        [
-            "Ref",
-            "Link",
-            "Kind",
-            "λ nm",
-            "Level dBm",
-            "Method",
-            "Drift dB",
-            "Cords",
-            "Source",
-            "Meter",
-            "By",
-            "When",
-            "In doubt since",
-            "Id",
-        ],
-        numeric={3, 4, 6},
-        nowrap={11, 12},
-        caption="References",
-    )
-    for link in job.links:
-        for ref in link.references:
-            refs.add(
-                [
-                    labels(ref.id),
-                    link.label,
-                    ref.kind,
-                    fmt_nm(ref.wavelength_nm),
-                    fmt_db(ref.level_dbm),
-                    ref.method,
-                    fmt_db(ref.drift_db),
-                    ", ".join(ref.cords),
-                    ref.source_id,
-                    ref.meter_id,
-                    ref.by,
-                    fmt_local(ref.at, ctx),
-                    fmt_local(ref.in_doubt_since, ctx),
-                    ref.id,
-                ],
-                "doubt" if ref.in_doubt_since else "",
-            )
-    refs.rows.sort(key=lambda row: int(row[0][1:]) if row[0][1:].isdigit() else 0)
-    if refs.rows:
-        refs.marks = ["doubt" if row[12] else "" for row in refs.rows]
-        sec.blocks.append(refs)
-    for link in job.links:
-        if link.results:
-            sec.blocks.append(_results_table(link, labels, ctx, used))
-    old = Table(
-        [
-            "Link",
-            "Fibre",
-            "λ nm",
-            "Dir",
-            "Loss dB",
-            "Limit dB",
-            "Result",
-            "Ref",
-            "By",
-            "When",
-            "Superseded",
-        ],
-        numeric={1, 2, 4, 5},
-        nowrap={3, 9, 10},
-        caption="Superseded results (a retest or a clearing replaced them; they do not count)",
-    )
-    for link in job.links:
-        for r in sorted(link.results, key=lambda r: (r.wavelength_nm, r.fibre, r.direction, r.at)):
-            if r.current:
-                continue
-            why = "retested" if r.superseded_by else "cleared"
-            if r.superseded_note:
-                why += f" ({r.superseded_note})"
-            old.add(
-                [
-                    link.label,
-                    str(r.fibre),
-                    fmt_nm(r.wavelength_nm),
-                    r.direction,
-                    fmt_db(r.loss_db),
-                    fmt_db(r.limit_db),
-                    verdict(r),
-                    labels(r.reference_id),
-                    r.by,
-                    fmt_local(r.at, ctx),
-                    f"{fmt_local(r.superseded_at, ctx)}, {why}",
-                ],
-                "old",
-            )
-    if old.rows:
-        sec.blocks.append(old)
-    for link in job.links:
-        b = link.budget
-        if b is not None:
-            items = Table(
-                ["λ nm", "Item", "Loss dB"],
-                numeric={0, 2},
-                caption=f"{link.label}: budget breakdown",
-            )
-            for row in b.wavelengths:
-                for item in row.items:
-                    items.add([fmt_nm(row.wavelength_nm), item.name, fmt_db(item.loss_db)])
-                typical = (
-                    f" (typical {fmt_db(row.typical_loss_db)} dB)"
-                    if row.typical_loss_db is not None
-                    else ""
-                )
-                items.add(
-                    [fmt_nm(row.wavelength_nm), "Maximum loss" + typical, fmt_db(row.loss_db)]
-                )
-            sec.blocks.append(items)
-            if link.earlier_budgets:
-                sec.para(
-                    f"{link.label}: {len(link.earlier_budgets)} earlier budget(s) replaced "
-                    "by this one.",
-                    "small",
-                )
-        sec.blocks.extend(_closure_blocks(link, ctx))
-        if link.faults:
-            faults = Table(
-                [
-                    "Fibre m",
-                    "Sheath m",
-                    "Route m",
-                    "Search from m",
-                    "Search to m",
-                    "Landmark",
-                    "Offset m",
-                    "Marking",
-                    "By",
-                    "When",
-                    "Notes",
-                ],
-                numeric={0, 1, 2, 3, 4, 6},
-                nowrap={9},
-                caption=f"{link.label}: located faults",
-            )
-            for f in link.faults:
-                faults.add(
-                    [
-                        fmt_m(f.fibre_distance_m),
-                        fmt_m(f.sheath_distance_m),
-                        fmt_m(f.route_distance_m),
-                        fmt_m(f.low_m),
-                        fmt_m(f.high_m),
-                        f.nearest_landmark or "",
-                        fmt_m(f.offset_from_landmark_m),
-                        f.marking or "",
-                        f.by,
-                        fmt_local(f.at, ctx),
-                        f.notes,
-                    ]
-                )
-            sec.blocks.append(faults)
-    old_traces = Table(
-        ["Link", "Fibre", "λ nm", "Direction", "Measured", "By", "Superseded", "Files", "Id"],
-        numeric={1, 2},
-        nowrap={3, 4, 6},
-        caption="Superseded OTDR traces (a later save of the same fibre replaced them)",
-    )
-    for link in job.links:
-        for t in link.traces:
-            if not t.current:
-                old_traces.add(
-                    [
-                        link.label,
-                        str(t.fibre),
-                        fmt_nm(t.wavelength_nm) if t.wavelength_nm is not None else "",
-                        t.direction,
-                        fmt_local(t.at, ctx),
-                        t.by,
-                        fmt_local(t.superseded_at, ctx),
-                        ", ".join(t.sources),
-                        t.id,
-                    ],
-                    "old",
-                )
-    if old_traces.rows:
-        sec.blocks.append(old_traces)
-    if job.notes:
-        notes = Table(["When", "By", "Note"], nowrap={0}, caption="Notes")
-        for note in job.notes:
-            notes.add([fmt_local(note.at, ctx), note.by, note.text])
-        sec.blocks.append(notes)
-    sec.para(
-        f"Job created {fmt_local(job.created_at, ctx)}"
-        + (f" by {job.created_by}" if job.created_by else "")
-        + f"; last saved {fmt_local(job.updated_at, ctx)} (revision {job.revision}).",
-        "small",
-    )
-
-    src = Section("Appendix B: sources", level=2, css_class="appendix")
-    used.source(
-        "IEC 61280-4-1 / IEC 61280-4-2: loss = reference level − reading, by the reference "
-        "method named with each reference",
-        "results",
-    )
-    table = Table(
-        ["Source", "Used for"], caption="Sources of the limits and figures", css_class="sources"
-    )
-    for text, places in used.sources.items():
-        table.add([text, "; ".join(places)])
-    src.blocks.append(table)
-    src.para(
-        'A source marked "(from memory)" was recalled, not read from the standard: check it '
-        "against the published text before relying on it.",
-        "small",
-    )
-    return [sec, src]
-
-
-def _closure_blocks(link: Link, ctx: ReportContext) -> list[Paragraph | Table]:
-    out: list[Paragraph | Table] = []
-    for closure in link.closures:
-        where = []
-        if closure.route_distance_m is not None:
-            where.append(f"route {fmt_m(closure.route_distance_m)} m")
-        if closure.landmark:
-            where.append(closure.landmark)
-        head = f"{link.label}, closure {closure.name}" + (f" ({'; '.join(where)})" if where else "")
-        out.append(Paragraph(head + ": " + closure_summary(closure, link.splice_limits) + "."))
-        for cable in closure.cables:
-            count = (
-                f"{cable.fibre_count} fibres" if cable.fibre_count else "fibre count not recorded"
-            )
-            tube = f", {cable.per_tube} a tube" if cable.per_tube else ""
-            kind = f", {cable.fibre_type}" if cable.fibre_type else ""
-            out.append(
-                Paragraph(
-                    f"Cable {cable.name}: {count}{tube}{kind}, colour code "
-                    f"{cable.colour_sequence} (TIA-598 words).",
-                    "small",
-                )
-            )
-        trays = tray_map(closure)
-        if trays:
-            out.append(Paragraph("Tray map: " + "; ".join(trays) + ".", "small"))
-        if closure.plan_source:
-            out.append(Paragraph(f"Splice plan: {closure.plan_source}.", "small"))
-        if closure.notes:
-            out.append(Paragraph(f"Notes: {closure.notes}", "small"))
-        table = Table(
-            [
-                "Fibre A",
-                "Fibre B",
-                "Tray/slot",
-                "Method",
-                "Estimate dB",
-                "A→B dB",
-                "B→A dB",
-                "Average dB",
-                "Result",
-                "Notes",
-                "By",
-                "When",
-            ],
-            numeric={4, 5, 6, 7},
-            nowrap={2, 11},
-            caption=f"Closure {closure.name}: splice log (failures first)",
-        )
-        for sp, j, old in closure_rows(link, closure):
-            notes = "; ".join(j.warnings_without_mismatch()) if not old else ""
-            if sp.notes:
-                notes = f"{sp.notes}; {notes}" if notes else sp.notes
-            place = "/".join(str(n) if n is not None else "-" for n in (sp.tray, sp.slot))
-            table.add(
-                [
-                    f"{sp.cable_a} "
-                    + fibre_words(closure.cable(sp.cable_a), sp.fibre_a, short=True),
-                    f"{sp.cable_b} "
-                    + fibre_words(closure.cable(sp.cable_b), sp.fibre_b, short=True),
-                    place if (sp.tray or sp.slot) else "",
-                    sp.method,
-                    fmt_db(sp.estimate_db),
-                    fmt_db(sp.loss_ab_db),
-                    fmt_db(sp.loss_ba_db),
-                    fmt_db(j.average_db),
-                    "superseded (re-spliced)" if old else verdict_words(j),
-                    notes,
-                    sp.by,
-                    fmt_local(sp.at, ctx),
-                ],
-                "old" if old else "fail" if j.verdict == "fail" else "",
-            )
-        if table.rows:
-            out.append(table)
-    return out
-
-
-def _legend(used: _Used) -> Legend:
+def _legend(used: Used) -> Legend:
     entries: list[tuple[str, str]] = []
     for count in PRECEDENCE:
         entries.append(
@@ -1176,16 +574,16 @@ def _legend(used: _Used) -> Legend:
 def build_document(job: Job, ctx: ReportContext | None = None) -> Document:
     """The customer report of ``job`` as a :class:`Document`."""
     ctx = ctx or ReportContext()
-    used = _Used()
+    used = Used()
     labels = ReferenceLabels(job)
     summary = _summary_section(job, ctx, used)
     links: list[Section] = []
     for link in job.links:
         links.append(_link_section(job, link, ctx, labels, used))
-        traces = _trace_section(job, link, ctx, used)
+        traces = trace_section(job, link, ctx, used)
         if traces is not None:
             links.append(traces)
-    appendix = _appendix(job, ctx, labels, used)
+    appendix = appendix_sections(job, ctx, labels, used)
     first = min((r.at for link in job.links for r in link.results), default=None)
     summary.blocks.append(
         _equipment_table(
