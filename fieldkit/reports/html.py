@@ -72,8 +72,8 @@ dl.legend dt { font-weight: bold; white-space: nowrap; } dl.legend dd { margin: 
 .signature table { font-size: 8.5pt; margin: .2em 0 0; table-layout: fixed; }
 .signature td { border: none; border-bottom: 1px solid #555; height: 2.1em;
                 vertical-align: bottom; }
-.signature td.label { border: none; font-weight: bold; width: 6.5em; }
-.signature td.label.wide { width: 10em; }
+.signature td.label { border: none; font-weight: bold; width: 6.5em; white-space: nowrap; }
+.signature td.label.wide { width: 11em; }
 section.page, article.page { break-before: page; page-break-before: always; }
 table.sources td:first-child { width: 64%; }
 figure.trace { margin: .4em 0 0; break-inside: avoid; }
