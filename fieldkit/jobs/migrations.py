@@ -32,37 +32,36 @@ class MigrationError(ValueError):
     """A file claims a version we can migrate but its content does not fit that version."""
 
 
+def _objects(items: Any, what: str) -> list[dict[str, Any]]:
+    """Copies of the objects of a list in a job dict (absent or null: none); one that is not
+    an object is refused, ``what`` naming it ("a link")."""
+    out = []
+    for item in items or []:
+        if not isinstance(item, dict):
+            raise MigrationError(f"{what} is not an object")
+        out.append(dict(item))
+    return out
+
+
 def _v1_to_v2(data: dict[str, Any]) -> dict[str, Any]:
     out = dict(data)
     crew = out.get("crew", "")
     if isinstance(crew, str):
         out["crew"] = [name.strip() for name in crew.split(",") if name.strip()]
-    notes = []
-    for note in out.get("notes", []) or []:
-        if not isinstance(note, dict):
-            raise MigrationError("a note is not an object")
-        note = dict(note)
+    notes = _objects(out.get("notes"), "a note")
+    for note in notes:
         if "author" in note:
             note["by"] = note.pop("author")
-        notes.append(note)
     out["notes"] = notes
     out.setdefault("revision", 0)
-    links = []
-    for link in out.get("links", []) or []:
-        if not isinstance(link, dict):
-            raise MigrationError("a link is not an object")
-        link = dict(link)
-        results = []
-        for result in link.get("results", []) or []:
-            if not isinstance(result, dict):
-                raise MigrationError("a result is not an object")
-            result = dict(result)
+    links = _objects(out.get("links"), "a link")
+    for link in links:
+        results = _objects(link.get("results"), "a result")
+        for result in results:
             result["direction"] = {"AB": "A->B", "BA": "B->A"}.get(
                 result.get("direction", "AB"), result.get("direction")
             )
-            results.append(result)
         link["results"] = results
-        links.append(link)
     out["links"] = links
     out["schema_version"] = 2
     return out
@@ -81,11 +80,8 @@ _ESTIMATE_FIELDS = {
 
 def _v2_to_v3(data: dict[str, Any]) -> dict[str, Any]:
     out = dict(data)
-    links = []
-    for link in out.get("links", []) or []:
-        if not isinstance(link, dict):
-            raise MigrationError("a link is not an object")
-        link = dict(link)
+    links = _objects(out.get("links"), "a link")
+    for link in links:
         old = link.pop("splices", None) or []
         if not isinstance(old, list):
             raise MigrationError("a link's splices are not a list")
@@ -133,7 +129,6 @@ def _v2_to_v3(data: dict[str, Any]) -> dict[str, Any]:
                     **first_at,
                 },
             ]
-        links.append(link)
     out["links"] = links
     out["schema_version"] = 3
     return out
@@ -148,65 +143,50 @@ def _v3_to_v4(data: dict[str, Any]) -> dict[str, Any]:
     budgets) starts empty.
     """
     out = dict(data)
-    links = []
-    for link in out.get("links", []) or []:
-        if not isinstance(link, dict):
-            raise MigrationError("a link is not an object")
-        link = dict(link)
-        results = [dict(r) if isinstance(r, dict) else r for r in link.get("results", []) or []]
+    links = _objects(out.get("links"), "a link")
+    for link in links:
+        results = _objects(link.get("results"), "a result")
         latest: dict[tuple[Any, Any, Any], dict[str, Any]] = {}
         for result in results:
-            if not isinstance(result, dict):
-                raise MigrationError("a result is not an object")
-            wavelength = result.get("wavelength_nm")
-            key = (
-                result.get("fibre"),
-                round(wavelength, 1) if isinstance(wavelength, int | float) else wavelength,
-                result.get("direction", "A->B"),
-            )
-            best = latest.get(key)
+            best = latest.get(_result_key(result))
             if best is None or str(result.get("at", "")) >= str(best.get("at", "")):
-                latest[key] = result
+                latest[_result_key(result)] = result
         for result in results:
-            wavelength = result.get("wavelength_nm")
-            key = (
-                result.get("fibre"),
-                round(wavelength, 1) if isinstance(wavelength, int | float) else wavelength,
-                result.get("direction", "A->B"),
-            )
-            newest = latest[key]
+            newest = latest[_result_key(result)]
             if newest is not result:
                 result["superseded_at"] = newest.get("at")
                 result["superseded_by"] = newest.get("id")
         link["results"] = results
-        links.append(link)
     out["links"] = links
     out["schema_version"] = 4
     return out
+
+
+def _result_key(result: dict[str, Any]) -> tuple[Any, Any, Any]:
+    """What a retest of a result shares with it: fibre, wavelength (0.1 nm), direction."""
+    wavelength = result.get("wavelength_nm")
+    return (
+        result.get("fibre"),
+        round(wavelength, 1) if isinstance(wavelength, int | float) else wavelength,
+        result.get("direction", "A->B"),
+    )
 
 
 def _v4_to_v5(data: dict[str, Any]) -> dict[str, Any]:
     """Version 5: ``fiber_distance_m`` becomes ``fibre_distance_m``; traces and budget checks
     start empty (the models' defaults), so nothing else changes."""
     out = dict(data)
-    links = []
-    for link in out.get("links", []) or []:
-        if not isinstance(link, dict):
-            raise MigrationError("a link is not an object")
-        link = dict(link)
-        faults = []
-        for fault in link.get("faults", []) or []:
-            if not isinstance(fault, dict):
-                raise MigrationError("a located fault is not an object")
-            fault = dict(fault)
+    links = _objects(out.get("links"), "a link")
+    for link in links:
+        if "faults" not in link:
+            continue
+        faults = _objects(link["faults"], "a located fault")
+        for fault in faults:
             if "fiber_distance_m" in fault:
                 if "fibre_distance_m" in fault:
                     raise MigrationError("a located fault has both fiber_ and fibre_distance_m")
                 fault["fibre_distance_m"] = fault.pop("fiber_distance_m")
-            faults.append(fault)
-        if "faults" in link:
-            link["faults"] = faults
-        links.append(link)
+        link["faults"] = faults
     out["links"] = links
     out["schema_version"] = 5
     return out

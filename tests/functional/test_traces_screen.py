@@ -210,7 +210,7 @@ async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
             if number == 2:
                 assert "1 earlier save(s) of the same stay, marked superseded" in what
             # the fibre comes from the file name (F001): Enter saves it
-            assert dialog.query_one("#st-fibre", Input).value == "1"
+            assert dialog.query_one(".fibre-number", Input).value == "1"
             await pilot.press("enter")
             await app.workers.wait_for_complete()
             await pilot.pause()
@@ -259,7 +259,7 @@ async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Pa
         await pilot.press("enter", "enter")
         await pilot.pause()
         dialog = app.screen
-        assert isinstance(dialog, SaveTracesDialog) and not dialog.query("#st-fibre")
+        assert isinstance(dialog, SaveTracesDialog) and not dialog.query(".fibre-number")
         assert "every fibre of the folder: 1" in str(dialog.query_one("#st-what").render())
         save = dialog.query_one("#st-save")
         assert save.region.bottom <= 22 and save.region.right <= 44 and save.has_focus

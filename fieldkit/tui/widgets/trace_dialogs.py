@@ -16,6 +16,33 @@ from textual.widgets.option_list import Option
 
 from fieldkit.text.escape import terminal
 
+#: The highest fibre number the dialogs take (as ``fieldkit trace --fibre``).
+MAX_FIBRE = 10_000
+
+
+def fibre_field(value: int | None, tooltip: str) -> Horizontal:
+    """The "Fibre" row of a dialog: digits only, filled with ``value`` when known."""
+    return Horizontal(
+        Label("Fibre"),
+        Input(
+            value=str(value or ""),
+            restrict=r"[0-9]*",
+            compact=True,
+            classes="fibre-number",
+            tooltip=tooltip,
+        ),
+    )
+
+
+def typed_fibre(screen: ModalScreen[Any]) -> int | None:
+    """The fibre number typed in the dialog's "Fibre" row; None (said under it) when it is
+    empty or out of range."""
+    text = screen.query_one(".fibre-number", Input).value.strip()
+    if text and 1 <= int(text) <= MAX_FIBRE:
+        return int(text)
+    screen.query_one(".dialog-error", Static).update(f"Type the fibre number (1 to {MAX_FIBRE}).")
+    return None
+
 
 class ClosurePicker(ModalScreen[tuple[str, int | None] | None]):
     """Pick the closure whose splice log the traces fill (and the fibre, for one pair)."""
@@ -30,7 +57,7 @@ class ClosurePicker(ModalScreen[tuple[str, int | None] | None]):
     ClosurePicker Horizontal { height: 1; }
     ClosurePicker Label { width: 8; color: $text-muted; }
     ClosurePicker Input { width: 10; }
-    ClosurePicker #cp-error { color: $error; }
+    ClosurePicker .dialog-error { color: $error; }
     """
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
 
@@ -51,16 +78,8 @@ class ClosurePicker(ModalScreen[tuple[str, int | None] | None]):
                 options.append(Option(terminal(f"{name}  ({where})"), disabled=route is None))
             yield OptionList(*options, id="cp-closures")
             if self.ask_fibre:
-                with Horizontal():
-                    yield Label("Fibre")
-                    yield Input(
-                        value=str(self.fibre or ""),
-                        restrict=r"[0-9]*",
-                        compact=True,
-                        id="cp-fibre",
-                        tooltip="The fibre number these traces hold",
-                    )
-            yield Static("", id="cp-error", markup=False)
+                yield fibre_field(self.fibre, "The fibre number these traces hold")
+            yield Static("", classes="dialog-error", markup=False)
             yield Static("Enter on a closure fills it; Esc cancels.", classes="field-note")
 
     def action_cancel(self) -> None:
@@ -71,11 +90,9 @@ class ClosurePicker(ModalScreen[tuple[str, int | None] | None]):
         name = self.closures[event.option_index][0]
         fibre: int | None = None
         if self.ask_fibre:
-            text = self.query_one("#cp-fibre", Input).value.strip()
-            if not text or int(text) < 1:
-                self.query_one("#cp-error", Static).update("Type the fibre number first.")
+            fibre = typed_fibre(self)
+            if fibre is None:
                 return
-            fibre = int(text)
         self.dismiss((name, fibre))
 
 
@@ -140,7 +157,7 @@ class SaveTracesDialog(ModalScreen[int | None]):
     SaveTracesDialog Label { width: 8; color: $text-muted; }
     SaveTracesDialog Input { width: 10; }
     SaveTracesDialog Button { margin-right: 2; }
-    SaveTracesDialog #st-error { color: $error; }
+    SaveTracesDialog .dialog-error { color: $error; }
     """
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
 
@@ -159,30 +176,22 @@ class SaveTracesDialog(ModalScreen[int | None]):
                 "\n".join(terminal(line) for line in self.lines), markup=False, id="st-what"
             )
             if self.ask_fibre:
-                with Horizontal():
-                    yield Label("Fibre")
-                    yield Input(
-                        value=str(self.fibre or ""),
-                        restrict=r"[0-9]*",
-                        compact=True,
-                        id="st-fibre",
-                        tooltip="The fibre number these traces are kept as",
-                    )
-            yield Static("", id="st-error", markup=False)
+                yield fibre_field(self.fibre, "The fibre number these traces are kept as")
+            yield Static("", classes="dialog-error", markup=False)
             with Horizontal():
                 yield Button("Save", id="st-save", variant="primary", compact=True)
                 yield Button("Cancel", id="st-cancel", compact=True)
 
     def on_mount(self) -> None:
         if self.ask_fibre:
-            self.query_one("#st-fibre", Input).focus()
+            self.query_one(".fibre-number", Input).focus()
         else:
             self.query_one("#st-save", Button).focus()
 
     def action_cancel(self) -> None:
         self.dismiss(None)
 
-    @on(Input.Submitted, "#st-fibre")
+    @on(Input.Submitted, ".fibre-number")
     def _submitted(self) -> None:
         self._save()
 
@@ -197,8 +206,6 @@ class SaveTracesDialog(ModalScreen[int | None]):
         if not self.ask_fibre:
             self.dismiss(0)
             return
-        text = self.query_one("#st-fibre", Input).value.strip()
-        if not text or not 1 <= int(text) <= 10_000:
-            self.query_one("#st-error", Static).update("Type the fibre number (1 to 10000).")
-            return
-        self.dismiss(int(text))
+        fibre = typed_fibre(self)
+        if fibre is not None:
+            self.dismiss(fibre)
