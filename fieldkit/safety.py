@@ -33,6 +33,9 @@ DIGGING = (
     "rules (request a locate and wait for the marks), confirm the position with a second "
     "measurement or from the other end, and keep to the site's permit and traffic rules."
 )
+# The same caution in one line of the fault workspace where rows are scarce (the full one a key
+# or a click away, and on hover).
+DIGGING_SHORT = "Before digging: get a locate"
 OTDR_LIVE_FIBRE = (
     "An OTDR sends strong invisible pulses: never look into its port or a fibre end under test. "
     "A pulse into a live fibre can damage the receiver at the far end: disconnect the equipment "

@@ -8,7 +8,7 @@ from __future__ import annotations
 import re
 import textwrap
 
-__all__ = ["NBSP", "keep_units", "wrap"]
+__all__ = ["NBSP", "fit", "keep_units", "wrap"]
 
 #: A space between a number and its unit, or after "×": a line is never broken there.
 _UNIT_GAP = re.compile(r"(?<=\d) (?=(?:dBm|dB|nm|km|m|ps|GBd|MHz|µm|%)(?![A-Za-z]))|(?<=×) ")
@@ -34,3 +34,16 @@ def wrap(line: str, width: int | None, indent: int) -> list[str]:
         break_on_hyphens=False,
     )
     return [p.replace(NBSP, " ") for p in parts] or [line]
+
+
+def fit(text: str, width: int | None) -> str:
+    """Every line of ``text`` wrapped to ``width`` (continuations 2 past the line's own indent),
+    with leading spaces as no-break spaces so a display keeps the indents: what a panel shows
+    then has nothing left to wrap (a display's own wrap would part ``0.30`` from ``dB``)."""
+    out: list[str] = []
+    for line in text.split("\n"):
+        indent = len(line) - len(line.lstrip(" "))
+        for part in wrap(line, width, indent + 2):
+            stripped = part.lstrip(" ")
+            out.append(NBSP * (len(part) - len(stripped)) + stripped)
+    return "\n".join(out)

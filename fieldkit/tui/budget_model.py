@@ -39,6 +39,7 @@ class Kind:
     extra: str  # the label of the second field ("" when the kind has none)
     value_hint: str  # the placeholder of the first field: an example, never a value
     extra_hint: str
+    extra_tip: str = ""  # the second field's tooltip: the longer forms it takes
 
 
 #: Item kinds. Hints are examples ("e.g. 6") and say what an empty field means where it means
@@ -50,14 +51,15 @@ KINDS: dict[str, Kind] = {
         "Length",
         "dB/km",
         "e.g. 1.2 km, 3900 ft",
-        "e.g. 0.35 dB/km or 1310=0.35 dB/km; 1550=0.22 dB/km",
+        "e.g. 0.35 dB/km",
+        "one value, or per wavelength: 1310=0.35 dB/km; 1550=0.22 dB/km",
     ),
     "connectors": Kind(
         "Connectors",
         "Grade",
         "Pairs",
         "Each",
-        "e.g. 4 (both ends count)",
+        "e.g. 4 (both ends)",
         "e.g. 0.5 dB",
     ),
     "splices": Kind("Splices", "Grade", "Count", "Each", "e.g. 6 (empty: none)", "e.g. 0.1 dB"),

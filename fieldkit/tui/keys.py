@@ -118,6 +118,7 @@ LOCAL: tuple[Key, ...] = (
     Key("delete", "delete", "Delete", "in a list: remove the picked row"),
     Key("close", "escape", "Close", "close a dialog or page, keep what was typed"),
     Key("today", "ctrl+k", "Today", "only today's jobs, or every day again"),
+    Key("list", "ctrl+b", "List", "go to the list you pick from: a budget's items"),
 )
 
 #: The function key of each workspace (mode name -> key). F1 is Help. Modes listed here but
@@ -146,15 +147,18 @@ GENERAL: tuple[tuple[str, str, str], ...] = (
 USES: dict[str, tuple[Use, ...]] = {
     "convert": (Use("enter", None, "next field", show=False),),
     "budget": (
-        Use("add", "add_item", "add an item of the kind chosen beside Add"),
         Use(
-            "new",
-            "new_budget",
-            "start an empty budget (press twice if this one has unsaved changes)",
+            "add",
+            "add_item",
+            "choose the kind of item to add (the list opens at Fibre; a digit picks)",
         ),
+        Use("new", "new_budget", "start an empty budget (asks first if this one is not saved)"),
         Use("save", "save", "save this budget onto a job's link"),
         Use("open", "open_saved", "open the budget saved on a job's link"),
         Use("remove", "remove_item", "remove the picked item", show=False),
+        Use("list", "focus_items", "go to the link's items (arrows move, Enter edits)", show=False),
+        Use("next", None, "in an item's fields: edit the next item", show=False),
+        Use("previous", None, "in an item's fields: edit the previous item", show=False),
         Use("result", "focus_result", "go to the per-wavelength totals", show=False),
         Use("move_up", "move_item(-1)", "move the picked item towards end A", show=False),
         Use("move_down", "move_item(1)", "move the picked item towards end B", show=False),

@@ -30,7 +30,7 @@ def test_help_lists_the_key_table_with_each_workspace_use() -> None:
     assert "Function keys go to a place" in text
     assert "- **Ctrl+Q Quit**:" in text and "- **Ctrl+S Save**: save onto a job's link" in text
     budget = text.split("## Budget (F3)")[1].split("## ")[0]
-    assert "- **Ctrl+A**: add an item of the kind chosen beside Add" in budget
+    assert "- **Ctrl+A**: choose the kind of item to add" in budget
     assert "- **Ctrl+R**" not in budget  # Ctrl+R is recheck/reload; the budget has none
     meter = text.split("## Meter (F4)")[1].split("## ")[0]
     assert "- **Ctrl+R**: recheck" in meter

@@ -68,7 +68,7 @@ async def test_ctrl_keys_act_while_typing(tmp_path: Path) -> None:
         await pilot.pause()
         assert isinstance(app.screen.focused, Input)
         before = len(app.screen.items)
-        await pilot.press("ctrl+a")
+        await pilot.press("ctrl+a", "enter")  # Ctrl+A opens the kind chooser; Enter adds
         await pilot.pause()
         assert len(app.screen.items) == before + 1
         await pilot.press("ctrl+x")

@@ -13,13 +13,14 @@ from typing import Any
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
+from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Button, Input, Label, OptionList, Select, Static
 
 from fieldkit import safety
 from fieldkit.text import budget as lines
-from fieldkit.text.layout import keep_units
+from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 from fieldkit.tui.budget_model import (
     ADD_KINDS,
@@ -52,13 +53,20 @@ _OUTPUTS = (
 )
 
 
-def _shown(text: str) -> Text:
-    """Lines as a panel shows them: indents kept, a number never parted from its unit."""
-    kept = []
-    for line in text.split("\n"):
-        stripped = line.lstrip(" ")
-        kept.append("\u00a0" * (len(line) - len(stripped)) + keep_units(stripped))
-    return Text("\n".join(kept))
+def _shown(text: str, width: int | None) -> Text:
+    """Lines as a panel ``width`` wide shows them: wrapped here (under their own text, never
+    between a number and its unit), so the panel has nothing left to wrap; indents kept."""
+    return Text(fit(text, width))
+
+
+class ItemField(Input):
+    """An item's text field: Up and Down edit the previous and next item of the link without
+    leaving the field (the arrows of the key table's "previous" and "next")."""
+
+    BINDINGS = [
+        Binding(keys.key_of("previous").key, "screen.pick_item(-1)", show=False),
+        Binding(keys.key_of("next").key, "screen.pick_item(1)", show=False),
+    ]
 
 
 class BudgetScreen(Screen[None]):
@@ -72,7 +80,6 @@ class BudgetScreen(Screen[None]):
         super().__init__()
         self.model = BudgetModel()
         self.outcome = Outcome()
-        self._clear_asked = False
         self._job_id: str | None = None  # the job last opened or saved to, picked first next time
         self._application_choices: list[tuple[str, str]] = []
         self._loading = False
@@ -115,7 +122,8 @@ class BudgetScreen(Screen[None]):
         with Vertical(id=f"{field_id}-field", classes="bf-field"):
             with Horizontal(classes="bf-row"):
                 yield Label(label, classes="bf-label", id=label_id)
-                yield Input(
+                field = ItemField if field_id.startswith("item-") else Input
+                yield field(
                     placeholder=placeholder,
                     type="text",
                     restrict=EXTRA_CHARS if field_id == "item-extra" else QUANTITY_CHARS,
@@ -128,22 +136,38 @@ class BudgetScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
         with VerticalScroll(id="budget-body"):
+            # Save and open first: not under the results, the sources and the caution.
+            with Horizontal(id="job-buttons"):
+                yield Button(
+                    f"Save to job {keys.hint('save')}",
+                    id="save",
+                    compact=True,
+                    tooltip=keys.tip("budget", "save"),
+                )
+                yield Button(
+                    f"Open saved {keys.hint('open')}",
+                    id="open",
+                    compact=True,
+                    tooltip=keys.tip("budget", "open"),
+                )
+                yield Button(
+                    f"New {keys.hint('new')}",
+                    id="new",
+                    compact=True,
+                    tooltip=keys.tip("budget", "new"),
+                )
+            yield Static("", id="budget-saved", classes="field-note", markup=False)
             with Vertical(classes="two-col"):
                 with Vertical(classes="col"):
                     with Vertical(id="link-panel", classes="panel") as panel:
                         panel.border_title = "Link, end A to end B"
                         yield OptionList(id="items")
                         with Horizontal(id="item-buttons"):
-                            yield Select(
-                                [(KINDS[k].title, k) for k in ADD_KINDS],
-                                value=DEFAULT_ADD_KIND,
-                                allow_blank=False,
-                                compact=True,
-                                id="add-kind",
-                                tooltip="Kind of item to add",
-                            )
                             yield Button(
-                                "Add", id="add", compact=True, tooltip=keys.tip("budget", "add")
+                                f"Add… {keys.hint('add')}",
+                                id="add",
+                                compact=True,
+                                tooltip=keys.tip("budget", "add"),
                             )
                             yield Button(
                                 "Remove",
@@ -172,10 +196,10 @@ class BudgetScreen(Screen[None]):
                                 prompt="choose",
                             )
                         yield from self._field(
-                            "Length", "item-value", "1.2 km", label_id="item-value-label"
+                            "Length", "item-value", "", label_id="item-value-label"
                         )
                         yield from self._field(
-                            "dB/km", "item-extra", "0.35 dB/km", label_id="item-extra-label"
+                            "dB/km", "item-extra", "", label_id="item-extra-label"
                         )
                     yield Static("", id="budget-summary", markup=False)
                     with Vertical(id="settings-panel", classes="panel") as panel:
@@ -183,27 +207,28 @@ class BudgetScreen(Screen[None]):
                         yield from self._field(
                             "Wavelengths",
                             "wavelengths",
-                            "default by fibre family",
-                            tooltip="e.g. 1310, 1550 (blank: 850/1300 "
+                            "e.g. 1310, 1550",
+                            tooltip="in nm, e.g. 1310, 1550 (empty: 850/1300 "
                             "multimode, 1310/1550 single-mode)",
                         )
                         yield from self._field(
                             "Margin",
                             "margin",
-                            "design margin, 3 dB",
-                            tooltip="repairs and ageing; shown beside the link loss, not in it",
+                            "e.g. 3 dB; empty: none",
+                            tooltip="repairs and ageing, shown beside the link loss, not in it "
+                            "(empty: no margin)",
                         )
                         yield from self._field(
                             "Bit rate",
                             "bit-rate",
-                            "GBd, for dispersion",
+                            "e.g. 10.3125 GBd",
                             tooltip="line rate in GBd for the dispersion and modal-bandwidth "
                             "checks (blank: the transceiver's or the application's)",
                         )
                         yield from self._field(
                             "Spectrum",
                             "spectral-width",
-                            "RMS width, nm",
+                            "e.g. 0.1 nm RMS",
                             tooltip="the source's RMS spectral width in nm, for the dispersion "
                             "check when no transceiver tolerance is known",
                         )
@@ -226,10 +251,10 @@ class BudgetScreen(Screen[None]):
                                 prompt="no transceiver check",
                             )
                         with Vertical(id="tx-levels"):
-                            yield from self._field("Tx min", "tx-min", "-8.2 dBm")
-                            yield from self._field("Tx max", "tx-max", "0.5 dBm")
-                            yield from self._field("Rx sens", "rx-sens", "-14.4 dBm")
-                            yield from self._field("Rx overload", "rx-over", "0.5 dBm")
+                            yield from self._field("Tx min", "tx-min", "e.g. −8.2 dBm")
+                            yield from self._field("Tx max", "tx-max", "e.g. 0.5 dBm")
+                            yield from self._field("Rx sens", "rx-sens", "e.g. −14.4 dBm")
+                            yield from self._field("Rx overload", "rx-over", "e.g. 0.5 dBm")
                 with Vertical(classes="col"):
                     with Vertical(id="result-panel", classes="panel") as panel:
                         panel.border_title = "Budget"
@@ -251,20 +276,6 @@ class BudgetScreen(Screen[None]):
                     with Vertical(id="sources-panel", classes="panel") as panel:
                         panel.border_title = "Values used"
                         yield Static("", id="sources-out", classes="result", markup=False)
-                    yield Static("", id="budget-saved", classes="field-note", markup=False)
-                    with Horizontal(id="job-buttons"):
-                        yield Button(
-                            f"Save to job {keys.hint('save')}",
-                            id="save",
-                            compact=True,
-                            tooltip=keys.tip("budget", "save"),
-                        )
-                        yield Button(
-                            f"Open saved {keys.hint('open')}",
-                            id="open",
-                            compact=True,
-                            tooltip=keys.tip("budget", "open"),
-                        )
                     yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
         yield KeyFooter()
 
@@ -277,6 +288,7 @@ class BudgetScreen(Screen[None]):
         self.query_one("#tx-levels").display = False
         for error in self.query(".field-error"):
             error.display = False
+        self._say("")
         if lib.problems:
             self.notify(
                 "Preset problems: " + "; ".join(lib.problems), severity="warning", timeout=10
@@ -324,6 +336,7 @@ class BudgetScreen(Screen[None]):
         self._show_extra()
         extra = self.query_one("#item-extra", Input)
         extra.placeholder = kind.extra_hint
+        extra.tooltip = kind.extra_tip or None
         extra.value = item.extra
 
     def _show_extra(self) -> None:
@@ -385,7 +398,23 @@ class BudgetScreen(Screen[None]):
 
     # -- item actions --------------------------------------------------------------------
     def action_add_item(self) -> None:
-        kind = str(self.query_one("#add-kind", Select).value)
+        """Ask which kind to add: the chooser opens at the same kind every time."""
+        from fieldkit.tui.widgets.choice_dialog import ChoiceDialog
+
+        where = f"after item {self.model.current + 1}" if self.model.items else "to the link"
+        self.app.push_screen(
+            ChoiceDialog(
+                f"Add an item {where}",
+                [(KINDS[k].title, k) for k in ADD_KINDS],
+                start=DEFAULT_ADD_KIND,
+                note="Arrows and Enter, or a digit; Esc adds nothing.",
+            ),
+            self._add_kind,
+        )
+
+    def _add_kind(self, kind: str | None) -> None:
+        if kind is None:
+            return
         refusal = self.model.add(kind)
         self._refresh_list()
         self._load_item()
@@ -409,6 +438,17 @@ class BudgetScreen(Screen[None]):
             self._refresh_list()
             self.recompute()
 
+    def action_focus_items(self) -> None:
+        self.query_one("#items", OptionList).focus()
+
+    def action_pick_item(self, step: int) -> None:
+        """Up/Down in an item's fields: edit the previous/next item, staying in the field."""
+        if self.model.pick(self.model.current + step):
+            self.query_one("#items", OptionList).highlighted = self.model.current
+            self._load_item()
+            self._check_item_fields()
+            self._show_fibre_data()
+
     @on(Button.Pressed)
     def _button(self, event: Button.Pressed) -> None:
         actions = {
@@ -418,6 +458,7 @@ class BudgetScreen(Screen[None]):
             "down": lambda: self.action_move_item(1),
             "save": self.action_save,
             "open": self.action_open_saved,
+            "new": self.action_new_budget,
         }
         action = actions.get(event.button.id or "")
         if action is not None:
@@ -447,7 +488,7 @@ class BudgetScreen(Screen[None]):
         self._order_applications()
         if self.model.unsaved_edits:
             # A "saved" or "opened" line says nothing about what was typed since.
-            self.query_one("#budget-saved", Static).update("")
+            self._say("")
         self.outcome = outcome = self.model.evaluate()
         for field_id, message in outcome.field_errors.items():
             self._error(field_id, message)
@@ -479,39 +520,41 @@ class BudgetScreen(Screen[None]):
         if current is not Select.NULL and current in [v for _, v in choices]:
             select.value = current
 
+    def _put(self, selector: str, text: str) -> Static:
+        """Show ``text`` in a result Static, wrapped to its width here (see :func:`_shown`)."""
+        out = self.query_one(selector, Static)
+        out.update(_shown(text, out.content_size.width or None))
+        return out
+
     def _show(self, outcome: Outcome) -> None:
         report = outcome.report
         assert report is not None
-        out = self.query_one("#budget-out", Static)
-        width = out.content_size.width or None
-        out.update(_shown("\n".join(lines.breakdown_lines(report, width))))
-        summary = self.query_one("#budget-summary", Static)
-        summary.update(_shown(lines.summary_text(report)))
+        width = self.query_one("#budget-out", Static).content_size.width or None
+        self._put("#budget-out", "\n".join(lines.breakdown_lines(report, width)))
+        summary = self._put("#budget-summary", lines.summary_text(report))
         summary.set_class(False, "-waiting").set_class(False, "-problem")
-        self.query_one("#sources-out", Static).update(_shown("\n".join(lines.source_lines(report))))
+        self._put("#sources-out", "\n".join(lines.source_lines(report)))
         app = report.application
-        self.query_one("#application-out", Static).update(
+        self._put(
+            "#application-out",
             "Pick an application to check."
             if app is None
-            else _shown("\n".join(lines.application_lines(app)))
+            else "\n".join(lines.application_lines(app)),
         )
         tx = report.transceiver
-        self.query_one("#transceiver-out", Static).update(
+        self._put(
+            "#transceiver-out",
             (outcome.tx_problem or "Pick a transceiver to check.")
             if tx is None
-            else _shown("\n".join(lines.transceiver_lines(tx)))
+            else "\n".join(lines.transceiver_lines(tx)),
         )
         checks = [] if report.checks is None else lines.check_lines(report.checks)
-        self.query_one("#checks-out", Static).update(
-            _shown("\n".join(checks)) if checks else "Nothing to check beyond loss for this link."
-        )
+        self._put("#checks-out", "\n".join(checks) or "Nothing to check beyond loss for this link.")
         self._show_fibre_data()
 
     def _show_fibre_data(self) -> None:
         """The fibre data of the picked fibre item (else the first) at each wavelength."""
-        self.query_one("#fibre-data-out", Static).update(
-            _shown("\n".join(self.model.fibre_data_lines(self.outcome)))
-        )
+        self._put("#fibre-data-out", "\n".join(self.model.fibre_data_lines(self.outcome)))
 
     def on_resize(self) -> None:
         # The breakdown wraps to its panel's width: draw it again once the layout has settled.
@@ -521,6 +564,12 @@ class BudgetScreen(Screen[None]):
         if self.outcome.report is not None:
             self._show(self.outcome)
 
+    def _say(self, text: str) -> None:
+        """The line under Save and Open: what was saved or opened (hidden when empty)."""
+        saved = self.query_one("#budget-saved", Static)
+        saved.update(text)
+        saved.display = bool(text)
+
     # -- unsaved edits -------------------------------------------------------------------
     @property
     def unsaved_edits(self) -> bool:
@@ -529,23 +578,36 @@ class BudgetScreen(Screen[None]):
 
     def _mark_clean(self) -> None:
         self.model.mark_clean()
-        self._clear_asked = False
 
     # -- new, and going to the result ----------------------------------------------------
     def action_new_budget(self) -> None:
-        """An empty budget; unsaved changes are cleared only on a second Ctrl+N."""
-        saved = self.query_one("#budget-saved", Static)
-        if self.unsaved_edits and not self._clear_asked:
-            self._clear_asked = True
-            saved.update(
-                f"This budget has changes not saved: {keys.hint('new')} again clears them, "
-                f"{keys.hint('save')} saves them."
+        """An empty budget; asks first when this one has changes not saved."""
+        from fieldkit.tui.widgets.dialogs import AskDialog
+
+        if self.unsaved_edits:
+            self.app.push_screen(
+                AskDialog(
+                    "The budget has unsaved changes",
+                    ["A new budget replaces what is on screen: its items and settings."],
+                    [("save", "Save first"), ("discard", "Discard and start new")],
+                ),
+                self._new_answered,
             )
             return
+        self._start_new()
+
+    def _new_answered(self, answer: tuple[str, str] | None) -> None:
+        if answer is None:
+            return
+        if answer[0] == "save":
+            self.action_save()
+        else:
+            self._start_new()
+
+    def _start_new(self) -> None:
         self.load([], {})
-        self.query_one("#add-kind", Select).value = DEFAULT_ADD_KIND
         self._mark_clean()
-        saved.update("A new, empty budget.")
+        self._say("A new, empty budget.")
         self.query_one("#item-value", Input).focus()
 
     def action_focus_result(self) -> None:
@@ -605,9 +667,7 @@ class BudgetScreen(Screen[None]):
         self.load(items, fields)
         self._job_id = job_id
         self._mark_clean()
-        self.query_one("#budget-saved", Static).update(
-            f"Opened the budget saved on link {link.label}."
-        )
+        self._say(f"Opened the budget saved on link {link.label}.")
 
     def load(self, items: list[Item], fields: dict[str, str]) -> None:
         """Replace the link and the settings (typed text is kept as typed); no items: a new
@@ -668,10 +728,10 @@ class BudgetScreen(Screen[None]):
             )
         except (StoreError, ActionError) as exc:
             self.notify(f"Not saved: {exc}", severity="error")
-            self.query_one("#budget-saved", Static).update(f"Not saved: {exc}")
+            self._say(f"Not saved: {exc}")
             return
         self._job_id = job_id
         self._mark_clean()
         text = f"Budget saved onto job {saved.job_name}, link {saved.link_label}."
-        self.query_one("#budget-saved", Static).update(text)
+        self._say(text)
         self.notify(text)

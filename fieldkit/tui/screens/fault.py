@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
@@ -30,6 +31,7 @@ from fieldkit.calc.locate import (
     format_distance,
 )
 from fieldkit.calc.units import InputError, format_number
+from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 from fieldkit.tui.fault_model import (
     FIELDS,
@@ -41,6 +43,7 @@ from fieldkit.tui.fault_model import (
     FaultForm,
 )
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.caution import Caution
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.number_field import NumberField
 from fieldkit.tui.widgets.point_list import PointList
@@ -91,6 +94,7 @@ class FaultScreen(Screen[None]):
         super().__init__()
         self.form = FaultForm()
         self._clear_asked = False
+        self._shown: tuple[list[dict[str, Any]], list[dict[str, Any]]] = ([], [])
 
     @property
     def location(self) -> Location | None:
@@ -226,13 +230,14 @@ class FaultScreen(Screen[None]):
                         "Show in", [(u, u) for u in OUTPUT_UNITS], "m", id="fault-unit"
                     )
                     yield Static("", id="fault-result", classes="result")
-                    yield Static("", id="fault-warnings", classes="result")
-                    yield Static(
-                        f"{safety.DIGGING}\n{safety.DEFER}", id="fault-cautions", classes="caution"
-                    )
                 with Vertical(classes="panel", id="fault-route-panel") as panel:
                     panel.border_title = "Route"
                     yield RouteDiagram(id="fault-diagram")
+                yield Static("", id="fault-warnings", classes="result")
+                # After the result and the route; one line where rows are scarce, never gone.
+                yield Caution(
+                    f"{safety.DIGGING}\n{safety.DEFER}", safety.DIGGING_SHORT, id="fault-cautions"
+                )
                 with Vertical(classes="panel", id="fault-save-panel") as panel:
                     panel.border_title = "Job"
                     yield Button(
@@ -255,6 +260,14 @@ class FaultScreen(Screen[None]):
         if problems:
             self.notify("Preset problems: " + "; ".join(problems[:3]), severity="warning")
         self.recompute()
+
+    #: Below this many rows the caution folds to one line, so the result and the route show.
+    SCARCE_ROWS = 40
+
+    def on_resize(self) -> None:
+        self.query_one("#fault-cautions", Caution).fit(self.size.height < self.SCARCE_ROWS)
+        # The result lines wrap to their panel: draw them again once the layout has settled.
+        self.call_after_refresh(lambda: self._show(*self._shown))
 
     # -- presets ----------------------------------------------------------------------------
     def _fibre_chosen(self) -> None:
@@ -366,9 +379,11 @@ class FaultScreen(Screen[None]):
 
     def _show(self, landmarks: list[dict[str, Any]], slack: list[dict[str, Any]]) -> None:
         shown = self.form.shown(self.unit, landmarks, slack)
-        self.query_one("#fault-result", Static).update(shown.result)
+        self._shown = (landmarks, slack)
+        result = self.query_one("#fault-result", Static)
+        result.update(Text(fit(shown.result, result.content_size.width or None)))
         warnings = self.query_one("#fault-warnings", Static)
-        warnings.update("\n".join(shown.warnings))
+        warnings.update(Text(fit("\n".join(shown.warnings), warnings.content_size.width or None)))
         warnings.display = bool(shown.warnings)
         summary = self.query_one("#fault-summary", Static)
         summary.update(shown.summary)
