@@ -224,7 +224,7 @@ Verdict = Literal["pass", "fail", "no limit", "in doubt"]
 #: Points kept per direction for drawing: the lowest and highest level of each of 300 columns
 #: (a 760-pixel drawing has about 700, so a reflection's peak still shows as a spike). Fewer
 #: than the 1,000 first planned: at 600, 144 fibres at two wavelengths, both directions
-#: averaged, take about 5.5 MB of the 20 MiB a job file may hold (about 19 kB a fibre), so a
+#: averaged, take about 6 MB of the 20 MiB a job file may hold (19-21 kB a fibre), so a
 #: full retest kept as history still fits (measured in tests/unit/test_trace_records.py).
 MAX_TRACE_POINTS = 600
 #: A file name, never a path: no folder separators.
