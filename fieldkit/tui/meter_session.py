@@ -13,6 +13,7 @@ since the last good check), and counting uses :mod:`fieldkit.jobs.counting`.
 
 from __future__ import annotations
 
+import re
 import threading
 from dataclasses import dataclass, field, replace
 from datetime import datetime
@@ -46,6 +47,8 @@ DIRECTION_WORDS = {"1": "A→B", "2": "both"}
 MAX_WAVELENGTHS = 4
 
 _ids = _counter(1)
+#: A reading still being typed: a sign, digits, one decimal point or comma.
+_NUMBER_ON_ITS_WAY = re.compile(r"[+\-\u2212]?\d*(?:[.,]\d*)?")
 
 
 @dataclass(frozen=True, slots=True)
@@ -445,6 +448,17 @@ class MeterSession:
         except InputError:
             return False
         return True
+
+    def typing_problem(self, text: str) -> str | None:
+        """What is wrong with the reading being typed (None: nothing, or not yet: a sign,
+        digits and a decimal point are a number on its way, not an error to flash)."""
+        if not text.strip() or _NUMBER_ON_ITS_WAY.fullmatch(text.strip()):
+            return None
+        try:
+            ref.level_dbm(text, "reading")
+        except InputError as exc:
+            return str(exc)
+        return None
 
     def enter(self, text: str, details: ReferenceDetails, *, short: bool = False) -> Entered:
         """A reading typed into the active cell (the text is not empty)."""

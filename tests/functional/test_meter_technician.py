@@ -271,3 +271,20 @@ async def test_recheck_dialog_carries_the_caution(
         assert region.height >= 1 and region.right <= size[0] and region.bottom < size[1]
         for button in ("#rc-ok", "#rc-cancel"):
             assert dialog.query_one(button).region.bottom <= size[1], button
+
+
+async def test_a_corrected_reading_is_drawn_in_its_row(isolated_dirs: dict[str, Path]) -> None:
+    # The grid redraws only the row of a changed cell: what it draws must be the new value.
+    async with _app(isolated_dirs).run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        screen.query_one("#reference", Input).value = "-7.0"
+        await pilot.pause()
+        screen.query_one("#reading", Input).focus()
+        await pilot.press(*"-8.0", "enter", *"-8.5", "enter", "up", "up")
+        await pilot.press(*"-7.6", "enter")  # fibre 1 again: -7.0 − (-7.6) = 0.60 dB
+        await pilot.pause()
+        grid = screen.query_one(ReadingsGrid)
+        rows = [grid.render_line(y).text for y in range(1, 3)]  # below the header
+        assert "0.60" in rows[0] and "1.00" not in rows[0]
+        assert "1.50" in rows[1]  # -7.0 − (-8.5)

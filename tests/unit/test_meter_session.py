@@ -288,3 +288,11 @@ def test_a_save_gives_the_session_the_jobs_reference_ids() -> None:
     )
     assert s.refs[(1310.0, "A->B")].reference_id == "R1"
     assert warnings == [f"1310 A->B: {drift.message} (1 result marked in doubt)"]
+
+
+def test_a_number_on_its_way_is_no_error_but_a_wrong_unit_is() -> None:
+    s = MeterSession()
+    for partial in ("-", "-8", "-8.", "-8,2", "+", "−7"):
+        assert s.typing_problem(partial) is None, partial
+    assert "length" in (s.typing_problem("5 km") or "")  # a length, not a power
+    assert s.typing_problem("50 uW") is None

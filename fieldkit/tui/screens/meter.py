@@ -14,6 +14,8 @@ Layout and wiring only: the state, what each key does and the summary text live 
 from __future__ import annotations
 
 import time
+from dataclasses import dataclass, field
+from typing import TypeVar, cast
 
 from rich.text import Text
 from textual import on
@@ -22,6 +24,7 @@ from textual.containers import Grid, Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.timer import Timer
+from textual.widget import Widget
 from textual.widgets import Collapsible, DataTable, Input, Label, Static
 from textual.worker import Worker
 
@@ -38,6 +41,7 @@ from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.readings_grid import EntryInput, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
+W = TypeVar("W", bound=Widget)
 _COLUMNS = f"{keys.display('column_previous')}/{keys.display('column_next')[5:]}"
 KEYS_HINT = (
     f"Enter: next fibre · ↑↓ PgUp PgDn: fibres · {_COLUMNS}: columns · "
@@ -83,6 +87,15 @@ _DETAILS = (
 )
 
 
+@dataclass
+class _ViewUpdate:
+    """What the grid and the entry line still have to show after the readings just taken."""
+
+    cells: set[tuple[int, float, str]] = field(default_factory=set)
+    say: tuple[str, bool] | None = None
+    pending: bool = False
+
+
 class MeterScreen(Screen[None]):
     """Reference panel, readings grid and summary."""
 
@@ -90,6 +103,8 @@ class MeterScreen(Screen[None]):
     AUTO_FOCUS = "#reading"
     BINDINGS = keys.bindings("meter")
     SUMMARY_DELAY_S = 0.15
+    SAVE_GATHER_S = 0.5
+    SAVE_QUIET_S = 0.01
 
     class Saved(Message):
         """The save worker put a batch into the job."""
@@ -110,6 +125,8 @@ class MeterScreen(Screen[None]):
         self._summary_timer: Timer | None = None
         self._save_worker: Worker[None] | None = None
         self._hint_shown = False
+        self._widgets: dict[str, Widget] = {}
+        self._view = _ViewUpdate()
 
     # -- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -133,6 +150,7 @@ class MeterScreen(Screen[None]):
                     compact=True,
                     id="reading",
                     check=self.session.reading_acceptable,
+                    typed=self._reading_typed,
                     tooltip="Type the reading and press Enter; Up/Down move "
                     f"between fibres, {_COLUMNS} between columns",
                 )
@@ -189,6 +207,14 @@ class MeterScreen(Screen[None]):
         self._say(KEYS_HINT_NARROW if self.narrow else KEYS_HINT)
         self._hint_shown = True
 
+    def _one(self, selector: str, kind: type[W] = Widget) -> W:  # type: ignore[assignment]
+        """``query_one``, remembered: the screen's widgets stay mounted, and a query walks the
+        whole screen (per keystroke it cost more than the grid's own work)."""
+        found = self._widgets.get(selector)
+        if found is None:
+            found = self._widgets[selector] = self.query_one(selector)
+        return cast(W, found)
+
     # -- the grid ----------------------------------------------------------------------------
     def _text(self, fibre: int, column: GridColumn) -> Text:
         shown = self.session.cell_text(fibre, column)
@@ -197,7 +223,7 @@ class MeterScreen(Screen[None]):
     def _rebuild_grid(self) -> None:
         s = self.session
         s.clamp()
-        grid = self.query_one(ReadingsGrid)
+        grid = self._one("#readings", ReadingsGrid)
         cells: dict[tuple[int, str], Text] = {}
         for column in s.grid_columns():
             for fibre in range(1, s.fibres + 1):
@@ -208,17 +234,19 @@ class MeterScreen(Screen[None]):
         grid.point_at(s.fibre, s.active_column)
 
     def _refresh_cell(self, fibre: int, wavelength_nm: float, direction: str) -> None:
-        grid = self.query_one(ReadingsGrid)
+        grid = self._one("#readings", ReadingsGrid)
         for column in (GridColumn(wavelength_nm, direction), GridColumn(wavelength_nm, None)):
             grid.show(fibre, column, self._text(fibre, column))
 
     def _point(self) -> None:
-        self.query_one(ReadingsGrid).point_at(self.session.fibre, self.session.active_column)
+        self._one("#readings", ReadingsGrid).point_at(
+            self.session.fibre, self.session.active_column
+        )
         self._show_entry_where()
 
     # -- typing in the set-up fields -------------------------------------------------------
     def _show_error(self, field_id: str, message: str) -> None:
-        error = self.query_one(f"#{field_id}-error", Static)
+        error = self._one(f"#{field_id}-error", Static)
         error.update(message)
         error.display = bool(message)
 
@@ -261,11 +289,11 @@ class MeterScreen(Screen[None]):
         except InputError as exc:
             self._show_error(field_id, str(exc))
             if field_id == "directions":
-                self.query_one("#directions-meaning", Label).update("?")
+                self._one("#directions-meaning", Label).update("?")
             return
         self._show_error(field_id, "")
         if field_id == "directions":
-            self.query_one("#directions-meaning", Label).update(DIRECTION_WORDS[text.strip()])
+            self._one("#directions-meaning", Label).update(DIRECTION_WORDS[text.strip()])
         if changed:
             self._rebuild_grid()
             self._sync_column_fields()
@@ -304,7 +332,7 @@ class MeterScreen(Screen[None]):
             self._queue(change)
 
     def _show_limit_placeholder(self) -> None:
-        self.query_one("#limit", Input).placeholder = self.session.limit_placeholder(self.narrow)
+        self._one("#limit", Input).placeholder = self.session.limit_placeholder(self.narrow)
 
     def _sync_column_fields(self, force: bool = False) -> None:
         """Show the active column's reference and its wavelength's limit in the fields.
@@ -317,28 +345,29 @@ class MeterScreen(Screen[None]):
         if force or column != self._synced_column:
             self._synced_column = column
             # The Changed events these cause find the texts already stored: no-ops.
-            self.query_one("#reference", Input).value = s.ref_text.get(column.measured, "")
-            self.query_one("#limit", Input).value = s.limit_text.get(column.wavelength_nm, "")
+            self._one("#reference", Input).value = s.ref_text.get(column.measured, "")
+            self._one("#limit", Input).value = s.limit_text.get(column.wavelength_nm, "")
             self._show_error("reference", "")
             self._show_error("limit", "")
-        self.query_one("#reference-box Label", Label).update(s.reference_label())
+        self._one("#reference-box Label", Label).update(s.reference_label())
         self._show_limit_placeholder()
         self._show_reference_note()
 
     def _show_reference_note(self) -> None:
         note, source_error = self.session.reference_note(
             narrow=self.narrow,
-            source_text=self.query_one("#source-level", Input).value,
-            launch=self.query_one("#launch", Input).value,
+            source_text=self._one("#source-level", Input).value,
+            launch=self._one("#launch", Input).value,
         )
         if source_error is not None:
             self._show_error("source-level", source_error)
-        self.query_one("#reference-note", Static).update(note)
+        self._one("#reference-note", Static).update(note)
 
     # -- entering readings --------------------------------------------------------------
     def _say(self, text: str | None, *, error: bool = False) -> None:
         """The entry line's message (fixed height: no layout pass per reading)."""
-        message = self.query_one("#entry-message", Static)
+        self._view.say = None  # said since: a message waiting for the next view is old
+        message = self._one("#entry-message", Static)
         if text is not None:
             self._hint_shown = False
         if message.has_class("field-error") != error:
@@ -347,15 +376,11 @@ class MeterScreen(Screen[None]):
             message.update(text, layout=False)
 
     def _reading_changed(self, field_id: str, text: str) -> None:
-        if not text.strip():
-            self._say(None)
-            return
-        try:
-            ref.level_dbm(text, "reading")
-        except InputError as exc:
-            self._say(str(exc), error=True)
-            return
-        self._say(None)
+        self._reading_typed(text)
+
+    def _reading_typed(self, text: str) -> None:
+        problem = self.session.typing_problem(text)
+        self._say(problem, error=problem is not None)
 
     @on(EntryInput.Entered, "#reading")
     def _reading_entered(self, event: EntryInput.Entered) -> None:
@@ -371,20 +396,36 @@ class MeterScreen(Screen[None]):
             # Refused when Enter was pressed but fine now (the reference was set since):
             # the text is still in the field; take it.
             event.entry.value = ""
-        self._refresh_cell(*entered.cell)
-        self._say(entered.message, error=entered.error)
         self._queue(entered.change)
         moved = s.next_empty()
         if moved.column_changed:
             self._sync_column_fields()
-        self._point()
-        if moved.message:
-            self._say(moved.message)
+        # The grid, the entry line and its message follow once the keys already queued are
+        # handled: typed ahead, a burst of readings costs one cursor move and one message.
+        self._view.cells.add(entered.cell)
+        self._view.say = (moved.message or entered.message, entered.error and not moved.message)
+        self._view_soon()
         self._summary_soon()
+
+    def _view_soon(self) -> None:
+        if not self._view.pending:
+            self._view.pending = True
+            self.call_later(self._show_view)
+
+    def _show_view(self) -> None:
+        view = self._view
+        view.pending = False
+        for cell in view.cells:
+            self._refresh_cell(*cell)
+        view.cells.clear()
+        self._point()
+        if view.say is not None:
+            text, error = view.say
+            self._say(text, error=error)
 
     def _details(self) -> ReferenceDetails:
         def text(field_id: str) -> str:
-            return self.query_one(f"#{field_id}", Input).value.strip()
+            return self._one(f"#{field_id}", Input).value.strip()
 
         return ReferenceDetails(
             source_id=text("source"),
@@ -397,8 +438,8 @@ class MeterScreen(Screen[None]):
 
     def _show_entry_where(self) -> None:
         where, placeholder = self.session.entry_where(self.narrow)
-        self.query_one("#entry-where", Label).update(where, layout=False)
-        self.query_one("#reading", Input).placeholder = placeholder
+        self._one("#entry-where", Label).update(where, layout=False)
+        self._one("#reading", Input).placeholder = placeholder
 
     def action_next_empty(self) -> None:
         moved = self.session.next_empty()
@@ -432,7 +473,7 @@ class MeterScreen(Screen[None]):
     def _cell_pointed(self, event: DataTable.CellHighlighted) -> None:
         # The grid has focus only when the user clicked it (or tabbed to it and moved): go to
         # that cell and back to typing. Moves made by the entry field itself are ignored.
-        if self.query_one(ReadingsGrid).has_focus:
+        if self._one("#readings", ReadingsGrid).has_focus:
             self._go_to_cell(event.coordinate.row, event.coordinate.column)
 
     @on(DataTable.CellSelected)
@@ -440,12 +481,12 @@ class MeterScreen(Screen[None]):
         self._go_to_cell(event.coordinate.row, event.coordinate.column)
 
     def _go_to_cell(self, row: int, grid_column: int) -> None:
-        grid = self.query_one(ReadingsGrid)
+        grid = self._one("#readings", ReadingsGrid)
         if 0 <= grid_column - 1 < len(grid.columns_shown):
             if self.session.go_to(row + 1, grid.columns_shown[grid_column - 1]):
                 self._sync_column_fields()
             self._point()
-        self.query_one("#reading", Input).focus()
+        self._one("#reading", Input).focus()
 
     # -- summary ------------------------------------------------------------------------
     def _summary_soon(self) -> None:
@@ -467,7 +508,7 @@ class MeterScreen(Screen[None]):
         lines = self.session.summary_lines(
             width=42 if self.narrow else 0, open_key=keys.display("open")
         )
-        self.query_one("#meter-summary", Static).update("\n".join(lines), layout=False)
+        self._one("#meter-summary", Static).update("\n".join(lines), layout=False)
 
     # -- the job ------------------------------------------------------------------------
     def action_pick_job(self) -> None:
@@ -493,7 +534,7 @@ class MeterScreen(Screen[None]):
         changes, fields = self.session.attach(job_id, link, self._details())
         for field_id, value in fields.items():
             # The handler of the Changed event this causes finds the state already matching.
-            self.query_one(f"#{field_id}", Input).value = value
+            self._one(f"#{field_id}", Input).value = value
         for change in changes:
             self._queue(change)
         self._rebuild_grid()
@@ -527,7 +568,7 @@ class MeterScreen(Screen[None]):
         from fieldkit.jobs.store import StoreError
 
         saves = self.session.saves
-        while batch := saves.take():
+        while batch := self._gathered():
             try:
                 outcome = self._save(batch)
             except (StoreError, KeyError, ValueError, OSError) as exc:
@@ -536,6 +577,18 @@ class MeterScreen(Screen[None]):
                 return
             saves.done(batch, now())
             self.post_message(self.Saved(outcome))
+
+    def _gathered(self) -> list[MeterChange]:
+        """The next batch, once typing pauses: a burst typed ahead goes in one job update
+        rather than a reload and write per reading. A reading waits at most SAVE_GATHER_S
+        while more keep coming (quitting saves at once)."""
+        saves = self.session.saves
+        deadline = time.monotonic() + self.SAVE_GATHER_S
+        seen = -1
+        while (count := saves.unsaved) != seen and time.monotonic() < deadline:
+            seen = count
+            time.sleep(self.SAVE_QUIET_S)
+        return saves.take()
 
     async def saves_settled(self) -> None:
         """Wait for the save worker to finish what is queued, and show the summary as it

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
+from rich.segment import Segment
+from rich.style import Style
 from rich.text import Text
 from textual import events
 from textual.coordinate import Coordinate
@@ -15,10 +17,15 @@ from textual.geometry import Size
 from textual.message import Message
 from textual.reactive import Reactive
 from textual.widgets import DataTable, Input
+from textual.widgets.data_table import RowKey
 
 from fieldkit.tui.meter_session import GridColumn
 
 __all__ = ["EntryInput", "GridColumn", "ReadingsGrid"]
+
+SegmentLines = list[list[Segment]]
+#: A cursor position outside every cell (the header's row label is (-1, -1)).
+_NOWHERE = Coordinate(-2, -2)
 
 
 class ReadingsGrid(DataTable[Text]):
@@ -37,12 +44,16 @@ class ReadingsGrid(DataTable[Text]):
         )
         self.columns_shown: list[GridColumn] = []
         self.fibres = 0
+        self._row_versions: dict[RowKey, int] = {}
+        self._scrolled_column = -1
 
     def set_layout(
         self, fibres: int, columns: list[GridColumn], cells: dict[tuple[int, str], Text]
     ) -> None:
         """Rebuild the grid for ``fibres`` rows and ``columns``, filled from ``cells``."""
         self.clear(columns=True)
+        self._row_versions.clear()
+        self._scrolled_column = -1
         self.fibres = fibres
         self.columns_shown = list(columns)
         self.add_column(Text("Fibre"), key="fibre", width=5)
@@ -55,16 +66,84 @@ class ReadingsGrid(DataTable[Text]):
             self.add_row(*row, key=str(fibre))
 
     def show(self, fibre: int, column: GridColumn, text: Text) -> None:
-        """Change one cell (no-op for a fibre or column not shown)."""
+        """Change one cell (no-op for a fibre or column not shown); only its row is drawn again.
+
+        DataTable's ``update_cell`` counts an update that every render cache is keyed by, so the
+        next frame renders every visible cell again. Here the cell's row gets a version of its
+        own instead (see :meth:`_render_line_in_row`), and the other rows keep their renders.
+        """
         if not 1 <= fibre <= self.fibres or column not in self.columns_shown:
             return
-        self.update_cell_at(Coordinate(fibre - 1, self.columns_shown.index(column) + 1), text)
+        row_key = self._row_locations.get_key(fibre - 1)
+        column_key = self._column_locations.get_key(self.columns_shown.index(column) + 1)
+        if row_key is None or column_key is None:
+            return
+        if self._data[row_key][column_key] == text:
+            return
+        self._data[row_key][column_key] = text
+        self._row_versions[row_key] = self._row_versions.get(row_key, 0) + 1
+        self._line_cache.clear()  # keyed by line, not by row: cheap to build from row renders
+        self.refresh_row(fibre - 1)
+
+    def _render_line_in_row(
+        self,
+        row_key: RowKey,
+        line_no: int,
+        base_style: Style,
+        cursor_location: Coordinate,
+        hover_location: Coordinate,
+    ) -> tuple[SegmentLines, SegmentLines]:
+        # A row draws the same wherever the cursor is when the cursor is not in it: one cache
+        # entry for it, not one per cursor position (every move used to draw every row again).
+        row_index = self._row_locations.get(row_key) if row_key in self._row_locations else -1
+        if cursor_location.row != row_index:
+            cursor_location = _NOWHERE
+        if hover_location.row != row_index:
+            hover_location = _NOWHERE
+        # The caches below this are keyed by the table's update count; a row's own version
+        # stands in for it, so a cell shown again redraws its row only.
+        count = self._update_count
+        self._update_count = (count, row_key, self._row_versions.get(row_key, 0))  # type: ignore[assignment]
+        try:
+            return super()._render_line_in_row(
+                row_key, line_no, base_style, cursor_location, hover_location
+            )
+        finally:
+            self._update_count = count
 
     def point_at(self, fibre: int, column: GridColumn) -> None:
         """Put the cursor on a cell and scroll it into view."""
         if not 1 <= fibre <= self.fibres or column not in self.columns_shown:
             return
-        self.move_cursor(row=fibre - 1, column=self.columns_shown.index(column) + 1, scroll=True)
+        target = Coordinate(fibre - 1, self.columns_shown.index(column) + 1)
+        if target == self.cursor_coordinate:
+            self.scroll_to_cursor()
+            return
+        # A move made here is no user's pick of a cell: no CellHighlighted message to build
+        # and bubble through the screen (DataTable's watcher would also scroll twice). Only the
+        # two cells are drawn again.
+        old = self.cursor_coordinate
+        self.set_reactive(DataTable.cursor_coordinate, target)
+        self.refresh_coordinate(old)
+        self.refresh_coordinate(target)
+        self._scroll_cursor_into_view()
+
+    def _scroll_cursor_into_view(self, animate: bool = False) -> None:
+        # Moving down a column, the cursor is nearly always in view already: skip the work of
+        # finding its region then (the column must be the one last scrolled to).
+        row, column = self.cursor_coordinate
+        top = int(self.scroll_y)
+        rows_shown = self.scrollable_content_region.height - (1 if self.show_header else 0)
+        if column == getattr(self, "_scrolled_column", -1) and top <= row < top + rows_shown:
+            return
+        self._scrolled_column = column
+        super()._scroll_cursor_into_view(animate=animate)
+
+    def scroll_to_cursor(self) -> None:
+        """Scroll the cursor's cell into view (after the grid's height changed, say)."""
+        if self.row_count:
+            self._scrolled_column = -1
+            self.call_after_refresh(self._scroll_cursor_into_view)
 
 
 class EntryInput(Input):
@@ -97,10 +176,20 @@ class EntryInput(Input):
             return self.entry
 
     def __init__(
-        self, *args: object, check: Callable[[str], bool] | None = None, **kwargs: object
+        self,
+        *args: object,
+        check: Callable[[str], bool] | None = None,
+        typed: Callable[[str], None] | None = None,
+        **kwargs: object,
     ) -> None:
+        """``check``: whether Enter may take the text. ``typed``: called with the text after
+        each character typed, instead of an ``Input.Changed`` message bubbling up through the
+        screen (which cost a reading more than the grid's own work); emptying the field on
+        Enter posts none either. Other changes (a paste, Backspace, a value set in code) still
+        post ``Changed``."""
         super().__init__(*args, **kwargs)  # type: ignore[arg-type]
         self._check = check
+        self._typed = typed
 
     async def _on_key(self, event: events.Key) -> None:
         if event.key == "enter":
@@ -110,11 +199,22 @@ class EntryInput(Input):
             event.prevent_default()
             await self.action_submit()
             return
-        await super()._on_key(event)
+        if self._typed is None or not event.is_printable:
+            await super()._on_key(event)
+            return
+        before = self.value
+        with self.prevent(Input.Changed):
+            await super()._on_key(event)
+        if self.value != before:
+            self._typed(self.value)
 
     async def action_submit(self) -> None:
         value = self.value
         accepted = self._check(value) if self._check is not None else True
         if accepted:
-            self.value = ""
+            if self._typed is None:
+                self.value = ""
+            else:
+                with self.prevent(Input.Changed):
+                    self.value = ""
         self.post_message(self.Entered(self, value, accepted))
