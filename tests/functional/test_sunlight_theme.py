@@ -9,6 +9,7 @@ from textual.widgets import Input, Label
 
 from fieldkit.tui.app import make_app
 from fieldkit.tui.themes import HIGH_CONTRAST
+from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.workspace_bar import TABS, WorkspaceBar
 
 SIZES = [(80, 24), (44, 22)]
@@ -61,9 +62,15 @@ async def test_sunlight_keeps_the_current_workspace_and_labels_readable(
             style = bar.tab_style(tab)
             assert contrast(tuple(style.color.triplet), tuple(style.bgcolor.triplet)) >= 4.5, tab
         labels = [w for w in app.screen.query(Label) if w.region.height]
-        assert labels or mode == "jobs"  # the jobs workspace has no field labels
+        # A quantity field draws its own label (no Label widget): its label style counts too.
+        fields = [w for w in app.screen.query(QuantityField) if w.region.height]
+        assert labels or fields or mode == "jobs"  # the jobs workspace has no field labels
         for label in labels:
             assert contrast(*_colours(label)) >= 4.5, str(label.render())
+        for field in fields:
+            style = field.rich_style + field.get_component_rich_style("quantity-field--label")
+            colours = tuple(style.color.triplet), tuple(style.bgcolor.triplet)
+            assert contrast(*colours) >= 4.5, field.label
 
 
 async def test_sunlight_placeholder_is_readable_and_lighter_than_typed_text(tmp_path: Path):

@@ -11,6 +11,8 @@ the same moment are both kept, and the CLI writes the same records for the same 
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
@@ -296,6 +298,18 @@ class JobsScreen(WorkspaceScreen):
         self.model.toggle_today()
         self._refilter()
 
+    def _act(self, change: Callable[[], Job | None], said: Callable[[Job], str]) -> None:
+        """Run a change through the actions layer: a refusal is told, never raised; a saved
+        job is shown and its row updated."""
+        try:
+            saved = change()
+        except (StoreError, ActionError) as exc:
+            self.notify(str(exc), severity="error")
+            return
+        if saved is not None:
+            self._changed(saved)
+            self.notify(said(saved))
+
     @on(Button.Pressed, "#job-done")
     def action_toggle_done(self) -> None:
         from fieldkit.actions.jobs import OpenItemsError, mark_done, reopen
@@ -305,42 +319,35 @@ class JobsScreen(WorkspaceScreen):
             self.notify("No job shown: pick one on the list.", severity="warning")
             return
         by = fieldkit_app(self).operator
-        try:
+
+        def change() -> Job | None:
             if job.status == "done":
-                saved = reopen(self.store, job.id, by=by)
-            else:
-                saved = mark_done(self.store, job.id, by=by)
-        except OpenItemsError as exc:
-            self.app.push_screen(
-                AskDialog(
-                    f"{job.name} has {len(exc.items)} open item(s)",
-                    exc.items,
-                    [("done", "Mark done anyway")],
-                    reason="why (noted in the job's log)",
-                ),
-                lambda answer: self._done_anyway(job.id, answer),
-            )
-            return
-        except (StoreError, ActionError) as exc:
-            self.notify(str(exc), severity="error")
-            return
-        self._changed(saved)
-        self.notify(f"{saved.name}: {saved.status}")
+                return reopen(self.store, job.id, by=by)
+            try:
+                return mark_done(self.store, job.id, by=by)
+            except OpenItemsError as exc:
+                self.app.push_screen(
+                    AskDialog(
+                        f"{job.name} has {len(exc.items)} open item(s)",
+                        exc.items,
+                        [("done", "Mark done anyway")],
+                        reason="why (noted in the job's log)",
+                    ),
+                    lambda answer: self._done_anyway(job.id, answer),
+                )
+                return None
+
+        self._act(change, lambda saved: f"{saved.name}: {saved.status}")
 
     def _done_anyway(self, job_id: str, answer: tuple[str, str] | None) -> None:
         from fieldkit.actions.jobs import mark_done
 
-        if answer is None or answer[0] != "done":
-            return
-        try:
-            saved = mark_done(
-                self.store, job_id, by=fieldkit_app(self).operator, reason=answer[1], confirm=True
+        if answer is not None and answer[0] == "done":
+            by, reason = fieldkit_app(self).operator, answer[1]
+            self._act(
+                lambda: mark_done(self.store, job_id, by=by, reason=reason, confirm=True),
+                lambda saved: f"{saved.name}: done",
             )
-        except (StoreError, ActionError) as exc:
-            self.notify(str(exc), severity="error")
-            return
-        self._changed(saved)
-        self.notify(f"{saved.name}: done")
 
     def _changed(self, job: Job) -> None:
         self.model.replace(job)
@@ -371,7 +378,7 @@ class JobsScreen(WorkspaceScreen):
         if job is None or job.read_only:
             return
         if not job.links:
-            self.app.push_screen(LinkForm(job), self._link_saved)
+            self._link_chosen(("new", ""))
             return
         answers = [("new", "New link")] + [(f"edit-{link.id}", link.label) for link in job.links]
         self.app.push_screen(
@@ -383,13 +390,9 @@ class JobsScreen(WorkspaceScreen):
         job = self._job
         if answer is None or job is None:
             return
-        choice = answer[0]
-        if choice == "new":
-            self.app.push_screen(LinkForm(job), self._link_saved)
-            return
-        link_id = choice.removeprefix("edit-")
+        link_id = answer[0].removeprefix("edit-")
         link = next((item for item in job.links if item.id == link_id), None)
-        if link is not None:
+        if answer[0] == "new" or link is not None:
             self.app.push_screen(LinkForm(job, link), self._link_saved)
 
     def _link_saved(self, link_id: str | None) -> None:
