@@ -36,8 +36,8 @@ def register(subparsers: Any) -> None:
         "demo",
         help="open the app on an invented day of fibre work (demo data)",
         description="Write an invented scenario (fictional town, sites, crews; jobs with "
-        "links, budgets, references, results, notes, splices and a located fault) into a demo "
-        "folder and start the terminal UI on it, in the jobs workspace. The demo folder is "
+        "links, budgets, references, results, notes, splices, a located fault; OTDR trace "
+        "files) into a demo folder and start the terminal UI on it, in the jobs workspace. The demo folder is "
         "<data folder>/demo, or --data-dir; your own jobs are never touched.",
     )
     add_data_dir(parser)
@@ -60,6 +60,10 @@ def demo_folder(args: argparse.Namespace) -> Path:
 #: here without importing the records.
 DEMO_JOB_IDS = ("de30000000000001", "de30000000000002", "de30000000000003", "de30000000000004")
 _STATE = "state "
+#: Where the demo's OTDR trace files go, under the demo folder, and their names (as
+#: fieldkit.traces.demo writes them; a test checks the two agree).
+TRACES_FOLDER = Path("traces") / "LIB-TH-01"
+DEMO_TRACE_NAMES = tuple(f"F{f:02d}_1550_{d}.sor" for f in (6, 7) for d in ("AB", "BA"))
 
 
 def _sources() -> list[Path]:
@@ -89,6 +93,12 @@ def demo_state(folder: Path) -> str | None:
         except OSError:
             return None
         digest.update(f"{job_id} {info.st_size} {info.st_mtime_ns}\n".encode())
+    for name in DEMO_TRACE_NAMES:
+        try:
+            info = os.stat(folder / TRACES_FOLDER / name)
+        except OSError:
+            return None
+        digest.update(f"{name} {info.st_size} {info.st_mtime_ns}\n".encode())
     return digest.hexdigest()
 
 
@@ -124,8 +134,15 @@ def write_demo(folder: Path) -> list[str]:
             )
     folder.mkdir(parents=True, exist_ok=True)
     atomic_write_bytes(marker, MARKER_TEXT.encode())
+    traces = write_demo_traces(folder)
     ids = []
     for job in build_for(now()):
+        if job.id == DEMO_IDS[0]:
+            job.add_note(
+                f"OTDR traces of fibres 6 and 7, both ends at 1550 nm, are in {traces}: open "
+                "the folder in the Traces workspace (F8).",
+                by="Ana Ruiz",
+            ).at = job.updated_at
         try:
             store.delete(job.id)
             store.save(job)
@@ -136,6 +153,19 @@ def write_demo(folder: Path) -> list[str]:
     if state is not None:
         atomic_write_bytes(marker, f"{MARKER_TEXT}{_STATE}{state}\n".encode())
     return ids
+
+
+def write_demo_traces(folder: Path) -> Path:
+    """Write the demo's trace files (fieldkit.traces.demo) under ``folder``; returns their
+    folder. Files of other names there are left alone."""
+    from fieldkit.fsutil import atomic_write_bytes
+    from fieldkit.traces.demo import demo_trace_files
+
+    target = folder / TRACES_FOLDER
+    target.mkdir(parents=True, exist_ok=True)
+    for name, data in demo_trace_files().items():
+        atomic_write_bytes(target / name, data)
+    return target
 
 
 def run(args: argparse.Namespace) -> int:

@@ -169,7 +169,7 @@ def _backbone(at: _At) -> Job:
     link.closures = [
         Closure(
             name="JC-3 Market Street",
-            route_distance_m=2100.0,
+            route_distance_m=1150.0,
             landmark="chamber JC-3 by the market cross",
             cables=cables,
             trays=[Tray(number=1, capacity=12, by=ana, at=at(7.0))],

@@ -3,6 +3,7 @@ import the UI: see the layer contract in pyproject.toml)."""
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 from typing import Any
 
@@ -40,3 +41,28 @@ def test_demo_with_no_ui_prints_the_folder_and_starts_nothing(
     result = cli_runner.run("demo", "--no-ui", "--data-dir", str(tmp_path / "d"))
     assert result.returncode == 0, result.stderr
     assert result.stdout.strip() == str(tmp_path / "d")
+
+
+def test_the_demo_writes_trace_files_that_tell_its_story(tmp_path: Path) -> None:
+    # the demo's fibre 7 fails at 1550 nm in the meter results and its JC-3 splice reads
+    # 0.21 dB from A and 0.47 dB from B in the splice log: its trace pair must say the same,
+    # and the backbone job's notes say where the files are
+    from fieldkit.commands import demo
+    from fieldkit.traces.demo import demo_trace_files
+
+    assert tuple(demo_trace_files()) == demo.DEMO_TRACE_NAMES
+    assert cli_runner.run("demo", "--no-ui", "--data-dir", str(tmp_path / "d")).returncode == 0
+    folder = tmp_path / "d" / demo.TRACES_FOLDER
+    assert sorted(p.name for p in folder.iterdir()) == sorted(demo.DEMO_TRACE_NAMES)
+    shown = cli_runner.run(
+        "trace", "pair", str(folder / "F07_1550_AB.sor"), str(folder / "F07_1550_BA.sor"), "--json"
+    )
+    assert shown.returncode == 0, shown.stderr
+    events = json.loads(shown.stdout)["events"]
+    splice = min(events, key=lambda e: abs(e["distance_m"] - 1162.0))
+    # G.650.3 Appendix I: the average of the two one-way readings is the splice loss
+    assert splice["loss_ab_db"] == pytest.approx(0.21, abs=0.03)
+    assert splice["loss_ba_db"] == pytest.approx(0.47, abs=0.03)
+    assert splice["average_db"] == pytest.approx(0.34, abs=0.02)
+    note = cli_runner.run("jobs", "show", "de30000000000001", "--data-dir", str(tmp_path / "d"))
+    assert str(folder) in note.stdout
