@@ -213,7 +213,9 @@ class JobsScreen(WorkspaceScreen):
         self.query_one("#job-links", Static).update(view.links_text(job))
         self.query_one("#job-notes", Static).update(view.notes_text(job))
         word = "Reopen" if job.status == "done" else "Done"
-        self.query_one("#job-done", Button).label = f"{word} {keys.hint('done')}"
+        done = self.query_one("#job-done", Button)
+        done.label = f"{word} {keys.hint('done')}"
+        done.refresh(layout=True)  # "Reopen" is wider than "Done"
         read_only = bool(job.read_only)
         for wid in _JOB_WIDGETS:
             self.query_one(wid).disabled = read_only
@@ -235,9 +237,7 @@ class JobsScreen(WorkspaceScreen):
         elif focused is find and event.key in ("down", "up") and options.option_count:
             event.stop()
             event.prevent_default()
-            options.focus()
-            if event.key == "down" and options.highlighted is not None:
-                options.action_cursor_down()
+            options.focus()  # on the job shown: the next Down moves on from it
 
     @on(Input.Changed, "#jobs-filter")
     def _filter_changed(self) -> None:
