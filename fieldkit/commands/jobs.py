@@ -430,6 +430,7 @@ def _job(args: argparse.Namespace) -> tuple[JobStore, Job]:
 def run_show(args: argparse.Namespace) -> int:
     from fieldkit.jobs.counting import open_items
     from fieldkit.jobs.reports import fmt_time, job_summary
+    from fieldkit.jobs.trace_summary import link_traces
 
     _store, job = _job(args)
     summary = job_summary(job)
@@ -438,6 +439,11 @@ def run_show(args: argparse.Namespace) -> int:
             {
                 "job": job.model_dump(mode="json"),
                 "summary": [row.as_dict() for row in summary],
+                "traces": [
+                    {"link_id": link.id, "link_label": link.label, **row.as_dict()}
+                    for link in job.links
+                    for row in link_traces(link)
+                ],
                 "read_only": job.read_only,
             }
         )
@@ -473,6 +479,9 @@ def run_show(args: argparse.Namespace) -> int:
         rows = [r for r in summary if r.link_id == link.id]
         for r in rows:
             print(f"  {r.wavelength_nm:g} nm: {r.tested} fibres tested: {r.tally.words()}")
+        for row in link_traces(link):
+            for line in row.lines():
+                print(f"  {line}")
         extras = []
         if link.budget is not None:
             extras.append("budget")

@@ -14,6 +14,7 @@ from fieldkit.jobs.reports import (
     fmt_m,
     fmt_nm,
 )
+from fieldkit.jobs.trace_summary import TRACE_VERDICT, over_limits
 from fieldkit.reports.common import (
     ReportContext,
     fmt_local,
@@ -26,8 +27,6 @@ from fieldkit.reports.document import (
     Table,
 )
 from fieldkit.reports.parts import Used, running_header
-
-TRACE_VERDICT = {"pass": "pass", "fail": "FAIL", "no limit": "no limit", "in doubt": "in doubt"}
 
 
 def _trace_caption(t: TraceRecord, ctx: ReportContext) -> str:
@@ -135,7 +134,7 @@ def trace_section(job: Job, link: Link, ctx: ReportContext, used: Used) -> Secti
         running_header=running_header(job, ctx),
         css_class="link traces",
     )
-    fails = sum(any(e.verdict == "fail" for e in t.events) for t in current)
+    fails = sum(over_limits(t) for t in current)
     sec.para(
         f"{len(current)} {'trace' if len(current) == 1 else 'traces'} kept on this link"
         + (f"; {fails} with an event over its limit" if fails else "; no event over its limit")

@@ -25,14 +25,16 @@ from fieldkit.jobs.reports import (
 )
 from fieldkit.jobs.splices import closure_summary
 from fieldkit.jobs.today import counted
+from fieldkit.jobs.trace_summary import link_traces
 from fieldkit.text.escape import terminal
+from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 
 if TYPE_CHECKING:
     from pathlib import Path
 
     from fieldkit.jobs.index import JobSummary
-    from fieldkit.jobs.models import Job
+    from fieldkit.jobs.models import Job, Link
 
 
 def plain(text: str, style: str = "") -> Text:
@@ -141,6 +143,9 @@ def links_text(job: Job) -> RenderableType:
             )
         for closure in link.closures:
             parts.append(plain("Closure " + closure_summary(closure, link.splice_limits)))
+        traces = traces_text(link)
+        if traces is not None:
+            parts.append(traces)
         if link.results:
             table = Table(box=None, padding=(0, 1), show_edge=False, expand=False)
             for name in ("Fib", "nm", "Dir", "Loss dB", "Limit", "Result"):
@@ -162,7 +167,7 @@ def links_text(job: Job) -> RenderableType:
                     style=style,
                 )
             parts.append(table)
-        elif not link.faults:
+        elif not link.faults and traces is None:
             parts.append(plain("no results yet", "dim"))
     if not parts:
         return plain(
@@ -171,6 +176,28 @@ def links_text(job: Job) -> RenderableType:
             "dim",
         )
     return Group(*parts)
+
+
+#: The job detail's width inside its panel at 80 and at 44 columns (a 44-column panel, its
+#: padding and scroll bar).
+DETAIL_WIDTH = 40
+
+
+def traces_text(link: Link, width: int = DETAIL_WIDTH) -> Text | None:
+    """The link's kept OTDR traces per wavelength (:mod:`fieldkit.jobs.trace_summary`, the
+    lines ``fieldkit jobs show`` prints), wrapped to ``width`` without parting a number from
+    its unit; a failing count in red."""
+    rows = link_traces(link)
+    if not rows:
+        return None
+    text = Text()
+    for row in rows:
+        for i, line in enumerate(row.lines()):
+            if text:
+                text.append("\n")
+            failing = row.over_limits and ("over its limit" in line or "FAIL" in line)
+            text.append(fit(line, width), style="bold" if i == 0 else "bold red" if failing else "")
+    return text
 
 
 def notes_text(job: Job) -> RenderableType:
