@@ -37,6 +37,15 @@ from fieldkit.tui.widgets.readings_grid import EntryInput
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 LOSS_CHARS = r"[0-9A-Za-z .,+\-\u2212]*"
+#: What the workspace shows before a link is chosen: what it is for and the first key.
+_START_HELP = (
+    "Log the splices of a closure on a job's link.\n\n"
+    "1. Ctrl+O: choose the job and link (or name a new one).\n"
+    "2. Open a closure, or start one: name, route distance, cables, trays.\n"
+    "3. Type each splice's loss; Enter moves to the next fibre in TIA-598 colour order.\n\n"
+    "Each splice is saved as it is typed. OTDR losses from both ends come from Traces (F8)."
+)
+
 _SETUP = (
     ("name", "Closure", "JC-3 Market St"),
     ("route", "Route", "2.1 km (optional)"),
@@ -72,8 +81,9 @@ class SplicesScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
         with Horizontal(id="sp-top"):
-            yield Static("Ctrl+O: choose a job and link", id="sp-where")
+            yield Static("No link chosen yet", id="sp-where")
             yield Button("Open ^O", id="sp-open", compact=True)
+        yield Static(_START_HELP, id="sp-start-help")
         with Vertical(id="sp-setup"):
             yield OptionList(id="sp-closures")
             yield Static("New closure: fill in, then Enter or ^S", id="sp-setup-title")
@@ -121,7 +131,8 @@ class SplicesScreen(Screen[None]):
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
         self.app.push_screen(
-            JobLinkPicker(job_id=self.job_id, title="Splice log of a job's link"), self.choose
+            JobLinkPicker(job_id=self.job_id, title="Splice log of a job's link", confirm="Open"),
+            self.choose,
         )
 
     @on(Button.Pressed, "#sp-open")
@@ -150,6 +161,7 @@ class SplicesScreen(Screen[None]):
             route.value = f"{fault[0]:.1f} m"
             route.tooltip = f"Route position {fault[1]}"
         self.session = None
+        self.query_one("#sp-start-help").display = False
         self.query_one("#sp-entry").display = False
         self.query_one("#sp-setup").display = True
         if link.closures:

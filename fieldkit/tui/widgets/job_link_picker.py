@@ -99,8 +99,10 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         *,
         job_id: str | None = None,
         title: str = "Save onto a job's link",
+        confirm: str = "Save here",
     ) -> None:
         super().__init__()
+        self._confirm = confirm  # the button's word: "Save here", or "Open" to open a record
         self._store = store
         self._initial_job = job_id
         self._title = title
@@ -134,7 +136,7 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
             yield Static("", id="jlp-message")
             with Horizontal(id="jlp-buttons"):
                 yield Button("Cancel", id="jlp-cancel", compact=True)
-                yield Button("Save here", id="jlp-ok", variant="primary", compact=True)
+                yield Button(self._confirm, id="jlp-ok", variant="primary", compact=True)
 
     def on_mount(self) -> None:
         self._reload_jobs(select=self._initial_job)
