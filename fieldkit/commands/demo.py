@@ -37,8 +37,9 @@ def register(subparsers: Any) -> None:
         help="open the app on an invented day of fibre work (demo data)",
         description="Write an invented scenario (fictional town, sites, crews; jobs with "
         "links, budgets, references, results, notes, splices, a located fault; OTDR trace "
-        "files) into a demo folder and start the terminal UI on it, in the jobs workspace. The demo folder is "
-        "<data folder>/demo, or --data-dir; your own jobs are never touched.",
+        "files) into a demo folder and start the terminal UI on it, in the jobs workspace. "
+        "The demo folder is <data folder>/demo, or --data-dir; your own jobs are never "
+        "touched.",
     )
     add_data_dir(parser)
     parser.add_argument(
