@@ -8,6 +8,8 @@ Our mapping, in two rules a crew learns once:
   *recheck / reload*, and so on (`COMMON` below). A workspace that has nothing for a key leaves
   it unused rather than giving it another meaning. They work while a field has focus, so
   Ctrl+A, Ctrl+E and Ctrl+D do not move or delete in a text field: Home, End and Delete do.
+- **Alt+letter goes to a field** of the set-up from wherever you type (``LOCAL``: Alt+R the
+  reference, Alt+W the wavelengths, Alt+F the fibre count); Enter there goes back.
 - Ctrl+Q quits and shows first in every footer.
 
 A screen takes its bindings from here (``BINDINGS = keys.bindings("budget")``) and its button
@@ -119,6 +121,10 @@ LOCAL: tuple[Key, ...] = (
     Key("close", "escape", "Close", "close a dialog or page, keep what was typed"),
     Key("today", "ctrl+k", "Today", "only today's jobs, or every day again"),
     Key("list", "ctrl+b", "List", "go to the list you pick from: a budget's items"),
+    # Alt+letter goes to a field of the set-up, from wherever you type (Enter comes back).
+    Key("to_reference", "alt+r", "Ref", "go to the reference field"),
+    Key("to_wavelength", "alt+w", "Wavelength", "go to the wavelengths field"),
+    Key("to_fibres", "alt+f", "Fibres", "go to the fibre count field"),
 )
 
 #: The function key of each workspace (mode name -> key). F1 is Help. Modes listed here but
@@ -181,6 +187,24 @@ USES: dict[str, tuple[Use, ...]] = {
         Use("page_up", "move(-12)", "12 fibres back", show=False),
         Use("column_next", "column(1)", "next wavelength / direction column", show=False),
         Use("column_previous", "column(-1)", "previous wavelength / direction column", show=False),
+        Use(
+            "to_reference",
+            "focus_field('reference')",
+            "the Ref field of this column; Enter goes back to the reading",
+            show=False,
+        ),
+        Use(
+            "to_wavelength",
+            "focus_field('wavelengths')",
+            "the Wavelength field; Enter goes back to the reading",
+            show=False,
+        ),
+        Use(
+            "to_fibres",
+            "focus_field('fibres')",
+            "the Fibres field; Enter goes back to the reading",
+            show=False,
+        ),
     ),
     "fault": (
         Use(
@@ -277,6 +301,7 @@ _BY_NAME: dict[str, Key] = {k.name: k for k in (*COMMON, *LOCAL)}
 
 _KEY_WORDS = {
     "ctrl": "Ctrl",
+    "alt": "Alt",
     "shift": "Shift",
     "up": "↑",
     "down": "↓",
@@ -364,7 +389,8 @@ def bindings(mode: str) -> list[BindingType]:
                 show=use.show,
                 id=f"{mode}.{use.name}",
                 tooltip=f"{use.does[:1].upper()}{use.does[1:]}",
-                priority=key.key.startswith("ctrl+"),
+                # Alt+letter too: a text field would type the letter.
+                priority=key.key.startswith(("ctrl+", "alt+")),
             )
         )
     return result

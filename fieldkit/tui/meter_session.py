@@ -267,6 +267,23 @@ class Entered:
 
 
 @dataclass
+class FieldChange:
+    """What a set-up field's new text changed, for the screen to show."""
+
+    #: The field's error: "" clears it, None leaves it as it is.
+    error: str | None = ""
+    grid: bool = False  # the columns or the fibres changed: the grid is built again
+    note: bool = False  # the reference note and the summary
+    #: A limit or the method changed: stored results to judge again (the grid shows it too).
+    limits: list[SetLimit] | None = None
+    meaning: str | None = None  # the Directions number's meaning beside it
+
+
+#: The set-up fields :meth:`MeterSession.change_field` reads.
+SETUP_FIELDS = ("method", "wavelengths", "fibres", "directions", "reference", "limit")
+
+
+@dataclass
 class Moved:
     """After a reading: where the cursor went and what to say about it."""
 
@@ -279,6 +296,25 @@ class RecheckDone:
     drift: ref.Drift
     change: Recheck
     doubted: list[CellKey]
+
+    def words(self, column: GridColumn, *, short: bool = False) -> str:
+        """What the recheck found; ``short``: one line of 42 columns (under a standing
+        problem on a phone terminal)."""
+        d = self.drift
+        if short and not d.within:
+            return f"{column.heading}: drift {d.drift_db:+.2f} > ±{d.tolerance_db:.2f} dB: retest"
+        return f"{column.heading}: {d.message}"
+
+
+def history_lines(link: Link, fibre: int) -> list[str]:
+    """A fibre's history in the job, oldest first: every result, retests and cleared ones."""
+    from fieldkit.jobs.reports import fmt_time, verdict
+
+    return [
+        f"{fmt_time(r.at)} {r.wavelength_nm:g} nm {r.direction}: {r.loss_db:.2f} dB "
+        f"{verdict(r)}" + (f" ({r.by})" if r.by else "")
+        for r in meter_log.fibre_history(link, fibre)
+    ] or ["No reading of this fibre is saved in the job yet."]
 
 
 # -- the session -----------------------------------------------------------------------------
@@ -436,6 +472,39 @@ class MeterSession:
             self.typed_limits[wavelength_nm] = ref.loss_limit_db(text)
         return wavelength_nm
 
+    def change_field(self, field_id: str, text: str) -> FieldChange | None:
+        """A set-up field's text changed (None: not a field of the set-up)."""
+        layout = {
+            "wavelengths": self.set_wavelengths,
+            "fibres": self.set_fibres,
+            "directions": self.set_directions,
+        }
+        try:
+            if field_id == "method":
+                self.set_method(text)
+                return FieldChange(limits=self.limit_changes())
+            if field_id in layout:
+                changed = layout[field_id](text)
+                meaning = DIRECTION_WORDS[text.strip()] if field_id == "directions" else None
+                return FieldChange(grid=changed, meaning=meaning)
+            if field_id == "reference":
+                # False: the field shown again for this column (Ctrl+←/→), nothing typed.
+                return FieldChange(note=True) if self.set_reference(text) else FieldChange(None)
+            if field_id == "limit":
+                wavelength_nm = self.set_limit(text)
+                if wavelength_nm is None:  # shown again for this wavelength
+                    return FieldChange(None)
+                return FieldChange(limits=self.limit_changes(wavelength_nm))
+        except InputError as exc:
+            return FieldChange(
+                str(exc),
+                note=field_id == "reference",
+                meaning="?" if field_id == "directions" else None,
+            )
+        if field_id in ("source-level", "launch"):
+            return FieldChange(None, note=True)  # the note checks them and says so
+        return None
+
     # -- readings ------------------------------------------------------------------------------
     def reading_acceptable(self, text: str) -> bool:
         """Whether Enter may take this text (a reading, with a reference set, or nothing)."""
@@ -507,20 +576,24 @@ class MeterSession:
             verdict_words(self.fibre, column, verdict, short=short), negative, key, change
         )
 
-    def problem_words(self, *, short: bool = False) -> str | None:
-        """The standing word about negative losses not yet dealt with (None: none)."""
+    def problem_words(self, *, short: bool = False, besides: str = "") -> str | None:
+        """The standing word about negative losses not yet dealt with (None: none, or the
+        message ``besides`` it already says it)."""
         if not self.problems:
             return None
         fibre, w, d = self.problems[-1]
-        column = GridColumn(w, d)
-        cell = self.cells.get(self.problems[-1])
-        loss = f" {cell.loss_db:.2f} dB" if cell else ""
+        where = f"fibre {fibre} {GridColumn(w, d).heading}"
+        if besides.startswith(f"{where}:"):
+            return None
         more = f" (+{len(self.problems) - 1} more)" if len(self.problems) > 1 else ""
         if short:
-            return f"⚠ fibre {fibre} {column.heading}{loss} negative{more}: retest"
-        return (
-            f"⚠ fibre {fibre} {column.heading}{loss}: negative loss{more}. Clean, "
-            "re-reference and retest it (Ctrl+X removes it)."
+            return fit(42, f"⚠ {where} negative{more}: retest", f"⚠ {where} negative{more}")
+        cell = self.cells.get(self.problems[-1])
+        loss = f"{cell.loss_db:.2f} dB, " if cell else ""
+        return fit(
+            76,
+            f"⚠ {where}: {loss}negative{more}. Clean, re-reference, retest (^X removes)",
+            f"⚠ {where}: {loss}negative{more}: re-reference, retest",
         )
 
     def clear_cell(self, by: str) -> ClearReading | None:
@@ -606,6 +679,14 @@ class MeterSession:
         replace_words = "" if narrow else "; type to replace"  # 21 columns at 44
         placeholder = f"now {cell.reading_dbm:.2f} dBm{replace_words}" if cell else "reading, dBm"
         return f"fibre {self.fibre} {column.heading}", placeholder
+
+    def setup_line(self, width: int) -> str:
+        """The set-up in one line (44 columns, while typing readings)."""
+        what = (
+            f"{self.method.value} {' '.join(f'{w:g}' for w in self.wavelengths)} nm, "
+            f"{self.fibres} fibres, {DIRECTION_WORDS[str(len(self.directions))]}"
+        )
+        return fit(width, f"{what} · Alt+R Ref", f"{what} · Alt+R", what)
 
     def reference_label(self) -> str:
         column = self.active_column
@@ -852,6 +933,9 @@ class MeterSession:
                     f"{w:g} {limit_words}: {tally}",
                     f"{w:g} {limit_words} {s.fibres}/{self.fibres}: " + counts.replace(",", ""),
                     f"{w:g} {s.fibres}/{self.fibres}: " + counts.replace(",", ""),
+                    # The zero counts go last: what is there still shows.
+                    f"{w:g} {s.fibres}/{self.fibres}: "
+                    + " ".join(p for p in counts.split(", ") if not p.startswith("0 ")),
                     f"{w:g}: {tally}",
                 )
             )

@@ -233,7 +233,10 @@ def test_a_negative_loss_stands_until_it_is_dealt_with() -> None:
     s.set_reference("-7.2")
     entered = s.enter("-7.05", DETAILS)  # -7.20 − (-7.05) = -0.15 dB
     assert entered.error and "negative" in entered.message
-    assert "fibre 1 1310 A→B -0.15 dB" in (s.problem_words() or "")
+    assert "fibre 1 1310 A→B: -0.15 dB, negative" in (s.problem_words() or "")
+    # Beside its own verdict it is not said twice; in 42 columns it fits one line.
+    assert s.problem_words(besides=entered.message) is None
+    assert len(s.problem_words(short=True) or "") <= 42
     s.next_empty()
     s.enter("-8.0", DETAILS)  # the next reading does not take the word away
     assert s.problem_words() is not None

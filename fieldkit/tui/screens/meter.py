@@ -13,30 +13,26 @@ Layout and wiring only: the state, what each key does and the summary text live 
 
 from __future__ import annotations
 
-import time
 from dataclasses import dataclass, field
 from typing import TypeVar, cast
 
-from rich.text import Text
-from textual import on
+from textual import events, on
 from textual.app import ComposeResult
-from textual.containers import Grid, Horizontal, Vertical
+from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.timer import Timer
 from textual.widget import Widget
-from textual.widgets import Collapsible, DataTable, Input, Label, Static
-from textual.worker import Worker
+from textual.widgets import DataTable, Input, Label, Static
 
-from fieldkit import safety
-from fieldkit.actions.meter import Applied, MeterChange, ReferenceDetails, apply_changes
+from fieldkit.actions.meter import Applied, MeterChange, ReferenceDetails
 from fieldkit.calc import reference as ref
-from fieldkit.calc.units import InputError
-from fieldkit.jobs.models import now
 from fieldkit.tui import keys
-from fieldkit.tui.meter_session import DIRECTION_WORDS, GridColumn, MeterSession
+from fieldkit.tui.meter_saver import MeterSaver
+from fieldkit.tui.meter_session import GridColumn, MeterSession, history_lines
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.key_footer import KeyFooter
+from fieldkit.tui.widgets.meter_fields import setup_fields
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.readings_grid import EntryInput, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
@@ -49,42 +45,6 @@ KEYS_HINT = (
 )
 #: The same keys in one line of a phone terminal, where rows go to the grid.
 KEYS_HINT_NARROW = f"Enter/↑↓ fibre · {_COLUMNS} col · {keys.hint('remove')} remove"
-
-#: The set-up fields: (label, id, value, tooltip, placeholder).
-_SETUP = (
-    ("Method", "method", "one-cord", "one-cord, two-cord or three-cord (TIA Method B, A or C)", ""),
-    ("Wavelength", "wavelengths", "1310 1550", "Test wavelengths, e.g. 1310 1550 or 850 1300", ""),
-    ("Fibres", "fibres", "12", "Number of fibres in the cable", ""),
-    (
-        "Directions",
-        "directions",
-        "1",
-        "1: A->B only; 2: both directions (each its own reference)",
-        "",
-    ),
-    ("Ref", "reference", "", "Reference level of this column: dBm, or µW, nW, mW", "dBm"),
-    (
-        "Limit",
-        "limit",
-        "",
-        "Largest loss allowed at this wavelength, dB; empty: from the link's budget, counting "
-        "the method's end connections",
-        "",
-    ),
-)
-_DETAILS = (
-    ("Source", "source", "Light source identifier"),
-    ("Meter", "meter", "Power meter identifier"),
-    ("Cords", "cords", "Reference cords used, separated by commas"),
-    ("Launch", "launch", "Launch condition (multimode), e.g. encircled flux"),
-    (
-        "Src out",
-        "source-level",
-        "What the source should deliver through a good cord, dBm (default -20 multimode, -7 "
-        "single-mode; common practice)",
-    ),
-    ("By", "by", "Who takes the readings"),
-)
 
 
 @dataclass
@@ -103,43 +63,36 @@ class MeterScreen(Screen[None]):
     AUTO_FOCUS = "#reading"
     BINDINGS = keys.bindings("meter")
     SUMMARY_DELAY_S = 0.15
-    SAVE_GATHER_S = 0.5
-    SAVE_QUIET_S = 0.01
 
     class Saved(Message):
-        """The save worker put a batch into the job."""
+        """From the save worker: what a batch did in the job, or why it was not saved."""
 
-        def __init__(self, outcome: Applied) -> None:
+        def __init__(self, outcome: Applied | str) -> None:
             super().__init__()
             self.outcome = outcome
-
-    class SaveFailed(Message):
-        def __init__(self, error: str) -> None:
-            super().__init__()
-            self.error = error
 
     def __init__(self) -> None:
         super().__init__()
         self.session = MeterSession()
+        self.saver = MeterSaver(
+            self.session, lambda: fieldkit_app(self).store, self.run_worker, self._report
+        )
         self._synced_column: GridColumn | None = None
         self._summary_timer: Timer | None = None
-        self._save_worker: Worker[None] | None = None
         self._hint_shown = False
         self._widgets: dict[str, Widget] = {}
         self._view = _ViewUpdate()
+        self._said = ""  # the entry line's last message
+        self._shown = ""  # and what it shows (with a standing problem above it)
 
     # -- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
         with Vertical(id="meter-body"):
-            with Grid(id="meter-setup"):
-                for label, field_id, value, tooltip, placeholder in _SETUP:
-                    yield from self._field(label, field_id, value, tooltip, placeholder)
-            with Collapsible(title="Reference details", id="meter-details", collapsed=True):
-                with Grid(id="meter-details-grid"):
-                    for label, field_id, tooltip in _DETAILS:
-                        yield from self._field(label, field_id, "", tooltip)
-                yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="meter-caution")
+            yield from setup_fields()
+            # At 44 columns, while typing readings: the set-up in one line (rows go to the grid);
+            # Alt+R/W/F or a click open it again.
+            yield Static("", id="setup-line")
             yield Static("", id="reference-note", classes="field-note")
             with Horizontal(id="meter-entry"):
                 yield Label("", id="entry-where")
@@ -160,28 +113,6 @@ class MeterScreen(Screen[None]):
                 yield Static("", id="meter-summary")
         yield KeyFooter()
 
-    def _field(
-        self, label: str, field_id: str, value: str, tooltip: str, placeholder: str = ""
-    ) -> ComposeResult:
-        with Vertical(classes="meter-field", id=f"{field_id}-box"):
-            with Horizontal():
-                yield Label(label, classes="meter-label")
-                yield Input(
-                    value=value,
-                    type="text",
-                    restrict=QUANTITY_CHARS,
-                    compact=True,
-                    id=field_id,
-                    tooltip=tooltip,
-                    placeholder=placeholder,
-                )
-                if field_id == "directions":
-                    # What the number means, beside it: "1 A→B", "2 both".
-                    yield Label(
-                        DIRECTION_WORDS["1"], classes="meter-meaning", id=f"{field_id}-meaning"
-                    )
-            yield Static("", classes="field-error", id=f"{field_id}-error")
-
     def on_mount(self) -> None:
         for error in self.query(".field-error"):
             error.display = False
@@ -191,6 +122,45 @@ class MeterScreen(Screen[None]):
         self._show_summary()
         self._show_hint()
         self.set_interval(30.0, self._show_summary)
+        # Focus opens where the technician types first: the reference, until one is set.
+        self.set_focus(self._one(f"#{self._work_field()}", Input))
+
+    def _work_field(self) -> str:
+        """Where typing goes next: the Ref field while the column has no reference, else the
+        reading."""
+        return "reading" if self.session.current_reference is not None else "reference"
+
+    def action_focus_field(self, field_id: str) -> None:
+        """Alt+R / Alt+W / Alt+F: to a set-up field from wherever you type."""
+        self.set_class(False, "-typing")
+        self.call_after_refresh(self._one(f"#{field_id}", Input).focus)
+
+    def on_descendant_focus(self, event: object) -> None:
+        focused = self.focused
+        typing = focused is not None and focused.id in ("reading", "readings")
+        if typing != self.has_class("-typing"):
+            self.set_class(typing, "-typing")
+            self._show_setup_line()
+            self._keep_cursor_in_view()
+
+    @on(Input.Submitted)
+    def _setup_submitted(self, event: Input.Submitted) -> None:
+        # Enter in a set-up field: back to typing readings (or to Ref, while it is empty).
+        if event.input.id != "reading":
+            self._one(f"#{self._work_field()}", Input).focus()
+
+    def on_click(self, event: events.Click) -> None:
+        if event.widget is not None and event.widget.id == "setup-line":
+            self.action_focus_field("reference")
+
+    def _show_setup_line(self) -> None:
+        if self.has_class("-typing") and self.narrow:
+            self._one("#setup-line", Static).update(self.session.setup_line(42), layout=False)
+
+    def _keep_cursor_in_view(self) -> None:
+        """After the rows above the grid changed (a message of two lines, the set-up folded):
+        the cursor's fibre stays in sight."""
+        self._one("#readings", ReadingsGrid).scroll_to_cursor()
 
     @property
     def narrow(self) -> bool:
@@ -216,27 +186,14 @@ class MeterScreen(Screen[None]):
         return cast(W, found)
 
     # -- the grid ----------------------------------------------------------------------------
-    def _text(self, fibre: int, column: GridColumn) -> Text:
-        shown = self.session.cell_text(fibre, column)
-        return Text("") if shown is None else Text(shown[0], style=shown[1], justify="right")
-
     def _rebuild_grid(self) -> None:
-        s = self.session
-        s.clamp()
-        grid = self._one("#readings", ReadingsGrid)
-        cells: dict[tuple[int, str], Text] = {}
-        for column in s.grid_columns():
-            for fibre in range(1, s.fibres + 1):
-                text = self._text(fibre, column)
-                if text.plain:
-                    cells[(fibre, column.key)] = text
-        grid.set_layout(s.fibres, s.grid_columns(), cells)
-        grid.point_at(s.fibre, s.active_column)
+        self.session.clamp()
+        self._one("#readings", ReadingsGrid).draw(self.session)
 
     def _refresh_cell(self, fibre: int, wavelength_nm: float, direction: str) -> None:
-        grid = self._one("#readings", ReadingsGrid)
-        for column in (GridColumn(wavelength_nm, direction), GridColumn(wavelength_nm, None)):
-            grid.show(fibre, column, self._text(fibre, column))
+        self._one("#readings", ReadingsGrid).draw_cell(
+            self.session, fibre, wavelength_nm, direction
+        )
 
     def _point(self) -> None:
         self._one("#readings", ReadingsGrid).point_at(
@@ -255,81 +212,29 @@ class MeterScreen(Screen[None]):
         if event.value != event.input.value:
             return  # stale: the field changed again since (its own event follows)
         field_id = event.input.id or ""
-        handler = {
-            "method": self._method_changed,
-            "wavelengths": self._layout_changed,
-            "fibres": self._layout_changed,
-            "directions": self._layout_changed,
-            "reference": self._reference_changed,
-            "limit": self._limit_changed,
-            "reading": self._reading_changed,
-            "source-level": self._details_changed,
-            "launch": self._details_changed,
-        }.get(field_id)
-        if handler is not None:
-            handler(field_id, event.value)
-
-    def _method_changed(self, field_id: str, text: str) -> None:
-        try:
-            self.session.set_method(text)
-        except InputError as exc:
-            self._show_error(field_id, str(exc))
+        if field_id == "reading":
+            self._reading_typed(event.value)
             return
-        self._show_error(field_id, "")
-        self._after_limits_changed()
-
-    def _layout_changed(self, field_id: str, text: str) -> None:
-        setter = {
-            "wavelengths": self.session.set_wavelengths,
-            "fibres": self.session.set_fibres,
-            "directions": self.session.set_directions,
-        }[field_id]
-        try:
-            changed = setter(text)
-        except InputError as exc:
-            self._show_error(field_id, str(exc))
-            if field_id == "directions":
-                self._one("#directions-meaning", Label).update("?")
+        done = self.session.change_field(field_id, event.value)
+        if done is None:
             return
-        self._show_error(field_id, "")
-        if field_id == "directions":
-            self._one("#directions-meaning", Label).update(DIRECTION_WORDS[text.strip()])
-        if changed:
+        if done.error is not None:
+            self._show_error(field_id, done.error)
+        if done.meaning is not None:
+            self._one("#directions-meaning", Label).update(done.meaning)
+        if done.grid:
             self._rebuild_grid()
             self._sync_column_fields()
             self._show_entry_where()
+        if done.limits is not None:
+            self._rebuild_grid()
+            self._show_limit_placeholder()
+            for change in done.limits:
+                self._queue(change)
+        if done.grid or done.limits is not None or done.note:
+            self._show_reference_note()
             self._show_summary()
-
-    def _reference_changed(self, field_id: str, text: str) -> None:
-        try:
-            if not self.session.set_reference(text):
-                return  # the field shown again for this column (Ctrl+←/→), nothing typed
-            self._show_error(field_id, "")
-        except InputError as exc:
-            self._show_error(field_id, str(exc))
-        self._show_reference_note()
-        self._show_summary()
-
-    def _details_changed(self, field_id: str, text: str) -> None:
-        self._show_reference_note()
-
-    def _limit_changed(self, field_id: str, text: str) -> None:
-        try:
-            wavelength_nm = self.session.set_limit(text)
-        except InputError as exc:
-            self._show_error(field_id, str(exc))
-            return
-        self._show_error(field_id, "")
-        if wavelength_nm is not None:
-            self._after_limits_changed(wavelength_nm)
-
-    def _after_limits_changed(self, wavelength_nm: float | None = None) -> None:
-        self._rebuild_grid()
-        self._show_summary()
-        self._show_limit_placeholder()
-        self._show_reference_note()
-        for change in self.session.limit_changes(wavelength_nm):
-            self._queue(change)
+            self._say(None)  # a new reference may have dealt with a negative loss
 
     def _show_limit_placeholder(self) -> None:
         self._one("#limit", Input).placeholder = self.session.limit_placeholder(self.narrow)
@@ -361,22 +266,31 @@ class MeterScreen(Screen[None]):
         )
         if source_error is not None:
             self._show_error("source-level", source_error)
-        self._one("#reference-note", Static).update(note)
+        widget = self._one("#reference-note", Static)
+        if len(str(widget.render()).splitlines()) != len(note.splitlines()):
+            self._keep_cursor_in_view()
+        widget.update(note)
+        self._show_setup_line()
 
     # -- entering readings --------------------------------------------------------------
     def _say(self, text: str | None, *, error: bool = False) -> None:
-        """The entry line's message (fixed height: no layout pass per reading)."""
+        """The entry line's message (fixed height: no layout pass per reading). A negative
+        loss not yet dealt with stays on its first line, whatever is said after it."""
         self._view.say = None  # said since: a message waiting for the next view is old
         message = self._one("#entry-message", Static)
         if text is not None:
             self._hint_shown = False
+            self._said = text
+        problem = self.session.problem_words(short=self.narrow, besides=self._said)
+        error = error or problem is not None
         if message.has_class("field-error") != error:
             message.set_class(error, "field-error")
-        if text is not None:
-            message.update(text, layout=False)
-
-    def _reading_changed(self, field_id: str, text: str) -> None:
-        self._reading_typed(text)
+            if self.narrow:  # one row or two: the grid's height changes
+                self._keep_cursor_in_view()
+        shown = self._said if problem is None else f"{problem}\n{self._said}"
+        if shown != self._shown:
+            self._shown = shown
+            message.update(shown, layout=False)
 
     def _reading_typed(self, text: str) -> None:
         problem = self.session.typing_problem(text)
@@ -546,96 +460,38 @@ class MeterScreen(Screen[None]):
     @property
     def unsaved(self) -> int:
         """Entries not yet in the job file (0 when everything is saved or no job is chosen)."""
-        return self.session.saves.unsaved if self.session.job_id else 0
+        return self.saver.unsaved
 
     def _queue(self, change: MeterChange | None) -> None:
-        """Queue a change for the job (None: just save what is queued)."""
-        if self.session.job_id is None:
-            return
-        if self.session.saves.put(change):
-            self._save_worker = self.run_worker(
-                self._drain, thread=True, group="meter-save", exit_on_error=False
-            )
+        self.saver.queue(change)
 
-    def _save(self, batch: list[MeterChange]) -> Applied:
-        s = self.session
-        assert s.job_id is not None and s.link_id is not None
-        return apply_changes(fieldkit_app(self).store, s.job_id, s.link_id, batch)
-
-    def _drain(self) -> None:
-        """Save everything queued, in as few job updates as possible (the save worker's
-        thread); the screen hears of each batch by a message."""
-        from fieldkit.jobs.store import StoreError
-
-        saves = self.session.saves
-        while batch := self._gathered():
-            try:
-                outcome = self._save(batch)
-            except (StoreError, KeyError, ValueError, OSError) as exc:
-                saves.failed(str(exc))
-                self.post_message(self.SaveFailed(str(exc)))
-                return
-            saves.done(batch, now())
-            self.post_message(self.Saved(outcome))
-
-    def _gathered(self) -> list[MeterChange]:
-        """The next batch, once typing pauses: a burst typed ahead goes in one job update
-        rather than a reload and write per reading. A reading waits at most SAVE_GATHER_S
-        while more keep coming (quitting saves at once)."""
-        saves = self.session.saves
-        deadline = time.monotonic() + self.SAVE_GATHER_S
-        seen = -1
-        while (count := saves.unsaved) != seen and time.monotonic() < deadline:
-            seen = count
-            time.sleep(self.SAVE_QUIET_S)
-        return saves.take()
+    def _report(self, outcome: Applied | str) -> None:
+        self.post_message(self.Saved(outcome))  # from the save worker's thread
 
     async def saves_settled(self) -> None:
         """Wait for the save worker to finish what is queued, and show the summary as it
         stands (tests and benchmarks await this rather than polling)."""
-        while (worker := self._save_worker) is not None and not worker.is_finished:
-            await worker.wait()
+        await self.saver.settled()
         self._show_summary()
 
     @on(Saved)
     def _saved(self, event: Saved) -> None:
+        if isinstance(event.outcome, str):
+            self.notify(
+                "Readings not saved (kept here; saving again with the next entry): "
+                f"{event.outcome}",
+                severity="error",
+                timeout=10,
+            )
+            self._show_summary()
+            return
         for warning in self.session.saved(event.outcome):
             self.notify(warning, severity="warning", timeout=10)
         self._summary_soon()
 
-    @on(SaveFailed)
-    def _save_failed(self, event: SaveFailed) -> None:
-        self.notify(
-            f"Readings not saved (kept here; saving again with the next entry): {event.error}",
-            severity="error",
-            timeout=10,
-        )
-        self._show_summary()
-
     def flush_saves(self, timeout_s: float = 5.0) -> bool:
-        """Wait for a running save, then save what is still queued, here and now.
-
-        Called when the workspace closes (the app quits), so a reading typed just before is
-        not left in memory. True when nothing is left unsaved.
-        """
-        from fieldkit.jobs.store import StoreError
-
-        saves = self.session.saves
-        if self.session.job_id is None:
-            return True
-        deadline = time.monotonic() + timeout_s
-        while not saves.claim():  # the worker's thread ends its batch (it never waits on us)
-            if time.monotonic() > deadline:
-                return False
-            time.sleep(0.01)
-        while batch := saves.take():
-            try:
-                self._save(batch)
-            except (StoreError, KeyError, ValueError, OSError) as exc:
-                saves.failed(str(exc))
-                return False
-            saves.done(batch, now())
-        return True
+        """Save what is queued here and now (the workspace closes); True when all is saved."""
+        return self.saver.flush(timeout_s)
 
     def on_unmount(self) -> None:
         self.flush_saves()
@@ -643,8 +499,6 @@ class MeterScreen(Screen[None]):
     # -- history ------------------------------------------------------------------------
     def action_history(self) -> None:
         """The fibre's history in the job: every result, the superseded ones marked."""
-        from fieldkit.actions.meter import fibre_history
-        from fieldkit.jobs.reports import fmt_time, verdict
         from fieldkit.jobs.store import StoreError
         from fieldkit.tui.widgets.dialogs import AskDialog
 
@@ -658,11 +512,7 @@ class MeterScreen(Screen[None]):
         except (StoreError, KeyError) as exc:
             self._say(f"The history could not be read: {exc}", error=True)
             return
-        lines = [
-            f"{fmt_time(r.at)} {r.wavelength_nm:g} nm {r.direction}: {r.loss_db:.2f} dB "
-            f"{verdict(r)}" + (f" ({r.by})" if r.by else "")
-            for r in fibre_history(link, s.fibre)
-        ] or ["No reading of this fibre is saved in the job yet."]
+        lines = history_lines(link, s.fibre)
         self.app.push_screen(AskDialog(f"Fibre {s.fibre} on {link.label}", lines, []))
 
     # -- recheck ------------------------------------------------------------------------
@@ -688,7 +538,7 @@ class MeterScreen(Screen[None]):
         done = self.session.apply_recheck(column, level_dbm, tolerance_db, by=self._details().by)
         for fibre, w, d in done.doubted:
             self._refresh_cell(fibre, w, d)
-        self._say(f"{column.heading}: {done.drift.message}", error=not done.drift.within)
+        self._say(done.words(column, short=self.narrow), error=not done.drift.within)
         self._queue(done.change)
         self._show_reference_note()
         self._show_summary()

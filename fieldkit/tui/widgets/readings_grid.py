@@ -19,13 +19,18 @@ from textual.reactive import Reactive
 from textual.widgets import DataTable, Input
 from textual.widgets.data_table import RowKey
 
-from fieldkit.tui.meter_session import GridColumn
+from fieldkit.tui.meter_session import GridColumn, MeterSession
 
 __all__ = ["EntryInput", "GridColumn", "ReadingsGrid"]
 
 SegmentLines = list[list[Segment]]
 #: A cursor position outside every cell (the header's row label is (-1, -1)).
 _NOWHERE = Coordinate(-2, -2)
+
+
+def _cell(session: MeterSession, fibre: int, column: GridColumn) -> Text:
+    shown = session.cell_text(fibre, column)
+    return Text("") if shown is None else Text(shown[0], style=shown[1], justify="right")
 
 
 class ReadingsGrid(DataTable[Text]):
@@ -64,6 +69,25 @@ class ReadingsGrid(DataTable[Text]):
             row = [Text(str(fibre), justify="right")]
             row += [cells.get((fibre, c.key), blank) for c in columns]
             self.add_row(*row, key=str(fibre))
+
+    def draw(self, session: MeterSession) -> None:
+        """Build the grid for the session's fibres and columns, with its readings."""
+        columns = session.grid_columns()
+        cells: dict[tuple[int, str], Text] = {}
+        for column in columns:
+            for fibre in range(1, session.fibres + 1):
+                text = _cell(session, fibre, column)
+                if text.plain:
+                    cells[(fibre, column.key)] = text
+        self.set_layout(session.fibres, columns, cells)
+        self.point_at(session.fibre, session.active_column)
+
+    def draw_cell(
+        self, session: MeterSession, fibre: int, wavelength_nm: float, direction: str
+    ) -> None:
+        """Show one reading again, and its fibre's average with two directions."""
+        for column in (GridColumn(wavelength_nm, direction), GridColumn(wavelength_nm, None)):
+            self.show(fibre, column, _cell(session, fibre, column))
 
     def show(self, fibre: int, column: GridColumn, text: Text) -> None:
         """Change one cell (no-op for a fibre or column not shown); only its row is drawn again.
