@@ -16,7 +16,7 @@ import json
 import re
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from fieldkit import inputs, linkspec
 from fieldkit.calc.budget import BudgetReport
@@ -25,8 +25,34 @@ from fieldkit.calc.units import InputError
 from fieldkit.linkspec.resolve import ResolvedBudget
 from fieldkit.presets import PresetLibrary, load_presets
 from fieldkit.text.budget import fibre_data_lines
+from fieldkit.tui.form_fields import Notice
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.store import JobStore
 
 TYPED = "__typed__"
+__all__ = [
+    "ADD_KINDS",
+    "DEFAULT_ADD_KIND",
+    "KINDS",
+    "LEVEL_FIELDS",
+    "SETTINGS",
+    "SETTING_FIELDS",
+    "TYPED",
+    "BudgetModel",
+    "Item",
+    "Kind",
+    "Notice",
+    "Outcome",
+    "extra_shown",
+    "item_entry",
+    "item_errors",
+    "item_text",
+    "items_from_spec",
+    "missing_entry",
+    "spec_from_items",
+    "starting_items",
+]
 
 
 @dataclass(frozen=True, slots=True)
@@ -94,11 +120,49 @@ SETTING_FIELDS = (
     "rx-sens",
     "rx-over",
 )
-_LEVELS = (
+_LEVEL_KEYS = (
     ("tx-min", "tx_min_dbm", "Tx minimum"),
     ("tx-max", "tx_max_dbm", "Tx maximum"),
     ("rx-sens", "rx_sensitivity_dbm", "Rx sensitivity"),
     ("rx-over", "rx_overload_dbm", "Rx overload"),
+)
+
+#: The settings fields as the workspace lays them out: label, id, hint (an example, never a
+#: value; it says what empty means), tooltip.
+SETTINGS = (
+    (
+        "Wavelengths",
+        "wavelengths",
+        "e.g. 1310, 1550",
+        "in nm (empty: 850/1300 multimode, 1310/1550 single-mode)",
+    ),
+    (
+        "Margin",
+        "margin",
+        "e.g. 3 dB; empty: none",
+        "repairs and ageing, shown beside the link loss, not in it (empty: no margin)",
+    ),
+    (
+        "Bit rate",
+        "bit-rate",
+        "e.g. 10.3125 GBd",
+        "line rate in GBd for the dispersion and modal-bandwidth checks (empty: the "
+        "transceiver's or the application's)",
+    ),
+    (
+        "Spectrum",
+        "spectral-width",
+        "e.g. 0.1 nm RMS",
+        "the source's RMS spectral width in nm, for the dispersion check when no transceiver "
+        "tolerance is known",
+    ),
+)
+#: The typed transceiver levels: label, id, hint.
+LEVEL_FIELDS = (
+    ("Tx min", "tx-min", "e.g. −8.2 dBm"),
+    ("Tx max", "tx-max", "e.g. 0.5 dBm"),
+    ("Rx sens", "rx-sens", "e.g. −14.4 dBm"),
+    ("Rx overload", "rx-over", "e.g. 0.5 dBm"),
 )
 
 
@@ -243,7 +307,7 @@ def items_from_spec(spec: dict[str, Any]) -> tuple[list[Item], dict[str, str]]:
         settings["transceiver"] = tx
     elif isinstance(tx, dict):
         settings["transceiver"] = TYPED
-        for field_id, key, _ in _LEVELS:
+        for field_id, key, _ in _LEVEL_KEYS:
             settings[field_id] = _text(tx.get(key), "dBm")
     return items, settings
 
@@ -475,6 +539,57 @@ class BudgetModel:
         """An empty budget: the starting items and no settings."""
         self.load(starting_items(), {})
 
+    # -- a job's link ---------------------------------------------------------------------
+    def open_saved(self, store: JobStore, job_id: str, link_id: str) -> Notice:
+        """Load the budget saved on a job's link (what is held now is replaced only when the
+        saved one can be opened)."""
+        from fieldkit.jobs.store import StoreError
+
+        try:
+            link = store.load(job_id).link(link_id)
+        except (StoreError, KeyError) as exc:
+            message = str(exc.args[0]) if isinstance(exc, KeyError) and exc.args else str(exc)
+            return Notice(f"Not opened: {message}", "error", ok=False)
+        if link.budget is None or not link.budget.description.get("segments"):
+            return Notice(f"Link {link.label} has no saved budget to open.", "warning", ok=False)
+        items, fields = items_from_spec(link.budget.description)
+        if not any(i.kind == "fibre" for i in items):
+            return Notice(f"The budget on {link.label} has no fibre segment.", "warning", ok=False)
+        warnings = self.load(items, fields)
+        self.mark_clean()
+        return Notice(f"Opened the budget saved on link {link.label}.", warnings=tuple(warnings))
+
+    def save(
+        self,
+        store: JobStore,
+        job_id: str,
+        link_id: str,
+        resolved: ResolvedBudget,
+        report: BudgetReport,
+        *,
+        by: str,
+    ) -> Notice:
+        """Save a budget onto a job's link through the layer that changes jobs."""
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.saves import save_budget
+        from fieldkit.jobs.budget_records import budget_record
+        from fieldkit.jobs.store import StoreError
+
+        record = budget_record(resolved, report, by=by)
+        try:
+            saved = save_budget(
+                store,
+                job_id,
+                link_id,
+                record,
+                length_m=resolved.link.length_m,
+                fibre_type=", ".join(resolved.link.fibre_names),
+            )
+        except (StoreError, ActionError) as exc:
+            return Notice(f"Not saved: {exc}", "error", ok=False)
+        self.mark_clean()
+        return Notice(f"Budget saved onto job {saved.job_name}, link {saved.link_label}.")
+
     # -- unsaved edits ----------------------------------------------------------------------
     def fingerprint(self) -> str:
         return json.dumps(
@@ -532,7 +647,7 @@ class BudgetModel:
             levels: dict[str, Any] = {}
             level_problems: list[str] = []
             untyped: list[str] = []
-            for field_id, key, what in _LEVELS:
+            for field_id, key, what in _LEVEL_KEYS:
                 typed = self.fields.get(field_id, "")
                 if not typed.strip():
                     untyped.append(what)

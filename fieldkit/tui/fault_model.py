@@ -15,10 +15,14 @@ import json
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Literal
+from typing import TYPE_CHECKING, Any, Literal
 
 from fieldkit.actions.saves import fault_inputs
 from fieldkit.calc.locate import (
+    DEFAULT_GROUP_INDEX_UNCERTAINTY,
+    DEFAULT_OFFSET_M,
+    DEFAULT_SAMPLE_SPACING_M,
+    DEFAULT_SCALE_ERROR_PERCENT,
     OUTPUT_UNITS,
     TYPED_HELIX_UNCERTAINTY_PERCENT,
     UNKNOWN_HELIX_ESTIMATE_PERCENT,
@@ -38,7 +42,10 @@ from fieldkit.inputs import otdr_distance_m
 from fieldkit.presets import PresetLibrary, load_presets
 from fieldkit.text.locate import result_lines, summary_line
 from fieldkit.text.route import FaultMark, RoutePoint
-from fieldkit.tui.form_fields import Column, field_name, plain_number
+from fieldkit.tui.form_fields import Column, Notice, field_name, plain_number
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.store import JobStore
 
 TYPED = "__typed__"
 #: The cable choice that gives no helix: the calculation's own assumption, shown as such.
@@ -47,32 +54,90 @@ NOT_GIVEN = "__not_given__"
 
 @dataclass(frozen=True, slots=True)
 class Field:
-    """A typed field of the form: its label, and how its text is read."""
+    """A typed field of the form: its label, how its text is read, its hint (an example, never
+    a value), the text it starts with and its tooltip."""
 
     label: str
     kind: Literal["quantity", "number"]
     expect: Kind | None = None
     default_unit: str | None = None
     check: Callable[[str, str], object] | None = None
+    hint: str = ""
+    start: str = ""
+    tip: str | None = None
 
 
 #: The typed fields, by key (the screen's ids are ``fault-<key>``), in the order they are laid
 #: out: the first field with a problem is the one a message names.
 FIELDS: dict[str, Field] = {
-    "distance": Field("OTDR dist", "quantity", Kind.LENGTH, check=otdr_distance_m),
-    "time": Field("or time", "quantity", Kind.TIME),
-    "ior-set": Field("Index set", "number"),
-    "ior": Field("Group index", "number"),
-    "helix": Field("Helix %", "number"),
-    "marking": Field("At start", "number"),
-    "from-b": Field("From end B", "quantity", Kind.LENGTH, "m"),
-    "total": Field("Total", "quantity", Kind.LENGTH, "m"),
-    "offset": Field("Offset", "quantity", Kind.LENGTH, "m"),
-    "scale": Field("Scale %", "number"),
-    "sampling": Field("Sampling", "quantity", Kind.LENGTH, "m"),
-    "ior-u": Field("Index ±", "number"),
-    "helix-u": Field("Helix ± %", "number"),
-    "landmark-u": Field("Landmark ±", "quantity", Kind.LENGTH, "m"),
+    "distance": Field(
+        "OTDR dist",
+        "quantity",
+        Kind.LENGTH,
+        check=otdr_distance_m,
+        hint="e.g. 3.412 km",
+        tip="The event's distance as the OTDR shows it",
+    ),
+    "time": Field(
+        "or time",
+        "quantity",
+        Kind.TIME,
+        hint="e.g. 34.1 µs",
+        tip="The round-trip time instead of a distance",
+    ),
+    "ior-set": Field(
+        "Index set",
+        "number",
+        hint="e.g. 1.4680 (as set)",
+        tip="The group index the OTDR was set to; empty if it was set to the fibre's",
+    ),
+    "ior": Field(
+        "Group index",
+        "number",
+        hint="e.g. 1.4677",
+        tip="The fibre's group index (filled from the preset; type the cable's own if you have it)",
+    ),
+    "helix": Field(
+        "Helix %",
+        "number",
+        hint="e.g. 1.5",
+        tip="Helix / excess fibre length: how much longer the fibre is than the sheath "
+        "(empty: not given)",
+    ),
+    "marking": Field("At start", "number", hint="e.g. 12345 (optional)"),
+    "from-b": Field(
+        "From end B", "quantity", Kind.LENGTH, "m", hint="e.g. 1590 m", tip="Same set-up, from B"
+    ),
+    "total": Field(
+        "Total", "quantity", Kind.LENGTH, "m", hint="e.g. 5000 m", tip="End to end, same set-up"
+    ),
+    "offset": Field(
+        "Offset", "quantity", Kind.LENGTH, "m", hint="e.g. 1 m", start=f"{DEFAULT_OFFSET_M:g} m"
+    ),
+    "scale": Field("Scale %", "number", hint="e.g. 0.01", start=f"{DEFAULT_SCALE_ERROR_PERCENT:g}"),
+    "sampling": Field(
+        "Sampling",
+        "quantity",
+        Kind.LENGTH,
+        "m",
+        hint="e.g. 1 m",
+        start=f"{DEFAULT_SAMPLE_SPACING_M:g} m",
+    ),
+    "ior-u": Field(
+        "Index ±", "number", hint="e.g. 0.001", start=f"{DEFAULT_GROUP_INDEX_UNCERTAINTY:g}"
+    ),
+    "helix-u": Field(
+        "Helix ± %", "number", hint="e.g. 0.5", start=format_number(TYPED_HELIX_UNCERTAINTY_PERCENT)
+    ),
+    "landmark-u": Field(
+        "Landmark ±",
+        "quantity",
+        Kind.LENGTH,
+        "m",
+        hint="e.g. 5 m",
+        start="0 m",
+        tip="From the route records",
+    ),
 }
 
 LANDMARK_COLUMNS = (
@@ -85,6 +150,12 @@ SLACK_COLUMNS = (
     Column("length", "Cable len", "length", "20 m"),
     Column("label", "Label", "text", "coil at HH 4"),
 )
+
+LANDMARKS_EMPTY = (
+    "None yet: closures, handholes, building entries with OTDR and route distance. Enter adds; "
+    "pick a row to edit; Delete removes."
+)
+SLACK_EMPTY = "None yet: each loop's route position and cable length. Enter adds."
 
 #: What New empties: the reading, the marking and the two-ended check (and the rows); the
 #: fibre, cable and uncertainty settings stay.
@@ -324,6 +395,26 @@ class FaultForm:
             False,
             points,
             FaultMark(p.route_distance_m, p.low_m, p.high_m),
+        )
+
+    # -- a job's link ---------------------------------------------------------------------
+    def save(self, store: JobStore, job_id: str, link_id: str, *, by: str, unit: str) -> Notice:
+        """Save the located fault onto a job's link through the layer that changes jobs."""
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.saves import fault_record, save_fault
+        from fieldkit.jobs.store import StoreError
+
+        if self.location is None:
+            return Notice(self.problem or "Nothing located yet to save.", "warning", ok=False)
+        record = fault_record(self.location, dict(self.inputs), by=by)
+        try:
+            saved = save_fault(store, job_id, link_id, record)
+        except (StoreError, ActionError) as exc:
+            return Notice(f"Not saved: {exc}", "error", ok=False)
+        self.mark_clean()
+        return Notice(
+            f"Saved onto {saved.job_name} / {saved.link_label}: "
+            f"{format_distance(record.route_distance_m, unit)} on the route."
         )
 
     # -- unsaved edits ----------------------------------------------------------------------

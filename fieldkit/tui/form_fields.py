@@ -30,6 +30,17 @@ def plain_number(text: str, label: str) -> float | None:
     return parse_number(text, field_name(label))
 
 
+@dataclass(frozen=True)
+class Notice:
+    """What an open or a save says: the line to show, how loud, whether it was done, and
+    warnings to give besides."""
+
+    text: str
+    severity: Literal["information", "warning", "error"] = "information"
+    ok: bool = True
+    warnings: tuple[str, ...] = ()
+
+
 @dataclass(frozen=True, slots=True)
 class Column:
     """A column of an editable list: its key, label, kind and example (shown as a hint)."""

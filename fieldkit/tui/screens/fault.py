@@ -20,25 +20,18 @@ from textual.screen import Screen
 from textual.widgets import Button, Input, Label, Select, Static
 
 from fieldkit import safety
-from fieldkit.calc.locate import (
-    DEFAULT_GROUP_INDEX_UNCERTAINTY,
-    DEFAULT_OFFSET_M,
-    DEFAULT_SAMPLE_SPACING_M,
-    DEFAULT_SCALE_ERROR_PERCENT,
-    OUTPUT_UNITS,
-    TYPED_HELIX_UNCERTAINTY_PERCENT,
-    Location,
-    format_distance,
-)
-from fieldkit.calc.units import InputError, format_number
+from fieldkit.calc.locate import OUTPUT_UNITS, Location
+from fieldkit.calc.units import InputError
 from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 from fieldkit.tui.fault_model import (
     FIELDS,
     LANDMARK_COLUMNS,
+    LANDMARKS_EMPTY,
     NEW_CLEARS,
     NOT_GIVEN,
     SLACK_COLUMNS,
+    SLACK_EMPTY,
     TYPED,
     FaultForm,
 )
@@ -54,27 +47,26 @@ from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 __all__ = ["FaultScreen", "PointList"]
 
 
-def _field(key: str, placeholder: str = "", *, value: str = "", tooltip: str | None = None) -> Any:
-    """The widget of a typed field of :data:`FIELDS` (id ``fault-<key>``)."""
-    spec = FIELDS[key]
-    if spec.kind == "number":
-        return NumberField(
-            spec.label,
-            field_id=f"fault-{key}",
-            placeholder=placeholder,
-            value=value,
-            tooltip=tooltip,
-        )
-    return QuantityField(
-        spec.label,
-        expect=spec.expect,
-        default_unit=spec.default_unit,
-        field_id=f"fault-{key}",
-        check=spec.check,
-        placeholder=placeholder,
-        value=value,
-        tooltip=tooltip,
-    )
+def _fields(*keys: str) -> ComposeResult:
+    """The widgets of typed fields of :data:`FIELDS` (ids ``fault-<key>``)."""
+    for key in keys:
+        spec = FIELDS[key]
+        common: dict[str, Any] = {
+            "field_id": f"fault-{key}",
+            "placeholder": spec.hint,
+            "value": spec.start,
+            "tooltip": spec.tip,
+        }
+        if spec.kind == "number":
+            yield NumberField(spec.label, **common)
+        else:
+            yield QuantityField(
+                spec.label,
+                expect=spec.expect,
+                default_unit=spec.default_unit,
+                check=spec.check,
+                **common,
+            )
 
 
 def _select(label: str, options: list[tuple[str, Any]], value: Any, **kw: Any) -> ComposeResult:
@@ -118,29 +110,11 @@ class FaultScreen(Screen[None]):
             with Vertical(classes="col", id="fault-inputs"):
                 with Vertical(classes="panel", id="fault-reading") as panel:
                     panel.border_title = "Reading from the start"
-                    yield _field(
-                        "distance",
-                        "e.g. 3.412 km",
-                        tooltip="The event's distance as the OTDR shows it",
-                    )
-                    yield _field(
-                        "time", "e.g. 34.1 µs", tooltip="The round-trip time instead of a distance"
-                    )
-                    yield _field(
-                        "ior-set",
-                        "e.g. 1.4680 (as set)",
-                        tooltip="The group index the OTDR was set to; empty if it "
-                        "was set to the fibre's",
-                    )
+                    yield from _fields("distance", "time", "ior-set")
                 with Vertical(classes="panel", id="fault-fibre-panel") as panel:
                     panel.border_title = "Fibre and cable"
-                    yield from _select(
-                        "Fibre",
-                        fibres,
-                        fibre_name,
-                        id="fault-fibre",
-                        tooltip="Fibre type: fills the group index",
-                    )
+                    tip = "Fibre type: fills the group index"
+                    yield from _select("Fibre", fibres, fibre_name, id="fault-fibre", tooltip=tip)
                     yield from _select(
                         "Wavelength",
                         [("—", 0.0)],
@@ -148,87 +122,50 @@ class FaultScreen(Screen[None]):
                         id="fault-wavelength",
                         tooltip="OTDR wavelength",
                     )
-                    yield _field(
-                        "ior",
-                        "e.g. 1.4677",
-                        tooltip="The fibre's group index (filled from the preset; "
-                        "type the cable's own if you have it)",
-                    )
+                    yield from _fields("ior")
                     # No helix until one is chosen or typed, as on the command line: the range
                     # then runs from the fibre distance down to the shortest plausible cable.
-                    yield from _select(
-                        "Cable",
-                        self.form.cable_choices(),
-                        NOT_GIVEN,
-                        id="fault-cable",
-                        tooltip="Cable construction: fills a typical helix",
-                    )
-                    yield _field(
-                        "helix",
-                        "e.g. 1.5",
-                        tooltip="Helix / excess fibre length: how much longer the "
-                        "fibre is than the sheath (empty: not given)",
-                    )
+                    tip = "Cable construction: fills a typical helix"
+                    cables = self.form.cable_choices()
+                    yield from _select("Cable", cables, NOT_GIVEN, id="fault-cable", tooltip=tip)
+                    yield from _fields("helix")
                     yield Static("", id="fault-cable-note", classes="field-note")
-                with Vertical(classes="panel", id="fault-landmarks-panel") as panel:
-                    panel.border_title = "Landmarks"
-                    yield PointList(
-                        LANDMARK_COLUMNS,
-                        list_id="fault-landmarks",
-                        empty="None yet: closures, handholes, building entries "
-                        "with OTDR and route distance. Enter adds; pick a row to "
-                        "edit; Delete removes.",
-                    )
-                with Vertical(classes="panel", id="fault-slack-panel") as panel:
-                    panel.border_title = "Slack loops and coils"
-                    yield PointList(
-                        SLACK_COLUMNS,
-                        list_id="fault-slack",
-                        empty="None yet: each loop's route position and cable length. Enter adds.",
-                    )
+                for list_id, title, columns, empty in (
+                    ("fault-landmarks", "Landmarks", LANDMARK_COLUMNS, LANDMARKS_EMPTY),
+                    ("fault-slack", "Slack loops and coils", SLACK_COLUMNS, SLACK_EMPTY),
+                ):
+                    with Vertical(classes="panel", id=f"{list_id}-panel") as panel:
+                        panel.border_title = title
+                        yield PointList(columns, list_id=list_id, empty=empty)
                 with Vertical(classes="panel", id="fault-marking-panel") as panel:
                     panel.border_title = "Sheath markings"
-                    yield _field("marking", "e.g. 12345 (optional)")
+                    yield from _fields("marking")
                     with Horizontal(classes="fault-row"):
                         yield Label("Marked", classes="fault-label")
-                        yield Select(
-                            [("metres", "m"), ("feet", "ft")],
-                            value="m",
-                            allow_blank=False,
-                            compact=True,
-                            id="fault-marking-unit",
-                        )
-                        yield Select(
-                            [("count up", "up"), ("count down", "down")],
-                            value="up",
-                            allow_blank=False,
-                            compact=True,
-                            id="fault-marking-direction",
-                        )
+                        for select_id, options, value in (
+                            ("fault-marking-unit", [("metres", "m"), ("feet", "ft")], "m"),
+                            (
+                                "fault-marking-direction",
+                                [("count up", "up"), ("count down", "down")],
+                                "up",
+                            ),
+                        ):
+                            yield Select(
+                                options, value=value, allow_blank=False, compact=True, id=select_id
+                            )
                 with Vertical(classes="panel", id="fault-two-panel") as panel:
                     panel.border_title = "Two-ended check"
-                    yield _field("from-b", "e.g. 1590 m", tooltip="Same set-up, from end B")
-                    yield _field("total", "e.g. 5000 m", tooltip="End to end, same set-up")
+                    yield from _fields("from-b", "total")
                 with Vertical(classes="panel", id="fault-errors-panel") as panel:
                     panel.border_title = "Uncertainty (± typical)"
-                    yield _field("offset", "e.g. 1 m", value=f"{DEFAULT_OFFSET_M:g} m")
-                    yield _field("scale", "e.g. 0.01", value=f"{DEFAULT_SCALE_ERROR_PERCENT:g}")
-                    yield _field("sampling", "e.g. 1 m", value=f"{DEFAULT_SAMPLE_SPACING_M:g} m")
-                    yield _field(
-                        "ior-u", "e.g. 0.001", value=f"{DEFAULT_GROUP_INDEX_UNCERTAINTY:g}"
-                    )
-                    yield _field(
-                        "helix-u", "e.g. 0.5", value=format_number(TYPED_HELIX_UNCERTAINTY_PERCENT)
-                    )
-                    yield _field(
-                        "landmark-u", "e.g. 5 m", value="0 m", tooltip="From the route records"
+                    yield from _fields(
+                        "offset", "scale", "sampling", "ior-u", "helix-u", "landmark-u"
                     )
             with Vertical(classes="col", id="fault-outputs"):
                 with Vertical(classes="panel", id="fault-result-panel") as panel:
                     panel.border_title = "Where to look"
-                    yield from _select(
-                        "Show in", [(u, u) for u in OUTPUT_UNITS], "m", id="fault-unit"
-                    )
+                    units = [(u, u) for u in OUTPUT_UNITS]
+                    yield from _select("Show in", units, "m", id="fault-unit")
                     yield Static("", id="fault-result", classes="result")
                 with Vertical(classes="panel", id="fault-route-panel") as panel:
                     panel.border_title = "Route"
@@ -469,33 +406,12 @@ class FaultScreen(Screen[None]):
         if self.location is None:
             self.notify(self.problem or "Nothing located yet to save.", severity="warning")
             return
-        location, inputs = self.location, dict(self.inputs)
-        self.app.push_screen(
-            JobLinkPicker(), lambda choice: self._save_to(choice, location, inputs)
-        )
+        self.app.push_screen(JobLinkPicker(), self._save_to)
 
-    def _save_to(
-        self, choice: tuple[str, str] | None, location: Location, inputs: dict[str, Any]
-    ) -> None:
-        from fieldkit.actions.errors import ActionError
-        from fieldkit.actions.saves import fault_record, save_fault
-        from fieldkit.jobs.store import StoreError
-
+    def _save_to(self, choice: tuple[str, str] | None) -> None:
         if choice is None:
             return
-        job_id, link_id = choice
         app = fieldkit_app(self)
-        record = fault_record(location, inputs, by=app.operator)
-        try:
-            saved = save_fault(app.store, job_id, link_id, record)
-        except (StoreError, ActionError) as exc:
-            self.notify(f"Not saved: {exc}", severity="error")
-            self.query_one("#fault-saved", Static).update(f"Not saved: {exc}")
-            return
-        text = (
-            f"Saved onto {saved.job_name} / {saved.link_label}: "
-            f"{format_distance(record.route_distance_m, self.unit)} on the route."
-        )
-        self.form.mark_clean()
-        self.query_one("#fault-saved", Static).update(text)
-        self.notify(text)
+        notice = self.form.save(app.store, *choice, by=app.operator, unit=self.unit)
+        self.query_one("#fault-saved", Static).update(notice.text)
+        self.notify(notice.text, severity=notice.severity)
