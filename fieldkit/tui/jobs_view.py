@@ -53,10 +53,13 @@ def no_job_head(any_jobs: bool, jobs_dir: Path) -> Text:
 
 
 def prompt(s: JobSummary) -> str:
+    """A row of the job list: the name, then the counts and the site (the list shows each on
+    one line, cut with "…" where it is narrower: wrapped, they read as other rows; the details
+    beside show them whole)."""
     mark = "✓" if s.status == "done" else "•"
     failed = f", {s.failed_count} failed" if s.failed_count else ""
-    site = f"{terminal(s.site)} · " if s.site else ""
-    return f"{mark} {terminal(s.name)}\n  {site}{counted(s.result_count, 'result')}{failed}"
+    site = f" · {terminal(s.site)}" if s.site else ""
+    return f"{mark} {terminal(s.name)}\n  {counted(s.result_count, 'result')}{failed}{site}"
 
 
 def head(job: Job) -> RenderableType:

@@ -131,7 +131,8 @@ class EndOfDayScreen(ModalScreen[str | None]):
             mark = "✓" if job.status == "done" else "•"
             fail = f", {job.failed} FAIL" if job.failed else ""
             results = counted(job.results_today, "result")
-            jobs.add_option(Option(f"{mark} {terminal(job.name)}: {results}{fail}", id=job.id))
+            # Two lines, each cut with "…" where narrow: the counts never fall off the end.
+            jobs.add_option(Option(f"{mark} {terminal(job.name)}\n  {results}{fail}", id=job.id))
         items = self.query_one("#eod-items", VerticalScroll)
         await items.remove_children()
         sections: list[Static] = []

@@ -72,6 +72,8 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         height: auto;
         max-height: 6;
         background: $boost;
+        text-wrap: nowrap;
+        text-overflow: ellipsis;
     }
     JobLinkPicker Input {
         margin: 0;
