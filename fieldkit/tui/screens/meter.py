@@ -14,7 +14,6 @@ Layout and wiring only: the state, what each key does and the summary text live 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TypeVar, cast
 
 from textual import events, on
 from textual.app import ComposeResult
@@ -22,8 +21,7 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.timer import Timer
-from textual.widget import Widget
-from textual.widgets import DataTable, Input, Label, Static
+from textual.widgets import DataTable, Input, Static
 
 from fieldkit.actions.meter import Applied, MeterChange, ReferenceDetails
 from fieldkit.calc import reference as ref
@@ -32,19 +30,10 @@ from fieldkit.tui.meter_saver import MeterSaver
 from fieldkit.tui.meter_session import GridColumn, MeterSession, history_lines
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.key_footer import KeyFooter
-from fieldkit.tui.widgets.meter_fields import setup_fields
-from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
+from fieldkit.tui.widgets.meter_fields import KEYS_HINT, KEYS_HINT_NARROW, entry_line, setup_fields
+from fieldkit.tui.widgets.meter_view import EntryView, SetupView
 from fieldkit.tui.widgets.readings_grid import EntryInput, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
-
-W = TypeVar("W", bound=Widget)
-_COLUMNS = f"{keys.display('column_previous')}/{keys.display('column_next')[5:]}"
-KEYS_HINT = (
-    f"Enter: next fibre · ↑↓ PgUp PgDn: fibres · {_COLUMNS}: columns · "
-    f"{keys.hint('remove')}: remove · click a cell"
-)
-#: The same keys in one line of a phone terminal, where rows go to the grid.
-KEYS_HINT_NARROW = f"Enter/↑↓ fibre · {_COLUMNS} col · {keys.hint('remove')} remove"
 
 
 @dataclass
@@ -54,6 +43,9 @@ class _ViewUpdate:
     cells: set[tuple[int, float, str]] = field(default_factory=set)
     say: tuple[str, bool] | None = None
     pending: bool = False
+
+
+__all__ = ["KEYS_HINT", "KEYS_HINT_NARROW", "MeterScreen"]
 
 
 class MeterScreen(Screen[None]):
@@ -77,13 +69,12 @@ class MeterScreen(Screen[None]):
         self.saver = MeterSaver(
             self.session, lambda: fieldkit_app(self).store, self.run_worker, self._report
         )
-        self._synced_column: GridColumn | None = None
+        self.setup = SetupView(self, self.session)
+        self.entry = EntryView(self, self.session)
         self._summary_timer: Timer | None = None
         self._hint_shown = False
-        self._widgets: dict[str, Widget] = {}
         self._view = _ViewUpdate()
-        self._said = ""  # the entry line's last message
-        self._shown = ""  # and what it shows (with a standing problem above it)
+        self._grid: ReadingsGrid | None = None
 
     # -- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -94,26 +85,14 @@ class MeterScreen(Screen[None]):
             # Alt+R/W/F or a click open it again.
             yield Static("", id="setup-line")
             yield Static("", id="reference-note", classes="field-note")
-            with Horizontal(id="meter-entry"):
-                yield Label("", id="entry-where")
-                yield EntryInput(
-                    placeholder="reading, dBm",
-                    type="text",
-                    restrict=QUANTITY_CHARS,
-                    compact=True,
-                    id="reading",
-                    check=self.session.reading_acceptable,
-                    typed=self._reading_typed,
-                    tooltip="Type the reading and press Enter; Up/Down move "
-                    f"between fibres, {_COLUMNS} between columns",
-                )
-            yield Static("", id="entry-message", classes="field-note")
+            yield from entry_line(self.session.reading_acceptable, self._reading_typed)
             with Horizontal(id="meter-main"):
                 yield ReadingsGrid(id="readings")
                 yield Static("", id="meter-summary")
         yield KeyFooter()
 
     def on_mount(self) -> None:
+        self._grid = self.query_one(ReadingsGrid)
         for error in self.query(".field-error"):
             error.display = False
         self._rebuild_grid()
@@ -123,7 +102,7 @@ class MeterScreen(Screen[None]):
         self._show_hint()
         self.set_interval(30.0, self._show_summary)
         # Focus opens where the technician types first: the reference, until one is set.
-        self.set_focus(self._one(f"#{self._work_field()}", Input))
+        self.set_focus(self.query_one(f"#{self._work_field()}"))
 
     def _work_field(self) -> str:
         """Where typing goes next: the Ref field while the column has no reference, else the
@@ -133,7 +112,7 @@ class MeterScreen(Screen[None]):
     def action_focus_field(self, field_id: str) -> None:
         """Alt+R / Alt+W / Alt+F: to a set-up field from wherever you type."""
         self.set_class(False, "-typing")
-        self.call_after_refresh(self._one(f"#{field_id}", Input).focus)
+        self.call_after_refresh(self.query_one(f"#{field_id}").focus)
 
     def on_descendant_focus(self, event: object) -> None:
         focused = self.focused
@@ -147,7 +126,7 @@ class MeterScreen(Screen[None]):
     def _setup_submitted(self, event: Input.Submitted) -> None:
         # Enter in a set-up field: back to typing readings (or to Ref, while it is empty).
         if event.input.id != "reading":
-            self._one(f"#{self._work_field()}", Input).focus()
+            self.query_one(f"#{self._work_field()}").focus()
 
     def on_click(self, event: events.Click) -> None:
         if event.widget is not None and event.widget.id == "setup-line":
@@ -155,12 +134,12 @@ class MeterScreen(Screen[None]):
 
     def _show_setup_line(self) -> None:
         if self.has_class("-typing") and self.narrow:
-            self._one("#setup-line", Static).update(self.session.setup_line(42), layout=False)
+            self.setup.line(42)
 
     def _keep_cursor_in_view(self) -> None:
         """After the rows above the grid changed (a message of two lines, the set-up folded):
         the cursor's fibre stays in sight."""
-        self._one("#readings", ReadingsGrid).scroll_to_cursor()
+        self.grid.scroll_to_cursor()
 
     @property
     def narrow(self) -> bool:
@@ -177,36 +156,23 @@ class MeterScreen(Screen[None]):
         self._say(KEYS_HINT_NARROW if self.narrow else KEYS_HINT)
         self._hint_shown = True
 
-    def _one(self, selector: str, kind: type[W] = Widget) -> W:  # type: ignore[assignment]
-        """``query_one``, remembered: the screen's widgets stay mounted, and a query walks the
-        whole screen (per keystroke it cost more than the grid's own work)."""
-        found = self._widgets.get(selector)
-        if found is None:
-            found = self._widgets[selector] = self.query_one(selector)
-        return cast(W, found)
+    @property
+    def grid(self) -> ReadingsGrid:
+        return self.query_one(ReadingsGrid) if self._grid is None else self._grid
 
     # -- the grid ----------------------------------------------------------------------------
     def _rebuild_grid(self) -> None:
         self.session.clamp()
-        self._one("#readings", ReadingsGrid).draw(self.session)
+        self.grid.draw(self.session)
 
     def _refresh_cell(self, fibre: int, wavelength_nm: float, direction: str) -> None:
-        self._one("#readings", ReadingsGrid).draw_cell(
-            self.session, fibre, wavelength_nm, direction
-        )
+        self.grid.draw_cell(self.session, fibre, wavelength_nm, direction)
 
     def _point(self) -> None:
-        self._one("#readings", ReadingsGrid).point_at(
-            self.session.fibre, self.session.active_column
-        )
+        self.grid.point_at(self.session.fibre, self.session.active_column)
         self._show_entry_where()
 
     # -- typing in the set-up fields -------------------------------------------------------
-    def _show_error(self, field_id: str, message: str) -> None:
-        error = self._one(f"#{field_id}-error", Static)
-        error.update(message)
-        error.display = bool(message)
-
     @on(Input.Changed)
     def _input_changed(self, event: Input.Changed) -> None:
         if event.value != event.input.value:
@@ -219,9 +185,9 @@ class MeterScreen(Screen[None]):
         if done is None:
             return
         if done.error is not None:
-            self._show_error(field_id, done.error)
+            self.setup.error(field_id, done.error)
         if done.meaning is not None:
-            self._one("#directions-meaning", Label).update(done.meaning)
+            self.setup.meaning(done.meaning)
         if done.grid:
             self._rebuild_grid()
             self._sync_column_fields()
@@ -237,60 +203,25 @@ class MeterScreen(Screen[None]):
             self._say(None)  # a new reference may have dealt with a negative loss
 
     def _show_limit_placeholder(self) -> None:
-        self._one("#limit", Input).placeholder = self.session.limit_placeholder(self.narrow)
+        self.setup.placeholder(self.narrow)
 
     def _sync_column_fields(self, force: bool = False) -> None:
-        """Show the active column's reference and its wavelength's limit in the fields.
-
-        Only when the active column changed (or ``force``): the fields are never rewritten
-        under text the user is typing for the same column.
-        """
-        s = self.session
-        column = s.active_column
-        if force or column != self._synced_column:
-            self._synced_column = column
-            # The Changed events these cause find the texts already stored: no-ops.
-            self._one("#reference", Input).value = s.ref_text.get(column.measured, "")
-            self._one("#limit", Input).value = s.limit_text.get(column.wavelength_nm, "")
-            self._show_error("reference", "")
-            self._show_error("limit", "")
-        self._one("#reference-box Label", Label).update(s.reference_label())
-        self._show_limit_placeholder()
-        self._show_reference_note()
+        if self.setup.sync_column(narrow=self.narrow, force=force):
+            self._keep_cursor_in_view()
+        self._show_setup_line()
 
     def _show_reference_note(self) -> None:
-        note, source_error = self.session.reference_note(
-            narrow=self.narrow,
-            source_text=self._one("#source-level", Input).value,
-            launch=self._one("#launch", Input).value,
-        )
-        if source_error is not None:
-            self._show_error("source-level", source_error)
-        widget = self._one("#reference-note", Static)
-        if len(str(widget.render()).splitlines()) != len(note.splitlines()):
+        if self.setup.note(narrow=self.narrow):
             self._keep_cursor_in_view()
-        widget.update(note)
         self._show_setup_line()
 
     # -- entering readings --------------------------------------------------------------
     def _say(self, text: str | None, *, error: bool = False) -> None:
-        """The entry line's message (fixed height: no layout pass per reading). A negative
-        loss not yet dealt with stays on its first line, whatever is said after it."""
         self._view.say = None  # said since: a message waiting for the next view is old
-        message = self._one("#entry-message", Static)
         if text is not None:
             self._hint_shown = False
-            self._said = text
-        problem = self.session.problem_words(short=self.narrow, besides=self._said)
-        error = error or problem is not None
-        if message.has_class("field-error") != error:
-            message.set_class(error, "field-error")
-            if self.narrow:  # one row or two: the grid's height changes
-                self._keep_cursor_in_view()
-        shown = self._said if problem is None else f"{problem}\n{self._said}"
-        if shown != self._shown:
-            self._shown = shown
-            message.update(shown, layout=False)
+        if self.entry.say(text, error=error, narrow=self.narrow):
+            self._keep_cursor_in_view()
 
     def _reading_typed(self, text: str) -> None:
         problem = self.session.typing_problem(text)
@@ -338,22 +269,10 @@ class MeterScreen(Screen[None]):
             self._say(text, error=error)
 
     def _details(self) -> ReferenceDetails:
-        def text(field_id: str) -> str:
-            return self._one(f"#{field_id}", Input).value.strip()
-
-        return ReferenceDetails(
-            source_id=text("source"),
-            meter_id=text("meter"),
-            cords=tuple(c.strip() for c in text("cords").split(",") if c.strip()),
-            launch_condition=text("launch") or None,
-            # The operator unless another name is typed for this session.
-            by=text("by") or fieldkit_app(self).operator,
-        )
+        return self.setup.details(lambda: fieldkit_app(self).operator)
 
     def _show_entry_where(self) -> None:
-        where, placeholder = self.session.entry_where(self.narrow)
-        self._one("#entry-where", Label).update(where, layout=False)
-        self._one("#reading", Input).placeholder = placeholder
+        self.entry.where(self.narrow)
 
     def action_next_empty(self) -> None:
         moved = self.session.next_empty()
@@ -387,7 +306,7 @@ class MeterScreen(Screen[None]):
     def _cell_pointed(self, event: DataTable.CellHighlighted) -> None:
         # The grid has focus only when the user clicked it (or tabbed to it and moved): go to
         # that cell and back to typing. Moves made by the entry field itself are ignored.
-        if self._one("#readings", ReadingsGrid).has_focus:
+        if self.grid.has_focus:
             self._go_to_cell(event.coordinate.row, event.coordinate.column)
 
     @on(DataTable.CellSelected)
@@ -395,12 +314,12 @@ class MeterScreen(Screen[None]):
         self._go_to_cell(event.coordinate.row, event.coordinate.column)
 
     def _go_to_cell(self, row: int, grid_column: int) -> None:
-        grid = self._one("#readings", ReadingsGrid)
+        grid = self.grid
         if 0 <= grid_column - 1 < len(grid.columns_shown):
             if self.session.go_to(row + 1, grid.columns_shown[grid_column - 1]):
                 self._sync_column_fields()
             self._point()
-        self._one("#reading", Input).focus()
+        self.query_one("#reading").focus()
 
     # -- summary ------------------------------------------------------------------------
     def _summary_soon(self) -> None:
@@ -422,7 +341,7 @@ class MeterScreen(Screen[None]):
         lines = self.session.summary_lines(
             width=42 if self.narrow else 0, open_key=keys.display("open")
         )
-        self._one("#meter-summary", Static).update("\n".join(lines), layout=False)
+        self.query_one("#meter-summary", Static).update("\n".join(lines), layout=False)
 
     # -- the job ------------------------------------------------------------------------
     def action_pick_job(self) -> None:
@@ -448,7 +367,7 @@ class MeterScreen(Screen[None]):
         changes, fields = self.session.attach(job_id, link, self._details())
         for field_id, value in fields.items():
             # The handler of the Changed event this causes finds the state already matching.
-            self._one(f"#{field_id}", Input).value = value
+            self.setup.one.input(field_id).value = value
         for change in changes:
             self._queue(change)
         self._rebuild_grid()

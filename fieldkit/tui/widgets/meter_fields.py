@@ -7,13 +7,26 @@ it (``#<id>-error``) that shows only when the field refuses what was typed.
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal, Vertical
 from textual.widgets import Collapsible, Input, Label, Static
 
 from fieldkit import safety
+from fieldkit.tui import keys
 from fieldkit.tui.meter_session import DIRECTION_WORDS
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
+from fieldkit.tui.widgets.readings_grid import EntryInput
+
+_COLUMNS = f"{keys.display('column_previous')}/{keys.display('column_next')[5:]}"
+#: The keys, in the entry line's message until a reading or an error takes it.
+KEYS_HINT = (
+    f"Enter: next fibre · ↑↓ PgUp PgDn: fibres · {_COLUMNS}: columns · "
+    f"{keys.hint('remove')}: remove · click a cell"
+)
+#: The same keys in one line of a phone terminal, where rows go to the grid.
+KEYS_HINT_NARROW = f"Enter/↑↓ fibre · {_COLUMNS} col · {keys.hint('remove')} remove"
 
 #: The set-up fields: (label, id, value, tooltip, placeholder).
 SETUP = (
@@ -62,6 +75,24 @@ def setup_fields() -> ComposeResult:
             for label, field_id, tooltip in DETAILS:
                 yield from field(label, field_id, "", tooltip)
         yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="meter-caution")
+
+
+def entry_line(check: Callable[[str], bool], typed: Callable[[str], None]) -> ComposeResult:
+    """Where the cursor is, the one entry field of the grid, and the message under it."""
+    with Horizontal(id="meter-entry"):
+        yield Label("", id="entry-where")
+        yield EntryInput(
+            placeholder="reading, dBm",
+            type="text",
+            restrict=QUANTITY_CHARS,
+            compact=True,
+            id="reading",
+            check=check,
+            typed=typed,
+            tooltip="Type the reading and press Enter; Up/Down move between fibres, "
+            f"{_COLUMNS} between columns",
+        )
+    yield Static("", id="entry-message", classes="field-note")
 
 
 def field(

@@ -1,0 +1,152 @@
+"""What the meter workspace shows of its session outside the grid: the set-up fields (the active
+column's texts, errors beside the fields, the note under them, the folded one-line set-up) and
+the entry line (where the cursor is, the message under it).
+
+Plain helpers over the screen's widgets, found once: the screen wires keys and events to the
+session and calls these to show the result. The text itself comes from
+:class:`~fieldkit.tui.meter_session.MeterSession`.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from textual.dom import DOMNode
+from textual.widget import Widget
+from textual.widgets import Input, Static
+
+from fieldkit.actions.meter import ReferenceDetails
+from fieldkit.tui.meter_session import GridColumn, MeterSession
+
+
+class _Widgets:
+    """``query_one`` remembered: the screen's widgets stay mounted, and a query walks the whole
+    screen (per keystroke it cost more than the grid's own work)."""
+
+    def __init__(self, root: DOMNode) -> None:
+        self._root = root
+        self._found: dict[str, Widget] = {}
+
+    def __call__(self, selector: str) -> Widget:
+        found = self._found.get(selector)
+        if found is None:
+            found = self._found[selector] = self._root.query_one(selector)
+        return found
+
+    def input(self, field_id: str) -> Input:
+        found = self(f"#{field_id}")
+        assert isinstance(found, Input)
+        return found
+
+    def static(self, selector: str) -> Static:
+        found = self(selector)
+        assert isinstance(found, Static)  # a Label is a Static too
+        return found
+
+
+class SetupView:
+    """The set-up fields and the note under them."""
+
+    def __init__(self, root: DOMNode, session: MeterSession) -> None:
+        self.one = _Widgets(root)
+        self.session = session
+        self._synced: GridColumn | None = None
+
+    def error(self, field_id: str, message: str) -> None:
+        """The field's error beside it (empty: none)."""
+        error = self.one.static(f"#{field_id}-error")
+        error.update(message)
+        error.display = bool(message)
+
+    def meaning(self, words: str) -> None:
+        self.one.static("#directions-meaning").update(words)
+
+    def placeholder(self, narrow: bool) -> None:
+        self.one.input("limit").placeholder = self.session.limit_placeholder(narrow)
+
+    def sync_column(self, *, narrow: bool, force: bool = False) -> bool:
+        """Show the active column's reference and its wavelength's limit in the fields, only
+        when the column changed (or ``force``): the fields are never rewritten under text the
+        user is typing for the same column. True when the note changed height."""
+        s = self.session
+        column = s.active_column
+        if force or column != self._synced:
+            self._synced = column
+            # The Changed events these cause find the texts already stored: no-ops.
+            self.one.input("reference").value = s.ref_text.get(column.measured, "")
+            self.one.input("limit").value = s.limit_text.get(column.wavelength_nm, "")
+            self.error("reference", "")
+            self.error("limit", "")
+        self.one.static("#reference-box Label").update(s.reference_label())
+        self.placeholder(narrow)
+        return self.note(narrow=narrow)
+
+    def note(self, *, narrow: bool) -> bool:
+        """The note under the set-up; True when it changed height (the grid's rows move)."""
+        text, source_error = self.session.reference_note(
+            narrow=narrow,
+            source_text=self.one.input("source-level").value,
+            launch=self.one.input("launch").value,
+        )
+        if source_error is not None:
+            self.error("source-level", source_error)
+        widget = self.one.static("#reference-note")
+        moved = len(str(widget.render()).splitlines()) != len(text.splitlines())
+        widget.update(text)
+        return moved
+
+    def line(self, width: int) -> None:
+        """The set-up in one line (shown while readings are typed at 44 columns)."""
+        self.one.static("#setup-line").update(self.session.setup_line(width), layout=False)
+
+    def details(self, operator: Callable[[], str]) -> ReferenceDetails:
+        """Who set the reference and with what, from the Reference details fields."""
+
+        def text(field_id: str) -> str:
+            return self.one.input(field_id).value.strip()
+
+        return ReferenceDetails(
+            source_id=text("source"),
+            meter_id=text("meter"),
+            cords=tuple(c.strip() for c in text("cords").split(",") if c.strip()),
+            launch_condition=text("launch") or None,
+            # The operator unless another name is typed for this session.
+            by=text("by") or operator(),
+        )
+
+
+class EntryView:
+    """The entry line: where the reading goes, and the message under it."""
+
+    def __init__(self, root: DOMNode, session: MeterSession) -> None:
+        self.one = _Widgets(root)
+        self.session = session
+        self.said = ""  # the last message
+        self._shown = ""  # what the message shows (a standing problem above it)
+
+    def where(self, narrow: bool) -> None:
+        where, placeholder = self.session.entry_where(narrow)
+        self.one.static("#entry-where").update(where, layout=False)
+        self.one.input("reading").placeholder = placeholder
+
+    def say(self, text: str | None, *, error: bool = False, narrow: bool = False) -> bool:
+        """The message (fixed height: no layout pass per reading; None: keep the text, set the
+        error state). A negative loss not yet dealt with stays on its first line, whatever is
+        said after it. True when the message changed height on a phone terminal."""
+        message = self.one.static("#entry-message")
+        if text is not None:
+            self.said = text
+        problem = self.session.problem_words(short=narrow, besides=self.said)
+        error = error or problem is not None
+        moved = False
+        if message.has_class("field-error") != error:
+            message.set_class(error, "field-error")
+            moved = narrow  # one row or two: the grid's height changes
+        shown = self.said if problem is None else f"{problem}\n{self.said}"
+        if shown != self._shown:
+            self._shown = shown
+            message.update(shown, layout=False)
+        return moved
+
+
+__all__ = ["EntryView", "SetupView"]
