@@ -133,8 +133,11 @@ class JobsScreen(WorkspaceScreen):
         self.reload()
 
     def on_screen_resume(self) -> None:
-        # Another workspace (or program) may have saved onto a job meanwhile.
-        self.reload()
+        # Another workspace (or program) may have saved onto a job meanwhile. The resumes that
+        # come with the first showing follow the listing made at mount: three listings and
+        # three loads of the job shown were a sixth of the start.
+        if not self._before_first_frame:
+            self.reload()
 
     # -- data ------------------------------------------------------------------------------
     @property
