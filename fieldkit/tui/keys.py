@@ -250,6 +250,12 @@ USES: dict[str, tuple[Use, ...]] = {
     "jobs_today": (
         Use("column_previous", "day(-1)", "the day before", label="Day before"),
         Use("column_next", "day(1)", "the day after", label="Day after"),
+        Use(
+            "export",
+            "export_day",
+            "write the day's report: all its jobs in one HTML or Markdown report, or one CSV",
+            label="Export day",
+        ),
         Use("close", "close", "close the view", label="Close"),
         Use("result", "close", "close the view", show=False),
     ),

@@ -1,10 +1,11 @@
 """The end-of-day view: today's jobs, result counts, failures, doubts and open items.
 
 Pushed from the jobs workspace (Ctrl+G, which also closes it). Enter on a job closes the view
-and opens that job; Ctrl+Left / Ctrl+Right step to the day before or after. Up and Down move
-the job list and bring that job's failures and open items into view; past the last job, Down
-goes on scrolling them, and PgDn / PgUp scroll them a page. The toasts of the jobs workspace are
-cleared when the view opens, so none covers it.
+and opens that job; Ctrl+Left / Ctrl+Right step to the day before or after; Ctrl+W writes the
+day's report (every job of the day in one report or one CSV, with the export dialog's checks).
+Up and Down move the job list and bring that job's failures and open items into view; past the
+last job, Down goes on scrolling them, and PgDn / PgUp scroll them a page. The toasts of the
+jobs workspace are cleared when the view opens, so none covers it.
 """
 
 from __future__ import annotations
@@ -91,6 +92,13 @@ class EndOfDayScreen(ModalScreen[str | None]):
             yield Static("", id="eod-totals")
             yield DayJobs(id="eod-jobs", markup=False)
             yield VerticalScroll(id="eod-items")
+            with Horizontal(id="eod-bottom"):  # the top row has no room for it at 44 columns
+                yield Button(
+                    f"Export the day {keys.hint('export')}",
+                    id="eod-export",
+                    compact=True,
+                    tooltip=keys.tip("jobs_today", "export"),
+                )
 
     async def on_mount(self) -> None:
         self.app.clear_notifications()  # a toast from the jobs workspace would cover the view
@@ -176,6 +184,16 @@ class EndOfDayScreen(ModalScreen[str | None]):
     @on(Button.Pressed, "#eod-after")
     async def _after(self) -> None:
         await self.action_day(1)
+
+    @on(Button.Pressed, "#eod-export")
+    def action_export_day(self) -> None:
+        """The day's report through the export dialog (its formats and guarded targets)."""
+        from fieldkit.tui.widgets.export_dialog import DayExportDialog
+
+        if self.summary is not None and not self.summary.jobs:
+            self.notify("No job was worked on on this day: nothing to export.", severity="warning")
+            return
+        self.app.push_screen(DayExportDialog(self._day, self.app.store))  # type: ignore[attr-defined]
 
     @on(Button.Pressed, "#eod-close")
     def action_close(self) -> None:

@@ -1,8 +1,11 @@
-"""The export dialog of the Jobs workspace: choose a format and a file; the report is written
-there through :func:`fieldkit.actions.export.export_job` (never inside the data folder)."""
+"""The export dialogs of the Jobs workspace: choose a format and a file; the report is written
+there through :func:`fieldkit.actions.export.export_job` (never inside the data folder).
+:class:`DayExportDialog` does the same for every job of a day (the end-of-day view), through
+:func:`fieldkit.actions.export.export_range`, the day export of ``fieldkit jobs export --day``."""
 
 from __future__ import annotations
 
+from datetime import date
 from pathlib import Path
 from typing import TYPE_CHECKING
 
@@ -41,7 +44,7 @@ class ExportDialog(ModalScreen[Path | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="export-dialog"):
-            yield Label(Text(f"Export {terminal(self._job.name)}"), id="export-title")
+            yield Label(Text(self._title()), id="export-title")
             yield OptionList(
                 *[Option(_FORMAT_NAMES[f], id=f) for f in EXPORT_FORMATS],
                 id="export-format",
@@ -59,12 +62,26 @@ class ExportDialog(ModalScreen[Path | None]):
         formats.highlighted = EXPORT_FORMATS.index("html")
         formats.focus()
 
-    def _path(self, fmt: str) -> Path:
+    def _title(self) -> str:
+        return f"Export {terminal(self._job.name)}"
+
+    def _file_name(self, fmt: str) -> str:
         from fieldkit.actions.export import job_file_name
+
+        return job_file_name(self._job, fmt)  # the job's name and date, never its id
+
+    def _export(self, fmt: str, target: str, config: Path | None) -> tuple[Path | None, str]:
+        """Write the report; the file and the line the toast shows."""
+        from fieldkit.actions.export import export_job
+
+        done = export_job(self._store, self._job.id, fmt, target, config=config)
+        return done.path, f"Wrote {done.path}"
+
+    def _path(self, fmt: str) -> Path:
         from fieldkit.reports.names import free_name
 
-        # the job's name and date, never its id; a name already taken gets -2, -3 ...
-        return free_name(self._folder, job_file_name(self._job, fmt))
+        # a name already taken gets -2, -3 ...
+        return free_name(self._folder, self._file_name(fmt))
 
     @on(OptionList.OptionHighlighted, "#export-format")
     def _format_changed(self, event: OptionList.OptionHighlighted) -> None:
@@ -78,7 +95,6 @@ class ExportDialog(ModalScreen[Path | None]):
     @on(Button.Pressed, "#export-write")
     def _write(self) -> None:
         from fieldkit.actions.errors import ActionError
-        from fieldkit.actions.export import export_job
 
         formats = self.query_one("#export-format", OptionList)
         fmt = EXPORT_FORMATS[formats.highlighted or 0]
@@ -89,19 +105,48 @@ class ExportDialog(ModalScreen[Path | None]):
             return
         try:
             config = getattr(self.app, "config_dir", None)
-            done = export_job(self._store, self._job.id, fmt, text, config=config)
+            path, told = self._export(fmt, text, config)
         except (ActionError, StoreError) as exc:
             error.update(_t(f"Not written: {exc}"))
             return
         except OSError as exc:
             error.update(_t(f"Not written: {exc.strerror or exc}"))
             return
-        self.app.notify(f"Wrote {done.path}")
-        self.dismiss(done.path)
+        self.app.notify(told)
+        self.dismiss(path)
 
     @on(Button.Pressed, "#export-cancel")
     def action_cancel(self) -> None:
         self.dismiss(None)
+
+
+class DayExportDialog(ExportDialog):
+    """Every job of one day in one report (HTML, Markdown) or one CSV (or one hand-off file),
+    as ``fieldkit jobs export --day``: the same formats, file checks and settings."""
+
+    def __init__(self, day: date, store: JobStore) -> None:
+        ModalScreen.__init__(self)  # no one job: every use of it is overridden below
+        self._day = day
+        self._store = store
+        self._folder = default_export_folder()
+
+    def _title(self) -> str:
+        return f"Export the jobs of {self._day.isoformat()}"
+
+    def _file_name(self, fmt: str) -> str:
+        from fieldkit.actions.export import range_file_name
+
+        return range_file_name(self._day, self._day, fmt)  # jobs_2026-03-10.html
+
+    def _export(self, fmt: str, target: str, config: Path | None) -> tuple[Path | None, str]:
+        from fieldkit.actions.errors import ActionError
+        from fieldkit.actions.export import export_range, jobs_between
+
+        day = self._day
+        if not jobs_between(self._store, day, day):
+            raise ActionError(f"no job was worked on on {day.isoformat()}: nothing to export")
+        done, jobs = export_range(self._store, day, day, fmt, target, config=config)
+        return done.path, f"Wrote {done.path} ({len(jobs)} {'job' if len(jobs) == 1 else 'jobs'})"
 
 
 def default_export_folder() -> Path:
