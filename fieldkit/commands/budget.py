@@ -13,8 +13,10 @@ from typing import Any
 
 from fieldkit.commands.common import (
     CommandError,
-    RenamedOption,
+    add_by,
     add_data_dir,
+    add_fibre_type,
+    add_job_link,
     plain_text,
     print_json,
     warn_preset_problems,
@@ -33,15 +35,12 @@ def add_link_options(parser: argparse.ArgumentParser, *, fibre_alias: bool = Fal
     ``--fibre-type``.
     """
     group = parser.add_argument_group("the link")
-    group.add_argument(
-        "--fibre-type",
-        dest="fibre_type",
-        metavar="TYPE",
-        help="fibre type from the presets, e.g. OS2, OM4, G.652.D "
+    add_fibre_type(
+        group,
+        "fibre type from the presets, e.g. OS2, OM4, G.652.D "
         "('fieldkit presets fibres' lists them)",
+        fibre_alias=fibre_alias,
     )
-    old = ("--fiber", "--fibre") if fibre_alias else ("--fiber",)
-    group.add_argument(*old, dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type")
     group.add_argument(
         "--attenuation",
         action="append",
@@ -356,19 +355,12 @@ def register(subparsers: Any) -> None:
         "dispersion, at each wavelength",
     )
     save = parser.add_argument_group("saving onto a job")
-    save.add_argument("--job", metavar="ID", help="save the budget onto this job (id or prefix)")
-    save.add_argument(
-        "--link",
-        metavar="LINK",
-        help="the job's link (label or id; a new link by that label is added)",
+    add_job_link(
+        save,
+        job="save the budget onto this job (id or prefix)",
+        link="the job's link (label or id; a new link by that label is added)",
     )
-    save.add_argument(
-        "--by",
-        default=None,
-        metavar="NAME",
-        help="who computed the budget (default: $FIELDKIT_OPERATOR, else the name set in the "
-        "terminal UI)",
-    )
+    add_by(save, "who computed the budget")
     parser.add_argument("--json", action="store_true", help="print one JSON object")
     add_data_dir(parser)
     parser.set_defaults(func=run)

@@ -80,14 +80,38 @@ def operator(args: argparse.Namespace) -> str:
     return resolve_operator(given, config)
 
 
-def add_by(parser: argparse.ArgumentParser, what: str = "who does it") -> None:
-    """``--by NAME``: the operator stamped on the record (default ``$FIELDKIT_OPERATOR``)."""
+# an argument group or a parser: the option helpers below add to either
+Options = argparse._ActionsContainer
+
+
+def add_by(parser: Options, what: str = "who does it", *, settings: bool = True) -> None:
+    """``--by NAME``: the operator stamped on the record (default ``$FIELDKIT_OPERATOR``, then,
+    with ``settings``, the name saved in the terminal UI: see :func:`operator`)."""
+    then = ", else the name set in the terminal UI" if settings else ""
     parser.add_argument(
-        "--by",
-        default=None,
-        metavar="NAME",
-        help=f"{what} (default: $FIELDKIT_OPERATOR, else the name set in the terminal UI)",
+        "--by", default=None, metavar="NAME", help=f"{what} (default: $FIELDKIT_OPERATOR{then})"
     )
+
+
+def add_job_link(
+    parser: Options,
+    *,
+    job: str = "the job (id or its start)",
+    link: str = "the link's label or id",
+    required: bool = False,
+) -> None:
+    """``--job ID`` and ``--link LINK``: the job's link a command reads or saves onto."""
+    parser.add_argument("--job", required=required, metavar="ID", help=job)
+    parser.add_argument("--link", required=required, metavar="LINK", help=link)
+
+
+def add_fibre_type(parser: Options, what: str, *, fibre_alias: bool = False) -> None:
+    """``--fibre-type TYPE`` (``dest="fibre_type"``), and the old spellings that stop with a
+    line naming it (:class:`RenamedOption`): ``--fiber`` always, ``--fibre`` with
+    ``fibre_alias`` (only in a command where ``--fibre`` is no fibre number)."""
+    parser.add_argument("--fibre-type", dest="fibre_type", metavar="TYPE", help=what)
+    old = ("--fiber", "--fibre") if fibre_alias else ("--fiber",)
+    parser.add_argument(*old, dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type")
 
 
 def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:

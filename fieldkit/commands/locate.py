@@ -12,8 +12,10 @@ from typing import TYPE_CHECKING, Any
 
 from fieldkit.commands.common import (
     CommandError,
-    RenamedOption,
+    add_by,
     add_data_dir,
+    add_fibre_type,
+    add_job_link,
     plain_text,
     print_json,
     warn_preset_problems,
@@ -45,14 +47,8 @@ def register(subparsers: Any) -> None:
         "--ior-set", metavar="N", help="the group index the OTDR was set to (default: the fibre's)"
     )
     index.add_argument("--ior", metavar="N", help="the fibre's group index, typed")
-    index.add_argument(
-        "--fibre-type",
-        dest="fibre_type",
-        metavar="TYPE",
-        help="a fibre preset (e.g. G.652.D, OS2, OM3) giving the group index",
-    )
-    index.add_argument(
-        "--fiber", "--fibre", dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type"
+    add_fibre_type(
+        index, "a fibre preset (e.g. G.652.D, OS2, OM3) giving the group index", fibre_alias=True
     )
     index.add_argument(
         "--wavelength", metavar="NM", help="the OTDR wavelength for --fibre-type, e.g. 1550"
@@ -130,15 +126,12 @@ def register(subparsers: Any) -> None:
         "--list-cables", action="store_true", help="list the cable construction presets and exit"
     )
     save = parser.add_argument_group("saving onto a job's link")
-    save.add_argument("--job", metavar="ID", help="the job (its id or the start of it)")
-    save.add_argument("--link", metavar="LINK", help="the link's id or label (created if new)")
-    save.add_argument(
-        "--by",
-        default=None,
-        metavar="NAME",
-        help="who located the fault (default: $FIELDKIT_OPERATOR, else the name set in the "
-        "terminal UI)",
+    add_job_link(
+        save,
+        job="the job (its id or the start of it)",
+        link="the link's id or label (created if new)",
     )
+    add_by(save, "who located the fault")
     save.add_argument("--notes", default="", metavar="TEXT", help="a note to keep with it")
     add_data_dir(parser)
     parser.set_defaults(func=run)

@@ -11,21 +11,16 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError
+from fieldkit.commands.common import CommandError, add_by, add_job_link
 
 
 def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -> None:
     """``--job``, ``--link``, ``--by`` (and ``--fibre``, ``--source``, ``--meter``, ``--cord``)."""
     group = parser.add_argument_group("saving into a job")
-    group.add_argument(
-        "--job",
-        metavar="ID",
-        help="the job to save into (its id or the start of it, as 'fieldkit jobs list' shows)",
-    )
-    group.add_argument(
-        "--link",
-        metavar="LINK",
-        help="the link's label or id (a new link by that label is added if the job has none)",
+    add_job_link(
+        group,
+        job="the job to save into (its id or the start of it, as 'fieldkit jobs list' shows)",
+        link="the link's label or id (a new link by that label is added if the job has none)",
     )
     if fibre:
         group.add_argument("--fibre", metavar="N", help="the fibre number (1..N)")
@@ -43,13 +38,7 @@ def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -
         metavar="TEXT",
         help="a reference cord used (repeat for each)",
     )
-    group.add_argument(
-        "--by",
-        default=None,
-        metavar="NAME",
-        help="who took the measurement (default: $FIELDKIT_OPERATOR, else the name set in "
-        "the terminal UI)",
-    )
+    add_by(group, "who took the measurement")
 
 
 def wants_record(args: argparse.Namespace) -> bool:

@@ -18,9 +18,10 @@ from typing import TYPE_CHECKING, Any
 from fieldkit import safety
 from fieldkit.commands.common import (
     CommandError,
-    RenamedOption,
     add_by,
     add_data_dir,
+    add_fibre_type,
+    add_job_link,
     print_json,
 )
 
@@ -122,14 +123,11 @@ def register(subparsers: Any) -> None:
         default="ab",
         help="the direction of a single FILE (default ab: taken from end A)",
     )
-    fill.add_argument("--job", required=True, metavar="ID", help="the job (id or its start)")
-    fill.add_argument("--link", required=True, metavar="LINK", help="the link's label or id")
+    add_job_link(fill, required=True)
     fill.add_argument("--closure", required=True, metavar="NAME", help="the closure's name or id")
     fill.add_argument("--overwrite", action="store_true", help="replace losses already recorded")
     fill.add_argument("--dry-run", action="store_true", help="write nothing; say what would be")
-    fill.add_argument(
-        "--by", default=None, metavar="NAME", help="who did the work (default: $FIELDKIT_OPERATOR)"
-    )
+    add_by(fill, "who did the work", settings=False)
     _common(fill)
     fill.set_defaults(func=run_fill)
 
@@ -167,14 +165,7 @@ def _common(p: argparse.ArgumentParser) -> None:
         "-79 dB at 1310 nm, -82 dB at 1550 nm, from memory)",
     )
     lim = p.add_argument_group("verdict limits")
-    lim.add_argument(
-        "--fibre-type",
-        dest="fibre_type",
-        metavar="TYPE",
-        help="fibre preset giving the attenuation maximum (default G.652.D)",
-    )
-    # the old spelling stops with one line naming --fibre-type, as in every command
-    lim.add_argument("--fiber", dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type")
+    add_fibre_type(lim, "fibre preset giving the attenuation maximum (default G.652.D)")
     lim.add_argument(
         "--polish",
         choices=("UPC", "APC"),
@@ -206,8 +197,7 @@ def _common(p: argparse.ArgumentParser) -> None:
 
 def _job_options(p: argparse.ArgumentParser, *, fibre: bool = False) -> None:
     g = p.add_argument_group("a job's link (its presets give the verdict limits)")
-    g.add_argument("--job", metavar="ID", help="the job (id or its start)")
-    g.add_argument("--link", metavar="LINK", help="the link's label or id")
+    add_job_link(g)
     g.add_argument(
         "--save",
         action="store_true",
