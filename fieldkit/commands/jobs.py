@@ -507,17 +507,26 @@ def run_show(args: argparse.Namespace) -> int:
     return 0
 
 
+def _answer(args: argparse.Namespace, data: dict[str, Any], line: str) -> int:
+    """A command's one answer: ``data`` as one JSON object with ``--json``, else ``line``."""
+    if args.json:
+        print_json(data)
+    else:
+        print(line)
+    return 0
+
+
 def run_note(args: argparse.Namespace) -> int:
     from fieldkit.actions.jobs import add_note
 
     store = store_of(args)
     job_id = store.resolve(args.id)
     job, note = add_note(store, job_id, args.text, by=operator(args))
-    if args.json:
-        print_json({"id": job.id, "note_id": note.id, "notes": len(job.notes)})
-    else:
-        print(f"noted on {job.name} ({len(job.notes)} notes)")
-    return 0
+    return _answer(
+        args,
+        {"id": job.id, "note_id": note.id, "notes": len(job.notes)},
+        f"noted on {job.name} ({len(job.notes)} notes)",
+    )
 
 
 def run_status(args: argparse.Namespace) -> int:
@@ -538,11 +547,7 @@ def run_status(args: argparse.Namespace) -> int:
             ) from None
     else:
         job = reopen(store, job_id, by=by, reason=args.reason)
-    if args.json:
-        print_json({"id": job.id, "status": job.status})
-    else:
-        print(f"{job.name}: {job.status}")
-    return 0
+    return _answer(args, {"id": job.id, "status": job.status}, f"{job.name}: {job.status}")
 
 
 def run_delete(args: argparse.Namespace) -> int:
@@ -551,11 +556,11 @@ def run_delete(args: argparse.Namespace) -> int:
     store = store_of(args)
     job_id = store.resolve(args.id)
     where = delete_job(store, job_id, by=operator(args))
-    if args.json:
-        print_json({"id": job_id, "trash": str(where)})
-    else:
-        print(f"moved {job_id} to the trash ({where.parent}); 'fieldkit jobs restore {job_id[:8]}'")
-    return 0
+    return _answer(
+        args,
+        {"id": job_id, "trash": str(where)},
+        f"moved {job_id} to the trash ({where.parent}); 'fieldkit jobs restore {job_id[:8]}'",
+    )
 
 
 def run_restore(args: argparse.Namespace) -> int:
@@ -563,11 +568,7 @@ def run_restore(args: argparse.Namespace) -> int:
 
     store = store_of(args)
     job = restore_job(store, args.id, by=operator(args))
-    if args.json:
-        print_json({"id": job.id, "name": job.name})
-    else:
-        print(f"restored {job.name} ({job.id})")
-    return 0
+    return _answer(args, {"id": job.id, "name": job.name}, f"restored {job.name} ({job.id})")
 
 
 def run_trash(args: argparse.Namespace) -> int:
