@@ -18,7 +18,7 @@ from fieldkit.jobs.models import BudgetRecord, FaultRecord, Job, Link
 from fieldkit.jobs.store import JobStore
 
 if TYPE_CHECKING:
-    from fieldkit.calc.locate import LocateInput, Location
+    from fieldkit.calc.locate import LocateInput, Location, SlackLoop
 
 
 @dataclass(frozen=True)
@@ -132,6 +132,16 @@ def typed_fields(typed: Mapping[str, Any]) -> dict[str, Any]:
     return {name: named[name] for name in TYPED_FIELDS if name in named}
 
 
+def slack_row(slack: SlackLoop) -> dict[str, Any]:
+    """A slack loop as plain data: in a fault record's inputs, and in ``locate --json`` where
+    the position lies in one."""
+    return {
+        "route_position_m": slack.route_position_m,
+        "cable_length_m": slack.cable_length_m,
+        "label": slack.label,
+    }
+
+
 def fault_inputs(inp: LocateInput, typed: dict[str, Any]) -> dict[str, Any]:
     """What was given, as plain JSON, for the job record: the text typed and the numbers used.
 
@@ -146,14 +156,7 @@ def fault_inputs(inp: LocateInput, typed: dict[str, Any]) -> dict[str, Any]:
         "index_set": inp.index_set,
         "group_index": inp.group_index,
         "helix_percent": inp.helix_percent,
-        "slack": [
-            {
-                "route_position_m": s.route_position_m,
-                "cable_length_m": s.cable_length_m,
-                "label": s.label,
-            }
-            for s in inp.slack
-        ],
+        "slack": [slack_row(s) for s in inp.slack],
         "landmarks": [
             {
                 "name": m.name,

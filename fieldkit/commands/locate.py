@@ -388,6 +388,7 @@ def input_record(inp: LocateInput, typed: dict[str, Any]) -> dict[str, Any]:
 
 
 def _position_json(p: Any, unit: str) -> dict[str, Any]:
+    from fieldkit.actions.saves import slack_row
     from fieldkit.calc.locate import describe_offset, in_unit
 
     return {
@@ -409,13 +410,7 @@ def _position_json(p: Any, unit: str) -> dict[str, Any]:
             if p.nearest_landmark is not None and p.offset_from_landmark_m is not None
             else None
         ),
-        "in_slack": None
-        if p.in_slack is None
-        else {
-            "route_position_m": p.in_slack.route_position_m,
-            "cable_length_m": p.in_slack.cable_length_m,
-            "label": p.in_slack.label,
-        },
+        "in_slack": None if p.in_slack is None else slack_row(p.in_slack),
         "marking": None
         if p.marking is None
         else {
