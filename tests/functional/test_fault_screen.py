@@ -241,3 +241,18 @@ async def test_clicking_a_landmark_row_opens_it_for_editing(tmp_path: Path) -> N
         await pilot.pause()
         assert screen.query_one("#fault-landmarks-name", Input).value == "closure 7"
         assert str(screen.query_one("#fault-landmarks-add").label) == "Update"
+
+
+async def test_focus_opens_on_the_otdr_distance_each_time(tmp_path: Path) -> None:
+    # Each workspace opens where the user types first: the OTDR distance here, also after
+    # going to another workspace and back.
+    app = _app(tmp_path)
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        distance = app.screen.query_one("#fault-distance", Input)
+        assert app.screen.focused is distance
+        await pilot.press("f3")
+        await pilot.pause()
+        await pilot.press("f5")
+        await pilot.pause()
+        assert app.screen.focused is distance
