@@ -74,6 +74,34 @@ def _count(n: int, what: str) -> int:
     return n
 
 
+def _check_items(
+    count: int, loss_max_db: float, loss_typical_db: float | None, items: str, item: str
+) -> None:
+    """Check ``count`` like items and their loss each (mated connector pairs, splices).
+
+    Parameters
+    ----------
+    count : int
+        How many there are: a whole number from 0 to ``MAX_COUNT``.
+    loss_max_db : float
+        The maximum loss of one, dB: from 0 to ``MAX_LOSS_DB``.
+    loss_typical_db : float or None
+        The typical loss of one, dB, when known: the same range.
+    items, item : str
+        What they are, as the errors name them: the items (``"fusion splices"``), one item's
+        loss (``"splice"`` gives ``"splice loss"`` and ``"typical splice loss"``).
+
+    Raises
+    ------
+    InputError
+        The count or a loss is out of range, or not a number.
+    """
+    _count(count, items)
+    _finite(loss_max_db, f"{item} loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
+    if loss_typical_db is not None:
+        _finite(loss_typical_db, f"typical {item} loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
+
+
 def _nm(wavelength_nm: float) -> str:
     return f"{format_number(wavelength_nm)} nm"
 
@@ -118,16 +146,9 @@ class Connections:
     source: str = ""
 
     def __post_init__(self) -> None:
-        _count(self.count, "mated connector pairs")
-        _finite(self.loss_max_db, "connector loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
-        if self.loss_typical_db is not None:
-            _finite(
-                self.loss_typical_db,
-                "typical connector loss",
-                low=0.0,
-                high=MAX_LOSS_DB,
-                unit=" dB",
-            )
+        _check_items(
+            self.count, self.loss_max_db, self.loss_typical_db, "mated connector pairs", "connector"
+        )
 
 
 @dataclass(frozen=True)
@@ -142,12 +163,9 @@ class Splices:
     source: str = ""
 
     def __post_init__(self) -> None:
-        _count(self.count, f"{self.method} splices")
-        _finite(self.loss_max_db, "splice loss", low=0.0, high=MAX_LOSS_DB, unit=" dB")
-        if self.loss_typical_db is not None:
-            _finite(
-                self.loss_typical_db, "typical splice loss", low=0.0, high=MAX_LOSS_DB, unit=" dB"
-            )
+        _check_items(
+            self.count, self.loss_max_db, self.loss_typical_db, f"{self.method} splices", "splice"
+        )
 
 
 @dataclass(frozen=True)
