@@ -63,3 +63,22 @@ def run(
         os.environ.clear()
         os.environ.update(saved_env)
     return subprocess.CompletedProcess(["fieldkit", *args], code, out.text(), err.getvalue())
+
+
+def options(**given: str | bool | list[str]) -> list[str]:
+    """Command-line options from keywords, in the order given: ``reading_back="-8.6"`` is
+    ``--reading-back -8.6``, ``recheck=True`` is ``--recheck``, a list repeats the option
+    (``cord=["TC-1", "TC-2"]`` is ``--cord TC-1 --cord TC-2``)."""
+    argv: list[str] = []
+    for name, value in given.items():
+        option = "--" + name.replace("_", "-")
+        if value is True:
+            argv.append(option)
+        elif isinstance(value, list):
+            for one in value:
+                argv += [option, one]
+        elif isinstance(value, str):
+            argv += [option, value]
+        else:
+            raise TypeError(f"{option}: {value!r} is not text, True or a list of text")
+    return argv

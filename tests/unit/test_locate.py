@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING, Any
 
 import pytest
 from hypothesis import given
@@ -29,6 +30,15 @@ from fieldkit.calc.locate import (
 from fieldkit.calc.optics import SPEED_OF_LIGHT_M_PER_S
 from fieldkit.calc.units import InputError
 
+if TYPE_CHECKING:
+    from fieldkit.calc.locate import Location
+
+
+def _locate(**given: Any) -> Location:
+    """``locate(LocateInput(**given))``: every worked example below gives its input this way."""
+    return locate(LocateInput(**given))
+
+
 NO_ERRORS = ErrorTerms(
     offset_m=0, scale_error_percent=0, sample_spacing_m=0, group_index_uncertainty=0
 )
@@ -47,9 +57,7 @@ def test_distance_from_round_trip_time() -> None:
 
 
 def test_time_reading_through_locate_matches_the_formula() -> None:
-    result = locate(
-        LocateInput(round_trip_time_s=10e-6, group_index=1.5, helix_percent=0.0, errors=NO_ERRORS)
-    )
+    result = _locate(round_trip_time_s=10e-6, group_index=1.5, helix_percent=0.0, errors=NO_ERRORS)
     assert result.position.fibre_distance_m == pytest.approx(999.3081933, abs=1e-6)
 
 
@@ -57,14 +65,12 @@ def test_rescaling_from_the_index_set_on_the_instrument() -> None:
     # 3412 m shown at n_set 1.4700 on a fibre of 1.4677: 3412 × 1.47 / 1.4677 = 5015.64 / 1.4677
     # = 3417.3469 m
     assert rescale_distance(3412, 1.4700, 1.4677) == pytest.approx(3417.3469, abs=1e-3)
-    result = locate(
-        LocateInput(
-            otdr_distance_m=3412,
-            index_set=1.47,
-            group_index=1.4677,
-            helix_percent=0.0,
-            errors=NO_ERRORS,
-        )
+    result = _locate(
+        otdr_distance_m=3412,
+        index_set=1.47,
+        group_index=1.4677,
+        helix_percent=0.0,
+        errors=NO_ERRORS,
     )
     assert result.position.fibre_distance_m == pytest.approx(3417.3469, abs=1e-3)
 
@@ -91,14 +97,12 @@ def test_slack_loops_take_cable_with_no_route_progress() -> None:
 def test_model_chain_with_helix_and_slack() -> None:
     # 2040 m shown, index right, 2 % helix: sheath 2040 / 1.02 = 2000 m;
     # a 25 m loop at 800 m: route = 2000 − 25 = 1975 m
-    result = locate(
-        LocateInput(
-            otdr_distance_m=2040,
-            group_index=1.468,
-            helix_percent=2.0,
-            slack=(SlackLoop(800, 25, "coil"),),
-            errors=NO_ERRORS,
-        )
+    result = _locate(
+        otdr_distance_m=2040,
+        group_index=1.468,
+        helix_percent=2.0,
+        slack=(SlackLoop(800, 25, "coil"),),
+        errors=NO_ERRORS,
     )
     p = result.position
     assert p.sheath_distance_m == pytest.approx(2000.0, abs=1e-9)
@@ -113,8 +117,8 @@ def test_interpolation_between_landmarks() -> None:
     # fault shown at 2800 m between closure 6 (2000 m OTDR, 1950 m route) and closure 7 (3400,
     # 3330): route = 1950 + (2800 − 2000) × (3330 − 1950) / (3400 − 2000)
     #              = 1950 + 800 × 1380 / 1400 = 1950 + 788.5714 = 2738.5714 m
-    result = locate(
-        LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS)
+    result = _locate(
+        otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS
     )
     p = result.position
     assert p.route_distance_m == pytest.approx(2738.5714, abs=1e-3)
@@ -127,30 +131,26 @@ def test_interpolation_between_landmarks() -> None:
 
 
 def test_interpolation_cancels_index_and_helix_error() -> None:
-    plain = locate(
-        LocateInput(otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS)
+    plain = _locate(
+        otdr_distance_m=2800, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS
     ).position
     # a wrong index set on the instrument and a large helix change nothing between landmarks
-    skewed = locate(
-        LocateInput(
-            otdr_distance_m=2800,
-            index_set=1.50,
-            group_index=1.4677,
-            helix_percent=3.0,
-            landmarks=LANDMARKS,
-            errors=NO_ERRORS,
-        )
+    skewed = _locate(
+        otdr_distance_m=2800,
+        index_set=1.50,
+        group_index=1.4677,
+        helix_percent=3.0,
+        landmarks=LANDMARKS,
+        errors=NO_ERRORS,
     ).position
     assert skewed.route_distance_m == pytest.approx(plain.route_distance_m, abs=1e-6)
     # and their uncertainty terms vanish: only the readings' sampling remains
-    full = locate(
-        LocateInput(
-            otdr_distance_m=2800,
-            group_index=1.4677,
-            helix_percent=1.5,
-            landmarks=LANDMARKS,
-            errors=ErrorTerms(helix_uncertainty_percent=0.5),
-        )
+    full = _locate(
+        otdr_distance_m=2800,
+        group_index=1.4677,
+        helix_percent=1.5,
+        landmarks=LANDMARKS,
+        errors=ErrorTerms(helix_uncertainty_percent=0.5),
     ).position
     names = {c.name: c.route_m for c in full.contributions}
     assert "helix" not in names
@@ -162,14 +162,12 @@ def test_interpolation_with_a_slack_loop_between_landmarks() -> None:
     # a 20 m loop at route 2500 between the closures: sheath at closure 7 = 3330 + 20 = 3350 m,
     # fibre per sheath = 1400 / (3350 − 1950) = 1; sheath at the fault = 1950 + 800 = 2750 m;
     # the loop holds sheath 2500–2520, so route = 2750 − 20 = 2730 m
-    result = locate(
-        LocateInput(
-            otdr_distance_m=2800,
-            group_index=1.4677,
-            landmarks=LANDMARKS,
-            slack=(SlackLoop(2500, 20),),
-            errors=NO_ERRORS,
-        )
+    result = _locate(
+        otdr_distance_m=2800,
+        group_index=1.4677,
+        landmarks=LANDMARKS,
+        slack=(SlackLoop(2500, 20),),
+        errors=NO_ERRORS,
     )
     assert result.position.sheath_distance_m == pytest.approx(2750.0, abs=1e-9)
     assert result.position.route_distance_m == pytest.approx(2730.0, abs=1e-9)
@@ -178,8 +176,8 @@ def test_interpolation_with_a_slack_loop_between_landmarks() -> None:
 def test_extrapolation_beyond_the_last_landmark_says_so() -> None:
     # 4000 m shown, past closure 7; ratio start → closure 7 = 3400 / 3330;
     # route = 3330 + (4000 − 3400) × 3330 / 3400 = 3330 + 587.647 = 3917.647 m
-    result = locate(
-        LocateInput(otdr_distance_m=4000, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS)
+    result = _locate(
+        otdr_distance_m=4000, group_index=1.4677, landmarks=LANDMARKS, errors=NO_ERRORS
     )
     p = result.position
     assert p.route_distance_m == pytest.approx(3917.647, abs=1e-3)
@@ -193,9 +191,7 @@ def test_a_landmark_at_route_zero_replaces_the_start() -> None:
     # launch cord left on the trace: the panel shows at 150 m OTDR, route 0; the next closure at
     # 1150 m OTDR, 1000 m route. Fault at 650 m: route = (650 − 150) × 1000 / 1000 = 500 m
     marks = (Landmark("panel", 150, 0), Landmark("closure 1", 1150, 1000))
-    result = locate(
-        LocateInput(otdr_distance_m=650, group_index=1.4677, landmarks=marks, errors=NO_ERRORS)
-    )
+    result = _locate(otdr_distance_m=650, group_index=1.4677, landmarks=marks, errors=NO_ERRORS)
     assert result.position.route_distance_m == pytest.approx(500.0, abs=1e-9)
     assert result.position.basis == "interpolated"
 
@@ -210,25 +206,18 @@ def test_sheath_marking_counting_up_and_down() -> None:
 
 def test_marking_through_locate_has_a_range() -> None:
     # 1020 m shown, 2 % helix: sheath 1000 m; marking 5000 up: 6000 m
-    result = locate(
-        LocateInput(
-            otdr_distance_m=1020,
-            group_index=1.468,
-            helix_percent=2.0,
-            marking=Marking(5000, "m", "up"),
-        )
+    result = _locate(
+        otdr_distance_m=1020, group_index=1.468, helix_percent=2.0, marking=Marking(5000, "m", "up")
     )
     marking = result.position.marking
     assert marking is not None
     assert marking.value == pytest.approx(6000.0, abs=1e-9)
     assert marking.low < marking.value < marking.high
-    down = locate(
-        LocateInput(
-            otdr_distance_m=1020,
-            group_index=1.468,
-            helix_percent=2.0,
-            marking=Marking(500, "m", "down"),
-        )
+    down = _locate(
+        otdr_distance_m=1020,
+        group_index=1.468,
+        helix_percent=2.0,
+        marking=Marking(500, "m", "down"),
     ).warnings
     assert any("past zero" in w for w in down)
 
@@ -237,14 +226,12 @@ def test_marking_range_includes_the_print_tolerance_of_the_markings() -> None:
     # No instrument errors: 1020 m shown at 2 % helix is exactly 1000 m of sheath. Printed
     # markings within 1 % of the length counted (common practice, from memory): ±10 m, so
     # marking 5000 counting up gives 6000 (5990 to 6010).
-    result = locate(
-        LocateInput(
-            otdr_distance_m=1020,
-            group_index=1.468,
-            helix_percent=2.0,
-            marking=Marking(5000, "m", "up"),
-            errors=NO_ERRORS,
-        )
+    result = _locate(
+        otdr_distance_m=1020,
+        group_index=1.468,
+        helix_percent=2.0,
+        marking=Marking(5000, "m", "up"),
+        errors=NO_ERRORS,
     )
     marking = result.position.marking
     assert marking is not None
@@ -255,14 +242,12 @@ def test_marking_range_includes_the_print_tolerance_of_the_markings() -> None:
     )
     # 0.5 % counting down in feet: ±5 m = ±16.4042 ft (5 / 0.3048) around
     # 20 000 − 1000 / 0.3048 = 16 719.1601 ft
-    feet = locate(
-        LocateInput(
-            otdr_distance_m=1020,
-            group_index=1.468,
-            helix_percent=2.0,
-            marking=Marking(20000, "ft", "down", tolerance_percent=0.5),
-            errors=NO_ERRORS,
-        )
+    feet = _locate(
+        otdr_distance_m=1020,
+        group_index=1.468,
+        helix_percent=2.0,
+        marking=Marking(20000, "ft", "down", tolerance_percent=0.5),
+        errors=NO_ERRORS,
     ).position.marking
     assert feet is not None
     assert feet.high == pytest.approx(16719.1601 - 16.4042, abs=1e-3)
@@ -270,30 +255,26 @@ def test_marking_range_includes_the_print_tolerance_of_the_markings() -> None:
     # with the sheath-length range too, root-sum-square: helix ±0.5 % on 1020 m of fibre moves
     # the sheath to 1020 / 1.015 = 1004.926 (+4.926 m) or 1020 / 1.025 = 995.122 (−4.878 m);
     # √(4.926² + 10²) = 11.147 m
-    both = locate(
-        LocateInput(
-            otdr_distance_m=1020,
-            group_index=1.468,
-            helix_percent=2.0,
-            marking=Marking(5000, "m", "up"),
-            errors=ErrorTerms(
-                offset_m=0,
-                scale_error_percent=0,
-                sample_spacing_m=0,
-                group_index_uncertainty=0,
-                helix_uncertainty_percent=0.5,
-            ),
-        )
+    both = _locate(
+        otdr_distance_m=1020,
+        group_index=1.468,
+        helix_percent=2.0,
+        marking=Marking(5000, "m", "up"),
+        errors=ErrorTerms(
+            offset_m=0,
+            scale_error_percent=0,
+            sample_spacing_m=0,
+            group_index_uncertainty=0,
+            helix_uncertainty_percent=0.5,
+        ),
     ).position.marking
     assert both is not None
     assert both.high - both.value == pytest.approx(11.147, abs=1e-3)
     with pytest.raises(InputError, match="marking tolerance"):
-        locate(
-            LocateInput(
-                otdr_distance_m=1020,
-                group_index=1.468,
-                marking=Marking(5000, "m", "up", tolerance_percent=-1),
-            )
+        _locate(
+            otdr_distance_m=1020,
+            group_index=1.468,
+            marking=Marking(5000, "m", "up", tolerance_percent=-1),
         )
 
 
@@ -302,13 +283,8 @@ def test_two_ended_consistent_and_combined() -> None:
     # Tolerance with defaults (offset 1 m, sample 1 m): A's offset is common to from-A and the
     # total and cancels; B's own offset 1 m; three readings' sampling 1 m each:
     # √(1² + 1² + 1² + 1²) = 2 m (scale and index terms ≈ 0.0002 m)
-    result = locate(
-        LocateInput(
-            otdr_distance_m=3412,
-            group_index=1.4677,
-            helix_percent=0.0,
-            two_ended=TwoEnded(1590, 5000),
-        )
+    result = _locate(
+        otdr_distance_m=3412, group_index=1.4677, helix_percent=0.0, two_ended=TwoEnded(1590, 5000)
     )
     two = result.two_ended
     assert two is not None
@@ -326,13 +302,8 @@ def test_two_ended_consistent_and_combined() -> None:
 
 def test_two_ended_inconsistent_is_flagged() -> None:
     # 3412 + 1600 − 5000 = 12 m, far beyond ±2 m
-    result = locate(
-        LocateInput(
-            otdr_distance_m=3412,
-            group_index=1.4677,
-            helix_percent=0.0,
-            two_ended=TwoEnded(1600, 5000),
-        )
+    result = _locate(
+        otdr_distance_m=3412, group_index=1.4677, helix_percent=0.0, two_ended=TwoEnded(1600, 5000)
     )
     assert result.two_ended is not None and not result.two_ended.consistent
     assert any("Two-ended check fails" in w for w in result.warnings)
@@ -345,7 +316,7 @@ def test_uncertainty_is_the_root_sum_square_of_the_terms() -> None:
     # = 3.40832 (the larger side of ±δn);
     # u = √(1 + 0.25 + 1 + 11.6166) = √13.8666 = 3.72379 m; worst case 1 + 0.5 + 1 + 3.40832
     # = 5.90832 m
-    p = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0)).position
+    p = _locate(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0).position
     terms = {c.name: c.route_m for c in p.contributions}
     assert terms["instrument offset"] == pytest.approx(1.0, abs=1e-9)
     assert terms["scale error"] == pytest.approx(0.5, abs=1e-9)
@@ -363,13 +334,11 @@ def test_uncertainty_is_the_root_sum_square_of_the_terms() -> None:
 def test_helix_uncertainty_dominates_a_long_bare_reading() -> None:
     # 5000 m fibre, helix 1.5 ± 0.5 %: sheath 5000/1.015 = 4926.108; at 1.0 %: 4950.495 (+24.387);
     # at 2.0 %: 4901.961 (−24.147); the term is the larger, 24.387 m
-    p = locate(
-        LocateInput(
-            otdr_distance_m=5000,
-            group_index=1.468,
-            helix_percent=1.5,
-            errors=ErrorTerms(helix_uncertainty_percent=0.5),
-        )
+    p = _locate(
+        otdr_distance_m=5000,
+        group_index=1.468,
+        helix_percent=1.5,
+        errors=ErrorTerms(helix_uncertainty_percent=0.5),
     ).position
     assert p.route_distance_m == pytest.approx(4926.108, abs=1e-3)
     terms = {c.name: c.route_m for c in p.contributions}
@@ -383,7 +352,7 @@ def test_a_helix_not_given_runs_the_range_from_the_fibre_down_to_the_shortest_ca
     # term spans 0 % (5000 − 4926.108 = 73.892 m) to 3 % (4926.108 − 5000 / 1.03 = 4926.108 −
     # 4854.369 = 71.739 m); the larger, 73.892 m, is the half-width. So the range is 4852.216 to
     # 5000.000 m: from the fibre distance down past the shortest plausible cable (4854.369 m).
-    result = locate(LocateInput(otdr_distance_m=5000, group_index=1.468, errors=NO_ERRORS))
+    result = _locate(otdr_distance_m=5000, group_index=1.468, errors=NO_ERRORS)
     p = result.position
     assert p.route_distance_m == pytest.approx(4926.108, abs=1e-3)
     terms = {c.name: c.route_m for c in p.contributions}
@@ -394,8 +363,8 @@ def test_a_helix_not_given_runs_the_range_from_the_fibre_down_to_the_shortest_ca
     # the old range, ±145.6 m around 5000 m, had half its width above the fibre distance
     assert p.high_m <= 5000.0 + 1e-6
     # a helix given (even 0 %) is taken at its word: no such term
-    given_zero = locate(
-        LocateInput(otdr_distance_m=5000, group_index=1.468, helix_percent=0.0, errors=NO_ERRORS)
+    given_zero = _locate(
+        otdr_distance_m=5000, group_index=1.468, helix_percent=0.0, errors=NO_ERRORS
     ).position
     assert given_zero.uncertainty_m == pytest.approx(0.0, abs=1e-9)
     assert given_zero.route_distance_m == pytest.approx(5000.0, abs=1e-9)
@@ -486,27 +455,23 @@ def test_extrapolation_carries_a_helix_term_for_the_unmeasured_stretch() -> None
     # one landmark HH 3 (1500 m OTDR, 1460 m route); fault 2040 m: ratio 1500/1460 = 1.027397,
     # 540 m of fibre past HH 3 = 525.600 m of sheath. With the helix ± 0.5 points the stretch may
     # be 525.600 / 0.995 = 528.241 (+2.641) or 525.600 / 1.005 = 522.985 (−2.615) m: term 2.641
-    p = locate(
-        LocateInput(
-            otdr_distance_m=2040,
-            group_index=1.468,
-            helix_percent=2.0,
-            landmarks=(Landmark("HH 3", 1500, 1460),),
-            errors=ErrorTerms(helix_uncertainty_percent=0.5),
-        )
+    p = _locate(
+        otdr_distance_m=2040,
+        group_index=1.468,
+        helix_percent=2.0,
+        landmarks=(Landmark("HH 3", 1500, 1460),),
+        errors=ErrorTerms(helix_uncertainty_percent=0.5),
     ).position
     assert p.route_distance_m == pytest.approx(1460 + 525.600, abs=1e-3)
     terms = {c.name: c.route_m for c in p.contributions}
     assert terms["helix beyond the landmarks"] == pytest.approx(2.641, abs=1e-3)
     # between landmarks the same term is zero: nothing is extrapolated
-    inside = locate(
-        LocateInput(
-            otdr_distance_m=1000,
-            group_index=1.468,
-            helix_percent=2.0,
-            landmarks=(Landmark("HH 3", 1500, 1460),),
-            errors=ErrorTerms(helix_uncertainty_percent=0.5),
-        )
+    inside = _locate(
+        otdr_distance_m=1000,
+        group_index=1.468,
+        helix_percent=2.0,
+        landmarks=(Landmark("HH 3", 1500, 1460),),
+        errors=ErrorTerms(helix_uncertainty_percent=0.5),
     ).position
     assert "helix beyond the landmarks" not in {c.name for c in inside.contributions}
 
@@ -515,9 +480,7 @@ def test_before_the_first_landmark_is_extrapolated_and_named() -> None:
     # a launch cord left on: the panel at 150 m OTDR is route 0, closure 1 at 1150 m / 1000 m;
     # a reading of 100 m lies on the cord, before the panel
     marks = (Landmark("panel", 150, 0), Landmark("closure 1", 1150, 1000))
-    result = locate(
-        LocateInput(otdr_distance_m=100, group_index=1.4677, landmarks=marks, errors=NO_ERRORS)
-    )
+    result = _locate(otdr_distance_m=100, group_index=1.4677, landmarks=marks, errors=NO_ERRORS)
     assert result.position.basis == "extrapolated"
     assert result.position.route_distance_m == 0.0
     assert any("Before the first landmark (panel)" in w for w in result.warnings)
@@ -536,15 +499,13 @@ def test_range_of_an_interpolated_fault_by_hand() -> None:
     # Root-sum-square √(0.971633 + 0.178718 + 0.317722) = √1.468073 = 1.211641 m; worst case
     # (their sum) 1.972133 m.
     marks = (Landmark("closure 6", 2000, 1950), Landmark("closure 7", 3400, 3330))
-    p = locate(
-        LocateInput(
-            otdr_distance_m=2800,
-            group_index=1.4677,
-            landmarks=marks,
-            errors=ErrorTerms(
-                offset_m=0, scale_error_percent=0, sample_spacing_m=1.0, group_index_uncertainty=0
-            ),
-        )
+    p = _locate(
+        otdr_distance_m=2800,
+        group_index=1.4677,
+        landmarks=marks,
+        errors=ErrorTerms(
+            offset_m=0, scale_error_percent=0, sample_spacing_m=1.0, group_index_uncertainty=0
+        ),
     ).position
     assert p.route_distance_m == pytest.approx(2738.571, abs=1e-3)
     assert p.uncertainty_m == pytest.approx(1.211641, abs=1e-5)

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from datetime import UTC, datetime, timedelta
+from typing import TYPE_CHECKING, Any
 
 import pytest
 
@@ -11,11 +12,19 @@ from fieldkit.calc.reference import Method
 from fieldkit.calc.units import InputError
 from fieldkit.jobs.models import BudgetItem, BudgetRecord, BudgetWavelength, Job, result_in_doubt
 
+if TYPE_CHECKING:
+    from fieldkit.jobs.models import Link, LossResult, ReferenceRecord
+
 T0 = datetime(2026, 3, 2, 8, 0, tzinfo=UTC)
 
 
-def _link():  # noqa: ANN202 - a pydantic Link
+def _link() -> Link:
     return Job(name="j").add_link("L1")
+
+
+def _put(link: Link, reference: ReferenceRecord, **cell: Any) -> LossResult:
+    """``put_result`` of one A->B reading against ``reference``."""
+    return meter_log.put_result(link, direction="A->B", reference=reference, **cell)
 
 
 def test_two_directions_keep_their_own_references() -> None:
@@ -43,42 +52,21 @@ def test_put_result_computes_loss_flags_and_a_retest_supersedes_keeping_the_firs
     reference = meter_log.add_reference(
         link, wavelength_nm=1550, level_dbm=-7.0, method=Method.ONE_CORD, at=T0
     )
-    first = meter_log.put_result(
-        link,
-        fibre=5,
-        wavelength_nm=1550,
-        direction="A->B",
-        reading_dbm=-9.0,
-        reference=reference,
-        limit_db=1.5,
-        at=T0,
+    first = _put(
+        link, reference, fibre=5, wavelength_nm=1550, reading_dbm=-9.0, limit_db=1.5, at=T0
     )
     # -7.0 − (-9.0) = 2.0 dB > 1.5 dB: fail.
     assert first.loss_db == pytest.approx(2.0, abs=1e-12) and first.passed is False
-    fixed = meter_log.put_result(
-        link,
-        fibre=5,
-        wavelength_nm=1550,
-        direction="A->B",
-        reading_dbm=-8.0,
-        reference=reference,
-        limit_db=1.5,
-        at=T0,
+    fixed = _put(
+        link, reference, fibre=5, wavelength_nm=1550, reading_dbm=-8.0, limit_db=1.5, at=T0
     )
     # History, not overwrite: both stay; the first is superseded by the retest.
     assert [r.id for r in link.results] == [first.id, fixed.id]
     assert first.superseded_by == fixed.id and first.superseded_at is not None
     assert first.passed is False and first.loss_db == pytest.approx(2.0, abs=1e-12)
     assert fixed.current and fixed.loss_db == pytest.approx(1.0, abs=1e-12) and fixed.passed
-    negative = meter_log.put_result(
-        link,
-        fibre=6,
-        wavelength_nm=1550,
-        direction="A->B",
-        reading_dbm=-6.8,
-        reference=reference,
-        limit_db=1.5,
-        at=T0,
+    negative = _put(
+        link, reference, fibre=6, wavelength_nm=1550, reading_dbm=-6.8, limit_db=1.5, at=T0
     )
     assert negative.flags == ["negative-loss"] and negative.passed is None
     assert meter_log.clear_result(link, fibre=6, wavelength_nm=1550, direction="A->B", by="A")
@@ -93,13 +81,12 @@ def test_recheck_puts_results_since_the_last_good_check_in_doubt() -> None:
     reference = meter_log.add_reference(
         link, wavelength_nm=1310, level_dbm=-7.0, method=Method.ONE_CORD, at=T0
     )
-    early = meter_log.put_result(
+    early = _put(
         link,
+        reference,
         fibre=1,
         wavelength_nm=1310,
-        direction="A->B",
         reading_dbm=-8.0,
-        reference=reference,
         limit_db=None,
         at=T0 + timedelta(minutes=10),
     )
@@ -108,13 +95,12 @@ def test_recheck_puts_results_since_the_last_good_check_in_doubt() -> None:
     )
     # -7.05 − (-7.00) = -0.05 dB, within 0.1 dB (single-mode, common practice).
     assert good.drift.within and good.in_doubt_ids == []
-    late = meter_log.put_result(
+    late = _put(
         link,
+        reference,
         fibre=2,
         wavelength_nm=1310,
-        direction="A->B",
         reading_dbm=-8.0,
-        reference=reference,
         limit_db=None,
         at=T0 + timedelta(hours=2),
     )
@@ -127,13 +113,12 @@ def test_recheck_puts_results_since_the_last_good_check_in_doubt() -> None:
     assert reference.in_doubt_since == T0 + timedelta(hours=1)
     assert not result_in_doubt(link, early) and result_in_doubt(link, late)
     # A reading taken after the bad recheck against the same reference is flagged at once.
-    after = meter_log.put_result(
+    after = _put(
         link,
+        reference,
         fibre=3,
         wavelength_nm=1310,
-        direction="A->B",
         reading_dbm=-8.0,
-        reference=reference,
         limit_db=None,
         at=T0 + timedelta(hours=4),
     )
