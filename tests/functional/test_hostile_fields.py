@@ -1,7 +1,10 @@
 """Hostile values typed into the workspaces' fields: the app keeps running and says why.
 
 Each value is set as a user could type or paste it (a field's ``restrict`` pattern is honoured,
-so only what the keyboard can put there is tried).
+so only what the keyboard can put there is tried). Every value in every field at once, then
+each field alone with one of them: the workspace's wiring survives and nothing typed is lost.
+Every value in every field one at a time, the others as they start, goes through the same
+parsers and models the workspaces call, at unit speed: tests/unit/test_hostile_field_values.py.
 """
 
 from __future__ import annotations
@@ -10,29 +13,12 @@ import re
 from pathlib import Path
 
 import pytest
+from hostile_values import HOSTILE
 from textual.widgets import Input, Static
 
 from fieldkit.tui.app import make_app
 
 SIZES = [(80, 24), (44, 22)]
-
-HOSTILE = [
-    "nan",
-    "-inf",
-    "1e400",
-    "1e308 dBm",
-    "-1e308 dB",
-    "1e-320 nm",
-    "1e-320 pW",
-    "-4000 dBm",
-    "1e-300 pW",
-    "-7,5",
-    "1,234",
-    "5 MW",
-    "0 mW",
-    "9" * 400,
-    "[bold]x[/",
-]
 
 
 def _typeable(field: Input, text: str) -> str | None:
@@ -50,17 +36,38 @@ async def test_no_typed_value_stops_the_workspace(tmp_path: Path, mode: str) -> 
         screen = app.screen
         fields = list(screen.query(Input))
         assert fields, f"{mode} has no fields"
-        for field in fields:
-            for text in HOSTILE:
-                typed = _typeable(field, text)
-                if typed is None:
-                    continue
-                field.value = typed
-                await pilot.pause()
-                assert app.is_running and app.screen is screen, (field.id, text)
-                assert field.value == typed  # nothing typed is lost
-            field.value = ""
+        # each value in every field it can be typed into, all at once
+        for text in HOSTILE:
+            typed = {}
+            for field in fields:
+                value = _typeable(field, text)
+                if value is not None:
+                    field.value = typed[field] = value
             await pilot.pause()
+            assert app.is_running and app.screen is screen, text
+            for field, value in typed.items():
+                assert field.value == value, (field.id, text)  # nothing typed is lost
+        for field in fields:
+            field.value = ""
+        await pilot.pause()
+        # then each field alone, the others empty, with one of the values (taken in turn)
+        tried = set()
+        for n, field in enumerate(fields):
+            for text in HOSTILE[n % len(HOSTILE) :] + HOSTILE[: n % len(HOSTILE)]:
+                value = _typeable(field, text)
+                if value is not None:
+                    break
+            else:
+                continue
+            field.value = value
+            tried.add(text)
+            await pilot.pause()
+            assert app.is_running and app.screen is screen, (field.id, text)
+            assert field.value == value
+            field.value = ""
+        await pilot.pause()
+        assert app.is_running and app.screen is screen
+        assert len(tried) >= min(len(fields), 4)  # not one value everywhere
 
 
 @pytest.mark.parametrize("size", SIZES)
