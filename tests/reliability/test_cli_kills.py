@@ -2,7 +2,9 @@
 
 After every kill: each job file parses, no acknowledged note is lost (the CLI printed "noted"),
 the next `jobs list` lists every job, and temp files the killed run left are gone after the
-next run that holds the lock. A few dozen kills here; tests/fuzz/kill_run.py does thousands.
+next run that holds the lock. A few kills here, their moments spread evenly over the window
+from before the save to after it (so even a few land in every part of it);
+tests/fuzz/kill_run.py does thousands at random moments.
 """
 
 from __future__ import annotations
@@ -21,7 +23,17 @@ from fieldkit.jobs.store import JobStore
 
 pytestmark = pytest.mark.skipif(not hasattr(signal, "SIGKILL"), reason="needs SIGKILL")
 
-KILLS = 12
+KILLS = 6
+
+
+def _moments(low: float, high: float, kills: int, seed: int) -> list[float]:
+    """``kills`` kill delays spread over ``low``..``high``: one at a random point of each of
+    ``kills`` equal slices, in a shuffled order (stratified: no part of the window is missed)."""
+    rng = random.Random(seed)
+    step = (high - low) / kills
+    moments = [low + step * (i + rng.random()) for i in range(kills)]
+    rng.shuffle(moments)
+    return moments
 
 
 def _cli(data: Path, *args: str) -> subprocess.Popen[str]:
@@ -42,11 +54,11 @@ def test_kills_of_jobs_note_lose_no_acknowledged_note(tmp_path: Path) -> None:
     data = tmp_path / "data"
     store = JobStore(data / "jobs")
     job = store.create("Killed notes")
-    rng = random.Random(16)
     acknowledged: list[str] = []
-    for n in range(KILLS):
+    # start-up is ~0.3 s: before, during, after the save
+    for n, moment in enumerate(_moments(0.05, 0.6, KILLS, seed=16)):
         proc = _cli(data, "jobs", "note", job.id, f"note {n}")
-        time.sleep(rng.uniform(0.05, 0.6))  # start-up is ~0.3 s: before, during, after the save
+        time.sleep(moment)
         proc.send_signal(signal.SIGKILL)
         out, _ = proc.communicate(timeout=30)
         if "noted on" in out:
@@ -69,11 +81,10 @@ def test_kills_during_jobs_list_leave_a_working_index(tmp_path: Path) -> None:
     data = tmp_path / "data"
     store = JobStore(data / "jobs")
     ids = {store.create(f"Job {i}").id for i in range(300)}  # an index worth writing
-    rng = random.Random(1616)
-    for _ in range(KILLS):
+    for moment in _moments(0.2, 0.9, KILLS, seed=1616):
         os.utime(data / "jobs", ns=(0, 0))  # force a rescan and an index write each time
         proc = _cli(data, "jobs", "list", "--rescan")
-        time.sleep(rng.uniform(0.2, 0.9))
+        time.sleep(moment)
         proc.send_signal(signal.SIGKILL)
         proc.communicate(timeout=30)
         listed = {s.id for s in JobStore(data / "jobs").list()}

@@ -1,4 +1,5 @@
-"""A writer killed with SIGKILL at random moments while it saves, many times over.
+"""A writer killed with SIGKILL at moments spread over its saves, a dozen times over
+(tests/fuzz/kill_run.py does it thousands of times at random moments).
 
 Afterwards the job file always parses and holds one complete saved version (its notes are an
 unbroken run n0, n1, ... — the old or the new content, never a mix), no save that finished is
@@ -56,14 +57,18 @@ def test_sigkill_during_saves_leaves_old_or_new(tmp_path: Path) -> None:
     store.update(job.id, big)  # ~250 KB per save, so kills land inside writes
     rng = random.Random(20261201)
     confirmed = 0
-    rounds = 40
-    for _ in range(rounds):
+    rounds = 12
+    # one kill in each of twelve equal slices of the 0.2 s after the first save (stratified:
+    # early, mid-write and late kills all happen), in a shuffled order
+    moments = [0.2 * (i + rng.random()) / rounds for i in range(rounds)]
+    rng.shuffle(moments)
+    for moment in moments:
         proc = subprocess.Popen(
             [sys.executable, "-c", WRITER, str(jobs_dir), job.id], stdout=subprocess.PIPE, text=True
         )
         assert proc.stdout is not None
         first = proc.stdout.readline()  # started and saved once: now kill at a random moment
-        time.sleep(rng.random() * 0.2)
+        time.sleep(moment)
         os.kill(proc.pid, signal.SIGKILL)
         out, _ = proc.communicate(timeout=30)
         printed = [int(x) for x in (first + out).split()]
