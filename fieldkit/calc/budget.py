@@ -466,35 +466,10 @@ def compute_budget(link: LinkDescription) -> BudgetResult:
             if joint is not None:
                 items.append(joint)
         if link.connectors is not None and link.connectors.count:
-            c = link.connectors
-            items.append(
-                BudgetItem(
-                    name=f"{c.count} mated connector pair{'s' if c.count != 1 else ''} × "
-                    f"{c.loss_max_db:.2f} dB",
-                    kind="connectors",
-                    loss_db=c.count * c.loss_max_db,
-                    typical_loss_db=None
-                    if c.loss_typical_db is None
-                    else c.count * c.loss_typical_db,
-                    loss_min_db=0.0,
-                    source=c.source or (c.name or "typed value"),
-                )
-            )
+            items.append(_joints_item(link.connectors, "mated connector pair", "connectors"))
         for sp in link.splices:
             if sp.count:
-                items.append(
-                    BudgetItem(
-                        name=f"{sp.count} {sp.method} splice{'s' if sp.count != 1 else ''} × "
-                        f"{sp.loss_max_db:.2f} dB",
-                        kind="splices",
-                        loss_db=sp.count * sp.loss_max_db,
-                        typical_loss_db=None
-                        if sp.loss_typical_db is None
-                        else sp.count * sp.loss_typical_db,
-                        loss_min_db=0.0,
-                        source=sp.source or (sp.name or "typed value"),
-                    )
-                )
+                items.append(_joints_item(sp, f"{sp.method} splice", "splices"))
         for comp in link.components:
             if comp.count:
                 prefix = f"{comp.count} × " if comp.count != 1 else ""
@@ -512,6 +487,35 @@ def compute_budget(link: LinkDescription) -> BudgetResult:
                 )
         results.append(WavelengthBudget(nm, tuple(items), link.margin_db))
     return BudgetResult(tuple(results), link.margin_db, link.length_m, tuple(dict.fromkeys(notes)))
+
+
+def _joints_item(joints: Connections | Splices, one: str, kind: str) -> BudgetItem:
+    """The line item of ``joints.count`` mated pairs or splices at their loss each.
+
+    Parameters
+    ----------
+    joints : Connections or Splices
+        How many, and the maximum (and typical, when known) loss of one, dB.
+    one : str
+        What one of them is called in the item's name (``"fusion splice"``).
+    kind : str
+        The item's kind, ``"connectors"`` or ``"splices"``.
+
+    Returns
+    -------
+    BudgetItem
+        Loss ``n·L`` at the maximum (and typical) loss; 0 dB at the least, since a joint may
+        lose next to nothing.
+    """
+    n = joints.count
+    return BudgetItem(
+        name=f"{n} {one}{'s' if n != 1 else ''} × {joints.loss_max_db:.2f} dB",
+        kind=kind,
+        loss_db=n * joints.loss_max_db,
+        typical_loss_db=None if joints.loss_typical_db is None else n * joints.loss_typical_db,
+        loss_min_db=0.0,
+        source=joints.source or (joints.name or "typed value"),
+    )
 
 
 def _fibre_item(seg: Segment, nm: float, notes: list[str]) -> BudgetItem:
