@@ -114,6 +114,17 @@ def add_fibre_type(parser: Options, what: str, *, fibre_alias: bool = False) -> 
     parser.add_argument(*old, dest="renamed_fibre_type", action=RenamedOption, new="--fibre-type")
 
 
+def saved_on_link(saved: Any, **more: Any) -> dict[str, Any]:
+    """What ``--json`` says of a record saved onto a job's link: the job's and the link's ids,
+    the link's label, then ``more`` (what was kept)."""
+    return {
+        "job_id": saved.job_id,
+        "link_id": saved.link_id,
+        "link_label": saved.link_label,
+        **more,
+    }
+
+
 def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:
     """One line on stderr when a preset file or entry was skipped, so that a user's own preset
     that did not load is never replaced by the shipped one without a word."""

@@ -18,6 +18,7 @@ from fieldkit.commands.common import (
     add_job_link,
     plain_text,
     print_json,
+    saved_on_link,
     warn_preset_problems,
 )
 
@@ -493,9 +494,4 @@ def _save(args: argparse.Namespace, location: Location, inputs: dict[str, Any]) 
         saved = save_fault(store, job_id, args.link, record, create=True)
     except StoreError as exc:
         raise CommandError(str(exc)) from None
-    return {
-        "job_id": saved.job_id,
-        "link_id": saved.link_id,
-        "link_label": saved.link_label,
-        "fault_id": record.id,
-    }
+    return saved_on_link(saved, fault_id=record.id)

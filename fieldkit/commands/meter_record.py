@@ -11,7 +11,7 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_by, add_job_link
+from fieldkit.commands.common import CommandError, add_by, add_job_link, saved_on_link
 
 
 def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -> None:
@@ -169,12 +169,10 @@ def record_readings(
         )
     except StoreError as exc:
         raise CommandError(str(exc)) from None
-    return {
-        "job_id": saved.job_id,
-        "link_id": saved.link_id,
-        "link_label": saved.link_label,
-        "fibre": saved.fibre,
-        "reference_ids": saved.reference_ids,
-        "result_ids": saved.result_ids,
-        "warnings": saved.warnings,
-    }
+    return saved_on_link(
+        saved,
+        fibre=saved.fibre,
+        reference_ids=saved.reference_ids,
+        result_ids=saved.result_ids,
+        warnings=saved.warnings,
+    )

@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, print_json
+from fieldkit.commands.common import CommandError, add_data_dir, print_json, saved_on_link
 
 
 def register(subparsers: Any) -> None:
@@ -162,11 +162,5 @@ def _save(
             rechecked_reference_id=outcome.initial.id,
             in_doubt_result_ids=outcome.in_doubt_ids,
         )
-    out["saved"] = {
-        "job_id": saved.job_id,
-        "link_id": saved.link_id,
-        "link_label": saved.link_label,
-        "reference_id": saved.record.id,
-        "kind": saved.record.kind,
-    }
+    out["saved"] = saved_on_link(saved, reference_id=saved.record.id, kind=saved.record.kind)
     return out
