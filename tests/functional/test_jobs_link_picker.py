@@ -77,3 +77,20 @@ async def test_no_jobs_creates_one_then_cancel_returns_none(tmp_path: Path) -> N
         await pilot.pause()
     assert chosen == [None]
     assert _store(tmp_path / "d").list() == []  # cancelled: no job was created
+
+
+@pytest.mark.parametrize(("mode", "key", "word"), [("budget", "ctrl+o", "Open")])
+async def test_the_picker_button_says_what_it_does(
+    tmp_path: Path, mode: str, key: str, word: str
+) -> None:
+    # opening a saved budget must not offer "Save here": the button names the action
+    from textual.widgets import Button
+
+    _store(tmp_path / "d").create("Harbour Road duct")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode=mode)
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        await pilot.press(key)
+        await pilot.pause()
+        assert isinstance(app.screen, JobLinkPicker)
+        assert str(app.screen.query_one("#jlp-ok", Button).label) == word

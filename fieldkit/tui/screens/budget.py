@@ -398,7 +398,9 @@ class BudgetScreen(Screen[None]):
                     self._job_id = choice[0]
                     self.model.mark_clean()
 
-        picker = JobLinkPicker(job_id=self._job_id, title="Open the budget saved on a link")
+        picker = JobLinkPicker(
+            job_id=self._job_id, title="Open the budget saved on a link", confirm="Open"
+        )
         self.app.push_screen(picker, chosen)
 
     def action_save(self) -> None:
