@@ -116,9 +116,9 @@ def main(argv: Sequence[str] | None = None) -> int:
 
         make_app(data_dir=args.data_dir, config_dir=args.config_dir, welcome=True).run()
         return 0
-    # Imported here, not before the UI starts: pydantic alone is a tenth of its first frame.
-    from pydantic import ValidationError
-
+    # Imported here, not before the UI starts. Not pydantic: a command that starts the UI
+    # (``demo``) would import it before the first frame, where it is a tenth of the start-up;
+    # a record's ValidationError is recognised below without it.
     from fieldkit.actions.errors import ActionError
     from fieldkit.calc.units import InputError
     from fieldkit.commands.common import CommandError
@@ -130,13 +130,6 @@ def main(argv: Sequence[str] | None = None) -> int:
         # one line whatever the input: user text echoed in the message cannot break it or
         # send control sequences to the terminal
         print(f"fieldkit {args.command}: {terminal(exc)}", file=sys.stderr)
-        return 2
-    except ValidationError as exc:
-        # a record built from what was typed (a --by of 201 characters): the size policy's
-        # limits, named in one line like every other refusal
-        from fieldkit.jobs.jobfile import explain
-
-        print(f"fieldkit {args.command}: {terminal(explain(exc))}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         return 130
@@ -150,6 +143,17 @@ def main(argv: Sequence[str] | None = None) -> int:
             f"fieldkit {args.command}: cannot use{terminal(where)}: {exc.strerror or exc}",
             file=sys.stderr,
         )
+        return 2
+    except Exception as exc:
+        # A record built from what was typed (a --by of 201 characters): the size policy's
+        # limits, named in one line like every other refusal. Such an error exists only once
+        # pydantic is imported, so it is looked up, never imported, here.
+        pydantic = sys.modules.get("pydantic")
+        if pydantic is None or not isinstance(exc, pydantic.ValidationError):
+            raise
+        from fieldkit.jobs.jobfile import explain
+
+        print(f"fieldkit {args.command}: {terminal(explain(exc))}", file=sys.stderr)
         return 2
     start_ui = getattr(args, "start_ui", None)
     if status == 0 and start_ui is not None:

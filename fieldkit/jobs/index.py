@@ -6,6 +6,10 @@ slower.
 Each entry is ``id -> [inode, mtime_ns, size, row]``; a row is the :class:`JobSummary` fields in
 order. Rows are checked field by field before use (a row of the right length but the wrong
 types used to crash every listing).
+
+No pydantic here, nor the records: the Jobs workspace lists the jobs from this index before the
+records are imported (they are a tenth of the start-up); only :meth:`JobSummary.of` needs a
+:class:`~fieldkit.jobs.models.Job`, which its caller has already imported.
 """
 
 from __future__ import annotations
@@ -16,10 +20,13 @@ import re
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from fieldkit.fsutil import MIB, atomic_write_bytes, read_regular
-from fieldkit.jobs.models import JOB_ID_RE, SCHEMA_VERSION, Job
+from fieldkit.jobs.ids import JOB_ID_RE, SCHEMA_VERSION
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.models import Job
 
 INDEX_DIR = ".index"
 INDEX_NAME = "summaries.json"

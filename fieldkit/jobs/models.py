@@ -31,17 +31,12 @@ from fieldkit.jobs.base import MAX_RECORDS_PER_JOB as MAX_RECORDS_PER_JOB
 from fieldkit.jobs.base import MAX_SHORT_TEXT as MAX_SHORT_TEXT
 from fieldkit.jobs.base import RECORD_ID_RE, Record, _check_finite, _Id, new_job_id, now
 from fieldkit.jobs.base import new_id as new_id  # re-exported: older code imports it here
+
+# The schema version and the job id pattern live in fieldkit.jobs.ids (no pydantic there, so
+# the job list shows before the records are imported); bump SCHEMA_VERSION there.
+from fieldkit.jobs.ids import JOB_ID_RE as JOB_ID_RE
+from fieldkit.jobs.ids import SCHEMA_VERSION as SCHEMA_VERSION
 from fieldkit.jobs.splices import Closure, SpliceLimit
-
-#: The version of the job-file layout this fieldkit writes. Older files are migrated on load;
-#: newer ones open read-only.
-SCHEMA_VERSION = 5
-
-#: Job ids: generated, lower-case hex, time-sortable (see :func:`new_id`). Anything else in a
-#: file name or an imported file is refused, so no id can name a path. Match it with
-#: ``fullmatch``: ``$`` alone also matches before a trailing newline.
-JOB_ID_RE = re.compile(r"^[0-9a-f]{12,32}$")
-
 
 Method = Literal["one-cord", "two-cord", "three-cord"]
 Direction = Literal["A->B", "B->A"]

@@ -14,7 +14,6 @@ from __future__ import annotations
 import json
 from collections.abc import Iterable
 from dataclasses import dataclass
-from datetime import UTC, datetime
 from typing import Any
 
 from fieldkit import safety
@@ -35,6 +34,7 @@ from fieldkit.jobs.models import (
 )
 from fieldkit.jobs.splices import Closure, Judgement, Splice, judge_in
 from fieldkit.text import escape
+from fieldkit.text.words import fmt_time as fmt_time  # here too: the reports' helpers
 
 __all__ = ["result_in_doubt"]
 
@@ -44,12 +44,6 @@ EXPORT_FORMATS = ("csv", "md", "html", "json")
 
 
 # -- numbers and times --------------------------------------------------------------------
-def fmt_time(moment: datetime | None) -> str:
-    if moment is None:
-        return ""
-    return moment.astimezone(UTC).strftime("%Y-%m-%d %H:%M UTC")
-
-
 def fmt_db(value: float | None) -> str:
     """A level or loss to 0.01 dB (the resolution of a field power meter), or ''."""
     if value is None:

@@ -39,8 +39,7 @@ import time
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-
-from pydantic import ValidationError
+from typing import TYPE_CHECKING, Any
 
 from fieldkit.fsutil import (
     FileTooLargeError,
@@ -50,6 +49,7 @@ from fieldkit.fsutil import (
     read_regular_head,
 )
 from fieldkit.jobs.errors import ConflictError, LockTimeoutError, ReadOnlyError, StoreError
+from fieldkit.jobs.ids import JOB_ID_RE, SCHEMA_VERSION, now
 from fieldkit.jobs.index import (
     INDEX_DIR,
     INDEX_NAME,
@@ -61,16 +61,47 @@ from fieldkit.jobs.index import (
     row_ok,
     write_index,
 )
-from fieldkit.jobs.jobfile import (
-    NewerSchemaError,
-    check_before_save,
-    explain,
-    job_from_dict,
-    parse_job,
-)
 from fieldkit.jobs.locking import LOCK_TIMEOUT_S, LOCKS_DIR, locked, locked_if_free
-from fieldkit.jobs.models import JOB_ID_RE, MAX_FILE_BYTES, SCHEMA_VERSION, Job, now
 from fieldkit.jobs.search import filter_summaries, local_date
+
+if TYPE_CHECKING:
+    # What the names below are (imported on first use, see __getattr__).
+    from fieldkit.jobs.base import MAX_FILE_BYTES as MAX_FILE_BYTES
+    from fieldkit.jobs.jobfile import NewerSchemaError as NewerSchemaError
+    from fieldkit.jobs.jobfile import check_before_save as check_before_save
+    from fieldkit.jobs.jobfile import explain as explain
+    from fieldkit.jobs.jobfile import job_from_dict as job_from_dict
+    from fieldkit.jobs.jobfile import parse_job as parse_job
+    from fieldkit.jobs.models import Job
+
+#: Names other code imports from here that need the records (pydantic): imported on first use,
+#: so that listing the jobs from the index (the Jobs workspace's first frame) needs neither.
+_LAZY = {
+    "NewerSchemaError": "fieldkit.jobs.jobfile",
+    "check_before_save": "fieldkit.jobs.jobfile",
+    "explain": "fieldkit.jobs.jobfile",
+    "job_from_dict": "fieldkit.jobs.jobfile",
+    "parse_job": "fieldkit.jobs.jobfile",
+    "MAX_FILE_BYTES": "fieldkit.jobs.base",
+}
+
+
+def __getattr__(name: str) -> Any:
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    import importlib
+
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value
+    return value
+
+
+def _file_limit() -> int:
+    """The largest job file read (``MAX_FILE_BYTES``, as this module names it)."""
+    limit: int = globals().get("MAX_FILE_BYTES") or __getattr__("MAX_FILE_BYTES")
+    return limit
+
 
 #: How long the jobs folder must have been unchanged before a scan trusts its mtime alone.
 SETTLE_NS = 2_000_000_000
@@ -112,7 +143,7 @@ class _Quarantined(StoreError):
 
 # Type aliases spelled outside the class, whose ``list`` method hides the builtin there.
 _QuarantineList = list[QuarantinedFile]
-_JobList = list[Job]
+_JobList = list["Job"]
 
 
 def _newest_first(summary: JobSummary) -> tuple[str, str]:
@@ -215,8 +246,10 @@ class JobStore:
         a regular file or cannot be read (reported, left alone), or is broken (quarantined, or
         reported when it could not be moved).
         """
+        from fieldkit.jobs.jobfile import NewerSchemaError, parse_job
+
         try:
-            raw = read_regular(path, MAX_FILE_BYTES, follow_symlinks=False)
+            raw = read_regular(path, _file_limit(), follow_symlinks=False)
         except FileNotFoundError:
             raise StoreError(f"no job {path.stem} in {self.jobs_dir}") from None
         except FileTooLargeError as exc:
@@ -372,6 +405,8 @@ class JobStore:
 
     def _summary_of(self, path: Path) -> JobSummary | None:
         """The summary of one job file, or None (the problem is in :attr:`problems`)."""
+        from fieldkit.jobs.jobfile import NewerSchemaError
+
         try:
             return JobSummary.of(self._read_job(path))
         except NewerSchemaError as exc:
@@ -452,9 +487,11 @@ class JobStore:
         return _Quarantined(message)
 
     def _restore_backup(self, path: Path) -> bool:
+        from fieldkit.jobs.jobfile import parse_job
+
         backup = path.with_name(path.name + ".bak")
         try:
-            raw = read_regular(backup, MAX_FILE_BYTES, follow_symlinks=False)
+            raw = read_regular(backup, _file_limit(), follow_symlinks=False)
             parse_job(raw, expected_id=path.stem)
             atomic_write_bytes(path, raw)
         except (OSError, StoreError):
@@ -497,6 +534,11 @@ class JobStore:
 
     def _write(self, job: Job, expected_revision: int) -> Job:
         """Under the job's lock: check the revision on disk, bump it, write atomically."""
+        from pydantic import ValidationError
+
+        from fieldkit.jobs.jobfile import check_before_save, explain
+        from fieldkit.jobs.models import Job
+
         if job.read_only:
             raise ReadOnlyError(job.read_only)
         path = self.path_of(job.id)
@@ -560,6 +602,10 @@ class JobStore:
         A record that ``change`` builds with a value the models refuse (a note over its length
         limit) becomes a :class:`StoreError` naming the field.
         """
+        from pydantic import ValidationError
+
+        from fieldkit.jobs.jobfile import explain
+
         path = self.path_of(job_id)
         for attempt in range(attempts):
             with self._locked(job_id):
@@ -590,6 +636,11 @@ class JobStore:
         by: str = "",
     ) -> Job:
         """A new open job, saved at once (revision 1)."""
+        from pydantic import ValidationError
+
+        from fieldkit.jobs.jobfile import explain
+        from fieldkit.jobs.models import Job
+
         name = name.strip()
         if not name:
             raise StoreError("a job needs a name")
@@ -642,6 +693,8 @@ class JobStore:
 
     def trashed(self) -> _JobList:
         """The jobs in the trash folder (readable ones), most recently updated first."""
+        from fieldkit.jobs.jobfile import parse_job
+
         out = []
         try:
             entries = sorted(self.trash_dir.glob("*.json"))
@@ -649,7 +702,7 @@ class JobStore:
             return []
         for entry in entries:
             try:
-                out.append(parse_job(read_regular(entry, MAX_FILE_BYTES, follow_symlinks=False)))
+                out.append(parse_job(read_regular(entry, _file_limit(), follow_symlinks=False)))
             except (OSError, StoreError, ValueError):
                 continue
         out.sort(key=lambda job: job.updated_at, reverse=True)

@@ -10,6 +10,7 @@ from fieldkit.jobs.counting import Tally, link_tallies, open_items
 from fieldkit.jobs.models import Job
 from fieldkit.jobs.reports import failures, fmt_db, fmt_m, fmt_nm
 from fieldkit.jobs.store import JobStore, filter_summaries, local_date
+from fieldkit.text.words import counted as counted  # here too: older code imports it here
 
 
 @dataclass
@@ -75,14 +76,6 @@ class DaySummary:
             "totals": self.totals(),
             "jobs": [j.as_dict() for j in self.jobs],
         }
-
-
-def counted(count: int, one: str, many: str | None = None) -> str:
-    """``count`` with the noun in the form that agrees: "1 failed result", "2 failed results".
-
-    ``many`` is the plural when it is not ``one`` + "s".
-    """
-    return f"{count} {one if count == 1 else (many or one + 's')}"
 
 
 def job_day(job: Job, day: date) -> JobDay:

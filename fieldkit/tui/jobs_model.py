@@ -56,12 +56,15 @@ class JobsModel:
     status: str | None = None  # None (all), "open" or "done"
     today_only: bool = False
     job: Job | None = None
+    #: The job shown from its summary (its head only) until it is read; ``job`` is None then.
+    pending_id: str | None = None
     quarantined: int = 0
     _finder: JobFinder | None = field(default=None, repr=False)
 
     @property
     def job_id(self) -> str | None:
-        return self.job.id if self.job is not None else None
+        """The id of the job shown (read, or shown from its summary until it is)."""
+        return self.job.id if self.job is not None else self.pending_id
 
     @property
     def status_label(self) -> str:
@@ -94,6 +97,7 @@ class JobsModel:
         from fieldkit.jobs.index import JobSummary
 
         self.job = job
+        self.pending_id = None
         fresh = JobSummary.of(job)
         summaries = [fresh if s.id == job.id else s for s in self.summaries]
         summaries.sort(key=lambda s: (s.updated_iso, s.id), reverse=True)

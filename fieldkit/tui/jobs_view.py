@@ -24,60 +24,19 @@ from fieldkit.jobs.reports import (
     verdict,
 )
 from fieldkit.jobs.splices import closure_summary
-from fieldkit.jobs.today import counted
 from fieldkit.jobs.trace_summary import link_traces
 from fieldkit.text.escape import terminal
 from fieldkit.text.layout import fit
-from fieldkit.tui import keys
+
+# The list's rows and the job's head (no records needed: the first frame shows them from the
+# index), here too.
+from fieldkit.tui.jobs_rows import head as head
+from fieldkit.tui.jobs_rows import no_job_head as no_job_head
+from fieldkit.tui.jobs_rows import plain as plain
+from fieldkit.tui.jobs_rows import prompt as prompt
 
 if TYPE_CHECKING:
-    from pathlib import Path
-
-    from fieldkit.jobs.index import JobSummary
     from fieldkit.jobs.models import Job, Link
-
-
-def plain(text: str, style: str = "") -> Text:
-    """User text as plain text: a "[" in a job name must not be read as markup."""
-    return Text(terminal(text, multiline=True), style=style)
-
-
-def no_job_head(any_jobs: bool, jobs_dir: Path) -> Text:
-    """What the details say when the list shows no job."""
-    if not any_jobs:
-        return plain(
-            f"No jobs yet. {keys.display('new')} (or New) starts one: its name, customer, "
-            f"site and crew; then its links. Jobs are kept in {jobs_dir}."
-        )
-    return plain("No job matches; clear the find field (Ctrl+F) to see them all.")
-
-
-def prompt(s: JobSummary) -> str:
-    """A row of the job list: the name, then the counts and the site (the list shows each on
-    one line, cut with "…" where it is narrower: wrapped, they read as other rows; the details
-    beside show them whole)."""
-    mark = "✓" if s.status == "done" else "•"
-    failed = f", {s.failed_count} failed" if s.failed_count else ""
-    site = f" · {terminal(s.site)}" if s.site else ""
-    return f"{mark} {terminal(s.name)}\n  {counted(s.result_count, 'result')}{failed}{site}"
-
-
-def head(job: Job) -> RenderableType:
-    text = Text()
-    text.append(terminal(job.name), style="bold")
-    text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
-    for label, value in (
-        ("Customer", job.customer),
-        ("Site", job.site),
-        ("Crew", ", ".join(job.crew)),
-    ):
-        if value:
-            text.append(f"\n{label}: ", style="dim")
-            text.append(terminal(value))
-    text.append(f"\nId {job.id} · updated {fmt_time(job.updated_at)}", style="dim")
-    if job.read_only:
-        text.append(f"\n{job.read_only}", style="bold yellow")
-    return text
 
 
 def summary_table(job: Job) -> RenderableType:

@@ -4,6 +4,10 @@ export it; Ctrl+G opens the end-of-day view.
 Keys come from the key table (fieldkit.tui.keys) and work while a field has focus: Ctrl+F find,
 Ctrl+L note, Ctrl+D done or open, Ctrl+W export, Ctrl+G end of day.
 
+The first frame needs no job record (pydantic and the records are a tenth of the start-up): the
+list comes from the index's summaries, and the job picked shows its head from its summary; the
+job itself is read right after that frame (or at once when a key needs it before then).
+
 Every change goes through :mod:`fieldkit.actions` (which saves with ``JobStore.update``: reload,
 apply, save under the job's lock), so a note typed here and a result saved by another program at
 the same moment are both kept, and the CLI writes the same records for the same work.
@@ -12,6 +16,7 @@ the same moment are both kept, and the CLI writes the same records for the same 
 from __future__ import annotations
 
 from collections.abc import Callable
+from typing import TYPE_CHECKING, Any
 
 from textual import on
 from textual.app import ComposeResult
@@ -21,21 +26,35 @@ from textual.widgets import Button, Input, OptionList, Static
 from textual.widgets.option_list import Option
 
 from fieldkit.actions.errors import ActionError
-from fieldkit.jobs.models import Job, now
-from fieldkit.jobs.store import JobStore, StoreError, local_date
+from fieldkit.jobs.errors import StoreError
+from fieldkit.jobs.ids import now
+from fieldkit.jobs.search import local_date
 from fieldkit.text.escape import terminal
-from fieldkit.tui import jobs_view as view
-from fieldkit.tui import keys
+from fieldkit.tui import jobs_rows, keys
 from fieldkit.tui.jobs_model import JobsModel
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.dialogs import AskDialog
-from fieldkit.tui.widgets.export_dialog import ExportDialog
-from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 from fieldkit.tui.workspaces import WorkspaceScreen
 
+if TYPE_CHECKING:
+    from fieldkit.jobs.models import Job
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.widgets.export_dialog import ExportDialog
+
 __all__ = ["ExportDialog", "JobsScreen"]
+
+
+def __getattr__(name: str) -> Any:
+    # ``from fieldkit.tui.screens.jobs import ExportDialog`` still works; imported on first use
+    # (it needs the records, which the first frame does without).
+    if name == "ExportDialog":
+        from fieldkit.tui.widgets.export_dialog import ExportDialog
+
+        return ExportDialog
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
 
 #: The buttons under the job's name, in rows: (id, word, key-table name). Keys and tooltips
 #: come from the key table, so a button says the key that does the same.
@@ -146,6 +165,9 @@ class JobsScreen(WorkspaceScreen):
 
     @property
     def _job(self) -> Job | None:
+        """The job shown; a job shown from its summary (before the first frame) is read now."""
+        if self.model.job is None and self.model.pending_id is not None:
+            self._load(self.model.pending_id)
         return self.model.job
 
     def reload(self, rescan: bool = False) -> None:
@@ -173,7 +195,7 @@ class JobsScreen(WorkspaceScreen):
         page = model.page(self.query_one("#jobs-filter", Input).value, local_date(now()))
         options = self.query_one("#jobs-list", OptionList)
         options.clear_options()
-        options.add_options([Option(view.prompt(s), id=s.id) for s in page.shown])
+        options.add_options([Option(jobs_rows.prompt(s), id=s.id) for s in page.shown])
         self.query_one("#jobs-count", Static).update(page.count_line)
         if page.picked is not None:
             options.highlighted = page.picked
@@ -192,36 +214,75 @@ class JobsScreen(WorkspaceScreen):
     def _clear_detail(self) -> None:
         """No job in the list: the details say so and the job's keys do nothing."""
         self.model.job = None
-        head = view.no_job_head(bool(self.model.summaries), self.store.jobs_dir)
+        self.model.pending_id = None
+        head = jobs_rows.no_job_head(bool(self.model.summaries), self.store.jobs_dir)
         self.query_one("#job-head", Static).update(head)
         self._blank_details()
         for wid in (*_JOB_WIDGETS, "#job-export", "#job-delete"):
             self.query_one(wid).disabled = True
 
     def _open(self, job_id: str) -> None:
+        # Before the first frame, the job's head comes from its summary and the job is read
+        # right after the frame: the list is on screen and takes keys without waiting for the
+        # records to be imported.
+        if self._before_first_frame and self._show_summary(job_id):
+            return
+        self._load(job_id)
+
+    def _load(self, job_id: str) -> None:
+        self.model.pending_id = None
         try:
             job = self.store.load(job_id)
         except StoreError as exc:
             self.model.job = None
-            self.query_one("#job-head", Static).update(view.plain(str(exc), "bold red"))
+            self.query_one("#job-head", Static).update(jobs_rows.plain(str(exc), "bold red"))
             self._blank_details()
             return
         self.model.job = job
         self._show(job)
 
+    def _show_summary(self, job_id: str) -> bool:
+        """Show the job's head from its summary until the job is read; False when it is not
+        listed."""
+        summary = next((s for s in self.model.summaries if s.id == job_id), None)
+        if summary is None:
+            return False
+        if self.model.pending_id is None:
+            self.call_after_refresh(self._after_first_frame)
+        self.model.job = None
+        self.model.pending_id = job_id
+        self.query_one("#job-head", Static).update(jobs_rows.head(summary))
+        self._blank_details()
+        self._show_state(summary.status, summary.read_only)
+        return True
+
+    def _after_first_frame(self) -> None:
+        # Called with the first frame's other after-refresh callbacks: read the job once they
+        # have run, so the frame and what follows it come first.
+        self.call_later(self._load_pending)
+
+    def _load_pending(self) -> None:
+        if self.model.job is None and self.model.pending_id is not None:
+            self._load(self.model.pending_id)
+
     def _show(self, job: Job) -> None:
+        from fieldkit.tui import jobs_view as view
+
         self.query_one("#job-head", Static).update(view.head(job))
         self.query_one("#job-summary", Static).update(view.summary_table(job))
         self.query_one("#job-failures", Static).update(view.failures_text(job))
         self.query_one("#job-links", Static).update(view.links_text(job))
         self.query_one("#job-notes", Static).update(view.notes_text(job))
-        word = "Reopen" if job.status == "done" else "Done"
+        self._show_state(job.status, job.read_only)
+
+    def _show_state(self, status: str, read_only: str | None) -> None:
+        """The Done/Reopen word and which of the job's keys work."""
+        word = "Reopen" if status == "done" else "Done"
         done = self.query_one("#job-done", Button)
         done.label = f"{word} {keys.hint('done')}"
         done.refresh(layout=True)  # "Reopen" is wider than "Done"
-        read_only = bool(job.read_only)
         for wid in _JOB_WIDGETS:
-            self.query_one(wid).disabled = read_only
+            self.query_one(wid).disabled = bool(read_only)
         for wid in ("#job-export", "#job-delete"):
             self.query_one(wid).disabled = False
 
@@ -285,7 +346,7 @@ class JobsScreen(WorkspaceScreen):
         try:
             job, _note = add_note(self.store, self._job.id, text, by=fieldkit_app(self).operator)
         except (StoreError, ActionError) as exc:
-            error.update(view.plain(f"Not saved: {exc}"))  # the typed text stays in the field
+            error.update(jobs_rows.plain(f"Not saved: {exc}"))  # the typed text stays in the field
             return
         error.update("")
         field.value = ""
@@ -360,10 +421,14 @@ class JobsScreen(WorkspaceScreen):
     # -- start, edit, link, delete ---------------------------------------------------------
     @on(Button.Pressed, "#job-new")
     def action_new_job(self) -> None:
+        from fieldkit.tui.widgets.job_forms import JobForm
+
         self.app.push_screen(JobForm(), self._job_saved)
 
     @on(Button.Pressed, "#job-edit")
     def action_edit_job(self) -> None:
+        from fieldkit.tui.widgets.job_forms import JobForm
+
         if self._job is None or self._job.read_only:
             return
         self.app.push_screen(JobForm(self._job), self._job_saved)
@@ -396,6 +461,8 @@ class JobsScreen(WorkspaceScreen):
         link_id = answer[0].removeprefix("edit-")
         link = next((item for item in job.links if item.id == link_id), None)
         if answer[0] == "new" or link is not None:
+            from fieldkit.tui.widgets.job_forms import LinkForm
+
             self.app.push_screen(LinkForm(job, link), self._link_saved)
 
     def _link_saved(self, link_id: str | None) -> None:
@@ -440,6 +507,8 @@ class JobsScreen(WorkspaceScreen):
         if self._job is None:
             self.notify("Pick a job first.", severity="warning")
             return
+        from fieldkit.tui.widgets.export_dialog import ExportDialog
+
         self.app.push_screen(ExportDialog(self._job, self.store))
 
     @on(Button.Pressed, "#job-today")

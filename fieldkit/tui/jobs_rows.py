@@ -1,0 +1,89 @@
+"""The Jobs workspace's list rows and a job's head, from a job or from its index summary.
+
+Split from :mod:`fieldkit.tui.jobs_view` (which re-exports these) because the first frame shows
+them before the job records (pydantic) are imported: the list from the index's summaries, the
+head of the job picked from its summary; the rest of the details follow once the job is read.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Protocol
+
+from rich.console import RenderableType
+from rich.text import Text
+
+from fieldkit.text.escape import terminal
+from fieldkit.text.words import counted, fmt_time
+from fieldkit.tui import keys
+
+if TYPE_CHECKING:
+    from collections.abc import Sequence
+    from datetime import datetime
+    from pathlib import Path
+
+    from fieldkit.jobs.index import JobSummary
+
+
+class Headed(Protocol):
+    """What a job's head shows: a :class:`~fieldkit.jobs.models.Job` or its
+    :class:`~fieldkit.jobs.index.JobSummary` (the same words either way)."""
+
+    @property
+    def id(self) -> str: ...
+    @property
+    def name(self) -> str: ...
+    @property
+    def status(self) -> str: ...
+    @property
+    def customer(self) -> str: ...
+    @property
+    def site(self) -> str: ...
+    @property
+    def crew(self) -> Sequence[str]: ...
+    @property
+    def updated_at(self) -> datetime: ...
+    @property
+    def read_only(self) -> str | None: ...
+
+
+def plain(text: str, style: str = "") -> Text:
+    """User text as plain text: a "[" in a job name must not be read as markup."""
+    return Text(terminal(text, multiline=True), style=style)
+
+
+def no_job_head(any_jobs: bool, jobs_dir: Path) -> Text:
+    """What the details say when the list shows no job."""
+    if not any_jobs:
+        return plain(
+            f"No jobs yet. {keys.display('new')} (or New) starts one: its name, customer, "
+            f"site and crew; then its links. Jobs are kept in {jobs_dir}."
+        )
+    return plain("No job matches; clear the find field (Ctrl+F) to see them all.")
+
+
+def prompt(s: JobSummary) -> str:
+    """A row of the job list: the name, then the counts and the site (the list shows each on
+    one line, cut with "…" where it is narrower: wrapped, they read as other rows; the details
+    beside show them whole)."""
+    mark = "✓" if s.status == "done" else "•"
+    failed = f", {s.failed_count} failed" if s.failed_count else ""
+    site = f" · {terminal(s.site)}" if s.site else ""
+    return f"{mark} {terminal(s.name)}\n  {counted(s.result_count, 'result')}{failed}{site}"
+
+
+def head(job: Headed) -> RenderableType:
+    text = Text()
+    text.append(terminal(job.name), style="bold")
+    text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
+    for label, value in (
+        ("Customer", job.customer),
+        ("Site", job.site),
+        ("Crew", ", ".join(job.crew)),
+    ):
+        if value:
+            text.append(f"\n{label}: ", style="dim")
+            text.append(terminal(value))
+    text.append(f"\nId {job.id} · updated {fmt_time(job.updated_at)}", style="dim")
+    if job.read_only:
+        text.append(f"\n{job.read_only}", style="bold yellow")
+    return text
