@@ -155,13 +155,22 @@ async def compare(
     per_run: int,
     runs: int = 3,
 ) -> list[float]:
-    """Typed ahead once each, then key by key ``runs`` times alternated (medians). ``ours(n)``
+    """Typed ahead ``runs`` times, then key by key ``runs`` times, each alternated with the
+    bare Input (medians). ``ours(n)``
     makes the n-th fresh app. Returns the keystrokes beyond the characters, per value, of each
     key-by-key run."""
-    o = await typed_ahead(ours(0), texts)
-    b = await typed_ahead(bare(), texts)
-    print(f"typed ahead, all {len(texts)} (throughput):")
-    lines(name, unit, o, b)
+    median = statistics.median
+    ahead_o, ahead_b = [], []
+    for run in range(runs):
+        ahead_o.append(await typed_ahead(ours(100 + run), texts))
+        ahead_b.append(await typed_ahead(bare(), texts))
+    print(f"typed ahead, all {len(texts)} ({runs} runs, alternated, median; throughput):")
+    lines(
+        name,
+        unit,
+        (median(w for w, _ in ahead_o), median(c for _, c in ahead_o)),
+        (median(w for w, _ in ahead_b), median(c for _, c in ahead_b)),
+    )
     ow, oc, bw, bc, beyond = [], [], [], [], []
     for run in range(runs):
         chunk = texts[run * per_run : (run + 1) * per_run]
@@ -173,6 +182,5 @@ async def compare(
         bw.append(wall)
         bc.append(cpu)
     print(f"key by key ({per_run} x {runs} runs, alternated, median):")
-    median = statistics.median
     lines(name, unit, (median(ow), median(oc)), (median(bw), median(bc)))
     return beyond

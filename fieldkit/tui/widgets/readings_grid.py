@@ -12,12 +12,13 @@ from rich.segment import Segment
 from rich.style import Style
 from rich.text import Text
 from textual import events
+from textual.cache import LRUCache
 from textual.coordinate import Coordinate
 from textual.geometry import Size
 from textual.message import Message
 from textual.reactive import Reactive
 from textual.widgets import DataTable, Input
-from textual.widgets.data_table import RowKey
+from textual.widgets.data_table import ColumnKey, RowKey
 
 from fieldkit.tui.meter_session import GridColumn, MeterSession
 
@@ -50,6 +51,8 @@ class ReadingsGrid(DataTable[Text]):
         self.columns_shown: list[GridColumn] = []
         self.fibres = 0
         self._row_versions: dict[RowKey, int] = {}
+        self._cell_versions: dict[tuple[RowKey, ColumnKey], int] = {}
+        self._fast_cells: LRUCache[tuple[object, ...], SegmentLines] = LRUCache(4000)
         self._scrolled_column = -1
 
     def set_layout(
@@ -58,6 +61,8 @@ class ReadingsGrid(DataTable[Text]):
         """Rebuild the grid for ``fibres`` rows and ``columns``, filled from ``cells``."""
         self.clear(columns=True)
         self._row_versions.clear()
+        self._cell_versions.clear()
+        self._fast_cells.clear()
         self._scrolled_column = -1
         self.fibres = fibres
         self.columns_shown = list(columns)
@@ -106,6 +111,8 @@ class ReadingsGrid(DataTable[Text]):
             return
         self._data[row_key][column_key] = text
         self._row_versions[row_key] = self._row_versions.get(row_key, 0) + 1
+        cell = (row_key, column_key)
+        self._cell_versions[cell] = self._cell_versions.get(cell, 0) + 1
         self._line_cache.clear()  # keyed by line, not by row: cheap to build from row renders
         self.refresh_row(fibre - 1)
 
@@ -135,6 +142,83 @@ class ReadingsGrid(DataTable[Text]):
         finally:
             self._update_count = count
 
+    def _clear_caches(self) -> None:
+        super()._clear_caches()  # the styles or the theme changed, or the table was cleared
+        if hasattr(self, "_fast_cells"):
+            self._fast_cells.clear()
+
+    def _render_cell(
+        self,
+        row_index: int,
+        column_index: int,
+        base_style: Style,
+        width: int,
+        cursor: bool = False,
+        hover: bool = False,
+    ) -> SegmentLines:
+        # Within a row drawn again, a cell that did not change keeps its render: its own
+        # version stands in for the update count (the fibre number is not drawn per reading).
+        count = self._update_count
+        if row_index < 0 or column_index < 0:
+            return super()._render_cell(row_index, column_index, base_style, width, cursor, hover)
+        row_key = self._row_locations.get_key(row_index)
+        column_key = self._column_locations.get_key(column_index)
+        if row_key is None or column_key is None:
+            return super()._render_cell(row_index, column_index, base_style, width, cursor, hover)
+        version = self._cell_versions.get((row_key, column_key), 0)
+        key: tuple[object, ...] = (row_key, column_key, base_style, cursor, hover, width)
+        key += (self._show_hover_cursor, count[0] if isinstance(count, tuple) else count)
+        key += (version, self._pseudo_class_state)
+        lines = self._fast_cells.get(key)
+        if lines is None:
+            lines = self._fast_cells[key] = self._cell_lines(
+                row_index,
+                column_index,
+                self._data[row_key][column_key],
+                base_style,
+                width,
+                cursor,
+                hover,
+            )
+        return lines
+
+    def _cell_lines(
+        self,
+        row_index: int,
+        column_index: int,
+        cell: Text,
+        base_style: Style,
+        width: int,
+        cursor: bool,
+        hover: bool,
+    ) -> SegmentLines:
+        """One line of a cell, as DataTable draws it (padding, the cell's style between the
+        table's row and cursor styles) without Rich's layout of a one-line text, which cost
+        a reading more than the rest of its drawing. A right-justified text keeps its
+        trailing spaces (Rich strips them), so the losses line up above their marks."""
+        component_style, post_style = self._get_styles_to_render_cell(
+            False,
+            False,
+            column_index < self.fixed_columns,
+            hover,
+            cursor,
+            self.show_cursor,
+            self._show_hover_cursor,
+            self.cursor_foreground_priority == "css",
+            self.cursor_background_priority == "css",
+        )
+        pre = base_style + Style.from_meta({"row": row_index, "column": column_index})
+        pre += component_style
+        pad = self.cell_padding
+        inner = width - 2 * pad
+        text = cell.plain
+        own = self.app.console.get_style(cell.style) if cell.style else Style.null()
+        if len(text) > inner or "\n" in text or cell.spans:
+            return super()._render_cell(row_index, column_index, base_style, width, cursor, hover)
+        shown = text.rjust(inner) if cell.justify == "right" else text.ljust(inner)
+        blank = Segment(" " * pad, pre + post_style)
+        return [[blank, Segment(shown, pre + own + post_style), blank]]
+
     def point_at(self, fibre: int, column: GridColumn) -> None:
         """Put the cursor on a cell and scroll it into view."""
         if not 1 <= fibre <= self.fibres or column not in self.columns_shown:
@@ -158,7 +242,8 @@ class ReadingsGrid(DataTable[Text]):
         row, column = self.cursor_coordinate
         top = int(self.scroll_y)
         rows_shown = self.scrollable_content_region.height - (1 if self.show_header else 0)
-        if column == getattr(self, "_scrolled_column", -1) and top <= row < top + rows_shown:
+        same_column = column == getattr(self, "_scrolled_column", -1)
+        if same_column and top <= row < top + rows_shown:
             return
         self._scrolled_column = column
         super()._scroll_cursor_into_view(animate=animate)
