@@ -566,7 +566,7 @@ def html_page(results: list[Any], paired: Any | None) -> str:
     """A self-contained HTML page: each trace as inline SVG with its event table, the averaged
     table of a pair, the cautions. No scripts, no external files."""
     from fieldkit.text.escape import html
-    from fieldkit.traces.lines import KIND_LABELS, fmt
+    from fieldkit.traces.lines import event_cells, fmt, instrument_cells, paired_cells
     from fieldkit.traces.svg import trace_svg
 
     def table(head: list[str], rows: list[list[str]]) -> str:
@@ -593,19 +593,7 @@ def html_page(results: list[Any], paired: Any | None) -> str:
         parts.append(
             table(
                 ["#", "from A", "kind", "A→B dB", "B→A dB", "average dB", "verdict", "note"],
-                [
-                    [
-                        str(e.number),
-                        f"{e.distance_m:.1f} m",
-                        KIND_LABELS[e.kind],
-                        fmt(e.loss_ab_db, 3),
-                        fmt(e.loss_ba_db, 3),
-                        fmt(e.average_db, 3),
-                        e.verdict,
-                        e.note,
-                    ]
-                    for e in paired.events
-                ],
+                [[*paired_cells(e), e.note] for e in paired.events],
             )
         )
     for r in results:
@@ -616,18 +604,7 @@ def html_page(results: list[Any], paired: Any | None) -> str:
         parts.append(
             table(
                 ["#", "distance", "kind", "loss dB", "reflectance dB", "cumulative dB", "verdict"],
-                [
-                    [
-                        str(e.number),
-                        f"{e.distance_m:.1f} m",
-                        KIND_LABELS[e.kind],
-                        fmt(e.loss_db, 3),
-                        fmt(e.reflectance_db, 1),
-                        fmt(e.cumulative_loss_db, 2),
-                        e.verdict,
-                    ]
-                    for e in r.events
-                ],
+                [list(event_cells(e)) for e in r.events],
             )
         )
         if t.instrument_events:
@@ -635,17 +612,7 @@ def html_page(results: list[Any], paired: Any | None) -> str:
             parts.append(
                 table(
                     ["#", "distance", "kind", "loss dB", "reflectance dB", "code"],
-                    [
-                        [
-                            str(e.number),
-                            f"{e.distance_m:.1f} m",
-                            e.kind,
-                            fmt(e.loss_db, 3),
-                            fmt(e.reflectance_db, 1),
-                            e.code,
-                        ]
-                        for e in t.instrument_events
-                    ],
+                    [list(instrument_cells(e)) for e in t.instrument_events],
                 )
             )
     parts.append(

@@ -6,9 +6,10 @@ matter most (number, distance, kind, loss) stay and the rest go to a second line
 
 from __future__ import annotations
 
-from fieldkit.traces.analysis import TraceResult
+from fieldkit.traces.analysis import TraceEvent, TraceResult
 from fieldkit.traces.folder import FolderResult
-from fieldkit.traces.pairing import PairResult
+from fieldkit.traces.model import InstrumentEvent
+from fieldkit.traces.pairing import PairedEvent, PairResult
 from fieldkit.traces.verdicts import Limits
 
 MINUS = "-"  # the project prints ASCII minus signs in tables so they paste into spreadsheets
@@ -34,6 +35,47 @@ def fmt(value: float | None, digits: int = 2, unit: str = "") -> str:
 def distance(value_m: float) -> str:
     """A distance as the trade reads it: metres to 0.1 m."""
     return f"{value_m:.1f} m"
+
+
+def event_cells(e: TraceEvent) -> tuple[str, ...]:
+    """An analysed event as table cells: number, distance, kind, loss, reflectance, cumulative
+    loss, verdict (the HTML page's table and the workspace's wide one)."""
+    return (
+        str(e.number),
+        distance(e.distance_m),
+        KIND_LABELS[e.kind],
+        fmt(e.loss_db, 3),
+        fmt(e.reflectance_db, 1),
+        fmt(e.cumulative_loss_db, 2),
+        e.verdict,
+    )
+
+
+def paired_cells(e: PairedEvent) -> tuple[str, ...]:
+    """A paired event as table cells: number, distance from A, kind, loss A→B, B→A, average,
+    verdict."""
+    return (
+        str(e.number),
+        distance(e.distance_m),
+        KIND_LABELS[e.kind],
+        fmt(e.loss_ab_db, 3),
+        fmt(e.loss_ba_db, 3),
+        fmt(e.average_db, 3),
+        e.verdict,
+    )
+
+
+def instrument_cells(e: InstrumentEvent) -> tuple[str, ...]:
+    """An event as the instrument recorded it, as table cells: number, distance, kind, loss,
+    reflectance, the instrument's code."""
+    return (
+        str(e.number),
+        distance(e.distance_m),
+        e.kind,
+        fmt(e.loss_db, 3),
+        fmt(e.reflectance_db, 1),
+        e.code,
+    )
 
 
 def summary_lines(r: TraceResult) -> list[str]:

@@ -22,7 +22,13 @@ from fieldkit.traces.folder import (
     folder_fibres,
     rejudge_folder,
 )
-from fieldkit.traces.lines import KIND_LABELS, fmt, limits_summary
+from fieldkit.traces.lines import (
+    event_cells,
+    fmt,
+    instrument_cells,
+    limits_summary,
+    paired_cells,
+)
 from fieldkit.traces.model import TraceFileError
 from fieldkit.traces.pairing import PairResult, pair
 from fieldkit.traces.verdicts import Limits
@@ -218,42 +224,13 @@ class TraceSession:
         if r is None:
             return []
         if self.instrument_table:
-            return [
-                (
-                    str(e.number),
-                    f"{e.distance_m:.1f} m",
-                    e.kind,
-                    fmt(e.loss_db, 3),
-                    fmt(e.reflectance_db, 1),
-                    e.code,
-                )
-                for e in r.trace.instrument_events
-            ]
+            return [instrument_cells(e) for e in r.trace.instrument_events]
+        # narrow: number, distance, kind, the (average) loss and the verdict
         if self.paired is not None:
-            out: list[tuple[str, ...]] = []
-            for e in self.paired.events:
-                head = (str(e.number), f"{e.distance_m:.1f} m", KIND_LABELS[e.kind])
-                if wide:
-                    out.append(
-                        head
-                        + (fmt(e.loss_ab_db, 3), fmt(e.loss_ba_db, 3), fmt(e.average_db, 3))
-                        + (e.verdict,)
-                    )
-                else:
-                    out.append(head + (fmt(e.average_db, 3), e.verdict))
-            return out
-        out = []
-        for ev in r.events:
-            head = (str(ev.number), f"{ev.distance_m:.1f} m", KIND_LABELS[ev.kind])
-            if wide:
-                out.append(
-                    head
-                    + (fmt(ev.loss_db, 3), fmt(ev.reflectance_db, 1), fmt(ev.cumulative_loss_db, 2))
-                    + (ev.verdict,)
-                )
-            else:
-                out.append(head + (fmt(ev.loss_db, 3), ev.verdict))
-        return out
+            paired = [paired_cells(e) for e in self.paired.events]
+            return paired if wide else [(*c[:3], c[5], c[6]) for c in paired]
+        cells = [event_cells(ev) for ev in r.events]
+        return cells if wide else [(*c[:4], c[6]) for c in cells]
 
     def event_note(self, number: int) -> str:
         """The verdict reason and the gainer note of an event, for the line under the table."""
