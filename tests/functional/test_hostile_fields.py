@@ -70,33 +70,39 @@ async def test_no_typed_value_stops_the_workspace(tmp_path: Path, mode: str) -> 
         assert len(tried) >= min(len(fields), 4)  # not one value everywhere
 
 
+#: (field, typed, what the workspace says)
+UNCONVERTIBLE = [
+    # 10^(1e308/10) mW does not fit in a float: refused beside the field, not a crash
+    ("value", "1e308 dBm", "too large"),
+    ("value", "4000 dBm", "too large"),
+    # 10^(-4000/10) mW = 1e-400 mW is below the smallest float (IEEE 754, from memory)
+    ("value", "-4000 dBm", "below any measurable level"),
+    # 1e-320 is a subnormal float: refused as typed rather than computed with lost digits
+    ("grid-in", "1e-320 nm", "too close to zero"),
+]
+
+
 @pytest.mark.parametrize("size", SIZES)
-@pytest.mark.parametrize(
-    ("input_id", "text", "words"),
-    [
-        # 10^(1e308/10) mW does not fit in a float: refused beside the field, not a crash
-        ("value", "1e308 dBm", "too large"),
-        ("value", "4000 dBm", "too large"),
-        # 10^(-4000/10) mW = 1e-400 mW is below the smallest float (IEEE 754, from memory)
-        ("value", "-4000 dBm", "below any measurable level"),
-        # 1e-320 is a subnormal float: refused as typed rather than computed with lost digits
-        ("grid-in", "1e-320 nm", "too close to zero"),
-    ],
-)
 async def test_convert_explains_values_it_cannot_convert(
-    tmp_path: Path, size: tuple[int, int], input_id: str, text: str, words: str
+    tmp_path: Path, size: tuple[int, int]
 ) -> None:
+    # one start per size; each value typed into a field left empty by the one before
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
-        field = app.screen.query_one(f"#{input_id}", Input)
-        field.value = text
-        await pilot.pause()
-        container = app.screen.query_one(f"#{input_id}-field")
-        shown = " ".join(str(s.render()) for s in container.query(".field-error").results(Static))
-        shown += " ".join(str(s.render()) for s in app.screen.query(".result").results(Static))
-        assert words in shown, shown
-        assert field.value == text
+        for input_id, text, words in UNCONVERTIBLE:
+            field = app.screen.query_one(f"#{input_id}", Input)
+            field.value = text
+            await pilot.pause()
+            container = app.screen.query_one(f"#{input_id}-field")
+            errors = container.query(".field-error").results(Static)
+            shown = " ".join(str(s.render()) for s in errors)
+            shown += " ".join(str(s.render()) for s in app.screen.query(".result").results(Static))
+            assert words in shown, (text, shown)
+            assert field.value == text
+            field.value = ""
+            await pilot.pause()
+            assert words not in " ".join(str(s.render()) for s in errors)  # and clears
 
 
 async def test_meter_reference_and_reading_refuse_powers_below_any_float(tmp_path: Path) -> None:
