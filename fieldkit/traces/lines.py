@@ -40,42 +40,22 @@ def distance(value_m: float) -> str:
 def event_cells(e: TraceEvent) -> tuple[str, ...]:
     """An analysed event as table cells: number, distance, kind, loss, reflectance, cumulative
     loss, verdict (the HTML page's table and the workspace's wide one)."""
-    return (
-        str(e.number),
-        distance(e.distance_m),
-        KIND_LABELS[e.kind],
-        fmt(e.loss_db, 3),
-        fmt(e.reflectance_db, 1),
-        fmt(e.cumulative_loss_db, 2),
-        e.verdict,
-    )
+    losses = (fmt(e.loss_db, 3), fmt(e.reflectance_db, 1), fmt(e.cumulative_loss_db, 2))
+    return (str(e.number), distance(e.distance_m), KIND_LABELS[e.kind], *losses, e.verdict)
 
 
 def paired_cells(e: PairedEvent) -> tuple[str, ...]:
     """A paired event as table cells: number, distance from A, kind, loss A→B, B→A, average,
     verdict."""
-    return (
-        str(e.number),
-        distance(e.distance_m),
-        KIND_LABELS[e.kind],
-        fmt(e.loss_ab_db, 3),
-        fmt(e.loss_ba_db, 3),
-        fmt(e.average_db, 3),
-        e.verdict,
-    )
+    losses = (fmt(e.loss_ab_db, 3), fmt(e.loss_ba_db, 3), fmt(e.average_db, 3))
+    return (str(e.number), distance(e.distance_m), KIND_LABELS[e.kind], *losses, e.verdict)
 
 
 def instrument_cells(e: InstrumentEvent) -> tuple[str, ...]:
     """An event as the instrument recorded it, as table cells: number, distance, kind, loss,
     reflectance, the instrument's code."""
-    return (
-        str(e.number),
-        distance(e.distance_m),
-        e.kind,
-        fmt(e.loss_db, 3),
-        fmt(e.reflectance_db, 1),
-        e.code,
-    )
+    losses = (fmt(e.loss_db, 3), fmt(e.reflectance_db, 1))
+    return (str(e.number), distance(e.distance_m), e.kind, *losses, e.code)
 
 
 def summary_lines(r: TraceResult) -> list[str]:
