@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import argparse
 import sys
+from collections.abc import Callable
+from functools import partial
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -336,6 +338,31 @@ def _width() -> int:
     return shutil.get_terminal_size((80, 24)).columns
 
 
+def _answer(
+    args: argparse.Namespace,
+    data: Callable[[], dict[str, Any]],
+    text: Callable[[int], list[str]],
+    saved: dict[str, Any] | None,
+    *,
+    cautions: bool = True,
+) -> int:
+    """Print a result: with ``--json`` its object (the cautions and what was saved added),
+    else its lines at the terminal's width, then the summary of what was saved."""
+    if args.json:
+        out = data()
+        if cautions:
+            out["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
+        if saved is not None:
+            out["saved"] = saved
+        print_json(out)
+        return 0
+    for line in text(_width()):
+        print(line)
+    if saved is not None:
+        print(saved["summary"])
+    return 0
+
+
 def run_show(args: argparse.Namespace) -> int:
     from fieldkit.actions.traces import FibreTraces
     from fieldkit.traces import lines
@@ -351,18 +378,7 @@ def run_show(args: argparse.Namespace) -> int:
         direction = "B->A" if token == "ba" else "A->B"
         number = _fibre_number(args, result.trace)
         saved = _save(args, [FibreTraces(number, one_way=result, direction=direction)])
-    if args.json:
-        data = result.to_json()
-        data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
-        if saved is not None:
-            data["saved"] = saved
-        print_json(data)
-        return 0
-    for line in lines.trace_lines(result, _width()):
-        print(line)
-    if saved is not None:
-        print(saved["summary"])
-    return 0
+    return _answer(args, result.to_json, partial(lines.trace_lines, result), saved)
 
 
 def run_pair(args: argparse.Namespace) -> int:
@@ -384,18 +400,7 @@ def run_pair(args: argparse.Namespace) -> int:
     saved = None
     if args.save:
         saved = _save(args, [FibreTraces(_fibre_number(args, a.trace), paired=result)])
-    if args.json:
-        data = result.to_json()
-        data["cautions"] = [safety.OTDR_LIVE_FIBRE, safety.DEFER]
-        if saved is not None:
-            data["saved"] = saved
-        print_json(data)
-        return 0
-    for line in lines.pair_lines(result, _width()):
-        print(line)
-    if saved is not None:
-        print(saved["summary"])
-    return 0
+    return _answer(args, result.to_json, partial(lines.pair_lines, result), saved)
 
 
 def _progress_bar(done: int, total: int, name: str) -> None:
@@ -433,17 +438,7 @@ def run_folder(args: argparse.Namespace) -> int:
         saved = _save(args, folder_fibres(result), progress=not args.quiet)
     if args.csv:
         _write_html(Path(args.csv), folder_csv(result))
-    if args.json:
-        data = result.to_json()
-        if saved is not None:
-            data["saved"] = saved
-        print_json(data)
-        return 0
-    for line in lines.folder_lines(result, _width()):
-        print(line)
-    if saved is not None:
-        print(saved["summary"])
-    return 0
+    return _answer(args, result.to_json, partial(lines.folder_lines, result), saved, cautions=False)
 
 
 def _check_save(args: argparse.Namespace) -> None:
