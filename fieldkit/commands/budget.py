@@ -17,6 +17,7 @@ from fieldkit.commands.common import (
     add_data_dir,
     add_fibre_type,
     add_job_link,
+    open_store,
     plain_text,
     print_json,
     warn_preset_problems,
@@ -407,15 +408,13 @@ def _fibre_data(resolved: Any, report: Any) -> list[Any]:
 
 
 def _save(args: argparse.Namespace, resolved: Any, report: Any) -> dict[str, str]:
-    from fieldkit import locations
     from fieldkit.actions.saves import save_budget
     from fieldkit.commands.common import operator
     from fieldkit.jobs.budget_records import budget_record
-    from fieldkit.jobs.store import JobStore, StoreError
+    from fieldkit.jobs.store import StoreError
 
     plain_text(args.link, "link")
-    data = getattr(args, "data_dir", None)
-    store = JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
+    store = open_store(args)
     record = budget_record(resolved, report, by=operator(args))
     try:
         job_id = store.resolve(args.job)

@@ -9,7 +9,10 @@ import sys
 import unicodedata
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from fieldkit.jobs.store import JobStore
 
 
 class CommandError(Exception):
@@ -64,6 +67,15 @@ def add_data_dir(parser: argparse.ArgumentParser) -> None:
     parser.add_argument(
         "--config-dir", default=argparse.SUPPRESS, help="folder for settings and user presets"
     )
+
+
+def open_store(args: argparse.Namespace) -> JobStore:
+    """The job store of the data folder: ``--data-dir``, else ``$FIELDKIT_DATA_DIR``, else the
+    platform data folder (see :mod:`fieldkit.locations`)."""
+    from fieldkit import locations
+    from fieldkit.jobs.store import JobStore
+
+    return JobStore(locations.jobs_dir(locations.data_dir(getattr(args, "data_dir", None))))
 
 
 def operator(args: argparse.Namespace) -> str:

@@ -36,6 +36,7 @@ from fieldkit.commands.common import (
     CommandError,
     add_by,
     add_data_dir,
+    open_store,
     operator,
     print_json,
 )
@@ -252,10 +253,7 @@ def _guard(func: Callable[[argparse.Namespace], int]) -> Callable[[argparse.Name
 
 
 def store_of(args: argparse.Namespace) -> JobStore:
-    from fieldkit import locations
-    from fieldkit.jobs.store import JobStore
-
-    return JobStore(locations.jobs_dir(locations.data_dir(getattr(args, "data_dir", None))))
+    return open_store(args)
 
 
 def _day(text: str | None) -> date:

@@ -16,6 +16,7 @@ from fieldkit.commands.common import (
     add_data_dir,
     add_fibre_type,
     add_job_link,
+    open_store,
     plain_text,
     print_json,
     saved_on_link,
@@ -477,17 +478,15 @@ def fault_record(
 
 
 def _save(args: argparse.Namespace, location: Location, inputs: dict[str, Any]) -> dict[str, Any]:
-    from fieldkit import locations
     from fieldkit.actions.saves import save_fault
     from fieldkit.commands.common import operator
-    from fieldkit.jobs.store import JobStore, StoreError
+    from fieldkit.jobs.store import StoreError
 
     if not (args.job and args.link):
         raise CommandError("saving onto a job needs both --job and --link")
     plain_text(args.link, "link")
     plain_text(args.notes or "", "notes", multiline=True)
-    data = getattr(args, "data_dir", None)
-    store = JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
+    store = open_store(args)
     record = fault_record(location, inputs, by=operator(args), notes=args.notes)
     try:
         job_id = store.resolve(args.job)

@@ -8,10 +8,15 @@ themselves are in :mod:`fieldkit.actions.meter`, which the meter workspace calls
 from __future__ import annotations
 
 import argparse
-from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_by, add_job_link, saved_on_link
+from fieldkit.commands.common import (
+    CommandError,
+    add_by,
+    add_job_link,
+    open_store,
+    saved_on_link,
+)
 
 
 def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -> None:
@@ -44,14 +49,6 @@ def add_record_options(parser: argparse.ArgumentParser, *, fibre: bool = True) -
 def wants_record(args: argparse.Namespace) -> bool:
     """True when any of the job options was given (then --job and --link are required)."""
     return bool(args.job or args.link or getattr(args, "fibre", None))
-
-
-def open_store(args: argparse.Namespace) -> Any:
-    from fieldkit import locations
-    from fieldkit.jobs.store import JobStore
-
-    data = getattr(args, "data_dir", None)
-    return JobStore(locations.jobs_dir(locations.data_dir(Path(data) if data else None)))
 
 
 def resolve_job(store: Any, args: argparse.Namespace) -> str:
