@@ -65,6 +65,15 @@ async def test_the_demo_day_goes_into_one_report_and_one_csv(
         await pilot.click("#export-write")
         await pilot.pause()
         assert isinstance(app.screen, EndOfDayScreen)
+        # the day after (no job worked on, the demo stamps nothing in the future): nothing to
+        # write, said, and no dialog opens
+        await pilot.press("ctrl+right")
+        await pilot.pause()
+        await pilot.press("ctrl+w")
+        await pilot.pause()
+        assert isinstance(app.screen, EndOfDayScreen)
+        told = [n.message for n in app._notifications]
+        assert any("nothing to export" in m for m in told), told
     html = (tmp_path / "day.html").read_text(encoding="utf-8")
     assert f"the jobs of {day.isoformat()}" in html
     for job in jobs:  # every job of the demo day, each with its own report
