@@ -1,0 +1,69 @@
+"""The Jobs workspace's first frame shows the list and the picked job's head from the index
+(issue 15, start-up); the job itself is read right after. Here the read after the frame is held
+back, to see what that frame shows and that a key needing the job reads it at once."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from textual.widgets import Button, OptionList, Static
+
+from fieldkit import locations
+from fieldkit.jobs.demo import build, local_day_start
+from fieldkit.jobs.models import now
+from fieldkit.jobs.store import JobStore
+from fieldkit.tui import jobs_view
+from fieldkit.tui.app import make_app
+from fieldkit.tui.screens.jobs import JobsScreen
+
+
+def _text(screen: object, selector: str) -> str:
+    return str(screen.query_one(selector, Static).render())  # type: ignore[attr-defined]
+
+
+@pytest.fixture
+def held_back(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> JobStore:
+    """The demo jobs, and a Jobs workspace that does not read the job after its first frame."""
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    for job in build(local_day_start(now())):
+        store.save(job)
+    monkeypatch.setattr(JobsScreen, "_after_first_frame", lambda self: None)
+    return store
+
+
+async def test_the_first_frame_shows_the_list_and_the_head_before_the_job_is_read(
+    tmp_path: Path, held_back: JobStore
+) -> None:
+    newest = held_back.list()[0]
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, JobsScreen)
+        assert screen.model.job is None and screen.model.pending_id == newest.id
+        assert screen.query_one("#jobs-list", OptionList).option_count == 4
+        assert app.focused is screen.query_one("#jobs-list")  # the list takes keys
+        # The head reads as it will once the job is read; the rest waits for the job.
+        assert _text(screen, "#job-head") == str(jobs_view.head(held_back.load(newest.id)))
+        assert _text(screen, "#job-links") == ""
+        screen._load_pending()  # what the read after the frame does
+        await pilot.pause()
+        assert screen.model.job is not None and screen.model.job.id == newest.id
+        assert "Duct proven to chamber SR-4" in _text(screen, "#job-notes")  # the demo's note
+
+
+async def test_a_key_that_needs_the_job_before_it_is_read_reads_it(
+    tmp_path: Path, held_back: JobStore
+) -> None:
+    newest = held_back.list()[0]
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, JobsScreen) and screen.model.job is None
+        await pilot.press("ctrl+d")  # done: the duct survey has no open items
+        await pilot.pause()
+        assert screen.model.job is not None and screen.model.job.id == newest.id
+        assert held_back.load(newest.id).status == "done"
+        assert "Reopen" in str(screen.query_one("#job-done", Button).label)
