@@ -10,12 +10,18 @@ typed, a preset or a CSV file; written back as CSV), ``otdr`` (fill one-way OTDR
 from __future__ import annotations
 
 import argparse
-import os
 import sys
 from pathlib import Path
 from typing import Any
 
-from fieldkit.commands.common import CommandError, add_data_dir, plain_text, print_json
+from fieldkit.commands.common import (
+    CommandError,
+    add_by,
+    add_data_dir,
+    operator,
+    plain_text,
+    print_json,
+)
 
 
 def _job_options(parser: argparse.ArgumentParser, *, closure: bool = True) -> None:
@@ -30,12 +36,7 @@ def _job_options(parser: argparse.ArgumentParser, *, closure: bool = True) -> No
         parser.add_argument(
             "--closure", required=True, metavar="NAME", help="the closure's name or id"
         )
-    parser.add_argument(
-        "--by",
-        default=None,
-        metavar="NAME",
-        help="who did the work (default: $FIELDKIT_OPERATOR)",
-    )
+    add_by(parser, "who did the work")
     add_data_dir(parser)
 
 
@@ -173,8 +174,9 @@ def _say(text: str, file: Any = None) -> None:
 
 
 def _operator(args: argparse.Namespace) -> str:
-    name = args.by if args.by is not None else os.environ.get("FIELDKIT_OPERATOR", "")
-    return plain_text(name.strip(), "--by")
+    """``--by``, else ``$FIELDKIT_OPERATOR``, else the name saved in the terminal UI: the same
+    rule as every other command (``commands.common.operator``)."""
+    return operator(args)
 
 
 def _store_and_job(args: argparse.Namespace) -> tuple[Any, str]:

@@ -24,6 +24,7 @@ from fieldkit.commands.common import (
     add_data_dir,
     add_fibre_type,
     add_job_link,
+    operator,
     print_json,
 )
 
@@ -129,7 +130,7 @@ def register(subparsers: Any) -> None:
     fill.add_argument("--closure", required=True, metavar="NAME", help="the closure's name or id")
     fill.add_argument("--overwrite", action="store_true", help="replace losses already recorded")
     fill.add_argument("--dry-run", action="store_true", help="write nothing; say what would be")
-    add_by(fill, "who did the work", settings=False)
+    add_by(fill, "who did the work")
     _common(fill)
     fill.set_defaults(func=run_fill)
 
@@ -471,7 +472,6 @@ def _fibre_number(args: argparse.Namespace, trace: Any) -> int:
 def _save(args: argparse.Namespace, fibres: list[Any], *, progress: bool = False) -> dict[str, Any]:
     """Keep the fibres' traces on --job/--link; what was saved, for the output."""
     from fieldkit.actions.traces import fibre_record, save_traces
-    from fieldkit.commands.common import operator
     from fieldkit.commands.meter_record import open_store
     from fieldkit.jobs.store import StoreError
 
@@ -618,7 +618,6 @@ def html_page(results: list[Any], paired: Any | None) -> str:
 
 
 def run_fill(args: argparse.Namespace) -> int:
-    import os
 
     from fieldkit.actions.traces import FibreTraces, fill_splice_log
     from fieldkit.commands.common import plain_text
@@ -630,10 +629,7 @@ def run_fill(args: argparse.Namespace) -> int:
 
     for option in ("link", "closure"):
         plain_text(getattr(args, option), f"--{option}")
-    by = plain_text(
-        (args.by if args.by is not None else os.environ.get("FIELDKIT_OPERATOR", "")).strip(),
-        "--by",
-    )
+    by = operator(args)
     fibres: list[FibreTraces] = []
     if args.folder:
         if args.files:

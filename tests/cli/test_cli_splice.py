@@ -170,3 +170,18 @@ def test_listing_shows_the_closure_and_its_tray_map(
     assert "tray 1 (1/12): C1 14" in out
     assert "C1 14 orange/orange → C2 14 orange/orange, tray 1 slot 1" in out
     assert "average 0.05 dB: pass" in out
+
+
+def test_splices_are_stamped_with_the_saved_operator_like_every_command(
+    capsys: pytest.CaptureFixture[str], job: str
+) -> None:
+    # the same rule as budget, locate and jobs: --by, else $FIELDKIT_OPERATOR, else the name
+    # saved in the terminal UI (it was --by or the variable only, so a splice went in unsigned)
+    import os
+    from pathlib import Path
+
+    from fieldkit.actions.operator import save_operator
+
+    save_operator(Path(os.environ["FIELDKIT_CONFIG_DIR"]), "Saved Splicer")
+    data = ok_json(capsys, *add(job, "--fibre", "3", "--loss-ab", "0.02"))
+    assert data["by"] == "Saved Splicer"
