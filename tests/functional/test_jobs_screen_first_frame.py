@@ -4,6 +4,7 @@ back, to see what that frame shows and that a key needing the job reads it at on
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import pytest
@@ -67,3 +68,66 @@ async def test_a_key_that_needs_the_job_before_it_is_read_reads_it(
         assert screen.model.job is not None and screen.model.job.id == newest.id
         assert held_back.load(newest.id).status == "done"
         assert "Reopen" in str(screen.query_one("#job-done", Button).label)
+
+
+# The app started in a fresh process on the jobs folder argv[1]: at the first frame, what is
+# shown and whether the records are imported; then, once the job is read (on its own, after
+# the frame: the records imported on a thread), what the details say.
+FRESH_START = """
+import asyncio, json, sys
+import fieldkit.tui.screens.jobs as jobs
+from fieldkit.tui.app import make_app
+
+seen = {}
+mounted = jobs.JobsScreen.on_mount
+
+def on_mount(self):
+    mounted(self)
+    self.call_after_refresh(lambda: seen.update(
+        pydantic="pydantic" in sys.modules, read=self.model.job is not None,
+        head=str(self.query_one("#job-head").render()),
+        rows=self.query_one("#jobs-list").option_count, focus=self.app.focused.id))
+
+jobs.JobsScreen.on_mount = on_mount
+
+async def main():
+    app = make_app(data_dir=sys.argv[1], config_dir=sys.argv[2], start_mode="jobs")
+    async with app.run_test() as pilot:
+        for _ in range(200):  # until the job is read (no time is asserted)
+            await pilot.pause(0.05)
+            if app.screen.model.job is not None:
+                break
+        seen["notes"] = str(app.screen.query_one("#job-notes").render())
+    print(json.dumps(seen))
+
+asyncio.run(main())
+"""
+
+
+def test_a_fresh_start_shows_the_list_without_the_records_then_reads_the_job(
+    tmp_path: Path,
+) -> None:
+    import os
+    import subprocess
+    import sys
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    for job in build(local_day_start(now())):
+        store.save(job)
+    store.list()  # the index folder (changes the jobs folder's mtime once)
+    past = store.jobs_dir.stat().st_mtime - 10
+    os.utime(store.jobs_dir, (past, past))  # settled: nothing renamed into it for 10 s
+    store.list()
+    newest = store.list()[0]
+    result = subprocess.run(
+        [sys.executable, "-c", FRESH_START, str(tmp_path / "d"), str(tmp_path / "c")],
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
+    assert result.returncode == 0, result.stderr
+    seen = json.loads(result.stdout.strip().splitlines()[-1])
+    assert seen["pydantic"] is False and seen["read"] is False
+    assert seen["rows"] == 4 and seen["focus"] == "jobs-list"
+    assert seen["head"] == str(jobs_view.head(store.load(newest.id)))
+    assert "Duct proven to chamber SR-4" in seen["notes"]  # read after the frame

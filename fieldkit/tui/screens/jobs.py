@@ -15,6 +15,7 @@ the same moment are both kept, and the CLI writes the same records for the same 
 
 from __future__ import annotations
 
+import sys
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
@@ -24,6 +25,7 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.events import Key
 from textual.widgets import Button, Input, OptionList, Static
 from textual.widgets.option_list import Option
+from textual.worker import Worker, WorkerState
 
 from fieldkit.actions.errors import ActionError
 from fieldkit.jobs.errors import StoreError
@@ -54,6 +56,12 @@ def __getattr__(name: str) -> Any:
 
         return ExportDialog
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
+def _import_records() -> None:
+    """What reading and showing a job imports (run on a thread after the first frame)."""
+    import fieldkit.jobs.jobfile  # noqa: F401  (pydantic, the models, the migrations)
+    import fieldkit.tui.jobs_view  # noqa: F401  (the details' text)
 
 
 #: The buttons under the job's name, in rows: (id, word, key-table name). Keys and tooltips
@@ -257,9 +265,35 @@ class JobsScreen(WorkspaceScreen):
         return True
 
     def _after_first_frame(self) -> None:
-        # Called with the first frame's other after-refresh callbacks: read the job once they
-        # have run, so the frame and what follows it come first.
-        self.call_later(self._load_pending)
+        # Called with the first frame's other after-refresh callbacks: go on once they have
+        # run, so the frame and what follows it come first.
+        self.call_later(self._import_records)
+
+    def _import_records(self) -> None:
+        """Read the job shown; the records are imported on a thread first (pydantic and the
+        models take ~80 ms), so keys typed meanwhile (a find, a move in the list) are answered
+        at once. A key that needs the job before then reads it where it is (see ``_job``)."""
+        if self.model.job is not None or self.model.pending_id is None:
+            return
+        if "fieldkit.jobs.models" in sys.modules:  # already imported: the rest is quick
+            self._load_pending()
+            return
+        self.run_worker(
+            _import_records,
+            name="jobs-records",
+            group="jobs-records",
+            thread=True,
+            exit_on_error=False,
+        )
+
+    @on(Worker.StateChanged)
+    def _records_imported(self, event: Worker.StateChanged) -> None:
+        # A failed import is raised again, and told, by the read itself.
+        if event.worker.name == "jobs-records" and event.state in (
+            WorkerState.SUCCESS,
+            WorkerState.ERROR,
+        ):
+            self._load_pending()
 
     def _load_pending(self) -> None:
         if self.model.job is None and self.model.pending_id is not None:
