@@ -1,4 +1,4 @@
-"""The standard OTDR record (Telcordia SR-4731 issue 2, GR-196 Appendix A): reader and writer.
+"""The standard OTDR record (SR-4731 issue 2, GR-196 Appendix A): reader and writer.
 
 Built from the published structure as we remember it; no other reader's code was used or looked
 at. What rests on memory (check each against the standard before relying on it for foreign
