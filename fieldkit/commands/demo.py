@@ -135,13 +135,13 @@ def write_demo(folder: Path) -> list[str]:
             )
     folder.mkdir(parents=True, exist_ok=True)
     atomic_write_bytes(marker, MARKER_TEXT.encode())
-    traces = write_demo_traces(folder)
+    write_demo_traces(folder)
     ids = []
     for job in build_for(now()):
         if job.id == DEMO_IDS[0]:
             job.add_note(
-                f"OTDR traces of fibres 6 and 7, both ends at 1550 nm, are in {traces}: open "
-                "the folder in the Traces workspace (F8).",
+                "OTDR traces of fibres 6 and 7 taken from both ends at 1550 nm; the files are "
+                f"kept with the job's records ({TRACES_FOLDER.as_posix()}).",
                 by="Ana Ruiz",
             ).at = job.updated_at
         try:

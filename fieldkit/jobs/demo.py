@@ -481,14 +481,13 @@ def last_stamp(jobs: list[Job]) -> datetime:
 
 
 def build_for(moment: datetime) -> list[Job]:
-    """The demo jobs as a day of work that is over by ``moment``: on the local day of
-    ``moment`` when its last record (mid-afternoon) is already past, otherwise the same day's
-    work moved earlier, so that no record is stamped in the future and every record keeps its
-    order (a recheck after the results it puts in doubt, an update after the job's creation).
+    """The demo jobs as a day of work that is over by ``moment``: the local day of ``moment``
+    when its last record (mid-afternoon) is already past, otherwise the day before. Whole
+    days only, so the clock times the demo's notes mention ("results after 10:00") stay true,
+    no record is stamped in the future and every record keeps its order.
     """
     start = local_day_start(moment)
     jobs = build(start)
-    late = last_stamp(jobs) - (moment - DEMO_SETTLED)
-    if late > timedelta(0):
-        jobs = build(start - late)
+    if last_stamp(jobs) > moment - DEMO_SETTLED:
+        jobs = build(local_day_start(start - timedelta(hours=12)))
     return jobs

@@ -77,3 +77,7 @@ def test_the_demo_never_stamps_a_record_in_the_future(hour: int) -> None:
     for job in jobs:
         assert job.created_at <= job.updated_at
         assert all(note.at >= job.created_at for note in job.notes)
+    # whole days only: the clock times the notes mention ("after 10:00") stay true
+    assert {r.at.astimezone().time() for j in jobs for _, r in j.results()} == {
+        r.at.astimezone().time() for j in build(local_day_start(moment)) for _, r in j.results()
+    }
