@@ -236,21 +236,25 @@ def _print_text(
     warnings: list[str],
     saved: dict[str, Any] | None,
 ) -> None:
+    from fieldkit.text.numbers import arrow, minus
+    from fieldkit.text.words import counted
+
     def line(label: str, text: str) -> None:
-        print(f"{label:<10} {text}")
+        print(minus(f"{label:<10} {text}"))
 
     for direction, v in verdict.directions.items():
-        line(f"loss {direction}", f"{v.loss_db:.2f} dB")
+        line(f"loss {arrow(direction)}", f"{v.loss_db:.2f} dB")
     if verdict.average_db is not None:
         line("average", f"{verdict.average_db:.2f} dB")
-    line("method", f"{method.label}: {method.end_connections} end connection(s) included")
+    ends = counted(method.end_connections, "end connection")
+    line("method", f"{method.label}: {ends} included")
     if limit_db is not None:
         line("limit", f"{limit_db:.2f} dB ({limit_from})")
     if verdict.margin_db is not None:
         line("margin", f"{verdict.margin_db:+.2f} dB")
     line("result", _status_words(verdict.status.value))
     for warning in warnings:
-        print(f"warning: {warning}")
+        print(minus(arrow(f"warning: {warning}")))
     if saved:
         print(
             f"saved into job {saved['job_id']}, link {saved['link_label']}: "

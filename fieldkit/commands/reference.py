@@ -105,13 +105,19 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         print_json(out)
         return 0
-    print(f"reference  {level_dbm:.2f} dBm at {wavelength_nm:g} nm")
-    print(f"method     {method.label}: {method.end_connections} end connection(s) included")
+    from fieldkit.text.numbers import minus
+    from fieldkit.text.words import counted
+
+    print(minus(f"reference  {level_dbm:.2f} dBm at {wavelength_nm:g} nm"))
+    ends = counted(method.end_connections, "end connection")
+    print(f"method     {method.label}: {ends} included")
     if "drift_db" in out:
-        print(f"drift      {out['drift_db']:+.2f} dB (tolerance ±{out['tolerance_db']:.2f} dB)")
-        print(out["drift_message"])
+        drift = f"{out['drift_db']:+.2f} dB (tolerance ±{out['tolerance_db']:.2f} dB)"
+        print(minus(f"drift      {drift}"))
+        print(minus(out["drift_message"]))
         if out["in_doubt_result_ids"]:
-            print(f"{len(out['in_doubt_result_ids'])} result(s) marked reference-in-doubt")
+            doubted = counted(len(out["in_doubt_result_ids"]), "result")
+            print(f"{doubted} marked reference-in-doubt")
     for warning in warnings:
         print(f"warning: {warning}")
     if out["saved"]:

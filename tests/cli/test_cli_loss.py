@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 from pathlib import Path
 
@@ -450,3 +451,16 @@ def test_levels_past_what_meters_read_warn_on_both_sides() -> None:
     assert "reading -95.00 dBm is below what field meters read" in text
     quiet = run_json("loss", reference="-7.2", reading="-9.9", wavelength="1310")
     assert quiet["warnings"] == []
+
+
+def test_text_output_follows_the_minus_and_arrow_policy() -> None:
+    # README "The command line": U+2212 for a minus sign, directions as A→B; a one-cord
+    # reference includes both end connections (IEC 61280-4-2, TIA Method B)
+    result = cli_runner.run(
+        "loss", "--reference", "-7.2", "--reading", "-7.5", "--reading-back", "-6.9"
+    )
+    assert result.returncode == 0, result.stderr
+    out = result.stdout
+    assert re.search(r"loss A→B +0\.30 dB", out) and re.search("loss B→A +\u22120\\.30 dB", out)
+    assert "2 end connections included" in out and "connection(s)" not in out
+    assert not re.search(r"(?<![\w.])-\d", out)  # no ASCII hyphen before a number
