@@ -13,11 +13,11 @@ from __future__ import annotations
 
 from fieldkit.calc.conversions import GridReport
 from fieldkit.calc.units import Kind, Value, display_unit, format_number
+from fieldkit.text.numbers import MINUS
 
 #: Significant figures of every converted value, in the CLI and in the workspace.
 DIGITS = 6
 
-MINUS = "\u2212"
 
 
 def number(x: float) -> str:
