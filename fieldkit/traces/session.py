@@ -4,6 +4,7 @@ the hand-off of an event to the fault workspace. Plain state, tested without a t
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -59,6 +60,16 @@ class Closure:
 
     name: str
     route_m: float
+
+
+def names_link(label: str, names: list[str]) -> bool:
+    """True when link ``label`` is one of ``names`` or stands whole inside one (``LIB-TH-01``
+    in ``LIB-TH-01_F07_AB``; not ``TH-0`` in it), letters in either case."""
+    wanted = label.strip().casefold()
+    if not wanted:
+        return False
+    whole = re.compile(rf"(?<![0-9a-z]){re.escape(wanted)}(?![0-9a-z])")
+    return any(whole.search(n.casefold()) for n in names)
 
 
 @dataclass
@@ -343,6 +354,21 @@ class TraceSession:
         if known:
             lines.append(f"{known} earlier save(s) of the same stay, marked superseded")
         return lines
+
+    def names(self) -> list[str]:
+        """What names the open traces: the folder's name, the files' names (without their
+        suffix) and the cable ids the records carry; a job's link labelled with one of them is
+        where they most likely belong."""
+        out: list[str] = []
+        results: list[TraceResult] = []
+        if self.folder is not None:
+            out.append(Path(self.folder.folder).name)
+            for row in self.folder.rows:
+                results += [r for r in (row.a_to_b, row.b_to_a) if r is not None]
+        results += [r for r in (self.a, self.b) if r is not None]
+        for r in results:
+            out += [Path(r.trace.source).stem, r.trace.cable_id]
+        return list(dict.fromkeys(n.strip() for n in out if n.strip()))
 
     # -- the folder's table ----------------------------------------------------------------
     def folder_columns(self, wide: bool) -> tuple[str, ...]:

@@ -151,7 +151,9 @@ async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
         for _round in range(2):
             await pilot.press("ctrl+a")  # add the losses to a closure's splice log
             await pilot.pause()
-            await pilot.press("enter")  # the job
+            # the job: nothing names it, so it is picked by hand the first time (Down), then
+            # offered as the last one used (Down stays on the only job)
+            await pilot.press("down", "enter")
             await pilot.press("enter")  # its link
             await pilot.pause()
             await pilot.press("enter")  # closure JC-7, fibre 1 from the file name
@@ -199,7 +201,9 @@ async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
         for number in (1, 2):
             await pilot.press("ctrl+s")
             await pilot.pause()
-            await pilot.press("enter")  # the job
+            # the job: no file names it, so none is picked the first time (Down picks the
+            # only one); then the last one used is offered
+            await pilot.press("down", "enter")
             await pilot.press("enter")  # its link
             await pilot.pause()
             dialog = app.screen
@@ -256,7 +260,7 @@ async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Pa
         await pilot.pause()
         await pilot.press("ctrl+s")
         await pilot.pause()
-        await pilot.press("enter", "enter")
+        await pilot.press("down", "enter", "enter")  # nothing names the job: Down picks it
         await pilot.pause()
         dialog = app.screen
         assert isinstance(dialog, SaveTracesDialog) and not dialog.query(".fibre-number")

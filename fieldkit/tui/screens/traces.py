@@ -262,8 +262,10 @@ class TracesScreen(Screen[None]):
         if self.session.a is None and self.session.folder is None:
             self._say("Open traces first.", True)
             return None
-        job_id = self.job_link[0] if self.job_link else None
-        choice = await self.app.push_screen_wait(JobLinkPicker(job_id=job_id, title=title))
+        job_id, link_id = self._likely_link() or self.job_link or (None, None)
+        choice = await self.app.push_screen_wait(
+            JobLinkPicker(job_id=job_id, link_id=link_id, pick_first=False, title=title)
+        )
         if choice is None:
             return None
         self.job_link = choice
@@ -278,6 +280,29 @@ class TracesScreen(Screen[None]):
         self._show()
         self.query_one("#traces-note", Static).update(terminal(self.session.limits_summary()))
         return choice, job, link
+
+    def _likely_link(self) -> tuple[str, str] | None:
+        """The open job's link labelled with the folder's name, a file's name or the records'
+        cable id (one such link, or the last one chosen among several); None when no link or
+        no single one is named."""
+        from fieldkit.traces.session import names_link
+
+        names = self.session.names()
+        store = fieldkit_app(self).store
+        found: list[tuple[str, str]] = []
+        try:
+            for summary in store.list():
+                if summary.status != "open" or summary.read_only:
+                    continue
+                if not any(names_link(label, names) for label in summary.link_labels):
+                    continue
+                job = store.load(summary.id)
+                found += [(job.id, ln.id) for ln in job.links if names_link(ln.label, names)]
+        except Exception:  # noqa: BLE001 - an unreadable store: the picker says so itself
+            return None
+        if len(found) == 1:
+            return found[0]
+        return self.job_link if self.job_link in found else None
 
     @work(exclusive=True, group="traces-job", exit_on_error=False)
     async def action_save_traces(self) -> None:

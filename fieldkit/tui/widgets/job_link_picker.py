@@ -100,6 +100,8 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         store: JobStore | None = None,
         *,
         job_id: str | None = None,
+        link_id: str | None = None,
+        pick_first: bool = True,
         title: str = "Save onto a job's link",
         confirm: str = "Save here",
     ) -> None:
@@ -107,6 +109,10 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
         self._confirm = confirm  # the button's word: "Save here", or "Open" to open a record
         self._store = store
         self._initial_job = job_id
+        self._initial_link = link_id
+        # False: with no (listed) ``job_id`` nothing is picked, so Enter cannot save onto a
+        # job the caller did not choose
+        self._pick_first = pick_first
         self._title = title
         self._jobs: dict[str, Job] = {}
         self._job_id: str | None = None
@@ -141,10 +147,10 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
                 yield Button(self._confirm, id="jlp-ok", variant="primary", compact=True)
 
     def on_mount(self) -> None:
-        self._reload_jobs(select=self._initial_job)
+        self._reload_jobs(select=self._initial_job, link=self._initial_link)
 
     # -- data --------------------------------------------------------------------------
-    def _reload_jobs(self, select: str | None = None) -> None:
+    def _reload_jobs(self, select: str | None = None, link: str | None = None) -> None:
         from fieldkit.jobs.store import StoreError
 
         jobs_list = self.query_one("#jlp-jobs", OptionList)
@@ -178,10 +184,15 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
             self._show_links(None)
             return
         ids = [s.id for s in summaries]
+        jobs_list.focus()
+        if select not in ids and not self._pick_first:
+            jobs_list.highlighted = None
+            self._show_links(None)
+            self._say("Pick the job (Enter), then its link.")
+            return
         index = ids.index(select) if select in ids else 0
         jobs_list.highlighted = index
-        jobs_list.focus()
-        self._show_links(ids[index])
+        self._show_links(ids[index], select=link)
 
     def _show_links(self, job_id: str | None, select: str | None = None) -> None:
         from fieldkit.jobs.store import StoreError

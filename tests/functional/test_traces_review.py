@@ -1,0 +1,107 @@
+"""The Traces workspace on the demo's own traces (fieldkit.traces.demo: fibres 6 and 7 of link
+LIB-TH-01, both ends at 1550 nm) with the demo jobs in the store: which link Ctrl+S offers,
+the caution, the digits and the limits line. Review items A5, A12, B17, B23, C29, C37, C38.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+from textual.widgets import Input, OptionList
+
+from fieldkit.jobs.demo import build, local_day_start
+from fieldkit.jobs.ids import now
+from fieldkit.jobs.store import JobStore
+from fieldkit.locations import jobs_dir
+from fieldkit.traces.demo import demo_trace_files
+from fieldkit.traces.sor import write_sor
+from fieldkit.traces.synthetic import SynthEvent, SynthFibre, synth_trace
+from fieldkit.tui.app import make_app
+from fieldkit.tui.screens.traces import TracesScreen
+from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+BACKBONE = "de30000000000001"  # the demo job holding link LIB-TH-01
+
+
+def _demo(tmp_path: Path, folder_name: str = "LIB-TH-01") -> tuple[Any, Path]:
+    data = tmp_path / "d"
+    store = JobStore(jobs_dir(data))
+    for job in build(local_day_start(now())):
+        store.save(job)
+    folder = tmp_path / "traces" / folder_name
+    folder.mkdir(parents=True)
+    for name, blob in demo_trace_files().items():
+        (folder / name).write_bytes(blob)
+    app = make_app(data_dir=data, config_dir=tmp_path / "c", start_mode="traces")
+    return app, folder
+
+
+async def _open(pilot: Any, path: str) -> TracesScreen:
+    screen = pilot.app.screen
+    assert isinstance(screen, TracesScreen)
+    field = screen.query_one("#traces-a", Input)
+    field.focus()
+    field.value = path
+    await pilot.press("enter")
+    for _ in range(50):
+        await pilot.pause(0.05)
+        if screen.session.folder is not None or screen.session.a is not None:
+            break
+    await pilot.pause()
+    return screen
+
+
+def _picked(app: Any) -> tuple[str | None, str | None]:
+    picker = app.screen
+    assert isinstance(picker, JobLinkPicker)
+    jobs = picker.query_one("#jlp-jobs", OptionList)
+    links = picker.query_one("#jlp-links", OptionList)
+    job = jobs.get_option_at_index(jobs.highlighted).id if jobs.highlighted is not None else None
+    link = (
+        links.get_option_at_index(links.highlighted).id if links.highlighted is not None else None
+    )
+    return job, link
+
+
+async def test_save_picker_offers_the_link_the_folder_names(tmp_path: Path) -> None:
+    """A5: folder LIB-TH-01 (the demo's backbone link) -> Ctrl+S offers that job and link,
+    not the newest job (Station Road)."""
+    app, folder = _demo(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await _open(pilot, str(folder))
+        await pilot.press("ctrl+s")
+        await pilot.pause(0.2)
+        job = app.store.load(BACKBONE)
+        assert _picked(app) == (BACKBONE, job.link_by_label("LIB-TH-01").id)
+
+
+async def test_save_picker_offers_the_cable_id_of_a_single_trace(tmp_path: Path) -> None:
+    """A5: a file whose folder and name say nothing: the record's cable id (LIB-TH-01) picks."""
+    app, folder = _demo(tmp_path, "unsorted")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await _open(pilot, str(folder / "F07_1550_AB.sor"))
+        await pilot.press("ctrl+s")
+        await pilot.pause(0.2)
+        assert _picked(app)[0] == BACKBONE
+
+
+async def test_save_picker_picks_nothing_when_nothing_names_a_link(tmp_path: Path) -> None:
+    """A5: traces naming no link and no link used before: no job picked, Enter saves nowhere."""
+    app, folder = _demo(tmp_path, "unsorted")
+    for path in folder.iterdir():  # a record without a cable id instead
+        path.unlink()
+    fibre = SynthFibre(length_m=3000.0, spacing_m=1.0, events=(SynthEvent(1200.0, 0.2),))
+    (folder / "trace.sor").write_bytes(write_sor(synth_trace(fibre, seed=3)))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = await _open(pilot, str(folder / "trace.sor"))
+        assert screen.session.a is not None
+        await pilot.press("ctrl+s")
+        await pilot.pause(0.2)
+        assert _picked(app) == (None, None)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, JobLinkPicker)  # still asking
