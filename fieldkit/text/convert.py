@@ -19,7 +19,6 @@ from fieldkit.text.numbers import MINUS
 DIGITS = 6
 
 
-
 def number(x: float) -> str:
     """A converted value: ``DIGITS`` significant figures, the typographic minus."""
     return format_number(x, DIGITS)
