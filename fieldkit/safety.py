@@ -43,9 +43,9 @@ OTDR_LIVE_FIBRE = (
     "wavelength, and follow the operator's procedures."
 )
 # Two lines of an 80-column screen, and one line of a phone terminal.
-OTDR_LIVE_FIBRE_MEDIUM = (
-    "Invisible OTDR pulses: never look into the port or a fibre end. Never into a live fibre "
-    "(it can damage the far receiver): disconnect, or use a filtered PON port."
+OTDR_LIVE_FIBRE_MEDIUM = (  # two lines at 80 columns
+    "Invisible OTDR pulses: never look into the port or a fibre end. Live fibre: disconnect "
+    "first or use a filtered PON port (pulses can damage its receiver)."
 )
 OTDR_LIVE_FIBRE_SHORT = "OTDR: invisible pulses; never into a live fibre"
 DEFER = (

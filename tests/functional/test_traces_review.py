@@ -5,10 +5,12 @@ the caution, the digits and the limits line. Review items A5, A12, B17, B23, C29
 
 from __future__ import annotations
 
+import textwrap
 from pathlib import Path
 from typing import Any
 
-from textual.widgets import Input, OptionList
+import pytest
+from textual.widgets import Input, OptionList, Static
 
 from fieldkit.jobs.demo import build, local_day_start
 from fieldkit.jobs.ids import now
@@ -105,3 +107,17 @@ async def test_save_picker_picks_nothing_when_nothing_names_a_link(tmp_path: Pat
         await pilot.press("enter")
         await pilot.pause()
         assert isinstance(app.screen, JobLinkPicker)  # still asking
+
+
+@pytest.mark.parametrize("size", [(80, 24), (72, 24), (44, 22)], ids=["80x24", "72x24", "44x22"])
+async def test_the_otdr_caution_is_shown_whole(tmp_path: Path, size: tuple[int, int]) -> None:
+    """B17: the caution's words all fit its lines (at 80x24 it lost its last word, "port.")."""
+    app, folder = _demo(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = await _open(pilot, str(folder))
+        caution = screen.query_one("#traces-caution", Static)
+        text = str(caution.render())
+        lines = textwrap.wrap(text, caution.content_size.width)
+        assert len(lines) <= caution.content_size.height, lines
+        assert "invisible" in text.lower() and "live fibre" in text.lower()

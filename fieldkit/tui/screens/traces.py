@@ -94,9 +94,13 @@ class TracesScreen(Screen[None]):
         self._fill_table()
 
     def _fit_caution(self) -> None:
-        narrow = self.size.width < 72
+        """The medium caution where it fits whole in its two lines, else the short one."""
+        from fieldkit.text.layout import wrap
+
+        width = self.size.width - 2  # the caution's padding
+        fits = self.wide and len(wrap(safety.OTDR_LIVE_FIBRE_MEDIUM, width, 0)) <= 2
         caution = self.query_one("#traces-caution", Static)
-        caution.update(safety.OTDR_LIVE_FIBRE_SHORT if narrow else safety.OTDR_LIVE_FIBRE_MEDIUM)
+        caution.update(safety.OTDR_LIVE_FIBRE_MEDIUM if fits else safety.OTDR_LIVE_FIBRE_SHORT)
         caution.tooltip = f"{safety.OTDR_LIVE_FIBRE} {safety.DEFER}"
 
     @property
