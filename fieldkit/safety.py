@@ -29,13 +29,18 @@ NEVER_LOOK = (
     "with invisible light."
 )
 DIGGING = (
-    "Before anyone digs or opens a closure at a located fault: follow the local utility-locate "
-    "rules (request a locate and wait for the marks), confirm the position with a second "
+    "Before digging: have buried services located and marked, as local rules require. Before "
+    "anyone digs or opens a closure at a located fault, confirm the position with a second "
     "measurement or from the other end, and keep to the site's permit and traffic rules."
 )
 # The same caution in one line of the fault workspace where rows are scarce (the full one a key
-# or a click away, and on hover).
-DIGGING_SHORT = "Before digging: get a locate"
+# or a click away, and on hover); the narrow one fits a phone terminal (42 columns).
+DIGGING_SHORT = "Before digging: have buried services located and marked"
+DIGGING_NARROW = "Dig only once services are marked"
+# The visual fault locator caution in one line (the full one, FAULT_LOCATOR, on hover and a key
+# or a click away); the narrow one fits a phone terminal.
+FAULT_LOCATOR_SHORT = "Red locator laser: never look into it or a lit end"
+FAULT_LOCATOR_NARROW = "Locator laser: never look in"
 OTDR_LIVE_FIBRE = (
     "An OTDR sends strong invisible pulses: never look into its port or a fibre end under test. "
     "A pulse into a live fibre can damage the receiver at the far end: disconnect the equipment "

@@ -33,20 +33,28 @@ def register(subparsers: Any) -> None:
         help="where on the route an OTDR event or a round-trip time lies, with its range",
         description="Turn an OTDR distance (or a round-trip time) into fibre, sheath and route "
         "distance, the nearest landmark and the sheath marking to look for, with an uncertainty "
-        "range. Lengths take a unit (m, km, ft, kft, mi; a bare number is metres). Landmarks "
+        "range. --distance needs a unit, as the OTDR shows it (m, km, ft, kft, mi): '3.412' "
+        "alone could be km or m, so a bare number is refused; the other lengths read a bare "
+        "number as metres. Landmarks "
         "(OTDR distance with the same set-up, and route distance) are interpolated, which "
-        "cancels most index and helix error. The range is the root-sum-square of independent "
+        "cancels most index and helix error. The search window is the route distance ± the "
+        "root-sum-square of independent "
         "terms (instrument offset, scale error × distance, sample spacing, group index, helix); "
-        "the worst case, their sum, is shown beside it.",
+        "the worst case, their sum, is shown beside it. Distances are shown to the place "
+        "their ± allows (2010 m ± 30 m); --json keeps every digit.",
     )
     reading = parser.add_argument_group("the reading (one of)")
     reading.add_argument(
-        "--distance", metavar="D", help="the event's distance as the OTDR shows it, e.g. '3.412 km'"
+        "--distance",
+        metavar="D",
+        help="the event's distance as the OTDR shows it, with its unit, e.g. '3.412 km'",
     )
     reading.add_argument("--time", metavar="T", help="the round-trip time, e.g. '34.1 us'")
     index = parser.add_argument_group("group index")
     index.add_argument(
-        "--ior-set", metavar="N", help="the group index the OTDR was set to (default: the fibre's)"
+        "--ior-set",
+        metavar="N",
+        help="the index set on the OTDR (its group index setting; default: the fibre's)",
     )
     index.add_argument("--ior", metavar="N", help="the fibre's group index, typed")
     add_fibre_type(

@@ -40,7 +40,7 @@ from fieldkit.calc.locate import (
 from fieldkit.calc.units import InputError, Kind, format_number, parse
 from fieldkit.inputs import otdr_distance_m
 from fieldkit.presets import PresetLibrary, load_presets
-from fieldkit.text.locate import result_lines, summary_line
+from fieldkit.text.locate import distance_text, result_lines, summary_line
 from fieldkit.text.route import FaultMark, RoutePoint
 from fieldkit.tui.form_fields import Column, Notice, field_name, plain_number
 
@@ -71,12 +71,12 @@ class Field:
 #: out: the first field with a problem is the one a message names.
 FIELDS: dict[str, Field] = {
     "distance": Field(
-        "OTDR dist",
+        "Distance",
         "quantity",
         Kind.LENGTH,
         check=otdr_distance_m,
         hint="e.g. 3.412 km",
-        tip="The event's distance as the OTDR shows it",
+        tip="The event's distance as the OTDR shows it, with its unit (km or m, as shown)",
     ),
     "time": Field(
         "or time",
@@ -86,16 +86,17 @@ FIELDS: dict[str, Field] = {
         tip="The round-trip time instead of a distance",
     ),
     "ior-set": Field(
-        "Index set",
+        "OTDR index",
         "number",
         hint="e.g. 1.4680 (as set)",
-        tip="The group index the OTDR was set to; empty if it was set to the fibre's",
+        tip="The index set on the OTDR (its group index setting); empty if it was set to the "
+        "fibre's",
     ),
     "ior": Field(
         "Group index",
         "number",
         hint="e.g. 1.4677",
-        tip="The fibre's group index (filled from the preset; type the cable's own if you have it)",
+        tip="The fibre's own group index (filled from the preset; type the cable's if you have it)",
     ),
     "helix": Field(
         "Helix %",
@@ -142,7 +143,7 @@ FIELDS: dict[str, Field] = {
 
 LANDMARK_COLUMNS = (
     Column("name", "Name", "text", "closure 7"),
-    Column("otdr", "OTDR dist", "length", "3.400 km"),
+    Column("otdr", "OTDR reads", "length", "3.400 km"),
     Column("route", "Route dist", "length", "3330 m"),
 )
 SLACK_COLUMNS = (
@@ -382,8 +383,8 @@ class FaultForm:
         unit = unit if unit in OUTPUT_UNITS else "m"
         points = route_points(landmarks, slack, unit)
         if self.location is None:
-            text = self.problem or ""
-            return Shown(text, [], text, True, points, None)
+            # Said once, on the summary line (always in view), not again in the result panel.
+            return Shown("", [], self.problem or "", True, points, None)
         lines = result_lines(self.location, unit)
         if self.problem:
             lines.append(self.problem)
@@ -394,7 +395,7 @@ class FaultForm:
             summary_line(self.location, unit),
             False,
             points,
-            FaultMark(p.route_distance_m, p.low_m, p.high_m),
+            FaultMark(p.route_distance_m, p.low_m, p.high_m, p.uncertainty_m),
         )
 
     # -- a job's link ---------------------------------------------------------------------
@@ -407,6 +408,7 @@ class FaultForm:
         if self.location is None:
             return Notice(self.problem or "Nothing located yet to save.", "warning", ok=False)
         record = fault_record(self.location, dict(self.inputs), by=by)
+        p = self.location.position
         try:
             saved = save_fault(store, job_id, link_id, record)
         except (StoreError, ActionError) as exc:
@@ -414,7 +416,7 @@ class FaultForm:
         self.mark_clean()
         return Notice(
             f"Saved onto {saved.job_name} / {saved.link_label}: "
-            f"{format_distance(record.route_distance_m, unit)} on the route."
+            f"{distance_text(record.route_distance_m, p.uncertainty_m, unit)} on the route."
         )
 
     # -- unsaved edits ----------------------------------------------------------------------

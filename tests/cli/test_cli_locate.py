@@ -133,7 +133,7 @@ def test_text_output_in_feet_shows_range_and_cautions() -> None:
     assert result.returncode == 0, result.stderr
     # 3048 m / 0.3048 m per ft = 10 000 ft (international foot, NIST SP 811)
     assert "10000 ft" in result.stdout
-    assert "look     " in result.stdout  # the workspace's own result lines
+    assert "search   from " in result.stdout  # the workspace's own result lines
     assert "route    10000 ft" in result.stdout
     assert safety.DIGGING in result.stdout
     assert safety.DEFER in result.stdout
@@ -249,3 +249,26 @@ def test_a_saved_fault_shows_in_the_job_export(tmp_path: Path) -> None:
     assert "Feed 1: located faults" in export.stdout
     # 2040 / 1.02 = 2000 m of route
     assert "| 2000.0 |" in export.stdout
+
+
+def test_help_says_the_distance_needs_a_unit_as_the_refusal_does() -> None:
+    # Review A7: the help said "a bare number is metres" while --distance 2040 is refused
+    # (issue 13 item 8: an OTDR shows km or m by range, so 2040 alone is ambiguous).
+    help_text = " ".join(run("--help").stdout.split())
+    assert "a bare number is metres" not in help_text
+    assert "--distance needs a unit" in help_text
+    refused = run("--distance", "2040", "--ior", "1.4677")
+    assert refused.returncode != 0 and "needs a unit" in refused.stderr
+
+
+def test_text_digits_follow_the_uncertainty() -> None:
+    # Review C28: "2009.9 m ± 30.2 m" claims a tenth of a metre of a ± 30 m reading. No helix
+    # given: route 2040 / 1.015 = 2009.85 m, ± about 30 m (the unknown helix, 0–3 %): the ± to
+    # one significant digit and the route to the same place (common practice).
+    result = run("--distance", "2040 m", "--ior", "1.4677")
+    assert result.returncode == 0, result.stderr
+    assert "route    2010 m ± 30 m" in result.stdout
+    assert "search   from 1970 to 2050 m" in result.stdout
+    # no slack loop: the sheath is the route, said once, with why
+    assert "sheath   same as route (no slack loop before it)" in result.stdout
+    assert "2009.9" not in result.stdout

@@ -52,8 +52,11 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(
         assert "Helix not given" in _text(screen, "#fault-cable-note")
         assert screen.location is not None
         assert screen.location.position.route_distance_m == pytest.approx(2009.8522, abs=1e-3)
-        assert "Fault 2009.9 m ±" in _text(screen, "#fault-summary")
-        assert "route 2009.9 m" in _text(screen, "#fault-result")
+        # Digits follow the ± (review C28): ± 30.2 m is shown to one significant digit, 30 m,
+        # and the route to the same place, 2010 m (common practice for quoting a ±).
+        assert "Fault 2010 m ± 30 m" in _text(screen, "#fault-summary")
+        assert "route 2010 m ± 30 m" in _text(screen, "#fault-result")
+        assert "2009.9" not in _text(screen, "#fault-result")
         p = screen.location.position  # the range tops out at the fibre distance, within its ±
         assert p.high_m <= 2040.0 + p.fibre_uncertainty_m
         assert any("the estimate takes 1.5 %" in w for w in screen.location.warnings)
@@ -61,23 +64,37 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(
         lines = diagram.lines()
         assert lines[0].startswith("├") and "X" in lines[0]
         assert all(len(line) <= diagram.content_size.width for line in lines)
-        # the key line of the fault is whole at both sizes: its range goes on under it
-        low, high = (f"{x:.1f} m" for x in (p.low_m, p.high_m))
-        assert f"fault, look {low}–{high}" in " ".join(line.strip() for line in lines)
+        # the key line of the fault is whole at both sizes: its window goes on under it, named
+        # as in the result (review C30: one name, "search from … to …"), rounded outwards to
+        # the ±'s place: 1979.6 -> 1970, 2040.1 -> 2050
+        assert "search from 1970 to 2050 m" in _text(screen, "#fault-result")
+        assert "fault, search from 1970 to 2050 m" in " ".join(line.strip() for line in lines)
         assert not any("…" in line for line in lines)
-        # Friction (issue 14, fault): where rows are scarce the caution is one line after the
-        # result and the route, never gone.
+        # Review A2: the digging caution stays in view under the result's title line (the
+        # summary), never pushed below the screen by the result and the route, at both sizes.
         caution = screen.query_one("#fault-cautions", Static)
-        # folded to one line with "more", never gone; the full wording on hover and on Enter
-        assert caution.region.height == 1
-        assert _text(screen, "#fault-cautions").startswith(f"⚠ {safety.DIGGING_SHORT}")
-        assert _text(screen, "#fault-cautions").endswith("more")
+        summary = screen.query_one("#fault-summary", Static)
+        assert caution.region.height == 1 and caution.region.y == summary.region.bottom
+        assert caution.region.bottom <= size[1] - 1  # above the footer
+        assert screen.screen.get_widget_at(1, caution.region.y)[0] is caution
+        # folded to one line with "more", never gone; the full wording on hover and on Enter;
+        # plain wording (review C42), the longest that fits
+        shown = _text(screen, "#fault-cautions")
+        assert shown.startswith(
+            f"⚠ {safety.DIGGING_SHORT if size[0] >= 80 else safety.DIGGING_NARROW}"
+        )
+        assert shown.endswith("more") and "…" not in shown.removesuffix("… more")
         assert safety.DIGGING in str(caution.tooltip)
+        # Review A13: the visual fault locator's caution is in the workspace too, after the
+        # result, whole, the full one on hover.
+        locator = screen.query_one("#fault-locator-caution", Static)
+        assert safety.FAULT_LOCATOR in str(locator.tooltip)
+        await _show(pilot, screen, "#fault-locator-caution")
+        words = _text(screen, "#fault-locator-caution")
+        assert words.endswith("more") and "…" not in words.removesuffix("… more")
+        assert "laser" in words and "never look in" in words
         result = screen.query_one("#fault-result-panel").region
-        route = screen.query_one("#fault-route-panel").region
-        assert result.y < route.y < caution.region.y  # the result and the route come first
-        if size[0] >= 80:  # side by side: both in view without scrolling
-            assert route.bottom <= size[1] - 1
+        assert result.y < locator.region.y  # the result comes first
         caution.focus()
         await pilot.press("enter")
         await pilot.pause()

@@ -32,7 +32,7 @@ async def test_jobs_find_hint_fits(tmp_path: Path, size) -> None:
     ("mode", "field_id", "named"),
     [
         ("convert", "sum-a", "level A"),
-        ("fault", "fault-distance", "OTDR dist"),
+        ("fault", "fault-distance", "distance"),
         ("convert", "value", "value"),
     ],
 )

@@ -33,12 +33,13 @@ def test_budget_kind_chooser(workspace_snap: Snap, size: tuple[int, int]) -> Non
 
 @pytest.mark.parametrize("size", SIZES, ids=["80x24", "44x22"])
 def test_fault_on_start(workspace_snap: Snap, size: tuple[int, int]) -> None:
-    """Fault as it opens: focus in OTDR dist, the no-helix assumption shown under Cable."""
+    """Fault as it opens: focus in Distance, the prompt said once (on the summary line), the
+    digging caution under it, no route drawn yet, the no-helix assumption under Cable."""
     assert workspace_snap("fault", size, demo=False)
 
 
 @pytest.mark.parametrize("size", SIZES, ids=["80x24", "44x22"])
 def test_fault_located(workspace_snap: Snap, size: tuple[int, int]) -> None:
-    """A distance typed and Ctrl+G: the result, then the route with its whole key line, then
-    the digging caution folded to one line with "more"."""
+    """A distance typed and Ctrl+G: the digging caution folded to one line with "more" under
+    the summary (never scrolled away), the result to the digits its ± allows, then the route."""
     assert workspace_snap("fault", size, press=[*"2040 m", "ctrl+g", "_"], demo=False)

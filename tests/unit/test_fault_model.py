@@ -79,8 +79,9 @@ def test_no_helix_runs_from_the_fibre_distance_down_and_says_so() -> None:
     assert any("No helix given" in w for w in form.location.warnings)
     assert form.cable_fill(NOT_GIVEN)[2] == HELIX_NOT_GIVEN_NOTE
     shown = form.shown("m")
-    assert shown.summary.startswith("Fault 3361.6 m ±")
-    assert "route    3361.6 m" in shown.result
+    # the digits follow the ± (about 50 m: one significant digit, the tens; common practice)
+    assert shown.summary.startswith("Fault 3360 m ± 50 m")
+    assert "route    3360 m ± 50 m" in shown.result
     assert shown.fault is not None and shown.fault.high_m == p.high_m
 
 
@@ -140,8 +141,9 @@ def test_marking_two_ended_and_unit() -> None:
     assert "marking  6588 m" in result
     # 3412 + 1590 − 5000 = 2 m within the two readings' ±
     assert "consistent" in result and "NOT consistent" not in result
-    # 3412 m / 0.3048 = 11194 ft (international foot)
-    assert "route    11194 ft" in form.shown("ft").result
+    # 3412 m / 0.3048 = 11194 ft (international foot) ± about 60 ft: shown to the tens
+    assert "route    11190 ft ± 60 ft" in form.shown("ft").result
+    assert "fibre    11194 ft ± 9 ft" in form.shown("ft").result
     # half a two-ended check is a note, not a stop
     built = form.update({**typed, "total": ""}, [], [])
     assert built.inp is not None and form.location is not None

@@ -510,3 +510,30 @@ def test_range_of_an_interpolated_fault_by_hand() -> None:
     assert p.route_distance_m == pytest.approx(2738.571, abs=1e-3)
     assert p.uncertainty_m == pytest.approx(1.211641, abs=1e-5)
     assert p.worst_case_m == pytest.approx(1.972133, abs=1e-5)
+
+
+@pytest.mark.parametrize(
+    ("value", "plus_minus", "shown"),
+    [
+        # one significant digit of the ±, two when it starts with 1 (common practice), the
+        # value to the same place
+        (2009.85, 30.2, "2010 m ± 30 m"),
+        (2019.6, 5.7, "2020 m ± 6 m"),
+        (2040.0, 1.99, "2040 m ± 2 m"),
+        (2040.0, 1.4, "2040.0 m ± 1.4 m"),
+        (512.34, 0.96, "512.3 m ± 1.0 m"),
+        (100.0, 0.02, "100.0 m ± 0.0 m"),  # never finer than 0.1 m
+    ],
+)
+def test_honest_digits(value: float, plus_minus: float, shown: str) -> None:
+    from fieldkit.text.locate import plus_minus as pm
+
+    assert pm(value, plus_minus) == shown
+
+
+def test_search_window_rounds_outwards() -> None:
+    from fieldkit.text.locate import search_text
+
+    # ± 30 m: to the tens, the low end down and the high end up, so the window holds the range
+    assert search_text(1979.6, 2040.1, 30.2) == "from 1970 to 2050 m"
+    assert search_text(1979.6, 2040.1, 30.2, "km") == "from 1.97 to 2.05 km"

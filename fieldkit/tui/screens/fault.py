@@ -106,10 +106,17 @@ class FaultScreen(Screen[None]):
         fibres, fibre_name = self.form.fibre_choices()
         yield WorkspaceBar()
         yield Static("", id="fault-summary")
+        # Under the result's title line, outside the scrolling body: never pushed off the
+        # screen by the result or the route. One line where rows are scarce, never gone.
+        yield Caution(
+            f"{safety.DIGGING}\n{safety.DEFER}",
+            (safety.DIGGING_SHORT, safety.DIGGING_NARROW),
+            id="fault-cautions",
+        )
         with VerticalScroll(id="fault-body"), Vertical(classes="two-col"):
             with Vertical(classes="col", id="fault-inputs"):
                 with Vertical(classes="panel", id="fault-reading") as panel:
-                    panel.border_title = "Reading from the start"
+                    panel.border_title = "OTDR distance from the start"
                     yield from _fields("distance", "time", "ior-set")
                 with Vertical(classes="panel", id="fault-fibre-panel") as panel:
                     panel.border_title = "Fibre and cable"
@@ -163,7 +170,7 @@ class FaultScreen(Screen[None]):
                     )
             with Vertical(classes="col", id="fault-outputs"):
                 with Vertical(classes="panel", id="fault-result-panel") as panel:
-                    panel.border_title = "Where to look"
+                    panel.border_title = "Where to search"
                     units = [(u, u) for u in OUTPUT_UNITS]
                     yield from _select("Show in", units, "m", id="fault-unit")
                     yield Static("", id="fault-result", classes="result")
@@ -171,9 +178,12 @@ class FaultScreen(Screen[None]):
                     panel.border_title = "Route"
                     yield RouteDiagram(id="fault-diagram")
                 yield Static("", id="fault-warnings", classes="result")
-                # After the result and the route; one line where rows are scarce, never gone.
+                # The visual fault locator is used with this workspace (to find the break the
+                # OTDR points to): its caution after the result, one line where rows are scarce.
                 yield Caution(
-                    f"{safety.DIGGING}\n{safety.DEFER}", safety.DIGGING_SHORT, id="fault-cautions"
+                    safety.FAULT_LOCATOR,
+                    (safety.FAULT_LOCATOR_SHORT, safety.FAULT_LOCATOR_NARROW),
+                    id="fault-locator-caution",
                 )
                 with Vertical(classes="panel", id="fault-save-panel") as panel:
                     panel.border_title = "Job"
@@ -202,7 +212,8 @@ class FaultScreen(Screen[None]):
     SCARCE_ROWS = 40
 
     def on_resize(self) -> None:
-        self.query_one("#fault-cautions", Caution).fit(self.size.height < self.SCARCE_ROWS)
+        for caution in self.query(Caution):
+            caution.fit(self.size.height < self.SCARCE_ROWS)
         # The result lines wrap to their panel: draw them again once the layout has settled.
         self.call_after_refresh(lambda: self._show(*self._shown))
 
@@ -326,6 +337,8 @@ class FaultScreen(Screen[None]):
         summary.update(shown.summary)
         summary.set_class(shown.problem, "-problem")
         self.query_one("#fault-diagram", RouteDiagram).show(shown.points, shown.fault, self.unit)
+        # Nothing typed yet: no route (and no scale) to draw.
+        self.query_one("#fault-route-panel").display = bool(shown.points or shown.fault)
 
     # -- actions ----------------------------------------------------------------------------
     def prefill(

@@ -1,10 +1,13 @@
 """A safety caution that folds to one line where rows are scarce, and never disappears.
 
-Folded it reads ``⚠ Before digging: get a locate … more``; Enter, Space or a click unfolds the
-full wording (and folds it again). The full wording is also its tooltip.
+Folded it reads ``⚠ Before digging: have buried services located and marked … more`` (or a
+shorter wording given for narrow screens, the longest that fits); Enter, Space or a click
+unfolds the full wording (and folds it again). The full wording is also its tooltip.
 """
 
 from __future__ import annotations
+
+from collections.abc import Sequence
 
 from rich.text import Text
 from textual.binding import Binding
@@ -18,7 +21,8 @@ _LESS = " less"
 
 
 class Caution(Static, can_focus=True):
-    """``full`` shown unfolded; ``short`` (one line, cut to the width if need be) folded."""
+    """``full`` shown unfolded; folded, the first of ``short`` (one wording or several, longest
+    first) that fits one line, the last cut to the width if none does."""
 
     DEFAULT_CSS = """
     Caution {
@@ -32,10 +36,17 @@ class Caution(Static, can_focus=True):
 
     folded: reactive[bool] = reactive(True)
 
-    def __init__(self, full: str, short: str, *, id: str | None = None) -> None:  # noqa: A002
+    def __init__(
+        self,
+        full: str,
+        short: str | Sequence[str],
+        *,
+        id: str | None = None,  # noqa: A002
+    ) -> None:
         super().__init__("", id=id, classes="caution", markup=False)
         self.full = full
-        self.short = short
+        self.shorts = (short,) if isinstance(short, str) else tuple(short)
+        self.short = self.shorts[0]
         self.tooltip = full
         self._chosen = False  # the user folded or unfolded it: the layout no longer decides
 
@@ -65,8 +76,9 @@ class Caution(Static, can_focus=True):
             self.update(Text(f"⚠ {self.full}") + Text(_LESS, style="underline"))
             return
         width = self.content_size.width or 40
-        line = f"⚠ {self.short}"
         room = max(4, width - len(_MORE))
+        lines = [f"⚠ {short}" for short in self.shorts]
+        line = next((line for line in lines if len(line) <= room), lines[-1])
         if len(line) > room:
             line = line[: room - 1] + "…"
         self.update(Text(line) + Text(_MORE, style="underline"))
