@@ -50,7 +50,9 @@ def register(subparsers: Any) -> None:
         help="analyse one trace",
         description="The events (distance, kind, loss, reflectance, cumulative loss), the "
         "sections' attenuation and the verdicts of one trace, with the instrument's own "
-        "events beside them. Safety: " + SAFETY,
+        "events beside them. Kinds (--json 'kind'): splice (any non-reflective loss, shown as "
+        "splice/bend: a splice and a bend look alike; judged by the splice maximum), "
+        "reflective (the connector maximum and the reflectance), gainer, end. Safety: " + SAFETY,
     )
     show.add_argument("file", help="a trace file (.sor, or text/CSV with a header)")
     show.add_argument(

@@ -27,6 +27,7 @@ from fieldkit.reports.document import (
     Table,
 )
 from fieldkit.reports.parts import Used, running_header
+from fieldkit.traces.lines import KIND_LABELS
 
 
 def _trace_caption(t: TraceRecord, ctx: ReportContext) -> str:
@@ -98,7 +99,7 @@ def _trace_blocks(link: Link, t: TraceRecord, ctx: ReportContext, used: Used) ->
             [
                 str(e.number),
                 fmt_m(e.distance_m),
-                e.kind,
+                KIND_LABELS.get(e.kind, e.kind),
                 *losses,
                 fmt_db(e.reflectance_db),
                 fmt_db(e.cumulative_db),

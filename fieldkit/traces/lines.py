@@ -14,8 +14,10 @@ from fieldkit.traces.verdicts import Limits
 
 MINUS = "-"  # the project prints ASCII minus signs in tables so they paste into spreadsheets
 
+#: What a table calls each event kind (``kind`` in --json stays the key): a non-reflective loss
+#: is a splice or a bend, a trace alone cannot tell which.
 KIND_LABELS = {
-    "splice": "splice",
+    "splice": "splice/bend",
     "reflective": "reflect",
     "gainer": "gainer",
     "end": "end",
@@ -40,21 +42,21 @@ def distance(value_m: float) -> str:
 def event_cells(e: TraceEvent) -> tuple[str, ...]:
     """An analysed event as table cells: number, distance, kind, loss, reflectance, cumulative
     loss, verdict (the HTML page's table and the workspace's wide one)."""
-    losses = (fmt(e.loss_db, 3), fmt(e.reflectance_db, 1), fmt(e.cumulative_loss_db, 2))
+    losses = (fmt(e.loss_db, 2), fmt(e.reflectance_db, 1), fmt(e.cumulative_loss_db, 2))
     return (str(e.number), distance(e.distance_m), KIND_LABELS[e.kind], *losses, e.verdict)
 
 
 def paired_cells(e: PairedEvent) -> tuple[str, ...]:
     """A paired event as table cells: number, distance from A, kind, loss A→B, B→A, average,
     verdict."""
-    losses = (fmt(e.loss_ab_db, 3), fmt(e.loss_ba_db, 3), fmt(e.average_db, 3))
+    losses = (fmt(e.loss_ab_db, 2), fmt(e.loss_ba_db, 2), fmt(e.average_db, 2))
     return (str(e.number), distance(e.distance_m), KIND_LABELS[e.kind], *losses, e.verdict)
 
 
 def instrument_cells(e: InstrumentEvent) -> tuple[str, ...]:
     """An event as the instrument recorded it, as table cells: number, distance, kind, loss,
     reflectance, the instrument's code."""
-    losses = (fmt(e.loss_db, 3), fmt(e.reflectance_db, 1))
+    losses = (fmt(e.loss_db, 2), fmt(e.reflectance_db, 1))
     return (str(e.number), distance(e.distance_m), e.kind, *losses, e.code)
 
 
@@ -82,21 +84,21 @@ def event_lines(r: TraceResult, width: int = 80) -> list[str]:
     """fieldkit's event table of one trace."""
     if width >= 60:
         lines = [
-            f"{'#':>2} {'distance':>10} {'kind':<7} {'loss dB':>7} {'refl dB':>7} "
+            f"{'#':>2} {'distance':>10} {'kind':<11} {'loss dB':>7} {'refl dB':>7} "
             f"{'cum dB':>6}  verdict"
         ]
         for e in r.events:
             lines.append(
-                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
-                f"{fmt(e.loss_db, 3):>7} {fmt(e.reflectance_db, 1):>7} "
+                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<11} "
+                f"{fmt(e.loss_db, 2):>7} {fmt(e.reflectance_db, 1):>7} "
                 f"{fmt(e.cumulative_loss_db, 2):>6}  {e.verdict}"
             )
         return lines
-    lines = [f"{'#':>2} {'distance':>10} {'kind':<7} {'loss':>6}"]
+    lines = [f"{'#':>2} {'distance':>10} {'kind':<11} {'loss':>6}"]
     for e in r.events:
         lines.append(
-            f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
-            f"{fmt(e.loss_db, 3):>6}"
+            f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<11} "
+            f"{fmt(e.loss_db, 2):>6}"
         )
         extra = f"   refl {fmt(e.reflectance_db, 1)} cum {fmt(e.cumulative_loss_db, 2)} {e.verdict}"
         lines.append(extra[:width])
@@ -119,7 +121,7 @@ def instrument_lines(r: TraceResult) -> list[str]:
     lines = ["instrument's own events (as recorded in the file):"]
     for e in ev:
         lines.append(
-            f"  {e.number:>2} {distance(e.distance_m):>10} {e.kind:<10} loss {fmt(e.loss_db, 3)} "
+            f"  {e.number:>2} {distance(e.distance_m):>10} {e.kind:<10} loss {fmt(e.loss_db, 2)} "
             f"refl {fmt(e.reflectance_db, 1)} code {e.code}"
         )
     return lines
@@ -157,25 +159,25 @@ def pair_lines(p: PairResult, width: int = 80) -> list[str]:
     ]
     if width >= 60:
         lines.append(
-            f"{'#':>2} {'from A':>10} {'kind':<7} {'A→B':>7} {'B→A':>7} {'avg dB':>7}  verdict"
+            f"{'#':>2} {'from A':>10} {'kind':<11} {'A→B':>7} {'B→A':>7} {'avg dB':>7}  verdict"
         )
         for e in p.events:
             lines.append(
-                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
-                f"{fmt(e.loss_ab_db, 3):>7} {fmt(e.loss_ba_db, 3):>7} {fmt(e.average_db, 3):>7}  "
+                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<11} "
+                f"{fmt(e.loss_ab_db, 2):>7} {fmt(e.loss_ba_db, 2):>7} {fmt(e.average_db, 2):>7}  "
                 f"{e.verdict}"
             )
             if e.note:
                 lines.append(f"   {e.note}")
     else:
-        lines.append(f"{'#':>2} {'from A':>10} {'kind':<7} {'avg dB':>7}")
+        lines.append(f"{'#':>2} {'from A':>10} {'kind':<11} {'avg dB':>7}")
         for e in p.events:
             lines.append(
-                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<7} "
-                f"{fmt(e.average_db, 3):>7}"
+                f"{e.number:>2} {distance(e.distance_m):>10} {KIND_LABELS[e.kind]:<11} "
+                f"{fmt(e.average_db, 2):>7}"
             )
             lines.append(
-                f"   A→B {fmt(e.loss_ab_db, 3)} B→A {fmt(e.loss_ba_db, 3)} {e.verdict}"[:width]
+                f"   A→B {fmt(e.loss_ab_db, 2)} B→A {fmt(e.loss_ba_db, 2)} {e.verdict}"[:width]
             )
     lines.extend(f"note: {n}" for n in p.notes)
     lines.extend(["", *limits_lines(p.limits)])
@@ -197,12 +199,12 @@ def folder_lines(result: FolderResult, width: int = 80) -> list[str]:
         if width >= 60:
             lines.append(
                 f"{row.fibre[:6]:<6} {wl:>5} {row.directions:<7} {row.event_count:>3} {at:>10} "
-                f"{fmt(worst[1] if worst else None, 3):>6} {fmt(row.total_loss_db, 2):>6}  "
+                f"{fmt(worst[1] if worst else None, 2):>6} {fmt(row.total_loss_db, 2):>6}  "
                 f"{row.verdict}"
             )
         else:
             lines.append(f"{row.fibre[:6]:<6} {wl:>5} {row.directions:<7} {row.verdict}")
-            lines.append(f"   worst {at} {fmt(worst[1] if worst else None, 3)} dB"[:width])
+            lines.append(f"   worst {at} {fmt(worst[1] if worst else None, 2)} dB"[:width])
         for problem in row.problems:
             lines.append(f"   {problem}"[: max(width, 20)])
     for _name, problem in result.unread:
@@ -221,34 +223,64 @@ def limits_lines(limits: Limits, wavelength_nm: float | None = None) -> list[str
     """Which limits the verdicts used and where each came from (one line per limit)."""
     at = f" at {wavelength_nm:g} nm" if wavelength_nm else ""
 
-    def value(v: float | None, unit: str) -> str:
-        return "none" if v is None else f"{v:g} {unit}"
+    def value(v: float | None, unit: str, digits: int = 2) -> str:
+        return "none" if v is None else f"{v:.{digits}f} {unit}"
 
     return [
-        f"limits{at} from {limits.origin}:",
-        f"  splice max {value(limits.splice_max_db, 'dB')}: {limits.splice_source}",
+        f"limits{at} from {origin_words(limits.origin)}:",
+        f"  splice max {value(limits.splice_max_db, 'dB')} (any non-reflective loss: a splice "
+        f"or a bend): {limits.splice_source}",
         f"  connector max {value(limits.connector_max_db, 'dB')}: {limits.connector_source}",
-        f"  reflectance max {value(limits.reflectance_limit_db, 'dB')}: "
+        f"  reflectance max {value(limits.reflectance_limit_db, 'dB', 1)}: "
         f"{limits.reflectance_source}",
         f"  attenuation max {value(limits.attenuation_here_db_per_km, 'dB/km')}: "
         f"{limits.attenuation_source}",
         *(
-            [f"  ORL min {value(limits.orl_min_db, 'dB')}: {limits.orl_source}"]
+            [f"  ORL min {value(limits.orl_min_db, 'dB', 1)}: {limits.orl_source}"]
             if limits.orl_min_db is not None
             else []
         ),
     ]
 
 
+def origin_words(origin: str) -> str:
+    """Where a limit set came from, in words: the shipped defaults said as such."""
+    return "the shipped defaults" if not by_link(origin) else origin
+
+
+def by_link(origin: str) -> bool:
+    """True when the limits came from a job's link (not the shipped defaults)."""
+    return origin not in ("defaults", "the shipped presets")
+
+
+def fibre_of(limits: Limits) -> str:
+    """The fibre the attenuation maximum is of (``G.652.D``), from its source."""
+    return limits.attenuation_source.split(" preset")[0].split(" cabled")[0].removeprefix("ITU-T ")
+
+
 def limits_summary(limits: Limits) -> str:
-    """The limits in one short line, for a status line: ``limits (link L1): splice 0.3 ...``."""
+    """The limits in one short line, for a status line:
+    ``limits (link 'L1' of job 'Mill'): splice 0.30 dB, connector 0.75 dB, ...``; the shipped
+    defaults are said to be those, with the fibre whose attenuation they take."""
 
-    def value(v: float | None) -> str:
-        return "-" if v is None else f"{v:g}"
+    def value(v: float | None, digits: int = 2) -> str:
+        return "-" if v is None else f"{v:.{digits}f}"
 
+    origin = limits.origin if by_link(limits.origin) else f"shipped defaults, {fibre_of(limits)}"
     return (
-        f"limits ({limits.origin}): splice {value(limits.splice_max_db)}, connector "
-        f"{value(limits.connector_max_db)}, reflectance {value(limits.reflectance_limit_db)} dB, "
+        f"limits ({origin}): splice {value(limits.splice_max_db)} dB, connector "
+        f"{value(limits.connector_max_db)} dB, reflectance "
+        f"{value(limits.reflectance_limit_db, 1)} dB, "
         f"{value(limits.attenuation_here_db_per_km)} dB/km"
-        + (f", ORL {value(limits.orl_min_db)} dB" if limits.orl_min_db is not None else "")
+        + (f", ORL {value(limits.orl_min_db, 1)} dB" if limits.orl_min_db is not None else "")
     )
+
+
+def defaults_notice(limits: Limits, wide: bool = True) -> str:
+    """Said under the table while no job's link judges: the limits are the shipped defaults,
+    and choosing a link (Ctrl+S) judges by its presets; "" when a link's presets judge."""
+    if by_link(limits.origin):
+        return ""
+    if wide:
+        return f"Shipped default limits ({fibre_of(limits)}); Ctrl+S: judge by a job link's presets"
+    return f"Shipped limits ({fibre_of(limits)}); Ctrl+S: a link's"

@@ -382,7 +382,7 @@ class TraceSession:
         for row in self.folder.rows if self.folder is not None else ():
             worst = row.worst()
             wl = f"{row.wavelength_nm:g}" if row.wavelength_nm else "?"
-            worst_db = f"{worst[1]:.3f}" if worst else "-"
+            worst_db = f"{worst[1]:.2f}" if worst else "-"  # as the splice log
             total = f"{row.total_loss_db:.2f}" if row.total_loss_db is not None else "-"
             cells: tuple[str, ...]
             if wide:

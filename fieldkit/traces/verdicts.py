@@ -103,29 +103,33 @@ def event_verdict(
     reasons: list[str] = []
     failed = False
     judged = False
+    # A trace cannot tell a splice from a bend: a non-reflective loss is judged by the splice
+    # maximum, and the reason says so (a closure there makes it a splice; none, maybe a bend).
     if kind == "reflective":
-        limit, source = limits.connector_max_db, limits.connector_source
+        limit, source, which = limits.connector_max_db, limits.connector_source, "connector"
     else:
-        limit, source = limits.splice_max_db, limits.splice_source
+        limit, source, which = limits.splice_max_db, limits.splice_source, "splice"
     if loss_db is not None and limit is not None:
         judged = True
         if loss_db > limit:
             failed = True
-            reasons.append(f"loss {loss_db:.2f} > {limit:g} dB ({source})")
+            reasons.append(f"loss {loss_db:.2f} dB > {which} max {limit:.2f} dB ({source})")
     r_limit = limits.reflectance_limit_db
     if kind == "reflective" and reflectance_db is not None and r_limit is not None:
         judged = True
         if reflectance_db > r_limit:
             failed = True
             reasons.append(
-                f"reflectance {reflectance_db:.1f} > {r_limit:g} dB "
+                f"reflectance {reflectance_db:.1f} > {r_limit:.1f} dB "
                 f"({limits.polish}, {limits.reflectance_source})"
             )
+    bend = "; splice or bend" if kind != "reflective" else ""
     if failed:
-        return "fail", "; ".join(reasons)
+        return "fail", "; ".join(reasons) + bend
     if not judged:
-        return "no limit", "no limit for this event"
-    return "pass", "within limits" + ("" if bidirectional else " (one direction)")
+        return "no limit", f"no {which} limit set for this event{bend}"
+    within = f"within {which} max {limit:.2f} dB" if limit is not None else "within limits"
+    return "pass", within + ("" if bidirectional else " (one direction)") + bend
 
 
 def section_verdict(

@@ -39,6 +39,9 @@ def test_cli_show_takes_the_links_limits_and_says_so(tmp_path: Path) -> None:
     assert splice["verdict"] == "fail"  # 0.20 dB > the link's 0.1 dB
     text = cli_runner.run(*args).stdout
     assert "limits from link 'L1' of job 'Limits test':" in text
-    assert "splice max 0.1 dB: fusion, outside-plant planning preset" in text
+    assert (
+        "splice max 0.10 dB (any non-reflective loss: a splice or a bend): fusion, outside-plant "
+        "planning preset" in text
+    )
     missing = cli_runner.run("trace", "show", str(path), "--job", job_id, "--data-dir", data_dir)
     assert missing.returncode == 2 and "needs both --job and --link" in missing.stderr

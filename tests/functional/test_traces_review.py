@@ -10,7 +10,7 @@ from pathlib import Path
 from typing import Any
 
 import pytest
-from textual.widgets import Input, OptionList, Static
+from textual.widgets import DataTable, Input, OptionList, Static
 
 from fieldkit.jobs.demo import build, local_day_start
 from fieldkit.jobs.ids import now
@@ -121,3 +121,43 @@ async def test_the_otdr_caution_is_shown_whole(tmp_path: Path, size: tuple[int, 
         lines = textwrap.wrap(text, caution.content_size.width)
         assert len(lines) <= caution.content_size.height, lines
         assert "invisible" in text.lower() and "live fibre" in text.lower()
+
+
+async def _open_fibre_7(pilot: Any, folder: Path) -> TracesScreen:
+    screen = await _open(pilot, str(folder))
+    await pilot.press("down", "enter")  # the folder's second row: fibre 7
+    await pilot.pause()
+    assert screen.session.paired is not None
+    return screen
+
+
+@pytest.mark.parametrize("size", [(80, 24), (44, 22)], ids=["80x24", "44x22"])
+async def test_fibre_7_reads_as_the_splice_log_and_says_its_limits(
+    tmp_path: Path, size: tuple[int, int]
+) -> None:
+    """C29, A12, C38 on the demo's fibre 7: the JC-3 loss to 2 decimals as the splice log and
+    the report give it (0.21 dB from A, 0.47 dB from B, 0.34 dB averaged: fieldkit.traces.demo,
+    ITU-T G.650.3 averaging), the limit "0.30 dB"; the events are splices or bends (no closure
+    is known without a link) judged by the splice maximum, and the limits are said to be the
+    shipped defaults until a job's link is chosen (Ctrl+S)."""
+    app, folder = _demo(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = await _open_fibre_7(pilot, folder)
+        table = screen.query_one("#traces-table", DataTable)
+        first = [str(c) for c in table.get_row_at(0)]
+        if screen.wide:
+            assert first[2:6] == ["splice/bend", "0.21", "0.47", "0.34"]
+        else:
+            assert first[2:4] == ["splice/bend", "0.34"]
+        note = str(screen.query_one("#traces-note", Static).render())
+        assert "splice max 0.30 dB" in note and "splice or bend" in note
+        assert "Shipped" in note and "G.652.D" in note and "Ctrl+S" in note
+        await pilot.press("ctrl+s")  # LIB-TH-01 offered; its presets judge from now on
+        await pilot.pause(0.2)
+        await pilot.press("enter", "enter")  # the job, its link
+        await pilot.pause(0.2)
+        await pilot.press("escape")  # nothing saved
+        await pilot.pause()
+        note = str(screen.query_one("#traces-note", Static).render())
+        assert "Shipped" not in note and "the link's fusion splice limit" in note

@@ -54,7 +54,8 @@ def test_a_folder_goes_in_fibre_by_fibre_each_direction_kept(folder: Path) -> No
     lines = s.save_lines(set())
     assert lines[0].startswith("every fibre of the folder: 3")
     # all at 1550 nm: judged by G.652.D's 0.3 dB/km there (verdicts.py, from memory)
-    assert lines[1].endswith("0.3 dB/km")
+    assert lines[1].endswith("0.30 dB/km")
+    assert "shipped defaults, G.652.D" in lines[1]  # said plainly: no link judged (review C38)
     # a fibre opened from the folder's table keeps its direction: fibre 3 is B->A
     s.open_row(s.folder.rows[2])  # type: ignore[union-attr]
     assert not s.whole_folder and s.fibres(3)[0].key == (3, 1550.0, "B->A")

@@ -72,7 +72,7 @@ def files(tmp_path: Path) -> tuple[str, str]:
 def test_session_opens_a_pair_and_hands_the_break_to_fault(files):
     s = TraceSession()
     assert "pair: 4000" in s.open(*files)
-    assert [r[2] for r in s.rows(wide=True)] == ["splice", "end"]
+    assert [r[2] for r in s.rows(wide=True)] == ["splice/bend", "end"]  # no closure known
     hand = s.fault_handoff(None, [Closure("closure 3", 1480.0)])
     assert hand.distance_m == pytest.approx(4000.0, abs=2.0)
     assert hand.group_index == pytest.approx(1.4682)

@@ -107,6 +107,17 @@ class TracesScreen(Screen[None]):
     def wide(self) -> bool:
         return self.size.width >= 72
 
+    def _note(self, text: str) -> None:
+        """The line under the table (an event's verdict reason, the limits), with, while no
+        job's link judges, the line saying the limits are the shipped defaults."""
+        from fieldkit.traces.lines import defaults_notice
+
+        r = self.session.current
+        limits = r.limits if r is not None else self.session.settings.limits
+        notice = defaults_notice(limits, self.wide)
+        shown = "\n".join(terminal(t) for t in (text, notice) if t)
+        self.query_one("#traces-note", Static).update(shown)
+
     def _say(self, text: str, problem: bool = False) -> None:
         status = self.query_one("#traces-status", Static)
         status.update(terminal(text))
@@ -140,7 +151,7 @@ class TracesScreen(Screen[None]):
         self.selected = None
         self._say(summary)
         self._show()
-        self.query_one("#traces-note", Static).update(terminal(self.session.limits_summary()))
+        self._note(self.session.limits_summary())
         self.query_one("#traces-table", DataTable).focus()
 
     def _judge_by(self, link: Link | None = None, origin: str = "") -> bool:
@@ -186,6 +197,7 @@ class TracesScreen(Screen[None]):
             return
         self.query_one("#traces-plot", TracePlot).clear()
         self._say(f"{self.session.folder_counts()}; Enter on a fibre opens it")
+        self._note("")
         self._fill_table()
         self.query_one("#traces-table", DataTable).focus()
 
@@ -235,7 +247,7 @@ class TracesScreen(Screen[None]):
             if number != self.selected:
                 self.selected = number
                 self.query_one("#traces-plot", TracePlot).select_event(number)
-            self.query_one("#traces-note", Static).update(terminal(self.session.event_note(number)))
+            self._note(self.session.event_note(number))
 
     @on(DataTable.RowSelected, "#traces-table")
     def _row_selected(self, event: DataTable.RowSelected) -> None:
@@ -282,7 +294,7 @@ class TracesScreen(Screen[None]):
         if not self._judge_by(link, f"link {link.label!r} of job {job.name!r}"):
             return None
         self._show()
-        self.query_one("#traces-note", Static).update(terminal(self.session.limits_summary()))
+        self._note(self.session.limits_summary())
         return choice, job, link
 
     def _likely_link(self) -> tuple[str, str] | None:

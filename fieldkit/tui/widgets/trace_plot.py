@@ -22,6 +22,8 @@ from textual.binding import Binding
 from textual.message import Message
 from textual.widget import Widget
 
+from fieldkit.traces.lines import KIND_LABELS
+
 #: Braille dot bits by (row 0-3, column 0-1) within a cell (Unicode braille patterns).
 _BITS = np.array([[0x01, 0x08], [0x02, 0x10], [0x04, 0x20], [0x40, 0x80]], dtype=np.int32)
 
@@ -256,7 +258,8 @@ class TracePlot(Widget, can_focus=True):
         text = f"{v.cursor_m:.1f} m  {level:.2f} dB" if level is not None else ""
         if v.current is not None:
             m = v.marks[v.current]
-            text += f"  event {m.number} {m.kind}"
+            kind = KIND_LABELS["splice"] if m.kind == "splice" else m.kind  # a splice or a bend
+            text += f"  event {m.number} {kind}"
         return text
 
     # -- drawing -------------------------------------------------------------------------
