@@ -25,6 +25,7 @@ from fieldkit import safety
 from fieldkit.jobs.counting import (
     PRECEDENCE,
     Count,
+    Tally,
     current_results,
     link_tallies,
     open_items,
@@ -194,11 +195,14 @@ def _summary_section(job: Job, ctx: ReportContext, used: Used) -> Section:
     if count is None:
         used.not_tested = True
 
+    # One row per link with its verdict ("all" wavelengths), then one per wavelength with its
+    # own verdict: a wavelength row is never taken for the link's total, nor the link's
+    # verdict for one wavelength's.
     table = Table(
         [
             "Link",
-            "Verdict",
             "λ nm",
+            "Verdict",
             "Fibres",
             "Pass",
             "Fail",
@@ -206,7 +210,8 @@ def _summary_section(job: Job, ctx: ReportContext, used: Used) -> Section:
             "In doubt",
             "No limit",
         ],
-        numeric={2, 3, 4, 5, 6, 7, 8},
+        numeric={3, 4, 5, 6, 7, 8},
+        nowrap={0},
         caption="Links",
     )
     for link in job.links:
@@ -217,32 +222,14 @@ def _summary_section(job: Job, ctx: ReportContext, used: Used) -> Section:
             used.counts.add(v)
         rows = sorted(link_tallies(link).items())
         if not rows:
-            table.add([link.label, NOT_TESTED, "", "0", "", "", "", "", ""], "doubt")
-        for i, (nm, row) in enumerate(rows):
-            used.counts.update(
-                c
-                for c, n in (
-                    (Count.PASS, row.passed),
-                    (Count.FAIL, row.failed),
-                    (Count.REFERENCE_PROBLEM, row.reference_problems),
-                    (Count.IN_DOUBT, row.in_doubt),
-                    (Count.NO_LIMIT, row.no_limit),
-                )
-                if n
-            )
+            table.add([link.label, "", NOT_TESTED, "0", "", "", "", "", ""], "doubt")
+            continue
+        table.add([link.label, "all", verdict_word(v), *_tally_cells(t)], _mark(t))
+        for nm, row in rows:
+            used.counts.update(c for c, n in _tally_counts(row) if n)
             table.add(
-                [
-                    link.label if i == 0 else "",
-                    verdict_word(v) if i == 0 else "",
-                    fmt_nm(nm),
-                    str(row.tested),
-                    str(row.passed),
-                    str(row.failed),
-                    str(row.reference_problems),
-                    str(row.in_doubt),
-                    str(row.no_limit),
-                ],
-                "fail" if row.failed else "doubt" if row.in_doubt or row.reference_problems else "",
+                [link.label, fmt_nm(nm), verdict_word(_tally_verdict(row)), *_tally_cells(row)],
+                _mark(row),
             )
     if table.rows:
         sec.blocks.append(table)
@@ -259,6 +246,30 @@ def _summary_section(job: Job, ctx: ReportContext, used: Used) -> Section:
     elif job.links:
         sec.blocks.append(Paragraph("Open items: none."))
     return sec
+
+
+def _tally_counts(row: Tally) -> tuple[tuple[Count, int], ...]:
+    return (
+        (Count.PASS, row.passed),
+        (Count.FAIL, row.failed),
+        (Count.REFERENCE_PROBLEM, row.reference_problems),
+        (Count.IN_DOUBT, row.in_doubt),
+        (Count.NO_LIMIT, row.no_limit),
+    )
+
+
+def _tally_verdict(row: Tally) -> Count | None:
+    """The worst count present in ``row`` (the order of the link's verdict), None if empty."""
+    present = {c for c, n in _tally_counts(row) if n}
+    return next((c for c in PRECEDENCE if c in present), None)
+
+
+def _tally_cells(row: Tally) -> list[str]:
+    return [str(row.tested), *(str(n) for _c, n in _tally_counts(row))]
+
+
+def _mark(row: Tally) -> str:
+    return "fail" if row.failed else "doubt" if row.in_doubt or row.reference_problems else ""
 
 
 def _safety_lines(job: Job) -> list[str]:

@@ -59,7 +59,8 @@ def local_day(moment: datetime, ctx: ReportContext) -> date:
 
 
 def zone_words(job_times: list[datetime], ctx: ReportContext) -> str:
-    """``local time, CET (UTC+01:00)`` for the zone(s) the job's times fall in."""
+    """``local time, CET (UTC+01:00)`` for the zone(s) the job's times fall in;
+    ``UTC (the machine's time zone)`` where that is UTC."""
     seen: dict[str, str] = {}
     for moment in job_times:
         shown = local(moment, ctx)
@@ -76,6 +77,8 @@ def zone_words(job_times: list[datetime], ctx: ReportContext) -> str:
         f"{name} ({off})" if off and off != name and name != "UTC" else name
         for name, off in seen.items()
     ]
+    if parts == ["UTC"]:  # "local time, UTC" read as two zones
+        return "UTC (the machine's time zone)"
     return "local time, " + " and ".join(parts)
 
 

@@ -46,7 +46,7 @@ dl.facts dt { font-weight: bold; } dl.facts dd { margin: 0; }
 table { border-collapse: collapse; width: 100%; margin: .2em 0 .4em; font-size: 7.5pt; }
 caption { text-align: left; font-weight: bold; font-size: 8.5pt; padding: .1em 0; }
 th, td { border: 1px solid #999; padding: 0 .3em; text-align: left; vertical-align: top;
-         overflow-wrap: anywhere; }
+         overflow-wrap: break-word; word-break: normal; hyphens: manual; }
 th { background: #eee; overflow-wrap: normal; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 td.nowrap { white-space: nowrap; }

@@ -1,0 +1,53 @@
+"""The customer report on the demo backbone (fieldkit.jobs.demo: link LIB-TH-01, 12 fibres at
+1310 nm all passing, fibre 7 failing at 1550 nm): the Links table gives each wavelength its
+own verdict and the link's on its own row (review A9); the times line says plainly which zone
+(C40); the HTML never breaks a word to fit a cell (B18).
+"""
+
+from __future__ import annotations
+
+import re
+from datetime import UTC
+from zoneinfo import ZoneInfo
+
+from fieldkit.jobs.demo import build, local_day_start
+from fieldkit.jobs.ids import now
+from fieldkit.reports import ReportContext, export
+
+
+def _backbone():  # type: ignore[no-untyped-def]
+    return next(j for j in build(local_day_start(now())) if j.id == "de30000000000001")
+
+
+def _links_rows(md: str) -> list[list[str]]:
+    start = md.index("| Link |")
+    rows = []
+    for line in md[start:].splitlines()[2:]:
+        if not line.startswith("|"):
+            break
+        rows.append([c.strip() for c in line.strip("|").split("|")])
+    return rows
+
+
+def test_links_table_gives_each_wavelength_its_verdict_and_the_link_its_own_row() -> None:
+    md = export(_backbone(), "md", ReportContext(tz=UTC))
+    rows = _links_rows(md)
+    by_nm = {r[1]: r for r in rows}
+    assert set(by_nm) == {"all", "1310", "1550"}
+    assert all(r[0] == "LIB-TH-01" for r in rows)  # every row names its link
+    assert by_nm["all"][2] == "FAIL"  # the link: one fibre fails at 1550 nm
+    assert by_nm["1310"][2] == "PASS"  # 12 of 12 pass at 1310 nm
+    assert by_nm["1550"][2] == "FAIL"
+    assert by_nm["1550"][5] == "1"  # the failing fibre counted on its wavelength
+
+
+def test_times_line_says_which_zone() -> None:
+    utc = export(_backbone(), "md", ReportContext(tz=UTC))
+    assert "**Times:** UTC (the machine's time zone)" in utc and "local time, UTC" not in utc
+    berlin = export(_backbone(), "md", ReportContext(tz=ZoneInfo("Europe/Berlin")))
+    assert re.search(r"\*\*Times:\*\* local time, CES?T \(UTC\+0[12]:00\)", berlin)
+
+
+def test_html_cells_break_no_word() -> None:
+    html = export(_backbone(), "html", ReportContext(tz=UTC))
+    assert "overflow-wrap: anywhere" not in html and "word-break: break-all" not in html
