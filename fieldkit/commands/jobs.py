@@ -429,6 +429,7 @@ def run_show(args: argparse.Namespace) -> int:
     from fieldkit.jobs.counting import open_items
     from fieldkit.jobs.reports import fmt_time, job_summary
     from fieldkit.jobs.trace_summary import link_traces
+    from fieldkit.text.words import counted
 
     _store, job = _job(args)
     summary = job_summary(job)
@@ -476,7 +477,8 @@ def run_show(args: argparse.Namespace) -> int:
             print("  " + ", ".join(terminal(f) for f in facts if f))
         rows = [r for r in summary if r.link_id == link.id]
         for r in rows:
-            print(f"  {r.wavelength_nm:g} nm: {r.tested} fibres tested: {r.tally.words()}")
+            tested = counted(r.tested, "fibre")
+            print(f"  {r.wavelength_nm:g} nm: {tested} tested: {r.tally.words()}")
         for row in link_traces(link):
             for line in row.lines():
                 print(f"  {line}")
@@ -675,7 +677,9 @@ class _Progress:
 
 
 def run_today(args: argparse.Namespace) -> int:
+    from fieldkit.jobs.counting import totals_tally
     from fieldkit.jobs.today import day_summary
+    from fieldkit.text.words import counted
 
     store = store_of(args)
     summary = day_summary(store, _day(args.date))
@@ -684,11 +688,12 @@ def run_today(args: argparse.Namespace) -> int:
         print_json(summary.as_dict())
         return 0
     t = summary.totals()
+    # The one counting rule's words: the parts add up to the fibres tested.
+    tally = totals_tally(t)
     print(
-        f"{summary.day.isoformat()}: {t['jobs']} jobs ({t['open_jobs']} open), "
-        f"{t['results_today']} results today; fibres: {t['passed']} passed, "
-        f"{t['failed']} failed, {t['reference_problems']} reference problems, "
-        f"{t['no_limit']} without limit, {t['in_doubt']} in doubt"
+        f"{summary.day.isoformat()}: {counted(t['jobs'], 'job')} ({t['open_jobs']} open), "
+        f"{counted(t['results_today'], 'result')} today; "
+        f"{counted(tally.tested, 'fibre')} tested: {tally.words()}"
     )
     for job in summary.jobs:
         print(f"\n{terminal(job.name)} ({job.status}) {job.id}")

@@ -84,6 +84,50 @@ def fibre_count(counts: Iterable[Count]) -> Count:
     raise ValueError("a fibre needs at least one result")
 
 
+#: The order counts are listed in, everywhere (a count's words: :func:`count_words`).
+ORDER: tuple[Count, ...] = (
+    Count.PASS,
+    Count.FAIL,
+    Count.REFERENCE_PROBLEM,
+    Count.IN_DOUBT,
+    Count.NO_LIMIT,
+)
+
+#: Each count's noun, one and many; "pass", "fail", "in doubt" and "no limit" do not change.
+_NOUNS: dict[Count, tuple[str, str]] = {
+    Count.PASS: ("pass", "pass"),
+    Count.FAIL: ("fail", "fail"),
+    Count.REFERENCE_PROBLEM: ("reference problem", "reference problems"),
+    Count.IN_DOUBT: ("in doubt", "in doubt"),
+    Count.NO_LIMIT: ("no limit", "no limit"),
+}
+#: Where columns are scarce (the meter at 44 columns): still words, never "ref?".
+_SHORT_NOUNS: dict[Count, tuple[str, str]] = {
+    **_NOUNS,
+    Count.REFERENCE_PROBLEM: ("bad reference", "bad references"),
+}
+
+_FIELDS: dict[Count, str] = {
+    Count.PASS: "passed",
+    Count.FAIL: "failed",
+    Count.REFERENCE_PROBLEM: "reference_problems",
+    Count.NO_LIMIT: "no_limit",
+    Count.IN_DOUBT: "in_doubt",
+}
+
+
+def count_words(count: Count, n: int, *, short: bool = False) -> str:
+    """``n`` fibres of a count, the noun agreeing: "1 reference problem", "2 reference problems",
+    "5 in doubt"; ``short``: "1 bad reference"."""
+    one, many = (_SHORT_NOUNS if short else _NOUNS)[count]
+    return f"{n} {one if n == 1 else many}"
+
+
+def totals_tally(totals: dict[str, int]) -> Tally:
+    """A :class:`Tally` from counts stored by field name (a day's totals, a JSON row)."""
+    return Tally(**{name: totals.get(name, 0) for name in _FIELDS.values()})
+
+
 @dataclass
 class Tally:
     """Fibres counted at one wavelength (or over several): each fibre in exactly one count."""
@@ -99,33 +143,31 @@ class Tally:
         return self.passed + self.failed + self.reference_problems + self.no_limit + self.in_doubt
 
     def add(self, count: Count, n: int = 1) -> None:
-        field = {
-            Count.PASS: "passed",
-            Count.FAIL: "failed",
-            Count.REFERENCE_PROBLEM: "reference_problems",
-            Count.NO_LIMIT: "no_limit",
-            Count.IN_DOUBT: "in_doubt",
-        }[count]
+        field = _FIELDS[count]
         setattr(self, field, getattr(self, field) + n)
 
     def merge(self, other: Tally) -> None:
         for name in ("passed", "failed", "reference_problems", "no_limit", "in_doubt"):
             setattr(self, name, getattr(self, name) + getattr(other, name))
 
-    def words(self, *, short: bool = False) -> str:
-        """``3 pass, 1 fail, 1 reference problem`` (zero counts other than pass/fail left out;
-        ``short``: the meter's line, where "no limit" is said beside the wavelength)."""
-        parts = [f"{self.passed} pass", f"{self.failed} fail"]
-        names = (
-            (self.reference_problems, "bad ref" if short else "reference problem", "problems"),
-            (self.in_doubt, "in doubt", None),
-            (0 if short else self.no_limit, "no limit", None),
-        )
-        for n, one, plural in names:
-            if n:
-                many = one if plural is None or short else one.replace("problem", plural)
-                parts.append(f"{n} {one if n == 1 else many}")
-        return ", ".join(parts)
+    def of(self, count: Count) -> int:
+        """How many fibres are counted under ``count``."""
+        return int(getattr(self, _FIELDS[count]))
+
+    def parts(self, *, short: bool = False, zeros: bool = True) -> list[tuple[Count, str]]:
+        """Each count with its words, in :data:`ORDER` (``1 reference problem``, ``5 in doubt``):
+        the parts add up to :attr:`tested`. ``zeros=False`` leaves out the zero counts (what is
+        left still adds up); ``short``: "bad reference" where columns are scarce."""
+        return [
+            (count, count_words(count, self.of(count), short=short))
+            for count in ORDER
+            if zeros or self.of(count)
+        ]
+
+    def words(self, *, short: bool = False, zeros: bool = True, sep: str = ", ") -> str:
+        """``3 pass, 1 fail, 1 reference problem, 0 in doubt, 2 no limit``: every count, so the
+        parts add up to the fibres tested (see :meth:`parts`)."""
+        return sep.join(words for _, words in self.parts(short=short, zeros=zeros))
 
     def as_dict(self) -> dict[str, int]:
         return {

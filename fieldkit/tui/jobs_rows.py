@@ -9,12 +9,12 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Protocol
 
-from rich.console import RenderableType
 from rich.text import Text
 
 from fieldkit.text.escape import terminal
 from fieldkit.text.words import counted, fmt_time
 from fieldkit.tui import keys
+from fieldkit.tui.wrapped import Wrapped, together
 
 if TYPE_CHECKING:
     from collections.abc import Sequence
@@ -66,12 +66,12 @@ def prompt(s: JobSummary) -> str:
     one line, cut with "…" where it is narrower: wrapped, they read as other rows; the details
     beside show them whole)."""
     mark = "✓" if s.status == "done" else "•"
-    failed = f", {s.failed_count} failed" if s.failed_count else ""
+    failed = f", {s.failed_count} fail" if s.failed_count else ""  # the count's one word
     site = f" · {terminal(s.site)}" if s.site else ""
     return f"{mark} {terminal(s.name)}\n  {counted(s.result_count, 'result')}{failed}{site}"
 
 
-def head(job: Headed) -> RenderableType:
+def head(job: Headed) -> Wrapped:
     text = Text()
     text.append(terminal(job.name), style="bold")
     text.append(f"  [{job.status}]", style="green" if job.status == "done" else "yellow")
@@ -83,7 +83,8 @@ def head(job: Headed) -> RenderableType:
         if value:
             text.append(f"\n{label}: ", style="dim")
             text.append(terminal(value))
-    text.append(f"\nId {job.id} · updated {fmt_time(job.updated_at)}", style="dim")
+    # The date and its time are never parted by a wrap (Wrapped below).
+    text.append(f"\nId {job.id} · updated {together(fmt_time(job.updated_at))}", style="dim")
     if job.read_only:
         text.append(f"\n{job.read_only}", style="bold yellow")
-    return text
+    return Wrapped(text)

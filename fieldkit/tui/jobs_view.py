@@ -13,6 +13,7 @@ from rich.console import Group, RenderableType
 from rich.table import Table
 from rich.text import Text
 
+from fieldkit.jobs.counting import Count
 from fieldkit.jobs.reports import (
     failures,
     fmt_db,
@@ -34,26 +35,36 @@ from fieldkit.tui.jobs_rows import head as head
 from fieldkit.tui.jobs_rows import no_job_head as no_job_head
 from fieldkit.tui.jobs_rows import plain as plain
 from fieldkit.tui.jobs_rows import prompt as prompt
+from fieldkit.tui.wrapped import Wrapped, together
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job, Link
 
 
-def summary_table(job: Job) -> RenderableType:
+#: How a count is coloured where it is not zero (the words say it without colour too).
+COUNT_STYLES: dict[Count, str] = {
+    Count.PASS: "green",
+    Count.FAIL: "bold red",
+    Count.REFERENCE_PROBLEM: "bold yellow",
+    Count.IN_DOUBT: "yellow",
+    Count.NO_LIMIT: "",
+}
+
+
+def summary_table(job: Job) -> RenderableType | Wrapped:
     """Per link and wavelength, in lines that wrap at 44 columns instead of a wide table."""
     rows = job_summary(job)
     if not rows:
         return plain("No results yet.", "dim")
     text = Text("Fibres per link and wavelength", style="bold")
     for r in rows:
+        # Every count by the one rule (fieldkit.jobs.counting): the parts add up to the tested.
         text.append(f"\n{terminal(r.link_label)} {fmt_nm(r.wavelength_nm)} nm: ")
-        text.append(f"{r.tested} tested, {r.passed} pass")
-        text.append(f", {r.failed} fail", style="bold red" if r.failed else "")
-        if r.no_limit:
-            text.append(f", {r.no_limit} no limit")
-        if r.in_doubt:
-            text.append(f", {r.in_doubt} in doubt", style="yellow")
-    return text
+        text.append(f"{r.tested} tested")
+        for count, words in r.tally.parts():
+            text.append(", ")
+            text.append(together(words), COUNT_STYLES[count] if r.tally.of(count) else "")
+    return Wrapped(text)
 
 
 def failures_text(job: Job) -> RenderableType:
@@ -162,13 +173,14 @@ def traces_text(link: Link, width: int = DETAIL_WIDTH) -> Text | None:
     return text
 
 
-def notes_text(job: Job) -> RenderableType:
+def notes_text(job: Job) -> RenderableType | Wrapped:
     text = Text("\nNotes", style="bold")
     if not job.notes:
         text.append("\nnone yet", style="dim")
     for note in job.notes:
-        text.append(f"\n{fmt_time(note.at)}", style="dim")
+        text.append(f"\n{together(fmt_time(note.at))}", style="dim")
         if note.by:
             text.append(f" {terminal(note.by)}", style="dim")
-        text.append(f"\n  {terminal(note.text, multiline=True)}")
-    return text
+        body = terminal(note.text, multiline=True).replace("\n", "\n  ")
+        text.append(f"\n  {body}")
+    return Wrapped(text, hang=0)  # a wrapped note line keeps the note's indent

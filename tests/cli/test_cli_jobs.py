@@ -139,3 +139,22 @@ def test_import_refuses_hostile_file_and_writes_nothing(tmp_path: Path) -> None:
     proc = run("jobs", "import", str(bad), data=tmp_path / "d")
     assert proc.returncode == 2 and "nothing imported" in proc.stderr
     assert not (tmp_path / "d").exists()
+
+
+def test_today_and_show_list_every_count_in_words_that_agree(tmp_path: Path) -> None:
+    # The demo day (tests/unit/test_jobs_today.py, checked by hand): 78 fibres, 70 pass,
+    # 2 fail, 1 reference problem, 5 in doubt, 0 no limit (review A1, C39).
+    demo = tmp_path / "demo"
+    ok("demo", "--no-ui", data=demo)
+    head = ok("jobs", "today", data=demo).splitlines()[0]
+    assert head.endswith(
+        "78 fibres tested: 70 pass, 2 fail, 1 reference problem, 5 in doubt, 0 no limit"
+    ), head
+    assert "reference problems" not in head and "4 jobs (3 open)" in head
+    listing = json.loads(ok("jobs", "list", "--json", data=demo))
+    feed = next(j for j in listing["jobs"] if j["name"].startswith("North Reservoir"))
+    shown = ok("jobs", "show", feed["id"], data=demo)
+    assert (
+        "1550 nm: 6 fibres tested: 4 pass, 1 fail, 1 reference problem, 0 in doubt, 0 no limit"
+        in shown
+    ), shown

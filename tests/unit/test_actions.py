@@ -196,7 +196,7 @@ def test_one_counting_rule_for_a_fail_and_a_negative_loss_on_one_fibre() -> None
     assert fibre_count([a, b]) is Count.FAIL
     tally = Tally()
     tally.add(fibre_count([a, b]))
-    assert tally.words(short=True) == "0 pass, 1 fail"
+    assert tally.words(short=True) == "0 pass, 1 fail, 0 bad references, 0 in doubt, 0 no limit"
     assert fibre_count([cell_count(1.0, 2.0), cell_count(-0.1, 2.0)]) is Count.REFERENCE_PROBLEM
     assert cell_count(1.0, 2.0, in_doubt=True) is Count.IN_DOUBT
     assert cell_count(1.0, None) is Count.NO_LIMIT

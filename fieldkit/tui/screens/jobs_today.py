@@ -21,11 +21,14 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
+from fieldkit.jobs.counting import Count, count_words, totals_tally
 from fieldkit.jobs.models import now
 from fieldkit.jobs.store import StoreError, local_date
 from fieldkit.jobs.today import DaySummary, counted, day_summary
 from fieldkit.text.escape import terminal
 from fieldkit.tui import keys
+from fieldkit.tui.jobs_view import COUNT_STYLES
+from fieldkit.tui.wrapped import Wrapped, together
 
 
 class DayJobs(OptionList):
@@ -121,23 +124,25 @@ class EndOfDayScreen(ModalScreen[str | None]):
         self.summary = summary
         t = summary.totals()
         self.query_one("#eod-title", Label).update(f"End of day {self._day.isoformat()}")
-        totals = Text()
-        totals.append(
+        totals = Text(
             f"{counted(t['jobs'], 'job')} ({t['open_jobs']} open), "
             f"{counted(t['results_today'], 'result')} today\n"
         )
-        totals.append(f"{t['passed']} pass", "green")
-        totals.append(" · ")
-        totals.append(f"{t['failed']} fail", "bold red" if t["failed"] else "")
-        totals.append(f" · {t['no_limit']} no limit · ")
-        totals.append(f"{t['in_doubt']} in doubt", "yellow" if t["in_doubt"] else "")
-        totals.append(f" · {counted(t['open_items'], 'open item')}")
-        self.query_one("#eod-totals", Static).update(totals)
+        tally = totals_tally(t)
+        # Every count by the one rule, so the parts add up to the fibres tested; a count's
+        # number and words are never parted by a wrap ("5 in doubt").
+        totals.append(f"{counted(tally.tested, 'fibre')} tested: ")
+        for i, (count, words) in enumerate(tally.parts()):
+            n = tally.of(count)
+            totals.append(" · " if i else "")
+            totals.append(together(words), COUNT_STYLES[count] if n else "")
+        totals.append(f"\n{counted(t['open_items'], 'open item')}")
+        self.query_one("#eod-totals", Static).update(Wrapped(totals))
         jobs = self.query_one("#eod-jobs", OptionList)
         jobs.clear_options()
         for job in summary.jobs:
             mark = "✓" if job.status == "done" else "•"
-            fail = f", {job.failed} FAIL" if job.failed else ""
+            fail = f", {count_words(Count.FAIL, job.failed)}" if job.failed else ""
             results = counted(job.results_today, "result")
             # Two lines, each cut with "…" where narrow: the counts never fall off the end.
             jobs.add_option(Option(f"{mark} {terminal(job.name)}\n  {results}{fail}", id=job.id))
@@ -154,7 +159,8 @@ class EndOfDayScreen(ModalScreen[str | None]):
                 detail.append(f"\n  ✗ {terminal(failure)}", "red")
             for item in job.open_items:
                 detail.append(f"\n  • {terminal(item)}")
-            sections.append(Static(detail, classes="eod-job"))
+            # A wrapped failure or item goes on under its own text, not at column 1.
+            sections.append(Static(Wrapped(detail), classes="eod-job"))
         await items.mount_all(sections)
         items.scroll_home(animate=False)
         jobs.focus()  # Down and PgDn scroll the details even on a day without jobs
