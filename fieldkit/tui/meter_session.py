@@ -35,6 +35,7 @@ from fieldkit.calc.units import InputError
 from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count
 from fieldkit.jobs.models import now, result_in_doubt
 from fieldkit.jobs.today import counted
+from fieldkit.text.layout import NBSP
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Link
@@ -120,6 +121,12 @@ def meter_tallies(
     for (w, _fibre), counts in per_fibre.items():
         out[w].add(fibre_count(counts))
     return out
+
+
+def together(words: str) -> str:
+    """``words`` a wrap must not part (no-break spaces; the summary is shown through
+    :class:`fieldkit.tui.wrapped.Wrapped`)."""
+    return words.replace(" ", NBSP)
 
 
 def fit(width: int, *choices: str) -> str:
@@ -747,7 +754,8 @@ class MeterSession:
                 line += " from the budget"
         # The note has two or three rows: a drifted reference and the warnings about this one
         # come first, so they are never the part cut off.
-        lines = []
+        # Readings mean handling live cords all session: the caution stays, first (42 columns).
+        lines = [f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"]
         if current.in_doubt:
             lines.append("This reference drifted at its recheck: set a new one and retest.")
         lines += [f"⚠ {w}" for w in warnings]
@@ -920,31 +928,37 @@ class MeterSession:
         for w in self.wavelengths:
             s = summaries.get(w)
             limit = limits[w]
-            limit_words = f"≤{limit:.2f}" if limit is not None else "(no limit)"
+            limit_words = f"limit {limit:.2f} dB" if limit is not None else "(no limit)"
             if s is None:
                 lines.append(f"{w:g} nm {limit_words}: no readings")
                 continue
-            counts = tallies[w].words(short=True)
-            tally = f"{s.fibres}/{self.fibres}, {counts}"
-            lines.append(
-                fit(
-                    width,
-                    f"{w:g} nm {limit_words}: {tally}",
-                    f"{w:g} {limit_words}: {tally}",
-                    f"{w:g} {limit_words} {s.fibres}/{self.fibres}: " + counts.replace(",", ""),
-                    f"{w:g} {s.fibres}/{self.fibres}: " + counts.replace(",", ""),
-                    # The zero counts go last: what is there still shows.
-                    f"{w:g} {s.fibres}/{self.fibres}: "
-                    + " ".join(p for p in counts.split(", ") if not p.startswith("0 ")),
-                    f"{w:g}: {tally}",
-                )
+            tally = tallies[w]
+            tested = f"{s.fibres}/{self.fibres}"
+            # Every count (fieldkit.jobs.counting), its number and words kept together; where
+            # the line is narrow the zero counts go (what is left still adds up), and where it
+            # is narrower still the counts go on a line of their own.
+            every = ", ".join(together(words) for _, words in tally.parts())
+            some = ", ".join(together(words) for _, words in tally.parts(short=True, zeros=False))
+            one_line = fit(
+                width,
+                f"{w:g} nm {limit_words}: {tested}, {every}",
+                f"{w:g} {limit_words} {tested}: {some}",
+                "",
             )
-            worst = [f"{f} {loss:.2f}" for f, loss in s.worst]
-            while len(worst) > 1 and width and len("  worst fibre " + ", ".join(worst)) > width:
+            if one_line:
+                lines.append(one_line)
+            else:
+                lines.append(f"{w:g} nm {limit_words}: {tested}")
+                lines.append(f"  {some}")
+            # A negative loss is a reference problem, not a low loss: never among the worst.
+            worst = [f"fibre {f} {loss:.2f} dB" for f, loss in s.worst if loss >= 0]
+            while len(worst) > 1 and width and len("  worst: " + ", ".join(worst)) > width:
                 worst.pop()
-            lines.append("  worst fibre " + ", ".join(worst))
-        # Whether the readings are safe in a job matters more than the reference list.
-        lines.append(self.save_words(open_key))
+            if worst:
+                lines.append("  worst: " + ", ".join(together(x) for x in worst))
+        # Whether the readings are safe in a job matters most: first, so a phone terminal's
+        # five rows show it however many lines the counts take.
+        lines.insert(0, self.save_words(open_key))
         stamp = at or now()
         refs = []
         for (w, d), current in sorted(self.refs.items()):
@@ -953,7 +967,8 @@ class MeterSession:
             minutes = int((stamp - current.set_at).total_seconds() // 60)
             arrow = "" if len(self.directions) == 1 else (" →" if d == "A->B" else " ←")
             doubt = " DRIFTED" if current.in_doubt else ""
-            refs.append(f"  {w:g}{arrow} {current.level_dbm:.2f} dBm, {minutes} min{doubt}")
+            age = together(f"set {minutes} min ago")
+            refs.append(f"  {w:g}{arrow} {current.level_dbm:.2f} dBm, {age}{doubt}")
         lines.append("References:" if refs else "References: none set")
         lines += refs
         return lines

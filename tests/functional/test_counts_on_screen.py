@@ -108,3 +108,29 @@ async def test_jobs_detail_counts_add_up(tmp_path: Path, size) -> None:
         stamp = next(line for line in head if "updated" in line or "UTC" in line)
         assert re.search(r"\d{4}-\d\d-\d\d \d\d:\d\d", " ".join(head))
         assert not re.search(r"\d{4}-\d\d-\d\d$", stamp)
+
+
+async def test_meter_at_44_columns_counts_readings_without_a_limit(tmp_path: Path) -> None:
+    # Review A1's case: no limit, Ref -7.0 dBm, readings -7.5, -12 and -6.8 dBm: losses 0.5 and
+    # 5.0 dB (no limit to judge them) and -0.2 dB (a reference problem: more light than the
+    # reference). All three are counted, the "(no limit)" stays, the units are said (A11).
+    from fieldkit.tui.screens.meter import MeterScreen
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="meter")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, MeterScreen)
+        keys = [*"-7.0", "enter", *"-7.5", "enter", *"-12", "enter", *"-6.8", "enter"]
+        await pilot.press(*keys)
+        await screen.saves_settled()
+        await pilot.pause()
+        summary = screen.query_one("#meter-summary")
+        lines = shown_lines(summary)
+        flat = " ".join(line.strip() for line in lines)
+        assert "1310 nm (no limit): 3/12" in flat, lines
+        assert "1 bad reference, 2 no limit" in flat, lines
+        assert "worst: fibre 2 5.00 dB" in flat and "-0.20" not in flat, lines
+        # The caution stays once the reference is set (A3), whole within 44 columns.
+        note = shown_lines(screen.query_one("#reference-note"))
+        assert note[0].strip() == "⚠ Invisible light: never look into a fibre", note

@@ -101,9 +101,14 @@ async def test_a_144_fibre_cable_at_two_wavelengths_lands_in_the_job_and_its_csv
         assert keystrokes_beyond_digits == 288  # one Enter per reading, nothing else
 
         summary = str(screen.query_one("#meter-summary", Static).render())
-        assert "1310 nm ≤2.00: 144/144, 143 pass, 0 fail, 1 bad ref" in summary
-        assert "1550 nm ≤2.00: 144/144, 143 pass, 1 fail" in summary
-        assert "worst fibre 100 3.50" in summary
+        # Every count (they add up to 144) and the limit with its unit (review A1, A11).
+        flat = " ".join(summary.split())
+        assert (
+            "1310 nm limit 2.00 dB: 144/144, 143 pass, 0 fail, 1 reference problem, "
+            "0 in doubt, 0 no limit" in flat
+        ), flat
+        assert "1550 nm limit 2.00 dB: 144/144, 143 pass, 1 fail, 0 reference problems" in flat
+        assert "worst: fibre 100 3.50 dB" in flat
 
     job = store.load(job_id)
     link = job.link(link_id)
@@ -350,7 +355,7 @@ async def test_budget_limit_by_method_and_both_directions(isolated_dirs: dict[st
         assert grid.get_cell_at((1, 1)).plain.strip() == "4.10✗"
         assert grid.get_cell_at((1, 3)).plain.strip() == "3.80✗"
         summary = str(screen.query_one("#meter-summary").render())
-        assert "1310 nm ≤3.85: 2/6, 1 pass, 1 fail" in summary
+        assert "1310 nm limit 3.85 dB: 2/6, 1 pass, 1 fail, 0 reference problems" in summary
     link = store.load(job_id).link(link_id)
     assert {r.method for r in link.results} == {"two-cord"}
     assert all(r.limit_db == pytest.approx(3.85, abs=1e-9) for r in link.results)

@@ -72,7 +72,12 @@ async def test_invisible_light_caution_beside_the_reference_prompt(
         assert note.region.height >= 2 and note.region.bottom <= size[1] - 1
         screen.query_one("#reference", Input).value = "-7.1"
         await pilot.pause()
-        assert safety.INVISIBLE_LIGHT_SHORT not in str(note.render())
+        # Review A3: readings mean live cords all session; the caution stays once a
+        # reference is set, first in the note (never the row cut off), and whole.
+        lines = str(note.render()).splitlines()
+        assert lines[0] == f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"
+        assert len(lines[0]) <= note.content_region.width
+        assert note.region.height >= 2
 
 
 async def test_phone_terminal_grid_has_the_rows(isolated_dirs: dict[str, Path]) -> None:
@@ -84,13 +89,14 @@ async def test_phone_terminal_grid_has_the_rows(isolated_dirs: dict[str, Path]) 
         # The key hint is one line that fits: 44 columns less the padding.
         assert str(message.render()) == KEYS_HINT_NARROW
         assert message.region.height == 1 and len(KEYS_HINT_NARROW) <= message.region.width - 2
-        # Header + 6 fibres before a reference is set (it was header + 5), and one more row
-        # once the reference prompt gives way to a one-line method note.
+        # Header + 6 fibres before a reference is set (it was header + 5); the same once the
+        # reference prompt gives way to the method note (the invisible-light caution stays
+        # above it: review A3).
         assert grid.region.height >= 7
         screen.query_one("#reference", Input).value = "-7.1"
         await pilot.pause()
         assert "one-cord: 2 of 2 end connections counted" in _text(screen, "#reference-note")
-        assert grid.region.height >= 8
+        assert grid.region.height >= 7
         # A verdict fits the one line: "fibre 1 1310 A→B: 0.40 dB (no limit)".
         screen.query_one("#limit", Input).value = "1.5"
         screen.query_one("#reading", Input).focus()
@@ -158,7 +164,7 @@ async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
     isolated_dirs: dict[str, Path],
 ) -> None:
     # The summary's lines are built and checked on the model (tests/unit/test_meter_session.py);
-    # here: its five rows at 44x22 show both wavelengths' worst fibres and the save line.
+    # here: its five rows at 44x22 show the save line and both wavelengths' counts.
     from fieldkit.actions.meter import ReferenceDetails
 
     async with _app(isolated_dirs).run_test(size=(44, 22)) as pilot:
@@ -182,11 +188,14 @@ async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
         lines = str(summary.render()).splitlines()
         visible = lines[: summary.region.height]
         assert all(len(line) <= summary.content_region.width for line in visible), visible
-        assert visible[0].startswith("1310") and "24/24" in visible[0]
-        assert visible[1] == "  worst fibre 24 2.40, 23 2.30, 22 2.20"
-        assert visible[2].startswith("1550") and "1 bad ref" in visible[2]
-        assert visible[3].startswith("  worst fibre 23 2.30")
-        assert "choose a job" in visible[4]
+        # The save line first, then both wavelengths' counts and worst fibre (with units;
+        # the negative reading, a reference problem, not among the worst: review A11).
+        assert "choose a job" in visible[0]
+        assert visible[1] == "1310 (no limit) 24/24: 24 no limit"
+        assert visible[2] == "  worst: fibre 24 2.40 dB"
+        assert visible[3] == "1550 nm (no limit): 24/24"
+        assert visible[4] == "  1 bad reference, 23 no limit"
+        assert "worst: fibre 23 2.30 dB" in lines[5]
 
 
 async def test_job_budget_limit_and_replace_hint_fit_44_columns(
@@ -238,10 +247,11 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
         note = screen.query_one("#reference-note", Static)
         lines = str(note.render()).splitlines()
         assert lines == [
+            "⚠ Invisible light: never look into a fibre",  # all session (review A3)
             "two-cord: 1 of 2 end connections counted",
             "limit 3.85 dB: budget less 1 connection",
         ]
-        assert note.region.height == 2
+        assert note.region.height == 3
         assert all(len(line) <= note.content_region.width for line in lines)
         reading = screen.query_one("#reading", Input)
         reading.focus()

@@ -11,6 +11,7 @@ from datetime import timedelta
 
 import pytest
 
+from fieldkit import safety
 from fieldkit.actions.meter import (
     Applied,
     ClearReading,
@@ -24,6 +25,7 @@ from fieldkit.actions.meter import (
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError
 from fieldkit.jobs.models import Job, now
+from fieldkit.text.layout import NBSP
 from fieldkit.tui.meter_session import (
     GridColumn,
     MeterSession,
@@ -56,16 +58,20 @@ def test_summary_of_two_wavelengths_fits_a_phone_terminal() -> None:
     s = _session()
     _type_column(s, 0, [f / 10 for f in range(1, 25)], -7.0)  # 0.10 .. 2.40 dB
     _type_column(s, 1, [f / 10 for f in range(1, 24)] + [-0.2], -7.0)  # fibre 24 negative
-    lines = s.summary_lines(width=42, open_key="Ctrl+O")
+    lines = [line.replace(NBSP, " ") for line in s.summary_lines(width=42, open_key="Ctrl+O")]
     assert all(len(line) <= 42 for line in lines), lines
-    # No limit typed: every fibre is tested, none passes or fails; the negative one at 1550 nm
-    # is counted as a reference problem ("bad ref"), never a pass.
-    assert lines[0] == "1310 nm (no limit): 24/24, 0 pass, 0 fail"
-    assert lines[1] == "  worst fibre 24 2.40, 23 2.30, 22 2.20"
-    assert lines[2].startswith("1550") and "24/24" in lines[2] and "1 bad ref" in lines[2]
-    assert lines[3] == "  worst fibre 23 2.30, 22 2.20, 21 2.10"
-    assert lines[4] == "Ctrl+O: choose a job to save into"
-    assert lines[5] == "References:"
+    # No limit typed: every fibre is tested, none passes or fails, all 24 are "no limit" (the
+    # parts add up, review A1); the negative one at 1550 nm is a reference problem ("bad
+    # reference": still a word where columns are scarce, review C33), never a pass.
+    assert lines[1] == "1310 (no limit) 24/24: 24 no limit"
+    assert lines[2] == "  worst: fibre 24 2.40 dB"  # a second would not fit 42
+    # Too long for one line of 42: the counts go on their own line, "(no limit)" kept.
+    assert lines[3:5] == ["1550 nm (no limit): 24/24", "  1 bad reference, 23 no limit"]
+    # Review A11: the negative reading (fibre 24) is not among the worst.
+    assert lines[5] == "  worst: fibre 23 2.30 dB"
+    assert lines[6] == "References:"
+    assert lines[0] == "Ctrl+O: choose a job to save into"  # first: never scrolled off
+    assert lines[7].endswith("-7.00 dBm, set 0 min ago")
 
 
 def test_summary_counts_against_a_typed_limit() -> None:
@@ -73,11 +79,31 @@ def test_summary_counts_against_a_typed_limit() -> None:
     s.set_limit("1.5")
     _type_column(s, 0, [0.4, 1.6, -0.1, 1.5], -7.2)
     # 0.4 and 1.5 are within 1.5 dB (at the limit passes); 1.6 fails; -0.1 is a bad reference.
-    lines = s.summary_lines(width=0, open_key="Ctrl+O")
-    assert lines[0] == "1310 nm ≤1.50: 4/4, 2 pass, 1 fail, 1 bad ref"
-    assert lines[1] == "  worst fibre 2 1.60, 4 1.50, 1 0.40"
-    narrow = s.summary_lines(width=42, open_key="Ctrl+O")
-    assert narrow[0] == "1310 ≤1.50: 4/4, 2 pass, 1 fail, 1 bad ref"  # 42 columns: no "nm"
+    # Every count listed, so they add up to 4; units on the limit and the losses (review A11).
+    lines = [line.replace(NBSP, " ") for line in s.summary_lines(width=0, open_key="Ctrl+O")]
+    assert lines[1] == (
+        "1310 nm limit 1.50 dB: 4/4, 2 pass, 1 fail, 1 reference problem, 0 in doubt, 0 no limit"
+    )
+    assert lines[2] == "  worst: fibre 2 1.60 dB, fibre 4 1.50 dB, fibre 1 0.40 dB"
+    narrow = [line.replace(NBSP, " ") for line in s.summary_lines(width=42, open_key="Ctrl+O")]
+    # 42 columns: the counts go on a line of their own, the zero counts left out.
+    assert narrow[1:4] == [
+        "1310 nm limit 1.50 dB: 4/4",
+        "  2 pass, 1 fail, 1 bad reference",
+        "  worst: fibre 2 1.60 dB, fibre 4 1.50 dB",
+    ]
+
+
+def test_invisible_light_caution_stays_once_a_reference_is_set() -> None:
+    # Review A3: readings mean live cords all session; the caution is not only for the prompt.
+    for narrow in (True, False):
+        s = _session(fibres=2, wavelengths="1310")
+        assert safety.INVISIBLE_LIGHT_SHORT in s.reference_note(narrow=narrow)[0]
+        s.set_reference("-7.2")
+        s.enter("-7.5", DETAILS)
+        note = s.reference_note(narrow=narrow)[0].splitlines()
+        assert note[0] == f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"  # first: never the row cut off
+        assert all(len(line) <= 42 for line in note) or not narrow
 
 
 def test_a_reading_needs_a_reference_and_keeps_nothing_half_done() -> None:

@@ -34,6 +34,7 @@ from fieldkit.tui.widgets.meter_fields import KEYS_HINT, KEYS_HINT_NARROW, entry
 from fieldkit.tui.widgets.meter_view import EntryView, SetupView
 from fieldkit.tui.widgets.readings_grid import EntryInput, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+from fieldkit.tui.wrapped import Wrapped
 
 
 @dataclass
@@ -341,7 +342,8 @@ class MeterScreen(Screen[None]):
         lines = self.session.summary_lines(
             width=42 if self.narrow else 0, open_key=keys.display("open")
         )
-        self.query_one("#meter-summary", Static).update("\n".join(lines), layout=False)
+        # Wrapped: a wrapped line keeps its indent, a count or a time is never parted.
+        self.query_one("#meter-summary", Static).update(Wrapped("\n".join(lines)), layout=False)
 
     # -- the job ------------------------------------------------------------------------
     def action_pick_job(self) -> None:
