@@ -227,3 +227,30 @@ async def test_footer_fits_and_job_actions_are_buttons(
         await pilot.pause()
         assert isinstance(app.screen, EndOfDayScreen)
     assert store.load("de30000000000003").status == "done"
+
+
+async def test_export_dialog_shows_the_whole_file_name_at_44_columns(tmp_path: Path) -> None:
+    """Review B22: the field shows one line of a long path; the name under it is whole."""
+    from fieldkit.actions.export import job_file_name
+
+    _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        job = app.screen._job  # type: ignore[attr-defined]
+        await pilot.press("ctrl+w")
+        await pilot.pause()
+        dialog = app.screen
+        assert isinstance(dialog, ExportDialog)
+        name = job_file_name(job, "html")
+        shown = dialog.query_one("#export-name", Static)
+        lines = [line.rstrip() for line in str(shown.render()).splitlines()]
+        width = shown.content_size.width
+        assert len(name) > width  # the demo's name is longer than the dialog is wide
+        name_part = lines[:-1]  # then "in FOLDER"
+        assert "".join(name_part) == name and all(len(x) <= width for x in name_part)
+        assert all(x[-1] in "-_." for x in name_part[:-1])  # broken after a separator only
+        assert shown.region.right <= 44 and lines[-1].startswith("in ")
+        await pilot.press("up")  # Markdown: the name follows the format
+        await pilot.pause()
+        assert job_file_name(job, "md") in str(shown.render()).replace("\n", "")

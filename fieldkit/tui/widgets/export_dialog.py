@@ -5,6 +5,7 @@ there through :func:`fieldkit.actions.export.export_job` (never inside the data 
 
 from __future__ import annotations
 
+import re
 from datetime import date
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -27,6 +28,32 @@ if TYPE_CHECKING:
     from fieldkit.jobs.store import JobStore
 
 
+def name_lines(name: str, width: int) -> list[str]:
+    """``name`` in lines of at most ``width``, broken after a '_' where that is enough (the
+    job's name, then its date), else after a '-', '_' or '.' (a part longer than the width
+    alone is cut into widths)."""
+    parts: list[str] = [name]
+    for seps in ("_", "-_."):
+        parts = re.findall(rf"[^{seps}]*[{seps}]|[^{seps}]+$", name) or [name]
+        if all(len(part) <= width for part in parts):
+            break
+    return _fill(parts, width)
+
+
+def _fill(parts: list[str], width: int) -> list[str]:
+    lines = [""]
+    for part in parts:
+        while len(part) > width:
+            if lines[-1]:
+                lines.append("")
+            lines[-1], part = part[:width], part[width:]
+            lines.append("")
+        if len(lines[-1]) + len(part) > width and lines[-1]:
+            lines.append("")
+        lines[-1] += part
+    return [line for line in lines if line]
+
+
 def _t(text: str, style: str = "") -> Text:
     return Text(terminal(text, multiline=True), style=style)
 
@@ -35,6 +62,13 @@ class ExportDialog(ModalScreen[Path | None]):
     """Choose a format and a file; the report is written there."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", id="jobs_export.cancel")]
+    # the file's name whole under the field (which shows one line of a long path)
+    DEFAULT_CSS = """
+    ExportDialog #export-name {
+        height: auto;
+        color: $text-muted;
+    }
+    """
 
     def __init__(self, job: Job, store: JobStore) -> None:
         super().__init__()
@@ -52,6 +86,7 @@ class ExportDialog(ModalScreen[Path | None]):
             )
             yield Label("File", classes="field-note")
             yield Input(str(self._path("html")), id="export-path", type="text", compact=True)
+            yield Static("", id="export-name", markup=False)
             yield Static("", id="export-error", classes="field-error", markup=False)
             with Horizontal(id="export-buttons"):
                 yield Button("Cancel", id="export-cancel", compact=True)
@@ -89,6 +124,22 @@ class ExportDialog(ModalScreen[Path | None]):
         current = Path(field.value)
         if event.option_id and current.parent == self._folder:
             field.value = str(self._path(event.option_id))
+
+    @on(Input.Changed, "#export-path")
+    def _path_changed(self) -> None:
+        """The file's name on its own line(s), broken after a '-' or '_' where it is longer
+        than the dialog is wide, then its folder: neither cut at 44 columns."""
+        self.call_after_refresh(self._show_name)
+
+    def _show_name(self) -> None:
+        text = self.query_one("#export-path", Input).value.strip()
+        shown = self.query_one("#export-name", Static)
+        if not text:
+            shown.update("")
+            return
+        path = Path(text)
+        lines = name_lines(terminal(path.name), shown.content_size.width or 34)
+        shown.update("\n".join([*lines, terminal(f"in {path.parent}")]))
 
     @on(OptionList.OptionSelected, "#export-format")
     @on(Input.Submitted, "#export-path")
