@@ -19,6 +19,7 @@ from fieldkit.actions.errors import ActionError, check_text
 from fieldkit.jobs.counting import open_items
 from fieldkit.jobs.models import Job, Link, Note, new_job_id
 from fieldkit.jobs.store import JobStore, StoreError
+from fieldkit.text.words import counted
 
 #: How many leading characters of a job id people type; no two jobs share them.
 SHORT_ID = 8
@@ -159,7 +160,7 @@ class OpenItemsError(ActionError):
     def __init__(self, items: list[str]) -> None:
         self.items = items
         shown = "; ".join(items[:3]) + (f"; and {len(items) - 3} more" if len(items) > 3 else "")
-        super().__init__(f"{len(items)} open item(s): {shown}")
+        super().__init__(f"{counted(len(items), 'open item')}: {shown}")
 
 
 def mark_done(
@@ -178,7 +179,7 @@ def mark_done(
         still = open_items(job)
         what = "marked done"
         if still:
-            what += f" with {len(still)} open item(s): " + "; ".join(still)
+            what += f" with {counted(len(still), 'open item')}: " + "; ".join(still)
         job.status = "done"
         job.add_event(what, by=by)
         if reason:

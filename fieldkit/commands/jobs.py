@@ -408,7 +408,7 @@ def run_list(args: argparse.Namespace) -> int:
         print("no jobs" + (" match" if args.search or args.status or on_date else " yet"))
         return 0
     for s in rows:
-        failed = f" {s.failed_count} failed" if s.failed_count else ""
+        failed = f" {s.failed_count} fail" if s.failed_count else ""  # the count's one word
         where = f" · {s.site}" if s.site else ""
         flag = " (read-only)" if s.read_only else ""
         print(

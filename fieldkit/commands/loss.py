@@ -258,7 +258,7 @@ def _print_text(
     if saved:
         print(
             f"saved into job {saved['job_id']}, link {saved['link_label']}: "
-            f"{len(saved['result_ids'])} result(s) against reference "
+            f"{counted(len(saved['result_ids']), 'result')} against reference "
             f"{', '.join(saved['reference_ids'])}"
         )
 

@@ -158,3 +158,12 @@ def test_today_and_show_list_every_count_in_words_that_agree(tmp_path: Path) -> 
         "1550 nm: 6 fibres tested: 4 pass, 1 fail, 1 reference problem, 0 in doubt, 0 no limit"
         in shown
     ), shown
+
+
+def test_list_says_fail_as_every_view_does(tmp_path: Path) -> None:
+    # Review C33: one word per count ("1 fail", as the Jobs list and the End of day say).
+    demo = tmp_path / "demo"
+    ok("demo", "--no-ui", data=demo)
+    listed = ok("jobs", "list", data=demo)
+    feed = next(line for line in listed.splitlines() if "North Reservoir" in line)
+    assert " 1 fail" in feed and "failed" not in feed, feed

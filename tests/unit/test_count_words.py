@@ -48,3 +48,11 @@ def test_short_words_are_still_words() -> None:
 def test_day_totals_read_back_as_a_tally() -> None:
     totals = {"passed": 4, "failed": 1, "reference_problems": 1, "in_doubt": 0, "jobs": 9}
     assert totals_tally(totals).tested == 6
+
+
+def test_open_items_refusal_agrees_with_its_number() -> None:
+    # Review C39: "1 open item(s)" -> "1 open item", "2 open items".
+    from fieldkit.actions.jobs import OpenItemsError
+
+    assert str(OpenItemsError(["Trunk: no results yet"])).startswith("1 open item: Trunk")
+    assert str(OpenItemsError(["a", "b"])).startswith("2 open items: a; b")
