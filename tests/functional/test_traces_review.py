@@ -161,3 +161,18 @@ async def test_fibre_7_reads_as_the_splice_log_and_says_its_limits(
         await pilot.pause()
         note = str(screen.query_one("#traces-note", Static).render())
         assert "Shipped" not in note and "the link's fusion splice limit" in note
+
+
+async def test_the_distance_axis_ends_on_a_round_figure_past_the_fibre_end(tmp_path: Path) -> None:
+    """C37: fibre 7 ends at 1840 m (fieldkit.traces.demo): the axis ends at 2000 m, a round
+    figure a little past the end (was 1997 m, the end x 1.08 + 10 m)."""
+    from fieldkit.tui.widgets.trace_plot import TracePlot
+
+    app, folder = _demo(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = await _open_fibre_7(pilot, folder)
+        plot = screen.query_one("#traces-plot", TracePlot)
+        axis = str(plot.render()).splitlines()[-2]
+        assert axis.split()[0] == "0" and axis.rstrip().endswith("2000 m"), axis
+        assert plot.view is not None and 1840.0 < plot.view.end_m

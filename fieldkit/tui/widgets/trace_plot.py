@@ -12,6 +12,7 @@ and is tested without a terminal; :func:`braille_rows` draws.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -91,6 +92,18 @@ def braille_rows(
     return ["".join(map(chr, line)) for line in codes.tolist()]
 
 
+def round_up(distance_m: float) -> float:
+    """``distance_m`` up to a round figure for an axis end: to 1, 2 or 5 of the next lower
+    power of ten (1840 -> 1900, 1932 -> 2000, 4120 -> 4200, 212 -> 220)."""
+    if distance_m <= 0:
+        return distance_m
+    step = 10.0 ** (math.floor(math.log10(distance_m)) - 1)
+    for k in (1, 2, 5, 10):
+        if distance_m / (k * step) <= 25:  # no more than 25 steps: a figure read at a glance
+            return math.ceil(distance_m / (k * step)) * k * step
+    return distance_m
+
+
 @dataclass
 class PlotView:
     """What the plot shows: a distance window, a cursor, and the events to jump between."""
@@ -106,8 +119,8 @@ class PlotView:
     def of(cls, x_min: float, x_max: float, marks: list[Mark]) -> PlotView:
         right = x_max
         ends = [m.distance_m for m in marks if m.kind == "end"]
-        if ends:  # show the fibre and a little of the noise past its end
-            right = min(x_max, ends[0] * 1.08 + 10.0)
+        if ends:  # the fibre and a little of the noise past its end, to a round figure
+            right = min(x_max, round_up(ends[0] * 1.03 + 10.0))
         return cls(x_min, right, (x_min, x_max), x_min, list(marks))
 
     @property
