@@ -10,6 +10,8 @@ INVISIBLE_LIGHT = (
 )
 # The same caution in one line of a phone terminal (42 columns), where the full one has no room.
 INVISIBLE_LIGHT_SHORT = "Invisible light: never look into a fibre"
+# Shorter still, for one line with "… more" after it at 42 columns.
+INVISIBLE_LIGHT_NARROW = "Invisible light: never look in"
 FAULT_LOCATOR = (
     "A visual fault locator is a visible red laser, usually Class 2 or 3R (IEC 60825-1): do not "
     "look into its output or a lit fibre end, and do not point it at people."

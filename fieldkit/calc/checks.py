@@ -53,6 +53,28 @@ class DispersionCheck:
         return max(abs(self.low_ps_nm), abs(self.high_ps_nm))
 
     @property
+    def either_sign(self) -> bool:
+        """True where the link's dispersion can have either sign (the wavelength inside the
+        zero-dispersion range): the range's ends, λ0 at each end of its range with S0 at its
+        maximum, are then real extremes. Elsewhere ITU-T G.652 bounds only the magnitude
+        (S0 has a maximum, no minimum), so only the worst case means anything: the range's
+        other end, 0 from S0 = 0, is no real fibre's."""
+        return self.low_ps_nm < 0 < self.high_ps_nm
+
+    def words(self) -> str:
+        """The accumulated dispersion in words, one rule for the CLI, the workspace and the
+        stored check: ``"worst |D|·L 720.4 ps/nm"``, with the range where it means something,
+        ``"worst |D|·L 15.7 ps/nm (D·L −15.7 to 10.9 ps/nm)"``; one decimal throughout."""
+
+        def ps(x: float) -> str:
+            return f"{x:.1f}".replace("-", "−")
+
+        text = f"worst |D|·L {ps(self.worst_ps_nm)} ps/nm"
+        if self.either_sign:
+            text += f" (D·L {ps(self.low_ps_nm)} to {ps(self.high_ps_nm)} ps/nm)"
+        return text
+
+    @property
     def tolerance_pass(self) -> bool | None:
         if self.tolerance_ps_nm is None:
             return None

@@ -340,8 +340,10 @@ def register(subparsers: Any) -> None:
     checks.add_argument(
         "--bit-rate",
         metavar="GBD",
-        help="line rate for the dispersion and modal-bandwidth checks, e.g. 10.3125 "
-        "(default: the transceiver's or the application's)",
+        help="line rate in GBd (symbols per second on the fibre, coding included: 10GBASE-LR's "
+        "10 Gb/s of data run at 10.3125 GBd; for a two-level signal, the bit rate on the line), "
+        "for the dispersion and modal-bandwidth checks, e.g. 10.3125 (default: the "
+        "transceiver's or the application's)",
     )
     checks.add_argument(
         "--spectral-width",

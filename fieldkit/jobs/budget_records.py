@@ -76,12 +76,11 @@ def check_rows(checks: LinkChecks | None) -> list[BudgetCheck]:
             BudgetCheck(
                 kind="dispersion",
                 wavelength_nm=d.wavelength_nm,
-                value=d.worst_ps_nm,
+                value=round(d.worst_ps_nm, 1),  # the digits the detail shows
                 unit="ps/nm",
                 limit=d.tolerance_ps_nm,
                 verdict=_verdict(d.tolerance_pass),
-                detail=f"{d.low_ps_nm:.1f} to {d.high_ps_nm:.1f} ps/nm over "
-                f"{d.length_m:.0f} m of fibre"
+                detail=f"{d.words()} over {d.length_m:.0f} m of fibre"
                 + (
                     f", receiver tolerates {d.tolerance_ps_nm:g} ps/nm"
                     if d.tolerance_ps_nm is not None

@@ -197,8 +197,7 @@ def check_lines(checks: LinkChecks) -> list[str]:
     for d in checks.dispersion:
         judged = "" if d.passed is None else f": {'ok' if d.passed else 'OVER'}"
         lines.append(
-            f"Dispersion at {nm(d.wavelength_nm)}: {_ps(d.low_ps_nm)} to {_ps(d.high_ps_nm)} "
-            f"over {length(d.length_m)}{judged}"
+            f"Dispersion at {nm(d.wavelength_nm)}: {d.words()} over {length(d.length_m)}{judged}"
         )
         if d.tolerance_ps_nm is not None:
             lines.append(
@@ -211,11 +210,14 @@ def check_lines(checks: LinkChecks) -> list[str]:
                 f"{d.spread_limit_ps:.1f} ps (¼ bit): {_ok(d.spread_pass, 'OVER')}"
             )
         elif d.tolerance_ps_nm is None:
-            lines.append("  give a dispersion tolerance, or a spectral width and bit rate")
+            lines.append("  give a dispersion tolerance, or a spectral width and line rate")
         if d.unknown_fibres:
             lines.append(f"  no dispersion data: {', '.join(d.unknown_fibres)} (not counted)")
     if checks.dispersion:
-        lines.append("  formula: ITU-T G.652 D(λ) = S0/4·(λ − λ0⁴/λ³), λ0 and S0 over their limits")
+        lines.append(
+            "  formula: ITU-T G.652 D(λ) = S0/4·(λ − λ0⁴/λ³), λ0 over its range, S0 at its "
+            "maximum (G.652 gives no minimum S0, so no lowest value where D has one sign)"
+        )
     for bw in checks.bandwidth:
         text = (
             f"Modal bandwidth at {nm(bw.wavelength_nm)}: "
@@ -295,6 +297,6 @@ def report_lines(report: BudgetReport, extra: dict[str, Any] | None = None) -> l
         beyond = check_lines(report.checks)
         if beyond:
             lines.append("")
-            lines.append("Beyond loss:")
+            lines.append("Dispersion and bandwidth:")
             lines += [f"  {line}" for line in beyond]
     return "\n".join(lines).split("\n")

@@ -143,14 +143,16 @@ SETTINGS = (
         "repairs and ageing, shown beside the link loss, not in it (empty: no margin)",
     ),
     (
-        "Bit rate",
+        "Line rate",
         "bit-rate",
         "e.g. 10.3125 GBd",
-        "line rate in GBd for the dispersion and modal-bandwidth checks (empty: the "
-        "transceiver's or the application's)",
+        "line rate in GBd (symbols per second on the fibre, coding included: 10GBASE-LR's "
+        "10 Gb/s of data run at 10.3125 GBd; for a two-level signal, the bit rate on the line) "
+        "for the dispersion and modal-bandwidth checks (empty: the transceiver's or the "
+        "application's)",
     ),
     (
-        "Spectrum",
+        "Spectral width",
         "spectral-width",
         "e.g. 0.1 nm RMS",
         "the source's RMS spectral width in nm, for the dispersion check when no transceiver "

@@ -357,3 +357,20 @@ def test_a_fibre_type_is_fibre_type_and_the_old_spellings_say_so(argv):
     assert "--fibre is a fibre number" in result.stderr
     fixed = ["--fibre-type" if a in ("--fiber", "--fibre") else a for a in argv]
     assert run(*fixed).returncode == 0
+
+
+def test_help_calls_the_rate_a_line_rate_and_explains_it():
+    # Review A15: "--bit-rate GBD" read as a bit rate in baud. It is the line rate in GBd;
+    # the help says so and how it relates to the bit rate (10GBASE-LR: 10 Gb/s of data,
+    # 64b/66b coded, 10.3125 GBd on the line; IEEE 802.3 clause 49, from memory).
+    text = " ".join(run("budget", "--help").stdout.split())
+    assert "line rate in GBd" in text and "10.3125 GBd" in text and "Gb/s" in text
+
+
+def test_text_output_names_the_dispersion_worst_case():
+    # Review A10: 12 km of OS2 at 1550 nm: at most 12 × 18.0097 = 216.1 ps/nm (ITU-T G.652,
+    # from memory, worked in tests/unit/test_beyond_loss.py); no "0.0 ps/nm to" (S0 = 0).
+    result = run("budget", "--fibre-type", "OS2", "--length", "12 km", "--wavelength", "1550")
+    assert result.returncode == 0, result.stderr
+    assert "Dispersion at 1550 nm: worst |D|·L 216.1 ps/nm over 12 km" in result.stdout
+    assert "0.0 ps/nm" not in result.stdout and "Beyond loss" not in result.stdout

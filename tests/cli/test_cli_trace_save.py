@@ -133,5 +133,10 @@ def test_budget_saved_onto_a_link_keeps_its_checks(job) -> None:
     budget = store.load(job_id).links[0].budget
     assert budget is not None
     [row] = [c for c in budget.checks if c.kind == "dispersion"]
-    assert row.value == pytest.approx(720.39, abs=0.01) and row.limit == 1600.0
+    # kept to the 0.1 ps/nm its sentence shows (review A10: same digits in value and words)
+    assert row.value == pytest.approx(720.4, abs=1e-9) and row.limit == 1600.0
     assert row.verdict == "pass"
+    # at 1550 nm D has one sign: only the worst case means anything (no "0.0 to ...", which
+    # would come from S0 = 0, no G.652 fibre's)
+    assert row.detail.startswith("worst |D|·L 720.4 ps/nm over 40000 m")
+    assert "0.0" not in row.detail

@@ -76,7 +76,7 @@ async def test_bad_length_is_explained_beside_the_field_and_kept(tmp_path: Path)
         assert error.display and "unknown unit 'parsec'" in str(error.render())
         assert app.screen.query_one("#item-value", Input).value == "12 parsec"
         assert app.screen.report is None
-        assert "item 1: length" in text_of(app, "#budget-problem")
+        assert "item 1: length" in text_of(app, "#budget-summary")
         app.screen.query_one("#item-value", Input).value = "12 km"
         await pilot.pause()
         assert not error.display
@@ -300,7 +300,9 @@ async def test_mouse_picks_an_item_and_removes_it(tmp_path: Path, size):
         await pilot.press(*"5 km")
         await pilot.click("#add")
         await pilot.pause()
-        await pilot.click("#choice-list", offset=(4, 6))  # the sixth kind: Other loss
+        # the sixth kind, Other loss, on the list's sixth row (y = 5): no empty first row
+        # above "1 Fibre" (review C43: the focused list's frame drew one)
+        await pilot.click("#choice-list", offset=(4, 5))
         await pilot.pause()
         screen.query_one("#item-value", Input).value = "0.5 dB"
         await pilot.pause()
@@ -326,10 +328,15 @@ async def test_empty_start_asks_calmly_for_the_length(tmp_path: Path):
         screen = app.screen
         problem = screen.query_one("#budget-problem", Static)
         waiting = screen.query_one("#budget-waiting", Static)
-        assert not problem.display
-        assert waiting.display and not waiting.has_class("field-error")
-        assert "Type the length of item 1 (Fibre)" in str(waiting.render())
         summary = screen.query_one("#budget-summary", Static)
+        # Review C36: the prompt is said once, on the summary line under the items, not again
+        # in the result panel; no column of empty result panels before there is a budget.
+        assert "Type the length of item 1 (Fibre)" in str(summary.render())
+        assert not problem.display and not waiting.display
+        assert not screen.query_one("#result-panel").display
+        assert not screen.query_one("#checks-panel").display
+        shown = [str(s.render()) for s in screen.query(Static) if s.region.height]
+        assert sum("Type the length" in text for text in shown) == 1
         assert summary.has_class("-waiting") and not summary.has_class("-problem")
         assert not screen.query_one("#item-value-error", Static).display
         items = screen.query_one("#items", OptionList)
@@ -343,13 +350,12 @@ async def test_empty_start_asks_calmly_for_the_length(tmp_path: Path):
         length = screen.query_one("#item-value", Input)
         length.value = "12 parsec"
         await pilot.pause()
-        assert problem.display and not waiting.display
-        assert summary.has_class("-problem")
+        assert summary.has_class("-problem") and "item 1: length" in str(summary.render())
         # A typed attenuation with no coefficient yet is also only a prompt.
         length.value = "12 km"
         screen.query_one("#item-preset", Select).value = "__typed__"
         await pilot.pause()
-        assert waiting.display and "Type the attenuation of item 1 (Fibre)" in str(waiting.render())
+        assert "Type the attenuation of item 1 (Fibre)" in str(summary.render())
 
 
 @pytest.mark.parametrize("size", SIZES)
@@ -427,7 +433,9 @@ async def test_the_workspace_shows_the_checks_beyond_loss_and_the_fibre_data(tmp
         await pilot.pause()
         out = text_of(app, "#checks-out")
         assert out == flat("\n".join(check_lines(screen.report.checks)))
-        assert "Dispersion at 1550 nm: 0.0 ps/nm to 720.4 ps/nm over 40 km: OVER" in out
+        # review A10: the worst |D|·L, labelled so; no "0.0 ps/nm to" from S0 = 0
+        assert "Dispersion at 1550 nm: worst |D|·L 720.4 ps/nm over 40 km: OVER" in out
+        assert "0.0 ps/nm" not in out
         assert "spread 72.0 ps" in out
         data = text_of(app, "#fibre-data-out")
         assert "OS2 at 1550 nm (singlemode)" in data and "V = π·d·NA/λ" in data
@@ -523,3 +531,50 @@ async def test_focus_opens_on_the_length_each_time(tmp_path: Path):
         await pilot.press("f3")
         await pilot.pause()
         assert app.screen.focused is app.screen.query_one("#item-value", Input)
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_the_invisible_light_caution_is_in_view_short_and_whole(tmp_path: Path, size):
+    # Review B16: at 80x24 the full caution was cut after "Light in fibre at 850, 1300, 1310,"
+    # and at 44x22 it was not on screen. It sits above the keys, one line with "more", whole;
+    # the full wording on Enter (and on hover).
+    from fieldkit import safety
+
+    app = make(tmp_path)
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"12 km")
+        await pilot.pause()
+        caution = screen.query_one("#budget-caution", Static)
+        region = caution.region
+        assert region.height == 1 and region.bottom <= size[1] - 1  # above the footer
+        assert screen.get_widget_at(1, region.y)[0] is caution
+        words = text_of(app, "#budget-caution")
+        assert words.startswith("⚠ Invisible light: never look in") and words.endswith("more")
+        assert "…" not in words.removesuffix("… more")
+        assert safety.INVISIBLE_LIGHT in str(caution.tooltip)
+        caution.focus()
+        await pilot.press("enter")
+        await pilot.pause()
+        assert flat(safety.INVISIBLE_LIGHT) in text_of(app, "#budget-caution")
+
+
+async def test_labels_say_what_the_fields_are(tmp_path: Path):
+    # Review A15 and C32: the rate is a line rate in GBd (said so, with the bit-rate relation in
+    # the tooltip), "Spectral width" whole (not "Spectrum"), and the checks' panel is named for
+    # what it holds (not "Beyond loss").
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        labels = {str(lbl.render()): lbl for lbl in screen.query("#settings-panel Label")}
+        assert "Line rate" in labels and "Bit rate" not in labels
+        assert "GBd" in str(screen.query_one("#bit-rate", Input).tooltip)
+        assert "Gb/s" in str(screen.query_one("#bit-rate", Input).tooltip)
+        spectral = labels["Spectral width"]
+        assert spectral.size.width >= len("Spectral width") and spectral.size.height == 1
+        assert "Spectrum" not in labels
+        await pilot.press(*"12 km")
+        await pilot.pause()
+        assert screen.query_one("#checks-panel").border_title == "Dispersion and bandwidth"

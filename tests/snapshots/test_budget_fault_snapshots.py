@@ -14,7 +14,8 @@ SIZES = [(80, 24), (44, 22)]
 @pytest.mark.parametrize("size", SIZES, ids=["80x24", "44x22"])
 def test_budget_on_start(workspace_snap: Snap, size: tuple[int, int]) -> None:
     """Budget as it opens: Save/Open/New first, focus in Length, hints dim and italic, the
-    calm prompt for the length."""
+    calm prompt for the length said once (no empty result panels yet), "Line rate" and
+    "Spectral width" whole, the invisible-light caution one line above the keys."""
     assert workspace_snap("budget", size, demo=False)
 
 
@@ -27,7 +28,8 @@ def test_budget_with_splices(workspace_snap: Snap, size: tuple[int, int]) -> Non
 
 @pytest.mark.parametrize("size", SIZES, ids=["80x24", "44x22"])
 def test_budget_kind_chooser(workspace_snap: Snap, size: tuple[int, int]) -> None:
-    """The kind chooser (Ctrl+A) over the budget, at Fibre: every kind named in full."""
+    """The kind chooser (Ctrl+A) over the budget, at Fibre: every kind named in full, no empty
+    row above "1 Fibre"."""
     assert workspace_snap("budget", size, press=[*"12 km", "ctrl+a"], demo=False)
 
 

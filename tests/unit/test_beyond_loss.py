@@ -191,3 +191,26 @@ def test_fibre_data_of_om3_and_g652d(lib):
     lines = fibre_data_lines(sm)
     assert any("V = π·d·NA/λ" in line for line in lines)
     assert any("λc = π·d·NA/2.405" in line for line in lines)
+
+
+def test_dispersion_words_show_the_range_only_where_it_means_something(lib):
+    # Review A10. At 1550 nm D has one sign over all of G.652's λ0 range (16.670 to 18.0097
+    # ps/(nm·km) at S0 = 0.092, above): G.652 sets no minimum S0, so only the worst case means
+    # anything: "worst |D|·L 720.4 ps/nm", no "0.0 to".
+    def check_at(nm: float, km: float):
+        link = b.LinkDescription(
+            segments=(b.Segment(lib.fibres["G.652.D"], km * 1000.0),), wavelengths_nm=(nm,)
+        )
+        (check,) = check_beyond_loss(link, (nm,)).dispersion
+        return check
+
+    far = check_at(1550, 40)
+    assert not far.either_sign
+    assert far.words() == "worst |D|·L 720.4 ps/nm"
+    # At 1310 nm (inside 1300–1324 nm) D can be either sign: with S0 = 0.092,
+    # λ0 = 1300: 0.023 × (1310 − 1300⁴/1310³) = 0.023 × (1310 − 1270.52) = 0.908 ps/(nm·km);
+    # λ0 = 1324: 0.023 × (1310 − 1324⁴/1310³) = 0.023 × (1310 − 1366.92) = −1.309 ps/(nm·km);
+    # over 12 km: −15.7 to 10.9 ps/nm, real extremes; the worst |D|·L is 15.7, same digits.
+    near = check_at(1310, 12)
+    assert near.either_sign
+    assert near.words() == "worst |D|·L 15.7 ps/nm (D·L −15.7 to 10.9 ps/nm)"

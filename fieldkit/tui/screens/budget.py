@@ -37,6 +37,7 @@ from fieldkit.tui.budget_model import (
     Outcome,
 )
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.caution import Caution
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.link_items import LinkItems, choice_row, field_row
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
@@ -45,7 +46,7 @@ from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 _PANELS = (
     ("application", "Application"),
     ("transceiver", "Transceiver"),
-    ("checks", "Beyond loss"),
+    ("checks", "Dispersion and bandwidth"),
     ("fibre-data", "Fibre data"),
     ("sources", "Values used"),
 )
@@ -133,7 +134,13 @@ class BudgetScreen(Screen[None]):
                         with Vertical(id=f"{panel_id}-panel", classes="panel") as panel:
                             panel.border_title = title
                             yield Static("", id=f"{panel_id}-out", classes="result", markup=False)
-                    yield Static(safety.INVISIBLE_LIGHT, classes="caution", id="budget-caution")
+        # Outside the scrolling body, above the keys: short and whole at 80x24, in view at 44x22
+        # (one line with "more"; the full caution on Enter, a click and hover).
+        yield Caution(
+            safety.INVISIBLE_LIGHT,
+            (safety.INVISIBLE_LIGHT_SHORT, safety.INVISIBLE_LIGHT_NARROW),
+            id="budget-caution",
+        )
         yield KeyFooter()
 
     def on_mount(self) -> None:
@@ -255,8 +262,9 @@ class BudgetScreen(Screen[None]):
             self._error(field_id, message)
         problem = self.query_one("#budget-problem", Static)
         waiting = self.query_one("#budget-waiting", Static)
-        problem.display = outcome.problem is not None
-        waiting.display = outcome.prompt is not None
+        # What to type, or what is wrong, is said once: on the summary line under the items.
+        problem.display = waiting.display = False
+        self._panels_shown(outcome.report is not None)
         if outcome.report is not None:
             self._show(outcome)
             return
@@ -269,6 +277,14 @@ class BudgetScreen(Screen[None]):
         summary.update(outcome.message or "")
         summary.set_class(outcome.prompt is not None, "-waiting")
         summary.set_class(outcome.problem is not None, "-problem")
+
+    def _panels_shown(self, shown: bool) -> None:
+        """The result panels only once there is a budget: no column of empty frames."""
+        for panel_id in ("result", *(p for p, _ in _PANELS)):
+            self.query_one(f"#{panel_id}-panel").display = shown
+
+    #: Below this many rows the caution folds to one line, so the budget shows.
+    SCARCE_ROWS = 40
 
     def _order_applications(self) -> None:
         choices = self.model.application_choices()
@@ -312,6 +328,7 @@ class BudgetScreen(Screen[None]):
         self._put("#fibre-data-out", "\n".join(self.model.fibre_data_lines(outcome)))
 
     def on_resize(self) -> None:
+        self.query_one("#budget-caution", Caution).fit(self.size.height < self.SCARCE_ROWS)
         # The lines wrap to their panels: draw them again once the layout has settled.
         self.call_after_refresh(self._redraw)
 

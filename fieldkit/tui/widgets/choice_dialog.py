@@ -74,6 +74,8 @@ class ChoiceDialog(ModalScreen[str | None]):
                     for i, (label, _) in enumerate(self._choices, start=1)
                 ],
                 id="choice-list",
+                # No frame: Textual's focused frame drew an empty row above the first choice.
+                compact=True,
             )
             if self._note:
                 yield Static(self._note, classes="choice-note", markup=False)
