@@ -56,7 +56,9 @@ def summary_table(job: Job) -> RenderableType | Wrapped:
     rows = job_summary(job)
     if not rows:
         return plain("No results yet.", "dim")
-    text = Text("Fibres per link and wavelength", style="bold")
+    # The heading bold, not the counts under it (a Text's base style covers all of it).
+    text = Text()
+    text.append("Fibres per link and wavelength", style="bold")
     for r in rows:
         # Every count by the one rule (fieldkit.jobs.counting): the parts add up to the tested.
         text.append(f"\n{terminal(r.link_label)} {fmt_nm(r.wavelength_nm)} nm: ")
@@ -174,7 +176,8 @@ def traces_text(link: Link, width: int = DETAIL_WIDTH) -> Text | None:
 
 
 def notes_text(job: Job) -> RenderableType | Wrapped:
-    text = Text("\nNotes", style="bold")
+    text = Text()
+    text.append("\nNotes", style="bold")  # the heading only: the notes themselves plain
     if not job.notes:
         text.append("\nnone yet", style="dim")
     for note in job.notes:

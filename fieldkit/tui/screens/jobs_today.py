@@ -154,7 +154,8 @@ class EndOfDayScreen(ModalScreen[str | None]):
                 Static(Text("No job was created or updated on this day.", "dim"), id="eod-none")
             )
         for job in summary.jobs:
-            detail = Text(f"{terminal(job.name)}", "bold")
+            detail = Text()  # the name bold, not the whole section (a base style covers all)
+            detail.append(terminal(job.name), "bold")
             for failure in job.failures:
                 detail.append(f"\n  ✗ {terminal(failure)}", "red")
             for item in job.open_items:
