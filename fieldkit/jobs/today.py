@@ -112,7 +112,7 @@ def job_day(job: Job, day: date) -> JobDay:
         for fault in link.faults:
             entry.open_items.append(
                 f"{link.label}: fault located at {fmt_m(fault.route_distance_m)} m along the "
-                f"route (search {fmt_m(fault.low_m)}–{fmt_m(fault.high_m)} m)"
+                f"route (search from {fmt_m(fault.low_m)} to {fmt_m(fault.high_m)} m)"
             )
     if job.status == "open":
         entry.open_items.append("job still open")

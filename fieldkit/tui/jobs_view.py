@@ -110,8 +110,8 @@ def links_text(job: Job) -> RenderableType:
         for f in link.faults:
             parts.append(
                 plain(
-                    f"Fault: route {fmt_m(f.route_distance_m)} m (search "
-                    f"{fmt_m(f.low_m)}–{fmt_m(f.high_m)} m)"
+                    f"Fault: route {fmt_m(f.route_distance_m)} m (search from "
+                    f"{fmt_m(f.low_m)} to {fmt_m(f.high_m)} m)"
                     + (f", near {f.nearest_landmark}" if f.nearest_landmark else ""),
                     "bold magenta",
                 )

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import io
 from datetime import timedelta
 from pathlib import Path
 
@@ -32,6 +33,8 @@ def test_demo_day_counts(tmp_path: Path) -> None:
     assert "SR-SPUR: no results yet" in survey.open_items
     feed = next(j for j in summary.jobs if j.name == "North Reservoir feed repair")
     assert any("fault located at 2889.2 m" in item for item in feed.open_items)
+    # one name for the window, as in the fault workspace and `fieldkit locate` (review C30)
+    assert any("(search from 2876.0 to 2902.4 m)" in item for item in feed.open_items)
     done = next(j for j in summary.jobs if j.status == "done")
     assert done.open_items == [] and done.failures == []
 
@@ -81,3 +84,17 @@ def test_the_demo_never_stamps_a_record_in_the_future(hour: int) -> None:
     assert {r.at.astimezone().time() for j in jobs for _, r in j.results()} == {
         r.at.astimezone().time() for j in build(local_day_start(moment)) for _, r in j.results()
     }
+
+
+def test_the_jobs_detail_names_a_faults_window_as_the_fault_workspace() -> None:
+    # Review C30: one name for the search window, "search from … to …", in the fault
+    # workspace, `fieldkit locate` and the Jobs detail (the demo feed's fault, 2876.0–2902.4 m).
+    from rich.console import Console
+
+    from fieldkit.tui.jobs_view import links_text
+
+    feed = next(j for j in build(local_day_start(now())) if j.name.startswith("North Reservoir"))
+    console = Console(width=200, record=True, file=io.StringIO())
+    console.print(links_text(feed))
+    text = console.export_text()
+    assert "(search from 2876.0 to 2902.4 m)" in " ".join(text.split())
