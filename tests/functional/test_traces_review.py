@@ -176,3 +176,21 @@ async def test_the_distance_axis_ends_on_a_round_figure_past_the_fibre_end(tmp_p
         axis = str(plot.render()).splitlines()[-2]
         assert axis.split()[0] == "0" and axis.rstrip().endswith("2000 m"), axis
         assert plot.view is not None and 1840.0 < plot.view.end_m
+
+
+async def test_a_long_folder_path_shows_its_end_and_marks_the_cut_start(tmp_path: Path) -> None:
+    """B23: the field too narrow for the path shows its end (LIB-TH-01) and, once the folder
+    is open (the table has the focus), "…" where its start is cut, not a cut '/tmp' that reads
+    as another absolute path."""
+    app, folder = _demo(tmp_path)
+    deep = tmp_path / "a-long-folder-name-for-the-field" / "of-the-crew" / "traces"
+    deep.mkdir(parents=True)
+    (deep / "LIB-TH-01").symlink_to(folder, target_is_directory=True)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = await _open(pilot, str(deep / "LIB-TH-01"))
+        field = screen.query_one("#traces-a", Input)
+        assert not field.has_focus and len(field.value) > field.content_size.width
+        shown = "".join(s.text for s in field.render_line(0)).rstrip()
+        assert shown.startswith("…") and shown.endswith("LIB-TH-01"), shown
+        assert field.value == str(deep / "LIB-TH-01")  # the typed path stays as typed

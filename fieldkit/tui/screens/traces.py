@@ -24,6 +24,7 @@ from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 from fieldkit.tui.widgets.key_footer import KeyFooter
+from fieldkit.tui.widgets.path_field import PathField
 from fieldkit.tui.widgets.trace_dialogs import ClosurePicker, OverwriteDialog, SaveTracesDialog
 from fieldkit.tui.widgets.trace_plot import Mark, TracePlot
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
@@ -61,14 +62,14 @@ class TracesScreen(Screen[None]):
         yield WorkspaceBar()
         with Horizontal(id="traces-files"):
             yield Label("A→B", classes="traces-label")
-            yield Input(
+            yield PathField(
                 placeholder="trace file or folder",
                 id="traces-a",
                 compact=True,
                 tooltip="A trace from end A (.sor or text), or a folder of traces",
             )
             yield Label("B→A", classes="traces-label")
-            yield Input(
+            yield PathField(
                 placeholder="other end (optional)",
                 id="traces-b",
                 compact=True,
@@ -137,6 +138,8 @@ class TracesScreen(Screen[None]):
 
         path_a = self.query_one("#traces-a", Input).value
         path_b = self.query_one("#traces-b", Input).value
+        for field in self.query(PathField):
+            field.show_end()
         if self.session.settings.limits.origin == "defaults":
             self._judge_by()  # before the first open
         if path_a.strip() and Path(path_a.strip()).expanduser().is_dir():
