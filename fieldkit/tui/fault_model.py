@@ -143,12 +143,12 @@ FIELDS: dict[str, Field] = {
 
 LANDMARK_COLUMNS = (
     Column("name", "Name", "text", "closure 7"),
-    Column("otdr", "OTDR reads", "length", "3.400 km"),
-    Column("route", "Route dist", "length", "3330 m"),
+    Column("otdr", "OTDR distance", "length", "3.400 km"),
+    Column("route", "Route distance", "length", "3330 m"),
 )
 SLACK_COLUMNS = (
-    Column("position", "Route pos", "length", "1200 m"),
-    Column("length", "Cable len", "length", "20 m"),
+    Column("position", "Route position", "length", "1200 m"),
+    Column("length", "Cable length", "length", "20 m"),
     Column("label", "Label", "text", "coil at HH 4"),
 )
 

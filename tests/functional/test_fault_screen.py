@@ -136,7 +136,12 @@ async def test_landmarks_added_edited_and_removed_by_keys(tmp_path: Path) -> Non
             screen.query_one(f"#fault-landmarks-{key}", Input).value = text
         screen.query_one("#fault-landmarks-route", Input).focus()
         await pilot.press("enter")
-        # Friction (issue 14, fault): focus stayed in "Route dist", so the next name landed
+        # Review C32: the columns say what they are, whole ("OTDR distance", not "OTDR dist")
+        labels = [lbl for lbl in screen.query("#fault-landmarks Label.pl-label")]
+        assert [str(lbl.render()) for lbl in labels] == ["Name", "OTDR distance", "Route distance"]
+        assert all(lbl.content_size.width >= len(str(lbl.render())) for lbl in labels)
+        assert all(lbl.size.height == 1 for lbl in labels)
+        # Friction (issue 14, fault): focus stayed in "Route distance", so the next name landed
         # there. Enter adds the row and takes the focus back to the name for the next one.
         assert screen.focused is screen.query_one("#fault-landmarks-name", Input)
         await pilot.press(*"closure 7", "tab", *"3.4 km", "tab", *"3330", "enter")

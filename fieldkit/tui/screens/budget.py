@@ -324,7 +324,9 @@ class BudgetScreen(Screen[None]):
             else outcome.tx_problem or "Pick a transceiver to check.",
         )
         checks = [] if report.checks is None else lines.check_lines(report.checks)
-        self._put("#checks-out", "\n".join(checks) or "Nothing to check beyond loss for this link.")
+        self._put(
+            "#checks-out", "\n".join(checks) or "No dispersion or bandwidth to check for this link."
+        )
         self._put("#fibre-data-out", "\n".join(self.model.fibre_data_lines(outcome)))
 
     def on_resize(self) -> None:

@@ -34,7 +34,7 @@ class PointList(Vertical):
     /* no border on focus either: rows must not move under the mouse as the list takes focus */
     PointList OptionList:focus { border: none; background-tint: $foreground 5%; }
     PointList > Horizontal { height: auto; }
-    PointList Label.pl-label { width: 12; padding: 0 1 0 0; color: $text-muted; }
+    PointList Label.pl-label { width: 15; padding: 0 1 0 0; color: $text-muted; }
     PointList Input { width: 1fr; }
     PointList .pl-buttons { height: auto; margin-top: 0; }
     PointList .pl-buttons Button { min-width: 8; margin-right: 1; }
