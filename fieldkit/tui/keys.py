@@ -85,8 +85,13 @@ class Use:
 #: The keys that mean the same everywhere. Order: the order Help and the README list them.
 COMMON: tuple[Key, ...] = (
     Key("quit", "ctrl+q", "Quit", "quit fieldkit (every footer shows it first)"),
-    Key("new", "ctrl+n", "New", "start a new, empty one: a budget, a fault, a job"),
-    Key("open", "ctrl+o", "Open", "choose what to work on: a saved budget, a job and link"),
+    Key("new", "ctrl+n", "New", "start a new, empty one: a budget, a fault, a job, a closure"),
+    Key(
+        "open",
+        "ctrl+o",
+        "Open",
+        "choose what to work on: a saved budget, a job and link, trace files, a job in the list",
+    ),
     Key("save", "ctrl+s", "Save", "save onto a job's link"),
     Key("add", "ctrl+a", "Add", "add an item, a row, a link"),
     Key("remove", "ctrl+x", "Remove", "remove the picked item, row or reading (a job asks first)"),
@@ -102,7 +107,12 @@ COMMON: tuple[Key, ...] = (
     Key("done", "ctrl+d", "Done", "mark done, or open again"),
     Key("export", "ctrl+w", "Export", "write a report: CSV, Markdown, HTML, hand-off"),
     Key("note", "ctrl+l", "Note", "log a note"),
-    Key("filter", "ctrl+y", "Show", "cycle what the list or the entry shows"),
+    Key(
+        "filter",
+        "ctrl+y",
+        "Show",
+        "change what is shown: which jobs, which values, a fibre's history, which events",
+    ),
 )
 
 #: Keys that belong to a kind of work rather than to every workspace (moving in a list or a
@@ -170,7 +180,17 @@ USES: dict[str, tuple[Use, ...]] = {
         Use("move_down", "move_item(1)", "move the picked item towards end B", show=False),
     ),
     "meter": (
-        Use("open", "pick_job", "choose the job and link the results go into"),
+        Use(
+            "save",
+            "pick_job",
+            "choose the job's link the readings are saved onto (each one as it is typed)",
+        ),
+        Use(
+            "open",
+            "pick_job",
+            "choose a job's link: its readings come into the grid, new ones go there",
+            show=False,
+        ),
         Use("recheck", "recheck", "recheck this column's reference at the end of the session"),
         Use(
             "filter",
@@ -220,7 +240,7 @@ USES: dict[str, tuple[Use, ...]] = {
     "jobs": (
         Use("find", "focus_filter", "find jobs by name, customer, site, crew, link or day"),
         Use("note", "focus_note", "type a note for this job; Enter saves it"),
-        Use("open", "focus_list", "go to the job list (arrows move it)", show=False),
+        Use("open", "focus_list", "choose a job: go to the job list (arrows move)", show=False),
         Use("done", "toggle_done", "mark the job done, or open it again", show=False),
         Use("export", "export", "write the job's report", show=False),
         Use(
@@ -262,7 +282,12 @@ USES: dict[str, tuple[Use, ...]] = {
     "splices": (
         Use("open", "pick_job", "choose the job and link"),
         Use("new", "new_closure", "set up a new closure"),
-        Use("save", "start_closure", "start the closure set up above", show=False),
+        Use(
+            "save",
+            "start_closure",
+            "save the new closure set up above onto the link, then splice (Enter there too)",
+            show=False,
+        ),
         Use("edit", "resplice", "re-splice the fibre under the cursor (the old one kept)"),
         Use("filter", "cycle_entry", "which values Enter takes", label="Fields"),
         Use("enter", None, "take the value, go to the next splice", show=False),
@@ -282,14 +307,9 @@ USES: dict[str, tuple[Use, ...]] = {
         ),
         Use(
             "save",
-            "save_traces",
-            "keep these traces on a job's link: pick the link, see what is kept, save",
-        ),
-        Use(
-            "add",
-            "fill_splices",
-            "add these losses to a closure's splice log on a job's link",
-            label="Splice log",
+            "save_what",
+            "save onto a job's link: the traces themselves (1), or their losses into a "
+            "closure's splice log (2)",
         ),
         Use("filter", "cycle_view", "cycle A→B, B→A, the instrument's own events"),
         Use("close", "back", "back to the folder's fibres", label="Fibres"),
@@ -455,26 +475,113 @@ def _sentence(text: str) -> str:
 
 def help_markdown() -> str:
     """The Keys part of the Help page, as Markdown lists (a table's key column is cut to
-    "Ctrl…" on a phone terminal, so lists, which wrap)."""
-    lines = [
-        "Function keys go to a place; Ctrl+letter keys act where you are and mean the same in "
-        "every workspace. A workspace with nothing for a key leaves it unused. Ctrl keys work "
-        "while you type, so in a text field use Home, End and Delete rather than Ctrl+A, "
-        "Ctrl+E and Ctrl+D.",
-        "",
-        "## Places",
-        "",
-        f"- **{display(PLACES['help'])} Help**: this page (Esc closes it)",
-    ]
+    "Ctrl…" on a phone terminal, so lists, which wrap). Every claim in it is read off the
+    table: which workspaces use each key, and which text-field keys the Ctrl keys take."""
+    lines = [*_mapping_lines(), "", "## Places", ""]
+    lines.append(f"- **{display(PLACES['help'])} Help**: this page (Esc closes it)")
     for ws in _workspaces():
         lines.append(f"- **{display(place_key(ws.mode))} {ws.title}**: {ws.help}")
     lines += ["", "## The same everywhere", ""]
-    lines += [f"- **{display(k.key)} {k.label}**: {k.meaning}" for k in COMMON if _used(k)]
+    for k in COMMON:
+        if _used(k):
+            where = _where(k.name)
+            tail = f"; used in {_joined(where)}" if where and k.name != "quit" else ""
+            lines.append(f"- **{display(k.key)} {k.label}**: {k.meaning}{tail}")
     lines += [f"- **{display(key)}**: {what}" for _, key, what in GENERAL]
     for mode, title in _used_places():
         lines += ["", f"## {title}", ""]
         lines += [f"- **{display(u.name)}**: {u.does}" for u in uses(mode)]
     return "\n".join(lines) + "\n"
+
+
+#: Short names of the entries of USES that are not workspaces, for "in Budget, Meter, ...".
+_SUB_NAMES = {"jobs_picker": "the job picker", "jobs_today": "End of day"}
+
+
+def _where(name: str) -> list[str]:
+    """The workspaces (then the pickers and views) that use key ``name``, in the bar's order."""
+    titles = {ws.mode: ws.title for ws in _workspaces()}
+    found = [t for m, t in titles.items() if any(u.name == name for u in uses(m))]
+    found += [
+        t for m, t in _SUB_NAMES.items() if m not in titles and any(u.name == name for u in uses(m))
+    ]
+    return found
+
+
+def _joined(words: list[str], last: str = "and") -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + f" {last} " + words[-1]
+
+
+def _mapping_lines() -> list[str]:
+    """How the mapping works, said from the table: the places, which Ctrl keys a workspace
+    leaves unused, and what a text field gives up to them."""
+    modes = [ws.mode for ws in _workspaces()]
+    first, last = _workspaces()[0], _workspaces()[-1]
+    places = (
+        f"Function keys go to a place: {display(PLACES['help'])} Help, "
+        f"{display(place_key(first.mode))} {first.title} to "
+        f"{display(place_key(last.mode))} {last.title}."
+    )
+    ctrl = (
+        "Ctrl+letter keys act where you are. Each one has a single meaning, listed below with "
+        "the workspaces that use it; a workspace with nothing for a key leaves it unused "
+        "rather than giving it another meaning."
+    )
+    alt = [
+        k for k in LOCAL if k.key.startswith("alt+") and any(_where_in(k.name, m) for m in modes)
+    ]
+    lines = [f"{places} {ctrl}"]
+    if alt:
+        keys_ = _joined([display(k.key) for k in alt])
+        lines += ["", f"Alt+letter keys ({keys_}) go to a field of the set-up; Enter goes back."]
+    taken = _taken_from_fields()
+    if taken:
+        lines += ["", taken]
+    return lines
+
+
+def _where_in(name: str, mode: str) -> bool:
+    return any(u.name == name for u in uses(mode))
+
+
+def _taken_from_fields() -> str:
+    """What a text field's own Ctrl keys become: read off Textual's Input bindings."""
+    from textual.widgets import Input
+
+    ours = {
+        _BY_NAME[u.name].key
+        for us in USES.values()
+        for u in us
+        if u.action is not None and _BY_NAME[u.name].key.startswith("ctrl+")
+    }
+    instead: list[tuple[str, str]] = []  # (our ctrl key, the field's other key for it)
+    lost: list[tuple[str, str]] = []  # (our ctrl key, what the field did with it)
+    for b in Input.BINDINGS:
+        if not isinstance(b, Binding):
+            continue
+        names = [k.strip() for k in b.key.split(",")]
+        for key in names:
+            if key in ours:
+                other = [n for n in names if n != key and "+" not in n]
+                if other:
+                    instead.append((key, other[0]))
+                else:
+                    lost.append((key, b.description[:1].lower() + b.description[1:]))
+    if not instead and not lost:
+        return ""
+    text = "Ctrl keys act even while you type in a field."
+    if instead:
+        text += (
+            f" Where this page gives {_joined([display(k) for k, _ in instead], 'or')} a use, "
+            f"a text field there takes {_joined([display(o) for _, o in instead])} instead"
+        )
+        text += "; " if lost else "."
+    else:
+        text += " Where this page gives a key a use, a text field there "
+    if lost:
+        gone = _joined([f"{display(k)} ({what})" for k, what in lost])
+        text += f"{'it ' if instead else ''}gives up its own {gone} the same way."
+    return text
 
 
 def _used(key: Key) -> bool:

@@ -63,3 +63,24 @@ async def test_every_key_name_shows_whole(tmp_path: Path, size) -> None:
         await pilot.press("escape")
         await pilot.pause()
         assert not isinstance(app.screen, HelpScreen)
+
+
+def test_help_says_which_workspaces_use_each_key() -> None:
+    # Review A6: Help said every Ctrl key means the same everywhere while Meter saved on
+    # Ctrl+O and Traces used Ctrl+A for the splice log. Now each key names where it is used.
+    text = help_markdown()
+    save = keys.display("save")
+    assert (
+        f"- **{save} Save**: save onto a job's link; used in "
+        "Budget, Meter, Fault, Splices and Traces" in text
+    )
+    add = next(
+        line for line in text.splitlines() if line.startswith(f"- **{keys.display('add')} Add**")
+    )
+    assert "Traces" not in add
+    # What a text field gives up, read against Textual's own Input bindings (home,ctrl+a ...).
+    from textual.widgets import Input
+
+    field_keys = {k for b in Input.BINDINGS for k in b.key.split(",")}  # type: ignore[union-attr]
+    assert {"home", "ctrl+a", "end", "ctrl+e", "delete", "ctrl+d"} <= field_keys
+    assert "a text field there takes Home, End and Delete instead" in text

@@ -109,3 +109,37 @@ async def test_quit_works_from_a_dialog(tmp_path: Path) -> None:
         await pilot.press("ctrl+q")
         await pilot.pause()
     assert app.return_code == 0
+
+
+async def test_ctrl_s_saves_onto_a_link_in_every_workspace_that_saves(tmp_path: Path) -> None:
+    # Review A6: the meter saved on Ctrl+O only and Traces filled the splice log on Ctrl+A
+    # (which means "add"). Ctrl+S now starts the save onto a job's link in each of them.
+    from fieldkit.tui.widgets.choice_dialog import ChoiceDialog
+    from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+    app = _app(tmp_path, "meter")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert isinstance(app.screen, JobLinkPicker)
+        await pilot.press("escape")
+        await pilot.pause()
+        await pilot.press(keys.place_key("traces"))
+        await pilot.pause()
+        before = app.screen
+        await pilot.press("ctrl+a")  # no "add" in Traces: nothing happens
+        await pilot.pause()
+        assert app.screen is before
+        await pilot.press("ctrl+s")  # the traces, or their losses into a splice log
+        await pilot.pause()
+        assert isinstance(app.screen, ChoiceDialog)
+        shown = " ".join(str(o.prompt) for o in app.screen.query_one(OptionList).options)
+        assert "traces" in shown and "splice log" in shown
+    saves = [m for m in keys.USES if any(u.name == "save" for u in keys.uses(m))]
+    assert {"budget", "meter", "fault", "splices", "traces"} <= set(saves)
+    # Each use of Ctrl+A adds something where you are; none writes onto a job's link.
+    for mode in keys.USES:
+        for use in keys.uses(mode):
+            if use.name == "add":
+                assert "splice log" not in use.does and "job's link" not in use.does, mode

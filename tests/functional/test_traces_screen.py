@@ -149,7 +149,9 @@ async def test_fill_a_closures_splice_log_and_ask_before_overwriting(
         await pilot.press("enter")
         await pilot.pause()
         for _round in range(2):
-            await pilot.press("ctrl+a")  # add the losses to a closure's splice log
+            await pilot.press("ctrl+s")  # save onto a job's link: 2, the losses into a splice log
+            await pilot.pause()
+            await pilot.press("2")
             await pilot.pause()
             # the job: nothing names it, so it is picked by hand the first time (Down), then
             # offered as the last one used (Down stays on the only job)
@@ -201,6 +203,8 @@ async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
         for number in (1, 2):
             await pilot.press("ctrl+s")
             await pilot.pause()
+            await pilot.press("1")  # the traces themselves
+            await pilot.pause()
             # the job: no file names it, so none is picked the first time (Down picks the
             # only one); then the last one used is offered
             await pilot.press("down", "enter")
@@ -231,6 +235,8 @@ async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
         assert screen.session.paired is not None
         await pilot.press("ctrl+s")
         await pilot.pause()
+        await pilot.press("1")  # the traces themselves
+        await pilot.pause()
         await pilot.press("enter", "enter")
         await pilot.pause()
         await pilot.press("escape")
@@ -259,6 +265,8 @@ async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Pa
         await app.workers.wait_for_complete()
         await pilot.pause()
         await pilot.press("ctrl+s")
+        await pilot.pause()
+        await pilot.press("1")  # the traces themselves
         await pilot.pause()
         await pilot.press("down", "enter", "enter")  # nothing names the job: Down picks it
         await pilot.pause()

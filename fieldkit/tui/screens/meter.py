@@ -340,7 +340,7 @@ class MeterScreen(Screen[None]):
         # On a phone terminal the summary has five rows: each line fits the width (shorter
         # words, fewer worst fibres) rather than wrapping, so both wavelengths' worst show.
         lines = self.session.summary_lines(
-            width=42 if self.narrow else 0, open_key=keys.display("open")
+            width=42 if self.narrow else 0, open_key=keys.display("save")
         )
         # Wrapped: a wrapped line keeps its indent, a count or a time is never parted.
         self.query_one("#meter-summary", Static).update(Wrapped("\n".join(lines)), layout=False)
@@ -425,7 +425,9 @@ class MeterScreen(Screen[None]):
 
         s = self.session
         if s.job_id is None or s.link_id is None:
-            self._say("Ctrl+O: choose a job first; the history is the one saved in the job.")
+            self._say(
+                f"{keys.display('save')}: choose a job first; the history is the one in the job."
+            )
             return
         self.flush_saves()
         try:

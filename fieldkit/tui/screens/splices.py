@@ -40,7 +40,7 @@ LOSS_CHARS = r"[0-9A-Za-z .,+\-\u2212]*"
 #: What the workspace shows before a link is chosen: what it is for and the first key.
 _START_HELP = (
     "Log the splices of a closure on a job's link.\n\n"
-    "1. Ctrl+O: choose the job and link (or name a new one).\n"
+    f"1. {keys.display('open')}: choose the job and link (or name a new one).\n"
     "2. Open a closure, or start one: name, route distance, cables, trays.\n"
     "3. Type each splice's loss; Enter moves to the next fibre in TIA-598 colour order.\n\n"
     "Each splice is saved as it is typed. OTDR losses from both ends come from Traces (F8)."
@@ -82,18 +82,20 @@ class SplicesScreen(Screen[None]):
         yield WorkspaceBar()
         with Horizontal(id="sp-top"):
             yield Static("No link chosen yet", id="sp-where")
-            yield Button("Open ^O", id="sp-open", compact=True)
+            yield Button(f"Open {keys.hint('open')}", id="sp-open", compact=True)
         yield Static(_START_HELP, id="sp-start-help")
         with Vertical(id="sp-setup"):
             yield OptionList(id="sp-closures")
-            yield Static("New closure: fill in, then Enter or ^S", id="sp-setup-title")
+            yield Static(
+                f"New closure: fill in, Enter or {keys.hint('save')} saves it", id="sp-setup-title"
+            )
             with Vertical(id="sp-form"):
                 for key, label, hint in _SETUP:
                     with Horizontal(classes="sp-row"):
                         yield Label(label, classes="sp-label")
                         yield Input(placeholder=hint, id=f"setup-{key}", compact=True)
                 yield Static("", id="sp-setup-error", classes="sp-error")
-                yield Button("Start closure ^S", id="sp-start", compact=True)
+                yield Button(f"Save closure {keys.hint('save')}", id="sp-start", compact=True)
         with Vertical(id="sp-entry"):
             yield Static("", id="sp-fibre")
             yield Static("", id="sp-colour")

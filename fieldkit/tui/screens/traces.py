@@ -41,8 +41,8 @@ class TracesScreen(Screen[None]):
 
     CSS_PATH = "traces.tcss"
     AUTO_FOCUS = "#traces-a"
-    # Keys follow the project's key table: Ctrl+O open, Ctrl+S save onto a job's link (pick
-    # the link, then confirm), Ctrl+A add the losses to a closure's splice log, Ctrl+G go to the
+    # Keys follow the project's key table: Ctrl+O open, Ctrl+S save onto a job's link (the
+    # traces, or their losses into a closure's splice log; then the link), Ctrl+G go to the
     # result (here: the break, in Fault), Ctrl+Y cycle what the list shows, Esc close (back to
     # the folder's fibres).
     BINDINGS = keys.bindings("traces")
@@ -322,6 +322,26 @@ class TracesScreen(Screen[None]):
         if len(found) == 1:
             return found[0]
         return self.job_link if self.job_link in found else None
+
+    def action_save_what(self) -> None:
+        """Ctrl+S: onto a job's link go the traces (1) or their losses, into a splice log (2)."""
+        from fieldkit.tui.widgets.choice_dialog import ChoiceDialog
+
+        def chosen(what: str | None) -> None:
+            if what == "traces":
+                self.action_save_traces()
+            elif what == "splices":
+                self.action_fill_splices()
+
+        self.app.push_screen(
+            ChoiceDialog(
+                "Save onto a job's link",
+                [("The traces", "traces"), ("Their losses, into a splice log", "splices")],
+                start="traces",
+                note="Arrows and Enter, or a digit; Esc saves nothing.",
+            ),
+            chosen,
+        )
 
     @work(exclusive=True, group="traces-job", exit_on_error=False)
     async def action_save_traces(self) -> None:
