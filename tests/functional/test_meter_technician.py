@@ -9,6 +9,7 @@ import pytest
 from textual.widgets import Input, Label, Static
 
 from fieldkit import safety
+from fieldkit.tui import keys
 from fieldkit.tui.app import make_app
 from fieldkit.tui.screens.meter import KEYS_HINT, KEYS_HINT_NARROW, MeterScreen
 from fieldkit.tui.widgets.readings_grid import GridColumn, ReadingsGrid
@@ -53,7 +54,10 @@ async def test_setup_labels_say_what_they_mean(
         assert error.display and "1 (A->B only) or 2 (both directions)" in str(error.render())
         # No job chosen yet is the normal start, not an error.
         summary = _text(screen, "#meter-summary")
-        assert "Ctrl+O: choose a job to save into" in summary and "Not saved" not in summary
+        assert (
+            f"{keys.display('save')}: choose a job to save into" in summary
+            and "Not saved" not in summary
+        )
 
 
 @pytest.mark.parametrize("size", SIZES)
