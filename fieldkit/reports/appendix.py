@@ -32,6 +32,7 @@ from fieldkit.jobs.splices import (
 from fieldkit.reports.common import (
     ReferenceLabels,
     ReportContext,
+    arrows,
     fmt_local,
 )
 from fieldkit.reports.document import (
@@ -73,7 +74,7 @@ def _results_table(link: Link, labels: ReferenceLabels, ctx: ReportContext, used
             [
                 str(r.fibre),
                 fmt_nm(r.wavelength_nm),
-                r.direction,
+                arrows(r.direction),
                 fmt_db(r.loss_db),
                 fmt_db(r.limit_db),
                 fmt_db(margin_db(r)),
@@ -183,7 +184,7 @@ def appendix_sections(
                     link.label,
                     str(r.fibre),
                     fmt_nm(r.wavelength_nm),
-                    r.direction,
+                    arrows(r.direction),
                     fmt_db(r.loss_db),
                     fmt_db(r.limit_db),
                     verdict(r),
@@ -273,7 +274,7 @@ def appendix_sections(
                         link.label,
                         str(t.fibre),
                         fmt_nm(t.wavelength_nm) if t.wavelength_nm is not None else "",
-                        t.direction,
+                        arrows(t.direction),
                         fmt_local(t.at, ctx),
                         t.by,
                         fmt_local(t.superseded_at, ctx),

@@ -53,6 +53,7 @@ from fieldkit.reports.checks import application_text, transceiver_text
 from fieldkit.reports.common import (
     ReferenceLabels,
     ReportContext,
+    arrows,
     fmt_local,
     job_times,
     local_day,
@@ -233,7 +234,7 @@ def _summary_section(job: Job, ctx: ReportContext, used: Used) -> Section:
             )
     if table.rows:
         sec.blocks.append(table)
-    items = open_items(job)
+    items = [arrows(item) for item in open_items(job)]
     items = [f"{link.label}: no results yet" for link in job.links if not link.results] + items
     if items:
         # a summary page, not a list of 144 fibres: the link pages name every one
@@ -327,7 +328,7 @@ def _results_matrix(link: Link, labels: ReferenceLabels, used: Used) -> Table:
     for one in results:
         rows.setdefault((one.fibre, one.direction), {})[round(one.wavelength_nm, 1)] = one
     for (fibre, direction), by_nm in sorted(rows.items()):
-        cells = [str(fibre), direction]
+        cells = [str(fibre), arrows(direction)]
         worst: list[Count] = []
         refs: list[str] = []
         for nm in wavelengths:
@@ -535,7 +536,7 @@ def _legend(used: Used) -> Legend:
         )
     )
     entries.append(
-        ("A->B, B->A", "direction of the measurement, from end A to end B of the link or back")
+        ("A→B, B→A", "direction of the measurement, from end A to end B of the link or back")
     )
     entries.append(("margin dB", "limit minus loss; negative when over the limit"))
     if used.superseded:
@@ -569,13 +570,13 @@ def _legend(used: Used) -> Legend:
                 "OTDR events",
                 "splice (non-reflective), reflective (a connector or a break), gainer (a splice "
                 "reading a gain one way: judge it on the average of both directions), end (the "
-                "fibre's end); A<->B: both directions averaged",
+                "fibre's end); A↔B: both directions averaged",
             )
         )
     entries.append(
         (
             "chart",
-            "dashed line: the limit; one marker per fibre and direction (A->B left, B->A "
+            "dashed line: the limit; one marker per fibre and direction (A→B left, B→A "
             "right); marker shapes as above",
         )
     )

@@ -14,6 +14,7 @@ import math
 
 from fieldkit.jobs.counting import Count
 from fieldkit.jobs.reports import fmt_db, fmt_nm
+from fieldkit.reports.common import arrows
 from fieldkit.reports.document import Chart
 from fieldkit.text import escape
 
@@ -198,7 +199,8 @@ def svg(chart: Chart) -> str:
         shift = (-slot * 0.2 if p.direction == "A->B" else slot * 0.2) if both else 0.0
         x, y = x_of(p.fibre) + shift, y_of(p.loss_db)
         against = f", limit {fmt_db(p.limit_db)} dB" if p.limit_db is not None else ""
-        tip = f"fibre {p.fibre} {p.direction}: {fmt_db(p.loss_db)} dB{against}, {p.count.value}"
+        way = arrows(p.direction)
+        tip = f"fibre {p.fibre} {way}: {fmt_db(p.loss_db)} dB{against}, {p.count.value}"
         out.append(f"<g><title>{e(tip)}</title>{marker(p.count, x, y, size)}</g>")
     out.append("</svg>")
     return "".join(out)

@@ -122,3 +122,10 @@ class ReferenceLabels:
 
     def items(self) -> list[tuple[str, str]]:
         return [(label, ident) for ident, label in self._labels.items()]
+
+
+def arrows(text: str) -> str:
+    """Directions as the report writes them, one arrow form everywhere (the splice log's and
+    the workspaces'): ``A->B`` -> ``A→B``, ``A<->B`` -> ``A↔B``. The CSV and the hand-off keep
+    the stored ``A->B`` (plain text for spreadsheets and scripts)."""
+    return text.replace("<->", "\u2194").replace("->", "\u2192")

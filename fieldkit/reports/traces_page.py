@@ -17,6 +17,7 @@ from fieldkit.jobs.reports import (
 from fieldkit.jobs.trace_summary import TRACE_VERDICT, over_limits
 from fieldkit.reports.common import (
     ReportContext,
+    arrows,
     fmt_local,
 )
 from fieldkit.reports.document import (
@@ -32,7 +33,7 @@ from fieldkit.traces.lines import KIND_LABELS
 
 def _trace_caption(t: TraceRecord, ctx: ReportContext) -> str:
     nm = f" at {fmt_nm(t.wavelength_nm)} nm" if t.wavelength_nm is not None else ""
-    way = "both directions averaged" if t.direction == "A<->B" else t.direction
+    way = "both directions averaged" if t.direction == "A<->B" else arrows(t.direction)
     return f"Fibre {t.fibre}{nm}, {way}"
 
 
@@ -139,7 +140,7 @@ def trace_section(job: Job, link: Link, ctx: ReportContext, used: Used) -> Secti
     sec.para(
         f"{len(current)} {'trace' if len(current) == 1 else 'traces'} kept on this link"
         + (f"; {fails} with an event over its limit" if fails else "; no event over its limit")
-        + ". Distances from end A (a one-way B->A trace: from end B). Limits and their sources "
+        + ". Distances from end A (a one-way B→A trace: from end B). Limits and their sources "
         "in Appendix B."
     )
     used.traces = True

@@ -374,7 +374,7 @@ def test_the_chart_is_self_contained_svg_with_one_marker_per_result() -> None:
     assert drawn.startswith("<svg") and drawn.endswith("</svg>")
     assert not re.search(r"<script|href|url\(|<image|@import", drawn)
     assert drawn.count("<g><title>") == 3
-    assert "fibre 2 A-&gt;B: 3.50 dB, limit 3.00 dB, fail" in drawn  # its tooltip, escaped
+    assert "fibre 2 A→B: 3.50 dB, limit 3.00 dB, fail" in drawn  # its tooltip, escaped
     assert "limit 3.00 dB" in drawn  # the dashed limit line is labelled
     assert ">4</text>" in drawn  # the axis runs to the link's fibre count
 
@@ -515,14 +515,14 @@ def test_a_links_stored_traces_are_drawn_with_their_event_table() -> None:
     assert page.count('<figure class="trace"><svg') == 1  # the current trace only
     assert not re.search(r"<script|<image|url\(", page)
     # one table row per stored event, numbered as the analysis numbered them
-    assert "Fibre 3 at 1550 nm, A-&gt;B: events" in page
+    assert "Fibre 3 at 1550 nm, A→B: events" in page
     for event in record.events:
         assert f'<td class="num">{event.number}</td>' in page
     assert "end-to-end loss" in page
     appendix = html[html.index("<h2>Appendix A") :]
     assert "Superseded OTDR traces" in appendix and "0" * 19 + "1" in appendix
     md = export(job, "md", ctx())
-    assert "Trace drawing (in the HTML report): Fibre 3 at 1550 nm, A->B" in md
+    assert "Trace drawing (in the HTML report): Fibre 3 at 1550 nm, A→B" in md
 
 
 def test_the_summary_lists_at_most_twelve_open_items_and_counts_the_rest() -> None:

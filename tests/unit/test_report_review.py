@@ -51,3 +51,13 @@ def test_times_line_says_which_zone() -> None:
 def test_html_cells_break_no_word() -> None:
     html = export(_backbone(), "html", ReportContext(tz=UTC))
     assert "overflow-wrap: anywhere" not in html and "word-break: break-all" not in html
+
+
+def test_report_writes_one_arrow_form() -> None:
+    """C27: directions are "A→B" in the results, the legend and the open items, as in the splice
+    log and the workspaces; the CSV keeps the stored "A->B" for spreadsheets."""
+    job = _backbone()
+    for fmt in ("md", "html"):
+        text = export(job, fmt, ReportContext(tz=UTC))
+        assert "A→B" in text and "A->B" not in text and "A-&gt;B" not in text, fmt
+    assert "A->B" in export(job, "csv", ReportContext(tz=UTC))
