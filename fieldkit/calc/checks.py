@@ -114,6 +114,8 @@ class DispersionCheck:
             "low_ps_nm": self.low_ps_nm,
             "high_ps_nm": self.high_ps_nm,
             "worst_ps_nm": self.worst_ps_nm,
+            # low/high are real extremes only where D can be either sign (see either_sign)
+            "either_sign": self.either_sign,
             "tolerance_ps_nm": self.tolerance_ps_nm,
             "tolerance_pass": self.tolerance_pass,
             "spectral_width_nm": self.spectral_width_nm,

@@ -260,13 +260,16 @@ def fibre_data_lines(data: FibreData) -> list[str]:
         lines.append(f"cable cut-off ≤ {nm(data.cable_cutoff_nm)} (standard)")
     if data.mode_field_diameter_um is not None:
         lines.append(f"mode-field diameter {format_number(data.mode_field_diameter_um)} µm")
-    if data.dispersion_low_ps_nm_km is not None and data.dispersion_high_ps_nm_km is not None:
-        lines.append(
-            minus(
-                f"dispersion {data.dispersion_low_ps_nm_km:.2f} to "
-                f"{data.dispersion_high_ps_nm_km:.2f} ps/(nm·km) (G.652 D(λ))"
-            )
+    low, high = data.dispersion_low_ps_nm_km, data.dispersion_high_ps_nm_km
+    if low is not None and high is not None:
+        # A range only where D can be either sign; elsewhere G.652 bounds only |D| (S0 has a
+        # maximum, no minimum): the other end, 0 from S0 = 0, is no real fibre's.
+        shown = (
+            f"{low:.2f} to {high:.2f}"
+            if low < 0 < high
+            else f"|D| up to {max(abs(low), abs(high)):.2f}"
         )
+        lines.append(minus(f"dispersion {shown} ps/(nm·km) (G.652 D(λ))"))
     if data.modal_bandwidth_mhz_km is not None:
         lines.append(f"modal bandwidth {format_number(data.modal_bandwidth_mhz_km)} MHz·km")
     if len(lines) == 1:

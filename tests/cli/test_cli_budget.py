@@ -374,3 +374,11 @@ def test_text_output_names_the_dispersion_worst_case():
     assert result.returncode == 0, result.stderr
     assert "Dispersion at 1550 nm: worst |D|·L 216.1 ps/nm over 12 km" in result.stdout
     assert "0.0 ps/nm" not in result.stdout and "Beyond loss" not in result.stdout
+
+
+def test_json_says_whether_the_dispersion_range_is_real():
+    # Review A10: at 1550 nm the low end 0.0 comes from S0 = 0 (no G.652 fibre's); the JSON
+    # says so, so a reader does not take it as a minimum. 1310 nm lies inside λ0's range.
+    data = budget_json("--fibre-type", "OS2", "--length", "12 km", "--wavelength", "1310,1550")
+    near, far = data["checks"]["dispersion"]
+    assert (near["either_sign"], far["either_sign"]) == (True, False)

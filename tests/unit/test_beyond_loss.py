@@ -189,6 +189,10 @@ def test_fibre_data_of_om3_and_g652d(lib):
     assert sm.dispersion_high_ps_nm_km == pytest.approx(0.909, abs=1e-3)
     assert sm.dispersion_low_ps_nm_km == pytest.approx(-1.309, abs=1e-3)
     lines = fibre_data_lines(sm)
+    assert "dispersion −1.31 to 0.91 ps/(nm·km) (G.652 D(λ))" in lines
+    # at 1550 nm D has one sign: only its largest magnitude, 18.01 (review A10), no "0.00 to"
+    far = fibre_data_lines(fibre_data(lib.fibres["G.652.D"], 1550.0))
+    assert "dispersion |D| up to 18.01 ps/(nm·km) (G.652 D(λ))" in far
     assert any("V = π·d·NA/λ" in line for line in lines)
     assert any("λc = π·d·NA/2.405" in line for line in lines)
 
