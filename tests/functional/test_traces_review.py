@@ -54,6 +54,14 @@ async def _open(pilot: Any, path: str) -> TracesScreen:
     return screen
 
 
+async def _save_traces(pilot: Any) -> None:
+    """Ctrl+S, then "the traces" (the first choice) in what goes onto the link."""
+    await pilot.press("ctrl+s")
+    await pilot.pause()
+    await pilot.press("enter")
+    await pilot.pause(0.2)
+
+
 def _picked(app: Any) -> tuple[str | None, str | None]:
     picker = app.screen
     assert isinstance(picker, JobLinkPicker)
@@ -73,8 +81,7 @@ async def test_save_picker_offers_the_link_the_folder_names(tmp_path: Path) -> N
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         await _open(pilot, str(folder))
-        await pilot.press("ctrl+s")
-        await pilot.pause(0.2)
+        await _save_traces(pilot)
         job = app.store.load(BACKBONE)
         assert _picked(app) == (BACKBONE, job.link_by_label("LIB-TH-01").id)
 
@@ -85,8 +92,7 @@ async def test_save_picker_offers_the_cable_id_of_a_single_trace(tmp_path: Path)
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         await _open(pilot, str(folder / "F07_1550_AB.sor"))
-        await pilot.press("ctrl+s")
-        await pilot.pause(0.2)
+        await _save_traces(pilot)
         assert _picked(app)[0] == BACKBONE
 
 
@@ -101,8 +107,7 @@ async def test_save_picker_picks_nothing_when_nothing_names_a_link(tmp_path: Pat
         await pilot.pause()
         screen = await _open(pilot, str(folder / "trace.sor"))
         assert screen.session.a is not None
-        await pilot.press("ctrl+s")
-        await pilot.pause(0.2)
+        await _save_traces(pilot)
         assert _picked(app) == (None, None)
         await pilot.press("enter")
         await pilot.pause()
@@ -153,8 +158,7 @@ async def test_fibre_7_reads_as_the_splice_log_and_says_its_limits(
         note = str(screen.query_one("#traces-note", Static).render())
         assert "splice max 0.30 dB" in note and "splice or bend" in note
         assert "Shipped" in note and "G.652.D" in note and "Ctrl+S" in note
-        await pilot.press("ctrl+s")  # LIB-TH-01 offered; its presets judge from now on
-        await pilot.pause(0.2)
+        await _save_traces(pilot)  # LIB-TH-01 offered; its presets judge from now on
         await pilot.press("enter", "enter")  # the job, its link
         await pilot.pause(0.2)
         await pilot.press("escape")  # nothing saved
