@@ -262,6 +262,20 @@ class FieldkitApp(App[None]):
             self.theme = HIGH_CONTRAST
 
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        """The palette: the actions of the screen it was opened from, by name from the key
+        table (fieldkit.tui.keys.commands), then the places and the app's own commands.
+        Textual's own entries (widget help, maximize, screenshot, the theme list) are left out:
+        they speak to developers, not crews."""
+        for mode in keys.screen_modes(type(screen).BINDINGS):
+            for command in keys.commands(mode):
+                if screen.check_action(command.action.split("(")[0], ()) is False:
+                    continue
+                yield SystemCommand(
+                    command.title,
+                    command.help,
+                    partial(screen.run_action, command.action),
+                    command.discover,
+                )
         for ws in WORKSPACES:
             yield SystemCommand(
                 f"Open {ws.title}",
@@ -272,14 +286,21 @@ class FieldkitApp(App[None]):
             "Help and safety", "Keys and safety cautions (F1)", self.action_show_help
         )
         yield SystemCommand(
-            "Sunlight theme", "High-contrast theme on or off (Ctrl+T)", self.action_toggle_sunlight
+            keys.SUNLIGHT_THEME,
+            f"{keys.SUNLIGHT_ABOUT[:1].upper()}{keys.SUNLIGHT_ABOUT[1:]} "
+            f"({keys.display('ctrl+t')})",
+            self.action_toggle_sunlight,
         )
         yield SystemCommand(
             "Operator name",
             f"Who is working (now: {self.operator or 'not set'}); stamped on everything saved",
             self.action_set_operator,
         )
-        yield from super().get_system_commands(screen)
+        yield SystemCommand(
+            "Quit fieldkit",
+            f"Asks first if a workspace holds unsaved work ({keys.display('quit')})",
+            self.action_quit,
+        )
 
 
 def make_app(

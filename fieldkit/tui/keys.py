@@ -45,19 +45,24 @@ class _Workspace(Protocol):
 
 
 __all__ = [
+    "COMMAND_NAMES",
     "COMMON",
+    "KEYLESS_COMMANDS",
     "LOCAL",
     "PLACES",
     "USES",
     "Key",
     "Use",
+    "Command",
     "app_bindings",
     "bindings",
+    "commands",
     "display",
     "help_markdown",
     "hint",
     "place_key",
     "readme_tables",
+    "screen_modes",
 ]
 
 
@@ -152,9 +157,18 @@ PLACES: dict[str, str] = {
 }
 
 #: App-wide keys besides the workspaces (Help and README list them after the places).
+#: The one name of the theme for reading in sunlight (Help, the palette, the tooltip).
+SUNLIGHT_THEME = "Sunlight theme"
+SUNLIGHT_ABOUT = "black on white, high contrast for direct sunlight; on or off (remembered)"
+
 GENERAL: tuple[tuple[str, str, str], ...] = (
-    ("palette", "ctrl+p", "the command palette: every command and workspace by name"),
-    ("sunlight", "ctrl+t", "the high-contrast theme for direct sunlight, on or off (remembered)"),
+    (
+        "palette",
+        "ctrl+p",
+        "the command palette: this workspace's actions, the workspaces and fieldkit's own "
+        "commands, by name",
+    ),
+    ("sunlight", "ctrl+t", f"the {SUNLIGHT_THEME}: {SUNLIGHT_ABOUT}"),
     ("focus", "tab", "the next field; Shift+Tab the previous one"),
 )
 
@@ -317,6 +331,119 @@ USES: dict[str, tuple[Use, ...]] = {
     # Reserved: "fibre" (issue 13), if the fibre data view becomes a workspace of its own.
 }
 
+#: The command palette's name of a use, where the first words of ``does`` do not read as one.
+#: Every use with an action is a palette command of its workspace (``commands``).
+COMMAND_NAMES: dict[tuple[str, str], str] = {
+    ("budget", "add"): "Add an item",
+    ("budget", "new"): "New budget",
+    ("meter", "save"): "Save the readings onto a job's link",
+    ("meter", "open"): "Open a job's link: its readings",
+    ("meter", "recheck"): "Recheck the reference",
+    ("meter", "filter"): "History of this fibre",
+    ("meter", "column_next"): "Next column",
+    ("meter", "column_previous"): "Previous column",
+    ("meter", "to_reference"): "Go to the Ref field",
+    ("meter", "to_wavelength"): "Go to the Wavelength field",
+    ("meter", "to_fibres"): "Go to the Fibres field",
+    ("fault", "new"): "New fault",
+    ("jobs", "find"): "Find jobs",
+    ("jobs", "note"): "Note on this job",
+    ("jobs", "open"): "Go to the job list",
+    ("jobs", "export"): "Export the job",
+    ("jobs", "result"): "End of day",
+    ("jobs", "filter"): "Show all, open or done jobs",
+    ("jobs", "recheck"): "Reload the jobs",
+    ("jobs", "new"): "New job",
+    ("jobs", "remove"): "Delete the job",
+    ("jobs_picker", "close"): "Cancel: nothing saved",
+    ("jobs_today", "export"): "Export the day",
+    ("splices", "open"): "Open a job's link: its splice log",
+    ("splices", "new"): "New closure",
+    ("splices", "save"): "Save the new closure",
+    ("splices", "close"): "Keep what is there",
+    ("traces", "result"): "Send the picked event to Fault",
+    ("traces", "save"): "Save onto a job's link: traces or splice log",
+    ("traces", "filter"): "Cycle the events shown",
+}
+
+#: Palette commands with no key of their own, each reached by a key and a choice after it:
+#: (mode, name, action, what it does, the key, the choice).
+KEYLESS_COMMANDS: tuple[tuple[str, str, str, str, str, str], ...] = (
+    (
+        "traces",
+        "Keep the traces on a job's link",
+        "save_traces",
+        "the traces themselves, their events and curves",
+        "save",
+        "1",
+    ),
+    (
+        "traces",
+        "Fill a closure's splice log",
+        "fill_splices",
+        "these losses into a closure's splice log on a job's link",
+        "save",
+        "2",
+    ),
+)
+
+#: Keys that move rather than act: their commands are found by name, not listed at first.
+_MOVES = {"next", "previous", "page_down", "page_up", "column_next", "column_previous"}
+
+
+@dataclass(frozen=True, slots=True)
+class Command:
+    """One entry of the command palette: a workspace action, by name, with its key."""
+
+    title: str
+    help: str  # what it does, and the key
+    action: str  # the screen's Textual action
+    discover: bool  # listed before anything is typed
+
+
+def commands(mode: str) -> list[Command]:
+    """The palette commands of ``mode``: each use with an action, by name, then the keyless ones.
+
+    An action already listed (two keys for one action) is listed once, under its first key."""
+    out: list[Command] = []
+    seen: set[str] = set()
+    for use in uses(mode):
+        if use.action is None or use.action in seen:
+            continue
+        seen.add(use.action)
+        title = COMMAND_NAMES.get((mode, use.name)) or _first_words(use.does)
+        out.append(
+            Command(
+                title,
+                f"{_sentence(use.does)} ({display(use.name)})",
+                use.action,
+                use.name not in _MOVES,
+            )
+        )
+    for where, title, action, what, key, then in KEYLESS_COMMANDS:
+        if where == mode:
+            help_ = f"{_sentence(what)} ({display(key)}, then {then})"
+            out.append(Command(title, help_, action, True))
+    return out
+
+
+def _first_words(does: str) -> str:
+    for cut in (" (", "; ", ": "):
+        does = does.split(cut)[0]
+    return _sentence(does)
+
+
+def screen_modes(screen_bindings: Iterable[BindingType]) -> list[str]:
+    """The USES entries a screen's bindings come from (``bindings(mode)`` ids ``mode.name``)."""
+    modes: list[str] = []
+    for b in screen_bindings:
+        if isinstance(b, Binding) and b.id and "." in b.id:
+            mode = b.id.split(".")[0]
+            if mode in USES and mode not in modes:
+                modes.append(mode)
+    return modes
+
+
 #: The titles used in Help and the README for entries of USES that are not workspaces.
 _SUB_TITLES = {
     "jobs_picker": "Choosing a job and link (Save and Open in every workspace)",
@@ -454,7 +581,7 @@ def app_bindings(workspaces: Iterable[_Workspace]) -> list[BindingType]:
             "toggle_sunlight",
             "Sunlight",
             id="app.sunlight",
-            tooltip="Switch to the high-contrast theme for direct sunlight, and back",
+            tooltip=f"{SUNLIGHT_THEME}: {SUNLIGHT_ABOUT}",
             show=False,  # the footer's room goes to Quit and the workspace's keys; Help lists it
         )
     )
