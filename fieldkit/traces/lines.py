@@ -6,13 +6,24 @@ matter most (number, distance, kind, loss) stay and the rest go to a second line
 
 from __future__ import annotations
 
+import re
+
 from fieldkit.traces.analysis import TraceEvent, TraceResult
 from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.model import InstrumentEvent
 from fieldkit.traces.pairing import PairedEvent, PairResult
 from fieldkit.traces.verdicts import Limits
 
-MINUS = "-"  # the project prints ASCII minus signs in tables so they paste into spreadsheets
+#: Negative numbers shown to people take the typographic minus, as every result the project
+#: prints (README, "The command line"); --json keeps numbers and the CSV plain ASCII.
+MINUS = "\u2212"
+
+
+def signed(text: str) -> str:
+    """``text`` with each minus sign before a digit written as U+2212 (``-48.0`` -> ``−48.0``),
+    hyphens in words and ranges left alone."""
+    return re.sub(r"(?<![\w.])-(?=\d)", MINUS, text)
+
 
 #: What a table calls each event kind (``kind`` in --json stays the key): a non-reflective loss
 #: is a splice or a bend, a trace alone cannot tell which.
@@ -31,7 +42,7 @@ def fmt(value: float | None, digits: int = 2, unit: str = "") -> str:
     text = f"{value:.{digits}f}"
     if text.startswith("-") and float(text) == 0.0:
         text = text[1:]
-    return f"{text} {unit}".rstrip()
+    return signed(f"{text} {unit}".rstrip())
 
 
 def distance(value_m: float) -> str:
@@ -224,7 +235,7 @@ def limits_lines(limits: Limits, wavelength_nm: float | None = None) -> list[str
     at = f" at {wavelength_nm:g} nm" if wavelength_nm else ""
 
     def value(v: float | None, unit: str, digits: int = 2) -> str:
-        return "none" if v is None else f"{v:.{digits}f} {unit}"
+        return "none" if v is None else signed(f"{v:.{digits}f} {unit}")
 
     return [
         f"limits{at} from {origin_words(limits.origin)}:",
@@ -264,7 +275,7 @@ def limits_summary(limits: Limits) -> str:
     defaults are said to be those, with the fibre whose attenuation they take."""
 
     def value(v: float | None, digits: int = 2) -> str:
-        return "-" if v is None else f"{v:.{digits}f}"
+        return "-" if v is None else signed(f"{v:.{digits}f}")
 
     origin = limits.origin if by_link(limits.origin) else f"shipped defaults, {fibre_of(limits)}"
     return (

@@ -113,15 +113,18 @@ def event_verdict(
         judged = True
         if loss_db > limit:
             failed = True
-            reasons.append(f"loss {loss_db:.2f} dB > {which} max {limit:.2f} dB ({source})")
+            reasons.append(
+                f"loss {loss_db:.2f} dB > {which} max {limit:.2f} dB ".replace("-", "\u2212")
+                + f"({source})"
+            )
     r_limit = limits.reflectance_limit_db
     if kind == "reflective" and reflectance_db is not None and r_limit is not None:
         judged = True
         if reflectance_db > r_limit:
             failed = True
             reasons.append(
-                f"reflectance {reflectance_db:.1f} > {r_limit:.1f} dB "
-                f"({limits.polish}, {limits.reflectance_source})"
+                f"reflectance {reflectance_db:.1f} > {r_limit:.1f} dB ".replace("-", "\u2212")
+                + f"({limits.polish}, {limits.reflectance_source})"
             )
     bend = "; splice or bend" if kind != "reflective" else ""
     if failed:

@@ -198,3 +198,17 @@ async def test_a_long_folder_path_shows_its_end_and_marks_the_cut_start(tmp_path
         shown = "".join(s.text for s in field.render_line(0)).rstrip()
         assert shown.startswith("…") and shown.endswith("LIB-TH-01"), shown
         assert field.value == str(deep / "LIB-TH-01")  # the typed path stays as typed
+
+
+async def test_negative_levels_take_the_typographic_minus(tmp_path: Path) -> None:
+    """C26: the project's policy (README, "The command line": results print negative numbers
+    with U+2212): the level axis and the cursor readout of fibre 7, the limits line."""
+    from fieldkit.tui.widgets.trace_plot import TracePlot
+
+    app, folder = _demo(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = await _open_fibre_7(pilot, folder)
+        drawn = str(screen.query_one("#traces-plot", TracePlot).render())
+        assert "\u221213.4 dB" in drawn and "-13" not in drawn
+        assert "reflectance \u2212" in screen.session.limits_summary()  # -45 dB (IEC 61753-1)

@@ -23,7 +23,7 @@ from textual.binding import Binding
 from textual.message import Message
 from textual.widget import Widget
 
-from fieldkit.traces.lines import KIND_LABELS
+from fieldkit.traces.lines import KIND_LABELS, signed
 
 #: Braille dot bits by (row 0-3, column 0-1) within a cell (Unicode braille patterns).
 _BITS = np.array([[0x01, 0x08], [0x02, 0x10], [0x04, 0x20], [0x40, 0x80]], dtype=np.int32)
@@ -268,7 +268,7 @@ class TracePlot(Widget, can_focus=True):
         if v is None:
             return "no trace"
         level = self.level_at(v.cursor_m)
-        text = f"{v.cursor_m:.1f} m  {level:.2f} dB" if level is not None else ""
+        text = signed(f"{v.cursor_m:.1f} m  {level:.2f} dB") if level is not None else ""
         if v.current is not None:
             m = v.marks[v.current]
             kind = KIND_LABELS["splice"] if m.kind == "splice" else m.kind  # a splice or a bend
@@ -315,10 +315,10 @@ class TracePlot(Widget, can_focus=True):
             if 0 <= cursor_col < width:
                 segment.stylize("reverse", cursor_col, cursor_col + 1)
             if r == 0:
-                label = f"{hi + pad:.1f} dB".replace("-0.0", "0.0")
+                label = signed(f"{hi + pad:.1f} dB".replace("-0.0", "0.0"))
                 segment = Text(label, style="dim") + segment[len(label) :]
             elif r == plot_h - 1 and plot_h > 1:
-                label = f"{lo - pad:.1f} dB".replace("-0.0", "0.0")
+                label = signed(f"{lo - pad:.1f} dB".replace("-0.0", "0.0"))
                 segment = Text(label, style="dim") + segment[len(label) :]
             text.append_text(segment)
             text.append("\n")
