@@ -8,6 +8,7 @@ UTC for machines. Tests pin the zone with ``TZ`` or :attr:`ReportContext.tz`.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from datetime import date, datetime, timedelta, tzinfo
 
@@ -129,3 +130,13 @@ def arrows(text: str) -> str:
     the workspaces'): ``A->B`` -> ``A→B``, ``A<->B`` -> ``A↔B``. The CSV and the hand-off keep
     the stored ``A->B`` (plain text for spreadsheets and scripts)."""
     return text.replace("<->", "\u2194").replace("->", "\u2192")
+
+
+_NEGATIVE = re.compile(r"-(?=\d+(?:\.\d+)?(?: ?(?:dBm|dB|nm|m|km|ps/nm|ps|%))?$)")
+
+
+def minus(cell: str) -> str:
+    """A table cell that is a negative number (``-0.66``, ``-7.00 dBm``) with the typographic
+    minus (U+2212), the README's policy for results people read; other text (``JC-3``, a
+    note) as it is. The CSV keeps ASCII for spreadsheets."""
+    return _NEGATIVE.sub("\u2212", cell, count=1) if cell.startswith("-") else cell

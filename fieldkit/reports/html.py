@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from fieldkit.jobs.counting import Count
 from fieldkit.reports import chart
+from fieldkit.reports.common import minus
 from fieldkit.reports.document import (
     Block,
     Chart,
@@ -106,11 +107,11 @@ def _table(table: Table) -> str:
         mark = table.marks[i] if i < len(table.marks) else ""
         cls = f' class="{mark}"' if mark else ""
         cells = "".join(
-            f'<td class="num">{e(c)}</td>'
+            f'<td class="num">{e(minus(c))}</td>'
             if j in table.numeric
-            else f'<td class="nowrap">{e(c)}</td>'
+            else f'<td class="nowrap">{e(minus(c))}</td>'
             if j in table.nowrap
-            else f"<td>{e(c)}</td>"
+            else f"<td>{e(minus(c))}</td>"
             for j, c in enumerate(row)
         )
         out.append(f"<tr{cls}>{cells}</tr>")

@@ -8,6 +8,7 @@ horizontal rule.
 from __future__ import annotations
 
 from fieldkit.reports import chart
+from fieldkit.reports.common import minus
 from fieldkit.reports.document import (
     Block,
     Chart,
@@ -37,7 +38,7 @@ def _table(table: Table) -> list[str]:
         + " |"
     )
     for row in table.rows:
-        out.append("| " + " | ".join(m(c) for c in row) + " |")
+        out.append("| " + " | ".join(m(minus(c)) for c in row) + " |")
     return [*out, ""]
 
 

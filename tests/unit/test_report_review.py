@@ -61,3 +61,14 @@ def test_report_writes_one_arrow_form() -> None:
         text = export(job, fmt, ReportContext(tz=UTC))
         assert "A→B" in text and "A->B" not in text and "A-&gt;B" not in text, fmt
     assert "A->B" in export(job, "csv", ReportContext(tz=UTC))
+
+
+def test_report_tables_write_negative_numbers_with_the_typographic_minus() -> None:
+    """C26: README ("The command line"): results print negative numbers with U+2212. The demo
+    backbone has negative ones: fibre 7's margin at 1550 nm, the references' dBm."""
+    job = _backbone()
+    md = export(job, "md", ReportContext(tz=UTC))
+    assert re.search(r"\| \u2212\d", md) and not re.search(r"\| -\d", md)
+    html = export(job, "html", ReportContext(tz=UTC))
+    assert re.search(r">\u2212\d", html) and not re.search(r"<td[^>]*>-\d", html)
+    assert re.search(r"(^|,)-\d", export(job, "csv", ReportContext(tz=UTC)), re.M)  # ASCII
