@@ -346,7 +346,11 @@ class TraceSession:
                 limits = limits_summary(self.settings.limits.for_wavelength(wavelengths[0]))
         else:
             fibres = self.fibres(self.fibre_number() or 1)
-            what = "both directions averaged" if self.paired is not None else self.a_direction
+            what = (
+                "both directions averaged"
+                if self.paired is not None
+                else self.a_direction.replace("->", "\u2192")  # shown A→B, as the table
+            )
             names = ", ".join(fibres[0].files)
             lines = [f"this fibre, {what}: {names}"]
         lines.append(f"judged by {limits}")

@@ -223,7 +223,8 @@ async def test_save_the_open_pair_onto_a_link_confirm_and_save_again(
             await app.workers.wait_for_complete()
             await pilot.pause()
             status = str(screen.query_one("#traces-status", Static).render())
-            assert status.startswith("Saved 1 trace (fibre 1 A<->B 1550 nm) onto job Mill Lane")
+            # the arrows as the workspace writes them (review C27)
+            assert status.startswith("Saved 1 trace (fibre 1 A↔B 1550 nm) onto job Mill Lane")
             traces = store.load(job.id).links[0].traces
             assert len(traces) == number and traces[-1].current
         first, second = store.load(job.id).links[0].traces

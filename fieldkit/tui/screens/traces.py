@@ -385,6 +385,7 @@ class TracesScreen(Screen[None]):
             text, problem = saved.summary(), False
         except Exception as exc:  # noqa: BLE001 - a store or input problem, shown as one line
             text, problem = f"not saved: {exc}", True
+        text = text.replace("<->", "\u2194").replace("->", "\u2192")  # A↔B, A→B: as shown
         self.app.call_from_thread(self._saved, text[:1].upper() + text[1:], problem)
 
     def _saved(self, text: str, problem: bool) -> None:
