@@ -83,6 +83,9 @@ class TraceSession:
     shown: str = "AB"  # which direction the plot shows
     instrument_table: bool = False  # the instrument's own events instead of ours
     a_direction: str = "A->B"  # of ``a``: a folder's fibre with only its B→A trace opens B→A
+    #: The chosen link's closures: a non-reflective event at one is a splice, elsewhere it is
+    #: a splice or a bend (a trace alone cannot tell)
+    closures: tuple[Closure, ...] = ()
 
     # -- opening ---------------------------------------------------------------------------
     def open(self, path_a: str, path_b: str = "") -> str:
@@ -239,23 +242,51 @@ class TraceSession:
         # narrow: number, distance, kind, the (average) loss and the verdict
         if self.paired is not None:
             paired = [paired_cells(e) for e in self.paired.events]
-            return paired if wide else [(*c[:3], c[5], c[6]) for c in paired]
+            return self._at_closures(paired if wide else [(*c[:3], c[5], c[6]) for c in paired])
         cells = [event_cells(ev) for ev in r.events]
-        return cells if wide else [(*c[:4], c[6]) for c in cells]
+        return self._at_closures(cells if wide else [(*c[:4], c[6]) for c in cells])
+
+    def closure_at(self, distance_m: float) -> Closure | None:
+        """The closure whose route position is within 10 % of ``distance_m`` from end A (cable
+        helix and slack put fibre distance a few percent beyond route distance), if any."""
+        near = [c for c in self.closures if abs(distance_m - c.route_m) <= 0.1 * max(c.route_m, 1)]
+        return min(near, key=lambda c: abs(distance_m - c.route_m)) if near else None
+
+    def _from_a(self) -> bool:
+        """True when the table's distances are from end A (a pair, or A→B shown)."""
+        if self.instrument_table:
+            return False
+        return self.paired is not None or (self.a_direction == "A->B" and self.shown == "AB")
+
+    def _at_closures(self, rows: list[tuple[str, ...]]) -> list[tuple[str, ...]]:
+        """Rows whose non-reflective event sits at one of the link's closures called "splice"."""
+        if not self.closures or not self._from_a():
+            return rows
+        events = self.paired.events if self.paired is not None else self.current.events  # type: ignore[union-attr]
+        at = {str(e.number) for e in events if e.kind == "splice" and self.closure_at(e.distance_m)}
+        return [(r[0], r[1], "splice", *r[3:]) if r[0] in at else r for r in rows]
 
     def event_note(self, number: int) -> str:
         """The verdict reason and the gainer note of an event, for the line under the table."""
         if self.instrument_table:
             return "the instrument's own event, as recorded in the file (not judged)"
+        found = None
         if self.paired is not None:
             for e in self.paired.events:
                 if e.number == number:
-                    return "; ".join(t for t in (e.verdict_reason, e.note) if t)
+                    found = (e.kind, e.distance_m, [e.verdict_reason, e.note])
         elif self.current is not None:
             for ev in self.current.events:
                 if ev.number == number:
-                    return ev.verdict_reason
-        return ""
+                    found = (ev.kind, ev.distance_m, [ev.verdict_reason])
+        if found is None:
+            return ""
+        kind, distance_m, texts = found
+        closure = self.closure_at(distance_m) if kind == "splice" and self._from_a() else None
+        if closure is not None:  # the reason's "splice or bend": here, the closure's splice
+            texts = [t.replace("; splice or bend", "") for t in texts]
+            texts.append(f"at closure {closure.name} (route {closure.route_m:.0f} m)")
+        return "; ".join(t for t in texts if t)
 
     def folder_counts(self) -> str:
         """ "12 files, 6 fibres" of the open folder."""

@@ -165,6 +165,11 @@ async def test_fibre_7_reads_as_the_splice_log_and_says_its_limits(
         await pilot.pause()
         note = str(screen.query_one("#traces-note", Static).render())
         assert "Shipped" not in note and "the link's fusion splice limit" in note
+        # the link's closure JC-3 (route 1150 m, fieldkit.jobs.demo) is at event 1 (1162 m):
+        # a splice there; the loss at 1815 m matches no closure: still a splice or a bend
+        kinds = [str(table.get_row_at(k)[2]) for k in range(2)]
+        assert kinds == ["splice", "splice/bend"]
+        assert "at closure JC-3 Market Street" in note and "splice or bend" not in note
 
 
 async def test_the_distance_axis_ends_on_a_round_figure_past_the_fibre_end(tmp_path: Path) -> None:

@@ -296,6 +296,13 @@ class TracesScreen(Screen[None]):
             return None
         if not self._judge_by(link, f"link {link.label!r} of job {job.name!r}"):
             return None
+        from fieldkit.traces.session import Closure
+
+        self.session.closures = tuple(
+            Closure(c.name, c.route_distance_m)
+            for c in link.closures
+            if c.route_distance_m is not None
+        )
         self._show()
         self._note(self.session.limits_summary())
         return choice, job, link
