@@ -123,7 +123,9 @@ def appendix_sections(
             "Id",
         ],
         numeric={3, 4, 6},
-        nowrap={11, 12},
+        # the link's label and the id whole; the times break between date and time, so the
+        # table keeps to the page
+        nowrap={1, 13},
         caption="References",
     )
     for link in job.links:

@@ -72,3 +72,16 @@ def test_report_tables_write_negative_numbers_with_the_typographic_minus() -> No
     html = export(job, "html", ReportContext(tz=UTC))
     assert re.search(r">\u2212\d", html) and not re.search(r"<td[^>]*>-\d", html)
     assert re.search(r"(^|,)-\d", export(job, "csv", ReportContext(tz=UTC)), re.M)  # ASCII
+
+
+def test_reference_table_keeps_ids_and_link_labels_whole() -> None:
+    """B18: the appendix's References table keeps each full id and the link's label on one
+    line (they broke over three) and lets the times break between date and time instead."""
+    job = _backbone()
+    html = export(job, "html", ReportContext(tz=UTC))
+    refs = html[html.index("<caption>References</caption>") :]
+    refs = refs[: refs.index("</table>")]
+    for ref in job.links[0].references:
+        assert f'<td class="nowrap">{ref.id}</td>' in refs
+    assert '<td class="nowrap">LIB-TH-01</td>' in refs
+    assert not re.search(r'<td class="nowrap">\d{4}-\d\d-\d\d \d\d:\d\d', refs)
