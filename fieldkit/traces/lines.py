@@ -293,5 +293,5 @@ def defaults_notice(limits: Limits, wide: bool = True) -> str:
     if by_link(limits.origin):
         return ""
     if wide:
-        return f"Shipped default limits ({fibre_of(limits)}); Ctrl+S: judge by a job link's presets"
-    return f"Shipped limits ({fibre_of(limits)}); Ctrl+S: a link's"
+        return f"Shipped default limits ({fibre_of(limits)}); ^S: judge by a job link's presets"
+    return f"Shipped limits ({fibre_of(limits)}); ^S: a link's"

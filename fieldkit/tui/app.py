@@ -13,6 +13,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from textual.app import App, SystemCommand
+from textual.binding import Binding
 from textual.css.stylesheet import Stylesheet
 from textual.screen import Screen
 
@@ -143,7 +144,7 @@ class FieldkitApp(App[None]):
             NameDialog(
                 "Who is working?",
                 "Your name goes on every result, reference, budget, fault, splice and note "
-                "you save (change it from the command palette, Ctrl+P).",
+                f"you save (change it from the command palette, {keys.display('ctrl+p')}).",
                 self.operator,
             ),
             given,
@@ -181,7 +182,7 @@ class FieldkitApp(App[None]):
         self.push_screen(
             AskDialog(
                 "Unsaved work",
-                [f"{names}: changes not saved onto a job (Ctrl+S there saves them)."],
+                [f"{names}: changes not saved onto a job ({keys.display('save')} there saves)."],
                 [("go", f"Go to {title}"), ("quit", "Quit without saving")],
             ),
             answered,
@@ -260,6 +261,10 @@ class FieldkitApp(App[None]):
         else:
             self._previous_theme = self.theme
             self.theme = HIGH_CONTRAST
+
+    def get_key_display(self, binding: Binding) -> str:
+        """Every key shown in one style, the key table's (``^S``, ``Esc``, ``F1``)."""
+        return binding.key_display or keys.display(binding.key)
 
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
         """The palette: the actions of the screen it was opened from, by name from the key

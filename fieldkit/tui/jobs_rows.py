@@ -58,7 +58,7 @@ def no_job_head(any_jobs: bool, jobs_dir: Path) -> Text:
             f"No jobs yet. {keys.display('new')} (or New) starts one: its name, customer, "
             f"site and crew; then its links. Jobs are kept in {jobs_dir}."
         )
-    return plain("No job matches; clear the find field (Ctrl+F) to see them all.")
+    return plain(f"No job matches; clear the find field ({keys.display('find')}) to see them all.")
 
 
 def prompt(s: JobSummary) -> str:

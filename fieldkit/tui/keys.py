@@ -476,8 +476,13 @@ def key_of(name: str) -> Key:
     return _BY_NAME[name]
 
 
+#: How a Ctrl key is written everywhere (footers, buttons, hints, Help, README): ``^S``.
+CTRL = "^"
+
+
 def display(key: str) -> str:
-    """A Textual key name as people write it: ``ctrl+n`` -> ``Ctrl+N``, ``pagedown`` -> ``PgDn``.
+    """A Textual key name in the one style used everywhere: ``ctrl+n`` -> ``^N``,
+    ``ctrl+left`` -> ``^←``, ``alt+r`` -> ``Alt+R``, ``pagedown`` -> ``PgDn``.
 
     A name of COMMON or LOCAL (``"save"``) is looked up first.
     """
@@ -486,13 +491,14 @@ def display(key: str) -> str:
     first = key.split(",")[0]
     parts = first.split("+")
     shown = [_KEY_WORDS.get(p, p.upper() if len(p) <= 3 else p.capitalize()) for p in parts]
+    if shown[0] == "Ctrl" and len(shown) > 1:
+        return CTRL + "+".join(shown[1:])
     return "+".join(shown)
 
 
 def hint(name: str) -> str:
-    """The short form for a button label: ``^S`` for Ctrl+S, ``F7`` for a function key."""
-    shown = display(name)
-    return "^" + shown[5:] if shown.startswith("Ctrl+") and len(shown) == 6 else shown
+    """A key for a button label or a hint line: the same as :func:`display` (``^S``, ``F7``)."""
+    return display(name)
 
 
 def place_key(mode: str) -> str:
@@ -644,6 +650,7 @@ def _mapping_lines() -> list[str]:
     leaves unused, and what a text field gives up to them."""
     modes = [ws.mode for ws in _workspaces()]
     first, last = _workspaces()[0], _workspaces()[-1]
+    ctrl_is = f"{CTRL} is the Ctrl key: {display('ctrl+s')} means hold Ctrl and press S."
     places = (
         f"Function keys go to a place: {display(PLACES['help'])} Help, "
         f"{display(place_key(first.mode))} {first.title} to "
@@ -657,7 +664,7 @@ def _mapping_lines() -> list[str]:
     alt = [
         k for k in LOCAL if k.key.startswith("alt+") and any(_where_in(k.name, m) for m in modes)
     ]
-    lines = [f"{places} {ctrl}"]
+    lines = [ctrl_is, "", f"{places} {ctrl}"]
     if alt:
         keys_ = _joined([display(k.key) for k in alt])
         lines += ["", f"Alt+letter keys ({keys_}) go to a field of the set-up; Enter goes back."]

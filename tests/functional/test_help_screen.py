@@ -28,12 +28,13 @@ def test_help_lists_the_key_table_with_each_workspace_use() -> None:
     # common meaning of each used key once (our mapping, explained).
     text = help_markdown()
     assert "Function keys go to a place" in text
-    assert "- **Ctrl+Q Quit**:" in text and "- **Ctrl+S Save**: save onto a job's link" in text
+    assert "- **^Q Quit**:" in text and "- **^S Save**: save onto a job's link" in text
+    assert "^ is the Ctrl key" in text
     budget = text.split("## Budget (F3)")[1].split("## ")[0]
-    assert "- **Ctrl+A**: choose the kind of item to add" in budget
-    assert "- **Ctrl+R**" not in budget  # Ctrl+R is recheck/reload; the budget has none
+    assert "- **^A**: choose the kind of item to add" in budget
+    assert "- **^R**" not in budget  # Ctrl+R is recheck/reload; the budget has none
     meter = text.split("## Meter (F4)")[1].split("## ")[0]
-    assert "- **Ctrl+R**: recheck" in meter
+    assert "- **^R**: recheck" in meter
 
 
 @pytest.mark.parametrize("size", SIZES)
@@ -57,9 +58,9 @@ async def test_every_key_name_shows_whole(tmp_path: Path, size) -> None:
             shots.append(app.export_screenshot())
         assert len(shots) > 1 and body.scroll_y > 0
         seen = "".join(shots)
-        for key in ("Ctrl+P", "Ctrl+T", "Ctrl+Q", "Ctrl+S", "Ctrl+X", "Ctrl+R"):
+        for key in ("^P", "^T", "^Q", "^S", "^X", "^R"):
             assert key in seen, key
-        assert "Ctrl…" not in seen
+        assert "Ctrl…" not in seen and "^…" not in seen
         await pilot.press("escape")
         await pilot.pause()
         assert not isinstance(app.screen, HelpScreen)

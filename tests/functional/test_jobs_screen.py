@@ -11,6 +11,7 @@ from fieldkit import locations
 from fieldkit.jobs.demo import build, local_day_start
 from fieldkit.jobs.models import now
 from fieldkit.jobs.store import JobStore
+from fieldkit.tui import keys
 from fieldkit.tui.app import make_app
 from fieldkit.tui.screens.jobs import ExportDialog, JobsScreen
 from fieldkit.tui.screens.jobs_today import EndOfDayScreen
@@ -170,7 +171,7 @@ async def test_empty_store_says_so(tmp_path: Path) -> None:
         # The issue: live Done/Export/Note controls beside "0 of 0 jobs". Now the details say
         # where jobs are kept and how to start one; the job's controls are off.
         head = _text(app.screen, "#job-head")
-        assert "No jobs yet" in head and "Ctrl+N" in head
+        assert "No jobs yet" in head and keys.display("new") in head
         assert str(tmp_path / "d" / "jobs") in head.replace("\n", "")
         for wid in ("#job-done", "#job-export", "#job-note", "#job-delete"):
             assert app.screen.query_one(wid).disabled, wid

@@ -143,3 +143,27 @@ async def test_ctrl_s_saves_onto_a_link_in_every_workspace_that_saves(tmp_path: 
         for use in keys.uses(mode):
             if use.name == "add":
                 assert "splice log" not in use.does and "job's link" not in use.does, mode
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_keys_show_in_one_style_and_help_has_its_own_footer(tmp_path: Path, size) -> None:
+    # Review C34: footers showed "^q" while buttons and Help said "^S" / "Ctrl+S"; with Help
+    # open the footer still showed the workspace's keys. The key table's style (keys.display)
+    # is the one shown everywhere, and Help's footer is Esc to close (and Quit).
+    app = _app(tmp_path, "jobs")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        shown = list(app.screen.query_one(Footer).query(FooterKey))
+        assert shown
+        for key in shown:
+            assert key.key_display == keys.display(key.key), key.key
+        assert shown[0].key_display == "^Q"  # not Textual's "^q"
+        buttons = [str(b.label) for b in app.screen.query("Button")]
+        assert any(keys.display("done") in label for label in buttons), buttons
+        await pilot.press("f1")
+        await pilot.pause()
+        footer_keys = list(app.screen.query_one(Footer).query(FooterKey))
+        words = [k.description for k in footer_keys if not k.has_class("-command-palette")]
+        assert "Close" in words and "Find" not in words, words
+        close = next(k for k in footer_keys if k.description == "Close")
+        assert close.key_display == keys.display("escape") == "Esc"

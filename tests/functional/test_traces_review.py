@@ -157,7 +157,7 @@ async def test_fibre_7_reads_as_the_splice_log_and_says_its_limits(
             assert first[2:4] == ["splice/bend", "0.34"]
         note = str(screen.query_one("#traces-note", Static).render())
         assert "splice max 0.30 dB" in note and "splice or bend" in note
-        assert "Shipped" in note and "G.652.D" in note and "Ctrl+S" in note
+        assert "Shipped" in note and "G.652.D" in note and "^S" in note
         await _save_traces(pilot)  # LIB-TH-01 offered; its presets judge from now on
         await pilot.press("enter", "enter")  # the job, its link
         await pilot.pause(0.2)

@@ -29,7 +29,7 @@ def test_readme_key_tables_are_the_generated_ones() -> None:
     text = README.read_text(encoding="utf-8")
     assert keys.readme_with_tables(text) == text
     block = text.split(keys.README_START)[1].split(keys.README_END)[0]
-    assert "| Ctrl+S | save onto a job's link |" in block
+    assert "| ^S | save onto a job's link |" in block
     assert "| F3 | Budget |" in block
 
 
@@ -99,19 +99,21 @@ def test_quit_is_the_first_binding_of_every_screen() -> None:
 
 
 def test_key_names_read_as_people_write_them() -> None:
-    assert keys.display("ctrl+n") == "Ctrl+N"
-    assert keys.display("save") == "Ctrl+S"
+    # One style everywhere (review C34): ^ for Ctrl, as the footer shows it.
+    assert keys.display("ctrl+n") == "^N"
+    assert keys.display("save") == "^S"
     assert keys.display("pagedown") == "PgDn"
-    assert keys.display("ctrl+up") == "Ctrl+↑"
+    assert keys.display("ctrl+up") == "^↑"
+    assert keys.display("alt+r") == "Alt+R"
     assert keys.display("f7") == "F7"
     assert keys.display("escape") == "Esc"
     assert keys.hint("save") == "^S"
-    assert keys.tip("budget", "save") == "Save this budget onto a job's link (Ctrl+S)"
+    assert keys.tip("budget", "save") == "Save this budget onto a job's link (^S)"
 
 
 def test_help_lists_only_keys_in_use() -> None:
     text = keys.help_markdown()
     # Ctrl+E (edit) is kept for the job editor being built: not shown until a workspace uses it.
     used = {u.name for uses in keys.USES.values() for u in uses}
-    assert ("- **Ctrl+E Edit**" in text) == ("edit" in used)
-    assert "- **Ctrl+Q Quit**" in text
+    assert ("- **^E Edit**" in text) == ("edit" in used)
+    assert "- **^Q Quit**" in text

@@ -10,6 +10,7 @@ from textual.widgets import Button, Markdown
 
 from fieldkit import safety
 from fieldkit.tui import keys
+from fieldkit.tui.widgets.key_footer import KeyFooter
 
 
 def help_markdown() -> str:
@@ -53,7 +54,9 @@ class HelpScreen(ModalScreen[None]):
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-body"):
             yield Markdown(help_markdown())
-            yield Button("Close (Esc)", id="help-close", variant="primary")
+            yield Button(f"Close ({keys.display('close')})", id="help-close", variant="primary")
+        # Its own footer: Esc closes, not the keys of the workspace underneath.
+        yield KeyFooter()
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         self.dismiss()

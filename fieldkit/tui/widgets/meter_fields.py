@@ -19,7 +19,7 @@ from fieldkit.tui.meter_session import DIRECTION_WORDS
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
 from fieldkit.tui.widgets.readings_grid import EntryInput
 
-_COLUMNS = f"{keys.display('column_previous')}/{keys.display('column_next')[5:]}"
+_COLUMNS = f"{keys.display('column_previous')}/{keys.display('column_next')[len(keys.CTRL) :]}"
 #: The keys, in the entry line's message until a reading or an error takes it.
 KEYS_HINT = (
     f"Enter: next fibre · ↑↓ PgUp PgDn: fibres · {_COLUMNS}: columns · "
