@@ -126,10 +126,12 @@ class ReferenceLabels:
 
 
 def arrows(text: str) -> str:
-    """Directions as the report writes them, one arrow form everywhere (the splice log's and
-    the workspaces'): ``A->B`` -> ``A→B``, ``A<->B`` -> ``A↔B``. The CSV and the hand-off keep
-    the stored ``A->B`` (plain text for spreadsheets and scripts)."""
-    return text.replace("<->", "\u2194").replace("->", "\u2192")
+    """Directions as the report writes them: the one arrow policy of
+    :func:`fieldkit.text.numbers.arrow` (``A->B`` -> ``A→B``, ``A<->B`` -> ``A↔B``). The CSV
+    and the hand-off keep the stored ``A->B`` (plain text for spreadsheets and scripts)."""
+    from fieldkit.text.numbers import arrow
+
+    return arrow(text)
 
 
 _NEGATIVE = re.compile(r"-(?=\d+(?:\.\d+)?(?: ?(?:dBm|dB|nm|m|km|ps/nm|ps|%))?$)")
@@ -139,4 +141,6 @@ def minus(cell: str) -> str:
     """A table cell that is a negative number (``-0.66``, ``-7.00 dBm``) with the typographic
     minus (U+2212), the README's policy for results people read; other text (``JC-3``, a
     note) as it is. The CSV keeps ASCII for spreadsheets."""
-    return _NEGATIVE.sub("\u2212", cell, count=1) if cell.startswith("-") else cell
+    from fieldkit.text.numbers import MINUS  # the one minus policy (text/numbers.py)
+
+    return _NEGATIVE.sub(MINUS, cell, count=1) if cell.startswith("-") else cell

@@ -15,7 +15,8 @@ from fieldkit.traces.pairing import PairedEvent, PairResult
 from fieldkit.traces.verdicts import Limits
 
 #: Negative numbers shown to people take the typographic minus, as every result the project
-#: prints (README, "The command line"); --json keeps numbers and the CSV plain ASCII.
+#: prints (README, "The command line"; the policy of fieldkit/text/numbers.py, which this
+#: layer may not import); --json keeps numbers and the CSV plain ASCII.
 MINUS = "\u2212"
 
 
