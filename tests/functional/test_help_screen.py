@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+import io
 from pathlib import Path
 
 import pytest
+from rich.console import Console
 from textual.containers import VerticalScroll
 
 from fieldkit.tui import keys
@@ -85,3 +87,30 @@ def test_help_says_which_workspaces_use_each_key() -> None:
     field_keys = {k for b in Input.BINDINGS for k in b.key.split(",")}  # type: ignore[union-attr]
     assert {"home", "ctrl+a", "end", "ctrl+e", "delete", "ctrl+d"} <= field_keys
     assert "a text field there takes Home, End and Delete instead" in text
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_no_stray_scrollbar_blocks_down_the_right_edge(tmp_path: Path, size) -> None:
+    # Review C35: the scrollbar thumb's ends were drawn with partial-block glyphs (Textual's
+    # ScrollBarRender.VERTICAL_BARS), stray blocks down Help's right edge at 80x24. The thumb
+    # is whole cells now, one column wide, on every page.
+    partial_blocks = "▁▂▃▄▅▆▇"
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        await pilot.press("f1")
+        await pilot.pause()
+        body = app.screen.query_one("#help-body", VerticalScroll)
+        assert body.show_vertical_scrollbar and body.scrollbar_size_vertical == 1
+        bar = body.vertical_scrollbar
+        console = Console(width=1, height=bar.size.height, file=io.StringIO(), color_system=None)
+        while True:
+            options = console.options.update_dimensions(1, bar.size.height)
+            drawn = "".join(seg.text for seg in console.render(bar.render(), options))
+            assert drawn.strip() == "", body.scroll_y  # the thumb is its colour, no glyphs
+            assert not any(g in drawn for g in partial_blocks), body.scroll_y
+            before = body.scroll_y
+            await pilot.press("pagedown")
+            await pilot.pause()
+            if body.scroll_y == before:
+                break

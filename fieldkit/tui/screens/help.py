@@ -2,10 +2,13 @@
 
 from __future__ import annotations
 
+from typing import ClassVar
+
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import VerticalScroll
 from textual.screen import ModalScreen
+from textual.scrollbar import ScrollBarRender
 from textual.widgets import Button, Markdown
 
 from fieldkit import safety
@@ -29,6 +32,13 @@ separator (`-7,5 dBm`).
 """
 
 
+class WholeCellScrollBar(ScrollBarRender):
+    """A scrollbar whose thumb is whole cells: Textual draws a thumb's ends with partial-block
+    glyphs (▁ … ▇), which a terminal shows as stray blocks down the page's right edge."""
+
+    VERTICAL_BARS: ClassVar[list[str]] = [" "]
+
+
 class HelpScreen(ModalScreen[None]):
     # On a phone terminal the page takes the whole screen and drops the Markdown indents, so
     # a line holds about 40 characters instead of 26.
@@ -40,6 +50,10 @@ class HelpScreen(ModalScreen[None]):
     }
     HelpScreen.-narrow #help-body Markdown {
         padding: 0 1 0 0;
+    }
+    HelpScreen #help-body {
+        scrollbar-size-vertical: 1;
+        scrollbar-background: $panel;
     }
     HelpScreen #help-body MarkdownH1 {
         margin: 1 0 1 0;
@@ -57,6 +71,11 @@ class HelpScreen(ModalScreen[None]):
             yield Button(f"Close ({keys.display('close')})", id="help-close", variant="primary")
         # Its own footer: Esc closes, not the keys of the workspace underneath.
         yield KeyFooter()
+
+    def on_mount(self) -> None:
+        self.query_one(
+            "#help-body", VerticalScroll
+        ).vertical_scrollbar.renderer = WholeCellScrollBar
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         self.dismiss()
