@@ -24,6 +24,7 @@ from dataclasses import dataclass
 from enum import StrEnum
 
 from fieldkit.jobs.models import FLAG_NEGATIVE_LOSS, Job, Link, LossResult, result_in_doubt
+from fieldkit.text.numbers import arrow
 
 
 class Count(StrEnum):
@@ -253,6 +254,6 @@ def open_items(job: Job) -> list[str]:
         for result, count in result_problems(link):
             items.append(
                 f"{link.label}: fibre {result.fibre} at {_nm(result.wavelength_nm)} nm "
-                f"{result.direction}: {ADVICE[count]}"
+                f"{arrow(result.direction)}: {ADVICE[count]}"
             )
     return items

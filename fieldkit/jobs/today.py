@@ -10,6 +10,7 @@ from fieldkit.jobs.counting import Tally, link_tallies, open_items
 from fieldkit.jobs.models import Job
 from fieldkit.jobs.reports import failures, fmt_db, fmt_m, fmt_nm
 from fieldkit.jobs.store import JobStore, filter_summaries, local_date
+from fieldkit.text.numbers import arrow
 from fieldkit.text.words import counted as counted  # here too: older code imports it here
 
 
@@ -102,7 +103,7 @@ def job_day(job: Job, day: date) -> JobDay:
         limit = f" > {fmt_db(r.limit_db)} dB" if r.limit_db is not None else ""
         entry.failures.append(
             f"{link.label} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
-            f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}"
+            f"{arrow(r.direction)}: {fmt_db(r.loss_db)} dB{limit}"
         )
     for link in job.links:
         if not link.results:

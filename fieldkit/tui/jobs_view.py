@@ -28,6 +28,7 @@ from fieldkit.jobs.splices import closure_summary
 from fieldkit.jobs.trace_summary import link_traces
 from fieldkit.text.escape import terminal
 from fieldkit.text.layout import fit
+from fieldkit.text.numbers import arrow
 
 # The list's rows and the job's head (no records needed: the first frame shows them from the
 # index), here too.
@@ -78,7 +79,7 @@ def failures_text(job: Job) -> RenderableType:
         limit = f" (limit {fmt_db(r.limit_db)} dB)" if r.limit_db is not None else ""
         text.append(
             f"\n✗ {terminal(link.label)} fibre {r.fibre} {fmt_nm(r.wavelength_nm)} nm "
-            f"{r.direction}: {fmt_db(r.loss_db)} dB{limit}",
+            f"{arrow(r.direction)}: {fmt_db(r.loss_db)} dB{limit}",
             style="red",
         )
     return text

@@ -36,6 +36,7 @@ from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count
 from fieldkit.jobs.models import now, result_in_doubt
 from fieldkit.jobs.today import counted
 from fieldkit.text.layout import NBSP
+from fieldkit.text.numbers import arrow, minus
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Link
@@ -318,8 +319,9 @@ def history_lines(link: Link, fibre: int) -> list[str]:
     from fieldkit.jobs.reports import fmt_time, verdict
 
     return [
-        f"{fmt_time(r.at)} {r.wavelength_nm:g} nm {r.direction}: {r.loss_db:.2f} dB "
-        f"{verdict(r)}" + (f" ({r.by})" if r.by else "")
+        minus(f"{fmt_time(r.at)} {r.wavelength_nm:g} nm {arrow(r.direction)}: {r.loss_db:.2f} dB ")
+        + f"{verdict(r)}"
+        + (f" ({r.by})" if r.by else "")
         for r in meter_log.fibre_history(link, fibre)
     ] or ["No reading of this fibre is saved in the job yet."]
 

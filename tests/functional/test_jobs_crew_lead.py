@@ -116,7 +116,7 @@ async def test_crew_lead_starts_runs_and_closes_a_job(
         await pilot.pause()
         assert isinstance(app.screen, AskDialog)
         listed = str(app.screen.query_one("#ask-text", Static).render())
-        assert "fibre 3 at 1310 nm A->B: failed, repair and retest" in listed
+        assert "fibre 3 at 1310 nm A→B: failed, repair and retest" in listed
         await pilot.press(*"repair booked")
         await pilot.click("#ask-done")
         await pilot.pause()

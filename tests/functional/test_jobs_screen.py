@@ -46,7 +46,7 @@ async def test_filter_open_note_and_done_by_keyboard(tmp_path: Path, size: tuple
         await pilot.press("enter", "enter")  # to the list, open the job
         await pilot.pause()
         assert "North Reservoir feed repair" in _text(screen, "#job-head")
-        assert "RES-N-FEED fibre 5 1550 nm A->B: 4.63 dB" in _text(screen, "#job-failures")
+        assert "RES-N-FEED fibre 5 1550 nm A→B: 4.63 dB" in _text(screen, "#job-failures")
         await pilot.press("ctrl+l", *"Marks confirmed", "enter")  # a note in two keystrokes
         await pilot.pause()
         await pilot.press("ctrl+d")

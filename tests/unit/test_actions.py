@@ -220,7 +220,7 @@ def test_a_reference_problem_is_counted_and_listed_as_an_open_item(store: JobSto
     (row,) = job_summary(saved)
     assert (row.reference_problems, row.no_limit) == (1, 0)
     assert open_items(saved) == [
-        "L: fibre 3 at 1310 nm A->B: reference problem, clean and re-reference"
+        "L: fibre 3 at 1310 nm A→B: reference problem, clean and re-reference"
     ]
 
 
@@ -281,7 +281,7 @@ def test_done_with_open_items_lists_them_and_asks(store: JobStore) -> None:
     _reading(store, job, 5, -7.2, -16.1)  # 8.9 dB, a fail
     with pytest.raises(job_actions.OpenItemsError) as refused:
         job_actions.mark_done(store, job.id, by="B. Lead")
-    assert refused.value.items == ["Trunk: fibre 5 at 1550 nm A->B: failed, repair and retest"]
+    assert refused.value.items == ["Trunk: fibre 5 at 1550 nm A→B: failed, repair and retest"]
     assert store.load(job.id).status == "open"
     done = job_actions.mark_done(store, job.id, by="B. Lead", reason="repair booked", confirm=True)
     assert done.status == "done" and done.notes[-1].text == "Marked done: repair booked"

@@ -57,10 +57,10 @@ def test_open_items_count_in_words_that_agree(tmp_path: Path) -> None:
     summary = day_summary(store, local_date(now()))
     # The demo feed repair has one failed fibre (fibre 5 at 1550 nm): one result, singular.
     feed = next(j for j in summary.jobs if j.name == "North Reservoir feed repair")
-    assert "RES-N-FEED: fibre 5 at 1550 nm A->B: failed, repair and retest" in feed.open_items
+    assert "RES-N-FEED: fibre 5 at 1550 nm A→B: failed, repair and retest" in feed.open_items
     # The negative loss of fibre 6 is an open item too (a reference problem).
     assert (
-        "RES-N-FEED: fibre 6 at 1550 nm A->B: reference problem, clean and re-reference"
+        "RES-N-FEED: fibre 6 at 1550 nm A→B: reference problem, clean and re-reference"
         in feed.open_items
     )
     # The backbone has five results against the reference that drifted: one item each.
