@@ -73,9 +73,10 @@ class HelpScreen(ModalScreen[None]):
         yield KeyFooter()
 
     def on_mount(self) -> None:
-        self.query_one(
-            "#help-body", VerticalScroll
-        ).vertical_scrollbar.renderer = WholeCellScrollBar
+        # Textual documents a per-widget renderer (textual/scrollbar.py, ScrollBar.renderer:
+        # "my_widget.horizontal_scrollbar.renderer = MyScrollBarRender"); typed as a ClassVar.
+        bar = self.query_one("#help-body", VerticalScroll).vertical_scrollbar
+        bar.renderer = WholeCellScrollBar  # type: ignore[misc]
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         self.dismiss()
