@@ -9,7 +9,6 @@ columns; the CLI prints the same lines).
 
 from __future__ import annotations
 
-import re
 from typing import Any
 
 from fieldkit.calc.budget import (
@@ -20,18 +19,12 @@ from fieldkit.calc.budget import (
 from fieldkit.calc.checks import FibreData, LinkChecks
 from fieldkit.calc.units import format_number
 from fieldkit.text.layout import wrap
-
-MINUS = "\u2212"
+from fieldkit.text.numbers import MINUS, minus
 
 #: The word of each application verdict.
 VERDICT_WORD = {"pass": "PASS", "no-margin": "FITS, NO MARGIN", "fail": "FAIL"}
 #: The sentence a "no-margin" verdict adds.
 NO_MARGIN_TEXT = "fits the limits, but not with the design margin"
-
-
-def minus(text: str) -> str:
-    """Negative numbers with the typographic minus, leaving names like 10GBASE-LR alone."""
-    return re.sub(r"(?<![\w.])-(?=\d)", MINUS, text)
 
 
 def db(x: float | None) -> str:

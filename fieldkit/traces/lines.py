@@ -8,16 +8,15 @@ from __future__ import annotations
 
 import re
 
+from fieldkit.text.numbers import MINUS
 from fieldkit.traces.analysis import TraceEvent, TraceResult
 from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.model import InstrumentEvent
 from fieldkit.traces.pairing import PairedEvent, PairResult
 from fieldkit.traces.verdicts import Limits
 
-#: Negative numbers shown to people take the typographic minus, as every result the project
-#: prints (README, "The command line"; the policy of fieldkit/text/numbers.py, which this
-#: layer may not import); --json keeps numbers and the CSV plain ASCII.
-MINUS = "\u2212"
+# Negative numbers shown to people take the typographic minus: the one policy of
+# fieldkit/text/numbers.py (README, "The command line"); --json and the CSV keep plain ASCII.
 
 
 def signed(text: str) -> str:
