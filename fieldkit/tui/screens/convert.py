@@ -39,7 +39,7 @@ class ConvertScreen(WorkspaceScreen):
                             "Value",
                             expect=None,
                             field_id="value",
-                            placeholder="-7.5 dBm, 250 µW, 1 kft",
+                            placeholder="e.g. \u22127.5 dBm, 250 µW",
                             tooltip="A value with its unit: a level or power, a loss in dB, "
                             "an attenuation per length, a length, a wavelength or a frequency",
                         )
@@ -51,14 +51,14 @@ class ConvertScreen(WorkspaceScreen):
                             expect=Kind.POWER,
                             default_unit="dBm",
                             field_id="loss-level",
-                            placeholder="-3.2 dBm",
+                            placeholder="e.g. \u22123.2 dBm",
                         )
                         yield QuantityField(
                             "Loss",
                             expect=Kind.RATIO,
                             default_unit="dB",
                             field_id="loss-db",
-                            placeholder="4.5 dB",
+                            placeholder="e.g. 4.5 dB",
                         )
                         yield Static("", id="loss-out", classes="result")
                 with Vertical(classes="col"):
@@ -69,14 +69,14 @@ class ConvertScreen(WorkspaceScreen):
                             expect=Kind.POWER,
                             default_unit="dBm",
                             field_id="sum-a",
-                            placeholder="-3 dBm",
+                            placeholder="e.g. \u22123 dBm",
                         )
                         yield QuantityField(
                             "Level B",
                             expect=Kind.POWER,
                             default_unit="dBm",
                             field_id="sum-b",
-                            placeholder="-6 dBm",
+                            placeholder="e.g. \u22126 dBm",
                         )
                         yield Static("", id="sum-out", classes="result")
                     with Vertical(id="grid-panel", classes="panel") as panel:
@@ -86,7 +86,7 @@ class ConvertScreen(WorkspaceScreen):
                             expect=(Kind.LENGTH, Kind.FREQUENCY),
                             default_unit="nm",
                             field_id="grid-in",
-                            placeholder="1550.12 nm or 193.4 THz",
+                            placeholder="e.g. 1550.12 nm",
                         )
                         yield Static("", id="grid-out", classes="result")
         yield KeyFooter()

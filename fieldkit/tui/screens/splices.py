@@ -47,19 +47,19 @@ _START_HELP = (
 )
 
 _SETUP = (
-    ("name", "Closure", "JC-3 Market St"),
-    ("route", "Route", "2.1 km (optional)"),
-    ("cable_a", "Cable A", "A"),
-    ("count_a", "Fibres A", "144"),
-    ("cable_b", "Cable B", "B"),
-    ("count_b", "Fibres B", "144"),
-    ("per_tube", "Per tube", "12"),
-    ("type_a", "Type A", "G.652.D (optional)"),
-    ("type_b", "Type B", "G.657.A2 (optional)"),
-    ("trays", "Trays", "12"),
-    ("capacity", "Tray size", "12"),
-    ("limit", "Limit", "fusion preset, or 0.15 dB"),
-    ("plan", "Plan", "straight; 1-12 > 25-36; park 13-24; a preset"),
+    ("name", "Closure", "e.g. JC-7"),
+    ("route", "Route", "e.g. 2.1 km (optional)"),
+    ("cable_a", "Cable A", "e.g. A"),
+    ("count_a", "Fibres A", "e.g. 144"),
+    ("cable_b", "Cable B", "e.g. B"),
+    ("count_b", "Fibres B", "e.g. 144"),
+    ("per_tube", "Per tube", "e.g. 12"),
+    ("type_a", "Type A", "e.g. G.652.D (optional)"),
+    ("type_b", "Type B", "e.g. G.657.A2 (optional)"),
+    ("trays", "Trays", "e.g. 12"),
+    ("capacity", "Tray size", "e.g. 12"),
+    ("limit", "Limit", "fusion preset, or e.g. 0.15 dB"),
+    ("plan", "Plan", "straight; or e.g. 1-12 > 25-36; park 13-24; a preset"),
 )
 _MODE_WORDS = {"estimate": "estimate", "otdr": "A→B, B→A", "all": "estimate, A→B, B→A"}
 
@@ -105,7 +105,7 @@ class SplicesScreen(Screen[None]):
                     id="sp-value",
                     restrict=LOSS_CHARS,
                     compact=True,
-                    placeholder="0.02",
+                    placeholder="e.g. 0.02",
                     check=self._check,
                 )
             yield Static("", id="sp-typed")
