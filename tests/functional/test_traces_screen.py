@@ -282,3 +282,18 @@ async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Pa
         [kept] = store.load(job.id).links[0].traces
         assert kept.fibre == 1 and kept.direction == "A<->B" and len(kept.curves) == 2
         assert "Saved 1 trace" in str(screen.query_one("#traces-status", Static).render())
+
+
+async def test_the_empty_workspace_names_the_trace_folder_kept_with_the_jobs(
+    tmp_path: Path,
+) -> None:
+    # `fieldkit demo` keeps its trace files in <data folder>/traces/LIB-TH-01: a user who has
+    # never seen them is told where they are, as an example of what to type
+    from fieldkit.tui.app import make_app
+
+    (tmp_path / "d" / "traces" / "LIB-TH-01").mkdir(parents=True)
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
+    async with app.run_test(size=(44, 22)) as pilot:
+        await pilot.pause()
+        status = str(app.screen.query_one("#traces-status").render())
+        assert str(tmp_path / "d" / "traces" / "LIB-TH-01") in status.replace("\n", "")

@@ -7,6 +7,7 @@ numbers come from :mod:`fieldkit.traces`, the same as ``fieldkit trace``.
 
 from __future__ import annotations
 
+from pathlib import Path
 from typing import TYPE_CHECKING
 
 from textual import on, work
@@ -34,6 +35,18 @@ if TYPE_CHECKING:
     from fieldkit.traces.folder import FibreTraces
 
 __all__ = ["ClosurePicker", "OverwriteDialog", "SaveTracesDialog", "TracesScreen"]
+
+
+def start_hint(data_dir: Path) -> str:
+    """What the empty workspace says: what to type, and the first trace folder kept beside the
+    jobs (``<data folder>/traces/*``, where ``fieldkit demo`` puts its files) as the example."""
+    try:
+        folders = sorted(p for p in (data_dir / "traces").iterdir() if p.is_dir())
+    except OSError:
+        folders = []
+    if not folders:
+        return "Type a trace file (and the other end's) or a folder, then Enter."
+    return f"Type a trace file or a folder, then Enter; e.g. {folders[0]}"
 
 
 class TracesScreen(Screen[None]):
@@ -87,7 +100,7 @@ class TracesScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self.query_one("#traces-progress").display = False
-        self._say("Type a trace file (and the other end's) or a folder, then Enter.")
+        self._say(start_hint(fieldkit_app(self).data_dir))
         self._fit_caution()
 
     def on_resize(self) -> None:
