@@ -22,7 +22,6 @@ def isolated_dirs(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> dict[str, 
     return {"data": data, "config": config, "home": home}
 
 
-
 def pytest_configure(config: pytest.Config) -> None:
     """No Textual animations in tests: a page scroll or a smooth move lands at once, so a Pilot
     test reads where things end without waiting out the animation (the Help tests, which
