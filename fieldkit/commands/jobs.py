@@ -535,6 +535,8 @@ def run_status(args: argparse.Namespace) -> int:
     store = store_of(args)
     job_id = store.resolve(args.id)
     by = operator(args)
+    from fieldkit.text.words import counted
+
     if args.status == "done":
         try:
             job = mark_done(store, job_id, by=by, reason=args.reason, confirm=args.yes)
@@ -542,7 +544,8 @@ def run_status(args: argparse.Namespace) -> int:
             for item in exc.items:
                 print(f"open: {item}", file=sys.stderr)
             raise CommandError(
-                f"{len(exc.items)} open item(s) listed above; add --yes (and --reason TEXT) "
+                f"{counted(len(exc.items), 'open item')} listed above; "
+                "add --yes (and --reason TEXT) "
                 "to mark the job done anyway"
             ) from None
     else:

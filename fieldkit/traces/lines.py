@@ -6,9 +6,7 @@ matter most (number, distance, kind, loss) stay and the rest go to a second line
 
 from __future__ import annotations
 
-import re
-
-from fieldkit.text.numbers import MINUS
+from fieldkit.text.numbers import minus
 from fieldkit.traces.analysis import TraceEvent, TraceResult
 from fieldkit.traces.folder import FolderResult
 from fieldkit.traces.model import InstrumentEvent
@@ -19,10 +17,9 @@ from fieldkit.traces.verdicts import Limits
 # fieldkit/text/numbers.py (README, "The command line"); --json and the CSV keep plain ASCII.
 
 
-def signed(text: str) -> str:
-    """``text`` with each minus sign before a digit written as U+2212 (``-48.0`` -> ``−48.0``),
-    hyphens in words and ranges left alone."""
-    return re.sub(r"(?<![\w.])-(?=\d)", MINUS, text)
+#: ``text`` with each minus sign before a digit written as U+2212 (``-48.0`` -> ``−48.0``),
+#: hyphens in words and ranges left alone: the one rule of :func:`fieldkit.text.numbers.minus`.
+signed = minus
 
 
 #: What a table calls each event kind (``kind`` in --json stays the key): a non-reflective loss

@@ -411,6 +411,7 @@ class JobsScreen(WorkspaceScreen):
     @on(Button.Pressed, "#job-done")
     def action_toggle_done(self) -> None:
         from fieldkit.actions.jobs import OpenItemsError, mark_done, reopen
+        from fieldkit.text.words import counted
 
         job = self._job
         if job is None:
@@ -426,7 +427,7 @@ class JobsScreen(WorkspaceScreen):
             except OpenItemsError as exc:
                 self.app.push_screen(
                     AskDialog(
-                        f"{job.name} has {len(exc.items)} open item(s)",
+                        f"{job.name} has {counted(len(exc.items), 'open item')}",
                         exc.items,
                         [("done", "Mark done anyway")],
                         reason="why (noted in the job's log)",
