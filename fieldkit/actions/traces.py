@@ -40,12 +40,14 @@ from fieldkit.jobs.models import (
 from fieldkit.jobs.splices import current_limit
 from fieldkit.jobs.store import JobStore
 from fieldkit.presets import PresetLibrary
+from fieldkit.text.numbers import arrow
 from fieldkit.traces.analysis import TraceResult
 from fieldkit.traces.folder import FibreTraces as FibreTraces
 from fieldkit.traces.folder import folder_fibres as folder_fibres
 from fieldkit.traces.lines import limits_lines
 from fieldkit.traces.pairing import PairResult, default_tolerance_m
 from fieldkit.traces.session import Closure as Landmark
+from fieldkit.traces.session import names_link
 from fieldkit.traces.svg import plot_points
 from fieldkit.traces.verdicts import Limits
 
@@ -166,6 +168,21 @@ def fill_splice_log(
         store, job_id, link, closure, losses, overwrite=overwrite, dry_run=dry_run, by=by
     )
     return SpliceFill(fill, matched, unmatched)
+
+
+def links_named(store: Any, names: list[str]) -> list[tuple[str, str]]:
+    """The (job id, link id) of every open, writable job's link labelled with one of
+    ``names`` (:func:`~fieldkit.traces.session.names_link`): where the open traces most likely
+    belong. The index's link labels pick the jobs, so only those are read."""
+    found: list[tuple[str, str]] = []
+    for summary in store.list():
+        if summary.status != "open" or summary.read_only:
+            continue
+        if not any(names_link(label, names) for label in summary.link_labels):
+            continue
+        job = store.load(summary.id)
+        found += [(job.id, ln.id) for ln in job.links if names_link(ln.label, names)]
+    return found
 
 
 def closure_landmarks(store: Any, job_id: str, link: str) -> list[Landmark]:
@@ -351,13 +368,16 @@ def trace_limits(
     return lim
 
 
+def link_origin(job: Job, link: Link) -> str:
+    """Where limits from a job's link come from, as their summary names it."""
+    return f"link {link.label!r} of job {job.name!r}"
+
+
 def link_limits(store: Any, library: PresetLibrary, job_id: str, link: str, **typed: Any) -> Limits:
     """:func:`trace_limits` of a job's link (by label or id), its origin naming both."""
     job = store.load(job_id)
     target = find_link(job, link)
-    return trace_limits(
-        library, target, origin=f"link {target.label!r} of job {job.name!r}", **typed
-    )
+    return trace_limits(library, target, origin=link_origin(job, target), **typed)
 
 
 # -- traces kept on a link (schema 5) ----------------------------------------------------------
@@ -527,6 +547,12 @@ class SavedTraces:
             f"saved {len(self.records)} {noun} ({shown}{more}) onto job {self.job_name}, "
             f"link {self.link_label}{earlier}"
         )
+
+    def status(self) -> str:
+        """:meth:`summary` as the Traces workspace says it: a sentence, directions as arrows
+        (``Saved 1 trace (fibre 1 A↔B 1550 nm) onto ...``)."""
+        text = arrow(self.summary())
+        return text[:1].upper() + text[1:]
 
 
 #: Called as ``progress(done, total)`` while records are put onto the link.

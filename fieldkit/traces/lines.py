@@ -6,6 +6,8 @@ matter most (number, distance, kind, loss) stay and the rest go to a second line
 
 from __future__ import annotations
 
+from fieldkit import safety
+from fieldkit.text.layout import wrap
 from fieldkit.text.numbers import minus
 from fieldkit.traces.analysis import TraceEvent, TraceResult
 from fieldkit.traces.folder import FolderResult
@@ -292,3 +294,10 @@ def defaults_notice(limits: Limits, wide: bool = True) -> str:
     if wide:
         return f"Shipped default limits ({fibre_of(limits)}); ^S: judge by a job link's presets"
     return f"Shipped limits ({fibre_of(limits)}); ^S: a link's"
+
+
+def otdr_caution(width: int, wide: bool = True) -> str:
+    """The OTDR caution for a two-line space ``width`` columns wide: the medium wording where a
+    wide screen fits it whole in two lines, else the short one (the full one is the tooltip)."""
+    fits = wide and len(wrap(safety.OTDR_LIVE_FIBRE_MEDIUM, width, 0)) <= 2
+    return safety.OTDR_LIVE_FIBRE_MEDIUM if fits else safety.OTDR_LIVE_FIBRE_SHORT

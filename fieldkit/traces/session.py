@@ -5,12 +5,14 @@ the hand-off of an event to the fault workspace. Plain state, tested without a t
 from __future__ import annotations
 
 import re
+from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
 import numpy.typing as npt
 
+from fieldkit.text.numbers import arrow
 from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace, rejudge
 from fieldkit.traces.files import ReadOptions, read_trace
 from fieldkit.traces.folder import (
@@ -24,6 +26,7 @@ from fieldkit.traces.folder import (
     rejudge_folder,
 )
 from fieldkit.traces.lines import (
+    defaults_notice,
     event_cells,
     fmt,
     instrument_cells,
@@ -37,10 +40,23 @@ from fieldkit.traces.verdicts import Limits
 
 @dataclass(frozen=True, slots=True)
 class EventMark:
+    """An event to mark on the drawn trace, numbered as in the table."""
+
     number: int
     distance_m: float  # in the frame of the trace shown
     kind: str
-    failed: bool
+    failed: bool = False
+
+
+@dataclass(frozen=True, slots=True)
+class TableView:
+    """What the workspace's table shows: its title, its columns and its rows, each with the
+    key that says what the row is (``fibre-<index>`` in the folder's table, ``event-<number>``
+    in an event table) and its cells in column order."""
+
+    title: str
+    columns: tuple[str, ...] = ()
+    rows: tuple[tuple[str, tuple[str, ...]], ...] = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -60,6 +76,23 @@ class Closure:
 
     name: str
     route_m: float
+
+
+def start_hint(data_dir: Path) -> str:
+    """What the empty workspace says: what to type, and the first trace folder kept beside the
+    jobs (``<data folder>/traces/*``, where ``fieldkit demo`` puts its files) as the example."""
+    try:
+        folders = sorted(p for p in (data_dir / "traces").iterdir() if p.is_dir())
+    except OSError:
+        folders = []
+    if not folders:
+        return "Type a trace file (and the other end's) or a folder, then Enter."
+    return f"Type a trace file or a folder, then Enter; e.g. {folders[0]}"
+
+
+def is_folder(path: str) -> bool:
+    """True when ``path`` (as typed: spaces around it, ``~``) names a folder to analyse."""
+    return bool(path.strip()) and Path(path.strip()).expanduser().is_dir()
 
 
 def names_link(label: str, names: list[str]) -> bool:
@@ -86,6 +119,8 @@ class TraceSession:
     #: The chosen link's closures: a non-reflective event at one is a splice, elsewhere it is
     #: a splice or a bend (a trace alone cannot tell)
     closures: tuple[Closure, ...] = ()
+    selected: int | None = None  # the event selected in the table or on the plot
+    last_link: tuple[str, str] | None = None  # the (job, link) last chosen to save onto
 
     # -- opening ---------------------------------------------------------------------------
     def open(self, path_a: str, path_b: str = "") -> str:
@@ -112,6 +147,7 @@ class TraceSession:
         self.shown = "AB"
         self.a_direction = "A->B"
         self.folder = None
+        self.selected = None
         return self.summary()
 
     def open_folder(self, path: str, progress: Progress | None = None) -> FolderResult:
@@ -128,6 +164,7 @@ class TraceSession:
             )
         self.folder = result
         self.a = self.b = self.paired = None  # the folder's table shows
+        self.selected = None
         return result
 
     def open_row(self, row: FibreRow) -> str:
@@ -139,6 +176,7 @@ class TraceSession:
         self.paired = row.paired
         self.shown = "AB"
         self.a_direction = "A->B" if row.a_to_b is not None else "B->A"
+        self.selected = None
         return self.summary()
 
     def set_limits(self, limits: Limits) -> None:
@@ -154,11 +192,29 @@ class TraceSession:
         if self.paired is not None and self.a is not None and self.b is not None:
             self.paired = pair(self.a, self.b, tolerance_m=self.paired.tolerance_m)
 
+    @property
+    def limits(self) -> Limits:
+        """The limits that judge the shown trace (without one: what judges the next)."""
+        r = self.current
+        return r.limits if r is not None else self.settings.limits
+
+    @property
+    def judged_by_defaults(self) -> bool:
+        """True until presets judge (the built-in figures of :class:`Limits` so far)."""
+        return self.settings.limits.origin == "defaults"
+
     def limits_summary(self) -> str:
         """Which limits judge the shown trace, in one line."""
-        r = self.current
-        limits = r.limits if r is not None else self.settings.limits
-        return limits_summary(limits)
+        return limits_summary(self.limits)
+
+    def note_lines(self, text: str, wide: bool) -> list[str]:
+        """The lines under the table: ``text`` (an event's verdict reason, the limits) and,
+        while no job's link judges, the one saying the limits are the shipped defaults."""
+        return [t for t in (text, defaults_notice(self.limits, wide)) if t]
+
+    def use_closures(self, closures: Iterable[tuple[str, float | None]]) -> None:
+        """The chosen link's closures (name, route position), those with a position kept."""
+        self.closures = tuple(Closure(name, m) for name, m in closures if m is not None)
 
     # -- what is shown ---------------------------------------------------------------------
     @property
@@ -224,6 +280,17 @@ class TraceSession:
         if wide:
             return ("#", "distance", "kind", "loss dB", "refl dB", "cum dB", "verdict")
         return ("#", "distance", "kind", "loss dB", "verdict")
+
+    def table(self, wide: bool) -> TableView:
+        """The folder's fibres while its table shows, else the shown trace's events (no
+        columns while nothing is open)."""
+        if self.whole_folder:
+            rows = tuple((f"fibre-{k}", c) for k, c in enumerate(self.folder_rows(wide)))
+            return TableView("Fibres (Enter opens one)", self.folder_columns(wide), rows)
+        if self.current is None:
+            return TableView(self.table_title())
+        events = tuple((f"event-{c[0]}", c) for c in self.rows(wide))
+        return TableView(self.table_title(), self.columns(wide), events)
 
     def table_title(self) -> str:
         r = self.current
@@ -299,11 +366,28 @@ class TraceSession:
             f"{fails} failed"
         )
 
+    def folder_status(self) -> str:
+        """The status line while the folder's table shows."""
+        return f"{self.folder_counts()}; Enter on a fibre opens it"
+
+    def open_fibre(self, index: int) -> str:
+        """Open fibre ``index`` (its row in the folder's table); the one-line summary.
+
+        Raises
+        ------
+        TraceFileError
+            No folder open, no such row, or a fibre with no trace that could be read.
+        """
+        if self.folder is None or not 0 <= index < len(self.folder.rows):
+            raise TraceFileError(f"no fibre {index + 1} in the folder's table")
+        return self.open_row(self.folder.rows[index])
+
     def close_fibre(self) -> bool:
         """Back from one of a folder's fibres to the folder's table (False: no folder open)."""
         if self.folder is None:
             return False
         self.a = self.b = self.paired = None
+        self.selected = None
         return True
 
     def cycle_view(self) -> str | None:
@@ -320,12 +404,45 @@ class TraceSession:
         now = (self.shown, self.instrument_table)
         k = views.index(now) if now in views else 0
         self.shown, self.instrument_table = views[(k + 1) % len(views)]
+        self.selected = None
         which = "B→A" if self.shown == "BA" else "A→B"
         return f"{which}: " + (
             "the instrument's own events" if self.instrument_table else "our events"
         )
 
     # -- into a job ------------------------------------------------------------------------
+    @property
+    def anything_open(self) -> bool:
+        """True when a trace, a pair or a folder is open (something can go into a job)."""
+        return self.a is not None or self.folder is not None
+
+    @property
+    def can_go_back(self) -> bool:
+        """True while one of a folder's fibres is open (Esc goes back to the folder's table)."""
+        return self.folder is not None and self.a is not None
+
+    def select(self, number: int) -> bool:
+        """Select event ``number``; True when that changed the selection."""
+        changed = number != self.selected
+        self.selected = number
+        return changed
+
+    def handoff(self) -> FaultHandoff:
+        """:meth:`fault_handoff` of the selected event; of the end (the break) while nothing
+        is selected or the instrument's own table shows (its numbers are not ours).
+
+        Raises
+        ------
+        TraceFileError
+            When no trace is open or there is no such event.
+        """
+        return self.fault_handoff(None if self.instrument_table else self.selected)
+
+    def offered_link(self, found: list[tuple[str, str]]) -> tuple[str, str] | None:
+        """Of the (job, link) pairs the open traces name (:meth:`names`), the one to offer
+        first: the only one; else (none, or several) the last one chosen, None before any."""
+        return found[0] if len(found) == 1 else self.last_link
+
     @property
     def whole_folder(self) -> bool:
         """True while the folder's table shows (saving and filling take every fibre)."""
@@ -380,7 +497,7 @@ class TraceSession:
             what = (
                 "both directions averaged"
                 if self.paired is not None
-                else self.a_direction.replace("->", "\u2192")  # shown A→B, as the table
+                else arrow(self.a_direction)  # shown A→B, as the table
             )
             names = ", ".join(fibres[0].files)
             lines = [f"this fibre, {what}: {names}"]

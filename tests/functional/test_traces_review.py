@@ -86,16 +86,6 @@ async def test_save_picker_offers_the_link_the_folder_names(tmp_path: Path) -> N
         assert _picked(app) == (BACKBONE, job.link_by_label("LIB-TH-01").id)
 
 
-async def test_save_picker_offers_the_cable_id_of_a_single_trace(tmp_path: Path) -> None:
-    """A5: a file whose folder and name say nothing: the record's cable id (LIB-TH-01) picks."""
-    app, folder = _demo(tmp_path, "unsorted")
-    async with app.run_test(size=(80, 24)) as pilot:
-        await pilot.pause()
-        await _open(pilot, str(folder / "F07_1550_AB.sor"))
-        await _save_traces(pilot)
-        assert _picked(app)[0] == BACKBONE
-
-
 async def test_save_picker_picks_nothing_when_nothing_names_a_link(tmp_path: Path) -> None:
     """A5: traces naming no link and no link used before: no job picked, Enter saves nowhere."""
     app, folder = _demo(tmp_path, "unsorted")

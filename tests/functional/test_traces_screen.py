@@ -53,12 +53,12 @@ async def test_open_a_pair_jump_to_an_event_and_send_it_to_fault(
         caution = str(screen.query_one("#traces-caution", Static).render())
         assert caution in (safety.OTDR_LIVE_FIBRE_MEDIUM, safety.OTDR_LIVE_FIBRE_SHORT)
         # the table opens on event 1; jump to the next event on the plot
-        assert screen.selected == 1
+        assert screen.session.selected == 1
         plot = screen.query_one("#traces-plot", TracePlot)
         plot.focus()
         await pilot.press("pagedown")
         await pilot.pause()
-        assert screen.selected == 2
+        assert screen.session.selected == 2
         assert plot.view is not None and plot.view.cursor_m == pytest.approx(2600.0, abs=2.0)
         assert "event 2 reflective" in plot.readout()
         assert table.cursor_row == 1
@@ -282,18 +282,3 @@ async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Pa
         [kept] = store.load(job.id).links[0].traces
         assert kept.fibre == 1 and kept.direction == "A<->B" and len(kept.curves) == 2
         assert "Saved 1 trace" in str(screen.query_one("#traces-status", Static).render())
-
-
-async def test_the_empty_workspace_names_the_trace_folder_kept_with_the_jobs(
-    tmp_path: Path,
-) -> None:
-    # `fieldkit demo` keeps its trace files in <data folder>/traces/LIB-TH-01: a user who has
-    # never seen them is told where they are, as an example of what to type
-    from fieldkit.tui.app import make_app
-
-    (tmp_path / "d" / "traces" / "LIB-TH-01").mkdir(parents=True)
-    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="traces")
-    async with app.run_test(size=(44, 22)) as pilot:
-        await pilot.pause()
-        status = str(app.screen.query_one("#traces-status").render())
-        assert str(tmp_path / "d" / "traces" / "LIB-TH-01") in status.replace("\n", "")

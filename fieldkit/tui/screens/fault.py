@@ -10,7 +10,7 @@ marking to look for, a route diagram in text, and the digging cautions).
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from rich.text import Text
 from textual import on
@@ -38,6 +38,9 @@ from fieldkit.tui.fault_model import (
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.caution import Caution
 from fieldkit.tui.widgets.key_footer import KeyFooter
+
+if TYPE_CHECKING:
+    from fieldkit.traces.session import FaultHandoff
 from fieldkit.tui.widgets.number_field import NumberField
 from fieldkit.tui.widgets.point_list import PointList
 from fieldkit.tui.widgets.quantity_field import QuantityField
@@ -341,32 +344,24 @@ class FaultScreen(Screen[None]):
         self.query_one("#fault-route-panel").display = bool(shown.points or shown.fault)
 
     # -- actions ----------------------------------------------------------------------------
-    def prefill(
-        self,
-        distance_m: float,
-        *,
-        ior_set: float | None = None,
-        landmarks: list[tuple[str, float, float]] | None = None,
-        note: str = "",
-    ) -> None:
-        """Fill the reading from another workspace (an OTDR event from the Traces workspace).
-
-        ``landmarks`` are (name, OTDR distance m, route distance m); they replace the list
-        only when given. Everything else the user typed stays.
+    def prefill(self, hand: FaultHandoff) -> None:
+        """Fill the reading from an OTDR event the Traces workspace hands off: the distance,
+        the index the trace was taken with, and its landmarks (name, OTDR distance m, route
+        distance m), which replace the list only when there are some. Everything else the
+        user typed stays.
         """
-        self.query_one("#fault-distance", Input).value = f"{distance_m:.1f} m"
+        self.query_one("#fault-distance", Input).value = f"{hand.distance_m:.1f} m"
         self.query_one("#fault-time", Input).value = ""
-        if ior_set is not None:
-            self.query_one("#fault-ior-set", Input).value = f"{ior_set:.4f}"
-        if landmarks:
+        self.query_one("#fault-ior-set", Input).value = f"{hand.group_index:.4f}"
+        if hand.landmarks:
             self.query_one("#fault-landmarks", PointList).set_rows(
                 [
                     {"name": name, "otdr": f"{otdr:.1f} m", "route": f"{route:.1f} m"}
-                    for name, otdr, route in landmarks
+                    for name, otdr, route in hand.landmarks
                 ]
             )
-        if note:
-            self.notify(note, timeout=6)
+        if hand.note:
+            self.notify(hand.note, timeout=6)
         self.recompute()
 
     def _point_list(self) -> PointList:

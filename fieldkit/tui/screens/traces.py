@@ -7,7 +7,6 @@ numbers come from :mod:`fieldkit.traces`, the same as ``fieldkit trace``.
 
 from __future__ import annotations
 
-from pathlib import Path
 from typing import TYPE_CHECKING
 
 from textual import on, work
@@ -19,15 +18,22 @@ from textual.widgets import Button, DataTable, Input, Label, ProgressBar, Static
 from fieldkit import safety
 from fieldkit.calc.units import InputError
 from fieldkit.text.escape import terminal
+from fieldkit.text.numbers import arrow
+from fieldkit.traces.lines import otdr_caution
 from fieldkit.traces.model import TraceFileError
-from fieldkit.traces.session import TraceSession
+from fieldkit.traces.session import TraceSession, is_folder, start_hint
 from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.path_field import PathField
-from fieldkit.tui.widgets.trace_dialogs import ClosurePicker, OverwriteDialog, SaveTracesDialog
-from fieldkit.tui.widgets.trace_plot import Mark, TracePlot
+from fieldkit.tui.widgets.trace_dialogs import (
+    ClosurePicker,
+    OverwriteDialog,
+    SaveTracesDialog,
+    save_what_dialog,
+)
+from fieldkit.tui.widgets.trace_plot import TracePlot
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 
 if TYPE_CHECKING:
@@ -35,18 +41,6 @@ if TYPE_CHECKING:
     from fieldkit.traces.folder import FibreTraces
 
 __all__ = ["ClosurePicker", "OverwriteDialog", "SaveTracesDialog", "TracesScreen"]
-
-
-def start_hint(data_dir: Path) -> str:
-    """What the empty workspace says: what to type, and the first trace folder kept beside the
-    jobs (``<data folder>/traces/*``, where ``fieldkit demo`` puts its files) as the example."""
-    try:
-        folders = sorted(p for p in (data_dir / "traces").iterdir() if p.is_dir())
-    except OSError:
-        folders = []
-    if not folders:
-        return "Type a trace file (and the other end's) or a folder, then Enter."
-    return f"Type a trace file or a folder, then Enter; e.g. {folders[0]}"
 
 
 class TracesScreen(Screen[None]):
@@ -61,15 +55,11 @@ class TracesScreen(Screen[None]):
     BINDINGS = keys.bindings("traces")
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        if action == "back":
-            return self.session.folder is not None and self.session.a is not None
-        return True
+        return self.session.can_go_back if action == "back" else True
 
     def __init__(self) -> None:
         super().__init__()
         self.session = TraceSession()
-        self.selected: int | None = None  # event number selected in the table / plot
-        self.job_link: tuple[str, str] | None = None  # the job's link last chosen
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
@@ -99,7 +89,6 @@ class TracesScreen(Screen[None]):
         yield KeyFooter()
 
     def on_mount(self) -> None:
-        self.query_one("#traces-progress").display = False
         self._say(start_hint(fieldkit_app(self).data_dir))
         self._fit_caution()
 
@@ -109,12 +98,8 @@ class TracesScreen(Screen[None]):
 
     def _fit_caution(self) -> None:
         """The medium caution where it fits whole in its two lines, else the short one."""
-        from fieldkit.text.layout import wrap
-
-        width = self.size.width - 2  # the caution's padding
-        fits = self.wide and len(wrap(safety.OTDR_LIVE_FIBRE_MEDIUM, width, 0)) <= 2
         caution = self.query_one("#traces-caution", Static)
-        caution.update(safety.OTDR_LIVE_FIBRE_MEDIUM if fits else safety.OTDR_LIVE_FIBRE_SHORT)
+        caution.update(otdr_caution(self.size.width - 2, self.wide))  # 2: the padding
         caution.tooltip = f"{safety.OTDR_LIVE_FIBRE} {safety.DEFER}"
 
     @property
@@ -122,15 +107,9 @@ class TracesScreen(Screen[None]):
         return self.size.width >= 72
 
     def _note(self, text: str) -> None:
-        """The line under the table (an event's verdict reason, the limits), with, while no
-        job's link judges, the line saying the limits are the shipped defaults."""
-        from fieldkit.traces.lines import defaults_notice
-
-        r = self.session.current
-        limits = r.limits if r is not None else self.session.settings.limits
-        notice = defaults_notice(limits, self.wide)
-        shown = "\n".join(terminal(t) for t in (text, notice) if t)
-        self.query_one("#traces-note", Static).update(shown)
+        """The lines under the table (:meth:`TraceSession.note_lines`)."""
+        lines = self.session.note_lines(text, self.wide)
+        self.query_one("#traces-note", Static).update("\n".join(terminal(t) for t in lines))
 
     def _say(self, text: str, problem: bool = False) -> None:
         status = self.query_one("#traces-status", Static)
@@ -139,23 +118,18 @@ class TracesScreen(Screen[None]):
 
     # -- opening ---------------------------------------------------------------------------
     @on(Input.Submitted)
-    def _submitted(self, event: Input.Submitted) -> None:
-        self.action_open()
-
     @on(Button.Pressed, "#traces-open")
-    def _open_pressed(self) -> None:
+    def _open_asked(self) -> None:
         self.action_open()
 
     def action_open(self) -> None:
-        from pathlib import Path
-
         path_a = self.query_one("#traces-a", Input).value
         path_b = self.query_one("#traces-b", Input).value
         for field in self.query(PathField):
             field.show_end()
-        if self.session.settings.limits.origin == "defaults":
-            self._judge_by()  # before the first open
-        if path_a.strip() and Path(path_a.strip()).expanduser().is_dir():
+        if self.session.judged_by_defaults:
+            self._judge_by()  # before the first open: the shipped and the user's presets
+        if is_folder(path_a):
             self._open_folder(path_a)
             return
         try:
@@ -163,19 +137,18 @@ class TracesScreen(Screen[None]):
         except TraceFileError as exc:
             self._say(str(exc), problem=True)  # the typed paths stay as typed
             return
-        self.session.folder = None
-        self.selected = None
-        self._say(summary)
-        self._show()
+        self._shown(summary)
         self._note(self.session.limits_summary())
         self.query_one("#traces-table", DataTable).focus()
 
-    def _judge_by(self, link: Link | None = None, origin: str = "") -> bool:
-        """Judge what is open, and what opens next, by the link's presets (without a link: the
-        shipped and the user's presets); False, said for a link, when they cannot be read."""
-        from fieldkit.actions.traces import trace_limits
+    def _judge_by(self, job: Job | None = None, link: Link | None = None) -> bool:
+        """Judge what is open, and what opens next, by the job's link's presets (without a
+        link: the shipped and the user's presets); False, said for a link, when they cannot
+        be read."""
+        from fieldkit.actions.traces import link_origin, trace_limits
         from fieldkit.presets import load_presets
 
+        origin = link_origin(job, link) if job is not None and link is not None else ""
         try:
             limits = trace_limits(load_presets(fieldkit_app(self).config_dir), link, origin=origin)
         except Exception as exc:  # noqa: BLE001 - a preset problem, shown as one line
@@ -186,11 +159,15 @@ class TracesScreen(Screen[None]):
         return True
 
     def _open_folder(self, path: str) -> None:
-        bar = self.query_one("#traces-progress", ProgressBar)
-        bar.display = True
-        bar.update(total=None, progress=0)
+        self._progress(None)
         self._say("Analysing the folder...")
         self._analyse_folder(path)
+
+    def _progress(self, total: int | None, shown: bool = True) -> None:
+        """The progress bar from 0 of ``total`` (None: not known yet), shown or not."""
+        bar = self.query_one("#traces-progress", ProgressBar)
+        bar.display = shown
+        bar.update(total=total, progress=0)
 
     @work(thread=True, exclusive=True, group="traces-folder", exit_on_error=False)
     def _analyse_folder(self, path: str) -> None:
@@ -199,53 +176,48 @@ class TracesScreen(Screen[None]):
         def progress(done: int, total: int, name: str) -> None:
             self.app.call_from_thread(bar.update, total=total, progress=done)
 
+        problem = None
         try:
             self.session.open_folder(path, progress)
         except TraceFileError as exc:
-            self.app.call_from_thread(self._folder_done, str(exc))
-            return
-        self.app.call_from_thread(self._folder_done, None)
+            problem = str(exc)
+        self.app.call_from_thread(self._folder_done, problem)
 
     def _folder_done(self, problem: str | None) -> None:
         self.query_one("#traces-progress").display = False
         if problem is not None:
             self._say(problem, problem=True)
             return
-        self.query_one("#traces-plot", TracePlot).clear()
-        self._say(f"{self.session.folder_counts()}; Enter on a fibre opens it")
+        self._shown(self.session.folder_status())
         self._note("")
-        self._fill_table()
         self.query_one("#traces-table", DataTable).focus()
 
     # -- showing ---------------------------------------------------------------------------
+    def _shown(self, said: str) -> None:
+        """Say ``said`` and show what the session now holds."""
+        self._say(said)
+        self._show()
+        self.refresh_bindings()
+
     def _show(self) -> None:
         plot = self.query_one("#traces-plot", TracePlot)
         curve = self.session.curve()
         if curve is None:
             plot.clear()
         else:
-            marks = [Mark(m.number, m.distance_m, m.kind, m.failed) for m in self.session.marks()]
-            plot.show_trace(curve[0], curve[1], marks)
+            plot.show_trace(curve[0], curve[1], self.session.marks())
         self._fill_table()
 
     def _fill_table(self) -> None:
         table = self.query_one("#traces-table", DataTable)
         table.clear(columns=True)
-        s = self.session
-        if s.whole_folder:
-            table.border_title = "Fibres (Enter opens one)"
-            table.add_columns(*s.folder_columns(self.wide))
-            for k, cells in enumerate(s.folder_rows(self.wide)):
-                table.add_row(*(terminal(c) for c in cells), key=f"fibre-{k}")
-            return
-        table.border_title = s.table_title()
-        if s.current is None:
-            return
-        table.add_columns(*s.columns(self.wide))
-        for event_cells in s.rows(self.wide):
-            table.add_row(*(terminal(c) for c in event_cells), key=f"event-{event_cells[0]}")
-        if self.selected is not None:
-            self._highlight(self.selected)
+        view = self.session.table(self.wide)
+        table.border_title = view.title
+        table.add_columns(*view.columns)
+        for key, cells in view.rows:
+            table.add_row(*(terminal(c) for c in cells), key=key)
+        if self.session.selected is not None and not self.session.whole_folder:
+            self._highlight(self.session.selected)
 
     def _highlight(self, number: int) -> None:
         table = self.query_one("#traces-table", DataTable)
@@ -260,29 +232,23 @@ class TracesScreen(Screen[None]):
         key = event.row_key.value or ""
         if key.startswith("event-"):
             number = int(key.removeprefix("event-"))
-            if number != self.selected:
-                self.selected = number
+            if self.session.select(number):
                 self.query_one("#traces-plot", TracePlot).select_event(number)
             self._note(self.session.event_note(number))
 
     @on(DataTable.RowSelected, "#traces-table")
     def _row_selected(self, event: DataTable.RowSelected) -> None:
         key = event.row_key.value or ""
-        if key.startswith("fibre-") and self.session.folder is not None:
-            row = self.session.folder.rows[int(key.removeprefix("fibre-"))]
+        if key.startswith("fibre-"):
             try:
-                self._say(self.session.open_row(row))
+                self._shown(self.session.open_fibre(int(key.removeprefix("fibre-"))))
             except TraceFileError as exc:
                 self._say(str(exc), problem=True)
-                return
-            self.selected = None
-            self._show()
-            self.refresh_bindings()
 
     @on(TracePlot.CursorMoved)
     def _cursor_moved(self, event: TracePlot.CursorMoved) -> None:
         if event.mark is not None:
-            self.selected = event.mark.number
+            self.session.select(event.mark.number)
             self._highlight(event.mark.number)
 
     # -- onto a job's link: the traces themselves, and the splice log ------------------------
@@ -291,61 +257,41 @@ class TracesScreen(Screen[None]):
         traces by its presets from now on; None (said) when nothing is open or it is not read."""
         from fieldkit.actions.splices import find_link
 
-        if self.session.a is None and self.session.folder is None:
+        if not self.session.anything_open:
             self._say("Open traces first.", True)
             return None
-        job_id, link_id = self._likely_link() or self.job_link or (None, None)
+        job_id, link_id = self._likely_link() or (None, None)
         choice = await self.app.push_screen_wait(
             JobLinkPicker(job_id=job_id, link_id=link_id, pick_first=False, title=title)
         )
         if choice is None:
             return None
-        self.job_link = choice
+        self.session.last_link = choice
         try:
             job = fieldkit_app(self).store.load(choice[0])
             link = find_link(job, choice[1])
         except Exception as exc:  # noqa: BLE001 - a store or lookup problem, shown as one line
             self._say(str(exc), True)
             return None
-        if not self._judge_by(link, f"link {link.label!r} of job {job.name!r}"):
+        if not self._judge_by(job, link):
             return None
-        from fieldkit.traces.session import Closure
-
-        self.session.closures = tuple(
-            Closure(c.name, c.route_distance_m)
-            for c in link.closures
-            if c.route_distance_m is not None
-        )
+        self.session.use_closures((c.name, c.route_distance_m) for c in link.closures)
         self._show()
         self._note(self.session.limits_summary())
         return choice, job, link
 
     def _likely_link(self) -> tuple[str, str] | None:
-        """The open job's link labelled with the folder's name, a file's name or the records'
-        cable id (one such link, or the last one chosen among several); None when no link or
-        no single one is named."""
-        from fieldkit.traces.session import names_link
+        """The job's link to offer first (:meth:`TraceSession.offered_link`), if any."""
+        from fieldkit.actions.traces import links_named
 
-        names = self.session.names()
-        store = fieldkit_app(self).store
-        found: list[tuple[str, str]] = []
         try:
-            for summary in store.list():
-                if summary.status != "open" or summary.read_only:
-                    continue
-                if not any(names_link(label, names) for label in summary.link_labels):
-                    continue
-                job = store.load(summary.id)
-                found += [(job.id, ln.id) for ln in job.links if names_link(ln.label, names)]
+            found = links_named(fieldkit_app(self).store, self.session.names())
         except Exception:  # noqa: BLE001 - an unreadable store: the picker says so itself
-            return None
-        if len(found) == 1:
-            return found[0]
-        return self.job_link if self.job_link in found else None
+            found = []
+        return self.session.offered_link(found)
 
     def action_save_what(self) -> None:
         """Ctrl+S: onto a job's link go the traces (1) or their losses, into a splice log (2)."""
-        from fieldkit.tui.widgets.choice_dialog import ChoiceDialog
 
         def chosen(what: str | None) -> None:
             if what == "traces":
@@ -353,15 +299,7 @@ class TracesScreen(Screen[None]):
             elif what == "splices":
                 self.action_fill_splices()
 
-        self.app.push_screen(
-            ChoiceDialog(
-                "Save onto a job's link",
-                [("The traces", "traces"), ("Their losses, into a splice log", "splices")],
-                start="traces",
-                note="Arrows and Enter, or a digit; Esc saves nothing.",
-            ),
-            chosen,
-        )
+        self.app.push_screen(save_what_dialog(), chosen)
 
     @work(exclusive=True, group="traces-job", exit_on_error=False)
     async def action_save_traces(self) -> None:
@@ -385,9 +323,7 @@ class TracesScreen(Screen[None]):
             self._say("Nothing saved; the traces stay open.")
             return
         fibres = s.fibres(number or None)
-        bar = self.query_one("#traces-progress", ProgressBar)
-        bar.display = len(fibres) > 1
-        bar.update(total=len(fibres), progress=0)
+        self._progress(len(fibres), shown=len(fibres) > 1)
         self._say(f"Saving {len(fibres)} fibre(s)...")
         self._save_worker(where, fibres, fieldkit_app(self).operator)
 
@@ -402,11 +338,10 @@ class TracesScreen(Screen[None]):
 
         try:
             saved = save_fibres(fieldkit_app(self).store, *where, fibres, by=by, progress=progress)
-            text, problem = saved.summary(), False
+            text, problem = saved.status(), False
         except Exception as exc:  # noqa: BLE001 - a store or input problem, shown as one line
-            text, problem = f"not saved: {exc}", True
-        text = text.replace("<->", "\u2194").replace("->", "\u2192")  # A↔B, A→B: as shown
-        self.app.call_from_thread(self._saved, text[:1].upper() + text[1:], problem)
+            text, problem = f"Not saved: {arrow(str(exc))}", True
+        self.app.call_from_thread(self._saved, text, problem)
 
     def _saved(self, text: str, problem: bool) -> None:
         self.query_one("#traces-progress").display = False
@@ -451,39 +386,23 @@ class TracesScreen(Screen[None]):
         self._say(done.summary(closure))
 
     def action_back(self) -> None:
-        if not self.session.close_fibre():
-            return
-        self.selected = None
-        self.query_one("#traces-plot", TracePlot).clear()
-        self._say(f"{self.session.folder_counts()}; Enter on a fibre opens it")
-        self._fill_table()
-        self.refresh_bindings()
+        if self.session.close_fibre():
+            self._shown(self.session.folder_status())
 
     def action_cycle_view(self) -> None:
         """A→B, B→A (when both are open), then the instrument's own events of each."""
         said = self.session.cycle_view()
-        if said is None:
-            return
-        self.selected = None
-        self._say(said)
-        self._show()
+        if said is not None:
+            self._shown(said)
 
     async def action_send_fault(self) -> None:
+        """Ctrl+G: the selected event (else the end, the break) into the Fault workspace."""
         try:
-            hand = self.session.fault_handoff(
-                self.selected if not self.session.instrument_table else None
-            )
+            hand = self.session.handoff()
         except TraceFileError as exc:
             self._say(str(exc), problem=True)
             return
         await self.app.switch_mode("fault")
-        fault = self.app.screen
-        prefill = getattr(fault, "prefill", None)
-        if prefill is None:
-            return
-        prefill(
-            hand.distance_m,
-            ior_set=hand.group_index,
-            landmarks=list(hand.landmarks),
-            note=hand.note,
-        )
+        prefill = getattr(self.app.screen, "prefill", None)
+        if prefill is not None:
+            prefill(hand)

@@ -209,3 +209,16 @@ class SaveTracesDialog(ModalScreen[int | None]):
         fibre = typed_fibre(self)
         if fibre is not None:
             self.dismiss(fibre)
+
+
+def save_what_dialog() -> ModalScreen[str | None]:
+    """What Ctrl+S saves onto a job's link: ``"traces"`` (the first choice) or ``"splices"``
+    (their losses, into a closure's splice log); None (Esc) saves nothing."""
+    from fieldkit.tui.widgets.choice_dialog import ChoiceDialog
+
+    return ChoiceDialog(
+        "Save onto a job's link",
+        [("The traces", "traces"), ("Their losses, into a splice log", "splices")],
+        start="traces",
+        note="Arrows and Enter, or a digit; Esc saves nothing.",
+    )

@@ -24,19 +24,13 @@ from textual.message import Message
 from textual.widget import Widget
 
 from fieldkit.traces.lines import KIND_LABELS, signed
+from fieldkit.traces.session import EventMark
+
+#: An event to mark on the trace: the session's own (one class, not a copy of it).
+Mark = EventMark
 
 #: Braille dot bits by (row 0-3, column 0-1) within a cell (Unicode braille patterns).
 _BITS = np.array([[0x01, 0x08], [0x02, 0x10], [0x04, 0x20], [0x40, 0x80]], dtype=np.int32)
-
-
-@dataclass(frozen=True, slots=True)
-class Mark:
-    """An event to mark on the trace."""
-
-    number: int
-    distance_m: float
-    kind: str
-    failed: bool = False
 
 
 def braille_rows(
