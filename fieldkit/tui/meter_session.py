@@ -18,7 +18,7 @@ import threading
 from dataclasses import dataclass, field, replace
 from datetime import datetime
 from itertools import count as _counter
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any, Literal
 
 from fieldkit import inputs, safety
 from fieldkit.actions import meter as meter_log
@@ -42,6 +42,7 @@ if TYPE_CHECKING:
     from fieldkit.jobs.models import Link
 
 CellKey = tuple[int, float, str]  # (fibre, wavelength nm, direction)
+Severity = Literal["information", "warning", "error"]  # of a notification
 ColumnKey = tuple[float, str]  # (wavelength nm, direction)
 
 DIRECTION_WORDS = {"1": "A→B", "2": "both"}
@@ -300,6 +301,33 @@ class Moved:
 
 
 @dataclass
+class PendingView:
+    """What the grid and the entry line still have to show after the readings just taken:
+    typed ahead, a burst of readings is drawn once, with the last one's message."""
+
+    cells: set[CellKey] = field(default_factory=set)
+    say: tuple[str | None, bool] | None = None  # (message, is an error); None: nothing new
+    pending: bool = False  # a view is already asked for
+
+    def add(self, entered: Entered, moved: Moved) -> bool:
+        """Note a reading taken and where the cursor went; True when the screen has to ask
+        for a view (none is pending yet)."""
+        if entered.cell is not None:
+            self.cells.add(entered.cell)
+        # where the cursor went speaks over the reading's own message (and its error)
+        self.say = (moved.message or entered.message, entered.error and not moved.message)
+        asked, self.pending = self.pending, True
+        return not asked
+
+    def take(self) -> tuple[list[CellKey], tuple[str | None, bool] | None]:
+        """The cells to draw again and what to say (None: nothing); nothing is pending then."""
+        cells, say = sorted(self.cells), self.say
+        self.cells.clear()
+        self.say, self.pending = None, False
+        return cells, say
+
+
+@dataclass
 class RecheckDone:
     drift: ref.Drift
     change: Recheck
@@ -368,6 +396,12 @@ class MeterSession:
     @property
     def active_column(self) -> GridColumn:
         return self.measured_columns[self.column_index]
+
+    @property
+    def work_field(self) -> str:
+        """The field typing goes to next: the reference while the active column has none,
+        else the reading."""
+        return "reading" if self.current_reference is not None else "reference"
 
     @property
     def current_reference(self) -> ColumnReference | None:
@@ -605,6 +639,10 @@ class MeterSession:
             f"⚠ {where}: {loss}negative{more}: re-reference, retest",
         )
 
+    def cleared_words(self) -> str:
+        """Said after :meth:`clear_cell` took the reading under the cursor."""
+        return f"fibre {self.fibre} {self.active_column.heading}: reading removed"
+
     def clear_cell(self, by: str) -> ClearReading | None:
         """Remove the reading under the cursor (None: there was none)."""
         key = (self.fibre, *self.active_column.measured)
@@ -765,6 +803,20 @@ class MeterSession:
         return "\n".join(lines), source_error
 
     # -- recheck -------------------------------------------------------------------------------
+    def recheck_asked(self) -> tuple[GridColumn, float, float]:
+        """What the recheck dialog asks about: the active column, its reference level (dBm)
+        and the default drift tolerance at its wavelength (dB, common practice).
+
+        Raises
+        ------
+        InputError
+            The column has no reference to recheck yet.
+        """
+        column, current = self.active_column, self.current_reference
+        if current is None:
+            raise InputError(f"No reference set for {column.heading} to recheck.")
+        return column, current.level_dbm, ref.default_drift_tolerance_db(column.wavelength_nm)
+
     def apply_recheck(
         self, column: GridColumn, level_dbm: float, tolerance_db: float, by: str
     ) -> RecheckDone:
@@ -801,6 +853,37 @@ class MeterSession:
         return RecheckDone(drift, change, doubted)
 
     # -- the job -------------------------------------------------------------------------------
+    @staticmethod
+    def read_link(store: Any, job_id: str, link_id: str) -> Link:
+        """Job ``job_id``'s link ``link_id`` as the store holds it now.
+
+        Raises
+        ------
+        InputError
+            The job cannot be read or has no such link (the store's words).
+        """
+        from fieldkit.jobs.store import StoreError
+
+        try:
+            link: Link = store.load(job_id).link(link_id)
+        except (StoreError, KeyError) as exc:
+            raise InputError(str(exc)) from None
+        return link
+
+    def history(self, store: Any) -> tuple[str, list[str]]:
+        """The fibre under the cursor's history in the chosen job: the dialog's title and
+        :func:`history_lines`.
+
+        Raises
+        ------
+        InputError
+            No job chosen yet, or it cannot be read.
+        """
+        if self.job_id is None or self.link_id is None:
+            raise InputError("no job chosen")
+        link = self.read_link(store, self.job_id, self.link_id)
+        return f"Fibre {self.fibre} on {link.label}", history_lines(link, self.fibre)
+
     def attach(
         self, job_id: str, link: Link, details: ReferenceDetails
     ) -> tuple[list[MeterChange], dict[str, str]]:
@@ -888,6 +971,18 @@ class MeterSession:
             "fibres": str(self.fibres),
             "directions": str(len(self.directions)),
         }
+
+    def save_notices(self, outcome: meter_log.Applied | str) -> list[tuple[str, Severity]]:
+        """What to notify after a save, as (text, severity): why it failed (a ``str``; the
+        readings stay queued here and go with the next entry), else each recheck's drift."""
+        if isinstance(outcome, str):
+            return [
+                (
+                    f"Readings not saved (kept here; saving again with the next entry): {outcome}",
+                    "error",
+                )
+            ]
+        return [(warning, "warning") for warning in self.saved(outcome)]
 
     def saved(self, outcome: meter_log.Applied) -> list[str]:
         """A save went through: note the job's reference ids; the warnings to show."""

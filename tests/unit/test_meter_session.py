@@ -325,3 +325,73 @@ def test_a_number_on_its_way_is_no_error_but_a_wrong_unit_is() -> None:
         assert s.typing_problem(partial) is None, partial
     assert "length" in (s.typing_problem("5 km") or "")  # a length, not a power
     assert s.typing_problem("50 uW") is None
+
+
+# -- what the screen asks the session (moved down from the screen) ---------------------------
+def test_typed_ahead_readings_are_drawn_once_with_the_last_message() -> None:
+    """A burst of readings costs one view: every cell taken is drawn, the newest message is
+    said, and where the cursor went speaks over the reading's own error."""
+    from fieldkit.tui.meter_session import Entered, Moved, PendingView
+
+    view = PendingView()
+    assert view.add(Entered("fibre 1: 1.00 dB", cell=(1, 1310.0, "A->B")), Moved())
+    assert not view.add(Entered("negative loss", True, (2, 1310.0, "A->B")), Moved())
+    cells, say = view.take()
+    assert cells == [(1, 1310.0, "A->B"), (2, 1310.0, "A->B")] and say == ("negative loss", True)
+    assert view.take() == ([], None) and not view.pending
+    assert view.add(Entered("bad", True, (3, 1310.0, "A->B")), Moved("column 1550 next"))
+    assert view.take()[1] == ("column 1550 next", False)
+
+
+def test_typing_goes_to_the_reference_until_the_column_has_one() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    assert s.work_field == "reference"
+    s.set_reference("-7.0")
+    assert s.work_field == "reading"
+
+
+def test_a_recheck_asks_about_the_active_columns_reference() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    with pytest.raises(InputError, match="No reference set for 1310"):
+        s.recheck_asked()
+    s.set_reference("-7.0")
+    column, level_dbm, tolerance_db = s.recheck_asked()
+    assert column.wavelength_nm == 1310.0 and level_dbm == -7.0
+    assert tolerance_db == ref.default_drift_tolerance_db(1310.0)  # the one common-practice figure
+
+
+def test_removing_a_reading_says_which() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    s.set_reference("-7.0")
+    s.enter("-8.0", DETAILS)
+    s.fibre = 1
+    assert s.clear_cell(by="Tester") is not None
+    assert s.cleared_words() == f"fibre 1 {s.active_column.heading}: reading removed"
+
+
+def test_a_failed_save_says_the_readings_stay_and_a_drift_warns() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    [(text, severity)] = s.save_notices("disk full")
+    assert severity == "error" and text.endswith(": disk full") and "kept here" in text
+    drift = ref.reference_drift(-7.0, -7.3, 0.1)  # 0.3 dB beyond a 0.1 dB tolerance
+    notices = s.save_notices(Applied(rechecks=[("1310 A->B", drift, 2)]))
+    assert notices == [(f"1310 A->B: {drift.message} (2 results marked in doubt)", "warning")]
+
+
+def test_the_history_needs_a_job_and_names_the_fibre_and_link(tmp_path) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    store = JobStore(tmp_path)
+    job = Job(name="Station Road")
+    link = job.add_link("L1")
+    s = _session(fibres=2, wavelengths="1310")
+    with pytest.raises(InputError, match="no job chosen"):
+        s.history(store)
+    with pytest.raises(InputError):
+        s.read_link(store, "0000000000000000", "nope")  # no such job: the store's words
+    store.save(job)
+    s.attach(job.id, store.load(job.id).link(link.id), DETAILS)
+    title, lines = s.history(store)
+    assert title == "Fibre 1 on L1" and lines == [
+        "No reading of this fibre is saved in the job yet."
+    ]

@@ -13,8 +13,6 @@ Layout and wiring only: the state, what each key does and the summary text live 
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 from textual import events, on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
@@ -23,11 +21,12 @@ from textual.screen import Screen
 from textual.timer import Timer
 from textual.widgets import DataTable, Input, Static
 
-from fieldkit.actions.meter import Applied, MeterChange, ReferenceDetails
+from fieldkit.actions.meter import Applied, ReferenceDetails
 from fieldkit.calc import reference as ref
+from fieldkit.calc.units import InputError
 from fieldkit.tui import keys
 from fieldkit.tui.meter_saver import MeterSaver
-from fieldkit.tui.meter_session import GridColumn, MeterSession, history_lines
+from fieldkit.tui.meter_session import GridColumn, MeterSession, PendingView
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.meter_fields import KEYS_HINT, KEYS_HINT_NARROW, entry_line, setup_fields
@@ -35,16 +34,6 @@ from fieldkit.tui.widgets.meter_view import EntryView, SetupView
 from fieldkit.tui.widgets.readings_grid import EntryInput, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 from fieldkit.tui.wrapped import Wrapped
-
-
-@dataclass
-class _ViewUpdate:
-    """What the grid and the entry line still have to show after the readings just taken."""
-
-    cells: set[tuple[int, float, str]] = field(default_factory=set)
-    say: tuple[str, bool] | None = None
-    pending: bool = False
-
 
 __all__ = ["KEYS_HINT", "KEYS_HINT_NARROW", "MeterScreen"]
 
@@ -74,7 +63,7 @@ class MeterScreen(Screen[None]):
         self.entry = EntryView(self, self.session)
         self._summary_timer: Timer | None = None
         self._hint_shown = False
-        self._view = _ViewUpdate()
+        self._view = PendingView()
         self._grid: ReadingsGrid | None = None
 
     # -- layout ----------------------------------------------------------------------------
@@ -103,12 +92,7 @@ class MeterScreen(Screen[None]):
         self._show_hint()
         self.set_interval(30.0, self._show_summary)
         # Focus opens where the technician types first: the reference, until one is set.
-        self.set_focus(self.query_one(f"#{self._work_field()}"))
-
-    def _work_field(self) -> str:
-        """Where typing goes next: the Ref field while the column has no reference, else the
-        reading."""
-        return "reading" if self.session.current_reference is not None else "reference"
+        self.set_focus(self.query_one(f"#{self.session.work_field}"))
 
     def action_focus_field(self, field_id: str) -> None:
         """Alt+R / Alt+W / Alt+F: to a set-up field from wherever you type."""
@@ -127,7 +111,7 @@ class MeterScreen(Screen[None]):
     def _setup_submitted(self, event: Input.Submitted) -> None:
         # Enter in a set-up field: back to typing readings (or to Ref, while it is empty).
         if event.input.id != "reading":
-            self.query_one(f"#{self._work_field()}").focus()
+            self.query_one(f"#{self.session.work_field}").focus()
 
     def on_click(self, event: events.Click) -> None:
         if event.widget is not None and event.widget.id == "setup-line":
@@ -149,7 +133,7 @@ class MeterScreen(Screen[None]):
     def on_resize(self) -> None:
         if self._hint_shown:
             self._show_hint()
-        self._show_limit_placeholder()
+        self.setup.placeholder(self.narrow)
         self._show_entry_where()
 
     def _show_hint(self) -> None:
@@ -165,9 +149,6 @@ class MeterScreen(Screen[None]):
     def _rebuild_grid(self) -> None:
         self.session.clamp()
         self.grid.draw(self.session)
-
-    def _refresh_cell(self, fibre: int, wavelength_nm: float, direction: str) -> None:
-        self.grid.draw_cell(self.session, fibre, wavelength_nm, direction)
 
     def _point(self) -> None:
         self.grid.point_at(self.session.fibre, self.session.active_column)
@@ -195,16 +176,13 @@ class MeterScreen(Screen[None]):
             self._show_entry_where()
         if done.limits is not None:
             self._rebuild_grid()
-            self._show_limit_placeholder()
+            self.setup.placeholder(self.narrow)
             for change in done.limits:
-                self._queue(change)
+                self.saver.queue(change)
         if done.grid or done.limits is not None or done.note:
             self._show_reference_note()
             self._show_summary()
             self._say(None)  # a new reference may have dealt with a negative loss
-
-    def _show_limit_placeholder(self) -> None:
-        self.setup.placeholder(self.narrow)
 
     def _sync_column_fields(self, force: bool = False) -> None:
         if self.setup.sync_column(narrow=self.narrow, force=force):
@@ -242,32 +220,23 @@ class MeterScreen(Screen[None]):
             # Refused when Enter was pressed but fine now (the reference was set since):
             # the text is still in the field; take it.
             event.entry.value = ""
-        self._queue(entered.change)
+        self.saver.queue(entered.change)
         moved = s.next_empty()
         if moved.column_changed:
             self._sync_column_fields()
         # The grid, the entry line and its message follow once the keys already queued are
         # handled: typed ahead, a burst of readings costs one cursor move and one message.
-        self._view.cells.add(entered.cell)
-        self._view.say = (moved.message or entered.message, entered.error and not moved.message)
-        self._view_soon()
+        if self._view.add(entered, moved):
+            self.call_later(self._show_view)
         self._summary_soon()
 
-    def _view_soon(self) -> None:
-        if not self._view.pending:
-            self._view.pending = True
-            self.call_later(self._show_view)
-
     def _show_view(self) -> None:
-        view = self._view
-        view.pending = False
-        for cell in view.cells:
-            self._refresh_cell(*cell)
-        view.cells.clear()
+        cells, say = self._view.take()
+        for cell in cells:
+            self.grid.draw_cell(self.session, *cell)
         self._point()
-        if view.say is not None:
-            text, error = view.say
-            self._say(text, error=error)
+        if say is not None:
+            self._say(say[0], error=say[1])
 
     def _details(self) -> ReferenceDetails:
         return self.setup.details(lambda: fieldkit_app(self).operator)
@@ -297,9 +266,9 @@ class MeterScreen(Screen[None]):
         change = s.clear_cell(by=self._details().by)
         if change is None:
             return
-        self._refresh_cell(change.fibre, change.wavelength_nm, change.direction)
-        self._queue(change)
-        self._say(f"fibre {s.fibre} {s.active_column.heading}: reading removed")
+        self.grid.draw_cell(self.session, change.fibre, change.wavelength_nm, change.direction)
+        self.saver.queue(change)
+        self._say(s.cleared_words())
         self._show_entry_where()
         self._show_summary()
 
@@ -359,11 +328,9 @@ class MeterScreen(Screen[None]):
 
     def attach(self, job_id: str, link_id: str) -> None:
         """Save into this job's link from now on; load what it already holds into the grid."""
-        from fieldkit.jobs.store import StoreError
-
         try:
-            link = fieldkit_app(self).store.load(job_id).link(link_id)
-        except (StoreError, KeyError) as exc:
+            link = self.session.read_link(fieldkit_app(self).store, job_id, link_id)
+        except InputError as exc:
             self.notify(f"The job could not be opened: {exc}", severity="error")
             return
         changes, fields = self.session.attach(job_id, link, self._details())
@@ -371,20 +338,17 @@ class MeterScreen(Screen[None]):
             # The handler of the Changed event this causes finds the state already matching.
             self.setup.one.input(field_id).value = value
         for change in changes:
-            self._queue(change)
+            self.saver.queue(change)
         self._rebuild_grid()
         self._sync_column_fields(force=True)
         self._show_entry_where()
         self._show_summary()
-        self._queue(None)
+        self.saver.queue(None)
 
     @property
     def unsaved(self) -> int:
         """Entries not yet in the job file (0 when everything is saved or no job is chosen)."""
         return self.saver.unsaved
-
-    def _queue(self, change: MeterChange | None) -> None:
-        self.saver.queue(change)
 
     def _report(self, outcome: Applied | str) -> None:
         self.post_message(self.Saved(outcome))  # from the save worker's thread
@@ -397,18 +361,12 @@ class MeterScreen(Screen[None]):
 
     @on(Saved)
     def _saved(self, event: Saved) -> None:
+        for text, severity in self.session.save_notices(event.outcome):
+            self.notify(text, severity=severity, timeout=10)
         if isinstance(event.outcome, str):
-            self.notify(
-                "Readings not saved (kept here; saving again with the next entry): "
-                f"{event.outcome}",
-                severity="error",
-                timeout=10,
-            )
-            self._show_summary()
-            return
-        for warning in self.session.saved(event.outcome):
-            self.notify(warning, severity="warning", timeout=10)
-        self._summary_soon()
+            self._show_summary()  # NOT SAVED at once
+        else:
+            self._summary_soon()
 
     def flush_saves(self, timeout_s: float = 5.0) -> bool:
         """Save what is queued here and now (the workspace closes); True when all is saved."""
@@ -420,49 +378,45 @@ class MeterScreen(Screen[None]):
     # -- history ------------------------------------------------------------------------
     def action_history(self) -> None:
         """The fibre's history in the job: every result, the superseded ones marked."""
-        from fieldkit.jobs.store import StoreError
         from fieldkit.tui.widgets.dialogs import AskDialog
 
-        s = self.session
-        if s.job_id is None or s.link_id is None:
+        if self.session.job_id is None:
             self._say(
                 f"{keys.display('save')}: choose a job first; the history is the one in the job."
             )
             return
         self.flush_saves()
         try:
-            link = fieldkit_app(self).store.load(s.job_id).link(s.link_id)
-        except (StoreError, KeyError) as exc:
+            title, lines = self.session.history(fieldkit_app(self).store)
+        except InputError as exc:
             self._say(f"The history could not be read: {exc}", error=True)
             return
-        lines = history_lines(link, s.fibre)
-        self.app.push_screen(AskDialog(f"Fibre {s.fibre} on {link.label}", lines, []))
+        self.app.push_screen(AskDialog(title, lines, []))
 
     # -- recheck ------------------------------------------------------------------------
     def action_recheck(self) -> None:
         from fieldkit.tui.widgets.recheck_dialog import RecheckDialog
 
-        column = self.session.active_column
-        current = self.session.current_reference
-        if current is None:
-            self.notify(f"No reference set for {column.heading} to recheck.", severity="warning")
+        try:
+            column, level_dbm, tolerance_db = self.session.recheck_asked()
+        except InputError as exc:
+            self.notify(str(exc), severity="warning")
             return
-        tolerance_db = ref.default_drift_tolerance_db(column.wavelength_nm)
 
         def done(result: tuple[float, float] | None) -> None:
             if result is not None:
                 self.apply_recheck(column, *result)
 
-        self.app.push_screen(RecheckDialog(column.heading, current.level_dbm, tolerance_db), done)
+        self.app.push_screen(RecheckDialog(column.heading, level_dbm, tolerance_db), done)
 
     def apply_recheck(self, column: GridColumn, level_dbm: float, tolerance_db: float) -> ref.Drift:
         """Compare a recheck with the column's reference; beyond tolerance, mark its results in
         doubt."""
         done = self.session.apply_recheck(column, level_dbm, tolerance_db, by=self._details().by)
-        for fibre, w, d in done.doubted:
-            self._refresh_cell(fibre, w, d)
+        for cell in done.doubted:
+            self.grid.draw_cell(self.session, *cell)
         self._say(done.words(column, short=self.narrow), error=not done.drift.within)
-        self._queue(done.change)
+        self.saver.queue(done.change)
         self._show_reference_note()
         self._show_summary()
         return done.drift
