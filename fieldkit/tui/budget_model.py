@@ -24,6 +24,7 @@ from fieldkit.calc.checks import fibre_data
 from fieldkit.calc.units import InputError
 from fieldkit.linkspec.resolve import ResolvedBudget
 from fieldkit.presets import PresetLibrary, load_presets
+from fieldkit.text import budget as lines
 from fieldkit.text.budget import fibre_data_lines
 from fieldkit.tui.form_fields import Notice
 
@@ -469,6 +470,26 @@ class BudgetModel:
         mark = f" (no {word} row)" if word else ""
         return [(n, n) for n in fits] + [(f"{n}{mark}", n) for n in others]
 
+    def transceiver_choices(self) -> list[tuple[str, str]]:
+        """The transceiver presets, then levels typed by hand (:data:`TYPED`)."""
+        return [(n, n) for n in self.library.transceivers] + [("typed levels", TYPED)]
+
+    def preset_warning(self) -> str | None:
+        """What is wrong with the shipped or the user's presets, in one line (None: nothing)."""
+        problems = self.library.problems
+        return "Preset problems: " + "; ".join(problems) if problems else None
+
+    def choose(self, check: str, value: str | None) -> None:
+        """The application or transceiver (``check``) to check against; None: no check."""
+        if check not in ("application", "transceiver"):
+            raise ValueError(f"no such check: {check!r}")
+        setattr(self, check, value)
+
+    @property
+    def typed_levels(self) -> bool:
+        """True when the transceiver check takes levels typed by hand."""
+        return self.transceiver == TYPED
+
     # -- item edits -------------------------------------------------------------------------
     def add(self, kind: str) -> str | None:
         """Add an item of ``kind`` after the picked one and pick it. Returns a refusal (a second
@@ -593,6 +614,16 @@ class BudgetModel:
         return Notice(f"Budget saved onto job {saved.job_name}, link {saved.link_label}.")
 
     # -- unsaved edits ----------------------------------------------------------------------
+    @staticmethod
+    def unsaved_question(what: str, answer: str) -> tuple[str, list[str], list[tuple[str, str]]]:
+        """Asked before ``what`` drops unsaved edits: the title, the lines and the choices
+        (``save``: save first; ``discard``: go on, its button saying ``answer``)."""
+        return (
+            "The budget has unsaved changes",
+            [f"{what} replaces what is on screen: its items and settings."],
+            [("save", "Save first"), ("discard", answer)],
+        )
+
     def fingerprint(self) -> str:
         return json.dumps(
             [[asdict(i) for i in self.items], self.fields, self.application, self.transceiver],
@@ -702,6 +733,33 @@ class BudgetModel:
             if 0 < n <= len(fibres):
                 return f"item {fibres[n - 1] + 1}: {match.group(2)}"
         return message
+
+    def add_title(self) -> str:
+        """The title of the dialog asking which kind of item to add, and where."""
+        return f"Add an item {f'after item {self.current + 1}' if self.items else 'to the link'}"
+
+    def result_texts(self, outcome: Outcome, width: int | None) -> dict[str, str]:
+        """What each result panel shows, by panel id (the breakdown ``width`` columns wide,
+        None: no limit), and the summary line under the items; each check says what it
+        waits for while it has nothing to show. Empty while there is no budget."""
+        report = outcome.report
+        if report is None:
+            return {}
+        app, tx = report.application, report.transceiver
+        checks = [] if report.checks is None else lines.check_lines(report.checks)
+        return {
+            "budget": "\n".join(lines.breakdown_lines(report, width)),
+            "summary": lines.summary_text(report),
+            "sources": "\n".join(lines.source_lines(report)),
+            "application": "\n".join(lines.application_lines(app))
+            if app
+            else "Pick an application to check.",
+            "transceiver": "\n".join(lines.transceiver_lines(tx))
+            if tx
+            else outcome.tx_problem or "Pick a transceiver to check.",
+            "checks": "\n".join(checks) or "No dispersion or bandwidth to check for this link.",
+            "fibre-data": "\n".join(self.fibre_data_lines(outcome)),
+        }
 
     def fibre_data_lines(self, outcome: Outcome) -> list[str]:
         """The fibre data of the picked fibre item (else the first) at each wavelength."""

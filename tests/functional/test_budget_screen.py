@@ -101,7 +101,7 @@ async def test_add_opens_the_kind_chooser_at_the_same_kind_every_time(tmp_path: 
         await pilot.press("3")  # Splitter: a 1x32 after the fibre
         await pilot.pause()
         assert app.screen is screen
-        assert [i.kind for i in screen.items] == ["fibre", "splitter", "connectors"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "splitter", "connectors"]
         assert screen.focused is screen.query_one("#item-value", Input)
         # 1x32 ideal 10·log10(32) = 15.0515 dB + 2.1 dB preset excess = 17.1515 dB;
         # 4.80 + 17.15 + 1.50 = 23.45 dB
@@ -120,7 +120,7 @@ async def test_add_opens_the_kind_chooser_at_the_same_kind_every_time(tmp_path: 
         assert "6 splices, fusion" in str(items.get_option_at_index(2).prompt)
         await pilot.press("ctrl+a", "escape")  # Esc adds nothing
         await pilot.pause()
-        assert app.screen is screen and len(screen.items) == 4
+        assert app.screen is screen and len(screen.model.items) == 4
 
 
 async def test_remove_and_reorder(tmp_path: Path):
@@ -133,23 +133,23 @@ async def test_remove_and_reorder(tmp_path: Path):
         await pilot.pause()
         await pilot.press(*"5 dB")
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "attenuator", "connectors"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "attenuator", "connectors"]
         await pilot.press("ctrl+down")
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "connectors", "attenuator"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "connectors", "attenuator"]
         await pilot.press("ctrl+up")
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "attenuator", "connectors"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "attenuator", "connectors"]
         # 0.4 + 5 + 1.5 = 6.9 dB
         assert screen.report.result.at(1310).loss_db == pytest.approx(6.9, abs=1e-9)
         await pilot.press("ctrl+x")
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "connectors"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "connectors"]
         assert screen.report.result.at(1310).loss_db == pytest.approx(1.9, abs=1e-9)
-        screen.current = 0
+        screen.model.current = 0
         await pilot.press("ctrl+x")  # the only fibre segment stays
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "connectors"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "connectors"]
 
 
 async def test_typed_attenuation_per_wavelength(tmp_path: Path):
@@ -282,7 +282,12 @@ async def test_open_a_budget_saved_from_the_cli(tmp_path: Path):
         await pilot.pause()
         screen = app.screen
         assert isinstance(screen, BudgetScreen)
-        assert [i.kind for i in screen.items] == ["fibre", "splitter", "splices", "connectors"]
+        assert [i.kind for i in screen.model.items] == [
+            "fibre",
+            "splitter",
+            "splices",
+            "connectors",
+        ]
         assert screen.query_one("#margin", Input).value == "2"
         assert screen.query_one("#application", Select).value == "GPON Class B+"
         # the same numbers as when it was saved
@@ -306,14 +311,14 @@ async def test_mouse_picks_an_item_and_removes_it(tmp_path: Path, size):
         await pilot.pause()
         screen.query_one("#item-value", Input).value = "0.5 dB"
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "other", "connectors"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "other", "connectors"]
         await pilot.click("#items", offset=(3, 2))  # the third line: the connectors
         await pilot.pause()
-        assert screen.current == 2
+        assert screen.model.current == 2
         assert screen.query_one("#item-value", Input).value == "2"
         await pilot.click("#remove")
         await pilot.pause()
-        assert [i.kind for i in screen.items] == ["fibre", "other"]
+        assert [i.kind for i in screen.model.items] == ["fibre", "other"]
         # 5 × 0.4 + 0.5 = 2.5 dB, no connections left
         assert screen.report.result.at(1310).loss_db == pytest.approx(2.5, abs=1e-9)
 
@@ -457,18 +462,20 @@ async def test_the_items_are_reached_from_the_length_without_shift_tab(tmp_path:
         length = screen.query_one("#item-value", Input)
         await pilot.press(*"12 km", "down")
         await pilot.pause()
-        assert screen.current == 1 and screen.focused is length  # the connectors, still typing
+        assert (
+            screen.model.current == 1 and screen.focused is length
+        )  # the connectors, still typing
         assert length.value == "2"
         assert screen.query_one("#items", OptionList).highlighted == 1
         await pilot.press("up")
         await pilot.pause()
-        assert screen.current == 0 and length.value == "12 km"
+        assert screen.model.current == 0 and length.value == "12 km"
         await pilot.press("ctrl+b")
         await pilot.pause()
         assert screen.focused is screen.query_one("#items", OptionList)
         await pilot.press("down", "enter")  # pick the connectors, back to its field
         await pilot.pause()
-        assert screen.current == 1 and screen.focused is length
+        assert screen.model.current == 1 and screen.focused is length
 
 
 async def test_new_asks_before_dropping_unsaved_items(tmp_path: Path):
@@ -480,19 +487,22 @@ async def test_new_asks_before_dropping_unsaved_items(tmp_path: Path):
         screen = app.screen
         await pilot.press(*"12 km", "ctrl+a", "2", "6")
         await pilot.pause()
-        assert screen.unsaved_edits and len(screen.items) == 3
+        assert screen.unsaved_edits and len(screen.model.items) == 3
         await pilot.press("ctrl+n")
         await pilot.pause()
         assert isinstance(app.screen, AskDialog)
         await pilot.press("escape")
         await pilot.pause()
-        assert app.screen is screen and [i.value for i in screen.items] == ["12 km", "6", "2"]
+        assert app.screen is screen and [i.value for i in screen.model.items] == ["12 km", "6", "2"]
         await pilot.press("ctrl+n")
         await pilot.pause()
         await pilot.click("#ask-discard")
         await pilot.pause()
         assert app.screen is screen
-        assert [(i.kind, i.value) for i in screen.items] == [("fibre", ""), ("connectors", "2")]
+        assert [(i.kind, i.value) for i in screen.model.items] == [
+            ("fibre", ""),
+            ("connectors", "2"),
+        ]
         assert not screen.unsaved_edits
         assert screen.focused is screen.query_one("#item-value", Input)
         await pilot.press("ctrl+n")  # nothing to lose now: no question

@@ -67,13 +67,13 @@ async def test_ctrl_keys_act_while_typing(tmp_path: Path) -> None:
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         assert isinstance(app.screen.focused, Input)
-        before = len(app.screen.items)
+        before = len(app.screen.model.items)
         await pilot.press("ctrl+a", "enter")  # Ctrl+A opens the kind chooser; Enter adds
         await pilot.pause()
-        assert len(app.screen.items) == before + 1
+        assert len(app.screen.model.items) == before + 1
         await pilot.press("ctrl+x")
         await pilot.pause()
-        assert len(app.screen.items) == before
+        assert len(app.screen.model.items) == before
 
 
 async def test_ctrl_o_opens_in_every_workspace_that_has_it(tmp_path: Path) -> None:

@@ -240,3 +240,57 @@ def test_applications_with_a_row_for_the_fibre_come_first() -> None:
     assert all("no single-mode row" in p for p in shown[first_other:])
     assert "10GBASE-LR" in shown[:first_other]
     assert "10GBASE-SR (no single-mode row)" in shown
+
+
+# -- what the screen asks the model (moved down from the screen) -----------------------------
+def test_result_panels_say_what_each_check_waits_for() -> None:
+    """The panels' texts are the CLI's lines (fieldkit/text/budget.py); a check with nothing
+    to show says what it waits for."""
+    from fieldkit.text import budget as lines
+
+    model = _model()
+    assert model.result_texts(model.evaluate(), 60) == {}  # nothing typed: no budget
+    model.items[0].value = "12 km"
+    outcome = model.evaluate()
+    assert outcome.report is not None
+    texts = model.result_texts(outcome, 60)
+    assert set(texts) == {
+        "budget",
+        "summary",
+        "sources",
+        "application",
+        "transceiver",
+        "checks",
+        "fibre-data",
+    }
+    assert texts["budget"] == "\n".join(lines.breakdown_lines(outcome.report, 60))
+    assert texts["summary"] == lines.summary_text(outcome.report)
+    assert texts["application"] == "Pick an application to check."
+    assert texts["transceiver"] == "Pick a transceiver to check."
+    model.transceiver = TYPED  # levels not typed yet: the check says which
+    outcome = model.evaluate()
+    assert model.result_texts(outcome, 60)["transceiver"] == outcome.tx_problem
+    model.choose("application", "10GBASE-LR")
+    outcome = model.evaluate()
+    assert outcome.report is not None and outcome.report.application is not None
+    assert model.result_texts(outcome, None)["application"] == "\n".join(
+        lines.application_lines(outcome.report.application)
+    )
+
+
+def test_choices_and_questions_the_screen_shows() -> None:
+    model = _model()
+    assert model.add_title() == "Add an item after item 1"
+    model.items.clear()
+    assert model.add_title() == "Add an item to the link"
+    choices = model.transceiver_choices()
+    assert choices[-1] == ("typed levels", TYPED) and len(choices) > 1
+    assert not model.typed_levels
+    model.choose("transceiver", TYPED)
+    assert model.typed_levels
+    with pytest.raises(ValueError, match="no such check"):
+        model.choose("margin", "1")
+    assert model.preset_warning() is None  # the shipped presets read cleanly
+    title, asked, answers = BudgetModel.unsaved_question("A new budget", "Discard and start new")
+    assert title == "The budget has unsaved changes" and asked[0].startswith("A new budget ")
+    assert [key for key, _ in answers] == ["save", "discard"]

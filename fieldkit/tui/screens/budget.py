@@ -20,7 +20,6 @@ from textual.screen import Screen
 from textual.widgets import Button, Input, OptionList, Select, Static
 
 from fieldkit import safety
-from fieldkit.text import budget as lines
 from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 from fieldkit.tui.budget_model import (
@@ -30,9 +29,7 @@ from fieldkit.tui.budget_model import (
     LEVEL_FIELDS,
     SETTING_FIELDS,
     SETTINGS,
-    TYPED,
     BudgetModel,
-    Item,
     Notice,
     Outcome,
 )
@@ -79,22 +76,6 @@ class BudgetScreen(Screen[None]):
     @property
     def resolved(self) -> Any:
         return self.outcome.resolved
-
-    @property
-    def problem(self) -> str | None:
-        return self.outcome.message
-
-    @property
-    def items(self) -> list[Item]:
-        return self.model.items
-
-    @property
-    def current(self) -> int:
-        return self.model.current
-
-    @current.setter
-    def current(self, index: int) -> None:
-        self.model.current = index
 
     @property
     def unsaved_edits(self) -> bool:
@@ -145,18 +126,13 @@ class BudgetScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self.model.config_dir = fieldkit_app(self).config_dir
-        lib = self.model.library
-        self.query_one("#transceiver", Select).set_options(
-            [(n, n) for n in lib.transceivers] + [("typed levels", TYPED)]
-        )
+        self.query_one("#transceiver", Select).set_options(self.model.transceiver_choices())
         self.query_one("#tx-levels").display = False
         for error in self.query(".field-error"):
             error.display = False
         self._say("")
-        if lib.problems:
-            self.notify(
-                "Preset problems: " + "; ".join(lib.problems), severity="warning", timeout=10
-            )
+        if warning := self.model.preset_warning():
+            self.notify(warning, severity="warning", timeout=10)
         self.query_one(LinkItems).show()
         self.recompute()
         self.model.mark_clean()
@@ -180,10 +156,9 @@ class BudgetScreen(Screen[None]):
         """Ask which kind to add: the chooser opens at the same kind every time."""
         from fieldkit.tui.widgets.choice_dialog import ChoiceDialog
 
-        where = f"after item {self.model.current + 1}" if self.model.items else "to the link"
         self.app.push_screen(
             ChoiceDialog(
-                f"Add an item {where}",
+                self.model.add_title(),
                 [(KINDS[k].title, k) for k in ADD_KINDS],
                 start=DEFAULT_ADD_KIND,
                 note="Arrows and Enter, or a digit; Esc adds nothing.",
@@ -248,8 +223,8 @@ class BudgetScreen(Screen[None]):
     @on(Select.Changed, "#application, #transceiver")
     def _check_changed(self, event: Select.Changed) -> None:
         value = None if event.value is Select.NULL else str(event.value)
-        setattr(self.model, event.select.id or "", value)
-        self.query_one("#tx-levels").display = self.model.transceiver == TYPED
+        self.model.choose(event.select.id or "", value)
+        self.query_one("#tx-levels").display = self.model.typed_levels
         self.recompute()
 
     # -- the result -------------------------------------------------------------------------
@@ -305,29 +280,11 @@ class BudgetScreen(Screen[None]):
         return out
 
     def _show(self, outcome: Outcome) -> None:
-        report = outcome.report
-        assert report is not None
         width = self.query_one("#budget-out", Static).content_size.width or None
-        self._put("#budget-out", "\n".join(lines.breakdown_lines(report, width)))
-        summary = self._put("#budget-summary", lines.summary_text(report))
+        for panel_id, text in self.model.result_texts(outcome, width).items():
+            self._put(f"#{panel_id}-out" if panel_id != "summary" else "#budget-summary", text)
+        summary = self.query_one("#budget-summary", Static)
         summary.set_class(False, "-waiting").set_class(False, "-problem")
-        self._put("#sources-out", "\n".join(lines.source_lines(report)))
-        app, tx = report.application, report.transceiver
-        self._put(
-            "#application-out",
-            "\n".join(lines.application_lines(app)) if app else "Pick an application to check.",
-        )
-        self._put(
-            "#transceiver-out",
-            "\n".join(lines.transceiver_lines(tx))
-            if tx
-            else outcome.tx_problem or "Pick a transceiver to check.",
-        )
-        checks = [] if report.checks is None else lines.check_lines(report.checks)
-        self._put(
-            "#checks-out", "\n".join(checks) or "No dispersion or bandwidth to check for this link."
-        )
-        self._put("#fibre-data-out", "\n".join(self.model.fibre_data_lines(outcome)))
 
     def on_resize(self) -> None:
         self.query_one("#budget-caution", Caution).fit(self.size.height < self.SCARCE_ROWS)
@@ -383,14 +340,7 @@ class BudgetScreen(Screen[None]):
             if choice is not None:
                 (self.action_save if choice[0] == "save" else go)()
 
-        self.app.push_screen(
-            AskDialog(
-                "The budget has unsaved changes",
-                [f"{what} replaces what is on screen: its items and settings."],
-                [("save", "Save first"), ("discard", answer)],
-            ),
-            answered,
-        )
+        self.app.push_screen(AskDialog(*self.model.unsaved_question(what, answer)), answered)
 
     def action_new_budget(self) -> None:
         """An empty budget; asks first when this one has changes not saved."""
@@ -426,7 +376,7 @@ class BudgetScreen(Screen[None]):
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
         if self.report is None:
-            self.notify(self.problem or "No budget to save yet.", severity="warning")
+            self.notify(self.outcome.message or "No budget to save yet.", severity="warning")
             return
         resolved, report = self.resolved, self.report
         self.app.push_screen(
