@@ -302,6 +302,16 @@ class FaultForm:
     errors: dict[str, str] = field(default_factory=dict)
     _clean: str | None = None
     _typed: dict[str, Any] = field(default_factory=dict)
+    _clear_asked: bool = False
+
+    def may_clear(self, anything_typed: bool) -> bool:
+        """Ctrl+N: True when the reading and the rows may be emptied now. With something
+        typed the first press only asks (False); the next one clears."""
+        if anything_typed and not self._clear_asked:
+            self._clear_asked = True
+            return False
+        self._clear_asked = False
+        return True
 
     @property
     def library(self) -> PresetLibrary:
@@ -325,6 +335,35 @@ class FaultForm:
         """The wavelengths a fibre preset has a group index at; None for a typed index."""
         preset = self.library.fibres.get(fibre)
         return None if preset is None else sorted(preset.group_indices)
+
+    def wavelength_choice(
+        self, fibre: str, current: object
+    ) -> tuple[list[tuple[str, float]], float] | None:
+        """The wavelength select's options and value for fibre preset ``fibre``: the value
+        shown stays when the fibre has it, else 1550 nm, else the longest; None for a typed
+        index or a preset without group indices (the select then stays as it is)."""
+        wavelengths = self.wavelengths(fibre)
+        if not wavelengths:
+            return None
+        if isinstance(current, (int, float)) and current in wavelengths:
+            value = float(current)
+        else:
+            value = 1550.0 if 1550.0 in wavelengths else wavelengths[-1]
+        return [(f"{w:g} nm", w) for w in wavelengths], value
+
+    def preset_warning(self) -> str | None:
+        """The presets' first three problems in one line (None: they read cleanly)."""
+        problems = self.library.problems
+        return "Preset problems: " + "; ".join(problems[:3]) if problems else None
+
+    @staticmethod
+    def handoff_rows(landmarks: Sequence[tuple[str, float, float]]) -> list[dict[str, str]]:
+        """Landmarks handed off (name, OTDR distance m, route distance m) as the landmark
+        list's rows, distances to 0.1 m."""
+        return [
+            {"name": name, "otdr": f"{otdr:.1f} m", "route": f"{route:.1f} m"}
+            for name, otdr, route in landmarks
+        ]
 
     def group_index_text(self, fibre: str, wavelength_nm: float) -> str | None:
         """The preset's group index at a wavelength, as the field shows it."""

@@ -50,16 +50,16 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(
         # on the command line: the estimate takes 1.5 %, the middle of 0–3 % (common practice):
         # sheath = route = 2040 / 1.015 = 2009.8522 m, range up to the fibre's 2040 m
         assert "Helix not given" in _text(screen, "#fault-cable-note")
-        assert screen.location is not None
-        assert screen.location.position.route_distance_m == pytest.approx(2009.8522, abs=1e-3)
+        assert screen.form.location is not None
+        assert screen.form.location.position.route_distance_m == pytest.approx(2009.8522, abs=1e-3)
         # Digits follow the ± (review C28): ± 30.2 m is shown to one significant digit, 30 m,
         # and the route to the same place, 2010 m (common practice for quoting a ±).
         assert "Fault 2010 m ± 30 m" in _text(screen, "#fault-summary")
         assert "route 2010 m ± 30 m" in _text(screen, "#fault-result")
         assert "2009.9" not in _text(screen, "#fault-result")
-        p = screen.location.position  # the range tops out at the fibre distance, within its ±
+        p = screen.form.location.position  # the range tops out at the fibre distance, within its ±
         assert p.high_m <= 2040.0 + p.fibre_uncertainty_m
-        assert any("the estimate takes 1.5 %" in w for w in screen.location.warnings)
+        assert any("the estimate takes 1.5 %" in w for w in screen.form.location.warnings)
         diagram = screen.query_one("#fault-diagram", RouteDiagram)
         lines = diagram.lines()
         assert lines[0].startswith("├") and "X" in lines[0]
@@ -116,12 +116,12 @@ async def test_bad_input_is_shown_beside_the_field_and_kept(tmp_path: Path) -> N
         error = field.query_one(".field-error", Static)
         assert error.display and "optical power" in str(error.render())
         assert screen.query_one("#fault-distance", Input).value == "-3 dBm"
-        assert screen.location is None
+        assert screen.form.location is None
         assert "Fix the field" in _text(screen, "#fault-summary")
         # a bare number is refused beside the field, asking for a unit (as the CLI does)
         screen.query_one("#fault-distance", Input).value = "3.412"
         await pilot.pause()
-        assert "3.412 needs a unit" in str(error.render()) and screen.location is None
+        assert "3.412 needs a unit" in str(error.render()) and screen.form.location is None
         assert screen.query_one("#fault-distance", Input).value == "3.412"
 
 
@@ -149,7 +149,7 @@ async def test_landmarks_added_edited_and_removed_by_keys(tmp_path: Path) -> Non
         landmarks = screen.query_one("#fault-landmarks", PointList)
         assert [row["name"] for row in landmarks.rows] == ["closure 6", "closure 7"]
         # 1950 + 800 × 1380 / 1400 = 2738.5714 m (interpolation between the two)
-        p = screen.location.position
+        p = screen.form.location.position
         assert p.route_distance_m == pytest.approx(2738.5714, abs=1e-3)
         assert "between landmarks closure 6–closure 7" in _text(screen, "#fault-result")
         # the rows' hints are examples ("e.g. ..."), not rows that look entered
@@ -170,7 +170,7 @@ async def test_landmarks_added_edited_and_removed_by_keys(tmp_path: Path) -> Non
         await pilot.press("enter")
         await pilot.pause()
         # 1950 + 800 × 1400 / 1400 = 2750 m
-        assert screen.location.position.route_distance_m == pytest.approx(2750.0, abs=1e-6)
+        assert screen.form.location.position.route_distance_m == pytest.approx(2750.0, abs=1e-6)
         # remove the first with Delete on the list
         options.focus()
         await pilot.press("home", "delete")
@@ -193,13 +193,13 @@ async def test_slack_loop_added_with_the_mouse(tmp_path: Path) -> None:
         await pilot.click("#fault-slack-add")
         await pilot.pause()
         # 2040 / 1.02 = 2000 m sheath; the 25 m loop at 800 m: route 1975 m
-        assert screen.location.position.route_distance_m == pytest.approx(1975.0, abs=1e-9)
+        assert screen.form.location.position.route_distance_m == pytest.approx(1975.0, abs=1e-9)
         assert any("∞" in line for line in screen.query_one(RouteDiagram).lines())
         await _show(pilot, screen, "#fault-slack-remove")
         screen.query_one("#fault-slack", PointList).query_one(OptionList).highlighted = 0
         await pilot.click("#fault-slack-remove")
         await pilot.pause()
-        assert screen.location.position.route_distance_m == pytest.approx(2000.0, abs=1e-9)
+        assert screen.form.location.position.route_distance_m == pytest.approx(2000.0, abs=1e-9)
 
 
 async def test_save_onto_a_job_link(tmp_path: Path) -> None:

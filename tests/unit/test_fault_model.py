@@ -218,3 +218,43 @@ def test_the_workspace_models_import_without_textual() -> None:
     )
     assert result.returncode == 0, result.stderr
     assert result.stdout.strip() == "False"
+
+
+# -- what the screen asks the form (moved down from the screen) ------------------------------
+def test_the_wavelength_choice_keeps_the_shown_one_else_1550_nm() -> None:
+    """A fibre preset offers the wavelengths it has a group index at (presets/fibres); the one
+    shown stays when the new fibre has it, else 1550 nm (the usual fault-finding wavelength,
+    common practice), else the longest."""
+    form = FaultForm()
+    fibres, default = form.fibre_choices()
+    wavelengths = form.wavelengths(default)
+    assert wavelengths and 1550.0 in wavelengths and 1310.0 in wavelengths
+    choice = form.wavelength_choice(default, 1310.0)
+    assert choice is not None
+    options, value = choice
+    assert value == 1310.0 and options == [(f"{w:g} nm", w) for w in wavelengths]
+    assert form.wavelength_choice(default, 850.0) == (options, 1550.0)  # not offered: 1550
+    assert form.wavelength_choice(default, NOT_GIVEN) == (options, 1550.0)
+    assert form.wavelength_choice(fibres[0][1], 1310.0) is None  # the index typed: no preset
+    multimode = [n for _, n in fibres[1:] if 1550.0 not in (form.wavelengths(n) or [1550.0])]
+    assert "OM3" in multimode  # 850 and 1300 nm only
+    for name in multimode:  # no 1550 nm row: the longest it has
+        longest = max(form.wavelengths(name) or [])
+        assert form.wavelength_choice(name, 0.0) == (
+            [(f"{w:g} nm", w) for w in sorted(form.wavelengths(name) or [])],
+            longest,
+        )
+
+
+def test_new_asks_once_before_emptying_what_was_typed() -> None:
+    form = FaultForm()
+    assert form.may_clear(False)  # nothing typed: nothing to ask
+    assert not form.may_clear(True)  # the first Ctrl+N only asks
+    assert form.may_clear(True)  # the second empties
+    assert not form.may_clear(True)  # and the next time asks again
+
+
+def test_handed_off_landmarks_become_list_rows() -> None:
+    rows = FaultForm.handoff_rows([("JC-3", 1500.04, 1480.0)])
+    assert rows == [{"name": "JC-3", "otdr": "1500.0 m", "route": "1480.0 m"}]
+    assert FaultForm().preset_warning() is None  # the shipped presets read cleanly

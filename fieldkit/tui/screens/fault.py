@@ -20,7 +20,7 @@ from textual.screen import Screen
 from textual.widgets import Button, Input, Label, Select, Static
 
 from fieldkit import safety
-from fieldkit.calc.locate import OUTPUT_UNITS, Location
+from fieldkit.calc.locate import OUTPUT_UNITS
 from fieldkit.calc.units import InputError
 from fieldkit.text.layout import fit
 from fieldkit.tui import keys
@@ -38,14 +38,14 @@ from fieldkit.tui.fault_model import (
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.caution import Caution
 from fieldkit.tui.widgets.key_footer import KeyFooter
-
-if TYPE_CHECKING:
-    from fieldkit.traces.session import FaultHandoff
 from fieldkit.tui.widgets.number_field import NumberField
 from fieldkit.tui.widgets.point_list import PointList
 from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.route_diagram import RouteDiagram
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+
+if TYPE_CHECKING:
+    from fieldkit.traces.session import FaultHandoff
 
 __all__ = ["FaultScreen", "PointList"]
 
@@ -88,20 +88,7 @@ class FaultScreen(Screen[None]):
     def __init__(self) -> None:
         super().__init__()
         self.form = FaultForm()
-        self._clear_asked = False
         self._shown: tuple[list[dict[str, Any]], list[dict[str, Any]]] = ([], [])
-
-    @property
-    def location(self) -> Location | None:
-        return self.form.location
-
-    @property
-    def problem(self) -> str | None:
-        return self.form.problem
-
-    @property
-    def inputs(self) -> dict[str, Any]:
-        return self.form.inputs
 
     # -- layout -----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -206,9 +193,8 @@ class FaultScreen(Screen[None]):
             number.show_error("")
         self._fibre_chosen()
         self._cable_chosen()
-        problems = self.form.library.problems
-        if problems:
-            self.notify("Preset problems: " + "; ".join(problems[:3]), severity="warning")
+        if warning := self.form.preset_warning():
+            self.notify(warning, severity="warning")
         self.recompute()
 
     #: Below this many rows the caution folds to one line, so the result and the route show.
@@ -224,23 +210,16 @@ class FaultScreen(Screen[None]):
     def _fibre_chosen(self) -> None:
         name = str(self.query_one("#fault-fibre", Select).value)
         select = self.query_one("#fault-wavelength", Select)
-        wavelengths = self.form.wavelengths(name)
-        if name == TYPED or not wavelengths:
+        choice = self.form.wavelength_choice(name, select.value)
+        if choice is None:
             if name == TYPED:
                 select.set_options([("—", 0.0)])
                 select.value = 0.0
                 select.disabled = True
             return
         select.disabled = False
-        current = select.value
-        select.set_options([(f"{w:g} nm", w) for w in wavelengths])
-        select.value = (
-            current
-            if current in wavelengths
-            else 1550.0
-            if 1550.0 in wavelengths
-            else wavelengths[-1]
-        )
+        select.set_options(choice[0])
+        select.value = choice[1]
         self._wavelength_chosen()
 
     def _wavelength_chosen(self) -> None:
@@ -354,12 +333,8 @@ class FaultScreen(Screen[None]):
         self.query_one("#fault-time", Input).value = ""
         self.query_one("#fault-ior-set", Input).value = f"{hand.group_index:.4f}"
         if hand.landmarks:
-            self.query_one("#fault-landmarks", PointList).set_rows(
-                [
-                    {"name": name, "otdr": f"{otdr:.1f} m", "route": f"{route:.1f} m"}
-                    for name, otdr, route in hand.landmarks
-                ]
-            )
+            rows = self.form.handoff_rows(hand.landmarks)
+            self.query_one("#fault-landmarks", PointList).set_rows(rows)
         if hand.note:
             self.notify(hand.note, timeout=6)
         self.recompute()
@@ -387,12 +362,11 @@ class FaultScreen(Screen[None]):
         lists = list(self.query(PointList))
         anything = any(i.value.strip() for i in typed) or any(p.rows for p in lists)
         note = self.query_one("#fault-saved", Static)
-        if anything and not self._clear_asked:
-            self._clear_asked = True
-            note.update(f"{keys.hint('new')} again empties the reading and the rows.")
-            self.notify(f"{keys.hint('new')} again empties the reading and the rows.")
+        if not self.form.may_clear(anything):
+            asked = f"{keys.hint('new')} again empties the reading and the rows."
+            note.update(asked)
+            self.notify(asked)
             return
-        self._clear_asked = False
         for field in typed:
             field.value = ""
         for point_list in lists:
@@ -411,8 +385,8 @@ class FaultScreen(Screen[None]):
     def action_save(self) -> None:
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
-        if self.location is None:
-            self.notify(self.problem or "Nothing located yet to save.", severity="warning")
+        if self.form.location is None:
+            self.notify(self.form.problem or "Nothing located yet to save.", severity="warning")
             return
         self.app.push_screen(JobLinkPicker(), self._save_to)
 
