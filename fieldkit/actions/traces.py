@@ -185,10 +185,21 @@ def links_named(store: Any, names: list[str]) -> list[tuple[str, str]]:
     return found
 
 
+def load_link(store: Any, job_id: str, link: str) -> tuple[Job, Link]:
+    """The job and its link (by label or id) as the store holds them now.
+
+    Raises
+    ------
+    StoreError, InputError
+        The job cannot be read, or has no such link.
+    """
+    job = store.load(job_id)
+    return job, find_link(job, link)
+
+
 def closure_landmarks(store: Any, job_id: str, link: str) -> list[Landmark]:
     """The link's closures with a route position, as landmarks for a fault hand-off."""
-    job = store.load(job_id)
-    target = find_link(job, link)
+    _job, target = load_link(store, job_id, link)
     return [
         Landmark(c.name, c.route_distance_m)
         for c in target.closures
@@ -375,9 +386,17 @@ def link_origin(job: Job, link: Link) -> str:
 
 def link_limits(store: Any, library: PresetLibrary, job_id: str, link: str, **typed: Any) -> Limits:
     """:func:`trace_limits` of a job's link (by label or id), its origin naming both."""
-    job = store.load(job_id)
-    target = find_link(job, link)
+    job, target = load_link(store, job_id, link)
     return trace_limits(library, target, origin=link_origin(job, target), **typed)
+
+
+def presets_limits(config_dir: Any, job: Job | None = None, link: Link | None = None) -> Limits:
+    """:func:`trace_limits` by the shipped and the user's presets (those in ``config_dir``)
+    and, given, the job's link, its origin naming both."""
+    from fieldkit.presets import load_presets
+
+    origin = link_origin(job, link) if job is not None and link is not None else ""
+    return trace_limits(load_presets(config_dir), link, origin=origin)
 
 
 # -- traces kept on a link (schema 5) ----------------------------------------------------------

@@ -48,6 +48,13 @@ class EventMark:
     failed: bool = False
 
 
+def row_number(key: str, kind: str) -> int | None:
+    """The number in a :class:`TableView` row key of ``kind`` (``event`` or ``fibre``), None
+    for a row of the other kind."""
+    prefix = f"{kind}-"
+    return int(key.removeprefix(prefix)) if key.startswith(prefix) else None
+
+
 @dataclass(frozen=True, slots=True)
 class TableView:
     """What the workspace's table shows: its title, its columns and its rows, each with the

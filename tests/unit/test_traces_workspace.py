@@ -9,7 +9,14 @@ from pathlib import Path
 import pytest
 
 from fieldkit import safety
-from fieldkit.actions.traces import SavedTraces, link_origin, links_named, pair_record
+from fieldkit.actions.traces import (
+    SavedTraces,
+    link_origin,
+    links_named,
+    load_link,
+    pair_record,
+    presets_limits,
+)
 from fieldkit.jobs.demo import build, local_day_start
 from fieldkit.jobs.ids import now
 from fieldkit.jobs.store import JobStore
@@ -17,7 +24,7 @@ from fieldkit.text.layout import wrap
 from fieldkit.traces.demo import demo_trace_files
 from fieldkit.traces.lines import otdr_caution
 from fieldkit.traces.model import TraceFileError
-from fieldkit.traces.session import TraceSession, is_folder, start_hint
+from fieldkit.traces.session import TraceSession, is_folder, row_number, start_hint
 from fieldkit.traces.sor import write_sor
 from fieldkit.traces.synthetic import SynthEvent, SynthFibre, synth_trace
 
@@ -193,3 +200,21 @@ def test_the_save_status_is_a_sentence_with_arrows(
     # the workspace's: a sentence, the pair's direction as people read it (text/numbers.py)
     assert saved.status() == "S" + saved.summary()[1:].replace("A<->B", "A↔B")
     assert saved.status().endswith("; 1 earlier kept as superseded")
+
+
+def test_row_keys_read_back_as_their_number() -> None:
+    assert row_number("event-12", "event") == 12 and row_number("fibre-0", "fibre") == 0
+    assert row_number("fibre-3", "event") is None and row_number("", "fibre") is None
+
+
+def test_a_links_presets_judge_and_say_so(demo: tuple[JobStore, Path], tmp_path: Path) -> None:
+    store, _ = demo
+    job, link = load_link(store, BACKBONE, "LIB-TH-01")  # by label, as the CLI's --link
+    assert load_link(store, BACKBONE, link.id)[1].id == link.id  # and by id
+    shipped = presets_limits(tmp_path)  # no user presets in this folder
+    assert shipped.origin == "the shipped presets"
+    judged = presets_limits(tmp_path, job, link)
+    assert judged.origin == f"link {link.label!r} of job {job.name!r}"
+    s = TraceSession()
+    s.set_limits(judged)
+    assert not s.judged_by_defaults and s.note_lines("", wide=True) == []

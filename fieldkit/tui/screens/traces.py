@@ -21,7 +21,7 @@ from fieldkit.text.escape import terminal
 from fieldkit.text.numbers import arrow
 from fieldkit.traces.lines import otdr_caution
 from fieldkit.traces.model import TraceFileError
-from fieldkit.traces.session import TraceSession, is_folder, start_hint
+from fieldkit.traces.session import TraceSession, is_folder, row_number, start_hint
 from fieldkit.tui import keys
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
@@ -41,6 +41,8 @@ if TYPE_CHECKING:
     from fieldkit.traces.folder import FibreTraces
 
 __all__ = ["ClosurePicker", "OverwriteDialog", "SaveTracesDialog", "TracesScreen"]
+
+_TIP_A = "A trace from end A (.sor or text), or a folder of traces"
 
 
 class TracesScreen(Screen[None]):
@@ -64,20 +66,12 @@ class TracesScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
         with Horizontal(id="traces-files"):
-            yield Label("A→B", classes="traces-label")
-            yield PathField(
-                placeholder="trace file or folder",
-                id="traces-a",
-                compact=True,
-                tooltip="A trace from end A (.sor or text), or a folder of traces",
-            )
-            yield Label("B→A", classes="traces-label")
-            yield PathField(
-                placeholder="other end (optional)",
-                id="traces-b",
-                compact=True,
-                tooltip="The same fibre traced from end B",
-            )
+            for label, field_id, hint, tip in (
+                ("A→B", "traces-a", "trace file or folder", _TIP_A),
+                ("B→A", "traces-b", "other end (optional)", "The same fibre traced from end B"),
+            ):
+                yield Label(label, classes="traces-label")
+                yield PathField(placeholder=hint, id=field_id, compact=True, tooltip=tip)
             yield Button("Open", id="traces-open", compact=True, variant="primary")
         yield Static("", id="traces-status", markup=False)
         yield ProgressBar(id="traces-progress", show_eta=False)
@@ -145,12 +139,10 @@ class TracesScreen(Screen[None]):
         """Judge what is open, and what opens next, by the job's link's presets (without a
         link: the shipped and the user's presets); False, said for a link, when they cannot
         be read."""
-        from fieldkit.actions.traces import link_origin, trace_limits
-        from fieldkit.presets import load_presets
+        from fieldkit.actions.traces import presets_limits
 
-        origin = link_origin(job, link) if job is not None and link is not None else ""
         try:
-            limits = trace_limits(load_presets(fieldkit_app(self).config_dir), link, origin=origin)
+            limits = presets_limits(fieldkit_app(self).config_dir, job, link)
         except Exception as exc:  # noqa: BLE001 - a preset problem, shown as one line
             if link is not None:
                 self._say(str(exc), True)
@@ -229,19 +221,18 @@ class TracesScreen(Screen[None]):
 
     @on(DataTable.RowHighlighted, "#traces-table")
     def _row_highlighted(self, event: DataTable.RowHighlighted) -> None:
-        key = event.row_key.value or ""
-        if key.startswith("event-"):
-            number = int(key.removeprefix("event-"))
+        number = row_number(event.row_key.value or "", "event")
+        if number is not None:
             if self.session.select(number):
                 self.query_one("#traces-plot", TracePlot).select_event(number)
             self._note(self.session.event_note(number))
 
     @on(DataTable.RowSelected, "#traces-table")
     def _row_selected(self, event: DataTable.RowSelected) -> None:
-        key = event.row_key.value or ""
-        if key.startswith("fibre-"):
+        index = row_number(event.row_key.value or "", "fibre")
+        if index is not None:
             try:
-                self._shown(self.session.open_fibre(int(key.removeprefix("fibre-"))))
+                self._shown(self.session.open_fibre(index))
             except TraceFileError as exc:
                 self._say(str(exc), problem=True)
 
@@ -255,7 +246,7 @@ class TracesScreen(Screen[None]):
     async def _choose_link(self, title: str) -> tuple[tuple[str, str], Job, Link] | None:
         """Ask for the job's link (the last one's job first), remember it and judge the open
         traces by its presets from now on; None (said) when nothing is open or it is not read."""
-        from fieldkit.actions.splices import find_link
+        from fieldkit.actions.traces import load_link
 
         if not self.session.anything_open:
             self._say("Open traces first.", True)
@@ -268,8 +259,7 @@ class TracesScreen(Screen[None]):
             return None
         self.session.last_link = choice
         try:
-            job = fieldkit_app(self).store.load(choice[0])
-            link = find_link(job, choice[1])
+            job, link = load_link(fieldkit_app(self).store, *choice)
         except Exception as exc:  # noqa: BLE001 - a store or lookup problem, shown as one line
             self._say(str(exc), True)
             return None
