@@ -287,6 +287,11 @@ class FieldChange:
     limits: list[SetLimit] | None = None
     meaning: str | None = None  # the Directions number's meaning beside it
 
+    @property
+    def redraw(self) -> bool:
+        """True when the grid is drawn again: new columns or fibres, or results judged again."""
+        return self.grid or self.limits is not None
+
 
 #: The set-up fields :meth:`MeterSession.change_field` reads.
 SETUP_FIELDS = ("method", "wavelengths", "fibres", "directions", "reference", "limit")
@@ -869,6 +874,18 @@ class MeterSession:
         except (StoreError, KeyError) as exc:
             raise InputError(str(exc)) from None
         return link
+
+    def attach_from(
+        self, store: Any, job_id: str, link_id: str, details: ReferenceDetails
+    ) -> tuple[list[MeterChange], dict[str, str]]:
+        """:meth:`attach` to the link as the store holds it now.
+
+        Raises
+        ------
+        InputError
+            The job cannot be read or has no such link (nothing changes then).
+        """
+        return self.attach(job_id, self.read_link(store, job_id, link_id), details)
 
     def history(self, store: Any) -> tuple[str, list[str]]:
         """The fibre under the cursor's history in the chosen job: the dialog's title and

@@ -395,3 +395,13 @@ def test_the_history_needs_a_job_and_names_the_fibre_and_link(tmp_path) -> None:
     assert title == "Fibre 1 on L1" and lines == [
         "No reading of this fibre is saved in the job yet."
     ]
+
+
+def test_a_set_up_change_says_when_the_grid_is_drawn_again() -> None:
+    s = _session(fibres=2, wavelengths="1310")
+    fibres = s.change_field("fibres", "4")
+    assert fibres is not None and fibres.grid and fibres.redraw
+    s.set_reference("-7.0")
+    s.enter("-8.0", DETAILS)
+    limit = s.change_field("limit", "1.5")  # a stored result judged again: drawn again
+    assert limit is not None and limit.limits and limit.redraw and not limit.grid

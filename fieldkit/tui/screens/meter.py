@@ -18,7 +18,6 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
-from textual.timer import Timer
 from textual.widgets import DataTable, Input, Static
 
 from fieldkit.actions.meter import Applied, ReferenceDetails
@@ -30,10 +29,9 @@ from fieldkit.tui.meter_session import GridColumn, MeterSession, PendingView
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.meter_fields import KEYS_HINT, KEYS_HINT_NARROW, entry_line, setup_fields
-from fieldkit.tui.widgets.meter_view import EntryView, SetupView
+from fieldkit.tui.widgets.meter_view import EntryView, SetupView, SummaryView
 from fieldkit.tui.widgets.readings_grid import EntryInput, ReadingsGrid
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
-from fieldkit.tui.wrapped import Wrapped
 
 __all__ = ["KEYS_HINT", "KEYS_HINT_NARROW", "MeterScreen"]
 
@@ -44,7 +42,6 @@ class MeterScreen(Screen[None]):
     CSS_PATH = "meter.tcss"
     AUTO_FOCUS = "#reading"
     BINDINGS = keys.bindings("meter")
-    SUMMARY_DELAY_S = 0.15
 
     class Saved(Message):
         """From the save worker: what a batch did in the job, or why it was not saved."""
@@ -61,7 +58,7 @@ class MeterScreen(Screen[None]):
         )
         self.setup = SetupView(self, self.session)
         self.entry = EntryView(self, self.session)
-        self._summary_timer: Timer | None = None
+        self.summary = SummaryView(self, self.session, lambda: self.narrow)
         self._hint_shown = False
         self._view = PendingView()
         self._grid: ReadingsGrid | None = None
@@ -83,8 +80,6 @@ class MeterScreen(Screen[None]):
 
     def on_mount(self) -> None:
         self._grid = self.query_one(ReadingsGrid)
-        for error in self.query(".field-error"):
-            error.display = False
         self._rebuild_grid()
         self._sync_column_fields()
         self._show_entry_where()
@@ -170,16 +165,16 @@ class MeterScreen(Screen[None]):
             self.setup.error(field_id, done.error)
         if done.meaning is not None:
             self.setup.meaning(done.meaning)
-        if done.grid:
+        if done.redraw:
             self._rebuild_grid()
+        if done.grid:
             self._sync_column_fields()
             self._show_entry_where()
         if done.limits is not None:
-            self._rebuild_grid()
             self.setup.placeholder(self.narrow)
             for change in done.limits:
                 self.saver.queue(change)
-        if done.grid or done.limits is not None or done.note:
+        if done.redraw or done.note:
             self._show_reference_note()
             self._show_summary()
             self._say(None)  # a new reference may have dealt with a negative loss
@@ -228,7 +223,7 @@ class MeterScreen(Screen[None]):
         # handled: typed ahead, a burst of readings costs one cursor move and one message.
         if self._view.add(entered, moved):
             self.call_later(self._show_view)
-        self._summary_soon()
+        self.summary.soon()
 
     def _show_view(self) -> None:
         cells, say = self._view.take()
@@ -284,35 +279,21 @@ class MeterScreen(Screen[None]):
         self._go_to_cell(event.coordinate.row, event.coordinate.column)
 
     def _go_to_cell(self, row: int, grid_column: int) -> None:
-        grid = self.grid
-        if 0 <= grid_column - 1 < len(grid.columns_shown):
-            if self.session.go_to(row + 1, grid.columns_shown[grid_column - 1]):
+        column = self.grid.column_at(grid_column)
+        if column is not None:
+            if self.session.go_to(row + 1, column):  # row 0 is fibre 1
                 self._sync_column_fields()
             self._point()
         self.query_one("#reading").focus()
 
     # -- summary ------------------------------------------------------------------------
-    def _summary_soon(self) -> None:
-        """Refresh the summary shortly: typing a reading a second never waits on it, and a
-        burst of readings costs one refresh."""
-        if self._summary_timer is None:
-            self._summary_timer = self.set_timer(self.SUMMARY_DELAY_S, self._show_summary)
-
     @property
     def summary_pending(self) -> bool:
-        return self._summary_timer is not None
+        """True while a refresh of the summary waits (:class:`SummaryView`)."""
+        return self.summary.pending
 
     def _show_summary(self) -> None:
-        if self._summary_timer is not None:
-            self._summary_timer.stop()
-            self._summary_timer = None
-        # On a phone terminal the summary has five rows: each line fits the width (shorter
-        # words, fewer worst fibres) rather than wrapping, so both wavelengths' worst show.
-        lines = self.session.summary_lines(
-            width=42 if self.narrow else 0, open_key=keys.display("save")
-        )
-        # Wrapped: a wrapped line keeps its indent, a count or a time is never parted.
-        self.query_one("#meter-summary", Static).update(Wrapped("\n".join(lines)), layout=False)
+        self.summary.show()
 
     # -- the job ------------------------------------------------------------------------
     def action_pick_job(self) -> None:
@@ -328,15 +309,13 @@ class MeterScreen(Screen[None]):
 
     def attach(self, job_id: str, link_id: str) -> None:
         """Save into this job's link from now on; load what it already holds into the grid."""
+        store = fieldkit_app(self).store
         try:
-            link = self.session.read_link(fieldkit_app(self).store, job_id, link_id)
+            changes, fields = self.session.attach_from(store, job_id, link_id, self._details())
         except InputError as exc:
             self.notify(f"The job could not be opened: {exc}", severity="error")
             return
-        changes, fields = self.session.attach(job_id, link, self._details())
-        for field_id, value in fields.items():
-            # The handler of the Changed event this causes finds the state already matching.
-            self.setup.one.input(field_id).value = value
+        self.setup.fill(fields)
         for change in changes:
             self.saver.queue(change)
         self._rebuild_grid()
@@ -363,10 +342,8 @@ class MeterScreen(Screen[None]):
     def _saved(self, event: Saved) -> None:
         for text, severity in self.session.save_notices(event.outcome):
             self.notify(text, severity=severity, timeout=10)
-        if isinstance(event.outcome, str):
-            self._show_summary()  # NOT SAVED at once
-        else:
-            self._summary_soon()
+        # NOT SAVED shows at once; a save that went through, with the next refresh
+        (self.summary.show if isinstance(event.outcome, str) else self.summary.soon)()
 
     def flush_saves(self, timeout_s: float = 5.0) -> bool:
         """Save what is queued here and now (the workspace closes); True when all is saved."""

@@ -1,6 +1,6 @@
 """What the meter workspace shows of its session outside the grid: the set-up fields (the active
 column's texts, errors beside the fields, the note under them, the folded one-line set-up) and
-the entry line (where the cursor is, the message under it).
+the entry line (where the cursor is, the message under it), and the summary beside the grid.
 
 Plain helpers over the screen's widgets, found once: the screen wires keys and events to the
 session and calls these to show the result. The text itself comes from
@@ -12,11 +12,14 @@ from __future__ import annotations
 from collections.abc import Callable
 
 from textual.dom import DOMNode
+from textual.timer import Timer
 from textual.widget import Widget
 from textual.widgets import Input, Static
 
 from fieldkit.actions.meter import ReferenceDetails
+from fieldkit.tui import keys
 from fieldkit.tui.meter_session import GridColumn, MeterSession
+from fieldkit.tui.wrapped import Wrapped
 
 
 class _Widgets:
@@ -57,6 +60,12 @@ class SetupView:
         error = self.one.static(f"#{field_id}-error")
         error.update(message)
         error.display = bool(message)
+
+    def fill(self, texts: dict[str, str]) -> None:
+        """Set-up fields' new texts, by field id (the Changed events this causes find the
+        session's state already matching)."""
+        for field_id, value in texts.items():
+            self.one.input(field_id).value = value
 
     def meaning(self, words: str) -> None:
         self.one.static("#directions-meaning").update(words)
@@ -150,3 +159,38 @@ class EntryView:
 
 
 __all__ = ["EntryView", "SetupView"]
+
+
+class SummaryView:
+    """The summary beside the grid: at once (:meth:`show`), or shortly (:meth:`soon`): typing a
+    reading a second never waits on it, and a burst of readings costs one refresh."""
+
+    DELAY_S = 0.15
+
+    def __init__(self, root: Widget, session: MeterSession, narrow: Callable[[], bool]) -> None:
+        self.one = _Widgets(root)
+        self._root = root
+        self.session = session
+        self._narrow = narrow
+        self._timer: Timer | None = None
+
+    @property
+    def pending(self) -> bool:
+        """True while a refresh waits."""
+        return self._timer is not None
+
+    def soon(self) -> None:
+        if self._timer is None:
+            self._timer = self._root.set_timer(self.DELAY_S, self.show)
+
+    def show(self) -> None:
+        if self._timer is not None:
+            self._timer.stop()
+            self._timer = None
+        # On a phone terminal the summary has five rows: each line fits the width (shorter
+        # words, fewer worst fibres) rather than wrapping, so both wavelengths' worst show.
+        lines = self.session.summary_lines(
+            width=42 if self._narrow() else 0, open_key=keys.display("save")
+        )
+        # Wrapped: a wrapped line keeps its indent, a count or a time is never parted.
+        self.one.static("#meter-summary").update(Wrapped("\n".join(lines)), layout=False)

@@ -219,6 +219,12 @@ class ReadingsGrid(DataTable[Text]):
         blank = Segment(" " * pad, pre + post_style)
         return [[blank, Segment(shown, pre + own + post_style), blank]]
 
+    def column_at(self, grid_column: int) -> GridColumn | None:
+        """The session's column shown in grid column ``grid_column`` (0 is the fibre numbers:
+        None, as for a column past the last)."""
+        shown = self.columns_shown
+        return shown[grid_column - 1] if 0 < grid_column <= len(shown) else None
+
     def point_at(self, fibre: int, column: GridColumn) -> None:
         """Put the cursor on a cell and scroll it into view."""
         if not 1 <= fibre <= self.fibres or column not in self.columns_shown:
