@@ -34,3 +34,8 @@ def pytest_configure(config: pytest.Config) -> None:
 
     os.environ.setdefault("TEXTUAL_ANIMATIONS", "none")
     textual.constants.TEXTUAL_ANIMATIONS = "none"  # type: ignore[misc]
+
+    # Pilot waits end when the app has handled a key, not after 20 ms idle sleeps.
+    import pilot_settle
+
+    pilot_settle.install()
