@@ -32,11 +32,14 @@ def _text(screen: object, selector: str) -> str:
 
 
 async def _settle(pilot: object, screen: MeterScreen) -> None:
-    for _ in range(3000):
-        await pilot.pause(0.02)  # type: ignore[attr-defined]
-        if not screen.unsaved and not screen.summary_pending:
-            return
-    raise AssertionError("the readings were not saved")
+    """Until the readings are in the job file and the summary is drawn: a pause waits for the
+    meter's save worker (tests/pilot_settle.py); the summary follows SUMMARY_DELAY_S after the
+    last reading."""
+    await pilot.pause()  # type: ignore[attr-defined]
+    if screen.summary_pending:
+        await pilot.pause(screen.SUMMARY_DELAY_S)  # type: ignore[attr-defined]
+    assert not screen.unsaved, "the readings were not saved"
+    assert not screen.summary_pending
 
 
 @pytest.mark.parametrize("size", SIZES)
