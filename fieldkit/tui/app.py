@@ -12,6 +12,7 @@ from functools import partial
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from textual import events
 from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.css.stylesheet import Stylesheet
@@ -113,6 +114,16 @@ class FieldkitApp(App[None]):
         self.call_after_refresh(self._started)
         if self._welcome:
             self.call_after_refresh(self._first_start)
+
+    async def on_event(self, event: events.Event) -> None:
+        # A workspace still mounting the fields a key goes to holds it (WorkspaceScreen
+        # .hold_keys) and hands it on once they are there: nothing typed is lost or misplaced.
+        if isinstance(event, (events.Key, events.Paste)) and not event.is_forwarded:
+            stack = self.screen_stack
+            hold = getattr(stack[-1], "hold_key", None) if stack else None
+            if hold is not None and hold(event):
+                return
+        await super().on_event(event)
 
     # -- first start: the operator, where data lives, a new job ----------------------------
     def _first_start(self) -> None:

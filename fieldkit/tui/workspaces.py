@@ -7,13 +7,19 @@ the key table (``fieldkit.tui.keys.PLACES``), which reserves one for each worksp
 
 from __future__ import annotations
 
+import asyncio
 import importlib
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from textual import events
 from textual.screen import Screen
 
 from fieldkit.tui import keys
+
+if TYPE_CHECKING:
+    from textual.dom import QueryType
+    from textual.widget import Widget
 
 
 @dataclass(frozen=True, slots=True)
@@ -57,6 +63,89 @@ class WorkspaceScreen(Screen[None]):
     """
 
     _before_first_frame = True
+
+    #: False while widgets of the workspace are still to be mounted after its first frame (a
+    #: screen that defers some sets this False and calls :meth:`whole_workspace_mounted`).
+    workspace_complete = True
+    #: Keys held for this screen (the app keeps them here instead of handing them on), None
+    #: when keys go through as usual; see :meth:`hold_keys`.
+    held_keys: list[events.Key | events.Paste] | None = None
+    _held_moves: list[int] | None = None
+    _handing_on: events.Key | events.Paste | None = None
+
+    def hold_key(self, event: events.Key | events.Paste) -> bool:
+        """Keep ``event`` for later when keys are held (the app asks before handing it on)."""
+        if self.held_keys is None or event is self._handing_on:
+            return False
+        self.held_keys.append(event)
+        return True
+
+    def hold_keys(self) -> None:
+        """Keep the keys that come from now on until the whole workspace is mounted: a key
+        typed after Enter or Tab belongs to the field focus moves to, which may not exist yet.
+        """
+        if self.held_keys is None:
+            self.held_keys = []
+
+    def focus_next(self, selector: str | type[QueryType] = "*") -> Widget | None:
+        if not self.workspace_complete:
+            self._hold_move(+1)
+            return None
+        return super().focus_next(selector)
+
+    def focus_previous(self, selector: str | type[QueryType] = "*") -> Widget | None:
+        if not self.workspace_complete:
+            self._hold_move(-1)
+            return None
+        return super().focus_previous(selector)
+
+    def _hold_move(self, step: int) -> None:
+        # The fields a move goes to are not mounted yet: it is made once they are.
+        self._held_moves = [*(self._held_moves or []), step]
+        self.hold_keys()
+
+    def whole_workspace_mounted(self) -> None:
+        """Every widget is mounted: the focus moves asked meanwhile are made, in order, then
+        the keys held since are handed on as if typed now."""
+        self.workspace_complete = True
+        moves, self._held_moves = self._held_moves or [], None
+        for step in moves:
+            if step > 0:
+                super().focus_next()
+            else:
+                super().focus_previous()
+        if self.held_keys is not None:
+            self.run_worker(self._hand_on_held_keys(), group="held-keys")
+
+    async def _hand_on_held_keys(self) -> None:
+        # One at a time, each handled before the next goes (a Tab has moved the focus before
+        # the digit after it is typed), as when they are typed; keys that come meanwhile are
+        # held behind them.
+        while self.held_keys:
+            event = self.held_keys.pop(0)
+            again: events.Key | events.Paste
+            if isinstance(event, events.Key):
+                again = events.Key(event.key, event.character)
+            else:
+                again = events.Paste(event.text)
+            self._handing_on = again
+            self.app.post_message(again)
+            await self._handled()
+        self._handing_on = None
+        self.held_keys = None
+
+    async def _handled(self) -> None:
+        """Until what is waiting in the app, this screen and its widgets has been handled,
+        and what that passed on to their parents (a key bubbles up one widget per turn)."""
+        focused = self.app.focused
+        depth = len(focused.ancestors_with_self) if focused is not None else 1
+        for _ in range(depth + 1):
+            waits = []
+            for pump in (self.app, *self.walk_children(with_self=True)):
+                turn = asyncio.Event()
+                if pump.call_later(turn.set):
+                    waits.append(turn.wait())
+            await asyncio.gather(*waits)
 
     def _on_screen_resume(self, event: events.ScreenResume) -> None:
         # Textual calls the handler of each class on the way up, this one before Screen's.

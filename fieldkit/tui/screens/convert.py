@@ -6,6 +6,7 @@ from collections.abc import Callable
 
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
+from textual.widget import Widget
 from textual.widgets import Input, Static
 
 from fieldkit.calc import power
@@ -22,82 +23,110 @@ _rows = lines_of.rows_text
 
 
 class ConvertScreen(WorkspaceScreen):
-    """Type once, read every unit. Everything updates on each keystroke."""
+    """Type once, read every unit. Everything updates on each keystroke.
+
+    The first frame holds the Value panel with its field focused; the other three panels are
+    mounted right after it, into the same columns (nothing on screen moves). A quarter of the
+    widgets paint the first frame, which is what start-up costs. Keys typed before they are
+    there are kept: a move to the next field (Enter, Tab) waits for them, and what is typed
+    after it goes to the field it moved to (see :meth:`WorkspaceScreen.hold_keys`).
+    """
 
     CSS_PATH = "convert.tcss"
     AUTO_FOCUS = "#value"
     BINDINGS = keys.bindings("convert")
+    workspace_complete = False  # until the panels after the first frame are mounted
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
-        with VerticalScroll(id="convert-body"):
-            with Vertical(classes="two-col"):
-                with Vertical(classes="col"):
-                    with Vertical(id="value-panel", classes="panel") as panel:
-                        panel.border_title = "Value"
-                        yield QuantityField(
-                            "Value",
-                            expect=None,
-                            field_id="value",
-                            placeholder="e.g. \u22127.5 dBm, 250 µW",
-                            tooltip="A value with its unit: a level or power, a loss in dB, "
-                            "an attenuation per length, a length, a wavelength or a frequency",
-                        )
-                        yield Static("", id="value-out", classes="result")
-                    with Vertical(id="loss-panel", classes="panel") as panel:
-                        panel.border_title = "Level and loss"
-                        yield QuantityField(
-                            "Level",
-                            expect=Kind.POWER,
-                            default_unit="dBm",
-                            field_id="loss-level",
-                            placeholder="e.g. \u22123.2 dBm",
-                        )
-                        yield QuantityField(
-                            "Loss",
-                            expect=Kind.RATIO,
-                            default_unit="dB",
-                            field_id="loss-db",
-                            placeholder="e.g. 4.5 dB",
-                        )
-                        yield Static("", id="loss-out", classes="result")
-                with Vertical(classes="col"):
-                    with Vertical(id="sum-panel", classes="panel") as panel:
-                        panel.border_title = "Two levels"
-                        yield QuantityField(
-                            "Level A",
-                            expect=Kind.POWER,
-                            default_unit="dBm",
-                            field_id="sum-a",
-                            placeholder="e.g. \u22123 dBm",
-                        )
-                        yield QuantityField(
-                            "Level B",
-                            expect=Kind.POWER,
-                            default_unit="dBm",
-                            field_id="sum-b",
-                            placeholder="e.g. \u22126 dBm",
-                        )
-                        yield Static("", id="sum-out", classes="result")
-                    with Vertical(id="grid-panel", classes="panel") as panel:
-                        panel.border_title = "Wavelength and grid"
-                        yield QuantityField(
-                            "λ or f",
-                            expect=(Kind.LENGTH, Kind.FREQUENCY),
-                            default_unit="nm",
-                            field_id="grid-in",
-                            placeholder="e.g. 1550.12 nm",
-                        )
-                        yield Static("", id="grid-out", classes="result")
+        with VerticalScroll(id="convert-body", classes="two-col"):
+            with Vertical(id="convert-left", classes="col"):
+                yield _panel(
+                    "value-panel",
+                    "Value",
+                    QuantityField(
+                        "Value",
+                        expect=None,
+                        field_id="value",
+                        placeholder="e.g. \u22127.5 dBm, 250 µW",
+                        tooltip="A value with its unit: a level or power, a loss in dB, "
+                        "an attenuation per length, a length, a wavelength or a frequency",
+                    ),
+                    Static("", id="value-out", classes="result"),
+                )
+            yield Vertical(id="convert-right", classes="col")
         yield KeyFooter()
 
+    def _later_panels(self) -> tuple[list[Vertical], list[Vertical]]:
+        """The panels mounted after the first frame: (under Value, the other column)."""
+        loss = _panel(
+            "loss-panel",
+            "Level and loss",
+            QuantityField(
+                "Level",
+                expect=Kind.POWER,
+                default_unit="dBm",
+                field_id="loss-level",
+                placeholder="e.g. \u22123.2 dBm",
+            ),
+            QuantityField(
+                "Loss",
+                expect=Kind.RATIO,
+                default_unit="dB",
+                field_id="loss-db",
+                placeholder="e.g. 4.5 dB",
+            ),
+            Static("", id="loss-out", classes="result"),
+        )
+        levels = _panel(
+            "sum-panel",
+            "Two levels",
+            QuantityField(
+                "Level A",
+                expect=Kind.POWER,
+                default_unit="dBm",
+                field_id="sum-a",
+                placeholder="e.g. \u22123 dBm",
+            ),
+            QuantityField(
+                "Level B",
+                expect=Kind.POWER,
+                default_unit="dBm",
+                field_id="sum-b",
+                placeholder="e.g. \u22126 dBm",
+            ),
+            Static("", id="sum-out", classes="result"),
+        )
+        grid = _panel(
+            "grid-panel",
+            "Wavelength and grid",
+            QuantityField(
+                "λ or f",
+                expect=(Kind.LENGTH, Kind.FREQUENCY),
+                default_unit="nm",
+                field_id="grid-in",
+                placeholder="e.g. 1550.12 nm",
+            ),
+            Static("", id="grid-out", classes="result"),
+        )
+        return [loss], [levels, grid]
+
     def on_mount(self) -> None:
-        for field in self.query(QuantityField):
-            field.show_error("")
         self._guarded(self._show_value, "value")
+        self.call_after_refresh(self._mount_rest)
+
+    def _mount_rest(self) -> None:
+        """After the first frame: the other panels, then what they show."""
+        left, right = self._later_panels()
+        self.run_worker(self._mount_panels(left, right), group="convert-panels")
+
+    async def _mount_panels(self, left: list[Vertical], right: list[Vertical]) -> None:
+        await self.query_one("#convert-left").mount_all(left)
+        await self.query_one("#convert-right").mount_all(right)
         self._guarded(self._show_loss, "loss-db")
         self._guarded(self._show_sum, "sum-b")
         self._show_grid()
+        self.whole_workspace_mounted()
 
     def on_input_changed(self, event: Input.Changed) -> None:
         target = event.input.id or ""
@@ -196,3 +225,9 @@ def _linear(level_dbm: float) -> str:
     mw = value.to("mW")
     unit = "mW" if mw >= 0.1 else "uW" if mw >= 1e-4 else "nW"
     return f"{format_number(value.to(unit), 4)} {display_unit(unit)}"
+
+
+def _panel(panel_id: str, title: str, *children: Widget) -> Vertical:
+    panel = Vertical(*children, id=panel_id, classes="panel")
+    panel.border_title = title
+    return panel
