@@ -21,6 +21,7 @@ from fieldkit.jobs.store import JobStore
 from fieldkit.tui.app import make_app
 from fieldkit.tui.screens.jobs import ExportDialog, JobsScreen
 from fieldkit.tui.screens.meter import MeterScreen
+from fieldkit.tui.widgets.meter_view import SummaryView
 from fieldkit.tui.widgets.dialogs import AskDialog, NameDialog
 from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
 
@@ -33,11 +34,11 @@ def _text(screen: object, selector: str) -> str:
 
 async def _settle(pilot: object, screen: MeterScreen) -> None:
     """Until the readings are in the job file and the summary is drawn: a pause waits for the
-    meter's save worker (tests/pilot_settle.py); the summary follows SUMMARY_DELAY_S after the
+    meter's save worker (tests/pilot_settle.py); the summary follows SummaryView.DELAY_S after the
     last reading."""
     await pilot.pause()  # type: ignore[attr-defined]
     if screen.summary_pending:
-        await pilot.pause(screen.SUMMARY_DELAY_S)  # type: ignore[attr-defined]
+        await pilot.pause(SummaryView.DELAY_S)  # type: ignore[attr-defined]
     assert not screen.unsaved, "the readings were not saved"
     assert not screen.summary_pending
 

@@ -15,7 +15,7 @@ import pytest
 import fieldkit.tui.meter_saver  # noqa: F401
 import fieldkit.tui.meter_session  # noqa: F401
 import fieldkit.tui.screens.meter  # noqa: F401
-from fieldkit.tui.screens.meter import MeterScreen
+from fieldkit.tui.widgets.meter_view import SummaryView
 
 Snap = Callable[..., bool]
 SIZES = [(80, 24), (44, 22)]
@@ -38,8 +38,8 @@ def test_meter_typing_readings(workspace_snap: Snap, size: tuple[int, int]) -> N
     def limit(pilot: object) -> None:
         pilot.app.screen.query_one("#limit").value = "1.5"  # type: ignore[attr-defined]
 
-    # The summary follows SUMMARY_DELAY_S after the last key (one refresh for a burst): wait it out.
-    summary = f"wait:{round(MeterScreen.SUMMARY_DELAY_S * 1000) + 50}"
+    # The summary follows SummaryView.DELAY_S after the last key (one refresh for a burst): wait it out.
+    summary = f"wait:{round(SummaryView.DELAY_S * 1000) + 50}"
     assert workspace_snap(
         "meter", size, press=[*READINGS, "_", summary], run_before=limit, demo=False
     )
