@@ -21,9 +21,9 @@ from fieldkit.jobs.store import JobStore
 from fieldkit.tui.app import make_app
 from fieldkit.tui.screens.jobs import ExportDialog, JobsScreen
 from fieldkit.tui.screens.meter import MeterScreen
-from fieldkit.tui.widgets.meter_view import SummaryView
 from fieldkit.tui.widgets.dialogs import AskDialog, NameDialog
 from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
+from fieldkit.tui.widgets.meter_view import SummaryView
 
 SIZES = [(80, 24), (44, 22)]
 

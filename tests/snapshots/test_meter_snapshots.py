@@ -38,7 +38,7 @@ def test_meter_typing_readings(workspace_snap: Snap, size: tuple[int, int]) -> N
     def limit(pilot: object) -> None:
         pilot.app.screen.query_one("#limit").value = "1.5"  # type: ignore[attr-defined]
 
-    # The summary follows SummaryView.DELAY_S after the last key (one refresh for a burst): wait it out.
+    # The summary follows SummaryView.DELAY_S after the last key (one refresh a burst): wait.
     summary = f"wait:{round(SummaryView.DELAY_S * 1000) + 50}"
     assert workspace_snap(
         "meter", size, press=[*READINGS, "_", summary], run_before=limit, demo=False
