@@ -3,7 +3,8 @@ unreadable files named like jobs, a quarantine that cannot be made, a corrupt in
 files. The listing never hangs, never reads without bound, and one bad entry never hides the
 others.
 
-The CLI cases run as real subprocesses with a timeout: a hang is a failure, not a stuck suite.
+The CLI cases run in-process through ``cli.main`` (tests/cli_runner.py) with a timeout: a hang
+is a failure, not a stuck suite. (They were subprocesses, a third of a second each.)
 """
 
 from __future__ import annotations
@@ -11,9 +12,9 @@ from __future__ import annotations
 import json
 import os
 import subprocess
-import sys
 from pathlib import Path
 
+import cli_runner
 import pytest
 
 from fieldkit.jobs.models import new_id
@@ -25,16 +26,10 @@ TIMEOUT_S = 60
 def fieldkit(
     *args: str, data: Path, config: Path | None = None
 ) -> subprocess.CompletedProcess[str]:
-    env = dict(os.environ, FIELDKIT_DATA_DIR=str(data))
+    env = {"FIELDKIT_DATA_DIR": str(data)}
     if config is not None:
         env["FIELDKIT_CONFIG_DIR"] = str(config)
-    return subprocess.run(
-        [sys.executable, "-m", "fieldkit", *args],
-        capture_output=True,
-        text=True,
-        timeout=TIMEOUT_S,
-        env=env,
-    )
+    return cli_runner.run(*args, env=env, timeout_s=TIMEOUT_S)
 
 
 def _two_jobs(jobs_dir: Path) -> tuple[JobStore, list[str]]:

@@ -6,6 +6,10 @@ capture_output=True, text=True)`` would, so tests read ``returncode``, ``stdout`
 the same way. An exception that escapes ``cli.main`` becomes exit status 1 with its traceback on
 stderr, exactly what a user would see, so ``"Traceback" not in result.stderr`` still means what
 it says. A few smoke tests in ``test_cli_smoke.py`` still start a real subprocess.
+
+``timeout_s`` guards a call that could hang (a FIFO named like a job file, a device link): after
+that many seconds a signal interrupts the call (a blocked ``open`` or ``read`` included) and
+:class:`CliHang` fails the test, as a subprocess timeout would, without a stuck suite.
 """
 
 from __future__ import annotations
@@ -13,9 +17,12 @@ from __future__ import annotations
 import contextlib
 import io
 import os
+import signal
 import subprocess
 import sys
+import threading
 import traceback
+from collections.abc import Iterator
 from pathlib import Path
 
 from fieldkit import cli
@@ -32,8 +39,34 @@ class _Stdout(io.StringIO):
         return self.getvalue() + self.buffer.getvalue().decode("utf-8", errors="replace")
 
 
+class CliHang(BaseException):  # not an Exception: the runner's catch-all must not take it
+    """The command was still running when its time was up."""
+
+
+@contextlib.contextmanager
+def _deadline(timeout_s: float | None, args: tuple[str, ...]) -> Iterator[None]:
+    if timeout_s is None or threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def hang(_signum: int, _frame: object) -> None:
+        raise CliHang(f"fieldkit {' '.join(args)} still running after {timeout_s} s")
+
+    previous = signal.signal(signal.SIGALRM, hang)
+    signal.setitimer(signal.ITIMER_REAL, timeout_s)
+    try:
+        yield
+    finally:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, previous)
+
+
 def run(
-    *args: str, cwd: Path | None = None, stdin: str = "", env: dict[str, str] | None = None
+    *args: str,
+    cwd: Path | None = None,
+    stdin: str = "",
+    env: dict[str, str] | None = None,
+    timeout_s: float | None = None,
 ) -> subprocess.CompletedProcess[str]:
     """``fieldkit ARGS...`` in this process; ``env`` adds to (never replaces) the environment."""
     out, err = _Stdout(), io.StringIO()
@@ -49,7 +82,8 @@ def run(
         sys.stdin = io.StringIO(stdin)
         with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
             try:
-                code = int(cli.main(list(args)) or 0)
+                with _deadline(timeout_s, args):
+                    code = int(cli.main(list(args)) or 0)
             except SystemExit as exc:  # argparse: --help, --version, usage errors
                 code = exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 1)
                 if exc.code is not None and not isinstance(exc.code, int):
