@@ -182,9 +182,10 @@ def notes_text(job: Job) -> RenderableType | Wrapped:
     if not job.notes:
         text.append("\nnone yet", style="dim")
     for note in job.notes:
-        text.append(f"\n{together(fmt_time(note.at))}", style="dim")
-        if note.by:
-            text.append(f" {terminal(note.by)}", style="dim")
+        # The time and who wrote it as one run of text: split in two, the space between
+        # them started the second and was lost where the picture is drawn from runs.
+        by = f" {terminal(note.by)}" if note.by else ""
+        text.append(f"\n{together(fmt_time(note.at))}{by}", style="dim")
         body = terminal(note.text, multiline=True).replace("\n", "\n  ")
         text.append(f"\n  {body}")
     return Wrapped(text, hang=0)  # a wrapped note line keeps the note's indent

@@ -196,3 +196,30 @@ async def test_an_error_quoting_markup_characters_is_shown_as_text(tmp_path: Pat
         field.show_error("value: '[/b]' is not a unit [red]")
         await pilot.pause()
         assert "[/b]" in str(app.screen.query_one("#value-field .field-error", Static).render())
+
+
+@pytest.mark.parametrize("size", SIZES)
+async def test_workspace_bar_entries_never_run_together(tmp_path: Path, size) -> None:
+    # The lit entry is padded by a space each side inside its highlight; a plain space before
+    # it keeps that highlight off the entry before ("F5 Fault" then "F6 Jobs" read as one).
+    from fieldkit.tui.widgets.workspace_bar import TABS, WorkspaceBar
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
+    async with app.run_test(size=size) as pilot:
+        for tab in TABS[:-1]:
+            await app.run_action(tab.action)
+            await pilot.pause()
+            bar = app.screen.query_one(WorkspaceBar)
+            line = bar.render()
+            plain = line.plain
+            assert len(plain) <= size[0]
+            for shown in TABS:
+                words = WorkspaceBar.tab_text(shown)
+                if words in plain:
+                    at = plain.index(words)
+                    assert at > 0 and plain[at - 1] == " ", (tab.mode, plain)
+            at = plain.index(WorkspaceBar.tab_text(tab))
+            (lit,) = [s for s in line.spans if s.start <= at < s.end]
+            assert lit.start == at - 1 and plain[lit.end - 1] == " "  # padded inside
+            assert lit.start == 0 or plain[lit.start - 1] == " ", (tab.mode, plain)
+            assert not [s for s in line.spans if s.start < lit.start < s.end]

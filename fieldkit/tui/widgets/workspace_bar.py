@@ -132,10 +132,12 @@ class WorkspaceBar(Widget):
         for tab in TABS[lo:hi]:
             # Each entry carries its mode, so a click or the pointer finds its tab.
             meta = Style.from_meta({"tab": tab.mode})
+            # A plain space before every entry, the current one too: its highlight (a space
+            # either side of its words) never touches the entry before it.
+            line.append(" ")
             if tab.mode == self.app.current_mode:
                 line.append(f" {self.tab_text(tab)} ", self.tab_style(tab) + meta)
             else:
-                line.append(" ")
                 line.append(self.tab_text(tab), self.tab_style(tab) + meta)
         if hi < len(TABS):
             line.append(" ")
