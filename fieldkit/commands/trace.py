@@ -305,7 +305,7 @@ def limits_from(args: argparse.Namespace) -> Any:
 
 def _job_link(args: argparse.Namespace) -> tuple[Any, str]:
     """The link named by --job and --link, and the words naming it."""
-    from fieldkit.actions.splices import find_link
+    from fieldkit.actions.traces import link_origin, load_link
     from fieldkit.calc.units import InputError
     from fieldkit.commands.common import plain_text
     from fieldkit.commands.meter_record import open_store
@@ -316,11 +316,10 @@ def _job_link(args: argparse.Namespace) -> tuple[Any, str]:
     plain_text(args.link, "--link")
     store = open_store(args)
     try:
-        job = store.load(store.resolve(args.job))
-        link = find_link(job, args.link)
+        job, link = load_link(store, store.resolve(args.job), args.link)
     except (StoreError, InputError) as exc:
         raise CommandError(str(exc)) from None
-    return link, f"link {link.label!r} of job {job.name!r}"
+    return link, link_origin(job, link)
 
 
 def _analyse(path: str, args: argparse.Namespace) -> Any:
