@@ -12,10 +12,9 @@ The splice log is written only through :func:`fieldkit.actions.splices.record_ot
 loss is never overwritten without ``overwrite``: call with ``dry_run=True`` first, show
 ``would_overwrite``, ask, then call again.
 
-Which event is the closure: the event (not the end) nearest the closure's route position, within
-a tolerance. Fibre runs longer than the route (helix, slack loops), so the tolerance is the
-pairing tolerance plus 3 % of the route distance and 20 m (common practice for cable with a
-1-2 % helix and a storage loop at the closure).
+Which event is the closure: one rule for the Traces table, the hand-off to Fault and this
+log, :mod:`fieldkit.traces.closures` (the event located as a fault would be, within its
+uncertainty, allowing for the cable stored at a closure).
 """
 
 from __future__ import annotations
@@ -42,11 +41,12 @@ from fieldkit.jobs.store import JobStore
 from fieldkit.presets import PresetLibrary
 from fieldkit.text.numbers import arrow
 from fieldkit.traces.analysis import TraceResult
+from fieldkit.traces.closures import Closure as Landmark
+from fieldkit.traces.closures import event_at, reading_uncertainty_m
 from fieldkit.traces.folder import FibreTraces as FibreTraces
 from fieldkit.traces.folder import folder_fibres as folder_fibres
 from fieldkit.traces.lines import limits_lines
-from fieldkit.traces.pairing import PairResult, default_tolerance_m
-from fieldkit.traces.session import Closure as Landmark
+from fieldkit.traces.pairing import PairResult
 from fieldkit.traces.session import names_link
 from fieldkit.traces.svg import plot_points
 from fieldkit.traces.verdicts import Limits
@@ -77,20 +77,15 @@ class SpliceFill:
         )
 
 
-def match_tolerance_m(route_m: float, base_m: float) -> float:
-    """Tolerance between a closure's route position and its event's distance (module doc)."""
-    return base_m + 0.03 * route_m + 20.0
-
-
 def losses_at(ft: FibreTraces, route_m: float) -> tuple[list[OtdrLoss], float | None]:
     """The one-way losses of the event at the closure on this fibre, and its distance."""
     if ft.paired is not None:
         p = ft.paired
-        tol = match_tolerance_m(route_m, p.tolerance_m)
-        cands = [e for e in p.events if e.kind != "end" and abs(e.distance_m - route_m) <= tol]
-        if not cands:
+        cands = [e for e in p.events if e.kind != "end"]
+        index = p.a_to_b.group_index
+        e = event_at(route_m, cands, [e.distance_m for e in cands], index, p.tolerance_m)
+        if e is None:
             return [], None
-        e = min(cands, key=lambda e: abs(e.distance_m - route_m))
         wl = p.a_to_b.trace.wavelength_nm
         out = []
         if e.loss_ab_db is not None:
@@ -101,16 +96,12 @@ def losses_at(ft: FibreTraces, route_m: float) -> tuple[list[OtdrLoss], float | 
     r = ft.one_way
     if r is None:
         return [], None
-    tol = match_tolerance_m(route_m, default_tolerance_m(r, r))
-    # a B->A trace measures from end B: the closure sits at (length - route) on it
-    where = route_m
-    if ft.direction == "B->A" and r.length_m is not None:
-        where = r.length_m - route_m
-    near = [ev for ev in r.events if ev.kind != "end" and abs(ev.distance_m - where) <= tol]
-    if not near:
-        return [], None
-    found = min(near, key=lambda ev: abs(ev.distance_m - where))
-    if found.loss_db is None:
+    # a B->A trace measures from end B: its event at x sits (length - x) from end A
+    from_b = ft.direction == "B->A" and r.length_m is not None
+    near = [ev for ev in r.events if ev.kind != "end"]
+    from_a = [(r.length_m or 0.0) - ev.distance_m if from_b else ev.distance_m for ev in near]
+    found = event_at(route_m, near, from_a, r.group_index, reading_uncertainty_m(r))
+    if found is None or found.loss_db is None:
         return [], None
     wl = r.trace.wavelength_nm
     loss = round(found.loss_db, 3)

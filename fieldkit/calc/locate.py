@@ -103,6 +103,12 @@ UNKNOWN_HELIX_ESTIMATE_PERCENT = UNKNOWN_HELIX_MAX_PERCENT / 2.0
 #: Helix uncertainty when a helix is typed without one, in percentage points (common practice).
 TYPED_HELIX_UNCERTAINTY_PERCENT = 0.5
 
+#: Cable a closure may hold coiled beside it, in m (common practice: a storage loop of a few
+#: tens of metres at a joint, so the closure can be opened on the surface). It lies on the
+#: fibre before the splice but adds no route length, so an OTDR event at a closure may read up
+#: to this much further than the route position alone would put it, never less.
+CLOSURE_STORAGE_LOOP_M = 20.0
+
 #: Units a result may be shown in.
 OUTPUT_UNITS = ("m", "km", "ft", "mi")
 
@@ -932,4 +938,67 @@ def _two_ended(chain: _Chain, inp: LocateInput) -> TwoEndedResult:
         consistent=abs(discrepancy) <= tolerance,
         combined=combined,
         weight_a=weight_a,
+    )
+
+
+# -- which landmark an event is ---------------------------------------------------------------
+@dataclass(frozen=True, slots=True)
+class RouteWindow:
+    """Where on the route an OTDR event may lie: the located estimate and the range of route
+    positions a landmark there may have (see :func:`route_window`)."""
+
+    estimate_m: float
+    low_m: float
+    high_m: float
+
+    def holds(self, route_m: float) -> bool:
+        """True when a landmark at route position ``route_m`` (m) may be this event."""
+        return self.low_m <= route_m <= self.high_m
+
+
+def route_window(
+    otdr_distance_m: float,
+    group_index: float,
+    reading_uncertainty_m: float,
+    storage_loop_m: float = CLOSURE_STORAGE_LOOP_M,
+) -> RouteWindow:
+    """The route positions a closure (or other landmark) may have for an OTDR event read at
+    ``otdr_distance_m`` from the start of the route: the rule that says which event is a closure.
+
+    The event is located as a fault would be (:func:`locate`, with no helix known and no
+    landmarks, the default instrument terms, and the event itself read to within
+    ``reading_uncertainty_m``): the route range ``x − u .. x + u``. A landmark there may also
+    sit up to ``storage_loop_m`` further back along the route, for the cable coiled at a closure
+    (fibre with no route length):
+
+    .. math:: x - u - S \\le r \\le x + u
+
+    Parameters
+    ----------
+    otdr_distance_m
+        The event's distance as the trace shows it, from the route's start (m).
+    group_index
+        The group index the trace was taken with (taken as the fibre's).
+    reading_uncertainty_m
+        How well the event is placed on the trace (m): about a pulse length or a few samples.
+    storage_loop_m
+        The most cable stored at a closure (m), :data:`CLOSURE_STORAGE_LOOP_M` by default.
+
+    Returns
+    -------
+    RouteWindow
+        The located estimate and the range of route positions, in m.
+
+    Raises
+    ------
+    InputError
+        For a distance, index or uncertainty that :func:`locate` refuses.
+    """
+    if _finite(storage_loop_m, "storage loop") < 0:
+        raise InputError(f"storage loop: {format_number(storage_loop_m)} m is negative")
+    errors = ErrorTerms(sample_spacing_m=reading_uncertainty_m)
+    inp = LocateInput(otdr_distance_m=otdr_distance_m, group_index=group_index, errors=errors)
+    position = locate(inp).position
+    return RouteWindow(
+        position.route_distance_m, max(0.0, position.low_m - storage_loop_m), position.high_m
     )

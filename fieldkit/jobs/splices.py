@@ -212,20 +212,6 @@ class Closure(Record):
         return None
 
 
-def closure_near(
-    closures: list[Closure], route_distance_m: float, tolerance_m: float
-) -> Closure | None:
-    """The closure whose route position is nearest ``route_distance_m`` within the tolerance
-    (for matching an OTDR event or a located fault to a closure)."""
-    placed = [
-        (abs(c.route_distance_m - route_distance_m), c)
-        for c in closures
-        if c.route_distance_m is not None
-    ]
-    placed = [item for item in placed if item[0] <= tolerance_m]
-    return min(placed, key=lambda item: item[0])[1] if placed else None
-
-
 def closure_landmarks(closures: list[Closure]) -> list[tuple[str, float]]:
     """``(name, route distance m)`` of every placed closure, in route order (fault landmarks)."""
     return sorted(

@@ -14,6 +14,8 @@ import numpy.typing as npt
 
 from fieldkit.text.numbers import arrow
 from fieldkit.traces.analysis import Settings, TraceResult, analyse_trace, rejudge
+from fieldkit.traces.closures import Closure, event_at, reading_uncertainty_m
+from fieldkit.traces.closures import closure_at as closure_of_event
 from fieldkit.traces.files import ReadOptions, read_trace
 from fieldkit.traces.folder import (
     FibreRow,
@@ -75,14 +77,6 @@ class FaultHandoff:
     from_end: str  # "A" or "B"
     landmarks: tuple[tuple[str, float, float], ...]  # (name, OTDR distance, route distance)
     note: str
-
-
-@dataclass(frozen=True, slots=True)
-class Closure:
-    """A landmark with a known route position (a splice closure, a handhole)."""
-
-    name: str
-    route_m: float
 
 
 def start_hint(data_dir: Path) -> str:
@@ -321,10 +315,18 @@ class TraceSession:
         return self._at_closures(cells if wide else [(*c[:4], c[6]) for c in cells])
 
     def closure_at(self, distance_m: float) -> Closure | None:
-        """The closure whose route position is within 10 % of ``distance_m`` from end A (cable
-        helix and slack put fibre distance a few percent beyond route distance), if any."""
-        near = [c for c in self.closures if abs(distance_m - c.route_m) <= 0.1 * max(c.route_m, 1)]
-        return min(near, key=lambda c: abs(distance_m - c.route_m)) if near else None
+        """The link's closure that the event ``distance_m`` from end A is, if any (the one
+        rule: :mod:`fieldkit.traces.closures`)."""
+        if self.a is None:
+            return None
+        return closure_of_event(distance_m, self.closures, self.a.group_index, self._placing_m())
+
+    def _placing_m(self) -> float:
+        """How well the open trace(s) place an event (m): the pair's matching tolerance, else
+        one trace's own."""
+        if self.paired is not None:
+            return self.paired.tolerance_m
+        return reading_uncertainty_m(self.a) if self.a is not None else 0.0
 
     def _from_a(self) -> bool:
         """True when the table's distances are from end A (a pair, or A→B shown)."""
@@ -557,8 +559,8 @@ class TraceSession:
     ) -> FaultHandoff:
         """The OTDR distance of event ``number`` (default: the end, the break) as the
         instrument at end A (or B, when only B→A is open) reads it, with the group index the
-        trace was taken with, and landmarks: each closure matched to the nearest event within
-        the pairing tolerance of its route position's OTDR distance.
+        trace was taken with, and landmarks: each closure matched to its event by the one rule
+        (:mod:`fieldkit.traces.closures`); a closure with no event there is left out.
 
         Raises
         ------
@@ -584,14 +586,12 @@ class TraceSession:
             chosen = found[0]
         from_end = "A"  # self.a is the trace from end A (or the only one open)
         landmarks = []
-        for c in closures:
-            near = [e for e in events if e[2] != "end" and e[0] != chosen[0]]
-            if not near:
-                break
-            best = min(near, key=lambda e: abs(e[1] - c.route_m))
-            # an event within 10 % of the closure's route position is taken as the closure
-            # (cable helix and slack put fibre distance a few percent beyond route distance)
-            if abs(best[1] - c.route_m) <= 0.1 * max(c.route_m, 1.0):
+        others = [e for e in events if e[2] != "end" and e[0] != chosen[0]]
+        placing_m = self._placing_m()
+        from_a = self.paired is not None or self.a_direction == "A->B"
+        for c in closures if from_a else ():  # route positions are from end A
+            best = event_at(c.route_m, others, [e[1] for e in others], r.group_index, placing_m)
+            if best is not None:
                 landmarks.append((c.name, best[1], c.route_m))
         kind = "break (end of fibre)" if chosen[2] == "end" else f"event {chosen[0]} ({chosen[2]})"
         note = f"From the Traces workspace: {kind} at {chosen[1]:.1f} m from end {from_end}"
