@@ -76,6 +76,17 @@ class FieldkitApp(App[None]):
         self._store: JobStore | None = None
         self._operator: str | None = None
 
+    _css_variables: tuple[object, dict[str, str]] | None = None
+
+    def get_css_variables(self) -> dict[str, str]:
+        # Worked out from the theme (a colour system of some 150 shades) four times before the
+        # first frame, each the same: kept until the theme changes.
+        theme = self.current_theme
+        if self._css_variables is None or self._css_variables[0] is not theme:
+            self._css_variables = (theme, super().get_css_variables())
+        self.theme_variables = dict(self._css_variables[1])
+        return dict(self._css_variables[1])
+
     # -- services the screens use -------------------------------------------------------
     @property
     def store(self) -> JobStore:

@@ -88,3 +88,37 @@ def head(job: Headed) -> Wrapped:
     if job.read_only:
         text.append(f"\n{job.read_only}", style="bold yellow")
     return Wrapped(text)
+
+
+#: The buttons under the job's name, in rows: (row id, ((id, word, key-table name), ...)).
+#: Keys and tooltips come from the key table, so a button says the key that does the same.
+ACTION_ROWS: tuple[tuple[str, tuple[tuple[str, str, str], ...]], ...] = (
+    # At hand without scrolling: on a phone terminal the footer has no room for them.
+    (
+        "job-actions",
+        (
+            ("job-done", "Done", "done"),
+            ("job-export", "Export", "export"),
+            ("job-today", "End of day", "result"),
+        ),
+    ),
+    (
+        "job-manage",
+        (
+            ("job-new", "New", "new"),
+            ("job-edit", "Edit", "edit"),
+            ("job-link", "Link", "add"),
+            ("job-delete", "Delete", "remove"),
+        ),
+    ),
+)
+#: What the detail shows under the buttons, each in a Static ``job-<name>``.
+DETAILS = ("summary", "failures", "links", "notes")
+#: What works only on a job that can be changed: off while no job is shown or it is read-only
+#: (Export and Delete work on a read-only job too).
+JOB_BUTTONS = ("job-note", "job-note-add", "job-done", "job-edit", "job-link")
+
+
+def done_label(status: str) -> str:
+    """The Done button's words for a job in ``status``: a done job is reopened."""
+    return f"{'Reopen' if status == 'done' else 'Done'} {keys.hint('done')}"

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import asyncio
 import importlib
+from collections.abc import Callable
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
@@ -46,7 +47,7 @@ class Workspace:
         width = screen.app.size.width
         for threshold, name in sorted(breakpoints or [], reverse=True):
             if width >= threshold:
-                screen.add_class(name)
+                screen.add_class(name, update=False)  # styled when mounted
                 break
         return screen
 
@@ -70,7 +71,7 @@ class WorkspaceScreen(Screen[None]):
     #: Keys held for this screen (the app keeps them here instead of handing them on), None
     #: when keys go through as usual; see :meth:`hold_keys`.
     held_keys: list[events.Key | events.Paste] | None = None
-    _held_moves: list[int] | None = None
+    _held_moves: list[Callable[[], object]] | None = None
     _handing_on: events.Key | events.Paste | None = None
 
     def hold_key(self, event: events.Key | events.Paste) -> bool:
@@ -89,19 +90,23 @@ class WorkspaceScreen(Screen[None]):
 
     def focus_next(self, selector: str | type[QueryType] = "*") -> Widget | None:
         if not self.workspace_complete:
-            self._hold_move(+1)
+            self.when_whole(lambda: Screen.focus_next(self, selector))
             return None
         return super().focus_next(selector)
 
     def focus_previous(self, selector: str | type[QueryType] = "*") -> Widget | None:
         if not self.workspace_complete:
-            self._hold_move(-1)
+            self.when_whole(lambda: Screen.focus_previous(self, selector))
             return None
         return super().focus_previous(selector)
 
-    def _hold_move(self, step: int) -> None:
-        # The fields a move goes to are not mounted yet: it is made once they are.
-        self._held_moves = [*(self._held_moves or []), step]
+    def when_whole(self, move: Callable[[], object]) -> None:
+        """Run ``move`` (a focus move) now, or once the whole workspace is mounted when what it
+        moves to is not there yet; the keys typed after it wait for it."""
+        if self.workspace_complete:
+            move()
+            return
+        self._held_moves = [*(self._held_moves or []), move]
         self.hold_keys()
 
     def whole_workspace_mounted(self) -> None:
@@ -109,11 +114,8 @@ class WorkspaceScreen(Screen[None]):
         the keys held since are handed on as if typed now."""
         self.workspace_complete = True
         moves, self._held_moves = self._held_moves or [], None
-        for step in moves:
-            if step > 0:
-                super().focus_next()
-            else:
-                super().focus_previous()
+        for move in moves:
+            move()
         if self.held_keys is not None:
             self.run_worker(self._hand_on_held_keys(), group="held-keys")
 

@@ -8,7 +8,7 @@ import json
 from pathlib import Path
 
 import pytest
-from textual.widgets import Button, OptionList, Static
+from textual.widgets import Button, Input, OptionList, Static
 
 from fieldkit import locations
 from fieldkit.jobs.demo import build, local_day_start
@@ -131,3 +131,28 @@ def test_a_fresh_start_shows_the_list_without_the_records_then_reads_the_job(
     assert seen["rows"] == 4 and seen["focus"] == "jobs-list"
     assert seen["head"] == str(jobs_view.head(store.load(newest.id)))
     assert "Duct proven to chamber SR-4" in seen["notes"]  # read after the frame
+
+
+async def test_a_note_typed_before_the_detail_is_mounted_waits_for_its_field(
+    tmp_path: Path, held_back: JobStore, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # The detail under the head (buttons, texts, the note field) is mounted right after the
+    # first frame; here it is held back until the keys are typed.
+    held: list[JobsScreen] = []
+    monkeypatch.setattr(JobsScreen, "_mount_detail", lambda self: held.append(self))
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, JobsScreen) and held == [screen]
+        assert not screen.query("#job-note") and not screen.query("#jobs-status")
+        await pilot.press("ctrl+l", *"ok")  # Note, then its words
+        await pilot.pause()
+        assert app.focused is screen.query_one("#jobs-list")  # nothing typed into the list
+        assert screen.query_one("#jobs-filter", Input).value == ""
+        await screen.run_worker(screen._mount_detail_now()).wait()
+        await app.workers.wait_for_complete()  # the held keys, handed on one by one
+        await pilot.pause()
+        note = screen.query_one("#job-note", Input)
+        assert app.focused is note and note.value == "ok"
+        assert str(screen.query_one("#jobs-status", Button).label) == "All jobs"

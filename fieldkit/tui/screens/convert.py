@@ -1,4 +1,8 @@
-"""The convert workspace: a typed value in every related unit, levels and losses, the WDM grids."""
+"""The convert workspace: a typed value in every related unit, levels and losses, the WDM grids.
+
+The calculations (fieldkit.calc) and the lines (fieldkit.text.convert) are imported when a value
+is first typed: none is needed for the first frame, where every field is empty.
+"""
 
 from __future__ import annotations
 
@@ -9,17 +13,12 @@ from textual.containers import Vertical, VerticalScroll
 from textual.widget import Widget
 from textual.widgets import Input, Static
 
-from fieldkit.calc import power
-from fieldkit.calc.conversions import grid_report, related_values
 from fieldkit.calc.units import InputError, Kind, Value, display_unit, format_number
-from fieldkit.text import convert as lines_of
 from fieldkit.tui import keys
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.quantity_field import QuantityField
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 from fieldkit.tui.workspaces import WorkspaceScreen
-
-_rows = lines_of.rows_text
 
 
 class ConvertScreen(WorkspaceScreen):
@@ -165,6 +164,9 @@ class ConvertScreen(WorkspaceScreen):
                 "value-out", "Type a value and its unit: dBm, mW, µW, dB, dB/km, km, ft, nm or THz."
             )
             return
+        from fieldkit.calc.conversions import related_values
+        from fieldkit.text import convert as lines_of
+
         # The same lines as ``fieldkit convert`` prints (fieldkit.text.convert).
         self._out("value-out", "\n".join(lines_of.related_lines(value, related_values(value))))
 
@@ -174,6 +176,9 @@ class ConvertScreen(WorkspaceScreen):
         if level is None or loss is None:
             self._out("loss-out", "A level and a loss give the level after the loss.")
             return
+        from fieldkit.calc import power
+        from fieldkit.text.convert import rows_text as _rows
+
         level_dbm = level.to("dBm")
         loss_db = loss.to("dB")
         after = power.apply_loss(level_dbm, loss_db)
@@ -194,6 +199,9 @@ class ConvertScreen(WorkspaceScreen):
         if a is None or b is None:
             self._out("sum-out", "Two levels give their combined power and difference.")
             return
+        from fieldkit.calc import power
+        from fieldkit.text.convert import rows_text as _rows
+
         a_dbm, b_dbm = a.to("dBm"), b.to("dBm")
         total = power.sum_levels_dbm((a_dbm, b_dbm))
         rows = [
@@ -210,6 +218,9 @@ class ConvertScreen(WorkspaceScreen):
                 "grid-out", "A wavelength or frequency gives the nearest ITU-T grid channels."
             )
             return
+        from fieldkit.calc.conversions import grid_report
+        from fieldkit.text import convert as lines_of
+
         try:
             report = grid_report(value)
         except InputError as exc:
@@ -217,7 +228,7 @@ class ConvertScreen(WorkspaceScreen):
             self._out("grid-out", "")
             return
         rows = lines_of.grid_rows(report)
-        self._out("grid-out", _rows(rows))
+        self._out("grid-out", lines_of.rows_text(rows))
 
 
 def _linear(level_dbm: float) -> str:

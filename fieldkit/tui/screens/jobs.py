@@ -6,7 +6,9 @@ Ctrl+L note, Ctrl+D done or open, Ctrl+W export, Ctrl+G end of day.
 
 The first frame needs no job record (pydantic and the records are a tenth of the start-up): the
 list comes from the index's summaries, and the job picked shows its head from its summary; the
-job itself is read right after that frame (or at once when a key needs it before then).
+job itself is read right after that frame (or at once when a key needs it before then). The
+detail under the head (its buttons, what the job holds, the note field:
+:class:`~fieldkit.tui.widgets.job_detail.JobDetail`) is mounted right after that frame too.
 
 Every change goes through :mod:`fieldkit.actions` (which saves with ``JobStore.update``: reload,
 apply, save under the job's lock), so a note typed here and a result saved by another program at
@@ -32,10 +34,13 @@ from fieldkit.jobs.errors import StoreError
 from fieldkit.jobs.ids import now
 from fieldkit.jobs.search import local_date
 from fieldkit.text.escape import terminal
+from fieldkit.tui import jobs_dialogs as dialogs
 from fieldkit.tui import jobs_rows, keys
 from fieldkit.tui.jobs_model import JobsModel
 from fieldkit.tui.typed import fieldkit_app
+from fieldkit.tui.widgets.compact_input import compact_input
 from fieldkit.tui.widgets.dialogs import AskDialog
+from fieldkit.tui.widgets.job_detail import JobDetail
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 from fieldkit.tui.workspaces import WorkspaceScreen
@@ -64,33 +69,6 @@ def _import_records() -> None:
     import fieldkit.tui.jobs_view  # noqa: F401  (the details' text)
 
 
-#: The buttons under the job's name, in rows: (id, word, key-table name). Keys and tooltips
-#: come from the key table, so a button says the key that does the same.
-_BUTTON_ROWS: tuple[tuple[str, tuple[tuple[str, str, str], ...]], ...] = (
-    # At hand without scrolling: on a phone terminal the footer has no room for them.
-    (
-        "job-actions",
-        (
-            ("job-done", "Done", "done"),
-            ("job-export", "Export", "export"),
-            ("job-today", "End of day", "result"),
-        ),
-    ),
-    (
-        "job-manage",
-        (
-            ("job-new", "New", "new"),
-            ("job-edit", "Edit", "edit"),
-            ("job-link", "Link", "add"),
-            ("job-delete", "Delete", "remove"),
-        ),
-    ),
-)
-_DETAILS = ("summary", "failures", "links", "notes")
-#: Disabled while no job is shown; the first five also while the shown job is read-only.
-_JOB_WIDGETS = ("#job-note", "#job-note-add", "#job-done", "#job-edit", "#job-link")
-
-
 class JobsScreen(WorkspaceScreen):
     """List and filter jobs; the chosen job's details beside (wide) or below (narrow).
 
@@ -101,63 +79,58 @@ class JobsScreen(WorkspaceScreen):
     AUTO_FOCUS = "#jobs-list"
     BINDINGS = keys.bindings("jobs")
 
+    workspace_complete = False  # until the detail under the head is mounted
+
     def __init__(self) -> None:
         super().__init__()
         self.model = JobsModel()
+        self.detail = JobDetail()
 
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
         with Horizontal(id="jobs-body"):
             with Vertical(id="jobs-side"):
-                yield Input(
+                yield compact_input(
                     placeholder="find: name, site, crew, date",
                     tooltip="Words from the name, customer, site, crew or a link; a day "
                     f"as YYYY-MM-DD ({keys.display('find')})",
                     id="jobs-filter",
                     type="text",
-                    compact=True,
                     # A letter typed on the list lands here: it must not be selected and
                     # replaced by the next one (Ctrl+F selects the whole text instead).
                     select_on_focus=False,
                 )
-                with Horizontal(id="jobs-filters"):
-                    yield Button(
-                        "All jobs",
-                        id="jobs-status",
-                        compact=True,
-                        tooltip=keys.tip("jobs", "filter"),
-                    )
-                    yield Button(
-                        "Any day", id="jobs-day", compact=True, tooltip=keys.tip("jobs", "today")
-                    )
+                yield Horizontal(id="jobs-filters")  # its buttons come after the first frame
                 yield Static("", id="jobs-count", classes="field-note")
                 yield OptionList(id="jobs-list", markup=False)
             with VerticalScroll(id="job-detail"):
                 yield Static("Pick a job on the list.", id="job-head")
-                for row_id, row in _BUTTON_ROWS:
-                    with Horizontal(id=row_id):
-                        for button_id, word, key in row:
-                            yield Button(
-                                f"{word} {keys.hint(key)}",
-                                id=button_id,
-                                compact=True,
-                                tooltip=keys.tip("jobs", key),
-                            )
-                for name in _DETAILS:
-                    yield Static("", id=f"job-{name}")
-                with Horizontal(id="job-note-row"):
-                    yield Input(
-                        placeholder=f"a note, Enter saves ({keys.hint('note')})",
-                        id="job-note",
-                        type="text",
-                        compact=True,
-                    )
-                    yield Button("Add note", id="job-note-add", compact=True)
-                yield Static("", id="job-note-error", classes="field-error", markup=False)
         yield KeyFooter()
 
     def on_mount(self) -> None:
         self.reload()
+        self.call_after_refresh(self._mount_detail)
+
+    def _mount_detail(self) -> None:
+        self.run_worker(self._mount_detail_now(), group="jobs-detail")
+
+    async def _mount_detail_now(self) -> None:
+        model = self.model
+        await self.query_one("#jobs-filters").mount_all(
+            [
+                Button(
+                    model.status_label,
+                    id="jobs-status",
+                    compact=True,
+                    tooltip=keys.tip("jobs", "filter"),
+                ),
+                Button(
+                    model.day_label, id="jobs-day", compact=True, tooltip=keys.tip("jobs", "today")
+                ),
+            ]
+        )
+        await self.query_one("#job-detail").mount_all(self.detail.build())
+        self.whole_workspace_mounted()
 
     def on_screen_resume(self) -> None:
         # Another workspace (or program) may have saved onto a job meanwhile. The resumes that
@@ -212,12 +185,8 @@ class JobsScreen(WorkspaceScreen):
                 self._open(page.shown[page.picked].id)
         else:
             self._clear_detail()
-        self.query_one("#jobs-status", Button).label = model.status_label
-        self.query_one("#jobs-day", Button).label = model.day_label
-
-    def _blank_details(self) -> None:
-        for name in _DETAILS:
-            self.query_one(f"#job-{name}", Static).update("")
+        for button in self.query("#jobs-filters Button").results(Button):
+            button.label = model.status_label if button.id == "jobs-status" else model.day_label
 
     def _clear_detail(self) -> None:
         """No job in the list: the details say so and the job's keys do nothing."""
@@ -225,9 +194,7 @@ class JobsScreen(WorkspaceScreen):
         self.model.pending_id = None
         head = jobs_rows.no_job_head(bool(self.model.summaries), self.store.jobs_dir)
         self.query_one("#job-head", Static).update(head)
-        self._blank_details()
-        for wid in (*_JOB_WIDGETS, "#job-export", "#job-delete"):
-            self.query_one(wid).disabled = True
+        self.detail.no_job()
 
     def _open(self, job_id: str) -> None:
         # Before the first frame, the job's head comes from its summary and the job is read
@@ -244,7 +211,7 @@ class JobsScreen(WorkspaceScreen):
         except StoreError as exc:
             self.model.job = None
             self.query_one("#job-head", Static).update(jobs_rows.plain(str(exc), "bold red"))
-            self._blank_details()
+            self.detail.blank()
             return
         self.model.job = job
         self._show(job)
@@ -260,8 +227,8 @@ class JobsScreen(WorkspaceScreen):
         self.model.job = None
         self.model.pending_id = job_id
         self.query_one("#job-head", Static).update(jobs_rows.head(summary))
-        self._blank_details()
-        self._show_state(summary.status, summary.read_only)
+        self.detail.blank()
+        self.detail.show_state(summary.status, summary.read_only)
         return True
 
     def _after_first_frame(self) -> None:
@@ -303,22 +270,7 @@ class JobsScreen(WorkspaceScreen):
         from fieldkit.tui import jobs_view as view
 
         self.query_one("#job-head", Static).update(view.head(job))
-        self.query_one("#job-summary", Static).update(view.summary_table(job))
-        self.query_one("#job-failures", Static).update(view.failures_text(job))
-        self.query_one("#job-links", Static).update(view.links_text(job))
-        self.query_one("#job-notes", Static).update(view.notes_text(job))
-        self._show_state(job.status, job.read_only)
-
-    def _show_state(self, status: str, read_only: str | None) -> None:
-        """The Done/Reopen word and which of the job's keys work."""
-        word = "Reopen" if status == "done" else "Done"
-        done = self.query_one("#job-done", Button)
-        done.label = f"{word} {keys.hint('done')}"
-        done.refresh(layout=True)  # "Reopen" is wider than "Done"
-        for wid in _JOB_WIDGETS:
-            self.query_one(wid).disabled = bool(read_only)
-        for wid in ("#job-export", "#job-delete"):
-            self.query_one(wid).disabled = False
+        self.detail.show(job)
 
     # -- events ------------------------------------------------------------------------------
     def on_key(self, event: Key) -> None:
@@ -327,7 +279,7 @@ class JobsScreen(WorkspaceScreen):
         focused = self.focused
         options = self.query_one("#jobs-list", OptionList)
         find = self.query_one("#jobs-filter", Input)
-        if focused is options and event.is_printable and event.character not in (None, " "):
+        if focused is options and dialogs.goes_to_find(event.character, event.is_printable):
             event.stop()
             event.prevent_default()
             find.focus()
@@ -364,27 +316,24 @@ class JobsScreen(WorkspaceScreen):
     @on(Input.Submitted, "#job-note")
     @on(Button.Pressed, "#job-note-add")
     def _add_note(self) -> None:
-        field = self.query_one("#job-note", Input)
-        error = self.query_one("#job-note-error", Static)
-        text = field.value.strip()
-        if self._job is None:
-            error.update("Pick a job first.")
+        field, error = self.detail.note, self.detail.note_error
+        job = self._job
+        problem = dialogs.note_problem(field.value, job is not None)
+        if problem is not None or job is None:
+            error.update(problem or "")
             return
-        if not text:
-            error.update("Type the note first.")
-            return
-
-        from fieldkit.actions.errors import ActionError
         from fieldkit.actions.jobs import add_note
 
         try:
-            job, _note = add_note(self.store, self._job.id, text, by=fieldkit_app(self).operator)
+            saved, _note = add_note(
+                self.store, job.id, field.value.strip(), by=fieldkit_app(self).operator
+            )
         except (StoreError, ActionError) as exc:
             error.update(jobs_rows.plain(f"Not saved: {exc}"))  # the typed text stays in the field
             return
         error.update("")
         field.value = ""
-        self._changed(job)
+        self._changed(saved)
 
     @on(Button.Pressed, "#jobs-status")
     def action_cycle_status(self) -> None:
@@ -411,7 +360,6 @@ class JobsScreen(WorkspaceScreen):
     @on(Button.Pressed, "#job-done")
     def action_toggle_done(self) -> None:
         from fieldkit.actions.jobs import OpenItemsError, mark_done, reopen
-        from fieldkit.text.words import counted
 
         job = self._job
         if job is None:
@@ -425,28 +373,30 @@ class JobsScreen(WorkspaceScreen):
             try:
                 return mark_done(self.store, job.id, by=by)
             except OpenItemsError as exc:
-                self.app.push_screen(
-                    AskDialog(
-                        f"{job.name} has {counted(len(exc.items), 'open item')}",
-                        exc.items,
-                        [("done", "Mark done anyway")],
-                        reason="why (noted in the job's log)",
-                    ),
+                self._ask(
+                    dialogs.open_items_question(job.name, exc.items),
                     lambda answer: self._done_anyway(job.id, answer),
                 )
                 return None
 
-        self._act(change, lambda saved: f"{saved.name}: {saved.status}")
+        self._act(change, lambda saved: dialogs.status_told(saved.name, saved.status))
 
-    def _done_anyway(self, job_id: str, answer: tuple[str, str] | None) -> None:
+    def _done_anyway(self, job_id: str, answer: dialogs.Answer) -> None:
         from fieldkit.actions.jobs import mark_done
 
-        if answer is not None and answer[0] == "done":
-            by, reason = fieldkit_app(self).operator, answer[1]
+        reason = dialogs.answered(answer, "done")
+        if reason is not None:
+            by = fieldkit_app(self).operator
             self._act(
                 lambda: mark_done(self.store, job_id, by=by, reason=reason, confirm=True),
-                lambda saved: f"{saved.name}: done",
+                lambda saved: dialogs.status_told(saved.name, "done"),
             )
+
+    def _ask(self, question: dialogs.Question, then: Callable[[dialogs.Answer], None]) -> None:
+        self.app.push_screen(
+            AskDialog(question.title, question.lines, question.answers, reason=question.reason),
+            then,
+        )
 
     def _changed(self, job: Job) -> None:
         self.model.replace(job)
@@ -480,22 +430,18 @@ class JobsScreen(WorkspaceScreen):
         job = self._job
         if job is None or job.read_only:
             return
-        if not job.links:
+        question = dialogs.link_question(job.name, job.links)
+        if question is None:
             self._link_chosen(("new", ""))
-            return
-        answers = [("new", "New link")] + [(f"edit-{link.id}", link.label) for link in job.links]
-        self.app.push_screen(
-            AskDialog("Add a link, or edit one", [f"Links of {job.name}:"], answers),
-            self._link_chosen,
-        )
+        else:
+            self._ask(question, self._link_chosen)
 
-    def _link_chosen(self, answer: tuple[str, str] | None) -> None:
+    def _link_chosen(self, answer: dialogs.Answer) -> None:
         job = self._job
-        if answer is None or job is None:
+        if job is None:
             return
-        link_id = answer[0].removeprefix("edit-")
-        link = next((item for item in job.links if item.id == link_id), None)
-        if answer[0] == "new" or link is not None:
+        wanted, link = dialogs.picked_link(answer, job.links)
+        if wanted:
             from fieldkit.tui.widgets.job_forms import LinkForm
 
             self.app.push_screen(LinkForm(job, link), self._link_saved)
@@ -509,24 +455,17 @@ class JobsScreen(WorkspaceScreen):
     @on(Button.Pressed, "#job-delete")
     def action_delete_job(self) -> None:
         job = self._job
-        if job is None:
-            return
-        self.app.push_screen(
-            AskDialog(
-                f"Delete {job.name}?",
-                [
-                    f"It moves to the trash folder ({self.store.trash_dir}); nothing is "
-                    f"destroyed. 'fieldkit jobs restore {job.id[:8]}' brings it back."
-                ],
-                [("delete", "Move to the trash")],
-            ),
-            lambda answer: self._delete(job.id, answer),
-        )
+        if job is not None:
+            job_id = job.id
+            self._ask(
+                dialogs.delete_question(job.name, job_id, self.store.trash_dir),
+                lambda answer: self._delete(job_id, answer),
+            )
 
-    def _delete(self, job_id: str, answer: tuple[str, str] | None) -> None:
+    def _delete(self, job_id: str, answer: dialogs.Answer) -> None:
         from fieldkit.actions.jobs import delete_job
 
-        if answer is None or answer[0] != "delete":
+        if dialogs.answered(answer, "delete") is None:
             return
         try:
             delete_job(self.store, job_id, by=fieldkit_app(self).operator)
@@ -534,7 +473,7 @@ class JobsScreen(WorkspaceScreen):
             self.notify(str(exc), severity="error")
             return
         self.model.job = None
-        self.notify(f"Moved to the trash; 'fieldkit jobs restore {job_id[:8]}' brings it back.")
+        self.notify(dialogs.deleted(job_id))
         self.reload()
 
     @on(Button.Pressed, "#job-export")
@@ -566,7 +505,7 @@ class JobsScreen(WorkspaceScreen):
         self.query_one("#jobs-list", OptionList).focus()
 
     def action_focus_note(self) -> None:
-        self.query_one("#job-note", Input).focus()
+        self.when_whole(lambda: self.detail.note.focus())
 
     def action_reload(self) -> None:
         self.reload(rescan=True)

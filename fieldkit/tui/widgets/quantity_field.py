@@ -11,6 +11,7 @@ from textual.widgets import Input, Static
 
 from fieldkit.calc.units import InputError, Kind, Value, parse
 from fieldkit.tui.form_fields import field_name
+from fieldkit.tui.widgets.compact_input import compact_input
 
 #: What a quantity field lets through: digits, signs, separators, letters for units, µ/μ, %, /.
 QUANTITY_CHARS = r"[0-9A-Za-z .,+\-\u2212\u00b5\u03bc/%']*"
@@ -66,12 +67,11 @@ class QuantityField(Widget):
         self._label = label
         self._expect = expect
         self._default_unit = default_unit
-        self._input = Input(
+        self._input = compact_input(
             value=value,
             placeholder=placeholder,
             type="text",
             restrict=QUANTITY_CHARS,
-            compact=True,
             id=field_id,
             tooltip=tooltip,
         )
