@@ -9,13 +9,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from datetime import date
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Literal
 
+from fieldkit.jobs.errors import StoreError
 from fieldkit.jobs.search import JobFinder
+from fieldkit.text.escape import terminal
 
 if TYPE_CHECKING:
     from fieldkit.jobs.index import JobSummary
     from fieldkit.jobs.models import Job
+    from fieldkit.jobs.store import JobStore
 
 #: How many matching jobs the list shows at once; typing in the filter narrows the rest.
 PAGE = 200
@@ -91,6 +94,26 @@ class JobsModel:
         keep = self.job_id
         picked = ids.index(keep) if keep in ids else (0 if ids else None)
         return Page(shown, len(matches), len(self.summaries), picked, self.quarantined)
+
+    def relist(
+        self, store: JobStore, rescan: bool = False
+    ) -> list[tuple[str, Literal["error", "warning"]]]:
+        """List the jobs of ``store`` again (and count those set aside); returns what to tell,
+        as (message, severity): a listing that failed, and the store's problems (a file it
+        skipped or set aside), each told once."""
+        told: list[tuple[str, Literal["error", "warning"]]] = []
+        try:
+            self.summaries = store.list(rescan=rescan)
+        except (StoreError, OSError) as exc:
+            self.summaries = []
+            told.append((terminal(f"The jobs could not be listed: {exc}"), "error"))
+        try:
+            self.quarantined = len(store.quarantined())
+        except OSError:
+            self.quarantined = 0
+        told.extend((terminal(problem), "warning") for problem in store.problems)
+        store.problems.clear()
+        return told
 
     def replace(self, job: Job) -> None:
         """``job`` was saved here: it is the job shown, and its row moves to the top."""

@@ -19,9 +19,10 @@ from fieldkit.jobs.demo import build, local_day_start
 from fieldkit.jobs.models import now
 from fieldkit.jobs.store import JobStore
 from fieldkit.tui.app import make_app
-from fieldkit.tui.screens.jobs import ExportDialog, JobsScreen
+from fieldkit.tui.screens.jobs import JobsScreen
 from fieldkit.tui.screens.meter import MeterScreen
 from fieldkit.tui.widgets.dialogs import AskDialog, NameDialog
+from fieldkit.tui.widgets.export_dialog import ExportDialog
 from fieldkit.tui.widgets.job_forms import JobForm, LinkForm
 from fieldkit.tui.widgets.meter_view import SummaryView
 

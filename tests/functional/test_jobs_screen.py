@@ -13,8 +13,9 @@ from fieldkit.jobs.models import now
 from fieldkit.jobs.store import JobStore
 from fieldkit.tui import keys
 from fieldkit.tui.app import make_app
-from fieldkit.tui.screens.jobs import ExportDialog, JobsScreen
+from fieldkit.tui.screens.jobs import JobsScreen
 from fieldkit.tui.screens.jobs_today import EndOfDayScreen
+from fieldkit.tui.widgets.export_dialog import ExportDialog
 
 SIZES = [(80, 24), (44, 22)]
 

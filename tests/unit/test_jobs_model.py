@@ -4,6 +4,7 @@ stays picked, what the count line and the filter buttons say. No Textual here.""
 from __future__ import annotations
 
 from datetime import UTC, date, datetime
+from pathlib import Path
 
 from fieldkit.jobs.index import JobSummary
 from fieldkit.jobs.models import Job
@@ -71,3 +72,28 @@ def test_a_saved_job_moves_to_the_top_and_stays_picked() -> None:
     model.replace(job)
     assert [s.name for s in model.summaries] == ["renamed", "job 3", "job 2"]
     assert model.page("", DAY).picked == 0
+
+
+def test_relist_counts_the_set_aside_and_tells_each_problem_once(tmp_path: Path) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    store = JobStore(tmp_path / "jobs")
+    store.save(Job(name="Feed repair"))
+    (tmp_path / "jobs" / "0123456789abcdef.json").write_text("{ not json")  # a job's name
+    model = JobsModel()
+    told = model.relist(store, rescan=True)
+    assert [s.name for s in model.summaries] == ["Feed repair"]
+    assert model.quarantined == 1  # the file that does not parse is moved aside, not lost
+    assert told and all(severity == "warning" for _, severity in told)
+    assert any("0123456789abcdef.json" in message for message, _ in told)
+    assert model.relist(store) == []  # told once: the store's problems are cleared
+
+
+def test_relist_of_an_unreadable_folder_says_so(tmp_path: Path) -> None:
+    from fieldkit.jobs.store import JobStore
+
+    (tmp_path / "jobs").write_text("a file where the jobs folder should be")
+    model = JobsModel(summaries=[_summary(1)])
+    told = model.relist(JobStore(tmp_path / "jobs"))
+    assert model.summaries == []
+    assert told[0][1] == "error" and told[0][0].startswith("The jobs could not be listed:")

@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import sys
 from collections.abc import Callable
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 from textual import on
 from textual.app import ComposeResult
@@ -33,14 +33,13 @@ from fieldkit.actions.errors import ActionError
 from fieldkit.jobs.errors import StoreError
 from fieldkit.jobs.ids import now
 from fieldkit.jobs.search import local_date
-from fieldkit.text.escape import terminal
 from fieldkit.tui import jobs_dialogs as dialogs
 from fieldkit.tui import jobs_rows, keys
 from fieldkit.tui.jobs_model import JobsModel
 from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.compact_input import compact_input
 from fieldkit.tui.widgets.dialogs import AskDialog
-from fieldkit.tui.widgets.job_detail import JobDetail
+from fieldkit.tui.widgets.job_detail import JobDetail, filter_buttons
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
 from fieldkit.tui.workspaces import WorkspaceScreen
@@ -48,19 +47,8 @@ from fieldkit.tui.workspaces import WorkspaceScreen
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job
     from fieldkit.jobs.store import JobStore
-    from fieldkit.tui.widgets.export_dialog import ExportDialog
 
-__all__ = ["ExportDialog", "JobsScreen"]
-
-
-def __getattr__(name: str) -> Any:
-    # ``from fieldkit.tui.screens.jobs import ExportDialog`` still works; imported on first use
-    # (it needs the records, which the first frame does without).
-    if name == "ExportDialog":
-        from fieldkit.tui.widgets.export_dialog import ExportDialog
-
-        return ExportDialog
-    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+__all__ = ["JobsScreen"]
 
 
 def _import_records() -> None:
@@ -104,7 +92,7 @@ class JobsScreen(WorkspaceScreen):
                 yield Static("", id="jobs-count", classes="field-note")
                 yield OptionList(id="jobs-list", markup=False)
             with VerticalScroll(id="job-detail"):
-                yield Static("Pick a job on the list.", id="job-head")
+                yield self.detail.head
         yield KeyFooter()
 
     def on_mount(self) -> None:
@@ -117,17 +105,7 @@ class JobsScreen(WorkspaceScreen):
     async def _mount_detail_now(self) -> None:
         model = self.model
         await self.query_one("#jobs-filters").mount_all(
-            [
-                Button(
-                    model.status_label,
-                    id="jobs-status",
-                    compact=True,
-                    tooltip=keys.tip("jobs", "filter"),
-                ),
-                Button(
-                    model.day_label, id="jobs-day", compact=True, tooltip=keys.tip("jobs", "today")
-                ),
-            ]
+            filter_buttons(model.status_label, model.day_label)
         )
         await self.query_one("#job-detail").mount_all(self.detail.build())
         self.whole_workspace_mounted()
@@ -153,20 +131,9 @@ class JobsScreen(WorkspaceScreen):
 
     def reload(self, rescan: bool = False) -> None:
         model = self.model
-        try:
-            model.summaries = self.store.list(rescan=rescan)
-        except (StoreError, OSError) as exc:
-            model.summaries = []
-            self.notify(
-                terminal(f"The jobs could not be listed: {exc}"), severity="error", markup=False
-            )
-        try:
-            model.quarantined = len(self.store.quarantined())
-        except OSError:
-            model.quarantined = 0
-        for problem in self.store.problems:
-            self.notify(terminal(problem), severity="warning", timeout=10, markup=False)
-        self.store.problems.clear()
+        for message, severity in model.relist(self.store, rescan):
+            timeout = 10 if severity == "warning" else None  # a skipped file: time to read
+            self.notify(message, severity=severity, timeout=timeout, markup=False)
         self._refilter()
         if model.job is not None:
             self._open(model.job.id)
@@ -192,9 +159,7 @@ class JobsScreen(WorkspaceScreen):
         """No job in the list: the details say so and the job's keys do nothing."""
         self.model.job = None
         self.model.pending_id = None
-        head = jobs_rows.no_job_head(bool(self.model.summaries), self.store.jobs_dir)
-        self.query_one("#job-head", Static).update(head)
-        self.detail.no_job()
+        self.detail.no_job(bool(self.model.summaries), self.store.jobs_dir)
 
     def _open(self, job_id: str) -> None:
         # Before the first frame, the job's head comes from its summary and the job is read
@@ -210,11 +175,10 @@ class JobsScreen(WorkspaceScreen):
             job = self.store.load(job_id)
         except StoreError as exc:
             self.model.job = None
-            self.query_one("#job-head", Static).update(jobs_rows.plain(str(exc), "bold red"))
-            self.detail.blank()
+            self.detail.failed(str(exc))
             return
         self.model.job = job
-        self._show(job)
+        self.detail.show(job)
 
     def _show_summary(self, job_id: str) -> bool:
         """Show the job's head from its summary until the job is read; False when it is not
@@ -226,9 +190,7 @@ class JobsScreen(WorkspaceScreen):
             self.call_after_refresh(self._after_first_frame)
         self.model.job = None
         self.model.pending_id = job_id
-        self.query_one("#job-head", Static).update(jobs_rows.head(summary))
-        self.detail.blank()
-        self.detail.show_state(summary.status, summary.read_only)
+        self.detail.show_summary(summary)
         return True
 
     def _after_first_frame(self) -> None:
@@ -265,12 +227,6 @@ class JobsScreen(WorkspaceScreen):
     def _load_pending(self) -> None:
         if self.model.job is None and self.model.pending_id is not None:
             self._load(self.model.pending_id)
-
-    def _show(self, job: Job) -> None:
-        from fieldkit.tui import jobs_view as view
-
-        self.query_one("#job-head", Static).update(view.head(job))
-        self.detail.show(job)
 
     # -- events ------------------------------------------------------------------------------
     def on_key(self, event: Key) -> None:
@@ -400,7 +356,7 @@ class JobsScreen(WorkspaceScreen):
 
     def _changed(self, job: Job) -> None:
         self.model.replace(job)
-        self._show(job)
+        self.detail.show(job)
         self._refilter()
 
     # -- start, edit, link, delete ---------------------------------------------------------

@@ -1,5 +1,5 @@
-"""The Jobs workspace's detail under the job's head: its action buttons, what the job holds, and
-the note field.
+"""The Jobs workspace's detail: the job's head, then its action buttons, what the job holds,
+and the note field.
 
 Made and mounted right after the screen's first frame (the list and the head of the job picked
 are that frame): these 16 widgets were half of it. What the screen asks of them before (the job
@@ -16,13 +16,16 @@ from textual.containers import Horizontal
 from textual.widget import Widget
 from textual.widgets import Button, Input, Static
 
-from fieldkit.tui import keys
+from fieldkit.tui import jobs_rows, keys
 from fieldkit.tui.jobs_rows import ACTION_ROWS, DETAILS, JOB_BUTTONS, done_label
 from fieldkit.tui.widgets.compact_input import compact_input
 
 if TYPE_CHECKING:
+    from pathlib import Path
+
     from rich.console import RenderableType
 
+    from fieldkit.jobs.index import JobSummary
     from fieldkit.jobs.models import Job
     from fieldkit.tui.wrapped import Wrapped
 
@@ -33,6 +36,8 @@ class JobDetail:
     made, so they come with the right picture."""
 
     def __init__(self) -> None:
+        #: The job's head: in the first frame, made with the screen.
+        self.head = Static("Pick a job on the list.", id="job-head")
         self._asked: list[Callable[[], None]] = []
         self.built = False
 
@@ -89,8 +94,22 @@ class JobDetail:
             text.update("")
 
     def show(self, job: Job) -> None:
-        """What ``job`` holds: its counts, failures, links and notes."""
+        """``job``: its head, counts, failures, links and notes."""
+        from fieldkit.tui import jobs_view as view
+
+        self.head.update(view.head(job))
         self._when_built(lambda: self._show(job))
+
+    def show_summary(self, summary: JobSummary) -> None:
+        """A job's head from its index summary, until the job is read."""
+        self.head.update(jobs_rows.head(summary))
+        self.blank()
+        self.show_state(summary.status, summary.read_only)
+
+    def failed(self, message: str) -> None:
+        """The job could not be read: why, in place of its head."""
+        self.head.update(jobs_rows.plain(message, "bold red"))
+        self.blank()
 
     def _show(self, job: Job) -> None:
         from fieldkit.tui import jobs_view as view
@@ -118,8 +137,10 @@ class JobDetail:
         for wid in ("job-export", "job-delete"):
             self.buttons[wid].disabled = False
 
-    def no_job(self) -> None:
-        """No job in the list: the details are blank and the job's buttons do nothing."""
+    def no_job(self, any_jobs: bool, jobs_dir: Path) -> None:
+        """No job in the list: the head says why, the details are blank and the job's
+        buttons do nothing."""
+        self.head.update(jobs_rows.no_job_head(any_jobs, jobs_dir))
         self._when_built(self._no_job)
 
     def _no_job(self) -> None:
@@ -133,3 +154,11 @@ class JobDetail:
         if wid == "job-note-add":
             return self.note_add
         return self.buttons[wid]
+
+
+def filter_buttons(status_label: str, day_label: str) -> list[Button]:
+    """The list's two filters, which status and which day (mounted after the first frame)."""
+    return [
+        Button(status_label, id="jobs-status", compact=True, tooltip=keys.tip("jobs", "filter")),
+        Button(day_label, id="jobs-day", compact=True, tooltip=keys.tip("jobs", "today")),
+    ]
