@@ -188,6 +188,18 @@ def load_link(store: Any, job_id: str, link: str) -> tuple[Job, Link]:
     return job, find_link(job, link)
 
 
+def closures_of(store: Any, where: tuple[str, str] | None) -> list[tuple[str, float | None]]:
+    """(name, route position m) of each closure of link ``where`` (job id, link); none when
+    ``where`` is None or the link cannot be read (the caller goes on without landmarks)."""
+    if where is None:
+        return []
+    try:
+        _job, link = load_link(store, *where)
+    except Exception:  # noqa: BLE001 - a store or lookup problem: no closures to offer
+        return []
+    return [(c.name, c.route_distance_m) for c in link.closures]
+
+
 def closure_landmarks(store: Any, job_id: str, link: str) -> list[Landmark]:
     """The link's closures with a route position, as landmarks for a fault hand-off."""
     _job, target = load_link(store, job_id, link)

@@ -438,14 +438,15 @@ class TraceSession:
 
     def handoff(self) -> FaultHandoff:
         """:meth:`fault_handoff` of the selected event; of the end (the break) while nothing
-        is selected or the instrument's own table shows (its numbers are not ours).
+        is selected or the instrument's own table shows (its numbers are not ours), with the
+        chosen link's closures (:meth:`use_closures`) as landmarks.
 
         Raises
         ------
         TraceFileError
             When no trace is open or there is no such event.
         """
-        return self.fault_handoff(None if self.instrument_table else self.selected)
+        return self.fault_handoff(None if self.instrument_table else self.selected, self.closures)
 
     def offered_link(self, found: list[tuple[str, str]]) -> tuple[str, str] | None:
         """Of the (job, link) pairs the open traces name (:meth:`names`), the one to offer

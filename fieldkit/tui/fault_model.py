@@ -42,6 +42,7 @@ from fieldkit.inputs import otdr_distance_m
 from fieldkit.presets import PresetLibrary, load_presets
 from fieldkit.text.locate import distance_text, result_lines, summary_line
 from fieldkit.text.route import FaultMark, RoutePoint
+from fieldkit.text.words import counted
 from fieldkit.tui.form_fields import Column, Notice, field_name, plain_number
 
 if TYPE_CHECKING:
@@ -303,6 +304,9 @@ class FaultForm:
     _clean: str | None = None
     _typed: dict[str, Any] = field(default_factory=dict)
     _clear_asked: bool = False
+    #: The landmark rows the last hand-off put in (as it put them): rows still equal to one of
+    #: these belong to that trace, not to the user, and the next hand-off replaces them.
+    _handed: list[dict[str, str]] = field(default_factory=list)
 
     def may_clear(self, anything_typed: bool) -> bool:
         """Ctrl+N: True when the reading and the rows may be emptied now. With something
@@ -364,6 +368,37 @@ class FaultForm:
             {"name": name, "otdr": f"{otdr:.1f} m", "route": f"{route:.1f} m"}
             for name, otdr, route in landmarks
         ]
+
+    def merge_handoff(
+        self, rows: Sequence[dict[str, str]], landmarks: Sequence[tuple[str, float, float]]
+    ) -> tuple[list[dict[str, str]], str]:
+        """The landmark list after a hand-off from Traces, and one line saying what happened.
+
+        Rows the user typed (or edited) all stay, first, as they are. The link's closures the
+        trace found (:meth:`handoff_rows`) follow, except one named like a typed row: the typed
+        row wins and the line gives the trace's reading of it. Rows an earlier hand-off put in
+        and nobody changed belong to that trace's set-up, so these new ones replace them.
+        """
+        typed = [dict(r) for r in rows if dict(r) not in self._handed]
+        replaced = len(rows) - len(typed)
+        taken = {r.get("name", "").strip().casefold() for r in typed}
+        new, kept = [], []
+        for row in self.handoff_rows(landmarks):
+            if row["name"].strip().casefold() in taken:
+                kept.append(f"{row['name']} as typed (the trace reads {row['otdr']})")
+            else:
+                new.append(row)
+        self._handed = [dict(r) for r in new]
+        said = []
+        if new:
+            said.append(f"{counted(len(new), 'closure')} of the link as landmarks")
+        if kept:
+            said.append("kept " + ", ".join(kept))
+        if replaced:
+            said.append(f"{counted(replaced, 'landmark')} of the previous trace replaced")
+        if typed and new:
+            said.append(f"{counted(len(typed), 'typed landmark')} kept")
+        return typed + new, ("Landmarks: " + "; ".join(said) + ".") if said else ""
 
     def group_index_text(self, fibre: str, wavelength_nm: float) -> str | None:
         """The preset's group index at a wavelength, as the field shows it."""

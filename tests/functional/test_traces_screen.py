@@ -282,3 +282,52 @@ async def test_save_a_whole_folder_at_44x22(tmp_path: Path, pair_files: tuple[Pa
         [kept] = store.load(job.id).links[0].traces
         assert kept.fibre == 1 and kept.direction == "A<->B" and len(kept.curves) == 2
         assert "Saved 1 trace" in str(screen.query_one("#traces-status", Static).render())
+
+
+async def test_sending_an_event_to_fault_brings_the_links_closures_and_keeps_typed_ones(
+    tmp_path: Path,
+) -> None:
+    """Traces -> Fault: the closures of the link the traces name arrive as landmarks (a
+    splicer expects the route's known points there); a landmark typed in Fault stays."""
+    from fieldkit import locations
+    from fieldkit.actions import splices as act
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.widgets.point_list import PointList
+
+    ab, ba = tmp_path / "RT-9_F001_AB.sor", tmp_path / "RT-9_F001_BA.sor"  # they name link RT-9
+    ab.write_bytes(write_sor(synth_trace(FIBRE, seed=1)))
+    ba.write_bytes(write_sor(synth_trace(FIBRE.reversed(), seed=2)))
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Mill Lane")
+    store.update(job.id, lambda j: j.add_link("RT-9") and None)
+    # the splice at 1500 m of fibre (FIBRE above) sits at closure JC-7, 1480 m along the route
+    act.add_closure(store, job.id, "RT-9", "JC-7", route_distance_m=1480.0, by="Ana")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="fault")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        fault = app.screen
+        assert isinstance(fault, FaultScreen)
+        fault.query_one("#fault-landmarks-name", Input).value = "HH-2"
+        fault.query_one("#fault-landmarks-otdr", Input).value = "820 m"
+        fault.query_one("#fault-landmarks-route", Input).value = "805 m"
+        fault.query_one("#fault-landmarks-route", Input).focus()
+        await pilot.press("enter")  # adds the typed row
+        await app.switch_mode("traces")
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, TracesScreen)
+        screen.query_one("#traces-a", Input).value = str(ab)
+        screen.query_one("#traces-b", Input).value = str(ba)
+        await pilot.press("enter")
+        await pilot.pause()
+        plot = screen.query_one("#traces-plot", TracePlot)
+        plot.focus()
+        await pilot.press("pagedown")  # event 2, the connector at 2600 m
+        await pilot.press("ctrl+g")
+        await pilot.pause()
+        assert app.screen is fault
+        rows = fault.query_one("#fault-landmarks", PointList).rows
+        assert rows[0] == {"name": "HH-2", "otdr": "820 m", "route": "805 m"}  # typed: kept
+        assert [r["name"] for r in rows] == ["HH-2", "JC-7"]
+        assert float(rows[1]["otdr"].removesuffix(" m")) == pytest.approx(1500.0, abs=2.0)
+        assert rows[1]["route"] == "1480.0 m"

@@ -258,3 +258,23 @@ def test_handed_off_landmarks_become_list_rows() -> None:
     rows = FaultForm.handoff_rows([("JC-3", 1500.04, 1480.0)])
     assert rows == [{"name": "JC-3", "otdr": "1500.0 m", "route": "1480.0 m"}]
     assert FaultForm().preset_warning() is None  # the shipped presets read cleanly
+
+
+def test_a_handoff_keeps_typed_landmarks_and_replaces_only_its_own() -> None:
+    """No data lost: rows the user typed stay; a closure named like a typed row keeps the typed
+    row (the line gives the trace's reading); the next hand-off replaces the previous trace's
+    untouched rows, since landmarks belong to one trace's set-up (common practice)."""
+    form = FaultForm()
+    typed = {"name": "jc-7", "otdr": "2.1 km", "route": "2060 m"}
+    rows, said = form.merge_handoff([typed], [("JC-7", 2101.0, 2060.0), ("JC-9", 3300.0, 3240.0)])
+    assert rows == [typed, {"name": "JC-9", "otdr": "3300.0 m", "route": "3240.0 m"}]
+    assert "kept JC-7 as typed (the trace reads 2101.0 m)" in said
+    assert "1 closure of the link as landmarks" in said
+    # the next trace: its JC-9 replaces the last one's; the typed row still stays
+    rows, said = form.merge_handoff(rows, [("JC-9", 3310.0, 3240.0)])
+    assert rows == [typed, {"name": "JC-9", "otdr": "3310.0 m", "route": "3240.0 m"}]
+    assert "1 landmark of the previous trace replaced" in said
+    # a row the user edited after the hand-off is theirs now
+    edited = {"name": "JC-9", "otdr": "3312 m", "route": "3240.0 m"}
+    rows, said = form.merge_handoff([typed, edited], [])
+    assert rows == [typed, edited] and said == ""

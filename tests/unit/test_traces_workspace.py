@@ -218,3 +218,19 @@ def test_a_links_presets_judge_and_say_so(demo: tuple[JobStore, Path], tmp_path:
     s = TraceSession()
     s.set_limits(judged)
     assert not s.judged_by_defaults and s.note_lines("", wide=True) == []
+
+
+def test_the_handoff_carries_the_chosen_links_closures() -> None:
+    """Ctrl+G sends the link's closures that match events as landmarks (traces.closures)."""
+    from fieldkit.traces.analysis import analyse_trace
+    from fieldkit.traces.synthetic import SynthEvent, SynthFibre, synth_trace
+
+    fibre = SynthFibre(
+        length_m=4000.0, spacing_m=1.0, dynamic_range_db=18.0, events=(SynthEvent(1500.0, 0.25),)
+    )
+    s = TraceSession(a=analyse_trace(synth_trace(fibre, seed=1)))
+    assert s.handoff().landmarks == ()  # no link chosen: none
+    s.use_closures([("JC-7", 1480.0), ("JC-far", 3900.0)])
+    (name, otdr_m, route_m), *rest = s.handoff().landmarks  # the break, with JC-7
+    assert name == "JC-7" and otdr_m == pytest.approx(1500.0, abs=2.0) and route_m == 1480.0
+    assert rest == []  # no event near 3900 m of route but the end, which is no closure

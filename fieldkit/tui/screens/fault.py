@@ -326,17 +326,18 @@ class FaultScreen(Screen[None]):
     def prefill(self, hand: FaultHandoff) -> None:
         """Fill the reading from an OTDR event the Traces workspace hands off: the distance,
         the index the trace was taken with, and its landmarks (name, OTDR distance m, route
-        distance m), which replace the list only when there are some. Everything else the
-        user typed stays.
+        distance m), merged into the list (:meth:`FaultForm.merge_handoff`: typed rows stay).
+        Everything else the user typed stays.
         """
         self.query_one("#fault-distance", Input).value = f"{hand.distance_m:.1f} m"
         self.query_one("#fault-time", Input).value = ""
         self.query_one("#fault-ior-set", Input).value = f"{hand.group_index:.4f}"
-        if hand.landmarks:
-            rows = self.form.handoff_rows(hand.landmarks)
-            self.query_one("#fault-landmarks", PointList).set_rows(rows)
-        if hand.note:
-            self.notify(hand.note, timeout=6)
+        landmarks = self.query_one("#fault-landmarks", PointList)
+        rows, said = self.form.merge_handoff(landmarks.rows, hand.landmarks)
+        if rows != landmarks.rows:
+            landmarks.set_rows(rows)
+        if hand.note or said:
+            self.notify(" ".join(t for t in (hand.note, said) if t), timeout=6)
         self.recompute()
 
     def _point_list(self) -> PointList:

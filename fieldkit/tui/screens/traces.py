@@ -386,7 +386,13 @@ class TracesScreen(Screen[None]):
             self._shown(said)
 
     async def action_send_fault(self) -> None:
-        """Ctrl+G: the selected event (else the end, the break) into the Fault workspace."""
+        """Ctrl+G: the selected event (else the end, the break) into the Fault workspace,
+        the link's closures that match events as its landmarks."""
+        from fieldkit.actions.traces import closures_of
+
+        if self.session.last_link is None and not self.session.closures:
+            # no link chosen yet: the one the traces name gives the landmarks
+            self.session.use_closures(closures_of(fieldkit_app(self).store, self._likely_link()))
         try:
             hand = self.session.handoff()
         except TraceFileError as exc:
