@@ -106,6 +106,13 @@ def _needed_modules(argv: Sequence[str]) -> tuple[tuple[str, ...], str | None]:
 
 def main(argv: Sequence[str] | None = None) -> int:
     arguments = sys.argv[1:] if argv is None else list(argv)
+    if not arguments:
+        # No arguments: the UI, as the parser would decide, without building it (argparse and
+        # its parser are a hundredth of the start-up).
+        from fieldkit.tui.app import make_app
+
+        make_app(welcome=True).run()
+        return 0
     modules, command = _needed_modules(arguments)
     parser, commands = _build(modules)
     if command is not None and command not in commands:

@@ -23,8 +23,8 @@ What the first frame holds:
 
 The runs:
 
-- ``fieldkit``: the real entry point (``fieldkit.cli.main``: argument parsing, settings,
-  themes, the Convert workspace), with ``--data-dir`` on a folder of demo jobs.
+- ``fieldkit``: the real entry point with no arguments (``fieldkit.cli.main([])``: settings,
+  themes, the Convert workspace), with ``$FIELDKIT_DATA_DIR`` on a folder of demo jobs.
 - ``fieldkit demo``: ``fieldkit.cli.main(["demo", ...])`` -- checks the demo jobs, then opens
   the Jobs workspace on them.
 - the baseline: a bare Textual app with one Static (both marks are its first frame).
@@ -199,7 +199,7 @@ def main() -> None:
             "bare Textual app, one Static": (None, BARE_CHILD, [])
         }
         for tag, checkout in checkouts.items():
-            runs[f"{tag}fieldkit (Convert)"] = (checkout, FIELDKIT_CHILD, ["--data-dir", str(jobs)])
+            runs[f"{tag}fieldkit (Convert)"] = (checkout, FIELDKIT_CHILD, [])
             runs[f"{tag}fieldkit demo (Jobs)"] = (
                 checkout,
                 FIELDKIT_CHILD,
@@ -210,7 +210,7 @@ def main() -> None:
         shown: dict[str, str] = {}
         for round_ in range(options.rounds + 1):  # the first round warms the file cache
             for label, (checkout, code, args) in runs.items():
-                child_env = dict(env)
+                child_env = dict(env, FIELDKIT_DATA_DIR=str(jobs))
                 if checkout is not None:
                     child_env["PYTHONPATH"] = os.pathsep.join(
                         p for p in (str(checkout), env.get("PYTHONPATH", "")) if p

@@ -10,13 +10,20 @@ from textual.widget import Widget
 from textual.widgets import Input, Static
 
 from fieldkit.calc.units import InputError, Kind, Value, parse
-from fieldkit.tui.form_fields import field_name
 from fieldkit.tui.widgets.compact_input import compact_input
 
 #: What a quantity field lets through: digits, signs, separators, letters for units, µ/μ, %, /.
 QUANTITY_CHARS = r"[0-9A-Za-z .,+\-\u2212\u00b5\u03bc/%']*"
 
 __all__ = ["QUANTITY_CHARS", "QuantityField", "field_name"]
+
+
+def field_name(label: str) -> str:
+    """:func:`fieldkit.tui.form_fields.field_name`, imported when a field is first read (the
+    form rules are not needed for the first frame)."""
+    from fieldkit.tui.form_fields import field_name as named
+
+    return named(label)
 
 
 class QuantityField(Widget):
