@@ -109,6 +109,9 @@ class JobsScreen(WorkspaceScreen):
         )
         await self.query_one("#job-detail").mount_all(self.detail.build())
         self.whole_workspace_mounted()
+        # The job is read once the workspace is whole: the records' import on its thread
+        # would otherwise compete with mounting the detail.
+        self._after_first_frame()
 
     def on_screen_resume(self) -> None:
         # Another workspace (or program) may have saved onto a job meanwhile. The resumes that
@@ -202,6 +205,8 @@ class JobsScreen(WorkspaceScreen):
         """Read the job shown; the records are imported on a thread first (pydantic and the
         models take ~80 ms), so keys typed meanwhile (a find, a move in the list) are answered
         at once. A key that needs the job before then reads it where it is (see ``_job``)."""
+        if not self.workspace_complete:
+            return  # asked again once the detail is mounted
         if self.model.job is not None or self.model.pending_id is None:
             return
         if "fieldkit.jobs.models" in sys.modules:  # already imported: the rest is quick
