@@ -11,6 +11,8 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from fieldkit.text.words import preset_problems
+
 if TYPE_CHECKING:
     from fieldkit.jobs.store import JobStore
 
@@ -140,15 +142,9 @@ def saved_on_link(saved: Any, **more: Any) -> dict[str, Any]:
 def warn_preset_problems(args: argparse.Namespace, problems: list[str]) -> None:
     """One line on stderr when a preset file or entry was skipped, so that a user's own preset
     that did not load is never replaced by the shipped one without a word."""
-    if not problems:
-        return
-    more = f" (and {len(problems) - 1} more)" if len(problems) > 1 else ""
-    first = " ".join(problems[0].split())
-    print(
-        f"fieldkit {getattr(args, 'command', '')}: warning: preset skipped: {first}{more}; "
-        "'fieldkit presets' lists the problems",
-        file=sys.stderr,
-    )
+    line = preset_problems(problems, "warning: preset skipped")
+    if line is not None:
+        print(f"fieldkit {getattr(args, 'command', '')}: {line}", file=sys.stderr)
 
 
 def plain_text(text: str, what: str, *, multiline: bool = False) -> str:

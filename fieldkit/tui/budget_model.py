@@ -26,6 +26,7 @@ from fieldkit.linkspec.resolve import ResolvedBudget
 from fieldkit.presets import PresetLibrary, load_presets
 from fieldkit.text import budget as lines
 from fieldkit.text.budget import fibre_data_lines
+from fieldkit.text.words import preset_problems
 from fieldkit.tui.form_fields import Notice
 
 if TYPE_CHECKING:
@@ -475,9 +476,9 @@ class BudgetModel:
         return [(n, n) for n in self.library.transceivers] + [("typed levels", TYPED)]
 
     def preset_warning(self) -> str | None:
-        """What is wrong with the shipped or the user's presets, in one line (None: nothing)."""
-        problems = self.library.problems
-        return "Preset problems: " + "; ".join(problems) if problems else None
+        """What is wrong with the shipped or the user's presets, in one line (None: nothing;
+        the one rule, :func:`fieldkit.text.words.preset_problems`)."""
+        return preset_problems(self.library.problems)
 
     def choose(self, check: str, value: str | None) -> None:
         """The application or transceiver (``check``) to check against; None: no check."""

@@ -42,7 +42,7 @@ from fieldkit.inputs import otdr_distance_m
 from fieldkit.presets import PresetLibrary, load_presets
 from fieldkit.text.locate import distance_text, result_lines, summary_line
 from fieldkit.text.route import FaultMark, RoutePoint
-from fieldkit.text.words import counted
+from fieldkit.text.words import counted, preset_problems
 from fieldkit.tui.form_fields import Column, Notice, field_name, plain_number
 
 if TYPE_CHECKING:
@@ -356,9 +356,9 @@ class FaultForm:
         return [(f"{w:g} nm", w) for w in wavelengths], value
 
     def preset_warning(self) -> str | None:
-        """The presets' first three problems in one line (None: they read cleanly)."""
-        problems = self.library.problems
-        return "Preset problems: " + "; ".join(problems[:3]) if problems else None
+        """What is wrong with the shipped or the user's presets, in one line (None: nothing;
+        the one rule, :func:`fieldkit.text.words.preset_problems`)."""
+        return preset_problems(self.library.problems)
 
     @staticmethod
     def handoff_rows(landmarks: Sequence[tuple[str, float, float]]) -> list[dict[str, str]]:
