@@ -273,16 +273,49 @@ def wavelength_nm(value: Any, what: str = "wavelength") -> float:
 def wavelength_list(value: Any, what: str = "wavelength") -> list[float]:
     """Wavelengths typed as one value or a list ("1310, 1550", "1310 1550 nm").
 
-    Commas separate wavelengths here: "1310,1550" is two wavelengths, never 1310.155 nm.
+    Commas separate wavelengths here: "1310,1550" is two wavelengths, never 1310.155 nm; so
+    does "/", as meters and data sheets write a pair ("1310/1550").
     """
     if isinstance(value, (list, tuple)):
         return [nm for v in value for nm in wavelength_list(v, what)]
     if isinstance(value, str):
-        parts = [p for p in re.split(r"[,;\s]+(?!nm\b)", value.strip()) if p]
+        parts = [p for p in re.split(r"[,;/\s]+(?!nm\b)", value.strip()) if p]
         if not parts:
             raise InputError(f"{what}: empty; type a wavelength in nm, e.g. 1310")
         return [wavelength_nm(p, what) for p in parts]
     return [wavelength_nm(value, what)]
+
+
+#: How many wavelengths one meter session measures at a time.
+MAX_WAVELENGTHS = 4
+
+
+def meter_wavelengths(text: str, what: str = "wavelengths") -> list[float]:
+    """The wavelengths a meter session tests: one to :data:`MAX_WAVELENGTHS`, each by
+    :func:`wavelength_list` (in the fibre bands; ",", "/" or spaces between), none twice
+    (within 0.5 nm), rounded to 0.001 nm."""
+    if not text.replace("/", " ").strip():
+        raise InputError(f"{what}: type at least one, e.g. 1310 1550")
+    out: list[float] = []
+    for nm in wavelength_list(text, "wavelength"):
+        if any(abs(nm - w) <= 0.5 for w in out):
+            raise InputError(f"wavelength: {nm:g} nm is listed twice")
+        out.append(round(nm, 3))
+    if len(out) > MAX_WAVELENGTHS:
+        raise InputError(f"{what}: at most {MAX_WAVELENGTHS} at a time")
+    return out
+
+
+#: The directions field: what each answer means.
+DIRECTION_WORDS = {"1": "A→B", "2": "both"}
+
+
+def directions(text: str, what: str = "directions") -> list[str]:
+    """How many directions each fibre is measured in: ``1`` (A->B) or ``2`` (A->B, B->A)."""
+    value = text.strip()
+    if value not in DIRECTION_WORDS:
+        raise InputError(f"{what}: 1 (A->B only) or 2 (both directions)")
+    return ["A->B"] if value == "1" else ["A->B", "B->A"]
 
 
 def item_count(value: Any, what: str) -> int:

@@ -45,9 +45,8 @@ CellKey = tuple[int, float, str]  # (fibre, wavelength nm, direction)
 Severity = Literal["information", "warning", "error"]  # of a notification
 ColumnKey = tuple[float, str]  # (wavelength nm, direction)
 
-DIRECTION_WORDS = {"1": "A→B", "2": "both"}
-#: How many wavelengths one session measures at a time.
-MAX_WAVELENGTHS = 4
+DIRECTION_WORDS = inputs.DIRECTION_WORDS
+MAX_WAVELENGTHS = inputs.MAX_WAVELENGTHS
 
 _ids = _counter(1)
 #: A reading still being typed: a sign, digits, one decimal point or comma.
@@ -173,28 +172,6 @@ def verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict, *, short
     if short:
         return f"{head} {word} {verdict.margin_db:+.2f}"
     return f"{head} {word}, margin {verdict.margin_db:+.2f} dB"
-
-
-def parse_wavelengths(text: str) -> list[float]:
-    """The wavelengths field: one to four, in the fibre bands
-    (:func:`fieldkit.inputs.wavelength_list`), none twice; "/" separates like a comma."""
-    if not text.replace("/", " ").strip():
-        raise InputError("wavelengths: type at least one, e.g. 1310 1550")
-    out: list[float] = []
-    for nm in inputs.wavelength_list(text.replace("/", " "), "wavelength"):
-        if any(abs(nm - w) <= 0.5 for w in out):
-            raise InputError(f"wavelength: {nm:g} nm is listed twice")
-        out.append(round(nm, 3))
-    if len(out) > MAX_WAVELENGTHS:
-        raise InputError(f"wavelengths: at most {MAX_WAVELENGTHS} at a time")
-    return out
-
-
-def parse_directions(text: str) -> list[str]:
-    value = text.strip()
-    if value not in DIRECTION_WORDS:
-        raise InputError("directions: 1 (A->B only) or 2 (both directions)")
-    return ["A->B"] if value == "1" else ["A->B", "B->A"]
 
 
 # -- the save queue ----------------------------------------------------------------------------
@@ -455,7 +432,7 @@ class MeterSession:
 
     def set_wavelengths(self, text: str) -> bool:
         """True when the wavelengths changed (the grid is rebuilt)."""
-        wavelengths = parse_wavelengths(text)
+        wavelengths = inputs.meter_wavelengths(text)
         if wavelengths == self.wavelengths:
             return False
         active = self.active_column
@@ -474,7 +451,7 @@ class MeterSession:
         return True
 
     def set_directions(self, text: str) -> bool:
-        directions = parse_directions(text)
+        directions = inputs.directions(text)
         if directions == self.directions:
             return False
         active = self.active_column
@@ -1101,6 +1078,5 @@ __all__ = [
     "cell_mark",
     "fit",
     "meter_tallies",
-    "parse_wavelengths",
     "verdict_words",
 ]

@@ -24,6 +24,7 @@ from fieldkit.actions.meter import (
 )
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError
+from fieldkit.inputs import meter_wavelengths
 from fieldkit.jobs.models import Job, now
 from fieldkit.text.layout import NBSP
 from fieldkit.tui.meter_session import (
@@ -31,7 +32,6 @@ from fieldkit.tui.meter_session import (
     MeterSession,
     SaveQueue,
     cell_mark,
-    parse_wavelengths,
 )
 
 DETAILS = ReferenceDetails(by="Tester")
@@ -138,12 +138,12 @@ def test_a_reference_the_field_cannot_read_is_not_used() -> None:
 
 def test_set_up_fields_refuse_nonsense_naming_the_field() -> None:
     with pytest.raises(InputError, match="twice"):
-        parse_wavelengths("1310 1310")
+        meter_wavelengths("1310 1310")
     with pytest.raises(InputError, match="fibre bands"):
-        parse_wavelengths("1.31")  # a slipped unit: 1.31 nm
+        meter_wavelengths("1.31")  # a slipped unit: 1.31 nm
     with pytest.raises(InputError, match="at most 4"):
-        parse_wavelengths("850 1300 1310 1490 1550")
-    assert parse_wavelengths("1310/1550") == [1310.0, 1550.0]
+        meter_wavelengths("850 1300 1310 1490 1550")
+    assert meter_wavelengths("1310/1550") == [1310.0, 1550.0]
     s = MeterSession()
     with pytest.raises(InputError, match="fibres"):
         s.set_fibres("6913")  # more than the largest cables made (6,912; common practice)
