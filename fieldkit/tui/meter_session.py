@@ -35,7 +35,8 @@ from fieldkit.calc.units import InputError
 from fieldkit.jobs.counting import Count, Tally, cell_count, fibre_count
 from fieldkit.jobs.models import now, result_in_doubt
 from fieldkit.jobs.today import counted
-from fieldkit.text.layout import NBSP
+from fieldkit.text import meter as meter_text
+from fieldkit.text.meter import cell_mark, fit, verdict_words
 from fieldkit.text.numbers import arrow, minus
 
 if TYPE_CHECKING:
@@ -122,56 +123,6 @@ def meter_tallies(
     for (w, _fibre), counts in per_fibre.items():
         out[w].add(fibre_count(counts))
     return out
-
-
-def together(words: str) -> str:
-    """``words`` a wrap must not part (no-break spaces; the summary is shown through
-    :class:`fieldkit.tui.wrapped.Wrapped`)."""
-    return words.replace(" ", NBSP)
-
-
-def fit(width: int, *choices: str) -> str:
-    """The first of ``choices`` no wider than ``width`` (0: no limit); else the last."""
-    return next((c for c in choices if not width or len(c) <= width), choices[-1])
-
-
-#: The mark beside a loss and its colour, by verdict: the verdict reads without colour too.
-MARKS: dict[ref.Status, tuple[str, str]] = {
-    ref.Status.PASS: (" ", "green"),
-    ref.Status.FAIL: ("✗", "bold red"),
-    ref.Status.REFERENCE_PROBLEM: ("!", "bold yellow"),
-    ref.Status.NO_LIMIT: (" ", ""),
-}
-#: Beside the verdict's mark when the reference of the reading drifted at its recheck.
-DOUBT_MARK = "?"
-
-
-def cell_mark(loss_db: float, status: ref.Status, in_doubt: bool) -> tuple[str, str]:
-    """A grid cell's text and style: the loss, the verdict's mark, and "?" when in doubt.
-
-    In doubt keeps the verdict's mark beside the "?" (``3.50✗?``): a failing fibre measured
-    against a drifted reference still shows that it failed.
-    """
-    mark, style = MARKS[status]
-    if in_doubt:
-        mark += DOUBT_MARK
-        style = style if status in (ref.Status.FAIL, ref.Status.REFERENCE_PROBLEM) else "yellow"
-    return f"{loss_db:6.2f}{mark:<2}", style
-
-
-def verdict_words(fibre: int, column: GridColumn, verdict: ref.Verdict, *, short: bool) -> str:
-    """What the reading came to; ``short``: in one line of 42 columns (a phone terminal)."""
-    head = f"fibre {fibre} {column.heading}: {verdict.loss_db:.2f} dB"
-    if verdict.status is ref.Status.REFERENCE_PROBLEM:
-        if short:
-            return f"{head} negative: bad reference? Clean, re-reference."
-        return f"{head} — negative: a reference problem, not a good fibre. Clean, re-reference."
-    if verdict.margin_db is None:
-        return f"{head} (no limit)"
-    word = "pass" if verdict.status is ref.Status.PASS else "FAIL"
-    if short:
-        return f"{head} {word} {verdict.margin_db:+.2f}"
-    return f"{head} {word}, margin {verdict.margin_db:+.2f} dB"
 
 
 # -- the save queue ----------------------------------------------------------------------------
@@ -598,7 +549,7 @@ class MeterSession:
             replace(details, set_at=current.set_at),
         )
         return Entered(
-            verdict_words(self.fibre, column, verdict, short=short), negative, key, change
+            verdict_words(self.fibre, column.heading, verdict, short=short), negative, key, change
         )
 
     def problem_words(self, *, short: bool = False, besides: str = "") -> str | None:
@@ -992,77 +943,41 @@ class MeterSession:
 
     # -- the summary ---------------------------------------------------------------------------
     def save_words(self, open_key: str) -> str:
-        if self.job_id is None:
-            return f"{open_key}: choose a job to save into"
-        pending = self.saves.unsaved
-        if self.saves.error:
-            return f"NOT SAVED ({pending} waiting): {self.saves.error}"
-        where = f"Saving into {self.link_label}"
-        if pending:
-            return f"{where}: {pending} waiting"
-        if self.saves.saved_at is None:
-            return where  # nothing new typed yet
-        return f"{where}: saved {self.saves.saved_at.strftime('%H:%M:%S')}"
+        """Where the readings go and how their saving stands (:func:`text.meter.save_line`)."""
+        return meter_text.save_line(
+            None if self.job_id is None else self.link_label,
+            pending=self.saves.unsaved,
+            error=self.saves.error,
+            saved_at=self.saves.saved_at,
+            open_key=open_key,
+        )
 
     def summary_lines(self, *, width: int, open_key: str, at: datetime | None = None) -> list[str]:
-        """The summary: per wavelength the tally and the worst fibres, whether the readings are
-        saved, the references in use. ``width``: the lines fit it (0: no limit)."""
+        """The summary (:func:`fieldkit.text.meter.summary_lines`) of the fibres, wavelengths
+        and directions set up: readings, limits, tallies by the one counting rule, references."""
         readings = [
             (fibre, w, d, cell.loss_db)
             for (fibre, w, d), cell in self.cells.items()
             if fibre <= self.fibres and w in self.wavelengths and d in self.directions
         ]
         limits = {w: self.limit_db(w) for w in self.wavelengths}
-        lines: list[str] = []
-        summaries = {s.wavelength_nm: s for s in ref.summarise(readings, limits, worst_count=3)}
-        tallies = meter_tallies(self.cells, limits, self.fibres, self.directions)
-        for w in self.wavelengths:
-            s = summaries.get(w)
-            limit = limits[w]
-            limit_words = f"limit {limit:.2f} dB" if limit is not None else "(no limit)"
-            if s is None:
-                lines.append(f"{w:g} nm {limit_words}: no readings")
-                continue
-            tally = tallies[w]
-            tested = f"{s.fibres}/{self.fibres}"
-            # Every count (fieldkit.jobs.counting), its number and words kept together; where
-            # the line is narrow the zero counts go (what is left still adds up), and where it
-            # is narrower still the counts go on a line of their own.
-            every = ", ".join(together(words) for _, words in tally.parts())
-            some = ", ".join(together(words) for _, words in tally.parts(short=True, zeros=False))
-            one_line = fit(
-                width,
-                f"{w:g} nm {limit_words}: {tested}, {every}",
-                f"{w:g} {limit_words} {tested}: {some}",
-                "",
-            )
-            if one_line:
-                lines.append(one_line)
-            else:
-                lines.append(f"{w:g} nm {limit_words}: {tested}")
-                lines.append(f"  {some}")
-            # A negative loss is a reference problem, not a low loss: never among the worst.
-            worst = [f"fibre {f} {loss:.2f} dB" for f, loss in s.worst if loss >= 0]
-            while len(worst) > 1 and width and len("  worst: " + ", ".join(worst)) > width:
-                worst.pop()
-            if worst:
-                lines.append("  worst: " + ", ".join(together(x) for x in worst))
-        # Whether the readings are safe in a job matters most: first, so a phone terminal's
-        # five rows show it however many lines the counts take.
-        lines.insert(0, self.save_words(open_key))
-        stamp = at or now()
-        refs = []
-        for (w, d), current in sorted(self.refs.items()):
-            if w not in self.wavelengths or d not in self.directions:
-                continue
-            minutes = int((stamp - current.set_at).total_seconds() // 60)
-            arrow = "" if len(self.directions) == 1 else (" →" if d == "A->B" else " ←")
-            doubt = " DRIFTED" if current.in_doubt else ""
-            age = together(f"set {minutes} min ago")
-            refs.append(f"  {w:g}{arrow} {current.level_dbm:.2f} dBm, {age}{doubt}")
-        lines.append("References:" if refs else "References: none set")
-        lines += refs
-        return lines
+        references = [
+            meter_text.ReferenceShown(w, d, r.level_dbm, r.set_at, r.in_doubt)
+            for (w, d), r in sorted(self.refs.items())
+            if w in self.wavelengths and d in self.directions
+        ]
+        return meter_text.summary_lines(
+            width=width,
+            save=self.save_words(open_key),
+            wavelengths=self.wavelengths,
+            fibres=self.fibres,
+            directions=self.directions,
+            readings=readings,
+            limits_db=limits,
+            tallies=meter_tallies(self.cells, limits, self.fibres, self.directions),
+            references=references,
+            at=at or now(),
+        )
 
 
 __all__ = [
