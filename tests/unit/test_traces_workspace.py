@@ -234,3 +234,21 @@ def test_the_handoff_carries_the_chosen_links_closures() -> None:
     (name, otdr_m, route_m), *rest = s.handoff().landmarks  # the break, with JC-7
     assert name == "JC-7" and otdr_m == pytest.approx(1500.0, abs=2.0) and route_m == 1480.0
     assert rest == []  # no event near 3900 m of route but the end, which is no closure
+
+
+def test_the_demo_splice_at_jc3_is_its_closure(demo: tuple[JobStore, Path]) -> None:
+    """The demo's JC-3 Market Street (route 1150 m; its splice 1162 m along the fibre, a 1 %
+    helix: traces.demo) is the closure by the one rule, and the break's hand-off carries it."""
+    from fieldkit.actions.traces import closures_of
+
+    store, folder = demo
+    s = TraceSession()
+    s.open(str(folder / "F07_1550_AB.sor"), str(folder / "F07_1550_BA.sor"))
+    s.use_closures(closures_of(store, s.offered_link(links_named(store, s.names()))))
+    assert [c.name for c in s.closures] == ["JC-3 Market Street"]
+    kinds = {row[0]: row[2] for row in s.rows(wide=True)}
+    splice = next(e for e in s.marks() if abs(e.distance_m - 1162.0) < 5.0)
+    assert kinds[str(splice.number)] == "splice"  # not "splice/bend": the closure is there
+    name, otdr_m, route_m = s.handoff().landmarks[0]
+    assert name == "JC-3 Market Street" and route_m == 1150.0
+    assert otdr_m == pytest.approx(1162.0, abs=3.0)
