@@ -12,9 +12,11 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import datetime
 
+from fieldkit import safety
 from fieldkit.calc import reference as ref
 from fieldkit.jobs.counting import Tally
 from fieldkit.text.layout import NBSP
+from fieldkit.text.words import counted
 
 #: The mark beside a loss and its colour, by verdict: the verdict reads without colour too.
 MARKS: dict[ref.Status, tuple[str, str]] = {
@@ -166,3 +168,56 @@ def summary_lines(
     lines.append("References:" if refs else "References: none set")
     lines += refs
     return lines
+
+
+def set_reference_note(heading: str, *, narrow: bool) -> str:
+    """The note while column ``heading`` has no reference: set one, with the light caution
+    (setting a reference means handling live cords)."""
+    if narrow:
+        return f"Set Ref {heading}, then type readings.\n⚠ {safety.INVISIBLE_LIGHT_SHORT}"
+    return (
+        f"Set the reference for {heading} (Ref), then type readings.\n"
+        f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)"
+    )
+
+
+def reference_note(
+    method: ref.Method,
+    *,
+    narrow: bool,
+    budget_limit_db: float | None,
+    drifted: bool,
+    warnings: Sequence[str],
+) -> str:
+    """The note under the set-up while a reference is set: the light caution first (readings
+    mean live cords all session), a drift, the reference's warnings, then the method's end
+    connections and a limit taken from the budget (``budget_limit_db``; None: typed or none)."""
+    # The method's TIA letter is in the Method field's tooltip; a phone has one line here.
+    name = method.value if narrow else method.label
+    line = f"{name}: {method.end_connections} of 2 end connections counted"
+    if budget_limit_db is not None:
+        left_out = 2 - method.end_connections
+        # On a phone terminal the limit goes on its own line (each fits 42 columns).
+        line += "\n" if narrow else "; "
+        line += f"limit {budget_limit_db:.2f} dB"
+        if left_out:
+            # "end" on a phone: the line above says which connections.
+            what = "connection" if narrow else "end connection"
+            line += f": budget less {counted(left_out, what)}"
+        else:
+            line += " from the budget"
+    # A drifted reference and the warnings about this one come before the method, so they
+    # are never the part cut off.
+    lines = [f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"]
+    if drifted:
+        lines.append("This reference drifted at its recheck: set a new one and retest.")
+    lines += [f"⚠ {w}" for w in warnings]
+    lines.append(line)
+    return "\n".join(lines)
+
+
+def recheck_words(heading: str, drift: ref.Drift, *, short: bool = False) -> str:
+    """What a reference recheck found; ``short``: one line of 42 columns."""
+    if short and not drift.within:
+        return f"{heading}: drift {drift.drift_db:+.2f} > ±{drift.tolerance_db:.2f} dB: retest"
+    return f"{heading}: {drift.message}"

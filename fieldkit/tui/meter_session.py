@@ -20,7 +20,7 @@ from datetime import datetime
 from itertools import count as _counter
 from typing import TYPE_CHECKING, Any, Literal
 
-from fieldkit import inputs, safety
+from fieldkit import inputs
 from fieldkit.actions import meter as meter_log
 from fieldkit.actions.meter import (
     ClearReading,
@@ -269,10 +269,7 @@ class RecheckDone:
     def words(self, column: GridColumn, *, short: bool = False) -> str:
         """What the recheck found; ``short``: one line of 42 columns (under a standing
         problem on a phone terminal)."""
-        d = self.drift
-        if short and not d.within:
-            return f"{column.heading}: drift {d.drift_db:+.2f} > ±{d.tolerance_db:.2f} dB: retest"
-        return f"{column.heading}: {d.message}"
+        return meter_text.recheck_words(column.heading, self.drift, short=short)
 
 
 def history_lines(link: Link, fibre: int) -> list[str]:
@@ -681,18 +678,7 @@ class MeterSession:
         column = self.active_column
         current = self.current_reference
         if current is None:
-            # Setting a reference means handling live cords: the caution goes with the prompt.
-            if narrow:
-                return (
-                    f"Set Ref {column.heading}, then type readings.\n"
-                    f"⚠ {safety.INVISIBLE_LIGHT_SHORT}",
-                    None,
-                )
-            return (
-                f"Set the reference for {column.heading} (Ref), then type readings.\n"
-                f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)",
-                None,
-            )
+            return meter_text.set_reference_note(column.heading, narrow=narrow), None
         source_dbm = None
         source_error: str | None = None
         if source_text.strip():
@@ -709,31 +695,18 @@ class MeterSession:
             wavelength_nm=column.wavelength_nm,
             launch_condition=launch,
         )
-        method = self.method
         budget = self.budget_limits.get(column.wavelength_nm)
-        # The method's TIA letter is in the Method field's tooltip; a phone has one line here.
-        name = method.value if narrow else method.label
-        line = f"{name}: {method.end_connections} of 2 end connections counted"
-        if budget and column.wavelength_nm not in self.typed_limits:
-            left_out = 2 - method.end_connections
-            # On a phone terminal the limit goes on its own line (each fits 42 columns).
-            line += "\n" if narrow else "; "
-            line += f"limit {budget[0]:.2f} dB"
-            if left_out:
-                # "end" on a phone: the line above says which connections.
-                what = "connection" if narrow else "end connection"
-                line += f": budget less {counted(left_out, what)}"
-            else:
-                line += " from the budget"
-        # The note has two or three rows: a drifted reference and the warnings about this one
-        # come first, so they are never the part cut off.
-        # Readings mean handling live cords all session: the caution stays, first (42 columns).
-        lines = [f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"]
-        if current.in_doubt:
-            lines.append("This reference drifted at its recheck: set a new one and retest.")
-        lines += [f"⚠ {w}" for w in warnings]
-        lines.append(line)
-        return "\n".join(lines), source_error
+        from_budget = (
+            budget[0] if budget and column.wavelength_nm not in self.typed_limits else None
+        )
+        note = meter_text.reference_note(
+            self.method,
+            narrow=narrow,
+            budget_limit_db=from_budget,
+            drifted=current.in_doubt,
+            warnings=warnings,
+        )
+        return note, source_error
 
     # -- recheck -------------------------------------------------------------------------------
     def recheck_asked(self) -> tuple[GridColumn, float, float]:

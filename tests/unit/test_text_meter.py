@@ -78,3 +78,38 @@ def test_the_save_line_says_whether_readings_are_safe() -> None:
 def test_a_failing_cell_in_doubt_keeps_its_fail_mark() -> None:
     assert cell_mark(3.5, ref.Status.FAIL, in_doubt=True) == ("  3.50✗?", "bold red")
     assert cell_mark(0.3, ref.Status.PASS, in_doubt=True) == ("  0.30 ?", "yellow")
+
+
+def test_the_reference_note_counts_the_methods_end_connections() -> None:
+    """IEC 61280-4-1 / -4-2: a one-cord reference includes both end connections in the loss,
+    two-cord one, three-cord none (TIA-526-14 Methods B, A, C)."""
+    from fieldkit import safety
+    from fieldkit.text.meter import reference_note, set_reference_note
+
+    one = reference_note(
+        ref.Method.ONE_CORD, narrow=False, budget_limit_db=2.1, drifted=False, warnings=[]
+    )
+    first, last = one.split("\n")
+    assert first == f"⚠ {safety.INVISIBLE_LIGHT_SHORT}"  # the light caution stays, first
+    assert "2 of 2 end connections counted" in last and "limit 2.10 dB from the budget" in last
+    three = reference_note(
+        ref.Method.THREE_CORD, narrow=True, budget_limit_db=2.1, drifted=True, warnings=["w"]
+    ).split("\n")
+    assert three[1].startswith("This reference drifted") and three[2] == "⚠ w"
+    assert "0 of 2 end connections counted" in three[3]
+    assert three[4] == "limit 2.10 dB: budget less 2 connections"
+    typed = reference_note(
+        ref.Method.TWO_CORD, narrow=False, budget_limit_db=None, drifted=False, warnings=[]
+    )
+    assert typed.endswith("1 of 2 end connections counted")  # a typed limit: no budget words
+    assert set_reference_note("1310 A→B", narrow=True).startswith("Set Ref 1310 A→B")
+    assert all(len(x) <= 42 for x in set_reference_note("1310 A→B", narrow=True).split("\n"))
+
+
+def test_a_drift_beyond_its_tolerance_says_retest_in_42_columns() -> None:
+    from fieldkit.text.meter import recheck_words
+
+    # 0.30 dB drift against a ±0.10 dB tolerance (a common-practice figure)
+    words = recheck_words("1310 A→B", ref.Drift(0.3, 0.1, False), short=True)
+    assert words == "1310 A→B: drift +0.30 > ±0.10 dB: retest" and len(words) <= 42
+    assert "within" in recheck_words("1310 A→B", ref.Drift(0.05, 0.1, True))
