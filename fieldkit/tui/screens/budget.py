@@ -12,15 +12,12 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
-from textual.screen import Screen
-from textual.widgets import Button, Input, OptionList, Select, Static
+from textual.widgets import Button, Input, OptionList, Select
 
 from fieldkit import safety
-from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 from fieldkit.tui.budget_model import (
     ADD_KINDS,
@@ -37,7 +34,9 @@ from fieldkit.tui.typed import fieldkit_app
 from fieldkit.tui.widgets.caution import Caution
 from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.link_items import LinkItems, choice_row, field_row
+from fieldkit.tui.widgets.result_lines import ResultLines
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+from fieldkit.tui.workspaces import WorkspaceScreen
 
 #: The result panels after the budget itself: id, title.
 _PANELS = (
@@ -54,7 +53,7 @@ def _button(label: str, button_id: str, use: str) -> Button:
     return Button(label, id=button_id, compact=True, tooltip=keys.tip("budget", use))
 
 
-class BudgetScreen(Screen[None]):
+class BudgetScreen(WorkspaceScreen):
     """Build a link, read its budget per wavelength, check an application or a transceiver."""
 
     CSS_PATH = "budget.tcss"
@@ -91,11 +90,11 @@ class BudgetScreen(Screen[None]):
                 yield _button(f"Save to job {keys.hint('save')}", "save", "save")
                 yield _button(f"Open saved {keys.hint('open')}", "open", "open")
                 yield _button(f"New {keys.hint('new')}", "new", "new")
-            yield Static("", id="budget-saved", classes="field-note", markup=False)
+            yield ResultLines(id="budget-saved", classes="field-note")
             with Vertical(classes="two-col"):
                 with Vertical(classes="col"):
                     yield LinkItems(self.model)
-                    yield Static("", id="budget-summary", markup=False)
+                    yield ResultLines(id="budget-summary")
                     with Vertical(id="settings-panel", classes="panel") as panel:
                         panel.border_title = "Wavelengths and checks"
                         for label, field_id, hint, tooltip in SETTINGS:
@@ -108,13 +107,13 @@ class BudgetScreen(Screen[None]):
                 with Vertical(classes="col"):
                     with Vertical(id="result-panel", classes="panel") as panel:
                         panel.border_title = "Budget"
-                        yield Static("", id="budget-problem", classes="field-error", markup=False)
-                        yield Static("", id="budget-waiting", classes="field-note")
-                        yield Static("", id="budget-out", classes="result", markup=False)
+                        yield ResultLines(id="budget-problem", classes="field-error")
+                        yield ResultLines(id="budget-waiting", classes="field-note")
+                        yield ResultLines(id="budget-out", classes="result")
                     for panel_id, title in _PANELS:
                         with Vertical(id=f"{panel_id}-panel", classes="panel") as panel:
                             panel.border_title = title
-                            yield Static("", id=f"{panel_id}-out", classes="result", markup=False)
+                            yield ResultLines(id=f"{panel_id}-out", classes="result")
         # Outside the scrolling body, above the keys: short and whole at 80x24, in view at 44x22
         # (one line with "more"; the full caution on Enter, a click and hover).
         yield Caution(
@@ -147,8 +146,8 @@ class BudgetScreen(Screen[None]):
         self._put("#fibre-data-out", "\n".join(self.model.fibre_data_lines(self.outcome)))
 
     def _error(self, field_id: str, message: str) -> None:
-        error = self.query_one(f"#{field_id}-error", Static)
-        error.update(message)
+        error = self.query_one(f"#{field_id}-error", ResultLines)
+        error.show_lines(message)
         error.display = bool(message)
 
     # -- item actions -----------------------------------------------------------------------
@@ -235,8 +234,8 @@ class BudgetScreen(Screen[None]):
         self.outcome = outcome = self.model.evaluate()
         for field_id, message in outcome.field_errors.items():
             self._error(field_id, message)
-        problem = self.query_one("#budget-problem", Static)
-        waiting = self.query_one("#budget-waiting", Static)
+        problem = self.query_one("#budget-problem", ResultLines)
+        waiting = self.query_one("#budget-waiting", ResultLines)
         # What to type, or what is wrong, is said once: on the summary line under the items.
         problem.display = waiting.display = False
         self._panels_shown(outcome.report is not None)
@@ -244,12 +243,12 @@ class BudgetScreen(Screen[None]):
             self._show(outcome)
             return
         # Say what to type (calmly) or what is wrong; keep every field as it is.
-        waiting.update(outcome.prompt or "")
-        problem.update(outcome.problem or "")
+        waiting.show_lines(outcome.prompt or "")
+        problem.show_lines(outcome.problem or "")
         for out_id in _OUTPUTS:
-            self.query_one(out_id, Static).update("")
-        summary = self.query_one("#budget-summary", Static)
-        summary.update(outcome.message or "")
+            self.query_one(out_id, ResultLines).show_lines("")
+        summary = self.query_one("#budget-summary", ResultLines)
+        summary.show_lines(outcome.message or "")
         summary.set_class(outcome.prompt is not None, "-waiting")
         summary.set_class(outcome.problem is not None, "-problem")
 
@@ -272,18 +271,14 @@ class BudgetScreen(Screen[None]):
         if current is not Select.NULL and current in [v for _, v in choices]:
             select.value = current
 
-    def _put(self, selector: str, text: str) -> Static:
-        """Show ``text`` in a result Static, wrapped here to its width: a panel's own wrap would
-        part a number from its unit ("0.30 / dB")."""
-        out = self.query_one(selector, Static)
-        out.update(Text(fit(text, out.content_size.width or None)))
-        return out
+    def _put(self, selector: str, text: str) -> None:
+        self.query_one(selector, ResultLines).show_fitted(text)
 
     def _show(self, outcome: Outcome) -> None:
-        width = self.query_one("#budget-out", Static).content_size.width or None
+        width = self.query_one("#budget-out", ResultLines).content_size.width or None
         for panel_id, text in self.model.result_texts(outcome, width).items():
             self._put(f"#{panel_id}-out" if panel_id != "summary" else "#budget-summary", text)
-        summary = self.query_one("#budget-summary", Static)
+        summary = self.query_one("#budget-summary", ResultLines)
         summary.set_class(False, "-waiting").set_class(False, "-problem")
 
     def on_resize(self) -> None:
@@ -297,8 +292,8 @@ class BudgetScreen(Screen[None]):
 
     def _say(self, text: str) -> None:
         """The line under Save and Open: what was saved or opened (hidden when empty)."""
-        saved = self.query_one("#budget-saved", Static)
-        saved.update(text)
+        saved = self.query_one("#budget-saved", ResultLines)
+        saved.show_lines(text)
         saved.display = bool(text)
 
     def _notice(self, notice: Notice) -> bool:

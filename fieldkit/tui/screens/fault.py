@@ -12,17 +12,14 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
-from textual.screen import Screen
 from textual.widgets import Button, Input, Label, Select, Static
 
 from fieldkit import safety
 from fieldkit.calc.locate import OUTPUT_UNITS
 from fieldkit.calc.units import InputError
-from fieldkit.text.layout import fit
 from fieldkit.tui import keys
 from fieldkit.tui.fault_model import (
     FIELDS,
@@ -41,8 +38,10 @@ from fieldkit.tui.widgets.key_footer import KeyFooter
 from fieldkit.tui.widgets.number_field import NumberField
 from fieldkit.tui.widgets.point_list import PointList
 from fieldkit.tui.widgets.quantity_field import QuantityField
+from fieldkit.tui.widgets.result_lines import ResultLines
 from fieldkit.tui.widgets.route_diagram import RouteDiagram
 from fieldkit.tui.widgets.workspace_bar import WorkspaceBar
+from fieldkit.tui.workspaces import WorkspaceScreen
 
 if TYPE_CHECKING:
     from fieldkit.traces.session import FaultHandoff
@@ -78,7 +77,7 @@ def _select(label: str, options: list[tuple[str, Any]], value: Any, **kw: Any) -
         yield Select(options, value=value, compact=True, allow_blank=False, **kw)
 
 
-class FaultScreen(Screen[None]):
+class FaultScreen(WorkspaceScreen):
     """Where is the fault? Type the reading; landmarks and slack refine it."""
 
     CSS_PATH = "fault.tcss"
@@ -89,13 +88,14 @@ class FaultScreen(Screen[None]):
         super().__init__()
         self.form = FaultForm()
         self._shown: tuple[list[dict[str, Any]], list[dict[str, Any]]] = ([], [])
+        self._computed: tuple[Any, ...] | None = None  # what the result shown was computed from
 
     # -- layout -----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
         self.form.config_dir = fieldkit_app(self).config_dir
         fibres, fibre_name = self.form.fibre_choices()
         yield WorkspaceBar()
-        yield Static("", id="fault-summary")
+        yield ResultLines(id="fault-summary")
         # Under the result's title line, outside the scrolling body: never pushed off the
         # screen by the result or the route. One line where rows are scarce, never gone.
         yield Caution(
@@ -163,11 +163,11 @@ class FaultScreen(Screen[None]):
                     panel.border_title = "Where to search"
                     units = [(u, u) for u in OUTPUT_UNITS]
                     yield from _select("Show in", units, "m", id="fault-unit")
-                    yield Static("", id="fault-result", classes="result")
+                    yield ResultLines(id="fault-result", classes="result")
                 with Vertical(classes="panel", id="fault-route-panel") as panel:
                     panel.border_title = "Route"
                     yield RouteDiagram(id="fault-diagram")
-                yield Static("", id="fault-warnings", classes="result")
+                yield ResultLines(id="fault-warnings", classes="result")
                 # The visual fault locator is used with this workspace (to find the break the
                 # OTDR points to): its caution after the result, one line where rows are scarce.
                 yield Caution(
@@ -183,14 +183,10 @@ class FaultScreen(Screen[None]):
                         compact=True,
                         variant="primary",
                     )
-                    yield Static("", id="fault-saved", classes="field-note")
+                    yield ResultLines(id="fault-saved", classes="field-note")
         yield KeyFooter()
 
     def on_mount(self) -> None:
-        for field in self.query(QuantityField):
-            field.show_error("")
-        for number in self.query(NumberField):
-            number.show_error("")
         self._fibre_chosen()
         self._cable_chosen()
         if warning := self.form.preset_warning():
@@ -289,15 +285,20 @@ class FaultScreen(Screen[None]):
 
     def recompute(self) -> None:
         landmarks, slack, row_problem = self._rows()
-        built = self.form.update(self._typed(), landmarks, slack)
+        typed = self._typed()
+        asked = (typed, landmarks, slack, row_problem)
+        if asked == self._computed:  # a field set in code, then its Changed message
+            return
+        self._computed = asked
+        built = self.form.update(typed, landmarks, slack)
         if row_problem is not None:
             self.form.location, self.form.problem = None, row_problem
         if self.form.changed:
             # A "saved" line says nothing about what was typed since.
-            self.query_one("#fault-saved", Static).update("")
+            self.query_one("#fault-saved", ResultLines).show_lines("")
         for key, message in built.errors.items():
             widget = self.query_one(f"#fault-{key}-field")
-            if isinstance(widget, (QuantityField, NumberField)):
+            if isinstance(widget, QuantityField):
                 widget.show_error(message)
         self._show(landmarks, slack)
 
@@ -310,13 +311,12 @@ class FaultScreen(Screen[None]):
     def _show(self, landmarks: list[dict[str, Any]], slack: list[dict[str, Any]]) -> None:
         shown = self.form.shown(self.unit, landmarks, slack)
         self._shown = (landmarks, slack)
-        result = self.query_one("#fault-result", Static)
-        result.update(Text(fit(shown.result, result.content_size.width or None)))
-        warnings = self.query_one("#fault-warnings", Static)
-        warnings.update(Text(fit("\n".join(shown.warnings), warnings.content_size.width or None)))
+        self.query_one("#fault-result", ResultLines).show_fitted(shown.result)
+        warnings = self.query_one("#fault-warnings", ResultLines)
+        warnings.show_fitted("\n".join(shown.warnings))
         warnings.display = bool(shown.warnings)
-        summary = self.query_one("#fault-summary", Static)
-        summary.update(shown.summary)
+        summary = self.query_one("#fault-summary", ResultLines)
+        summary.show_lines(shown.summary)
         summary.set_class(shown.problem, "-problem")
         self.query_one("#fault-diagram", RouteDiagram).show(shown.points, shown.fault, self.unit)
         # Nothing typed yet: no route (and no scale) to draw.

@@ -11,11 +11,12 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.message import Message
-from textual.widgets import Button, Input, Label, OptionList, Select, Static
+from textual.widgets import Button, Input, Label, OptionList, Select
 
 from fieldkit.tui import keys
 from fieldkit.tui.budget_model import KINDS, BudgetModel, extra_shown, item_errors, item_text
 from fieldkit.tui.widgets.quantity_field import QUANTITY_CHARS
+from fieldkit.tui.widgets.result_lines import ResultLines
 
 __all__ = ["ItemField", "LinkItems", "choice_row", "field_row"]
 
@@ -53,7 +54,7 @@ def field_row(
                 id=field_id,
                 tooltip=tooltip,
             )
-        yield Static("", classes="field-error", id=f"{field_id}-error", markup=False)
+        yield ResultLines(classes="field-error", id=f"{field_id}-error")
 
 
 def choice_row(label: str, select_id: str, prompt: str) -> ComposeResult:
@@ -118,8 +119,8 @@ class LinkItems(Vertical):
             for field_id, message in zip(
                 ("item-value", "item-extra"), item_errors(item), strict=True
             ):
-                error = self.query_one(f"#{field_id}-error", Static)
-                error.update(message)
+                error = self.query_one(f"#{field_id}-error", ResultLines)
+                error.show_lines(message)
                 error.display = bool(message)
 
     def _load(self) -> None:

@@ -7,10 +7,11 @@ from collections.abc import Callable
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.widget import Widget
-from textual.widgets import Input, Static
+from textual.widgets import Input
 
 from fieldkit.calc.units import InputError, Kind, Value, parse
 from fieldkit.tui.widgets.compact_input import compact_input
+from fieldkit.tui.widgets.result_lines import ResultLines
 
 #: What a quantity field lets through: digits, signs, separators, letters for units, µ/μ, %, /.
 QUANTITY_CHARS = r"[0-9A-Za-z .,+\-\u2212\u00b5\u03bc/%']*"
@@ -82,7 +83,7 @@ class QuantityField(Widget):
             id=field_id,
             tooltip=tooltip,
         )
-        self._error: Static | None = None
+        self._error: ResultLines | None = None
 
     def compose(self) -> ComposeResult:
         yield self._input
@@ -131,7 +132,9 @@ class QuantityField(Widget):
         if self._error is None:
             if not message:
                 return
-            self._error = Static(message, classes="field-error", markup=False)
+            self._error = ResultLines(message, classes="field-error")
             self.mount(self._error)
-        self._error.update(message)
+        # The same problem worded for the next digit ("2 needs a unit", "20 needs a unit") is
+        # drawn again without a layout of the whole screen.
+        self._error.show_lines(message)
         self._error.display = bool(message)

@@ -6,14 +6,14 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from rich.text import Text
-from textual.widgets import Static
 
 from fieldkit.text.route import FaultMark, RoutePoint, render_route, route_lines
+from fieldkit.tui.widgets.result_lines import ResultLines
 
 __all__ = ["FaultMark", "RouteDiagram", "RoutePoint", "render_route"]
 
 
-class RouteDiagram(Static):
+class RouteDiagram(ResultLines):
     """Shows :func:`render_route` at the widget's current width; the fault's line in bold."""
 
     DEFAULT_CSS = """
@@ -24,7 +24,7 @@ class RouteDiagram(Static):
     """
 
     def __init__(self, *, id: str | None = None) -> None:  # noqa: A002 - Textual's name
-        super().__init__("", id=id)
+        super().__init__(id=id)
         self._points: tuple[RoutePoint, ...] = ()
         self._fault: FaultMark | None = None
         self._unit = "m"
@@ -51,4 +51,4 @@ class RouteDiagram(Static):
             if i:
                 text.append("\n")
             text.append(line, style="bold" if fault else "")
-        self.update(text)
+        self.show_lines(text)
