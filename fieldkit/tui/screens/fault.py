@@ -89,6 +89,7 @@ class FaultScreen(WorkspaceScreen):
         self.form = FaultForm()
         self._shown: tuple[list[dict[str, Any]], list[dict[str, Any]]] = ([], [])
         self._computed: tuple[Any, ...] | None = None  # what the result shown was computed from
+        self._fields: list[tuple[str, Input | Select[Any]]] | None = None
 
     # -- layout -----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -252,22 +253,20 @@ class FaultScreen(WorkspaceScreen):
 
     # -- recomputing ------------------------------------------------------------------------
     @on(Input.Changed)
-    def _input_changed(self, event: Input.Changed) -> None:
-        self.recompute()
-
     @on(PointList.Changed)
-    def _list_changed(self, event: PointList.Changed) -> None:
+    def _input_changed(self) -> None:
         self.recompute()
 
     def _typed(self) -> dict[str, Any]:
         """Every field and choice as typed, by key (the id without ``fault-``)."""
+        if self._fields is None:  # the same widgets all along: found once, not on every key
+            found = (*self.query(Input), *self.query(Select))
+            self._fields = [(w.id[6:], w) for w in found if w.id and w.id.startswith("fault-")]
         typed: dict[str, Any] = {}
-        for widget in self.query(Input):
-            if widget.id and widget.id.startswith("fault-") and widget.value.strip():
-                typed[widget.id.removeprefix("fault-")] = widget.value
-        for select in self.query(Select):
-            if select.id and select.value is not Select.NULL:
-                typed[select.id.removeprefix("fault-")] = select.value
+        for key, widget in self._fields:
+            value = widget.value  # a choice is never blank text; a field is left out when blank
+            if value is not Select.NULL and (not isinstance(value, str) or value.strip()):
+                typed[key] = value
         return typed
 
     def _rows(self) -> tuple[list[dict[str, Any]], list[dict[str, Any]], str | None]:

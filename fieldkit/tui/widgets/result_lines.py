@@ -55,6 +55,8 @@ class ResultLines(Static):
         self.show_lines(Text(fit(text, self.content_size.width or None)))
 
     def _height_changes(self, content: str | Text) -> bool:
+        if not self.display:
+            return False  # takes no room; showing it again lays the screen out
         width = self.content_size.width
         if not width or not self.is_mounted:
             return True
