@@ -8,14 +8,16 @@ stderr, never a traceback.
 
 from __future__ import annotations
 
-import argparse
 import importlib
-import re
 import sys
 from collections.abc import Sequence
-from typing import Any
+from functools import cache
+from typing import TYPE_CHECKING, Any
 
 from fieldkit import __version__
+
+if TYPE_CHECKING:
+    import argparse
 
 #: The subcommand modules, in the order ``fieldkit --help`` lists them.
 COMMAND_MODULES: tuple[str, ...] = (
@@ -34,18 +36,28 @@ COMMAND_MODULES: tuple[str, ...] = (
 )
 
 
-class _Parser(argparse.ArgumentParser):
-    def __init__(self, *args: Any, **kwargs: Any) -> None:
-        super().__init__(*args, **kwargs)
-        # argparse reads only -5 and -5.5 as negative numbers; anything else starting with '-'
-        # is taken for an option, so `--reference -7,5` or `--length -5km` failed with "expected
-        # one argument". A '-' before a digit (or .digit / ,digit) is a value: no fieldkit
-        # option starts with a digit.
-        self._negative_number_matcher = re.compile(r"^-[.,]?\d")
+@cache
+def _parser_class() -> type[argparse.ArgumentParser]:
+    """The parser class of ``fieldkit`` and its commands. Made on first use: argparse is not
+    imported when ``fieldkit`` starts the UI without arguments (a hundredth of the start-up)."""
+    import argparse
+    import re
 
-    def error(self, message: str) -> None:  # type: ignore[override]
-        # argparse prints usage plus the message; keep it to one line that names the problem.
-        self.exit(2, f"{self.prog}: error: {message}\n")
+    class _Parser(argparse.ArgumentParser):
+        def __init__(self, *args: Any, **kwargs: Any) -> None:
+            super().__init__(*args, **kwargs)
+            # argparse reads only -5 and -5.5 as negative numbers; anything else starting
+            # with '-' is taken for an option, so `--reference -7,5` or `--length -5km` failed
+            # with "expected one argument". A '-' before a digit (or .digit / ,digit) is a
+            # value: no fieldkit option starts with a digit.
+            self._negative_number_matcher = re.compile(r"^-[.,]?\d")
+
+        def error(self, message: str) -> None:  # type: ignore[override]
+            # argparse prints usage plus the message; keep it to one line that names the
+            # problem.
+            self.exit(2, f"{self.prog}: error: {message}\n")
+
+    return _Parser
 
 
 def build_parser(modules: Sequence[str] = COMMAND_MODULES) -> argparse.ArgumentParser:
@@ -54,7 +66,8 @@ def build_parser(modules: Sequence[str] = COMMAND_MODULES) -> argparse.ArgumentP
 
 
 def _build(modules: Sequence[str]) -> tuple[argparse.ArgumentParser, set[str]]:
-    parser = _Parser(
+    parser_class = _parser_class()
+    parser = parser_class(
         prog="fieldkit",
         description="Offline field assistant for fibre-optic crews. Without a command, starts "
         "the terminal UI.",
@@ -69,7 +82,7 @@ def _build(modules: Sequence[str]) -> tuple[argparse.ArgumentParser, set[str]]:
         help="folder for settings and user presets (default: the "
         "platform config folder; or $FIELDKIT_CONFIG_DIR)",
     )
-    subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    subparsers = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=parser_class)
     for name in modules:
         importlib.import_module(name).register(subparsers)
     return parser, set(subparsers.choices)
@@ -123,45 +136,15 @@ def main(argv: Sequence[str] | None = None) -> int:
 
         make_app(data_dir=args.data_dir, config_dir=args.config_dir, welcome=True).run()
         return 0
-    # Imported here, not before the UI starts. Not pydantic: a command that starts the UI
-    # (``demo``) would import it before the first frame, where it is a tenth of the start-up;
-    # a record's ValidationError is recognised below without it.
-    from fieldkit.actions.errors import ActionError
-    from fieldkit.calc.units import InputError
-    from fieldkit.commands.common import CommandError
-    from fieldkit.text.escape import terminal
-
     try:
         status = int(args.func(args) or 0)
-    except (CommandError, InputError, ActionError) as exc:
-        # one line whatever the input: user text echoed in the message cannot break it or
-        # send control sequences to the terminal
-        print(f"fieldkit {args.command}: {terminal(exc)}", file=sys.stderr)
-        return 2
     except KeyboardInterrupt:
         return 130
-    except BrokenPipeError:
-        return 0
-    except OSError as exc:
-        # A file or folder the command could not read or write (read-only data folder, full
-        # disk, a folder where a file was expected): name it in one line, never a traceback.
-        where = f" {exc.filename}" if exc.filename else ""
-        print(
-            f"fieldkit {args.command}: cannot use{terminal(where)}: {exc.strerror or exc}",
-            file=sys.stderr,
-        )
-        return 2
     except Exception as exc:
-        # A record built from what was typed (a --by of 201 characters): the size policy's
-        # limits, named in one line like every other refusal. Such an error exists only once
-        # pydantic is imported, so it is looked up, never imported, here.
-        pydantic = sys.modules.get("pydantic")
-        if pydantic is None or not isinstance(exc, pydantic.ValidationError):
+        refused = _refused(args.command, exc)
+        if refused is None:
             raise
-        from fieldkit.jobs.jobfile import explain
-
-        print(f"fieldkit {args.command}: {terminal(explain(exc))}", file=sys.stderr)
-        return 2
+        return refused
     start_ui = getattr(args, "start_ui", None)
     if status == 0 and start_ui is not None:
         # A command (``demo``) asked for the UI once its work was done; commands never import it.
@@ -171,6 +154,45 @@ def main(argv: Sequence[str] | None = None) -> int:
             data_dir=start_ui.data_dir, config_dir=args.config_dir, start_mode=start_ui.start_mode
         ).run()
     return status
+
+
+def _refused(command: str, exc: Exception) -> int | None:
+    """Exit status 2 with one line naming the problem, for a refusal, a file or folder that
+    could not be used, or a record refused by its size policy; 0 for a closed pipe; None for
+    any other error (raised again). The error classes are imported here, once something went wrong:
+    not before a command that starts the UI (``demo``), where they are a hundredth of the
+    start-up. Not pydantic: a record's ValidationError exists only once pydantic is imported,
+    so it is looked up, never imported."""
+    from fieldkit.actions.errors import ActionError
+    from fieldkit.calc.units import InputError
+    from fieldkit.commands.common import CommandError
+    from fieldkit.text.escape import terminal
+
+    if isinstance(exc, (CommandError, InputError, ActionError)):
+        # one line whatever the input: user text echoed in the message cannot break it or
+        # send control sequences to the terminal
+        print(f"fieldkit {command}: {terminal(exc)}", file=sys.stderr)
+        return 2
+    if isinstance(exc, BrokenPipeError):
+        return 0
+    if isinstance(exc, OSError):
+        # A file or folder the command could not read or write (read-only data folder, full
+        # disk, a folder where a file was expected): name it in one line, never a traceback.
+        where = f" {exc.filename}" if exc.filename else ""
+        print(
+            f"fieldkit {command}: cannot use{terminal(where)}: {exc.strerror or exc}",
+            file=sys.stderr,
+        )
+        return 2
+    # A record built from what was typed (a --by of 201 characters): the size policy's
+    # limits, named in one line like every other refusal.
+    pydantic = sys.modules.get("pydantic")
+    if pydantic is None or not isinstance(exc, pydantic.ValidationError):
+        return None
+    from fieldkit.jobs.jobfile import explain
+
+    print(f"fieldkit {command}: {terminal(explain(exc))}", file=sys.stderr)
+    return 2
 
 
 if __name__ == "__main__":

@@ -5,17 +5,19 @@ ever writes its own four jobs (fixed ids) there, so running it again regenerates
 leaves anything else alone; a folder that already holds jobs but no demo marker is refused, so
 the demo never mixes into a user's real jobs.
 
-The marker also keeps a fingerprint of what the demo was written from (the day, the code and
-presets it is built with) and of the four files as written. When nothing of it changed, the
-jobs on disk are already what regenerating would write, so they are left as they are: building
-and saving them again was a third of ``fieldkit demo``'s start. A demo job changed in the app,
-a removed file, another day or another fieldkit regenerates them all.
+Beside the marker, a state file keeps what the demo was written from (the day, the version,
+the size and modification time of each file of the code and presets it is built with) and the
+size and modification time of each demo file as written. When nothing of it changed, the jobs
+on disk are already what regenerating would write, so they are left as they are: building and
+saving them again was a third of ``fieldkit demo``'s start. A demo job changed in the app, a
+removed file, another day or another fieldkit regenerates them all. The state is compared as
+text, line for line: no digest to compute (hashlib alone was a hundredth of the start-up) and
+none that two different states could share.
 """
 
 from __future__ import annotations
 
 import argparse
-import hashlib
 import os
 from datetime import datetime
 from pathlib import Path
@@ -60,7 +62,8 @@ def demo_folder(args: argparse.Namespace) -> Path:
 #: The demo's job ids (as in fieldkit.jobs.demo.DEMO_IDS, which a test keeps equal): known
 #: here without importing the records.
 DEMO_JOB_IDS = ("de30000000000001", "de30000000000002", "de30000000000003", "de30000000000004")
-_STATE = "state "
+#: The state file, beside the marker (see the module's note).
+STATE_FILE = ".fieldkit-demo-state"
 #: Where the demo's OTDR trace files go, under the demo folder, and their names (as
 #: fieldkit.traces.demo writes them; a test checks the two agree).
 TRACES_FOLDER = Path("traces") / "LIB-TH-01"
@@ -74,43 +77,57 @@ def _sources() -> list[Path]:
     return [package, presets if presets.is_dir() else package.parent / "presets"]
 
 
+def _file_stats(top: str, out: list[str]) -> None:
+    """A line (path under ``top``, size, modification time) for each code or presets file
+    under ``top``, in name order, ``__pycache__`` and symbolic links to folders left out."""
+    with os.scandir(top) as scan:
+        entries = sorted(scan, key=lambda entry: entry.name)
+    for entry in entries:
+        if entry.is_dir(follow_symlinks=False):
+            if entry.name != "__pycache__":
+                _file_stats(entry.path, out)
+        elif entry.name.endswith((".py", ".toml")):
+            info = entry.stat()
+            out.append(f"{entry.path} {info.st_size} {info.st_mtime_ns}\n")
+
+
 def demo_state(folder: Path) -> str | None:
-    """A fingerprint of the day, of what the demo is built from and of the demo job files in
-    ``folder`` now; None when one of the files is missing."""
+    """What the demo in ``folder`` is as of now: the day, what the demo is built from and the
+    demo files in ``folder``; None when one of the files is missing."""
     from fieldkit import __version__, locations
 
-    digest = hashlib.sha256(f"{__version__} {datetime.now().astimezone().date()}".encode())
+    lines = [f"{__version__} {datetime.now().astimezone().date()}\n"]
     for top in _sources():
-        for root, dirs, files in os.walk(top):
-            dirs[:] = sorted(d for d in dirs if d != "__pycache__")
-            for name in sorted(files):
-                if name.endswith((".py", ".toml")):
-                    info = os.stat(os.path.join(root, name))
-                    digest.update(f"{root}/{name} {info.st_size} {info.st_mtime_ns}\n".encode())
+        _file_stats(str(top), lines)
     jobs = locations.jobs_dir(folder)
     for job_id in DEMO_JOB_IDS:
         try:
             info = os.stat(jobs / f"{job_id}.json")
         except OSError:
             return None
-        digest.update(f"{job_id} {info.st_size} {info.st_mtime_ns}\n".encode())
+        lines.append(f"{job_id} {info.st_size} {info.st_mtime_ns}\n")
     for name in DEMO_TRACE_NAMES:
         try:
             info = os.stat(folder / TRACES_FOLDER / name)
         except OSError:
             return None
-        digest.update(f"{name} {info.st_size} {info.st_mtime_ns}\n".encode())
-    return digest.hexdigest()
+        lines.append(f"{name} {info.st_size} {info.st_mtime_ns}\n")
+    return "".join(lines)
 
 
 def _unchanged(folder: Path) -> bool:
     """The demo jobs in ``folder`` are as the demo wrote them, on this day, by this code."""
-    try:
-        lines = (folder / MARKER).read_text(encoding="utf-8").splitlines()
-    except (OSError, UnicodeDecodeError):
+    from fieldkit.fsutil import read_regular
+
+    if not (folder / MARKER).is_file():
         return False
-    saved = next((line[len(_STATE) :] for line in lines if line.startswith(_STATE)), None)
-    return saved is not None and saved == demo_state(folder)
+    try:
+        # a regular file of at most 1 MiB (the state of a checkout is some 12 KB): a FIFO or
+        # a device here must not hang the start
+        saved = read_regular(folder / STATE_FILE, 1024 * 1024).decode("utf-8")
+    except (OSError, ValueError):
+        return False
+    return saved == demo_state(folder)
 
 
 def write_demo(folder: Path) -> list[str]:
@@ -134,6 +151,8 @@ def write_demo(folder: Path) -> list[str]:
                 "data; give the demo an empty folder with --data-dir"
             )
     folder.mkdir(parents=True, exist_ok=True)
+    # No state until every file is written again: a start cut short regenerates next time.
+    (folder / STATE_FILE).unlink(missing_ok=True)
     atomic_write_bytes(marker, MARKER_TEXT.encode())
     write_demo_traces(folder)
     ids = []
@@ -152,7 +171,7 @@ def write_demo(folder: Path) -> list[str]:
         ids.append(job.id)
     state = demo_state(folder)
     if state is not None:
-        atomic_write_bytes(marker, f"{MARKER_TEXT}{_STATE}{state}\n".encode())
+        atomic_write_bytes(folder / STATE_FILE, state.encode())
     return ids
 
 
