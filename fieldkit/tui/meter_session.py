@@ -813,6 +813,7 @@ class MeterSession:
         typed_before = dict(self.cells)
         fields = self.load_link(link)
         self.recompute_budget_limits()
+        self.keep_stored_limits(link)
         changes: list[MeterChange] = []
         for (fibre, w, d), cell in typed_before.items():
             column_ref = self.refs.get((w, d))
@@ -836,6 +837,22 @@ class MeterSession:
             )
         self.clamp()
         return changes, fields
+
+    def keep_stored_limits(self, link: Link) -> None:
+        """A wavelength with no limit typed takes the limit its latest stored result was
+        judged with (filled into its Limit field), so the grid, the summary and Jobs agree on
+        that result's verdict. A stored limit equal to the budget's stays the budget's."""
+        for r in sorted(link.results, key=lambda r: r.at, reverse=True):
+            w = round(r.wavelength_nm, 3)
+            if not r.current or r.limit_db is None or w not in self.wavelengths:
+                continue
+            if w in self.typed_limits or self.limit_text.get(w, "").strip():
+                continue
+            budget = self.budget_limits.get(w)
+            if budget is not None and abs(budget[0] - r.limit_db) < 1e-9:
+                continue
+            self.typed_limits[w] = r.limit_db
+            self.limit_text[w] = f"{r.limit_db:g}"
 
     def load_link(self, link: Link) -> dict[str, str]:
         """The link's current results and latest references into the grid (cells typed in

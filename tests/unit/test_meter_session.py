@@ -32,6 +32,7 @@ from fieldkit.tui.meter_session import (
     MeterSession,
     SaveQueue,
     cell_mark,
+    meter_tallies,
 )
 
 DETAILS = ReferenceDetails(by="Tester")
@@ -405,3 +406,50 @@ def test_a_set_up_change_says_when_the_grid_is_drawn_again() -> None:
     s.enter("-8.0", DETAILS)
     limit = s.change_field("limit", "1.5")  # a stored result judged again: drawn again
     assert limit is not None and limit.limits and limit.redraw and not limit.grid
+
+
+def test_a_stored_result_keeps_the_limit_it_was_judged_with_after_ctrl_s() -> None:
+    # Review F1 #1: attaching to a job whose 1550 nm result was judged against 4.0 dB showed it
+    # as "no limit" while the job file (and Jobs) had it failed. The loss is reference − reading
+    # (IEC 61280-4-1): -7.5 − (-11.76) = 4.26 dB, over 4.0 dB: a fail.
+    job = Job(name="North Reservoir")
+    link = job.add_link("feed", fibre_count=5)
+    reference = add_reference(link, wavelength_nm=1550, level_dbm=-7.5, method=ref.Method.ONE_CORD)
+    stored = put_result(
+        link,
+        fibre=5,
+        wavelength_nm=1550,
+        direction="A->B",
+        reading_dbm=-11.76,
+        reference=reference,
+        limit_db=4.0,
+    )
+    assert stored.passed is False  # the job's own verdict
+    s = _session(fibres=5, wavelengths="1310 1550")
+    s.set_limit("1.5")  # typed for 1310 only
+    s.attach(job.id, link, DETAILS)
+    assert s.limit_db(1550.0) == 4.0 and s.limit_text[1550.0] == "4"
+    assert s.limit_db(1310.0) == 1.5  # the typed limit is not touched
+    tally = meter_tallies(s.cells, {1550.0: s.limit_db(1550.0)}, s.fibres, s.directions)[1550.0]
+    assert (tally.failed, tally.no_limit) == (1, 0)
+    text, _style = s.cell_text(5, GridColumn(1550.0, "A->B")) or ("", "")
+    assert text.strip() == "4.26✗"  # the fail mark (text/meter.py MARKS)
+
+
+def test_a_typed_limit_wins_over_the_stored_one() -> None:
+    job = Job(name="Campus")
+    link = job.add_link("B1 to B2", fibre_count=2)
+    reference = add_reference(link, wavelength_nm=1310, level_dbm=-7.0, method=ref.Method.ONE_CORD)
+    put_result(
+        link,
+        fibre=1,
+        wavelength_nm=1310,
+        direction="A->B",
+        reading_dbm=-8.0,
+        reference=reference,
+        limit_db=0.5,
+    )
+    s = _session(fibres=2, wavelengths="1310")
+    s.set_limit("2.0")
+    s.attach(job.id, link, DETAILS)
+    assert s.limit_db(1310.0) == 2.0 and s.limit_text[1310.0] == "2.0"
