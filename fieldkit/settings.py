@@ -14,16 +14,15 @@ the start.
 
 from __future__ import annotations
 
-import json
 import unicodedata
 from dataclasses import dataclass
 from datetime import date
 from pathlib import Path
 from typing import Any
 
-from fieldkit.fsutil import atomic_write_bytes, read_regular
-
-FILE_NAME = "settings.json"
+from fieldkit.settings_file import FILE_NAME as FILE_NAME
+from fieldkit.settings_file import load as load
+from fieldkit.settings_file import save as save
 
 #: The kinds of test equipment a report lists, in the order it lists them.
 EQUIPMENT_KINDS = ("meter", "source", "otdr")
@@ -37,23 +36,6 @@ MAX_EQUIPMENT = 50
 
 class SettingsError(ValueError):
     """A setting refused: one line naming the problem (the CLI exits 2 with it)."""
-
-
-def load(config: Path) -> dict[str, Any]:
-    """The saved settings; an unreadable file gives the defaults (it is left in place)."""
-    try:
-        # a regular file of at most 64 KiB: a FIFO or a device here must not hang the start
-        data = json.loads(read_regular(config / FILE_NAME, 64 * 1024).decode("utf-8"))
-    except (OSError, ValueError, RecursionError):
-        return {}
-    return data if isinstance(data, dict) else {}
-
-
-def save(config: Path, **changes: Any) -> None:
-    """Merge ``changes`` into the saved settings, atomically."""
-    data = load(config)
-    data.update(changes)
-    atomic_write_bytes(config / FILE_NAME, json.dumps(data, indent=2).encode("utf-8"))
 
 
 # -- the report's settings -----------------------------------------------------------------------

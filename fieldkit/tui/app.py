@@ -1,7 +1,7 @@
 """The fieldkit app: wires the workspaces, keys, themes and the command palette.
 
 No calculation and no file I/O of its own: screens call ``fieldkit.calc`` and ``fieldkit.jobs``;
-settings go through ``fieldkit.settings``.
+settings go through ``fieldkit.settings`` (the theme through ``fieldkit.settings_file``).
 """
 
 from __future__ import annotations
@@ -18,7 +18,7 @@ from textual.binding import Binding
 from textual.css.stylesheet import Stylesheet
 from textual.screen import Screen
 
-from fieldkit import __version__, locations, settings
+from fieldkit import __version__, locations, settings_file
 from fieldkit.tui import keys
 from fieldkit.tui.themes import HIGH_CONTRAST, register_themes
 from fieldkit.tui.workspaces import WORKSPACES
@@ -116,7 +116,7 @@ class FieldkitApp(App[None]):
         return self._operator
 
     def on_mount(self) -> None:
-        saved = settings.load(self.config_dir).get("theme")
+        saved = settings_file.load(self.config_dir).get("theme")
         if isinstance(saved, str) and saved in self.available_themes:
             self.theme = saved
         self.theme_changed_signal.subscribe(self, self._remember_theme)
@@ -262,7 +262,7 @@ class FieldkitApp(App[None]):
 
     def _remember_theme(self, theme: object) -> None:
         try:
-            settings.save(self.config_dir, theme=self.theme)
+            settings_file.save(self.config_dir, theme=self.theme)
         except OSError as exc:
             self.notify(f"Could not save the theme choice: {exc}", severity="warning")
 
