@@ -14,7 +14,14 @@ from typing import Any
 from fieldkit.calc import budget as b
 from fieldkit.calc.fibre import check_wavelength_nm
 from fieldkit.calc.splicing import PlanRange
-from fieldkit.calc.units import InputError, Kind, format_number, parse, parse_number
+from fieldkit.calc.units import (
+    InputError,
+    Kind,
+    display_unit,
+    format_number,
+    parse,
+    parse_number,
+)
 
 #: The largest cables made hold 6912 fibres (common practice).
 MAX_FIBRE_NUMBER = 6912
@@ -172,17 +179,50 @@ def _text_or_number(value: Any, what: str) -> str:
     raise InputError(f"{what}: {value!r} is not a value")
 
 
+#: The units a fibre length is typed in, as a refusal lists them.
+LENGTH_UNITS = "m, km, ft, kft, mi"
+#: Length units no fibre link is measured in: a wavelength's and a core's (a link length in nm
+#: is a wavelength typed in the wrong field, or a slip for m).
+_NOT_LINK_LENGTHS = ("nm", "um")
+
+
 def length_m(value: Any, what: str = "length") -> float:
-    """A length typed with its unit ("12.4 km", "3900 ft"), in m; negative refused."""
+    """A length typed with its unit ("12.4 km", "3900 ft"), in m. Refused: a negative length
+    (said in the unit typed), a length in nm or µm (wavelength units), and any other quantity
+    (a level, a loss), each naming the fibre-length units."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         _text_or_number(value, what)  # NaN and infinity are refused as such
-        raise InputError(f"{what}: {format_number(float(value))} needs a unit (m, km, ft, kft, mi)")
-    metres = parse(_text_or_number(value, what), Kind.LENGTH, what=what).to("m")
-    if metres < 0:
-        raise InputError(f"{what}: {format_number(metres)} m is negative")
+        raise InputError(f"{what}: {format_number(float(value))} needs a unit ({LENGTH_UNITS})")
+    text = _text_or_number(value, what)
+    typed = parse(text, what=what) if _has_unit(text, what) else None
+    if typed is None:
+        number = format_number(parse_number(text, what))
+        raise InputError(f"{what}: {number} needs a unit ({LENGTH_UNITS})")
+    if typed.kind is not Kind.LENGTH:
+        raise InputError(
+            f"{what}: '{text.strip()}' is {typed.kind.noun.split(' (')[0]}; a fibre length "
+            f"({LENGTH_UNITS}) is needed here"
+        )
+    if typed.unit in _NOT_LINK_LENGTHS:
+        raise InputError(
+            f"{what}: {typed} is not a link length ({display_unit(typed.unit)} measures "
+            f"wavelengths); type it in {LENGTH_UNITS}"
+        )
+    if typed.magnitude < 0:
+        raise InputError(f"{what}: {typed} is negative")
+    metres = typed.to("m")
     if not math.isfinite(metres) or metres > b.MAX_LENGTH_M:
         raise InputError(f"{what}: {value} is longer than any fibre link; check the unit")
     return metres
+
+
+def _has_unit(text: str, what: str) -> bool:
+    """True when ``text`` is a number followed by something (a unit, or junk to refuse)."""
+    try:
+        parse_number(text, what)
+    except InputError:
+        return True
+    return False
 
 
 def otdr_distance_m(text: str, what: str = "distance") -> float:
@@ -336,12 +376,13 @@ def item_count(value: Any, what: str) -> int:
 
 
 def splitter(text: Any, what: str = "splitter") -> tuple[int, int]:
-    """``"1x32"`` → (1, 32); 1xN and 2xN with N ≥ 2."""
+    """``"1x32"``, ``"1×32"`` or ``"1:32"`` → (1, 32); 1xN and 2xN with N ≥ 2. The one rule
+    for a split, in the link description (the CLI) and the workspace's Split field alike."""
     if not isinstance(text, str):
-        raise InputError(f"{what}: write the split as 1xN or 2xN, e.g. 1x32")
+        raise InputError(f"{what}: write the split as 1xN or 2xN, e.g. 1x32 or 1:32")
     match = _SPLITTER.match(text)
     if not match:
-        raise InputError(f"{what}: '{text}' is not 1xN or 2xN (e.g. 1x32)")
+        raise InputError(f"{what}: '{text}' is not 1xN or 2xN (e.g. 1x32 or 1:32)")
     inputs, outputs = int(match.group(1)), int(match.group(2))
     if outputs < 2:
         raise InputError(f"{what}: {text} has fewer than 2 outputs")

@@ -43,7 +43,7 @@ def test_lengths_in_any_unit(text, metres):
     [
         ("500", "needs a unit"),
         ("-3 km", "negative"),
-        ("5 dB", "a length"),
+        ("5 dB", "a fibre length"),
         ("NaN km", "NaN"),
         ("", "empty"),
         ("1e12 km", "longer than any fibre link"),
