@@ -49,6 +49,7 @@ __all__ = [
     "extra_shown",
     "item_entry",
     "item_errors",
+    "item_problem",
     "item_text",
     "items_from_spec",
     "missing_entry",
@@ -83,7 +84,7 @@ KINDS: dict[str, Kind] = {
         "one value, or per wavelength: 1310=0.35 dB/km; 1550=0.22 dB/km",
     ),
     "connectors": Kind(
-        "Connectors",
+        "Mated connector pairs",
         "Grade",
         "Pairs",
         "Each",
@@ -104,12 +105,23 @@ DEFAULT_ADD_KIND = ADD_KINDS[0]
 
 #: What a count means when it is left empty (the link description's own defaults).
 EMPTY_COUNT = {"connectors": "2", "splices": "0", "component": "1"}
+#: What each item's first field is called in a problem and in the list ("length not valid").
+_VALUE_WORD = {
+    "fibre": "length",
+    "connectors": "count",
+    "splices": "count",
+    "splitter": "split",
+    "component": "count",
+    "attenuator": "loss",
+    "other": "loss",
+}
 #: What each item's second field is called in a prompt.
 _EXTRA_WORD = {
     "fibre": "attenuation",
     "connectors": "loss each",
     "splices": "loss each",
     "splitter": "excess loss",
+    "other": "name",
 }
 #: The typed settings fields, by the screen's field ids.
 SETTING_FIELDS = (
@@ -337,25 +349,51 @@ def missing_entry(items: list[Item]) -> str | None:
 
 
 def item_text(index: int, item: Item) -> str:
-    """One line of the item list."""
+    """One line of the item list. A field whose text is refused says so ("length not valid"),
+    never shows that text as if it were taken; the text stays in its field as typed."""
     kind, preset = item.kind, item.preset
-    value = (
-        item.value.strip() or EMPTY_COUNT.get(kind, "") or f"{KINDS[kind].value.lower()} not typed"
-    )
-    extra = item.extra.strip()
+    value_error, extra_error = item_errors(item)
+    if value_error:
+        value = f"{_VALUE_WORD[kind]} not valid"
+    else:
+        value = (
+            item.value.strip()
+            or EMPTY_COUNT.get(kind, "")
+            or f"{KINDS[kind].value.lower()} not typed"
+        )
+    extra = f"{_EXTRA_WORD[kind]} not valid" if extra_error else item.extra.strip()
     if kind == "fibre":
         what = f"typed {extra or 'dB/km not typed'}" if preset == TYPED else preset
         return f"{index}. Fibre {what}, {value}"
     if kind in ("connectors", "splices"):
         each = extra if preset == TYPED else preset
-        return f"{index}. {value} {'mated pairs' if kind == 'connectors' else 'splices'}, {each}"
+        if value_error:
+            return f"{index}. {KINDS[kind].title}, {value}, {each}"
+        # "connector pairs": the short form of "mated connector pairs" that fits the list
+        return (
+            f"{index}. {value} {'connector pairs' if kind == 'connectors' else 'splices'}, {each}"
+        )
     if kind == "splitter":
-        return f"{index}. Splitter {value}" + (f", excess {extra}" if preset == TYPED else "")
+        split = f", {value}" if value_error else f" {value}"
+        return f"{index}. Splitter{split}" + (f", excess {extra}" if preset == TYPED else "")
     if kind == "component":
-        return f"{index}. {value} × {preset}"
+        return f"{index}. {preset}, {value}" if value_error else f"{index}. {value} × {preset}"
     if kind == "attenuator":
-        return f"{index}. Attenuator {value}"
-    return f"{index}. {extra or 'Other loss'}{',' if not item.value.strip() else ''} {value}"
+        return f"{index}. Attenuator{',' if value_error else ''} {value}"
+    typed = item.value.strip() and not value_error
+    return f"{index}. {extra or 'Other loss'}{'' if typed else ','} {value}"
+
+
+def item_problem(index: int, item: Item, message: str) -> str:
+    """A field's problem as the budget line says it, numbered as the list numbers the item:
+    ``item 3 (splices): count 6.5 is not a whole number``."""
+    place = f"item {index} ({KINDS[item.kind].title.lower()})"
+    word, sep, rest = message.partition(": ")
+    if not sep:
+        return f"{place}: {message}"
+    # "count: 6.5 is ..." reads "count 6.5 is ..."; "length: unknown unit" keeps its colon.
+    joined = " " if rest[:1].isdigit() or rest[:1] in "'\"+-.\u2212" else ": "
+    return f"{place}: {word}{joined}{rest}"
 
 
 def item_errors(item: Item) -> tuple[str, str]:
@@ -368,9 +406,9 @@ def item_errors(item: Item) -> tuple[str, str]:
         elif item.kind == "fibre":
             inputs.length_m(value, "length")
         elif item.kind in ("connectors", "splices", "component"):
-            inputs.item_count(value, KINDS[item.kind].value.lower())
+            inputs.item_count(value, _VALUE_WORD[item.kind])
         elif item.kind == "splitter":
-            inputs.splitter(value)
+            inputs.splitter(value, _VALUE_WORD[item.kind])
         else:
             inputs.loss_db(value, "loss")
     except InputError as exc:
@@ -380,7 +418,7 @@ def item_errors(item: Item) -> tuple[str, str]:
             if item.kind == "fibre":
                 linkspec.custom_fibre(inputs.attenuation_entry(extra))
             else:
-                inputs.loss_db(extra, KINDS[item.kind].extra.lower())
+                inputs.loss_db(extra, _EXTRA_WORD[item.kind])
     except InputError as exc:
         extra_error = str(exc)
     return value_error, extra_error
@@ -392,6 +430,14 @@ def extra_shown(item: Item) -> bool:
 
 
 # -- the result ---------------------------------------------------------------------------------
+
+
+#: The items behind each numbered place of the link description.
+_PLACE_KINDS = {
+    "segment": ("fibre",),
+    "component": ("splitter", "component", "attenuator", "other"),
+    "splices": ("splices",),
+}
 
 
 @dataclass
@@ -497,7 +543,7 @@ class BudgetModel:
         connectors line: the existing one is picked instead), else None."""
         if kind == "connectors" and any(i.kind == "connectors" for i in self.items):
             self.current = next(i for i, it in enumerate(self.items) if it.kind == "connectors")
-            return "The link has one connectors line: edit its number of mated pairs."
+            return "The link has one line of mated connector pairs: edit its count."
         lib = self.library
         options = self.preset_options(kind)
         preset = ""
@@ -713,6 +759,12 @@ class BudgetModel:
         outcome = Outcome()
         try:
             settings = self.settings(outcome)
+            for index, item in enumerate(self.items, start=1):
+                # An item's own field first, numbered as the list numbers it.
+                refused = next((e for e in item_errors(item) if e), "")
+                if refused:
+                    outcome.problem = item_problem(index, item, refused)
+                    return outcome
             prompt = missing_entry(self.items)
             if prompt is not None:
                 # Not an error yet: say what to type, calmly, and show no result.
@@ -726,13 +778,20 @@ class BudgetModel:
         return outcome
 
     def explain(self, message: str) -> str:
-        """A problem message with the description's segment number as the list's item number."""
-        match = re.match(r"segment (\d+): (.*)", message)
+        """A problem of the link description with its place there ("segment 2", "component 1",
+        "splices 1", "connectors") as the list's item number and kind."""
+        match = re.match(r"(segment|component|splices) (\d+): (.*)", message, re.DOTALL)
         if match:
-            n = int(match.group(1))
-            fibres = [i for i, it in enumerate(self.items) if it.kind == "fibre"]
-            if 0 < n <= len(fibres):
-                return f"item {fibres[n - 1] + 1}: {match.group(2)}"
+            kinds = _PLACE_KINDS[match.group(1)]
+            places = [i for i, it in enumerate(self.items) if it.kind in kinds]
+            n = int(match.group(2))
+            if 0 < n <= len(places):
+                at = places[n - 1]
+                return item_problem(at + 1, self.items[at], match.group(3))
+        if message.startswith("connectors: "):
+            at = next((i for i, it in enumerate(self.items) if it.kind == "connectors"), None)
+            if at is not None:
+                return item_problem(at + 1, self.items[at], message.removeprefix("connectors: "))
         return message
 
     def add_title(self) -> str:

@@ -76,7 +76,7 @@ async def test_bad_length_is_explained_beside_the_field_and_kept(tmp_path: Path)
         assert error.display and "unknown unit 'parsec'" in str(error.render())
         assert app.screen.query_one("#item-value", Input).value == "12 parsec"
         assert app.screen.report is None
-        assert "item 1: length" in text_of(app, "#budget-summary")
+        assert "item 1 (fibre): length" in text_of(app, "#budget-summary")
         app.screen.query_one("#item-value", Input).value = "12 km"
         await pilot.pause()
         assert not error.display
@@ -355,7 +355,7 @@ async def test_empty_start_asks_calmly_for_the_length(tmp_path: Path):
         length = screen.query_one("#item-value", Input)
         length.value = "12 parsec"
         await pilot.pause()
-        assert summary.has_class("-problem") and "item 1: length" in str(summary.render())
+        assert summary.has_class("-problem") and "item 1 (fibre): length" in str(summary.render())
         # A typed attenuation with no coefficient yet is also only a prompt.
         length.value = "12 km"
         screen.query_one("#item-preset", Select).value = "__typed__"
@@ -588,3 +588,29 @@ async def test_labels_say_what_the_fields_are(tmp_path: Path):
         await pilot.press(*"12 km")
         await pilot.pause()
         assert screen.query_one("#checks-panel").border_title == "Dispersion and bandwidth"
+
+
+async def test_a_split_typed_with_a_colon_is_kept_and_a_refused_count_is_marked(tmp_path: Path):
+    # Review F3: the Split field dropped ":" ("1:64" became "164", refused), and the list
+    # showed refused text as if it were taken ("3. 6.5 splices, fusion").
+    app = make(tmp_path)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = app.screen
+        await pilot.press(*"2 km", "ctrl+a", "3")  # a splitter after the fibre: Split "1x32"
+        await pilot.pause()
+        split = screen.query_one("#item-value", Input)
+        split.value = ""
+        await pilot.press(*"1:64")
+        await pilot.pause()
+        items = screen.query_one("#items", OptionList)
+        assert split.value == "1:64"
+        assert str(items.get_option_at_index(1).prompt) == "2. Splitter 1:64"
+        assert screen.report is not None
+        await pilot.press("ctrl+a", "2", *"6.5")  # splices after the splitter: count "6.5"
+        await pilot.pause()
+        assert screen.query_one("#item-value", Input).value == "6.5"
+        assert str(items.get_option_at_index(2).prompt) == "3. Splices, count not valid, fusion"
+        assert "item 3 (splices): count 6.5 is not a whole number" in text_of(
+            app, "#budget-summary"
+        )

@@ -65,7 +65,8 @@ def test_nothing_typed_is_a_prompt_and_wrong_text_a_problem() -> None:
     model.items[0].value = "12 parsec"
     outcome = model.evaluate()
     assert outcome.prompt is None and outcome.problem is not None
-    assert outcome.problem.startswith("item 1: length")  # the list's number, not "segment 1"
+    # the list's number and kind, not "segment 1"
+    assert outcome.problem == "item 1 (fibre): length: unknown unit 'parsec'"
     assert "unknown unit 'parsec'" in item_errors(model.items[0])[0]
     model.items[0].value = "12 km"
     model.items[0].preset = TYPED
@@ -79,7 +80,7 @@ def test_a_problem_in_a_second_segment_names_its_list_item() -> None:
     model.current = 1
     model.add("fibre")
     model.items[2].value = "6"
-    assert model.evaluate().problem == "item 3: length: 6 needs a unit"
+    assert model.evaluate().problem == "item 3 (fibre): length 6 needs a unit (m, km, ft, kft, mi)"
 
 
 def test_adding_a_splitter_and_splices() -> None:
@@ -112,7 +113,7 @@ def test_one_connectors_line_and_at_least_one_fibre() -> None:
     model = _model()
     model.items[0].value = "1 km"
     refusal = model.add("connectors")
-    assert refusal is not None and "one connectors line" in refusal
+    assert refusal is not None and "one line of mated connector pairs" in refusal
     assert len(model.items) == 2 and model.current == 1  # the existing line is picked
     model.current = 0
     assert model.remove() == "A link needs at least one fibre segment."
@@ -294,3 +295,82 @@ def test_choices_and_questions_the_screen_shows() -> None:
     title, asked, answers = BudgetModel.unsaved_question("A new budget", "Discard and start new")
     assert title == "The budget has unsaved changes" and asked[0].startswith("A new budget ")
     assert [key for key, _ in answers] == ["save", "discard"]
+
+
+def _reviewed_link() -> BudgetModel:
+    """The reviewer's link (F3 review): a fibre, a splitter and splices, each with text its
+    field refuses."""
+    model = _model()
+    model.items = [
+        Item("fibre", "OS2", "5 dBm"),
+        Item("splitter", "1xN splitter", "164"),
+        Item("splices", "fusion", "6.5"),
+        Item("connectors", "TIA-568.3-D", "2"),
+    ]
+    return model
+
+
+def test_the_list_says_an_item_is_refused_and_the_text_stays_typed() -> None:
+    # Review F3: "5 dBm" showed as "1. Fibre OS2, 5 dBm", as if it had been taken.
+    model = _reviewed_link()
+    lines = [item_text(i, it) for i, it in enumerate(model.items, start=1)]
+    assert lines == [
+        "1. Fibre OS2, length not valid",
+        "2. Splitter, split not valid",
+        "3. Splices, count not valid, fusion",
+        "4. 2 connector pairs, TIA-568.3-D",
+    ]
+    assert [it.value for it in model.items] == ["5 dBm", "164", "6.5", "2"]  # never dropped
+    model.items[0].value = "5 km"
+    assert item_text(1, model.items[0]) == "1. Fibre OS2, 5 km"
+    other = Item("other", "", "0.5 dBm", "closure")
+    assert item_text(5, other) == "5. closure, loss not valid"
+
+
+def test_problems_number_items_as_the_list_does() -> None:
+    # Review F3: item 2 was "component 1", item 3 "splices 1", beside "Item 3: Splices".
+    model = _reviewed_link()
+    model.items[0].value = "5 km"
+    assert model.evaluate().problem == (
+        "item 2 (splitter): split '164' is not 1xN or 2xN (e.g. 1x32 or 1:32)"
+    )
+    model.items[1].value = "1:64"
+    assert model.evaluate().problem == "item 3 (splices): count 6.5 is not a whole number"
+    model.items[2].value = "6"
+    assert model.evaluate().report is not None
+    # A problem only the link description finds (no preset excess for 1x3) is numbered the
+    # same way, not "component 1".
+    model.items[1].value = "1x3"
+    problem = model.evaluate().problem or ""
+    assert problem.startswith("item 2 (splitter): preset '1xN splitter' has no excess loss")
+
+
+def test_a_split_typed_with_a_colon_is_the_same_ratio() -> None:
+    model = _model()
+    model.items[0].value = "2 km"
+    model.add("splitter")
+    totals = []
+    for split in ("1x64", "1:64", "1×64"):
+        model.items[1].value = split
+        report = model.evaluate().report
+        assert report is not None, split
+        totals.append(report.result.at(1310).loss_db)
+    assert totals[0] == totals[1] == totals[2]
+    assert item_text(2, model.items[1]) == "2. Splitter 1×64"  # kept as typed
+
+
+def test_connectors_are_named_mated_connector_pairs_everywhere() -> None:
+    # Review F3: "Connectors" in the add dialog, "2 mated pairs" in the list and "2 mated
+    # connector pairs" in the budget for one part: now "Mated connector pairs" (the dialog, the
+    # item's panel), "connector pairs" (the list), "mated connector pairs" (the budget).
+    from fieldkit.tui.budget_model import KINDS
+
+    model = _model()
+    model.items[0].value = "1 km"
+    assert KINDS["connectors"].title == "Mated connector pairs"
+    # the list's short form (the list is 35 columns wide at 80x24; the line stays one line)
+    assert item_text(2, model.items[1]) == "2. 2 connector pairs, TIA-568.3-D"
+    report = model.evaluate().report
+    assert report is not None
+    assert any(i.name.startswith("2 mated connector pairs") for i in report.result.at(1310).items)
+    assert "mated connector pairs" in (model.add("connectors") or "")

@@ -22,6 +22,8 @@ __all__ = ["ItemField", "LinkItems", "choice_row", "field_row"]
 
 #: The second item field also takes ``1310=0.35 dB/km; 1550=0.22 dB/km`` and names.
 EXTRA_CHARS = QUANTITY_CHARS[:-2] + "=;:()]*"
+#: The first item field also takes a split as 1:32 or 1×32 (:func:`fieldkit.inputs.splitter`).
+VALUE_CHARS = QUANTITY_CHARS[:-2] + ":×]*"
 
 
 class ItemField(Input):
@@ -49,7 +51,9 @@ def field_row(
             yield (ItemField if field_id.startswith("item-") else Input)(
                 placeholder=hint,
                 type="text",
-                restrict=EXTRA_CHARS if field_id == "item-extra" else QUANTITY_CHARS,
+                restrict={"item-extra": EXTRA_CHARS, "item-value": VALUE_CHARS}.get(
+                    field_id, QUANTITY_CHARS
+                ),
                 compact=True,
                 id=field_id,
                 tooltip=tooltip,
