@@ -789,9 +789,10 @@ class BudgetModel:
                 at = places[n - 1]
                 return item_problem(at + 1, self.items[at], match.group(3))
         if message.startswith("connectors: "):
-            at = next((i for i, it in enumerate(self.items) if it.kind == "connectors"), None)
-            if at is not None:
-                return item_problem(at + 1, self.items[at], message.removeprefix("connectors: "))
+            line = next((i for i, it in enumerate(self.items) if it.kind == "connectors"), None)
+            if line is not None:
+                rest = message.removeprefix("connectors: ")
+                return item_problem(line + 1, self.items[line], rest)
         return message
 
     def add_title(self) -> str:
