@@ -333,6 +333,14 @@ class MeterSession:
         else the reading."""
         return "reading" if self.current_reference is not None else "reference"
 
+    def tab_from(self, field_id: str, *, details_open: bool) -> str | None:
+        """Where Tab goes from a field (None: the next in order). From Limit, the last set-up
+        field: to the readings (or Ref, while the column has none), not onto the folded
+        details' title, where what was typed next was lost; open, into their first field."""
+        if field_id != "limit":
+            return None
+        return "source" if details_open else self.work_field
+
     @property
     def current_reference(self) -> ColumnReference | None:
         return self.refs.get(self.active_column.measured)

@@ -161,3 +161,27 @@ async def test_a_drifted_recheck_keeps_the_fail_marks_and_says_bad_ref_in_words(
         await screen.saves_settled()
         summary = str(screen.query_one("#meter-summary", Static).render())
         assert "reference problem" in " ".join(summary.split()) and "ref?" not in summary
+
+
+async def test_a_reading_typed_after_tab_from_the_limit_is_taken(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    # Review F1 #2: Tab from Limit landed on the folded "Reference details" title; the Enter
+    # after "-8.1" opened it and the reading was lost without a word.
+    async with _app(isolated_dirs).run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        await pilot.press(*"-7.5", "tab")
+        assert screen.focused is screen.query_one("#limit")
+        await pilot.press(*"1.5", "tab")
+        assert screen.focused is screen.query_one("#reading")
+        await pilot.press(*"-8.1", "enter")
+        cell = screen.session.cells[(1, 1310.0, "A->B")]
+        assert cell.reading_dbm == -8.1 and screen.session.limit_db(1310.0) == 1.5
+        assert screen.query_one("#meter-details").collapsed  # type: ignore[attr-defined]
+        # Opened, Tab from Limit goes into the details' first field (not onto their title).
+        screen.query_one("#meter-details").collapsed = False  # type: ignore[attr-defined]
+        screen.query_one("#limit").focus()
+        await pilot.press("tab")
+        assert screen.focused is screen.query_one("#source")

@@ -6,18 +6,19 @@ columns, and a click on a cell goes there. A plain number is a level in dBm; a u
 mW, dBW) may follow it. Results are saved into the chosen job's link as they are entered (a
 background save worker; entries made while a save runs go with the next one).
 
-Layout and wiring only: the state, what each key does and the summary text live in
-:class:`fieldkit.tui.meter_session.MeterSession`; every save goes through
-:func:`fieldkit.actions.meter.apply_changes`.
+Layout and wiring only: the state lives in :class:`fieldkit.tui.meter_session.MeterSession`.
 """
 
 from __future__ import annotations
+
+from typing import Any
 
 from textual import events, on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
+from textual.widget import Widget
 from textual.widgets import DataTable, Input, Static
 
 from fieldkit.actions.meter import Applied, ReferenceDetails
@@ -93,6 +94,10 @@ class MeterScreen(Screen[None]):
         """Alt+R / Alt+W / Alt+F: to a set-up field from wherever you type."""
         self.set_class(False, "-typing")
         self.call_after_refresh(self.query_one(f"#{field_id}").focus)
+
+    def focus_next(self, selector: Any = "*") -> Widget | None:
+        """Tab: from Limit to the readings (:meth:`MeterSession.tab_from`)."""
+        return self.setup.tab_from(self.focused) or super().focus_next(selector)
 
     def on_descendant_focus(self, event: object) -> None:
         focused = self.focused
@@ -333,8 +338,7 @@ class MeterScreen(Screen[None]):
         self.post_message(self.Saved(outcome))  # from the save worker's thread
 
     async def saves_settled(self) -> None:
-        """Wait for the save worker to finish what is queued, and show the summary as it
-        stands (tests and benchmarks await this rather than polling)."""
+        """Wait for the save worker to finish what is queued; show the summary as it stands."""
         await self.saver.settled()
         self._show_summary()
 
@@ -358,10 +362,8 @@ class MeterScreen(Screen[None]):
         from fieldkit.tui.widgets.dialogs import AskDialog
 
         if self.session.job_id is None:
-            self._say(
-                f"{keys.display('save')}: choose a job first; the history is the one in the job."
-            )
-            return
+            where = "the history is the one in the job"
+            return self._say(f"{keys.display('save')}: choose a job first; {where}.")
         self.flush_saves()
         try:
             title, lines = self.session.history(fieldkit_app(self).store)
@@ -387,8 +389,7 @@ class MeterScreen(Screen[None]):
         self.app.push_screen(RecheckDialog(column.heading, level_dbm, tolerance_db), done)
 
     def apply_recheck(self, column: GridColumn, level_dbm: float, tolerance_db: float) -> ref.Drift:
-        """Compare a recheck with the column's reference; beyond tolerance, mark its results in
-        doubt."""
+        """Compare a recheck with the column's reference; beyond tolerance, mark in doubt."""
         done = self.session.apply_recheck(column, level_dbm, tolerance_db, by=self._details().by)
         for cell in done.doubted:
             self.grid.draw_cell(self.session, *cell)

@@ -14,7 +14,7 @@ from collections.abc import Callable
 from textual.dom import DOMNode
 from textual.timer import Timer
 from textual.widget import Widget
-from textual.widgets import Input, Static
+from textual.widgets import Collapsible, Input, Static
 
 from fieldkit.actions.meter import ReferenceDetails
 from fieldkit.tui import keys
@@ -54,6 +54,19 @@ class SetupView:
         self.one = _Widgets(root)
         self.session = session
         self._synced: GridColumn | None = None
+
+    def tab_from(self, focused: Widget | None) -> Widget | None:
+        """Focus the field Tab goes to from ``focused``; None: the next in order (not done)."""
+        if focused is None or not focused.id:
+            return None
+        details = self.one("#meter-details")
+        assert isinstance(details, Collapsible)
+        to = self.session.tab_from(focused.id, details_open=not details.collapsed)
+        if to is None:
+            return None
+        widget = self.one(f"#{to}")
+        widget.focus()
+        return widget
 
     def error(self, field_id: str, message: str) -> None:
         """The field's error beside it (empty: none)."""
