@@ -219,8 +219,9 @@ async def test_corrections_and_clearing_reach_the_job(isolated_dirs: dict[str, P
         assert sorted(round(r.loss_db, 6) for r in link.results if r.fibre == 2) == [0.9, 1.1]
         assert all(not r.current for r in link.results if r.fibre == 2)
         # A click on a cell moves the entry there, ready to type. The grid's header is its
-        # first line and the fibre column 7 cells wide, so (10, 9) is fibre 9 at 1310 nm.
-        await pilot.click("#readings", offset=(10, 9))
+        # first two lines (head, unit) and the fibre column 7 cells wide, so (10, 10) is fibre 9
+        # at 1310 nm.
+        await pilot.click("#readings", offset=(10, 10))
         await pilot.pause()
         assert "fibre 9 1310" in str(screen.query_one("#entry-where").render())
         assert screen.focused is screen.query_one("#reading")

@@ -153,9 +153,9 @@ async def test_every_hint_key_and_a_click_at_44_columns(isolated_dirs: dict[str,
         assert screen.query_one("#reference", Input).value == ""
         await pilot.press("ctrl+left")
         assert "fibre 1 1310 A→B" in str(where.render())
-        # A click on a cell goes there: row 3 below the header is fibre 3; the fibre column is
-        # 7 cells wide and 1310 A→B the next 11, so x=20 is in 1310 B→A.
-        await pilot.click("#readings", offset=(20, 3))
+        # A click on a cell goes there: row 3 below the two-line header is fibre 3; the fibre
+        # column is 7 cells wide and 1310 A→B the next 11, so x=20 is in 1310 B→A.
+        await pilot.click("#readings", offset=(20, 4))
         await pilot.pause()
         assert "fibre 3 1310 B→A" in str(where.render())
         assert screen.focused is screen.query_one("#reading")
@@ -299,6 +299,7 @@ async def test_a_corrected_reading_is_drawn_in_its_row(isolated_dirs: dict[str, 
         await pilot.press(*"-7.6", "enter")  # fibre 1 again: -7.0 − (-7.6) = 0.60 dB
         await pilot.pause()
         grid = screen.query_one(ReadingsGrid)
-        rows = [grid.render_line(y).text for y in range(1, 3)]  # below the header
+        rows = [grid.render_line(y).text for y in range(2, 4)]  # below the two-line header
+        assert "loss dB" in grid.render_line(1).text  # the cells' unit (review F1 #3)
         assert "0.60" in rows[0] and "1.00" not in rows[0]
         assert "1.50" in rows[1]  # -7.0 − (-8.5)

@@ -48,6 +48,7 @@ class ReadingsGrid(DataTable[Text]):
         super().__init__(
             id=id, cursor_type="cell", zebra_stripes=True, show_row_labels=False, fixed_columns=1
         )
+        self.header_height = 2
         self.columns_shown: list[GridColumn] = []
         self.fibres = 0
         self._row_versions: dict[RowKey, int] = {}
@@ -66,9 +67,11 @@ class ReadingsGrid(DataTable[Text]):
         self._scrolled_column = -1
         self.fibres = fibres
         self.columns_shown = list(columns)
-        self.add_column(Text("Fibre"), key="fibre", width=5)
+        # The cells are losses in dB (the entry prompt's levels are dBm): the unit under each
+        # head (review F1 #3), in the header's second line.
+        self.add_column(Text("Fibre\n"), key="fibre", width=5)
         for column in columns:
-            self.add_column(Text(column.heading), key=column.key, width=9)
+            self.add_column(Text(f"{column.heading}\n loss dB"), key=column.key, width=9)
         blank = Text("")
         for fibre in range(1, fibres + 1):
             row = [Text(str(fibre), justify="right")]
