@@ -87,3 +87,27 @@ async def test_a_blank_answer_earlier_is_asked_again(isolated_dirs: dict[str, Pa
         await pilot.pause()
         assert isinstance(app.screen, NameDialog)
         assert isinstance(app.screen.query_one("#name-value", Input), Input)
+
+
+@pytest.mark.parametrize("size", [(80, 24), (44, 22)], ids=["80x24", "44x22"])
+async def test_end_of_day_separators_stand_between_counts(tmp_path: Path, size) -> None:
+    # Review 2026-12-02: a wrap left the separator at a line's end ("5 in doubt ·"). The dot
+    # stands between two counts with a space each side, never last on a line.
+    import re
+
+    from test_counts_on_screen import _demo, shown_lines
+
+    from fieldkit.tui.screens.jobs_today import EndOfDayScreen
+
+    _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=size) as pilot:
+        await pilot.pause()
+        await pilot.press("ctrl+g")
+        day = app.screen
+        assert isinstance(day, EndOfDayScreen)
+        lines = shown_lines(day.query_one("#eod-totals"))
+        flat = " ".join(line.strip() for line in lines)
+        assert "70 pass · 2 fail · 1 reference problem · 5 in doubt · 0 no limit" in flat
+        assert not any(line.rstrip().endswith("·") for line in lines), lines
+        assert not re.search(r"\S·|·\S|·  ", flat), flat

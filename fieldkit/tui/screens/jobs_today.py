@@ -26,6 +26,7 @@ from fieldkit.jobs.models import now
 from fieldkit.jobs.store import StoreError, local_date
 from fieldkit.jobs.today import DaySummary, counted, day_summary
 from fieldkit.text.escape import terminal
+from fieldkit.text.layout import NBSP
 from fieldkit.tui import keys
 from fieldkit.tui.jobs_view import COUNT_STYLES
 from fieldkit.tui.wrapped import Wrapped, together
@@ -134,7 +135,8 @@ class EndOfDayScreen(ModalScreen[str | None]):
         totals.append(f"{counted(tally.tested, 'fibre')} tested: ")
         for i, (count, words) in enumerate(tally.parts()):
             n = tally.of(count)
-            totals.append(" · " if i else "")
+            # The dot goes with the count after it: a wrap never leaves one at a line's end.
+            totals.append(f" ·{NBSP}" if i else "")
             totals.append(together(words), COUNT_STYLES[count] if n else "")
         totals.append(f"\n{counted(t['open_items'], 'open item')}")
         self.query_one("#eod-totals", Static).update(Wrapped(totals))
