@@ -1,6 +1,7 @@
 """Meter lines: a grid cell's loss and mark, what a reading came to, the save line and the
 summary (per wavelength the tally by the one counting rule and the worst fibres, then the
-references in use). Width-aware; numbers as the meter workspace has always shown them.
+references in use). Width-aware; a negative number takes the one minus
+(:func:`fieldkit.text.numbers.minus`).
 
 Nothing here decides: the session (``fieldkit.tui.meter_session``) counts, judges and queues;
 these functions only say it.
@@ -16,6 +17,7 @@ from fieldkit import safety
 from fieldkit.calc import reference as ref
 from fieldkit.jobs.counting import Tally
 from fieldkit.text.layout import NBSP
+from fieldkit.text.numbers import minus
 from fieldkit.text.words import counted
 
 #: The mark beside a loss and its colour, by verdict: the verdict reads without colour too.
@@ -49,12 +51,16 @@ def cell_mark(loss_db: float, status: ref.Status, in_doubt: bool) -> tuple[str, 
     if in_doubt:
         mark += DOUBT_MARK
         style = style if status in (ref.Status.FAIL, ref.Status.REFERENCE_PROBLEM) else "yellow"
-    return f"{loss_db:6.2f}{mark:<2}", style
+    return minus(f"{loss_db:6.2f}{mark:<2}"), style
 
 
 def verdict_words(fibre: int, heading: str, verdict: ref.Verdict, *, short: bool) -> str:
     """What the reading in column ``heading`` came to; ``short``: in one line of 42 columns
     (a phone terminal)."""
+    return minus(_verdict(fibre, heading, verdict, short=short))
+
+
+def _verdict(fibre: int, heading: str, verdict: ref.Verdict, *, short: bool) -> str:
     head = f"fibre {fibre} {heading}: {verdict.loss_db:.2f} dB"
     if verdict.status is ref.Status.REFERENCE_PROBLEM:
         if short:
@@ -167,7 +173,7 @@ def summary_lines(
         refs.append(f"  {r.wavelength_nm:g}{arrow} {r.level_dbm:.2f} dBm, {age}{doubt}")
     lines.append("References:" if refs else "References: none set")
     lines += refs
-    return lines
+    return [minus(line) for line in lines]  # the one minus (text/numbers.py)
 
 
 def set_reference_note(heading: str, *, narrow: bool) -> str:
@@ -213,11 +219,13 @@ def reference_note(
         lines.append("This reference drifted at its recheck: set a new one and retest.")
     lines += [f"⚠ {w}" for w in warnings]
     lines.append(line)
-    return "\n".join(lines)
+    return minus("\n".join(lines))
 
 
 def recheck_words(heading: str, drift: ref.Drift, *, short: bool = False) -> str:
     """What a reference recheck found; ``short``: one line of 42 columns."""
     if short and not drift.within:
-        return f"{heading}: drift {drift.drift_db:+.2f} > ±{drift.tolerance_db:.2f} dB: retest"
-    return f"{heading}: {drift.message}"
+        return minus(
+            f"{heading}: drift {drift.drift_db:+.2f} > ±{drift.tolerance_db:.2f} dB: retest"
+        )
+    return minus(f"{heading}: {drift.message}")

@@ -570,7 +570,7 @@ class MeterSession:
         if short:
             return fit(42, f"⚠ {where} negative{more}: retest", f"⚠ {where} negative{more}")
         cell = self.cells.get(self.problems[-1])
-        loss = f"{cell.loss_db:.2f} dB, " if cell else ""
+        loss = minus(f"{cell.loss_db:.2f} dB, ") if cell else ""
         return fit(
             76,
             f"⚠ {where}: {loss}negative{more}. Clean, re-reference, retest (^X removes)",
@@ -662,7 +662,9 @@ class MeterSession:
         column = self.active_column
         cell = self.cells.get((self.fibre, *column.measured))
         replace_words = "" if narrow else "; type to replace"  # 21 columns at 44
-        placeholder = f"now {cell.reading_dbm:.2f} dBm{replace_words}" if cell else "reading, dBm"
+        placeholder = (
+            minus(f"now {cell.reading_dbm:.2f} dBm{replace_words}") if cell else "reading, dBm"
+        )
         return f"fibre {self.fibre} {column.heading}", placeholder
 
     def setup_line(self, width: int) -> str:
@@ -934,7 +936,7 @@ class MeterSession:
             if current is not None and abs(current.level_dbm - level) < 1e-9:
                 current.reference_id = reference_id
         return [
-            f"{column}: {drift.message} ({counted(doubted, 'result')} marked in doubt)"
+            minus(f"{column}: {drift.message} ({counted(doubted, 'result')} marked in doubt)")
             for column, drift, doubted in outcome.rechecks
             if not drift.within
         ]

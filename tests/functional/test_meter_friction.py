@@ -109,7 +109,7 @@ async def test_a_negative_loss_stays_until_it_is_retested(isolated_dirs: dict[st
         await pilot.press(*"-8.0", "enter", *"-8.1", "enter")  # the next fibres
         await pilot.pause()
         lines = _message(screen).splitlines()
-        assert lines[0].startswith("⚠ fibre 1 1310 A→B: -0.20 dB, negative")
+        assert lines[0].startswith("⚠ fibre 1 1310 A→B: −0.20 dB, negative")  # the one minus
         assert lines[1].startswith("fibre 3 1310 A→B: 1.10 dB")  # the latest reading too
         await pilot.press("pageup", *"-7.9", "enter")  # fibre 1 retested: 0.90 dB
         await pilot.pause()
@@ -157,7 +157,7 @@ async def test_a_drifted_recheck_keeps_the_fail_marks_and_says_bad_ref_in_words(
         await pilot.pause()
         grid = screen.query_one(ReadingsGrid)
         cells = [grid.get_cell_at((row, 1)).plain.strip() for row in range(3)]
-        assert cells == ["0.50 ?", "2.50✗?", "-0.20!?"]
+        assert cells == ["0.50 ?", "2.50✗?", "−0.20!?"]
         await screen.saves_settled()
         summary = str(screen.query_one("#meter-summary", Static).render())
         assert "reference problem" in " ".join(summary.split()) and "ref?" not in summary

@@ -261,7 +261,7 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
         reading.focus()
         await pilot.press(*"-8.40", "enter", "up")
         await pilot.pause()
-        assert reading.placeholder == "now -8.40 dBm"  # typing replaces it
+        assert reading.placeholder == "now −8.40 dBm"  # typing replaces it; the one minus
         assert len(reading.placeholder) < reading.content_region.width
 
 

@@ -27,6 +27,7 @@ from fieldkit.calc.units import InputError
 from fieldkit.inputs import meter_wavelengths
 from fieldkit.jobs.models import Job, now
 from fieldkit.text.layout import NBSP
+from fieldkit.text.numbers import minus
 from fieldkit.tui.meter_session import (
     GridColumn,
     MeterSession,
@@ -72,7 +73,7 @@ def test_summary_of_two_wavelengths_fits_a_phone_terminal() -> None:
     assert lines[5] == "  worst: fibre 23 2.30 dB"
     assert lines[6] == "References:"
     assert lines[0] == "Ctrl+O: choose a job to save into"  # first: never scrolled off
-    assert lines[7].endswith("-7.00 dBm, set 0 min ago")
+    assert lines[7].endswith("−7.00 dBm, set 0 min ago")  # the one minus (U+2212)
 
 
 def test_summary_counts_against_a_typed_limit() -> None:
@@ -190,7 +191,7 @@ def test_both_directions_show_an_average_judged_by_the_worse_direction() -> None
 
 def test_in_doubt_keeps_the_verdict_mark_beside_it() -> None:
     assert cell_mark(3.5, ref.Status.FAIL, in_doubt=True) == ("  3.50✗?", "bold red")
-    assert cell_mark(-0.2, ref.Status.REFERENCE_PROBLEM, in_doubt=True)[0] == " -0.20!?"
+    assert cell_mark(-0.2, ref.Status.REFERENCE_PROBLEM, in_doubt=True)[0] == " −0.20!?"
     assert cell_mark(1.1, ref.Status.PASS, in_doubt=True) == ("  1.10 ?", "yellow")
     assert cell_mark(1.1, ref.Status.PASS, in_doubt=False) == ("  1.10  ", "green")
 
@@ -260,7 +261,7 @@ def test_a_negative_loss_stands_until_it_is_dealt_with() -> None:
     s.set_reference("-7.2")
     entered = s.enter("-7.05", DETAILS)  # -7.20 − (-7.05) = -0.15 dB
     assert entered.error and "negative" in entered.message
-    assert "fibre 1 1310 A→B: -0.15 dB, negative" in (s.problem_words() or "")
+    assert "fibre 1 1310 A→B: −0.15 dB, negative" in (s.problem_words() or "")
     # Beside its own verdict it is not said twice; in 42 columns it fits one line.
     assert s.problem_words(besides=entered.message) is None
     assert len(s.problem_words(short=True) or "") <= 42
@@ -317,7 +318,7 @@ def test_a_save_gives_the_session_the_jobs_reference_ids() -> None:
         Applied(reference_ids={(1310.0, "A->B", -7.0): "R1"}, rechecks=[("1310 A->B", drift, 1)])
     )
     assert s.refs[(1310.0, "A->B")].reference_id == "R1"
-    assert warnings == [f"1310 A->B: {drift.message} (1 result marked in doubt)"]
+    assert warnings == [minus(f"1310 A->B: {drift.message} (1 result marked in doubt)")]
 
 
 def test_a_number_on_its_way_is_no_error_but_a_wrong_unit_is() -> None:
@@ -376,7 +377,9 @@ def test_a_failed_save_says_the_readings_stay_and_a_drift_warns() -> None:
     assert severity == "error" and text.endswith(": disk full") and "kept here" in text
     drift = ref.reference_drift(-7.0, -7.3, 0.1)  # 0.3 dB beyond a 0.1 dB tolerance
     notices = s.save_notices(Applied(rechecks=[("1310 A->B", drift, 2)]))
-    assert notices == [(f"1310 A->B: {drift.message} (2 results marked in doubt)", "warning")]
+    text = "1310 A->B: reference drift −0.30 dB is beyond ±0.10 dB"  # -7.3 − (-7.0)
+    assert notices[0][0].startswith(text) and notices[0][0].endswith("(2 results marked in doubt)")
+    assert notices[0][1] == "warning"
 
 
 def test_the_history_needs_a_job_and_names_the_fibre_and_link(tmp_path) -> None:

@@ -49,7 +49,7 @@ def test_the_summary_counts_every_tested_fibre_and_names_the_worst() -> None:
     # the negative loss is never among the worst: it is a bad reference
     assert lines[2] == "  worst: fibre 2 1.81 dB, fibre 1 0.42 dB"
     assert lines[3] == "1550 nm (no limit): no readings"
-    assert lines[4:] == ["References:", "  1310 -7.20 dBm, set 42 min ago DRIFTED"]
+    assert lines[4:] == ["References:", "  1310 −7.20 dBm, set 42 min ago DRIFTED"]
 
 
 def test_narrow_summaries_drop_zero_counts_then_move_them_to_their_own_line() -> None:
