@@ -111,3 +111,70 @@ async def test_end_of_day_separators_stand_between_counts(tmp_path: Path, size) 
         assert "70 pass · 2 fail · 1 reference problem · 5 in doubt · 0 no limit" in flat
         assert not any(line.rstrip().endswith("·") for line in lines), lines
         assert not re.search(r"\S·|·\S|·  ", flat), flat
+
+
+async def _export_dialog(tmp_path: Path, pilot: Any, app: Any) -> Any:
+    from fieldkit.tui.widgets.export_dialog import ExportDialog
+
+    await pilot.pause()
+    await pilot.press("ctrl+w")
+    assert isinstance(app.screen, ExportDialog)
+    return app.screen
+
+
+async def test_export_suffix_follows_the_format_and_a_mismatch_is_refused(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # Review 2026-12-02: format JSON with File /tmp/x.csv wrote JSON into x.csv without a word.
+    from test_counts_on_screen import _demo
+    from textual.widgets import OptionList
+
+    from fieldkit.jobs.reports import EXPORT_FORMATS
+
+    monkeypatch.setenv("HOME", str(tmp_path / "home"))
+    (tmp_path / "home").mkdir(exist_ok=True)
+    _demo(tmp_path / "d")
+    out = tmp_path / "out"
+    out.mkdir()
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        dialog = await _export_dialog(tmp_path, pilot, app)
+        field = dialog.query_one("#export-path", Input)
+        formats = dialog.query_one("#export-format", OptionList)
+        field.value = str(out / "x.csv")
+        # Choosing JSON on the list renames the typed file's suffix.
+        formats.highlighted = EXPORT_FORMATS.index("json")
+        await pilot.pause()
+        assert field.value == str(out / "x.json")
+        # A name typed afterwards that does not match is refused, with the reason.
+        field.value = str(out / "x.csv")
+        await pilot.click("#export-write")
+        assert app.screen is dialog
+        error = str(dialog.query_one("#export-error", Static).render())
+        assert "ends .csv" in error and "JSON" in error, error
+        assert not (out / "x.csv").exists()
+        # Named to match, it is written as JSON.
+        field.value = str(out / "x.json")
+        await pilot.click("#export-write")
+        assert app.screen is not dialog
+    assert (out / "x.json").read_text(encoding="utf-8").lstrip().startswith("{")
+
+
+async def test_typing_on_the_export_format_list_goes_to_the_file_field(tmp_path: Path) -> None:
+    # Review 2026-12-02: a path typed with the format list focused was dropped.
+    from test_counts_on_screen import _demo
+    from textual.widgets import OptionList
+
+    _demo(tmp_path / "d")
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="jobs")
+    async with app.run_test(size=(80, 24)) as pilot:
+        dialog = await _export_dialog(tmp_path, pilot, app)
+        formats = dialog.query_one("#export-format", OptionList)
+        field = dialog.query_one("#export-path", Input)
+        assert dialog.focused is formats
+        before_format = formats.highlighted
+        field.value = ""
+        await pilot.press(*"/tmp/r")
+        assert field.value == "/tmp/r"
+        assert dialog.focused is field
+        assert formats.highlighted == before_format

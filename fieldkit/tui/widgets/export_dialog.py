@@ -11,7 +11,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from rich.text import Text
-from textual import on
+from textual import events, on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
@@ -122,8 +122,27 @@ class ExportDialog(ModalScreen[Path | None]):
     def _format_changed(self, event: OptionList.OptionHighlighted) -> None:
         field = self.query_one("#export-path", Input)
         current = Path(field.value)
-        if event.option_id and current.parent == self._folder:
+        if not event.option_id:
+            return
+        if current.parent == self._folder:
             field.value = str(self._path(event.option_id))
+        elif _format_of(current) not in (None, event.option_id):
+            # A typed file keeps its name; its suffix follows the format.
+            field.value = str(current.with_suffix(f".{event.option_id}"))
+
+    def on_key(self, event: events.Key) -> None:
+        """A character typed on the format list goes on in the File field (Space and Enter
+        still choose on the list): nothing typed is lost."""
+        formats = self.query_one("#export-format", OptionList)
+        if self.focused is formats and event.is_printable and event.character not in (None, " "):
+            event.stop()
+            event.prevent_default()
+            field = self.query_one("#export-path", Input)
+            # Focused by typing, the field must not select its text: the next key would
+            # replace what was just typed.
+            field.select_on_focus = False
+            field.focus()
+            field.insert_text_at_cursor(event.character or "")
 
     @on(Input.Changed, "#export-path")
     def _path_changed(self) -> None:
@@ -155,6 +174,16 @@ class ExportDialog(ModalScreen[Path | None]):
             error.update("Type a file name.")
             return
         try:
+            named = _format_of(Path(text))
+            if named is not None and named != fmt:
+                from fieldkit.actions.export import check_target
+
+                check_target(self._store, text)  # a target refused anyway says why first
+                # JSON written into x.csv without a word: the name and the format must agree.
+                raise ActionError(
+                    f"the file name ends .{named} but the format is {fmt.upper()}: "
+                    f"choose the {named.upper()} format or name the file .{fmt}"
+                )
             config = getattr(self.app, "config_dir", None)
             path, told = self._export(fmt, text, config)
         except (ActionError, StoreError) as exc:
@@ -198,6 +227,12 @@ class DayExportDialog(ExportDialog):
             raise ActionError(f"no job was worked on on {day.isoformat()}: nothing to export")
         done, jobs = export_range(self._store, day, day, fmt, target, config=config)
         return done.path, f"Wrote {done.path} ({len(jobs)} {'job' if len(jobs) == 1 else 'jobs'})"
+
+
+def _format_of(path: Path) -> str | None:
+    """The export format ``path``'s suffix names (None for another or no suffix)."""
+    suffix = path.suffix.lower().lstrip(".")
+    return suffix if suffix in EXPORT_FORMATS else None
 
 
 def default_export_folder() -> Path:
