@@ -143,7 +143,9 @@ def summary_lines(
         # counts go (what is left still adds up), and where it is narrower still the counts go
         # on a line of their own.
         every = ", ".join(together(words) for _, words in tally.parts())
-        some = ", ".join(together(words) for _, words in tally.parts(short=True, zeros=False))
+        # One wording at every width (Jobs' words): "reference problem", not "bad reference"
+        # at 44 columns only (review F1 #6).
+        some = ", ".join(together(words) for _, words in tally.parts(zeros=False))
         one_line = fit(
             width,
             f"{w:g} nm {limit_words}: {tested}, {every}",

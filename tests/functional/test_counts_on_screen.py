@@ -129,8 +129,8 @@ async def test_meter_at_44_columns_counts_readings_without_a_limit(tmp_path: Pat
         lines = shown_lines(summary)
         flat = " ".join(line.strip() for line in lines)
         assert "1310 nm (no limit): 3/12" in flat, lines
-        assert "1 bad reference, 2 no limit" in flat, lines
-        assert "worst: fibre 2 5.00 dB" in flat and "-0.20" not in flat, lines
+        assert "1 reference problem, 2 no limit" in flat, lines
+        assert "worst: fibre 2 5.00 dB" in flat and "0.20 dB" not in flat, lines
         # The caution stays once the reference is set (A3), whole within 44 columns.
         note = shown_lines(screen.query_one("#reference-note"))
         assert note[0].strip() == "⚠ Invisible light: never look into a fibre", note

@@ -198,7 +198,7 @@ async def test_worst_fibres_of_both_wavelengths_show_at_44_columns(
         assert visible[1] == "1310 (no limit) 24/24: 24 no limit"
         assert visible[2] == "  worst: fibre 24 2.40 dB"
         assert visible[3] == "1550 nm (no limit): 24/24"
-        assert visible[4] == "  1 bad reference, 23 no limit"
+        assert visible[4] == "  1 reference problem, 23 no limit"
         assert "worst: fibre 23 2.30 dB" in lines[5]
 
 

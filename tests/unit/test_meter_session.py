@@ -68,7 +68,7 @@ def test_summary_of_two_wavelengths_fits_a_phone_terminal() -> None:
     assert lines[1] == "1310 (no limit) 24/24: 24 no limit"
     assert lines[2] == "  worst: fibre 24 2.40 dB"  # a second would not fit 42
     # Too long for one line of 42: the counts go on their own line, "(no limit)" kept.
-    assert lines[3:5] == ["1550 nm (no limit): 24/24", "  1 bad reference, 23 no limit"]
+    assert lines[3:5] == ["1550 nm (no limit): 24/24", "  1 reference problem, 23 no limit"]
     # Review A11: the negative reading (fibre 24) is not among the worst.
     assert lines[5] == "  worst: fibre 23 2.30 dB"
     assert lines[6] == "References:"
@@ -91,7 +91,7 @@ def test_summary_counts_against_a_typed_limit() -> None:
     # 42 columns: the counts go on a line of their own, the zero counts left out.
     assert narrow[1:4] == [
         "1310 nm limit 1.50 dB: 4/4",
-        "  2 pass, 1 fail, 1 bad reference",
+        "  2 pass, 1 fail, 1 reference problem",
         "  worst: fibre 2 1.60 dB, fibre 4 1.50 dB",
     ]
 

@@ -60,7 +60,7 @@ def test_narrow_summaries_drop_zero_counts_then_move_them_to_their_own_line() ->
     at_30 = [line.replace(NBSP, " ") for line in _summary(30)]
     assert at_30[1] == "1310 nm limit 1.50 dB: 3/4"
     # the counts on their own line still add up to the 3 tested; only their commas may wrap
-    assert at_30[2] == "  1 pass, 1 fail, 1 bad reference"
+    assert at_30[2] == "  1 pass, 1 fail, 1 reference problem"
     assert all(len(piece) <= 30 for piece in at_30[2].split(", "))
     assert len(at_30[3]) <= 30 and at_30[3].startswith("  worst: fibre 2 1.81 dB")
 
