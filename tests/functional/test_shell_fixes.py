@@ -178,3 +178,29 @@ async def test_typing_on_the_export_format_list_goes_to_the_file_field(tmp_path:
         assert field.value == "/tmp/r"
         assert dialog.focused is field
         assert formats.highlighted == before_format
+
+
+async def test_typing_on_the_pickers_link_list_makes_a_new_link(tmp_path: Path) -> None:
+    # Review 2026-12-02: a new link label typed with the Link list focused was dropped.
+    from textual.widgets import OptionList
+
+    from fieldkit import locations
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    job = store.create("Harbour Road duct")
+    store.update(job.id, lambda j: j.add_link("HR-01"))
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    chosen: list[tuple[str, str] | None] = []
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        app.push_screen(JobLinkPicker(), chosen.append)
+        await pilot.pause()
+        await pilot.press("enter")  # the job: focus moves to its links
+        picker = app.screen
+        assert isinstance(picker.focused, OptionList) and picker.focused.id == "jlp-links"
+        await pilot.press(*"HR-02", "enter")
+    saved = store.load(job.id)
+    assert [link.label for link in saved.links] == ["HR-01", "HR-02"]
+    assert chosen == [(job.id, saved.links[1].id)]

@@ -20,7 +20,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from textual import on
+from textual import events, on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
@@ -300,6 +300,24 @@ class JobLinkPicker(ModalScreen[tuple[str, str] | None]):
             self._say(str(exc))
             return None
         return (self._job_id, link.id)
+
+    def on_key(self, event: events.Key) -> None:
+        """A character typed on a list goes on in the field under it (the new job's name, the
+        new link's label), as on the Jobs list; Space and Enter still choose on the list."""
+        if not event.is_printable or event.character in (None, " "):
+            return
+        fields = {"jlp-jobs": "#jlp-new-job", "jlp-links": "#jlp-new-link"}
+        focused = self.focused
+        if not isinstance(focused, OptionList) or focused.id not in fields:
+            return
+        event.stop()
+        event.prevent_default()
+        field = self.query_one(fields[focused.id], Input)
+        # Focused by typing, the field must not select its text: the next key would replace
+        # what was just typed.
+        field.select_on_focus = False
+        field.focus()
+        field.insert_text_at_cursor(event.character or "")
 
     @on(Button.Pressed, "#jlp-ok")
     def _ok(self) -> None:
