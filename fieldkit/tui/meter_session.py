@@ -308,6 +308,9 @@ class MeterSession:
         #: Cells whose loss came out negative, not yet retested, removed or re-referenced: the
         #: entry line keeps saying so until they are dealt with.
         self.problems: list[CellKey] = []
+        #: The column a reading was refused for, having no reference (its message stands
+        #: until the column has one: :meth:`reference_arrived`).
+        self.awaiting_reference: ColumnKey | None = None
         self.saves = SaveQueue()
 
     # -- columns -----------------------------------------------------------------------------
@@ -519,6 +522,7 @@ class MeterSession:
         except InputError as exc:
             return Entered(str(exc), error=True)
         if current is None:
+            self.awaiting_reference = column.measured
             return Entered(
                 f"Set the reference for {column.heading} first (the Ref field); "
                 "the reading is kept here.",
@@ -556,6 +560,14 @@ class MeterSession:
         return Entered(
             verdict_words(self.fibre, column.heading, verdict, short=short), negative, key, change
         )
+
+    def reference_arrived(self) -> bool:
+        """True once: the column a reading was refused for has a reference now (typed, or
+        loaded from a job): its "Set the reference ... first" message is stale."""
+        if self.awaiting_reference is None or self.awaiting_reference not in self.refs:
+            return False
+        self.awaiting_reference = None
+        return True
 
     def problem_words(self, *, short: bool = False, besides: str = "") -> str | None:
         """The standing word about negative losses not yet dealt with (None: none, or the

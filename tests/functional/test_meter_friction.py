@@ -185,3 +185,22 @@ async def test_a_reading_typed_after_tab_from_the_limit_is_taken(
         screen.query_one("#limit").focus()
         await pilot.press("tab")
         assert screen.focused is screen.query_one("#source")
+
+
+async def test_a_typing_problem_goes_when_the_field_is_cleared(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    # Review F1 #5: "reading: 'abc' does not start with a number" stayed after the field was
+    # cleared.
+    async with _app(isolated_dirs).run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        await _ready(pilot, screen)
+        reading = screen.query_one("#reading", Input)
+        reading.value = "abc"  # the field's restrict lets only a quantity's characters in
+        await pilot.pause()
+        assert "does not start with a number" in _message(screen)
+        await pilot.press("ctrl+u")  # cleared: the problem is gone with the text
+        assert reading.value == ""
+        assert "does not start with a number" not in _message(screen)

@@ -456,3 +456,25 @@ def test_a_typed_limit_wins_over_the_stored_one() -> None:
     s.set_limit("2.0")
     s.attach(job.id, link, DETAILS)
     assert s.limit_db(1310.0) == 2.0 and s.limit_text[1310.0] == "2.0"
+
+
+def test_set_the_reference_first_is_stale_once_a_job_brings_the_reference() -> None:
+    # Review F1 #5: "Set the reference for 1550 A→B first" stayed after Ctrl+S loaded it.
+    job = Job(name="Campus")
+    link = job.add_link("B1 to B2", fibre_count=2)
+    reference = add_reference(link, wavelength_nm=1310, level_dbm=-7.0, method=ref.Method.ONE_CORD)
+    put_result(
+        link,
+        fibre=1,
+        wavelength_nm=1310,
+        direction="A->B",
+        reading_dbm=-8.0,
+        reference=reference,
+        limit_db=None,
+    )
+    s = _session(fibres=2, wavelengths="1310")
+    refused = s.enter("-8.2", DETAILS)
+    assert refused.error and refused.message.startswith("Set the reference for 1310 A→B first")
+    assert not s.reference_arrived()  # still none
+    s.attach(job.id, link, DETAILS)
+    assert s.reference_arrived() and not s.reference_arrived()  # once

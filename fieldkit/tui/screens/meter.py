@@ -204,7 +204,7 @@ class MeterScreen(Screen[None]):
 
     def _reading_typed(self, text: str) -> None:
         problem = self.session.typing_problem(text)
-        self._say(problem, error=problem is not None)
+        self._say(self.entry.typed(problem), error=problem is not None)
 
     @on(EntryInput.Entered, "#reading")
     def _reading_entered(self, event: EntryInput.Entered) -> None:

@@ -145,11 +145,23 @@ class EntryView:
         self.session = session
         self.said = ""  # the last message
         self._shown = ""  # what the message shows (a standing problem above it)
+        self._typing: str | None = None  # the problem of the reading being typed, said
 
     def where(self, narrow: bool) -> None:
         where, placeholder = self.session.entry_where(narrow)
         self.one.static("#entry-where").update(where, layout=False)
         self.one.input("reading").placeholder = placeholder
+        if self.session.reference_arrived() and self.said.startswith("Set the reference"):
+            self.say("", narrow=narrow)  # stale: the column has its reference now
+
+    def typed(self, problem: str | None) -> str | None:
+        """What to say while a reading is typed: its problem; "" once the problem shown is
+        gone (the field cleared or corrected); None: keep the message."""
+        if problem is not None:
+            self._typing = problem
+            return problem
+        stale, self._typing = self._typing is not None and self.said == self._typing, None
+        return "" if stale else None
 
     def say(self, text: str | None, *, error: bool = False, narrow: bool = False) -> bool:
         """The message (fixed height: no layout pass per reading; None: keep the text, set the
