@@ -8,10 +8,15 @@ INVISIBLE_LIGHT = (
     "Never look into a fibre end, a connector or an adapter, with or without a magnifier or "
     "microscope; check for light with a power meter, and cap connectors you are not using."
 )
-# The same caution in one line of a phone terminal (42 columns), where the full one has no room.
-INVISIBLE_LIGHT_SHORT = "Invisible light: never look into a fibre"
-# Shorter still, for one line with "… more" after it at 42 columns.
-INVISIBLE_LIGHT_NARROW = "Invisible light: never look in"
+# Short forms: each a whole sentence (the full caution, with DEFER, a key or a click away and in
+# Help). SHORT fits one line of a phone terminal (42 columns) after "⚠ "; NARROW fits one line
+# with "… more" after it at 42 columns (tests/unit/test_safety_short.py checks both).
+INVISIBLE_LIGHT_SHORT = "Invisible light: never look into fibres."
+INVISIBLE_LIGHT_NARROW = "Never look into a fibre end."
+# The line of a printed test report (whole, no "more" to follow).
+INVISIBLE_LIGHT_REPORT = (
+    "Invisible light: never look into a fibre or connector; check for light with a power meter."
+)
 FAULT_LOCATOR = (
     "A visual fault locator is a visible red laser, usually Class 2 or 3R (IEC 60825-1): do not "
     "look into its output or a lit fibre end, and do not point it at people."
@@ -37,12 +42,12 @@ DIGGING = (
 )
 # The same caution in one line of the fault workspace where rows are scarce (the full one a key
 # or a click away, and on hover); the narrow one fits a phone terminal (42 columns).
-DIGGING_SHORT = "Before digging: have buried services located and marked"
-DIGGING_NARROW = "Dig only once services are marked"
+DIGGING_SHORT = "Before digging: have buried services located and marked."
+DIGGING_NARROW = "Have services marked, then dig."
 # The visual fault locator caution in one line (the full one, FAULT_LOCATOR, on hover and a key
-# or a click away); the narrow one fits a phone terminal.
-FAULT_LOCATOR_SHORT = "Red locator laser: never look into it or a lit end"
-FAULT_LOCATOR_NARROW = "Locator laser: never look in"
+# or a click away); the narrow one fits the fault workspace's column at 80 columns and a phone.
+FAULT_LOCATOR_SHORT = "Red locator laser: never look into it or a lit fibre end."
+FAULT_LOCATOR_NARROW = "Never look into the locator."
 OTDR_LIVE_FIBRE = (
     "An OTDR sends strong invisible pulses: never look into its port or a fibre end under test. "
     "A pulse into a live fibre can damage the receiver at the far end: disconnect the equipment "
@@ -54,7 +59,10 @@ OTDR_LIVE_FIBRE_MEDIUM = (  # two lines at 80 columns
     "Invisible OTDR pulses: never look into the port or a fibre end. Live fibre: disconnect "
     "first or use a filtered PON port (pulses can damage its receiver)."
 )
-OTDR_LIVE_FIBRE_SHORT = "OTDR: invisible pulses; never into a live fibre"
+# Two lines of a phone terminal (42 columns): a whole sentence.
+OTDR_LIVE_FIBRE_SHORT = (
+    "Invisible pulses: never look into a port or fibre end; disconnect live fibre first."
+)
 DEFER = (
     "fieldkit gives estimates to plan and check work; it does not replace local codes, site "
     "rules, the operator's procedures or licensed practice, which always take precedence."
@@ -65,4 +73,4 @@ ALL = (INVISIBLE_LIGHT, FAULT_LOCATOR, OTDR_LIVE_FIBRE, GLASS_SHARDS, SPLICER_HE
 #: The cautions of the splice log (workspace and report), in order.
 SPLICING = (GLASS_SHARDS, SPLICER_HEAT, NEVER_LOOK, FAULT_LOCATOR)
 # The same cautions in one line of the splice workspace (the full ones on hover and in Help).
-SPLICING_SHORT = "Shards: glasses, shard bin · hot arc and oven · never look into a fibre"
+SPLICING_SHORT = "Wear glasses, bin shards, mind the hot arc and oven, never look into a fibre."

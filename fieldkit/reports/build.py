@@ -275,7 +275,7 @@ def _mark(row: Tally) -> str:
 
 def _safety_lines(job: Job) -> list[str]:
     """Short cautions for a test report: what can hurt whoever works on these links next."""
-    lines = [safety.INVISIBLE_LIGHT_SHORT + " or connector; check for light with a power meter."]
+    lines = [safety.INVISIBLE_LIGHT_REPORT]
     if any(link.closures for link in job.links):
         lines.append("Fibre offcuts are glass shards: safety glasses and a shard container.")
     if any(link.faults for link in job.links):

@@ -293,7 +293,7 @@ def defaults_notice(limits: Limits, wide: bool = True) -> str:
         return ""
     if wide:
         return f"Shipped default limits ({fibre_of(limits)}); ^S: judge by a job link's presets"
-    return f"Shipped limits ({fibre_of(limits)}); ^S: a link's"
+    return f"Shipped {fibre_of(limits)} limits; ^S picks a link."
 
 
 def otdr_caution(width: int, wide: bool = True) -> str:

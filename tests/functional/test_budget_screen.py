@@ -561,7 +561,8 @@ async def test_the_invisible_light_caution_is_in_view_short_and_whole(tmp_path: 
         assert region.height == 1 and region.bottom <= size[1] - 1  # above the footer
         assert screen.get_widget_at(1, region.y)[0] is caution
         words = text_of(app, "#budget-caution")
-        assert words.startswith("⚠ Invisible light: never look in") and words.endswith("more")
+        short = safety.INVISIBLE_LIGHT_SHORT if size[0] >= 80 else safety.INVISIBLE_LIGHT_NARROW
+        assert words.startswith(f"⚠ {short}") and words.endswith("more")
         assert "…" not in words.removesuffix("… more")
         assert safety.INVISIBLE_LIGHT in str(caution.tooltip)
         caution.focus()

@@ -133,4 +133,4 @@ async def test_meter_at_44_columns_counts_readings_without_a_limit(tmp_path: Pat
         assert "worst: fibre 2 5.00 dB" in flat and "0.20 dB" not in flat, lines
         # The caution stays once the reference is set (A3), whole within 44 columns.
         note = shown_lines(screen.query_one("#reference-note"))
-        assert note[0].strip() == "⚠ Invisible light: never look into a fibre", note
+        assert note[0].strip() == "⚠ Invisible light: never look into fibres.", note

@@ -92,7 +92,7 @@ async def test_typing_a_distance_gives_a_range_and_the_cautions(
         await _show(pilot, screen, "#fault-locator-caution")
         words = _text(screen, "#fault-locator-caution")
         assert words.endswith("more") and "…" not in words.removesuffix("… more")
-        assert "laser" in words and "never look in" in words
+        assert "locator" in words and "look into" in words
         result = screen.query_one("#fault-result-panel").region
         assert result.y < locator.region.y  # the result comes first
         caution.focus()

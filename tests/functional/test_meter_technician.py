@@ -251,7 +251,7 @@ async def test_job_budget_limit_and_replace_hint_fit_44_columns(
         note = screen.query_one("#reference-note", Static)
         lines = str(note.render()).splitlines()
         assert lines == [
-            "⚠ Invisible light: never look into a fibre",  # all session (review A3)
+            f"⚠ {safety.INVISIBLE_LIGHT_SHORT}",  # all session (review A3)
             "two-cord: 1 of 2 end connections counted",
             "limit 3.85 dB: budget less 1 connection",
         ]

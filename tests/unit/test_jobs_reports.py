@@ -159,7 +159,7 @@ def test_html_is_self_contained_and_escapes_user_text() -> None:
     assert "&lt;basement&gt;" in page and "<basement>" not in page
     assert "@page" in page  # print rules for paper (A4 and Letter both fit these margins)
     # the short cautions of a test report (fieldkit.reports.build._safety_lines)
-    assert safety.INVISIBLE_LIGHT_SHORT in page and safety.DEFER.replace("'", "&#x27;") in page
+    assert safety.INVISIBLE_LIGHT_REPORT in page and safety.DEFER.replace("'", "&#x27;") in page
     assert "utility-locate" in page  # the sample has a located fault
     assert "glass shards" in page  # and a splice log
 
