@@ -314,7 +314,7 @@ def _reservoir(at: _At) -> Job:
             at=at(8.2),
             inputs={
                 "otdr_distance_m": 2963.0,
-                "group_index": 1.4682,
+                "group_index": 1.4677,  # the G.652.D 1550 nm preset (presets/fibres.toml)
                 "helix_percent": 1.5,
                 "slack_loops_m": [{"at_m": 1500.0, "length_m": 30.0}],
             },

@@ -16,9 +16,11 @@ from fieldkit.calc import otdr
 from fieldkit.traces.model import Trace, TraceFileError
 from fieldkit.traces.verdicts import Limits, event_verdict, orl_verdict, section_verdict
 
-#: Group index assumed when neither the file nor the user gives one (G.652 at 1550 nm,
-#: typical, from memory); said in the results.
-DEFAULT_GROUP_INDEX = 1.4682
+#: Group index assumed when neither the file nor the user gives one, said in the results: the
+#: G.652.D (and OS2) value at 1550 nm of the preset library, presets/fibres.toml (typical, from
+#: memory), so a traces hand-off and the Fault workspace's preset agree (the traces layer
+#: reads no presets: tests/unit/test_group_index_one_value.py checks the two are equal).
+DEFAULT_GROUP_INDEX = 1.4677
 
 
 @dataclass(frozen=True, slots=True)

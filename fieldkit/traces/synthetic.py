@@ -48,7 +48,7 @@ class SynthFibre:
     end_reflectance_db: float | None = -14.7  # a clean cleave into air (Fresnel, n 1.468)
     wavelength_nm: float = 1550.0
     pulse_width_ns: float = 30.0
-    group_index: float = 1.4682
+    group_index: float = 1.4677  # = analysis.DEFAULT_GROUP_INDEX, the G.652.D 1550 nm preset
     spacing_m: float = 1.0
     points: int | None = None  # default: 30 % beyond the end
     dynamic_range_db: float = 14.0  # launch backscatter to noise RMS, one-way dB

@@ -70,7 +70,14 @@ async def test_open_a_pair_jump_to_an_event_and_send_it_to_fault(
         assert isinstance(fault, FaultScreen)
         distance = fault.query_one("#fault-distance", Input).value
         assert float(distance.removesuffix(" m")) == pytest.approx(2600.0, abs=2.0)
-        assert fault.query_one("#fault-ior-set", Input).value == "1.4682"
+        # One group index (review: 1.4682 here against the Fault preset's 1.4677 turned an
+        # event at 1815.0 m into "fibre 1816 m"): the trace's index is the G.652.D 1550 nm
+        # preset's, so the Fault workspace's fibre distance is the distance on the trace.
+        assert fault.query_one("#fault-ior-set", Input).value == "1.4677"
+        assert fault.query_one("#fault-ior", Input).value == "1.4677"
+        assert fault.form.location is not None
+        fibre_m = fault.form.location.position.fibre_distance_m
+        assert fibre_m == pytest.approx(float(distance.removesuffix(" m")), abs=1e-6)
 
 
 async def test_mouse_click_moves_the_cursor_and_the_wheel_zooms(
