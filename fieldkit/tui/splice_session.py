@@ -224,12 +224,28 @@ class SpliceSession:
         return self.closure.current_for(self.cable_a.name, self.fibre) if self.cable_a else None
 
     # -- lines the screen shows ----------------------------------------------------------------
-    def where_line(self, *, short: bool = False) -> str:
+    def where_line(self, *, short: bool = False, width: int | None = None) -> str:
+        """Job, link and closure; in ``width`` columns the job's name goes first, then the
+        word "closure" and the route, so the closure's name stays whole; a name that still
+        does not fit ends in "…" where it is cut (never cut silently)."""
         route = self.closure.route_distance_m
         place = f" · route {route:.0f} m" if route is not None else ""
-        if short:
-            return f"{self.link_label} · {self.closure.name}{place}"
-        return f"{self.job_name} · {self.link_label} · closure {self.closure.name}{place}"
+        name = self.closure.name
+        lines = [
+            f"{self.link_label} · {name}{place}",
+            f"{self.link_label} · {name}",
+            name,
+        ]
+        if not short:
+            lines[:0] = [
+                f"{self.job_name} · {self.link_label} · closure {name}{place}",
+                f"{self.link_label} · closure {name}{place}",
+                f"{self.link_label} · closure {name}",
+            ]
+        if width is None:
+            return lines[0]
+        line = next((line for line in lines if len(line) <= width), lines[-1])
+        return line if len(line) <= width else line[: max(1, width - 1)] + "…"
 
     def fibre_line(self) -> str:
         """``Fibre 14 of 144 → B 14 · tray 2 slot 2`` (or the splice already there)."""

@@ -218,10 +218,22 @@ class SplicesScreen(Screen[None]):
         self._rows = []
         self.query_one("#sp-setup").display = False
         self.query_one("#sp-entry").display = True
-        narrow = self.size.width < 60
-        self.query_one("#sp-where", Static).update(Text(self.session.where_line(short=narrow)))
+        self._show_where()
         self._refresh()
         self.query_one("#sp-value", EntryInput).focus()
+
+    def _show_where(self) -> None:
+        """The job, link and closure in the top line, fitted to its width (closure name whole,
+        or cut with "…")."""
+        if self.session is None:
+            return
+        where = self.query_one("#sp-where", Static)
+        width = where.size.width or max(1, self.size.width - 10)  # 10: the Open button
+        narrow = self.size.width < 60
+        where.update(Text(self.session.where_line(short=narrow, width=width)))
+
+    def on_resize(self) -> None:
+        self._show_where()
 
     # -- entry -------------------------------------------------------------------------------
     def _check(self, text: str) -> bool:
