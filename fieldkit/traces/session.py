@@ -40,6 +40,13 @@ from fieldkit.traces.pairing import PairResult, pair
 from fieldkit.traces.verdicts import Limits
 
 
+#: The loss methods (calc.otdr) in a technician's words, for the events table's title.
+LOSS_METHOD_WORDS = {
+    "two-line": "lines fitted either side",
+    "five-point": "five points around the event",
+}
+
+
 @dataclass(frozen=True, slots=True)
 class EventMark:
     """An event to mark on the drawn trace, numbered as in the table."""
@@ -298,8 +305,9 @@ class TraceSession:
         if self.instrument_table and r is not None:
             return f"The instrument's own events ({r.trace.source}), as recorded"
         if self.paired is not None:
-            return f"Events, both directions averaged ({self.settings.loss_method})"
-        return f"Events ({self.settings.loss_method} loss)"
+            return "Events, both directions averaged"
+        method = LOSS_METHOD_WORDS.get(self.settings.loss_method, self.settings.loss_method)
+        return f"Events, loss from {method}"
 
     def rows(self, wide: bool) -> list[tuple[str, ...]]:
         r = self.current
