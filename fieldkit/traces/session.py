@@ -39,7 +39,6 @@ from fieldkit.traces.model import TraceFileError
 from fieldkit.traces.pairing import PairResult, pair
 from fieldkit.traces.verdicts import Limits
 
-
 #: The loss methods (calc.otdr) in a technician's words, for the events table's title.
 LOSS_METHOD_WORDS = {
     "two-line": "lines fitted either side",
