@@ -45,6 +45,10 @@ async def test_the_closure_name_is_whole(tmp_path: Path, size: tuple[int, int]) 
         shown = _line(screen, "#sp-where")
         assert len(shown) <= where.content_size.width  # nothing lost past the edge
         assert name in shown  # at both sizes there is room for the whole name
-        colour = _line(screen, "#sp-colour")
-        if "██" in colour:
-            assert "██ tube" in colour and "██ fibre" in colour  # one space between
+        # the swatch: two painted cells, then one plain space, then the word
+        rendered = screen.query_one("#sp-colour", Static).render()
+        plain = rendered.plain
+        start = plain.index("tube")
+        assert plain[start - 3 : start] == "   "
+        painted = [(s.start, s.end) for s in rendered.spans if s.start < start]
+        assert painted == [(start - 3, start - 1)]  # two cells; the space before the word plain

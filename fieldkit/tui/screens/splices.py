@@ -8,6 +8,7 @@ Layout and wiring only: the state and what each key does live in
 from __future__ import annotations
 
 import os
+from collections.abc import Callable
 
 from rich.text import Text
 from textual import events, on
@@ -64,6 +65,29 @@ _SETUP = (
 _MODE_WORDS = {"estimate": "estimate", "otdr": "A→B, B→A", "all": "estimate, A→B, B→A"}
 
 
+class WhereLine(Static):
+    """The top line: a line made to fit the width it has, made again when that changes."""
+
+    def __init__(self, text: str, *, id: str) -> None:  # noqa: A002
+        super().__init__(text, id=id)
+        self._fit: Callable[[int], str] | None = None
+
+    def say(self, text: str) -> None:
+        self._fit = None
+        self.update(Text(text))
+
+    def show(self, fit: Callable[[int], str]) -> None:
+        self._fit = fit
+        self._draw()
+
+    def on_resize(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        if self._fit is not None:
+            self.update(Text(self._fit(self.content_size.width or self.app.size.width - 10)))
+
+
 class SplicesScreen(Screen[None]):
     """Closures, cables, trays and every splice of a link."""
 
@@ -81,7 +105,7 @@ class SplicesScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield WorkspaceBar()
         with Horizontal(id="sp-top"):
-            yield Static("No link chosen yet", id="sp-where")
+            yield WhereLine("No link chosen yet", id="sp-where")
             yield Button(f"Open {keys.hint('open')}", id="sp-open", compact=True)
         yield Static(_START_HELP, id="sp-start-help")
         with Vertical(id="sp-setup"):
@@ -148,7 +172,7 @@ class SplicesScreen(Screen[None]):
         self.job_id, self.link_id = choice
         job = fieldkit_app(self).store.load(self.job_id)
         link = job.link(self.link_id)
-        self.query_one("#sp-where", Static).update(Text(f"{job.name} · {link.label}"))
+        self.query_one("#sp-where", WhereLine).say(f"{job.name} · {link.label}")
         closures = self.query_one("#sp-closures", OptionList)
         closures.clear_options()
         closures.add_options(
@@ -224,16 +248,14 @@ class SplicesScreen(Screen[None]):
 
     def _show_where(self) -> None:
         """The job, link and closure in the top line, fitted to its width (closure name whole,
-        or cut with "…")."""
-        if self.session is None:
+        or cut with "…"), fitted again whenever its width changes."""
+        session = self.session
+        if session is None:
             return
-        where = self.query_one("#sp-where", Static)
-        width = where.size.width or max(1, self.size.width - 10)  # 10: the Open button
         narrow = self.size.width < 60
-        where.update(Text(self.session.where_line(short=narrow, width=width)))
-
-    def on_resize(self) -> None:
-        self._show_where()
+        self.query_one("#sp-where", WhereLine).show(
+            lambda width: session.where_line(short=narrow, width=width)
+        )
 
     # -- entry -------------------------------------------------------------------------------
     def _check(self, text: str) -> bool:
@@ -318,7 +340,10 @@ class SplicesScreen(Screen[None]):
                 colour.append(" · ")
             if session.swatch:
                 base = words.split(" ")[0]
-                colour.append("██", style=SWATCH.get(base, ""))
+                # Two cells painted in the colour, then one plain space before the word (a
+                # "██" glyph drawn wider than its cells touched the word: review).
+                hue = SWATCH.get(base)
+                colour.append("  ", style=f"on {hue}" if hue else "")
                 colour.append(" ")
             colour.append(f"{where} {words}")
         hint = f"Enter takes {_MODE_WORDS[self._mode]}; ^Y other fields; ↑↓ fibre"
