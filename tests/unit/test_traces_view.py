@@ -76,7 +76,7 @@ def test_session_opens_a_pair_and_hands_the_break_to_fault(files):
     assert [r[2] for r in s.rows(wide=True)] == ["splice/bend", "end"]  # no closure known
     hand = s.fault_handoff(None, [Closure("closure 3", 1480.0)])
     assert hand.distance_m == pytest.approx(4000.0, abs=2.0)
-    assert hand.group_index == pytest.approx(1.4682)
+    assert hand.group_index == pytest.approx(1.4677)  # the trace's: the G.652.D 1550 nm preset
     # the closure at 1480 m of route matches the splice found at 1500 m: a 1.4 % helix, inside
     # the 0-3 % a cable has (common practice; fieldkit.traces.closures)
     assert hand.landmarks[0][0] == "closure 3"
