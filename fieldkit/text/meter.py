@@ -178,14 +178,16 @@ def summary_lines(
     return [minus(line) for line in lines]  # the one minus (text/numbers.py)
 
 
-def set_reference_note(heading: str, *, narrow: bool) -> str:
+def set_reference_note(heading: str, *, narrow: bool, details_open: bool = False) -> str:
     """The note while column ``heading`` has no reference: set one, with the light caution
-    (setting a reference means handling live cords)."""
+    (setting a reference means handling live cords); "more under Reference details" only
+    while they are folded (open, the whole caution shows under them)."""
     if narrow:
         return f"Set Ref {heading}, then type readings.\n⚠ {safety.INVISIBLE_LIGHT_SHORT}"
+    more = "" if details_open else " (more under Reference details)"
     return (
         f"Set the reference for {heading} (Ref), then type readings.\n"
-        f"⚠ {safety.INVISIBLE_LIGHT_SHORT} (more under Reference details)"
+        f"⚠ {safety.INVISIBLE_LIGHT_SHORT}{more}"
     )
 
 

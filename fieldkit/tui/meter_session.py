@@ -694,13 +694,16 @@ class MeterSession:
 
     # -- the reference note --------------------------------------------------------------------
     def reference_note(
-        self, *, narrow: bool, source_text: str = "", launch: str = ""
+        self, *, narrow: bool, source_text: str = "", launch: str = "", details_open: bool = False
     ) -> tuple[str, str | None]:
         """The note under the set-up and the source-output field's error (None: no error)."""
         column = self.active_column
         current = self.current_reference
         if current is None:
-            return meter_text.set_reference_note(column.heading, narrow=narrow), None
+            note = meter_text.set_reference_note(
+                column.heading, narrow=narrow, details_open=details_open
+            )
+            return note, None
         source_dbm = None
         source_error: str | None = None
         if source_text.strip():

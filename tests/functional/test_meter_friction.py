@@ -204,3 +204,17 @@ async def test_a_typing_problem_goes_when_the_field_is_cleared(
         await pilot.press("ctrl+u")  # cleared: the problem is gone with the text
         assert reading.value == ""
         assert "does not start with a number" not in _message(screen)
+
+
+async def test_the_note_stops_pointing_under_the_details_once_they_are_open(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    async with _app(isolated_dirs).run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        screen = pilot.app.screen
+        assert isinstance(screen, MeterScreen)
+        note = screen.query_one("#reference-note", Static)
+        assert "more under Reference details" in str(note.render())
+        await pilot.click("#meter-details CollapsibleTitle")
+        assert not screen.query_one("#meter-details").collapsed  # type: ignore[attr-defined]
+        assert "more under Reference details" not in str(note.render())

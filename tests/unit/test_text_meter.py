@@ -113,3 +113,12 @@ def test_a_drift_beyond_its_tolerance_says_retest_in_42_columns() -> None:
     words = recheck_words("1310 A→B", ref.Drift(0.3, 0.1, False), short=True)
     assert words == "1310 A→B: drift +0.30 > ±0.10 dB: retest" and len(words) <= 42
     assert "within" in recheck_words("1310 A→B", ref.Drift(0.05, 0.1, True))
+
+
+def test_more_under_reference_details_only_while_they_are_folded() -> None:
+    # Review F1 #5: the note pointed under the details while they were open.
+    from fieldkit.text.meter import set_reference_note
+
+    assert "(more under Reference details)" in set_reference_note("1310 A→B", narrow=False)
+    shown = set_reference_note("1310 A→B", narrow=False, details_open=True)
+    assert "Reference details" not in shown and shown.startswith("Set the reference")

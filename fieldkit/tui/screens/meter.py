@@ -4,9 +4,7 @@ Typing goes into one entry field; the grid (a DataTable) shows the losses. Type 
 Enter, and the cursor moves on to the next fibre; Up/Down move between fibres, Ctrl+←/→ between
 columns, and a click on a cell goes there. A plain number is a level in dBm; a unit (µW, nW,
 mW, dBW) may follow it. Results are saved into the chosen job's link as they are entered (a
-background save worker; entries made while a save runs go with the next one).
-
-Layout and wiring only: the state lives in :class:`fieldkit.tui.meter_session.MeterSession`.
+background save worker). Layout and wiring only: the state is :class:`MeterSession`'s.
 """
 
 from __future__ import annotations
@@ -19,7 +17,7 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.screen import Screen
 from textual.widget import Widget
-from textual.widgets import DataTable, Input, Static
+from textual.widgets import Collapsible, DataTable, Input, Static
 
 from fieldkit.actions.meter import Applied, ReferenceDetails
 from fieldkit.calc import reference as ref
@@ -112,6 +110,10 @@ class MeterScreen(Screen[None]):
         # Enter in a set-up field: back to typing readings (or to Ref, while it is empty).
         if event.input.id != "reading":
             self.query_one(f"#{self.session.work_field}").focus()
+
+    @on(Collapsible.Toggled)  # "more under Reference details" only while they are folded
+    def _details_toggled(self) -> None:
+        self._show_reference_note()
 
     def on_click(self, event: events.Click) -> None:
         if event.widget is not None and event.widget.id == "setup-line":
@@ -305,12 +307,9 @@ class MeterScreen(Screen[None]):
         from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
 
         self.app.push_screen(
-            JobLinkPicker(title="Save readings onto a job's link"), self._job_picked
+            JobLinkPicker(title="Save readings onto a job's link"),
+            lambda choice: None if choice is None else self.attach(*choice),
         )
-
-    def _job_picked(self, choice: tuple[str, str] | None) -> None:
-        if choice:
-            self.attach(*choice)
 
     def attach(self, job_id: str, link_id: str) -> None:
         """Save into this job's link from now on; load what it already holds into the grid."""

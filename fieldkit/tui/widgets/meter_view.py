@@ -55,13 +55,17 @@ class SetupView:
         self.session = session
         self._synced: GridColumn | None = None
 
+    @property
+    def details_open(self) -> bool:
+        details = self.one("#meter-details")
+        assert isinstance(details, Collapsible)
+        return not details.collapsed
+
     def tab_from(self, focused: Widget | None) -> Widget | None:
         """Focus the field Tab goes to from ``focused``; None: the next in order (not done)."""
         if focused is None or not focused.id:
             return None
-        details = self.one("#meter-details")
-        assert isinstance(details, Collapsible)
-        to = self.session.tab_from(focused.id, details_open=not details.collapsed)
+        to = self.session.tab_from(focused.id, details_open=self.details_open)
         if to is None:
             return None
         widget = self.one(f"#{to}")
@@ -109,6 +113,7 @@ class SetupView:
             narrow=narrow,
             source_text=self.one.input("source-level").value,
             launch=self.one.input("launch").value,
+            details_open=self.details_open,
         )
         if source_error is not None:
             self.error("source-level", source_error)
