@@ -75,6 +75,8 @@ class FieldkitApp(App[None]):
         self._previous_theme = "textual-dark"
         self._store: JobStore | None = None
         self._operator: str | None = None
+        #: Screens pushed whose focus is not set yet -> the keys typed for them meanwhile.
+        self._settling: dict[Screen[Any], list[events.Key | events.Paste]] = {}
 
     _css_variables: tuple[object, dict[str, str]] | None = None
 
@@ -131,10 +133,35 @@ class FieldkitApp(App[None]):
         # .hold_keys) and hands it on once they are there: nothing typed is lost or misplaced.
         if isinstance(event, (events.Key, events.Paste)) and not event.is_forwarded:
             stack = self.screen_stack
+            if stack and stack[-1] in self._settling:
+                # A dialog just pushed, its focus not set yet: the key waits for it.
+                self._settling[stack[-1]].append(event)
+                return
             hold = getattr(stack[-1], "hold_key", None) if stack else None
             if hold is not None and hold(event):
                 return
         await super().on_event(event)
+
+    def push_screen(self, screen: Any, *args: Any, **kwargs: Any) -> Any:
+        """As Textual's, and keys typed before the pushed screen has mounted and set its focus
+        (Ctrl+S then Down at once) are held and handed on to it in order once it has."""
+        result = super().push_screen(screen, *args, **kwargs)
+        top = self.screen_stack[-1]
+        if top not in self._settling:
+            self._settling[top] = []
+            # Queued behind its mount and its ScreenResume (AUTO_FOCUS): runs once they ran.
+            top.call_later(self.call_later, self._hand_on_to_pushed, top)
+        return result
+
+    async def _hand_on_to_pushed(self, screen: Screen[Any]) -> None:
+        # In the app's queue: keys that came before this are held, those after it follow.
+        for event in self._settling.pop(screen, []):
+            again: events.Key | events.Paste
+            if isinstance(event, events.Key):
+                again = events.Key(event.key, event.character)
+            else:
+                again = events.Paste(event.text)
+            await self.on_event(again)
 
     # -- first start: the operator, where data lives, a new job ----------------------------
     def _first_start(self) -> None:

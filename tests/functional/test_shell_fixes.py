@@ -204,3 +204,48 @@ async def test_typing_on_the_pickers_link_list_makes_a_new_link(tmp_path: Path) 
     saved = store.load(job.id)
     assert [link.label for link in saved.links] == ["HR-01", "HR-02"]
     assert chosen == [(job.id, saved.links[1].id)]
+
+
+async def test_a_key_typed_before_a_pushed_dialog_has_its_focus_goes_to_it(
+    tmp_path: Path,
+) -> None:
+    # Review 2026-12-02: Fault, Ctrl+S then Down at once: the Down was lost (the picker's
+    # list was not focused yet) and the save went onto the wrong job. Here the Down reaches
+    # the app in the same turn as the push, before the dialog has mounted and set its focus.
+    from textual import events
+    from textual.widgets import OptionList
+
+    from fieldkit import locations
+    from fieldkit.jobs.store import JobStore
+    from fieldkit.tui.widgets.job_link_picker import JobLinkPicker
+
+    store = JobStore(locations.jobs_dir(tmp_path / "d"))
+    for name in ("Mill Lane", "Harbour Road"):
+        job = store.create(name)
+        store.update(job.id, lambda j: j.add_link("L-1"))
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        picker = JobLinkPicker()
+        app.push_screen(picker)
+        await app.on_event(events.Key("down", None))
+        await pilot.pause()
+        assert app.screen is picker
+        jobs = picker.query_one("#jlp-jobs", OptionList)
+        assert picker.focused is jobs
+        # the list starts on the first job (see _reload_jobs); the Down: the second
+        assert jobs.highlighted == 1
+
+
+async def test_keys_typed_ahead_into_a_pushed_dialog_keep_their_order(tmp_path: Path) -> None:
+    from textual import events
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        dialog = NameDialog("Who is working?", "note", "")
+        app.push_screen(dialog)
+        for key, char in (("A", "A"), ("n", "n"), ("a", "a")):
+            await app.on_event(events.Key(key, char))
+        await pilot.pause()
+        assert dialog.query_one("#name-value", Input).value == "Ana"
