@@ -194,6 +194,8 @@ class FieldkitApp(App[None]):
                 "Your name goes on every result, reference, budget, fault, splice and note "
                 f"you save (change it from the command palette, {keys.display('ctrl+p')}).",
                 self.operator,
+                # asked on a start with no name known: no record is saved without one
+                required=then_offer_job and not self.operator,
             ),
             given,
         )

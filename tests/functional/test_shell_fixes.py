@@ -55,6 +55,10 @@ async def test_demo_folder_first_start_asks_the_name_and_refuses_a_blank_one(
         await pilot.press("enter")  # blank: not kept, the dialog says why
         assert isinstance(app.screen, NameDialog)
         assert "name is needed" in str(app.screen.query_one("#name-error", Static).render())
+        # No name known: Escape does not leave it without one (no Cancel button either).
+        await pilot.press("escape")
+        assert isinstance(app.screen, NameDialog)
+        assert not app.screen.query("#name-cancel")
         await pilot.press(*"Ana Ruiz", "enter")
         assert not isinstance(app.screen, NameDialog)
         assert app.operator == "Ana Ruiz"

@@ -107,11 +107,13 @@ class NameDialog(ModalScreen[str | None]):
     DEFAULT_CSS = DIALOG_CSS
     BINDINGS = [Binding("escape", "cancel", "Cancel", id="dialog.cancel")]
 
-    def __init__(self, title: str, note: str, value: str = "") -> None:
+    def __init__(self, title: str, note: str, value: str = "", required: bool = False) -> None:
         super().__init__()
         self._title = title
         self._note = note
         self._value = value
+        #: No Cancel: a name must be given (the first start, when no name is known).
+        self._required = required
 
     def compose(self) -> ComposeResult:
         with Vertical():
@@ -121,7 +123,8 @@ class NameDialog(ModalScreen[str | None]):
             yield Static("", id="name-error", classes="field-error", markup=False)
             with Horizontal(classes="ask-buttons"):
                 yield Button("Keep", id="name-keep", variant="primary", compact=True)
-                yield Button("Cancel", id="name-cancel", compact=True)
+                if not self._required:
+                    yield Button("Cancel", id="name-cancel", compact=True)
 
     def on_mount(self) -> None:
         self.query_one("#name-value", Input).focus()
@@ -147,4 +150,9 @@ class NameDialog(ModalScreen[str | None]):
 
     @on(Button.Pressed, "#name-cancel")
     def action_cancel(self) -> None:
+        if self._required:
+            self.query_one("#name-error", Static).update(
+                "A name is needed: it goes on everything you save."
+            )
+            return
         self.dismiss(None)
