@@ -253,3 +253,18 @@ async def test_keys_typed_ahead_into_a_pushed_dialog_keep_their_order(tmp_path: 
             await app.on_event(events.Key(key, char))
         await pilot.pause()
         assert dialog.query_one("#name-value", Input).value == "Ana"
+
+
+async def test_every_footer_word_is_capitalised_the_palette_too(tmp_path: Path) -> None:
+    # Review 2026-12-02: the footer mixed "^P palette" with "Quit", "Save".
+    from textual.widgets._footer import FooterKey
+
+    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c", start_mode="convert")
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        footer_keys = list(app.screen.query(FooterKey))
+        palette = [k for k in footer_keys if k.has_class("-command-palette")]
+        assert [k.description for k in palette] == ["Palette"]
+        assert all(k.description[:1].isupper() for k in footer_keys), [
+            k.description for k in footer_keys
+        ]

@@ -42,6 +42,9 @@ class KeyFooter(Footer):
             return order.index(widget.key) if widget.key in order else len(order)
 
         palette = [k for k in keys if k.has_class("-command-palette")]
+        for key in palette:
+            # Textual names it "palette": capitalised like every other key's word ("Quit").
+            key.description = key.description[:1].upper() + key.description[1:]
         shown = sorted((k for k in keys if not k.has_class("-command-palette")), key=rank)
         width = self.app.size.width
         self._fitted_for = width
