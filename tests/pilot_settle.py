@@ -15,6 +15,8 @@ Here the wait is for what the key set going instead, checked after each turn of 
   runs that update itself rather than wait for the timer's next tick;
 - no worker of the current screen (or of the app) is still running: a thread save, a load. A
   worker of a screen underneath, waiting on a dialog the test has yet to answer, is left alone;
+- no animation is running or scheduled: a scroll is one, even with animations off (it lands on
+  the animator's next frame, a timer), and Textual's own key sender waits for it too;
 - and the current screen stayed the same while all that was checked.
 
 Timers are not waited for: a test that needs a delayed refresh (the meter's summary) asks for
@@ -104,6 +106,13 @@ async def settle(app: App[Any]) -> None:
         if screen is not last_screen:  # a dialog opened or closed: settle it afresh
             last_screen = screen
             quiet = 0
+        animator = app.animator
+        if animator._animations or animator._scheduled:  # noqa: SLF001
+            # A scroll is an animation even with animations off (it lands on the animator's
+            # next frame, a timer): wait for it, as Textual's own key sender does.
+            quiet = 0
+            await animator.wait_until_complete()
+            continue
         workers = _pending_workers(app)
         if workers:
             # A short wait, then look again: the worker may open a dialog and wait on it, and
