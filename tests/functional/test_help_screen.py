@@ -40,7 +40,14 @@ def test_help_lists_the_key_table_with_each_workspace_use() -> None:
 
 
 @pytest.mark.parametrize("size", SIZES)
-async def test_every_key_name_shows_whole(tmp_path: Path, size) -> None:
+async def test_paging_through_help_shows_every_key_whole_and_no_stray_blocks(
+    tmp_path: Path, size
+) -> None:
+    """One page-down at a time to the end (the keyboard way): every key name is whole on
+    some page, and on every page the scrollbar thumb is whole cells. Review C35: the thumb's
+    ends were drawn with partial-block glyphs (Textual's ScrollBarRender.VERTICAL_BARS), stray
+    blocks down Help's right edge at 80x24; it is one column wide now, its colour, no glyphs."""
+    partial_blocks = "▁▂▃▄▅▆▇"
     app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
@@ -50,14 +57,21 @@ async def test_every_key_name_shows_whole(tmp_path: Path, size) -> None:
         body = app.screen.query_one("#help-body", VerticalScroll)
         if size[0] < 72:
             assert body.region.width == size[0]  # the whole width on a phone terminal
-        shots = [app.export_screenshot()]
-        while True:  # page through with the keyboard, to the end
+        assert body.show_vertical_scrollbar and body.scrollbar_size_vertical == 1
+        bar = body.vertical_scrollbar
+        console = Console(width=1, height=bar.size.height, file=io.StringIO(), color_system=None)
+        shots = []
+        while True:
+            shots.append(app.export_screenshot())
+            options = console.options.update_dimensions(1, bar.size.height)
+            drawn = "".join(seg.text for seg in console.render(bar.render(), options))
+            assert drawn.strip() == "", body.scroll_y  # the thumb is its colour, no glyphs
+            assert not any(g in drawn for g in partial_blocks), body.scroll_y
             before = body.scroll_y
             await pilot.press("pagedown")
             await pilot.pause()
             if body.scroll_y == before:
                 break
-            shots.append(app.export_screenshot())
         assert len(shots) > 1 and body.scroll_y > 0
         seen = "".join(shots)
         for key in ("^P", "^T", "^Q", "^S", "^X", "^R"):
@@ -87,30 +101,3 @@ def test_help_says_which_workspaces_use_each_key() -> None:
     field_keys = {k for b in Input.BINDINGS for k in b.key.split(",")}  # type: ignore[union-attr]
     assert {"home", "ctrl+a", "end", "ctrl+e", "delete", "ctrl+d"} <= field_keys
     assert "a text field there takes Home, End and Delete instead" in text
-
-
-@pytest.mark.parametrize("size", SIZES)
-async def test_no_stray_scrollbar_blocks_down_the_right_edge(tmp_path: Path, size) -> None:
-    # Review C35: the scrollbar thumb's ends were drawn with partial-block glyphs (Textual's
-    # ScrollBarRender.VERTICAL_BARS), stray blocks down Help's right edge at 80x24. The thumb
-    # is whole cells now, one column wide, on every page.
-    partial_blocks = "▁▂▃▄▅▆▇"
-    app = make_app(data_dir=tmp_path / "d", config_dir=tmp_path / "c")
-    async with app.run_test(size=size) as pilot:
-        await pilot.pause()
-        await pilot.press("f1")
-        await pilot.pause()
-        body = app.screen.query_one("#help-body", VerticalScroll)
-        assert body.show_vertical_scrollbar and body.scrollbar_size_vertical == 1
-        bar = body.vertical_scrollbar
-        console = Console(width=1, height=bar.size.height, file=io.StringIO(), color_system=None)
-        while True:
-            options = console.options.update_dimensions(1, bar.size.height)
-            drawn = "".join(seg.text for seg in console.render(bar.render(), options))
-            assert drawn.strip() == "", body.scroll_y  # the thumb is its colour, no glyphs
-            assert not any(g in drawn for g in partial_blocks), body.scroll_y
-            before = body.scroll_y
-            await pilot.press("pagedown")
-            await pilot.pause()
-            if body.scroll_y == before:
-                break
