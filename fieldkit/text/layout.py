@@ -8,7 +8,7 @@ from __future__ import annotations
 import re
 import textwrap
 
-__all__ = ["NBSP", "fit", "keep_units", "wrap"]
+__all__ = ["NBSP", "fit", "keep_units", "together", "wrap"]
 
 #: A space between a number and its unit, or after "×": a line is never broken there.
 _UNIT_GAP = re.compile(r"(?<=\d) (?=(?:dBm|dB|nm|km|m|ps|GBd|MHz|µm|%)(?![A-Za-z]))|(?<=×) ")
@@ -47,3 +47,8 @@ def fit(text: str, width: int | None) -> str:
             stripped = part.lstrip(" ")
             out.append(NBSP * (len(part) - len(stripped)) + stripped)
     return "\n".join(out)
+
+
+def together(words: str) -> str:
+    """``words`` that a wrap must not part: their spaces become no-break spaces."""
+    return words.replace(" ", NBSP)

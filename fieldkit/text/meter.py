@@ -16,7 +16,7 @@ from datetime import datetime
 from fieldkit import safety
 from fieldkit.calc import reference as ref
 from fieldkit.jobs.counting import Tally
-from fieldkit.text.layout import NBSP
+from fieldkit.text.layout import together
 from fieldkit.text.numbers import minus
 from fieldkit.text.words import counted
 
@@ -29,11 +29,6 @@ MARKS: dict[ref.Status, tuple[str, str]] = {
 }
 #: Beside the verdict's mark when the reference of the reading drifted at its recheck.
 DOUBT_MARK = "?"
-
-
-def together(words: str) -> str:
-    """``words`` a wrap must not part (no-break spaces; the summary is shown wrapped)."""
-    return words.replace(" ", NBSP)
 
 
 def fit(width: int, *choices: str) -> str:

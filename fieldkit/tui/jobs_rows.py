@@ -12,9 +12,10 @@ from typing import TYPE_CHECKING, Protocol
 from rich.text import Text
 
 from fieldkit.text.escape import terminal
+from fieldkit.text.layout import together
 from fieldkit.text.words import counted, fmt_time
 from fieldkit.tui import keys
-from fieldkit.tui.wrapped import Wrapped, together
+from fieldkit.tui.wrapped import Wrapped
 
 if TYPE_CHECKING:
     from collections.abc import Sequence

@@ -27,7 +27,7 @@ from fieldkit.jobs.reports import (
 from fieldkit.jobs.splices import closure_summary
 from fieldkit.jobs.trace_summary import link_traces
 from fieldkit.text.escape import terminal
-from fieldkit.text.layout import fit
+from fieldkit.text.layout import fit, together
 from fieldkit.text.numbers import arrow
 
 # The list's rows and the job's head (no records needed: the first frame shows them from the
@@ -36,7 +36,7 @@ from fieldkit.tui.jobs_rows import head as head
 from fieldkit.tui.jobs_rows import no_job_head as no_job_head
 from fieldkit.tui.jobs_rows import plain as plain
 from fieldkit.tui.jobs_rows import prompt as prompt
-from fieldkit.tui.wrapped import Wrapped, together
+from fieldkit.tui.wrapped import Wrapped
 
 if TYPE_CHECKING:
     from fieldkit.jobs.models import Job, Link

@@ -22,12 +22,7 @@ if TYPE_CHECKING:
     from textual.style import Style
     from textual.visual import RenderOptions
 
-__all__ = ["NBSP", "Wrapped", "together"]
-
-
-def together(words: str) -> str:
-    """``words`` that must not be parted by a wrap: their spaces become no-break spaces."""
-    return words.replace(" ", NBSP)
+__all__ = ["NBSP", "Wrapped"]
 
 
 def _breaks(plain: str, width: int, start: int) -> list[tuple[int, int]]:

@@ -33,7 +33,8 @@ __all__ = ["JobActionsScreen"]
 
 
 class JobActionsScreen(WorkspaceScreen):
-    """The job-changing actions; the subclass gives the job shown and the list to refresh."""
+    """The job-changing actions. The job shown, the listing and the refresh are
+    JobsScreen's (declared here for the type checker only: this class is never used alone)."""
 
     model: JobsModel
     detail: JobDetail
@@ -42,19 +43,16 @@ class JobActionsScreen(WorkspaceScreen):
     def store(self) -> JobStore:
         return fieldkit_app(self).store
 
-    @property
-    def _job(self) -> Job | None:
-        """The job shown (the subclass reads it when only its summary is shown)."""
-        raise NotImplementedError
+    if TYPE_CHECKING:  # given by JobsScreen, which keeps the list and the detail
 
-    def reload(self, rescan: bool = False) -> None:
-        raise NotImplementedError
+        @property
+        def _job(self) -> Job | None: ...
 
-    def _open(self, job_id: str) -> None:
-        raise NotImplementedError
+        def reload(self, rescan: bool = False) -> None: ...
 
-    def _refilter(self) -> None:
-        raise NotImplementedError
+        def _open(self, job_id: str) -> None: ...
+
+        def _refilter(self) -> None: ...
 
     def _act(self, change: Callable[[], Job | None], said: Callable[[Job], str]) -> None:
         """Run a change through the actions layer: a refusal is told, never raised; a saved

@@ -26,10 +26,10 @@ from fieldkit.jobs.models import now
 from fieldkit.jobs.store import StoreError, local_date
 from fieldkit.jobs.today import DaySummary, counted, day_summary
 from fieldkit.text.escape import terminal
-from fieldkit.text.layout import NBSP
+from fieldkit.text.layout import NBSP, together
 from fieldkit.tui import keys
 from fieldkit.tui.jobs_view import COUNT_STYLES
-from fieldkit.tui.wrapped import Wrapped, together
+from fieldkit.tui.wrapped import Wrapped
 
 
 class DayJobs(OptionList):
