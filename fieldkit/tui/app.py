@@ -19,12 +19,14 @@ from textual.css.stylesheet import Stylesheet
 from textual.screen import Screen
 
 from fieldkit import __version__, locations, settings_file
-from fieldkit.tui import keys
+from fieldkit.tui import keys, layout_fix
 from fieldkit.tui.themes import HIGH_CONTRAST, register_themes
 from fieldkit.tui.workspaces import WORKSPACES
 
 if TYPE_CHECKING:
     from fieldkit.jobs.store import JobStore
+
+layout_fix.install()
 
 
 class _OnceParsedStylesheet(Stylesheet):
@@ -69,6 +71,9 @@ class FieldkitApp(App[None]):
         #: on an empty data folder say where data lives and offer a new job.
         self._welcome = welcome
         self._start_mode = start_mode or WORKSPACES[0].mode
+        # The first workspace is the app's first screen: no blank default screen composed,
+        # styled and painted before it, and no switch to it (a tenth of the start-up).
+        self.DEFAULT_MODE = self._start_mode  # type: ignore[misc]
         super().__init__()
         self.stylesheet = _OnceParsedStylesheet(variables=self.get_css_variables())
         register_themes(self)
@@ -117,13 +122,15 @@ class FieldkitApp(App[None]):
         self._operator = save_operator(self.config_dir, name)
         return self._operator
 
-    def on_mount(self) -> None:
+    def on_load(self) -> None:
+        # Before the first workspace is composed (at the app's Compose, right after this):
+        # it is styled once, in the theme it is shown in.
         saved = settings_file.load(self.config_dir).get("theme")
         if isinstance(saved, str) and saved in self.available_themes:
             self.theme = saved
+
+    def on_mount(self) -> None:
         self.theme_changed_signal.subscribe(self, self._remember_theme)
-        # DEFAULT_MODE stays unset: a mode screen holding an Input crashes at start otherwise.
-        self.switch_mode(self._start_mode)
         self.call_after_refresh(self._started)
         if self._welcome:
             self.call_after_refresh(self._first_start)

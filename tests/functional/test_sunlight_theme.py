@@ -133,3 +133,33 @@ async def test_sunlight_buttons_look_like_buttons(tmp_path: Path, size, mode, bu
         assert bg != screen_bg
         assert contrast(bg, screen_bg) >= 1.2  # a visible block, not a line drawing
         assert contrast(fg, bg) >= 4.5  # WCAG 2.1 SC 1.4.3 (AA)
+
+
+@pytest.mark.parametrize("mode", ["convert", "jobs"])
+async def test_a_saved_sunlight_theme_is_on_from_the_first_frame(tmp_path: Path, mode) -> None:
+    # The theme is read before the first workspace is composed: its first frame is already in
+    # the sunlight colours (no dark frame first, no restyle of every widget after it).
+    from textual.screen import Screen
+
+    from fieldkit import settings_file
+
+    config = tmp_path / "config"
+    settings_file.save(config, theme=HIGH_CONTRAST)
+    app = make_app(data_dir=tmp_path / "data", config_dir=config, start_mode=mode)
+    seen: list[str] = []
+    painted = Screen._compositor_refresh
+
+    def compositor_refresh(screen: Screen) -> None:
+        seen.append(screen.app.theme)
+        painted(screen)
+
+    Screen._compositor_refresh = compositor_refresh  # type: ignore[method-assign]
+    try:
+        async with app.run_test(size=(80, 24)) as pilot:
+            await pilot.pause()
+            assert app.theme == HIGH_CONTRAST
+            background = app.screen.styles.background.rgb
+    finally:
+        Screen._compositor_refresh = painted  # type: ignore[method-assign]
+    assert seen and set(seen) == {HIGH_CONTRAST}
+    assert _luminance(background) > 0.9  # white paper, as the theme sets
