@@ -8,6 +8,7 @@ stderr, never a traceback.
 
 from __future__ import annotations
 
+import gc
 import importlib
 import sys
 from collections.abc import Sequence
@@ -118,7 +119,21 @@ def _needed_modules(argv: Sequence[str]) -> tuple[tuple[str, ...], str | None]:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    arguments = sys.argv[1:] if argv is None else list(argv)
+    # Loading the UI (Textual and fieldkit's screens) makes some hundred thousand objects that
+    # live as long as the app; the cycle collector walking them again and again while they are
+    # made is a twentieth of the start-up. It is off until the first workspace is on screen
+    # (FieldkitApp._started freezes what exists then and turns it back on), and back on at
+    # once for a command that does not start the UI.
+    collecting = gc.isenabled()
+    gc.disable()
+    try:
+        return _main(sys.argv[1:] if argv is None else list(argv), collecting)
+    finally:
+        if collecting:
+            gc.enable()
+
+
+def _main(arguments: list[str], collecting: bool) -> int:
     if not arguments:
         # No arguments: the UI, as the parser would decide, without building it (argparse and
         # its parser are a hundredth of the start-up).
@@ -136,6 +151,8 @@ def main(argv: Sequence[str] | None = None) -> int:
 
         make_app(data_dir=args.data_dir, config_dir=args.config_dir, welcome=True).run()
         return 0
+    if collecting:
+        gc.enable()  # a command's own work collects as usual
     try:
         status = int(args.func(args) or 0)
     except KeyboardInterrupt:
@@ -148,6 +165,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     start_ui = getattr(args, "start_ui", None)
     if status == 0 and start_ui is not None:
         # A command (``demo``) asked for the UI once its work was done; commands never import it.
+        gc.disable()  # as for the plain start, while the UI loads
         from fieldkit.tui.app import make_app
 
         # A start by a person like the plain one: on a first start it asks who is working,

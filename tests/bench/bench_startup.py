@@ -23,8 +23,10 @@ What the first frame holds:
 
 The runs:
 
-- ``fieldkit``: the real entry point with no arguments (``fieldkit.cli.main([])``: settings,
-  themes, the Convert workspace), with ``$FIELDKIT_DATA_DIR`` on a folder of demo jobs.
+- ``fieldkit``: the real entry point with no arguments (``fieldkit.cli.main([])``, as the
+  ``fieldkit`` script calls it: settings, themes, the Convert workspace), with
+  ``$FIELDKIT_DATA_DIR`` on a folder of demo jobs. Nothing is imported before it: the frame
+  mark is hooked into ``textual.screen`` as fieldkit first imports it.
 - ``fieldkit demo``: ``fieldkit.cli.main(["demo", ...])`` -- checks the demo jobs, then opens
   the Jobs workspace on them.
 - the baseline: a bare Textual app with one Static (both marks are its first frame).
@@ -64,15 +66,9 @@ from pathlib import Path
 # A frame is marked when the screen's compositor has rendered it (Screen._compositor_refresh
 # returns); the headless driver writes nothing, for the baseline as for fieldkit.
 FIELDKIT_CHILD = """
-import os, sys, time
+import importlib.abc, importlib.util, os, sys, time
 argv = sys.argv[1:]
 mode = "jobs" if "demo" in argv else "convert"
-from fieldkit.tui.workspaces import WORKSPACES
-import importlib
-workspace = next(w for w in WORKSPACES if w.mode == mode)
-screen_class = getattr(importlib.import_module(workspace.module), workspace.screen_class)
-from textual.screen import Screen
-painted = Screen._compositor_refresh
 first = []
 
 def whole(screen):
@@ -81,21 +77,45 @@ def whole(screen):
     from textual.widgets._footer import FooterKey
     return getattr(screen, "workspace_complete", True) and bool(screen.query(FooterKey))
 
-def compositor_refresh(self):
-    painted(self)
-    if not isinstance(self, screen_class) or self is not self.app.screen:
-        return
-    if not first:
-        focused = self.app.focused
-        first.extend((time.time(), time.process_time(), type(self).__name__,
-                      getattr(focused, "id", None), len(list(self.walk_children()))))
-    if whole(self):
-        wall, cpu, *shown = first
-        print(wall, cpu, time.time(), time.process_time(), *shown, flush=True)
-        os._exit(0)
+def watch(screen_module):
+    painted = screen_module.Screen._compositor_refresh
 
-Screen._compositor_refresh = compositor_refresh
-from fieldkit.cli import main
+    def compositor_refresh(self):
+        painted(self)
+        from fieldkit.tui.workspaces import WORKSPACES  # imported by now
+        workspace = next(w for w in WORKSPACES if w.mode == mode)
+        if type(self).__name__ != workspace.screen_class or self is not self.app.screen:
+            return
+        if not first:
+            focused = self.app.focused
+            first.extend((time.time(), time.process_time(), type(self).__name__,
+                          getattr(focused, "id", None), len(list(self.walk_children()))))
+        if whole(self):
+            wall, cpu, *shown = first
+            print(wall, cpu, time.time(), time.process_time(), *shown, flush=True)
+            os._exit(0)
+
+    screen_module.Screen._compositor_refresh = compositor_refresh
+
+class WatchScreens(importlib.abc.MetaPathFinder):
+    # Hooks the frame mark into textual.screen as it is first imported, so nothing is imported
+    # before fieldkit's own entry point runs: the start is the ``fieldkit`` command's.
+    def find_spec(self, name, path, target=None):
+        if name != "textual.screen":
+            return None
+        sys.meta_path.remove(self)
+        spec = importlib.util.find_spec(name)
+        run = spec.loader.exec_module
+
+        def exec_module(module):
+            run(module)
+            watch(module)
+
+        spec.loader.exec_module = exec_module
+        return spec
+
+sys.meta_path.insert(0, WatchScreens())
+from fieldkit.cli import main  # what the ``fieldkit`` script runs
 main(argv)
 """
 

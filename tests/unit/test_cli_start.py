@@ -46,3 +46,35 @@ def test_a_command_named_alone_runs_as_with_the_full_parser(
     # ITU-T G.694.1: 193.1 THz is 1552.52 nm (c / f, c = 299 792 458 m/s)
     assert cli.main(["convert", "193.1 THz", "--to", "nm"]) == 0
     assert capsys.readouterr().out.startswith("1552.52")
+
+
+def test_a_command_runs_with_the_collector_on_and_main_leaves_it_as_found(
+    monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
+) -> None:
+    # The collector is off only while the UI loads (cli.main); a command's own work (a folder
+    # of 288 traces, say) collects as usual, and the caller's setting is kept either way.
+    import gc
+
+    seen: list[bool] = []
+
+    def spy(args: object) -> int:
+        seen.append(gc.isenabled())
+        return 0
+
+    original = cli._build
+
+    def build(modules: tuple[str, ...]) -> tuple[object, set[str]]:  # convert, spied on
+        parser, names = original(modules)
+        parser._subparsers._group_actions[0].choices["convert"].set_defaults(func=spy)
+        return parser, names
+
+    monkeypatch.setattr(cli, "_build", build)
+    assert gc.isenabled()
+    assert cli.main(["convert", "1 mW"]) == 0
+    assert seen == [True] and gc.isenabled()
+    gc.disable()
+    try:
+        assert cli.main(["convert", "1 mW"]) == 0
+        assert seen == [True, False] and not gc.isenabled()
+    finally:
+        gc.enable()
