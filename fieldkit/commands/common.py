@@ -7,9 +7,8 @@ import json
 import math
 import sys
 import unicodedata
-from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 from fieldkit.text.words import preset_problems
 
@@ -21,8 +20,7 @@ class CommandError(Exception):
     """Bad input or an impossible request on the command line: exit 2 with this message."""
 
 
-@dataclass(frozen=True)
-class StartUi:
+class StartUi(NamedTuple):
     """A command's request that ``cli.main`` start the terminal UI when the command is done.
 
     Commands never import the UI (the layer contract in pyproject.toml): ``fieldkit demo``

@@ -37,9 +37,8 @@ import re
 import stat
 import time
 from collections.abc import Callable, Iterator, Sequence
-from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, NamedTuple
 
 from fieldkit.fsutil import (
     FileTooLargeError,
@@ -119,8 +118,7 @@ _TMP_RE = re.compile(r"^\.([0-9a-f]{12,32})\.json\..+\.tmp$")
 _DATA_DIR_HINT = "choose a usable folder with --data-dir or FIELDKIT_DATA_DIR"
 
 
-@dataclass(frozen=True, slots=True)
-class QuarantinedFile:
+class QuarantinedFile(NamedTuple):
     """A file moved out of the jobs folder, and why."""
 
     path: Path

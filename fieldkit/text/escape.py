@@ -17,7 +17,6 @@ nothing else decides how user text is shown.
 
 from __future__ import annotations
 
-import html as _html
 import re
 
 #: C0 controls and DEL → the Unicode "control pictures" (U+2400 block), which every terminal
@@ -46,7 +45,9 @@ def terminal(text: object, *, multiline: bool = False) -> str:
 
 
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
-_PLAIN_NUMBER = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
+# The patterns are compiled on first use (re keeps them): the Jobs workspace imports this module
+# for its first frame, which needs none of them.
+_PLAIN_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 
 
 def csv_cell(value: object) -> str:
@@ -64,7 +65,7 @@ def csv_cell(value: object) -> str:
     if isinstance(value, int | float):
         return str(value)
     text = str(value)
-    if text.startswith(_FORMULA_START) and not _PLAIN_NUMBER.fullmatch(text):
+    if text.startswith(_FORMULA_START) and not re.fullmatch(_PLAIN_NUMBER, text):
         text = "'" + text
     return text.translate(_MULTI_LINE)
 
@@ -72,9 +73,9 @@ def csv_cell(value: object) -> str:
 # Characters that make links, images, emphasis, code and table cells anywhere on a line; a
 # backslash keeps each as the character itself (CommonMark 0.30, "Backslash escapes": any ASCII
 # punctuation may be escaped). "(" and ")" are harmless once "[" and "]" are escaped.
-_MD_INLINE = re.compile(r"([\\`*_\[\]!|~])")
+_MD_INLINE = r"([\\`*_\[\]!|~])"
 # At the start of a line these make a quote, a heading, a list item, a rule or an underline.
-_MD_LINE_START = re.compile(
+_MD_LINE_START = (
     r"^(?:\d{1,9}(?=[.)](?:\s|$))|(?=>)|(?=#{1,6}(?:\s|$))|(?=[-+](?:\s|$))|(?=[=-]+$))"
 )
 
@@ -89,10 +90,10 @@ def markdown(text: object) -> str:
     """
     words = " ".join(terminal(text, multiline=True).split())
     words = words.replace("&", "&amp;").replace("<", "&lt;")
-    words = _MD_INLINE.sub(r"\\\1", words)
+    words = re.sub(_MD_INLINE, r"\\\1", words)
     # "12." or "12)" would start a numbered list, "#", ">", "+", "=", "-" a block: escape the
     # character after the digits (a backslash before a digit is not an escape)
-    match = _MD_LINE_START.match(words)
+    match = re.match(_MD_LINE_START, words)
     if match:
         cut = match.end()
         words = f"{words[:cut]}\\{words[cut:]}"
@@ -102,7 +103,15 @@ def markdown(text: object) -> str:
 def html(text: object) -> str:
     """``text`` as HTML character data or an attribute value: ``& < > " '`` as entities and
     control characters shown visibly (HTML forbids most of them)."""
-    return _html.escape(terminal(text, multiline=True), quote=True)
+    # What html.escape(..., quote=True) does, "&" first (tests/unit check it against the
+    # standard library); the html package's entity table is not loaded for it.
+    shown = terminal(text, multiline=True)
+    for char, entity in _HTML_ENTITIES:
+        shown = shown.replace(char, entity)
+    return shown
+
+
+_HTML_ENTITIES = (("&", "&amp;"), ("<", "&lt;"), (">", "&gt;"), ('"', "&quot;"), ("'", "&#x27;"))
 
 
 _JSON_CODES = str.maketrans({code: f"\\u{code:04x}" for code in _INVISIBLE})

@@ -7,9 +7,8 @@ speed (tests/unit/test_jobs_dialogs.py).
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, NamedTuple
 
 from fieldkit.text.words import counted
 
@@ -20,8 +19,7 @@ if TYPE_CHECKING:
 Answer = tuple[str, str] | None
 
 
-@dataclass(frozen=True, slots=True)
-class Question:
+class Question(NamedTuple):
     """What an AskDialog shows: a title, lines, the answers offered (id, words) and, when it
     asks for one, what the reason field says."""
 

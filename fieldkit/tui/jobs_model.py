@@ -7,9 +7,8 @@ and the filter buttons say. Tested at unit speed (tests/unit/test_jobs_model.py)
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 from datetime import date
-from typing import TYPE_CHECKING, Literal
+from typing import TYPE_CHECKING, Literal, NamedTuple
 
 from fieldkit.jobs.errors import StoreError
 from fieldkit.jobs.search import JobFinder
@@ -28,8 +27,7 @@ STATUS_CYCLE: dict[str | None, str | None] = {None: "open", "open": "done", "don
 STATUS_LABELS: dict[str | None, str] = {None: "All jobs", "open": "Open jobs", "done": "Done jobs"}
 
 
-@dataclass(slots=True)
-class Page:
+class Page(NamedTuple):
     """One answer of the filter: the jobs shown, how many matched, which row is picked."""
 
     shown: list[JobSummary]
@@ -51,18 +49,23 @@ class Page:
         return self.shown[self.picked].id if self.picked is not None else None
 
 
-@dataclass
 class JobsModel:
-    """The listing, the filter's state and the job shown."""
+    """The listing, the filter's state and the job shown.
 
-    summaries: list[JobSummary] = field(default_factory=list)
-    status: str | None = None  # None (all), "open" or "done"
-    today_only: bool = False
-    job: Job | None = None
-    #: The job shown from its summary (its head only) until it is read; ``job`` is None then.
-    pending_id: str | None = None
-    quarantined: int = 0
-    _finder: JobFinder | None = field(default=None, repr=False)
+    A plain class, not a dataclass: it is made for the Jobs workspace's first frame, and
+    defining a dataclass costs about a millisecond at start-up.
+    """
+
+    def __init__(self, summaries: list[JobSummary] | None = None, quarantined: int = 0) -> None:
+        self.summaries: list[JobSummary] = summaries if summaries is not None else []
+        self.status: str | None = None  # None (all), "open" or "done"
+        self.today_only = False
+        self.job: Job | None = None
+        #: The job shown from its summary (its head only) until it is read; ``job`` is None
+        #: then.
+        self.pending_id: str | None = None
+        self.quarantined = quarantined
+        self._finder: JobFinder | None = None
 
     @property
     def job_id(self) -> str | None:

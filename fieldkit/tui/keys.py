@@ -25,9 +25,8 @@ that workspace only). No import of Textual at module level beyond ``Binding``: i
 from __future__ import annotations
 
 import sys
-from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Protocol
+from typing import TYPE_CHECKING, NamedTuple, Protocol
 
 from textual.binding import Binding, BindingType
 
@@ -66,8 +65,7 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True, slots=True)
-class Key:
+class Key(NamedTuple):
     """A key and the one thing it means wherever it is used."""
 
     name: str  # our id: "new", "open", ...
@@ -76,8 +74,7 @@ class Key:
     meaning: str  # what it means in every workspace (Help, README)
 
 
-@dataclass(frozen=True, slots=True)
-class Use:
+class Use(NamedTuple):
     """What a key does in one workspace."""
 
     name: str  # a Key.name from COMMON or LOCAL
@@ -391,8 +388,7 @@ KEYLESS_COMMANDS: tuple[tuple[str, str, str, str, str, str], ...] = (
 _MOVES = {"next", "previous", "page_down", "page_up", "column_next", "column_previous"}
 
 
-@dataclass(frozen=True, slots=True)
-class Command:
+class Command(NamedTuple):
     """One entry of the command palette: a workspace action, by name, with its key."""
 
     title: str

@@ -10,8 +10,7 @@ from __future__ import annotations
 import asyncio
 import importlib
 from collections.abc import Callable
-from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, NamedTuple
 
 from textual import events
 from textual.screen import Screen
@@ -23,8 +22,7 @@ if TYPE_CHECKING:
     from textual.widget import Widget
 
 
-@dataclass(frozen=True, slots=True)
-class Workspace:
+class Workspace(NamedTuple):
     mode: str  # the mode name, also the command-palette id
     title: str  # the footer label and the palette title
     help: str  # the palette help line

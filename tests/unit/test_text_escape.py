@@ -90,6 +90,18 @@ def test_html_escapes_markup_and_quotes() -> None:
     assert html('<b a="1">&\'') == "&lt;b a=&quot;1&quot;&gt;&amp;&#x27;"
 
 
+@pytest.mark.parametrize(
+    "text",
+    ['<b a="1">&\'', "&amp; stays &amp;amp;", "a<<>>b", "'\"'\"", "Fibre 7 > 0.3 dB & <fail>", ""],
+)
+def test_html_is_the_standard_librarys_escape_of_the_shown_text(text: str) -> None:
+    # Python's html.escape(s, quote=True) is the reference (fieldkit writes the same five
+    # entities without loading the html package at start-up)
+    import html as stdlib_html
+
+    assert html(text) == stdlib_html.escape(terminal(text, multiline=True), quote=True)
+
+
 def test_markup_escapes_rich_markup() -> None:
     from rich.text import Text
 

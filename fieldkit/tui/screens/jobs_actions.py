@@ -21,7 +21,6 @@ from fieldkit.jobs.errors import StoreError
 from fieldkit.tui import jobs_dialogs as dialogs
 from fieldkit.tui.jobs_model import JobsModel
 from fieldkit.tui.typed import fieldkit_app
-from fieldkit.tui.widgets.dialogs import AskDialog
 from fieldkit.tui.widgets.job_detail import JobDetail
 from fieldkit.tui.workspaces import WorkspaceScreen
 
@@ -102,6 +101,8 @@ class JobActionsScreen(WorkspaceScreen):
             )
 
     def _ask(self, question: dialogs.Question, then: Callable[[dialogs.Answer], None]) -> None:
+        from fieldkit.tui.widgets.dialogs import AskDialog  # when first asked, not at start
+
         self.app.push_screen(
             AskDialog(question.title, question.lines, question.answers, reason=question.reason),
             then,
