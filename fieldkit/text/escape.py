@@ -100,6 +100,9 @@ def markdown(text: object) -> str:
     return words
 
 
+_HTML_ENTITIES = (("&", "&amp;"), ("<", "&lt;"), (">", "&gt;"), ('"', "&quot;"), ("'", "&#x27;"))
+
+
 def html(text: object) -> str:
     """``text`` as HTML character data or an attribute value: ``& < > " '`` as entities and
     control characters shown visibly (HTML forbids most of them)."""
@@ -109,9 +112,6 @@ def html(text: object) -> str:
     for char, entity in _HTML_ENTITIES:
         shown = shown.replace(char, entity)
     return shown
-
-
-_HTML_ENTITIES = (("&", "&amp;"), ("<", "&lt;"), (">", "&gt;"), ('"', "&quot;"), ("'", "&#x27;"))
 
 
 _JSON_CODES = str.maketrans({code: f"\\u{code:04x}" for code in _INVISIBLE})

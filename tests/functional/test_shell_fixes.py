@@ -11,7 +11,7 @@ import pytest
 from textual.widgets import Input, Static
 
 from fieldkit import cli
-from fieldkit.tui.app import make_app
+from fieldkit.tui.app import FieldkitApp, make_app
 from fieldkit.tui.widgets.dialogs import NameDialog
 
 
@@ -39,16 +39,21 @@ def test_demo_starts_the_ui_as_a_start_by_a_person(
     assert started[0]["start_mode"] == "jobs"
 
 
-async def test_demo_folder_first_start_asks_the_name_and_refuses_a_blank_one(
-    isolated_dirs: dict[str, Path],
-) -> None:
+def _demo_start(isolated_dirs: dict[str, Path]) -> FieldkitApp:
+    """A person's start (``welcome``) on a demo folder, on the Jobs workspace."""
     from fieldkit.commands.demo import write_demo
 
     data = isolated_dirs["data"] / "demo"
     write_demo(data)
-    app = make_app(
+    return make_app(
         data_dir=data, config_dir=isolated_dirs["config"], start_mode="jobs", welcome=True
     )
+
+
+async def test_demo_folder_first_start_asks_the_name_and_refuses_a_blank_one(
+    isolated_dirs: dict[str, Path],
+) -> None:
+    app = _demo_start(isolated_dirs)
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         assert isinstance(app.screen, NameDialog)
@@ -67,14 +72,8 @@ async def test_demo_folder_first_start_asks_the_name_and_refuses_a_blank_one(
 async def test_a_name_from_the_environment_is_not_asked_again(
     isolated_dirs: dict[str, Path], monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    from fieldkit.commands.demo import write_demo
-
     monkeypatch.setenv("FIELDKIT_OPERATOR", "Shared Laptop")
-    data = isolated_dirs["data"] / "demo"
-    write_demo(data)
-    app = make_app(
-        data_dir=data, config_dir=isolated_dirs["config"], start_mode="jobs", welcome=True
-    )
+    app = _demo_start(isolated_dirs)
     async with app.run_test(size=(80, 24)) as pilot:
         await pilot.pause()
         assert not isinstance(app.screen, NameDialog)

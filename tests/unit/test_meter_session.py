@@ -25,7 +25,7 @@ from fieldkit.actions.meter import (
 from fieldkit.calc import reference as ref
 from fieldkit.calc.units import InputError
 from fieldkit.inputs import meter_wavelengths
-from fieldkit.jobs.models import Job, now
+from fieldkit.jobs.models import Job, Link, now
 from fieldkit.text.layout import NBSP
 from fieldkit.text.numbers import minus
 from fieldkit.tui.meter_session import (
@@ -439,7 +439,8 @@ def test_a_stored_result_keeps_the_limit_it_was_judged_with_after_ctrl_s() -> No
     assert text.strip() == "4.26✗"  # the fail mark (text/meter.py MARKS)
 
 
-def test_a_typed_limit_wins_over_the_stored_one() -> None:
+def _campus_with_one_result(limit_db: float | None) -> tuple[Job, Link]:
+    """A job whose 2-fibre link holds a 1310 nm one-cord reference and fibre 1's A->B result."""
     job = Job(name="Campus")
     link = job.add_link("B1 to B2", fibre_count=2)
     reference = add_reference(link, wavelength_nm=1310, level_dbm=-7.0, method=ref.Method.ONE_CORD)
@@ -450,8 +451,13 @@ def test_a_typed_limit_wins_over_the_stored_one() -> None:
         direction="A->B",
         reading_dbm=-8.0,
         reference=reference,
-        limit_db=0.5,
+        limit_db=limit_db,
     )
+    return job, link
+
+
+def test_a_typed_limit_wins_over_the_stored_one() -> None:
+    job, link = _campus_with_one_result(limit_db=0.5)
     s = _session(fibres=2, wavelengths="1310")
     s.set_limit("2.0")
     s.attach(job.id, link, DETAILS)
@@ -460,18 +466,7 @@ def test_a_typed_limit_wins_over_the_stored_one() -> None:
 
 def test_set_the_reference_first_is_stale_once_a_job_brings_the_reference() -> None:
     # Review F1 #5: "Set the reference for 1550 A→B first" stayed after Ctrl+S loaded it.
-    job = Job(name="Campus")
-    link = job.add_link("B1 to B2", fibre_count=2)
-    reference = add_reference(link, wavelength_nm=1310, level_dbm=-7.0, method=ref.Method.ONE_CORD)
-    put_result(
-        link,
-        fibre=1,
-        wavelength_nm=1310,
-        direction="A->B",
-        reading_dbm=-8.0,
-        reference=reference,
-        limit_db=None,
-    )
+    job, link = _campus_with_one_result(limit_db=None)
     s = _session(fibres=2, wavelengths="1310")
     refused = s.enter("-8.2", DETAILS)
     assert refused.error and refused.message.startswith("Set the reference for 1310 A→B first")
